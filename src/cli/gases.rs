@@ -1,0 +1,79 @@
+//! `fillwright gases`: the catalogue with its constants and sources.
+
+use clap::Args;
+use serde_json::json;
+
+use super::{print_json, Failure, Format, Refused};
+use crate::config;
+use crate::thermo::gerg;
+use crate::units::bar;
+
+#[derive(Debug, Args)]
+pub struct GasesArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value = "text")]
+    pub format: Format,
+}
+
+pub fn run(args: &GasesArgs) -> Result<(), Failure> {
+    let catalogue = config::load_catalogue().map_err(Refused)?;
+    match args.format {
+        Format::Json => {
+            let gases: Vec<serde_json::Value> = catalogue
+                .gases()
+                .iter()
+                .map(|g| {
+                    let r = &g.record;
+                    json!({
+                        "id": r.id, "name": r.name, "cas": r.cas, "formula": r.formula,
+                        "molar_mass_g_per_mol": g.molar_mass_g_per_mol,
+                        "critical_temperature_k": r.critical_temperature_k,
+                        "critical_pressure_bar": bar(r.critical_pressure_pa),
+                        "acentric_factor": r.acentric_factor,
+                        "normal_boiling_point_k": r.normal_boiling_point_k,
+                        "gerg": gerg::covers(&r.id),
+                        "sources": {
+                            "critical": catalogue.reference(&r.critical_source),
+                            "acentric": catalogue.reference(&r.acentric_source),
+                            "boiling": catalogue.reference(&r.boiling_source),
+                            "vapour_pressure": catalogue.reference(r.vapour_pressure.source()),
+                            "van_der_waals": r.van_der_waals.as_ref().and_then(|v| catalogue.reference(&v.source)),
+                        },
+                    })
+                })
+                .collect();
+            print_json(&json!({ "gases": gases }));
+        }
+        Format::Text => {
+            println!(
+                "{:<9} {:<22} {:<11} {:>8} {:>8} {:>8} {:>7} {:>7}  models",
+                "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"
+            );
+            for g in catalogue.gases() {
+                let r = &g.record;
+                let mut models = String::from("cubic");
+                if r.van_der_waals.is_some() {
+                    models.push_str(", vdw table");
+                }
+                if gerg::covers(&r.id) {
+                    models.push_str(", gerg");
+                }
+                println!(
+                    "{:<9} {:<22} {:<11} {:>8.3} {:>8.2} {:>8.3} {:>7.4} {:>7.2}  {}",
+                    r.id,
+                    r.name,
+                    r.cas,
+                    g.molar_mass_g_per_mol,
+                    r.critical_temperature_k,
+                    bar(r.critical_pressure_pa),
+                    r.acentric_factor,
+                    r.normal_boiling_point_k,
+                    models
+                );
+            }
+            println!();
+            println!("Sources of the constants: `fillwright gases --format json` names each value's source.");
+        }
+    }
+    Ok(())
+}

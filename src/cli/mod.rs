@@ -1,0 +1,151 @@
+//! The command line: parse, call the core, present. Exit status 0 success, 1 input refused,
+//! 2 wrong usage (INTERFACE.md).
+
+mod gases;
+mod state;
+
+use std::process::ExitCode;
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+use crate::gas::Catalogue;
+use crate::mixture::Composition;
+use crate::thermo::{gerg, Model};
+use crate::units::{self, STANDARD_AMBIENT_PA};
+
+#[derive(Debug, Parser)]
+#[command(
+    name = "fillwright",
+    version,
+    about = "Real-gas fill planning for calibration gas mixtures in high-pressure cylinders",
+    long_about = "Real-gas fill planning for calibration gas mixtures in high-pressure cylinders.\n\n\
+                  Every figure is a computation aid. Filling high-pressure cylinders with flammable, \
+                  toxic or oxidising gases is hazardous: follow local codes, the cylinder's markings \
+                  and licensed practice."
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Option<Command>,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Solve a gas state: give the mixture, the temperature and two of volume, pressure
+    /// and amount; the third is computed, under every model for comparison.
+    State(state::StateArgs),
+    /// List the gas catalogue with its constants and their sources.
+    Gases(gases::GasesArgs),
+}
+
+/// Output format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    Text,
+    Json,
+}
+
+/// Options shared by every computing command.
+#[derive(Debug, Clone, Args)]
+pub struct Common {
+    /// Equation of state: ideal, vdw, rk, srk, pr or gerg. Default: gerg where GERG-2008
+    /// covers every gas of the mixture, else pr.
+    #[arg(long, value_enum)]
+    pub model: Option<Model>,
+    /// Output format.
+    #[arg(long, value_enum, default_value = "text")]
+    pub format: Format,
+    /// Ambient pressure for gauge readings and gauge input (barg, psig, kPag).
+    #[arg(long, default_value = "1.01325bar", value_name = "P")]
+    pub ambient: String,
+}
+
+impl Common {
+    /// Ambient pressure, Pa.
+    pub fn ambient_pa(&self) -> Result<f64, Refused> {
+        units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
+            .map_err(|e| Refused(format!("--ambient: {e}")))
+    }
+}
+
+/// The model to use: the one asked for, or the default rule (gerg where it covers the
+/// gases, else pr). Asking for gerg on gases it does not cover is refused by the fluid.
+pub fn choose_model(
+    asked: Option<Model>,
+    composition: &Composition,
+    catalogue: &Catalogue,
+) -> Model {
+    asked.unwrap_or_else(|| {
+        if composition
+            .gases
+            .iter()
+            .all(|&g| gerg::covers(catalogue.gas(g).id()))
+        {
+            Model::Gerg
+        } else {
+            Model::Pr
+        }
+    })
+}
+
+/// Input that was refused: exit status 1 with this message.
+#[derive(Debug)]
+pub struct Refused(pub String);
+
+impl<E: std::error::Error> From<E> for Refused {
+    fn from(e: E) -> Refused {
+        Refused(e.to_string())
+    }
+}
+
+/// Wrong usage: exit status 2.
+#[derive(Debug)]
+pub enum Failure {
+    Refused(Refused),
+    Usage(String),
+}
+
+impl<T: Into<Refused>> From<T> for Failure {
+    fn from(r: T) -> Failure {
+        Failure::Refused(r.into())
+    }
+}
+
+/// Run the program with the process arguments.
+pub fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
+        }
+    };
+    let result = match cli.command {
+        None => {
+            println!(
+                "fillwright: the terminal screen is not built yet; try `fillwright state --help` or `fillwright --help`."
+            );
+            Ok(())
+        }
+        Some(Command::State(args)) => state::run(&args),
+        Some(Command::Gases(args)) => gases::run(&args),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(Failure::Refused(Refused(message))) => {
+            eprintln!("fillwright: {message}");
+            ExitCode::from(1)
+        }
+        Err(Failure::Usage(message)) => {
+            eprintln!("fillwright: {message}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+/// Print a JSON value (numbers at full precision).
+pub fn print_json(value: &serde_json::Value) {
+    println!(
+        "{}",
+        serde_json::to_string_pretty(value).unwrap_or_default()
+    );
+}

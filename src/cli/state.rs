@@ -1,0 +1,319 @@
+//! `fillwright state`: one gas state, solved under the chosen model and compared with the others.
+
+use clap::Args;
+use serde_json::json;
+
+use super::{choose_model, print_json, Common, Failure, Format, Refused};
+use crate::config;
+use crate::mixture::Composition;
+use crate::thermo::{Fluid, Model, ThermoError};
+use crate::units::{self, bar, celsius, litres, AmountInput, Sig, R};
+
+#[derive(Debug, Args)]
+#[command(
+    after_help = "Give two of --volume, --pressure and --amount; the third is solved.\n\n\
+                  Examples:\n  fillwright state --mix \"CO2=15%,N2=balance\" --temp 15C --volume 10L --pressure 150bar\n  \
+                  fillwright state --mix CH4 --temp 288.15K --volume 50L --amount 8kg --model pr --format json"
+)]
+pub struct StateArgs {
+    /// Mixture: GAS=AMOUNT pairs separated by commas, amounts in ppb, ppm, % or a bare mole
+    /// fraction, at most one GAS=balance; or a single pure gas. E.g. "CO=500ppm,CO2=15%,N2=balance".
+    #[arg(long, value_name = "SPEC")]
+    pub mix: String,
+    /// Temperature of the gas: 15C, 288.15K or 59F.
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
+    pub temp: String,
+    /// Volume of the gas (the cylinder's water capacity): 10L, 0.05m3, 500mL.
+    #[arg(long, value_name = "V", allow_hyphen_values = true)]
+    pub volume: Option<String>,
+    /// Pressure: absolute (150bar, 15MPa, 2200psi, 1atm) or gauge (barg, psig, kPag, relative to --ambient).
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
+    pub pressure: Option<String>,
+    /// Amount of gas: in mol (12mol, 5mmol, 0.1kmol) or as a mass (500g, 0.5kg).
+    #[arg(long, value_name = "N", allow_hyphen_values = true)]
+    pub amount: Option<String>,
+    #[command(flatten)]
+    pub common: Common,
+}
+
+/// Which quantity the user left out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Unknown {
+    Pressure,
+    Volume,
+    Amount,
+}
+
+impl Unknown {
+    fn name(self) -> &'static str {
+        match self {
+            Unknown::Pressure => "pressure",
+            Unknown::Volume => "volume",
+            Unknown::Amount => "amount",
+        }
+    }
+}
+
+/// What the user gave, in SI.
+struct Given {
+    t_k: f64,
+    p_pa: Option<f64>,
+    volume_m3: Option<f64>,
+    amount: Option<AmountInput>,
+}
+
+/// A solved state.
+#[derive(Debug, Clone)]
+struct Solved {
+    model: Model,
+    p_pa: f64,
+    volume_m3: f64,
+    amount_mol: f64,
+    z: f64,
+    mass_g: f64,
+    near_condensation: bool,
+    liquid_like: bool,
+}
+
+impl Solved {
+    fn value(&self, unknown: Unknown) -> f64 {
+        match unknown {
+            Unknown::Pressure => self.p_pa,
+            Unknown::Volume => self.volume_m3,
+            Unknown::Amount => self.amount_mol,
+        }
+    }
+}
+
+fn solve(fluid: &Fluid, x: &[f64], given: &Given, unknown: Unknown) -> Result<Solved, ThermoError> {
+    let molar_mass = fluid.molar_mass(x);
+    let moles = |a: AmountInput| match a {
+        AmountInput::Moles(n) => n,
+        AmountInput::Grams(m) => m / molar_mass,
+    };
+    let t = given.t_k;
+    let (p, v, n) = match unknown {
+        Unknown::Pressure => {
+            let v = given.volume_m3.unwrap_or_default();
+            let n = given.amount.map(moles).unwrap_or_default();
+            let amounts: Vec<f64> = x.iter().map(|xi| xi * n).collect();
+            (fluid.pressure(t, v, &amounts)?, v, n)
+        }
+        Unknown::Volume => {
+            let p = given.p_pa.unwrap_or_default();
+            let n = given.amount.map(moles).unwrap_or_default();
+            (p, fluid.volume(t, p, n, x)?, n)
+        }
+        Unknown::Amount => {
+            let p = given.p_pa.unwrap_or_default();
+            let v = given.volume_m3.unwrap_or_default();
+            (p, v, fluid.amount(t, p, v, x)?)
+        }
+    };
+    let tp = fluid.state_tp(t, p, x)?;
+    Ok(Solved {
+        model: fluid.model(),
+        p_pa: p,
+        volume_m3: v,
+        amount_mol: n,
+        z: p * v / (n * R * t),
+        mass_g: n * molar_mass,
+        near_condensation: tp.near_condensation,
+        liquid_like: tp.liquid_like,
+    })
+}
+
+pub fn run(args: &StateArgs) -> Result<(), Failure> {
+    let given_count = [
+        args.volume.is_some(),
+        args.pressure.is_some(),
+        args.amount.is_some(),
+    ]
+    .iter()
+    .filter(|b| **b)
+    .count();
+    if given_count != 2 {
+        return Err(Failure::Usage(format!(
+            "state needs exactly two of --volume, --pressure and --amount (got {given_count}); the third is solved"
+        )));
+    }
+    let unknown = if args.pressure.is_none() {
+        Unknown::Pressure
+    } else if args.volume.is_none() {
+        Unknown::Volume
+    } else {
+        Unknown::Amount
+    };
+    let catalogue = config::load_catalogue().map_err(Refused)?;
+    let ambient = args.common.ambient_pa()?;
+    let composition = Composition::from_spec(&args.mix, &catalogue)
+        .map_err(|e| Refused(format!("--mix: {e}")))?;
+    let given = Given {
+        t_k: units::parse_temperature(&args.temp).map_err(|e| Refused(format!("--temp: {e}")))?,
+        p_pa: args
+            .pressure
+            .as_deref()
+            .map(|p| units::parse_pressure(p, ambient))
+            .transpose()
+            .map_err(|e| Refused(format!("--pressure: {e}")))?,
+        volume_m3: args
+            .volume
+            .as_deref()
+            .map(units::parse_volume)
+            .transpose()
+            .map_err(|e| Refused(format!("--volume: {e}")))?,
+        amount: args
+            .amount
+            .as_deref()
+            .map(units::parse_amount)
+            .transpose()
+            .map_err(|e| Refused(format!("--amount: {e}")))?,
+    };
+    let model = choose_model(args.common.model, &composition, &catalogue);
+    let x = &composition.fractions;
+    let fluid_of = |m: Model| Fluid::new(&catalogue, &composition.gases, m);
+    let chosen = solve(&fluid_of(model)?, x, &given, unknown)?;
+    let others: Vec<(Model, Result<Solved, ThermoError>)> = Model::ALL
+        .iter()
+        .filter(|&&m| m != model)
+        .map(|&m| (m, fluid_of(m).and_then(|f| solve(&f, x, &given, unknown))))
+        .collect();
+
+    let ids: Vec<&str> = composition
+        .gases
+        .iter()
+        .map(|&g| catalogue.gas(g).id())
+        .collect();
+    match args.common.format {
+        Format::Json => {
+            let comparison: Vec<serde_json::Value> = others
+                .iter()
+                .map(|(m, r)| match r {
+                    Ok(s) => json!({
+                        "model": m.key(),
+                        "value": si_to_output(unknown, s.value(unknown)),
+                        "z": s.z,
+                        "difference_percent": percent(s.value(unknown), chosen.value(unknown)),
+                    }),
+                    Err(e) => json!({"model": m.key(), "error": e.to_string()}),
+                })
+                .collect();
+            print_json(&json!({
+                "model": chosen.model.key(),
+                "temperature_k": given.t_k,
+                "pressure_bar": bar(chosen.p_pa),
+                "volume_l": litres(chosen.volume_m3),
+                "amount_mol": chosen.amount_mol,
+                "z": chosen.z,
+                "mass_g": chosen.mass_g,
+                "solved": unknown.name(),
+                "near_condensation": chosen.near_condensation,
+                "liquid_like": chosen.liquid_like,
+                "components": ids.iter().zip(x).map(|(id, xi)| json!({"id": id, "mole_fraction": xi})).collect::<Vec<_>>(),
+                "comparison": comparison,
+            }));
+        }
+        Format::Text => print_text(
+            &composition.describe(&catalogue),
+            &given,
+            ambient,
+            unknown,
+            &chosen,
+            &others,
+        ),
+    }
+    Ok(())
+}
+
+/// The solved quantity in the output units: bar, L or mol.
+fn si_to_output(unknown: Unknown, v: f64) -> f64 {
+    match unknown {
+        Unknown::Pressure => bar(v),
+        Unknown::Volume => litres(v),
+        Unknown::Amount => v,
+    }
+}
+
+fn percent(value: f64, reference: f64) -> f64 {
+    (value / reference - 1.0) * 100.0
+}
+
+fn print_text(
+    mix: &str,
+    given: &Given,
+    ambient_pa: f64,
+    unknown: Unknown,
+    s: &Solved,
+    others: &[(Model, Result<Solved, ThermoError>)],
+) {
+    let mark = |u: Unknown| if u == unknown { "  <- solved" } else { "" };
+    println!("Gas state of {mix}");
+    println!("model: {} ({})", s.model.title(), s.model.key());
+    println!();
+    println!(
+        "  temperature  {:>12} °C   {:>10} K",
+        Sig(celsius(given.t_k), 5),
+        Sig(given.t_k, 6)
+    );
+    println!(
+        "  pressure     {:>12} bar  {:>10} bar gauge{}",
+        Sig(bar(s.p_pa), 6),
+        Sig(bar(s.p_pa - ambient_pa), 6),
+        mark(Unknown::Pressure)
+    );
+    println!(
+        "  volume       {:>12} L{}",
+        Sig(litres(s.volume_m3), 6),
+        mark(Unknown::Volume)
+    );
+    println!(
+        "  amount       {:>12} mol{}",
+        Sig(s.amount_mol, 6),
+        mark(Unknown::Amount)
+    );
+    println!("  mass         {:>12} g", Sig(s.mass_g, 6));
+    println!("  Z            {:>12.5}", s.z);
+    println!(
+        "  density      {:>12} g/L",
+        Sig(s.mass_g / litres(s.volume_m3), 5)
+    );
+    if s.liquid_like {
+        println!();
+        println!("  ! The stable root is liquid-like: at this state the mixture may be liquid or two-phase.");
+    } else if s.near_condensation {
+        println!();
+        println!("  ! The equation has a liquid-like root too: the state is near condensation.");
+    }
+    println!();
+    let unit = match unknown {
+        Unknown::Pressure => "bar",
+        Unknown::Volume => "L",
+        Unknown::Amount => "mol",
+    };
+    println!(
+        "  {:<22} {:>12} {:>9} {:>10}",
+        "other models",
+        format!("{} {unit}", unknown.name()),
+        "Z",
+        format!("vs {}", s.model.key())
+    );
+    for (m, r) in others {
+        match r {
+            Ok(o) => println!(
+                "  {:<22} {:>12} {:>9} {:>9}%",
+                m.title(),
+                Sig(si_to_output(unknown, o.value(unknown)), 6).to_string(),
+                format!("{:.5}", o.z),
+                format!("{:+.3}", percent(o.value(unknown), s.value(unknown)))
+            ),
+            Err(e) => println!("  {:<22} {}", m.title(), short_reason(e)),
+        }
+    }
+}
+
+fn short_reason(e: &ThermoError) -> String {
+    match e {
+        ThermoError::NotCovered(ids) => format!("does not cover {}", ids.join(", ")),
+        other => other.to_string(),
+    }
+}

@@ -1,0 +1,65 @@
+//! Vapour-pressure correlations carried by the catalogue, for condensation screening.
+
+use serde::{Deserialize, Serialize};
+
+/// How a gas's saturation pressure is computed.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum VapourPressure {
+    /// DIPPR equation 101: ln(P/Pa) = c1 + c2/T + c3 ln T + c4 T^c5, T in K, valid from
+    /// `t_min_k` to `t_max_k` (Perry's Handbook, 8th ed., Table 2-8).
+    Dippr101 {
+        c1: f64,
+        c2: f64,
+        c3: f64,
+        c4: f64,
+        c5: f64,
+        t_min_k: f64,
+        t_max_k: f64,
+        source: String,
+    },
+    /// Lee–Kesler corresponding-states estimate from Tc, Pc and ω
+    /// (Lee & Kesler, AIChE J. 21 (1975) 510), for gases with no fitted correlation.
+    LeeKesler { source: String },
+}
+
+impl VapourPressure {
+    /// Source key of the correlation.
+    pub fn source(&self) -> &str {
+        match self {
+            VapourPressure::Dippr101 { source, .. } | VapourPressure::LeeKesler { source } => {
+                source
+            }
+        }
+    }
+
+    /// Saturation pressure in Pa at `t_k`, or `None` above the critical temperature (no
+    /// liquid can form) or below the correlation's range.
+    pub fn pressure_pa(&self, t_k: f64, tc_k: f64, pc_pa: f64, omega: f64) -> Option<f64> {
+        if !(t_k > 0.0) || t_k > tc_k {
+            return None;
+        }
+        match *self {
+            VapourPressure::Dippr101 {
+                c1,
+                c2,
+                c3,
+                c4,
+                c5,
+                t_min_k,
+                t_max_k,
+                ..
+            } => {
+                if t_k < t_min_k || t_k > t_max_k {
+                    return None;
+                }
+                Some((c1 + c2 / t_k + c3 * t_k.ln() + c4 * t_k.powf(c5)).exp())
+            }
+            VapourPressure::LeeKesler { .. } => {
+                let tr = t_k / tc_k;
+                let f0 = 5.92714 - 6.09648 / tr - 1.28862 * tr.ln() + 0.169347 * tr.powi(6);
+                let f1 = 15.2518 - 15.6875 / tr - 13.4721 * tr.ln() + 0.43577 * tr.powi(6);
+                Some(pc_pa * (f0 + omega * f1).exp())
+            }
+        }
+    }
+}

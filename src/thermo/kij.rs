@@ -1,0 +1,60 @@
+//! Binary interaction parameters k_ij, one table per model.
+//!
+//! Peng–Robinson: the ChemSep table (Kooijman & Taylor), generated into `kij_pr.ron` by
+//! `tools/make_catalogue.py`. No comparable published set covering these gases was found
+//! for van der Waals, RK or SRK, so they use k_ij = 0, the classical default.
+
+use std::sync::OnceLock;
+
+use super::Model;
+
+const PR_TABLE: &str = include_str!("kij_pr.ron");
+
+fn pr_table() -> &'static [(String, String, f64)] {
+    static TABLE: OnceLock<Vec<(String, String, f64)>> = OnceLock::new();
+    // Checked by the test suite; a parse failure is a build defect.
+    TABLE.get_or_init(|| ron::from_str(PR_TABLE).expect("kij_pr.ron is valid"))
+}
+
+/// The published k_ij of `model` for a pair of gas ids, 0 where none is listed.
+pub fn value(model: Model, a: &str, b: &str) -> f64 {
+    match model {
+        Model::Pr => pr_table()
+            .iter()
+            .find(|(x, y, _)| (x == a && y == b) || (x == b && y == a))
+            .map_or(0.0, |t| t.2),
+        _ => 0.0,
+    }
+}
+
+/// The symmetric k_ij matrix of `model` for `ids`.
+pub fn matrix(model: Model, ids: &[&str]) -> Vec<Vec<f64>> {
+    ids.iter()
+        .map(|a| {
+            ids.iter()
+                .map(|b| if a == b { 0.0 } else { value(model, a, b) })
+                .collect()
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn pr_table_is_symmetric_in_lookup_and_names_known_gases() {
+        let c = crate::gas::Catalogue::built_in();
+        for (a, b, k) in pr_table() {
+            assert!(
+                c.index_of(a).is_some() && c.index_of(b).is_some(),
+                "{a}-{b}"
+            );
+            assert!(k.is_finite() && k.abs() < 1.0);
+        }
+        // ChemSep PR k_ij for N2-CH4 is 0.0289 (thermo IPDB 'ChemSep PR').
+        assert_eq!(value(Model::Pr, "CH4", "N2"), 0.0289);
+        assert_eq!(value(Model::Pr, "N2", "CH4"), 0.0289);
+        assert_eq!(value(Model::Srk, "N2", "CH4"), 0.0);
+    }
+}

@@ -1,0 +1,367 @@
+//! Physical quantities as a blender types them: `150bar`, `10 L`, `15C`, `2200psig`.
+//!
+//! Everything inside the program is SI (Pa, K, m³, mol, kg is not used: masses are in g
+//! because that is what the scale shows). Parsing and printing happen here, at the edge.
+//! Gauge units (`barg`, `psig`, `kPag`, `MPag`) are relative to an ambient pressure that
+//! the caller supplies (default [`STANDARD_AMBIENT_PA`]).
+
+use std::fmt;
+
+/// Molar gas constant, J mol⁻¹ K⁻¹: N_A·k with the exact SI 2019 / CODATA 2018 values
+/// (8.314462618 to the ten digits usually quoted).
+pub const R: f64 = 8.314_462_618_153_24;
+
+/// Standard atmosphere, Pa (exact by definition).
+pub const STANDARD_AMBIENT_PA: f64 = 101_325.0;
+
+/// Reference temperature for working pressures and gas volumes, K (15 °C, ISO 13443).
+pub const REFERENCE_TEMPERATURE_K: f64 = 288.15;
+
+/// Pascal per bar.
+pub const PA_PER_BAR: f64 = 1.0e5;
+
+/// Pascal per psi (1 lbf/in², exact from the international pound and inch).
+pub const PA_PER_PSI: f64 = 6_894.757_293_168_361;
+
+/// A quantity that could not be read, with the text and what would have been accepted.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{what} {text:?}: {problem}; accepted: {accepted}")]
+pub struct QuantityError {
+    /// Which quantity was being read ("pressure", "volume", …).
+    pub what: &'static str,
+    /// The text as typed.
+    pub text: String,
+    /// What is wrong with it.
+    pub problem: String,
+    /// The forms that would have been accepted.
+    pub accepted: &'static str,
+}
+
+/// Units accepted for each kind of quantity, for messages and `--help`.
+pub const PRESSURE_UNITS: &str =
+    "a number with bar, mbar, kPa, MPa, Pa, psi, atm (absolute) or barg, kPag, MPag, psig (gauge), e.g. 150bar";
+pub const TEMPERATURE_UNITS: &str = "a number with C, K or F, e.g. 15C, 288.15K, 59F";
+pub const VOLUME_UNITS: &str = "a number with L, mL, m3 or dm3, e.g. 10L, 0.05m3";
+pub const AMOUNT_UNITS: &str =
+    "a number with mol, mmol or kmol (amount) or g, kg (mass), e.g. 12mol, 500g";
+
+/// Split "150 bar" / "150bar" / "-5.5e1C" into the number and the unit text.
+fn split_number(text: &str) -> Option<(f64, &str)> {
+    let t = text.trim();
+    let bytes = t.as_bytes();
+    let mut end = 0;
+    let mut seen_digit = false;
+    let mut seen_e = false;
+    while end < bytes.len() {
+        let c = bytes[end] as char;
+        let ok = match c {
+            '0'..='9' => {
+                seen_digit = true;
+                true
+            }
+            '+' | '-' => end == 0 || matches!(bytes[end - 1] as char, 'e' | 'E'),
+            '.' => !seen_e,
+            'e' | 'E' if seen_digit && !seen_e => {
+                // Only an exponent when a digit (or sign and digit) follows.
+                let rest = &t[end + 1..];
+                let rest = rest.strip_prefix(['+', '-']).unwrap_or(rest);
+                if rest.starts_with(|c: char| c.is_ascii_digit()) {
+                    seen_e = true;
+                    true
+                } else {
+                    false
+                }
+            }
+            _ => false,
+        };
+        if !ok {
+            break;
+        }
+        end += 1;
+    }
+    if !seen_digit {
+        return None;
+    }
+    let value: f64 = t[..end].parse().ok()?;
+    Some((value, t[end..].trim()))
+}
+
+fn error(
+    what: &'static str,
+    text: &str,
+    problem: impl Into<String>,
+    accepted: &'static str,
+) -> QuantityError {
+    QuantityError {
+        what,
+        text: text.to_string(),
+        problem: problem.into(),
+        accepted,
+    }
+}
+
+fn number_and_unit<'a>(
+    what: &'static str,
+    text: &'a str,
+    accepted: &'static str,
+) -> Result<(f64, &'a str), QuantityError> {
+    let (value, unit) = split_number(text)
+        .ok_or_else(|| error(what, text, "does not start with a number", accepted))?;
+    if !value.is_finite() {
+        return Err(error(what, text, "the number is not finite", accepted));
+    }
+    if unit.is_empty() {
+        return Err(error(what, text, "has no unit", accepted));
+    }
+    Ok((value, unit))
+}
+
+/// Parse an absolute or gauge pressure; returns absolute pressure in Pa.
+pub fn parse_pressure(text: &str, ambient_pa: f64) -> Result<f64, QuantityError> {
+    let what = "pressure";
+    let (value, unit) = number_and_unit(what, text, PRESSURE_UNITS)?;
+    let (factor, gauge) = match unit.to_ascii_lowercase().as_str() {
+        "bar" | "bara" => (PA_PER_BAR, false),
+        "mbar" => (100.0, false),
+        "pa" => (1.0, false),
+        "kpa" | "kpaa" => (1.0e3, false),
+        "mpa" | "mpaa" => (1.0e6, false),
+        "psi" | "psia" => (PA_PER_PSI, false),
+        "atm" => (STANDARD_AMBIENT_PA, false),
+        "barg" => (PA_PER_BAR, true),
+        "kpag" => (1.0e3, true),
+        "mpag" => (1.0e6, true),
+        "psig" => (PA_PER_PSI, true),
+        _ => {
+            return Err(error(
+                what,
+                text,
+                format!("unknown unit {unit:?}"),
+                PRESSURE_UNITS,
+            ))
+        }
+    };
+    let pa = value * factor + if gauge { ambient_pa } else { 0.0 };
+    if pa <= 0.0 {
+        return Err(error(
+            what,
+            text,
+            "the absolute pressure must be above zero",
+            PRESSURE_UNITS,
+        ));
+    }
+    Ok(pa)
+}
+
+/// Parse a temperature; returns K.
+pub fn parse_temperature(text: &str) -> Result<f64, QuantityError> {
+    let what = "temperature";
+    let (value, unit) = number_and_unit(what, text, TEMPERATURE_UNITS)?;
+    let kelvin = match unit {
+        "C" | "c" | "°C" | "degC" => value + 273.15,
+        "K" | "k" => value,
+        "F" | "f" | "°F" | "degF" => (value - 32.0) * 5.0 / 9.0 + 273.15,
+        _ => {
+            return Err(error(
+                what,
+                text,
+                format!("unknown unit {unit:?}"),
+                TEMPERATURE_UNITS,
+            ))
+        }
+    };
+    if kelvin <= 0.0 {
+        return Err(error(
+            what,
+            text,
+            "is at or below absolute zero",
+            TEMPERATURE_UNITS,
+        ));
+    }
+    Ok(kelvin)
+}
+
+/// Parse a volume; returns m³.
+pub fn parse_volume(text: &str) -> Result<f64, QuantityError> {
+    let what = "volume";
+    let (value, unit) = number_and_unit(what, text, VOLUME_UNITS)?;
+    let factor = match unit {
+        "L" | "l" | "dm3" => 1.0e-3,
+        "mL" | "ml" => 1.0e-6,
+        "m3" => 1.0,
+        _ => {
+            return Err(error(
+                what,
+                text,
+                format!("unknown unit {unit:?}"),
+                VOLUME_UNITS,
+            ))
+        }
+    };
+    if value <= 0.0 {
+        return Err(error(what, text, "must be above zero", VOLUME_UNITS));
+    }
+    Ok(value * factor)
+}
+
+/// An amount of gas as typed: either moles or a mass that the caller converts with the
+/// mixture's molar mass.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum AmountInput {
+    /// Amount of substance, mol.
+    Moles(f64),
+    /// Mass, g.
+    Grams(f64),
+}
+
+/// Parse an amount (`12mol`) or a mass (`500g`, `0.5kg`).
+pub fn parse_amount(text: &str) -> Result<AmountInput, QuantityError> {
+    let what = "amount";
+    let (value, unit) = number_and_unit(what, text, AMOUNT_UNITS)?;
+    let amount = match unit {
+        "mol" => AmountInput::Moles(value),
+        "mmol" => AmountInput::Moles(value * 1.0e-3),
+        "kmol" => AmountInput::Moles(value * 1.0e3),
+        "g" => AmountInput::Grams(value),
+        "kg" => AmountInput::Grams(value * 1.0e3),
+        "mg" => AmountInput::Grams(value * 1.0e-3),
+        _ => {
+            return Err(error(
+                what,
+                text,
+                format!("unknown unit {unit:?}"),
+                AMOUNT_UNITS,
+            ))
+        }
+    };
+    if value <= 0.0 {
+        return Err(error(what, text, "must be above zero", AMOUNT_UNITS));
+    }
+    Ok(amount)
+}
+
+/// Pressure in bar from Pa.
+pub fn bar(pa: f64) -> f64 {
+    pa / PA_PER_BAR
+}
+
+/// Litres from m³.
+pub fn litres(m3: f64) -> f64 {
+    m3 * 1.0e3
+}
+
+/// Degrees Celsius from K.
+pub fn celsius(k: f64) -> f64 {
+    k - 273.15
+}
+
+/// A number printed with a fixed count of significant digits and no exponent for the
+/// magnitudes a blender meets (1e-4 … 1e6), for text output.
+pub struct Sig(pub f64, pub usize);
+
+impl fmt::Display for Sig {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let Sig(x, digits) = *self;
+        let text = if x == 0.0 || !x.is_finite() {
+            format!("{x}")
+        } else {
+            let magnitude = x.abs().log10().floor() as i32;
+            let decimals = (digits as i32 - 1 - magnitude).max(0) as usize;
+            format!("{x:.decimals$}")
+        };
+        // `pad` so that width and alignment in the caller's format string apply.
+        f.pad(&text)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn pressures_in_every_accepted_unit() {
+        let amb = STANDARD_AMBIENT_PA;
+        assert_eq!(parse_pressure("150bar", amb).unwrap(), 150.0e5);
+        assert_eq!(parse_pressure("150 bar", amb).unwrap(), 150.0e5);
+        assert_eq!(parse_pressure("15MPa", amb).unwrap(), 15.0e6);
+        assert_eq!(parse_pressure("101.325kPa", amb).unwrap(), 101_325.0);
+        assert_eq!(parse_pressure("1atm", amb).unwrap(), 101_325.0);
+        // 1 psi = 6894.757293168 Pa (NIST SP 811, appendix B.8).
+        assert!(
+            (parse_pressure("2200psi", amb).unwrap() - 2200.0 * 6_894.757_293_168).abs() < 1e-3
+        );
+        assert_eq!(parse_pressure("0barg", amb).unwrap(), amb);
+        assert_eq!(parse_pressure("10barg", 0.95e5).unwrap(), 10.95e5);
+        assert!((parse_pressure("100kPag", amb).unwrap() - 201_325.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn temperatures() {
+        assert!((parse_temperature("15C").unwrap() - 288.15).abs() < 1e-12);
+        assert_eq!(parse_temperature("288.15K").unwrap(), 288.15);
+        assert!((parse_temperature("59F").unwrap() - 288.15).abs() < 1e-12);
+        assert!((parse_temperature("-40C").unwrap() - 233.15).abs() < 1e-12);
+        assert!((parse_temperature("-40F").unwrap() - 233.15).abs() < 1e-12);
+    }
+
+    #[test]
+    fn volumes_and_amounts() {
+        assert_eq!(parse_volume("10L").unwrap(), 0.01);
+        assert_eq!(parse_volume("0.05m3").unwrap(), 0.05);
+        assert_eq!(parse_amount("1mol").unwrap(), AmountInput::Moles(1.0));
+        assert_eq!(parse_amount("32g").unwrap(), AmountInput::Grams(32.0));
+        assert_eq!(parse_amount("0.5kg").unwrap(), AmountInput::Grams(500.0));
+    }
+
+    #[test]
+    fn numbers_without_units_are_refused_with_the_accepted_units() {
+        let e = parse_pressure("150", STANDARD_AMBIENT_PA).unwrap_err();
+        assert!(e.to_string().contains("has no unit"), "{e}");
+        assert!(e.to_string().contains("barg"), "{e}");
+        let e = parse_volume("10").unwrap_err();
+        assert!(e.to_string().contains("10L"), "{e}");
+    }
+
+    #[test]
+    fn malformed_quantities_are_refused() {
+        for bad in [
+            "",
+            "bar",
+            "1e",
+            "nanbar",
+            "infbar",
+            "1.2.3bar",
+            "--5bar",
+            "5 furlongs",
+            "-1bar",
+            "0bar",
+        ] {
+            assert!(
+                parse_pressure(bad, STANDARD_AMBIENT_PA).is_err(),
+                "{bad:?} accepted"
+            );
+        }
+        assert!(parse_temperature("-300C").is_err());
+        assert!(parse_temperature("0K").is_err());
+        assert!(parse_volume("-1L").is_err());
+        assert!(parse_amount("0mol").is_err());
+        assert!(parse_pressure("1e400bar", STANDARD_AMBIENT_PA).is_err());
+    }
+
+    #[test]
+    fn exponent_forms() {
+        assert_eq!(
+            parse_pressure("1.5e2bar", STANDARD_AMBIENT_PA).unwrap(),
+            150.0e5
+        );
+        assert_eq!(parse_volume("1e1L").unwrap(), 0.01);
+    }
+
+    #[test]
+    fn significant_digits() {
+        assert_eq!(Sig(1.04812, 4).to_string(), "1.048");
+        assert_eq!(Sig(150.123, 4).to_string(), "150.1");
+        assert_eq!(Sig(0.0012345, 3).to_string(), "0.00123");
+        assert_eq!(format!("{:>8}", Sig(1.5, 2)), "     1.5");
+    }
+}

@@ -1,0 +1,186 @@
+#!/usr/bin/env python3
+"""Regenerate src/gas/catalogue.ron and src/thermo/kij_pr.ron.
+
+The critical constants, acentric factors, normal boiling points and vapour-pressure
+coefficients come from the data sets that the `chemicals` library (PyPI) carries, each
+value tagged with the data set it was taken from. Names, aliases and the tabulated van der
+Waals constants (CRC Handbook table "Van der Waals Constants for Gases") are kept here.
+
+Run:  pip install chemicals==1.5.2 thermo==0.6.1 && python3 tools/make_catalogue.py
+To add a gas: add a row to GASES below, run the script, run `cargo test`.
+"""
+import math
+import os
+
+import chemicals
+from chemicals import acentric, critical, phase_change
+from chemicals import vapor_pressure as vp
+from thermo.interaction_parameters import IPDB
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+ROOT = os.path.dirname(HERE)
+
+# id, CAS, formula (element counts, Hill-free, as written), name, extra aliases,
+# tabulated van der Waals (a in bar L2/mol2, b in L/mol) from the CRC Handbook table or None.
+GASES = [
+    ("N2", "7727-37-9", "N2", "nitrogen", [], (1.370, 0.0387)),
+    ("O2", "7782-44-7", "O2", "oxygen", [], (1.382, 0.03186)),
+    ("Ar", "7440-37-1", "Ar", "argon", [], (1.355, 0.03201)),
+    ("He", "7440-59-7", "He", "helium", [], (0.0346, 0.0238)),
+    ("Ne", "7440-01-9", "Ne", "neon", [], (0.208, 0.01672)),
+    ("Kr", "7439-90-9", "Kr", "krypton", [], (2.325, 0.0396)),
+    ("Xe", "7440-63-3", "Xe", "xenon", [], None),
+    ("H2", "1333-74-0", "H2", "hydrogen", [], (0.2453, 0.02651)),
+    ("CO", "630-08-0", "CO", "carbon monoxide", [], (1.472, 0.0395)),
+    ("CO2", "124-38-9", "CO2", "carbon dioxide", [], (3.658, 0.0429)),
+    ("CH4", "74-82-8", "CH4", "methane", [], (2.303, 0.0431)),
+    ("C2H6", "74-84-0", "C2H6", "ethane", [], (5.580, 0.0651)),
+    ("C3H8", "74-98-6", "C3H8", "propane", [], None),
+    ("n-C4H10", "106-97-8", "C4H10", "n-butane", ["butane"], (13.89, 0.1164)),
+    ("i-C4H10", "75-28-5", "C4H10", "isobutane", ["i-butane", "2-methylpropane"], (13.32, 0.1164)),
+    ("n-C5H12", "109-66-0", "C5H12", "n-pentane", ["pentane"], (19.09, 0.1449)),
+    ("i-C5H12", "78-78-4", "C5H12", "isopentane", ["i-pentane", "2-methylbutane"], None),
+    ("n-C6H14", "110-54-3", "C6H14", "n-hexane", ["hexane"], (24.84, 0.1744)),
+    ("n-C7H16", "142-82-5", "C7H16", "n-heptane", ["heptane"], (31.06, 0.2049)),
+    ("n-C8H18", "111-65-9", "C8H18", "n-octane", ["octane"], (37.88, 0.2374)),
+    ("n-C9H20", "111-84-2", "C9H20", "n-nonane", ["nonane"], None),
+    ("n-C10H22", "124-18-5", "C10H22", "n-decane", ["decane"], (52.74, 0.3043)),
+    ("C2H4", "74-85-1", "C2H4", "ethylene", ["ethene"], (4.612, 0.0582)),
+    ("C3H6", "115-07-1", "C3H6", "propylene", ["propene"], None),
+    ("C2H2", "74-86-2", "C2H2", "acetylene", ["ethyne"], (4.516, 0.05218)),
+    ("C4H6", "106-99-0", "C4H6", "1,3-butadiene", ["butadiene"], None),
+    ("NO", "10102-43-9", "NO", "nitric oxide", ["nitrogen monoxide"], (1.46, 0.0289)),
+    ("NO2", "10102-44-0", "NO2", "nitrogen dioxide", [], (5.36, 0.0443)),
+    ("N2O", "10024-97-2", "N2O", "nitrous oxide", ["dinitrogen monoxide"], (3.852, 0.04435)),
+    ("SO2", "7446-09-5", "SO2", "sulfur dioxide", ["sulphur dioxide"], (6.865, 0.05679)),
+    ("H2S", "7783-06-4", "H2S", "hydrogen sulfide", ["hydrogen sulphide"], (4.544, 0.04339)),
+    ("COS", "463-58-1", "COS", "carbonyl sulfide", ["carbonyl sulphide"], None),
+    ("NH3", "7664-41-7", "NH3", "ammonia", [], (4.225, 0.03713)),
+    ("HCl", "7647-01-0", "HCl", "hydrogen chloride", [], (3.700, 0.04061)),
+    ("Cl2", "7782-50-5", "Cl2", "chlorine", [], (6.343, 0.05422)),
+    ("SF6", "2551-62-4", "SF6", "sulfur hexafluoride", ["sulphur hexafluoride"], (7.857, 0.08786)),
+    ("CF4", "75-73-0", "CF4", "carbon tetrafluoride", ["tetrafluoromethane"], None),
+    ("NF3", "7783-54-2", "NF3", "nitrogen trifluoride", [], (3.58, 0.05453)),
+    ("H2O", "7732-18-5", "H2O", "water", [], (5.537, 0.03049)),
+    ("CH3OH", "67-56-1", "CH4O", "methanol", [], (9.476, 0.0659)),
+    ("C2H5OH", "64-17-5", "C2H6O", "ethanol", [], (12.56, 0.0871)),
+    ("C6H6", "71-43-2", "C6H6", "benzene", [], (18.82, 0.1193)),
+    ("C7H8", "108-88-3", "C7H8", "toluene", ["methylbenzene"], None),
+]
+
+REFERENCES = {
+    "IUPAC": "IUPAC critical-property series: Ambrose, Tsonopoulos, Young et al., J. Chem. Eng. Data 40 (1995) onwards (via chemicals 'IUPAC')",
+    "MATTHEWS": "Matthews, J. F., The critical constants of inorganic substances, Chem. Rev. 72 (1972) 71-100 (via chemicals 'MATTHEWS')",
+    "HEOS": "Critical points of the reference Helmholtz equations of state in CoolProp (via chemicals 'HEOS')",
+    "PSRK": "Horstmann, Jabloniec, Krafczyk, Fischer, Gmehling, PSRK group contribution equation of state, Fluid Phase Equilib. 227 (2005) 157-164 (via chemicals 'PSRK')",
+    "YAWS": "Yaws, C. L., Thermophysical Properties of Chemicals and Hydrocarbons, 2nd ed. (2014) (via chemicals 'YAWS')",
+    "CRC_INORG": "CRC Handbook of Chemistry and Physics, 95th ed., physical constants of inorganic compounds (via chemicals 'CRC_INORG')",
+    "CRC_ORG": "CRC Handbook of Chemistry and Physics, 95th ed., physical constants of organic compounds (via chemicals 'CRC_ORG')",
+    "COMMON_CHEMISTRY": "CAS Common Chemistry (via chemicals 'COMMON_CHEMISTRY')",
+    "WEBBOOK": "NIST Chemistry WebBook (via chemicals 'WEBBOOK')",
+    "PERRY_2_8": "Green & Perry, Perry's Chemical Engineers' Handbook, 8th ed., Table 2-8, DIPPR equation 101 (via chemicals Psat_data_Perrys2_8)",
+    "LEE_KESLER": "Lee & Kesler, AIChE J. 21 (1975) 510, computed from Tc, Pc and the acentric factor (estimate)",
+    "CRC_VDW": "CRC Handbook of Chemistry and Physics, table 'Van der Waals Constants for Gases' (from Tc and Pc in its critical-constants table)",
+    "IUPAC_2021": "IUPAC/CIAAW standard atomic weights 2021, conventional values; Ar 39.948 (atmospheric argon)",
+    "CHEMSEP_PR": "ChemSep Peng-Robinson binary interaction parameters, Kooijman & Taylor, ChemSep database (via thermo IPDB 'ChemSep PR')",
+}
+
+PREFER_CRITICAL = ["IUPAC", "MATTHEWS", "HEOS", "PSRK", "YAWS"]
+PREFER_OMEGA = ["PSRK", "HEOS", "YAWS"]
+PREFER_TB = ["CRC_ORG", "CRC_INORG", "HEOS", "COMMON_CHEMISTRY", "WEBBOOK", "YAWS"]
+
+
+def pick(methods, prefer):
+    for m in prefer:
+        if m in methods:
+            return m
+    raise SystemExit(f"no preferred method among {methods}")
+
+
+def num(x):
+    r = repr(float(x))
+    return r
+
+
+def q(s):
+    return '"' + s.replace("\\", "\\\\").replace('"', '\\"') + '"'
+
+
+def main():
+    out = []
+    out.append("// Gas catalogue of fillwright. Generated by tools/make_catalogue.py from")
+    out.append(f"// chemicals {chemicals.__version__}; edit the script, not this file.")
+    out.append("// Units: K, Pa, g/mol, bar L2/mol2, L/mol. Every value names its source key;")
+    out.append("// the keys are spelled out in `references`.")
+    out.append("Catalogue(")
+    out.append("    format: 1,")
+    out.append("    references: {")
+    for k in sorted(REFERENCES):
+        out.append(f"        {q(k)}: {q(REFERENCES[k])},")
+    out.append("    },")
+    out.append("    gases: [")
+    for gid, cas, formula, name, aliases, vdw in GASES:
+        mc = pick(critical.Tc_methods(cas), PREFER_CRITICAL)
+        tc = critical.Tc(cas, method=mc)
+        pc = critical.Pc(cas, method=mc)
+        mo = pick(acentric.omega_methods(cas), PREFER_OMEGA)
+        omega = acentric.omega(cas, method=mo)
+        mb = pick(phase_change.Tb_methods(cas), PREFER_TB)
+        tb = phase_change.Tb(cas, method=mb)
+        out.append("        Gas(")
+        out.append(f"            id: {q(gid)},")
+        out.append(f"            name: {q(name)},")
+        out.append(f"            aliases: [{', '.join(q(a) for a in aliases)}],")
+        out.append(f"            cas: {q(cas)},")
+        out.append(f"            formula: {q(formula)},")
+        out.append(f"            critical_temperature_k: {num(tc)},")
+        out.append(f"            critical_pressure_pa: {num(pc)},")
+        out.append(f"            critical_source: {q(mc)},")
+        out.append(f"            acentric_factor: {num(omega)},")
+        out.append(f"            acentric_source: {q(mo)},")
+        out.append(f"            normal_boiling_point_k: {num(tb)},")
+        out.append(f"            boiling_source: {q(mb)},")
+        if cas in vp.Psat_data_Perrys2_8.index:
+            row = vp.Psat_data_Perrys2_8.loc[cas]
+            c = [float(row[f"C{i}"]) for i in range(1, 6)]
+            out.append(
+                "            vapour_pressure: Dippr101(c1: %s, c2: %s, c3: %s, c4: %s, c5: %s, t_min_k: %s, t_max_k: %s, source: \"PERRY_2_8\"),"
+                % tuple(num(v) for v in c + [row["Tmin"], row["Tmax"]])
+            )
+        else:
+            out.append('            vapour_pressure: LeeKesler(source: "LEE_KESLER"),')
+        if vdw:
+            out.append(f"            van_der_waals: Some((a_bar_l2_per_mol2: {num(vdw[0])}, b_l_per_mol: {num(vdw[1])}, source: \"CRC_VDW\")),")
+        else:
+            out.append("            van_der_waals: None,")
+        out.append("        ),")
+    out.append("    ],")
+    out.append(")")
+    with open(os.path.join(ROOT, "src", "gas", "catalogue.ron"), "w") as f:
+        f.write("\n".join(out) + "\n")
+
+    # Peng-Robinson k_ij from ChemSep, for every pair of catalogue gases that has one.
+    cas_to_id = {cas: gid for gid, cas, *_ in GASES}
+    lines = [
+        "// Peng-Robinson binary interaction parameters k_ij (symmetric). Generated by",
+        "// tools/make_catalogue.py from thermo's IPDB table 'ChemSep PR'",
+        f"// (source: {REFERENCES['CHEMSEP_PR']}).",
+        "// Pairs not listed have k_ij = 0.",
+        "[",
+    ]
+    ids = list(cas_to_id)
+    for i, a in enumerate(ids):
+        for b in ids[i + 1:]:
+            try:
+                k = IPDB.get_ip_specific("ChemSep PR", [a, b], "kij")
+            except Exception:
+                continue
+            if k and not math.isclose(k, 0.0):
+                lines.append(f"    ({q(cas_to_id[a])}, {q(cas_to_id[b])}, {num(k)}),")
+    lines.append("]")
+    with open(os.path.join(ROOT, "src", "thermo", "kij_pr.ron"), "w") as f:
+        f.write("\n".join(lines) + "\n")
+
+
+if __name__ == "__main__":
+    main()
