@@ -1,6 +1,6 @@
 //! Where the program keeps its files, and the user's own gas catalogue.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use crate::gas::Catalogue;
 
@@ -36,4 +36,60 @@ pub fn load_catalogue() -> Result<Catalogue, String> {
     let text = std::fs::read_to_string(&path).map_err(|e| format!("{}: {e}", path.display()))?;
     let user = Catalogue::parse(&text, &path.display().to_string()).map_err(|e| e.to_string())?;
     Ok(built_in.with_overrides(user))
+}
+
+/// The recipe library folder: `--library`, else `$FILLWRIGHT_LIBRARY`, else `library/` in
+/// the config folder.
+pub fn library_dir(flag: Option<&Path>) -> Option<PathBuf> {
+    if let Some(dir) = flag {
+        return Some(dir.to_path_buf());
+    }
+    if let Some(dir) = std::env::var_os("FILLWRIGHT_LIBRARY") {
+        return Some(PathBuf::from(dir));
+    }
+    config_dir().map(|d| d.join("library"))
+}
+
+/// The text of a recipe given as a file path, a library name or a demo recipe name,
+/// with the name to use for it in messages.
+pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String), String> {
+    let as_path = Path::new(name);
+    let looks_like_path =
+        name.ends_with(".ron") || name.contains(std::path::MAIN_SEPARATOR) || name.contains('/');
+    if looks_like_path || as_path.is_file() {
+        return read_limited(as_path).map(|t| (t, name.to_string()));
+    }
+    let dir = library_dir(library);
+    if let Some(dir) = &dir {
+        let file = dir.join(format!("{name}.ron"));
+        if file.is_file() {
+            return read_limited(&file).map(|t| (t, file.display().to_string()));
+        }
+    }
+    if let Some(text) = crate::recipe::demo::find(name) {
+        return Ok((text.to_string(), format!("demo recipe {name}")));
+    }
+    let demos: Vec<&str> = crate::recipe::demo::RECIPES
+        .iter()
+        .map(|(n, _)| *n)
+        .collect();
+    Err(format!(
+        "no recipe {name:?}: not a file, not in the library{}, and not a demo recipe ({})",
+        dir.map(|d| format!(" at {}", d.display()))
+            .unwrap_or_default(),
+        demos.join(", ")
+    ))
+}
+
+fn read_limited(path: &Path) -> Result<String, String> {
+    let meta = std::fs::metadata(path).map_err(|e| format!("{}: {e}", path.display()))?;
+    if meta.len() > crate::recipe::MAX_RECIPE_BYTES as u64 {
+        return Err(format!(
+            "{}: {} bytes is larger than a recipe can be ({} bytes); not read",
+            path.display(),
+            meta.len(),
+            crate::recipe::MAX_RECIPE_BYTES
+        ));
+    }
+    std::fs::read_to_string(path).map_err(|e| format!("{}: {e}", path.display()))
 }

@@ -11,5 +11,8 @@ pub mod cli;
 pub mod config;
 pub mod gas;
 pub mod mixture;
+pub mod plan;
+pub mod recipe;
+pub mod record;
 pub mod thermo;
 pub mod units;

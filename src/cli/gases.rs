@@ -32,6 +32,8 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
                         "acentric_factor": r.acentric_factor,
                         "normal_boiling_point_k": r.normal_boiling_point_k,
                         "gerg": gerg::covers(&r.id),
+                        "van_der_waals_a_bar_l2_per_mol2": r.van_der_waals.as_ref().map(|v| v.a_bar_l2_per_mol2),
+                        "van_der_waals_b_l_per_mol": r.van_der_waals.as_ref().map(|v| v.b_l_per_mol),
                         "sources": {
                             "critical": catalogue.reference(&r.critical_source),
                             "acentric": catalogue.reference(&r.acentric_source),
@@ -44,7 +46,7 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
                 .collect();
             print_json(&json!({ "gases": gases }));
         }
-        Format::Text => {
+        Format::Text | Format::Csv => {
             println!(
                 "{:<9} {:<22} {:<11} {:>8} {:>8} {:>8} {:>7} {:>7}  models",
                 "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"

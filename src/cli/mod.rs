@@ -2,6 +2,7 @@
 //! 2 wrong usage (INTERFACE.md).
 
 mod gases;
+mod plan;
 mod state;
 
 use std::process::ExitCode;
@@ -33,6 +34,8 @@ enum Command {
     /// Solve a gas state: give the mixture, the temperature and two of volume, pressure
     /// and amount; the third is computed, under every model for comparison.
     State(state::StateArgs),
+    /// The fill plan: what to add, and the pressure and scale readings at which to stop.
+    Plan(plan::PlanArgs),
     /// List the gas catalogue with its constants and their sources.
     Gases(gases::GasesArgs),
 }
@@ -42,6 +45,8 @@ enum Command {
 pub enum Format {
     Text,
     Json,
+    /// Comma-separated values, where a table is the natural output (the steps of `plan`).
+    Csv,
 }
 
 /// Options shared by every computing command.
@@ -51,7 +56,7 @@ pub struct Common {
     /// covers every gas of the mixture, else pr.
     #[arg(long, value_enum)]
     pub model: Option<Model>,
-    /// Output format.
+    /// Output format: text, json, or csv where a table is the natural output.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
     /// Ambient pressure for gauge readings and gauge input (barg, psig, kPag).
@@ -127,6 +132,7 @@ pub fn main() -> ExitCode {
             Ok(())
         }
         Some(Command::State(args)) => state::run(&args),
+        Some(Command::Plan(args)) => plan::run(&args),
         Some(Command::Gases(args)) => gases::run(&args),
     };
     match result {

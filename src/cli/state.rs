@@ -144,6 +144,11 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
     } else {
         Unknown::Amount
     };
+    if args.common.format == Format::Csv {
+        return Err(Failure::Usage(
+            "state prints one state: use --format text or json".into(),
+        ));
+    }
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let ambient = args.common.ambient_pa()?;
     let composition = Composition::from_spec(&args.mix, &catalogue)
@@ -213,7 +218,7 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
                 "comparison": comparison,
             }));
         }
-        Format::Text => print_text(
+        Format::Text | Format::Csv => print_text(
             &composition.describe(&catalogue),
             &given,
             ambient,

@@ -1,0 +1,617 @@
+//! `fillwright plan`: the fill sheet for a recipe or for an order given on the command line.
+
+use clap::Args;
+use serde_json::{json, Value};
+
+use super::{print_json, Common, Failure, Format, Refused};
+use crate::config;
+use crate::gas::Catalogue;
+use crate::mixture::{self, Composition};
+use crate::plan::{self, Plan, PlanOptions, Resolutions, StepFlag};
+use crate::recipe::{Fill, Order, Recipe, Source, Target};
+use crate::thermo::MAX_PRESSURE_PA;
+use crate::units::{self, bar, celsius, litres, Sig};
+
+#[derive(Debug, Args)]
+#[command(
+    after_help = "Give a recipe (a library name, a demo recipe name or a .ron file), or the order with \
+                        --mix, --volume, --pressure and --temp.\n\n\
+                        Examples:\n  fillwright plan flue-gas-span\n  \
+                        fillwright plan mixtures/pipeline-ng-9.ron --fill-temp 28C --model pr\n  \
+                        fillwright plan --mix \"CO2=15%,N2=balance\" --volume 10L --pressure 150bar --temp 15C --format csv"
+)]
+pub struct PlanArgs {
+    /// Recipe: a name in the library, a demo recipe name, or a path to a .ron file.
+    #[arg(value_name = "RECIPE", conflicts_with = "mix")]
+    pub recipe: Option<String>,
+    /// Target mixture, as for `state`: "CO=500ppm,CO2=15%,N2=balance".
+    #[arg(long, value_name = "SPEC", requires_all = ["volume", "pressure"])]
+    pub mix: Option<String>,
+    /// Cylinder water capacity (with --mix): 10L, 0.05m3.
+    #[arg(long, value_name = "V", allow_hyphen_values = true)]
+    pub volume: Option<String>,
+    /// Final pressure at --temp (with --mix): 150bar, 2200psig.
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
+    pub pressure: Option<String>,
+    /// Temperature at which the final pressure is meant (with --mix); default 15C.
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
+    pub temp: Option<String>,
+    /// Cylinder temperature during the fill: the stop readings are computed for it.
+    /// Default: the recipe's fill temperature, or --temp.
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
+    pub fill_temp: Option<String>,
+    /// Fill order: every source exactly once, comma-separated (pure gases by id, premixes by name).
+    #[arg(long, value_name = "ID,ID,…", value_delimiter = ',')]
+    pub order: Option<Vec<String>>,
+    /// Cylinder working pressure at 15 °C (with --mix), for the rating note.
+    #[arg(long, value_name = "P")]
+    pub working_pressure: Option<String>,
+    /// Cylinder test pressure (with --mix): a fill above it is refused.
+    #[arg(long, value_name = "P")]
+    pub test_pressure: Option<String>,
+    /// Smallest pressure step the fill gauge resolves; smaller steps are flagged.
+    #[arg(long, value_name = "P", default_value = "0.1bar")]
+    pub gauge_resolution: String,
+    /// Smallest mass step the scale resolves; smaller additions are flagged.
+    #[arg(long, value_name = "M", default_value = "0.1g")]
+    pub scale_resolution: String,
+    /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else the config folder's library/).
+    #[arg(long, value_name = "DIR")]
+    pub library: Option<std::path::PathBuf>,
+    #[command(flatten)]
+    pub common: Common,
+}
+
+pub fn run(args: &PlanArgs) -> Result<(), Failure> {
+    let catalogue = config::load_catalogue().map_err(Refused)?;
+    let (order, origin) = match (&args.recipe, &args.mix) {
+        (Some(name), _) => {
+            let (text, origin) = config::recipe_text(name, args.library.as_deref()).map_err(Refused)?;
+            (Recipe::load(&text, &origin, &catalogue)?, Some(origin))
+        }
+        (None, Some(_)) => (order_from_args(args, &catalogue)?, None),
+        (None, None) => {
+            return Err(Failure::Usage(
+                "plan needs a recipe (name or file) or --mix with --volume and --pressure; see `fillwright plan --help`"
+                    .into(),
+            ))
+        }
+    };
+    let ambient = order.ambient_pa;
+    let fill_temperature_k = args
+        .fill_temp
+        .as_deref()
+        .map(units::parse_temperature)
+        .transpose()
+        .map_err(|e| Refused(format!("--fill-temp: {e}")))?;
+    let gauge_pa = units::parse_pressure(&args.gauge_resolution, 0.0)
+        .map_err(|e| Refused(format!("--gauge-resolution: {e}")))?;
+    let scale_g = match units::parse_amount(&args.scale_resolution) {
+        Ok(units::AmountInput::Grams(g)) => g,
+        Ok(_) => {
+            return Err(Refused("--scale-resolution must be a mass such as 0.1g".into()).into())
+        }
+        Err(e) => return Err(Refused(format!("--scale-resolution: {e}")).into()),
+    };
+    let options = PlanOptions {
+        model: args.common.model,
+        fill_temperature_k,
+        order: args.order.clone(),
+        resolutions: Resolutions { gauge_pa, scale_g },
+    };
+    let plan = plan::plan(&order, &catalogue, &options).map_err(|e| match &origin {
+        Some(o) => Refused(format!("{o}: {e}")),
+        None => Refused(e.to_string()),
+    })?;
+    match args.common.format {
+        Format::Json => print_json(&plan_json(&plan, &order, &catalogue)),
+        Format::Csv => print!("{}", steps_csv(&plan)),
+        Format::Text => print!(
+            "{}",
+            fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient)
+        ),
+    }
+    Ok(())
+}
+
+/// An order from `--mix`, `--volume`, `--pressure`, `--temp`.
+fn order_from_args(args: &PlanArgs, catalogue: &Catalogue) -> Result<Order, Refused> {
+    let ambient = args.common.ambient_pa()?;
+    let spec = args.mix.as_deref().unwrap_or_default();
+    let parts = mixture::parse_spec(spec, catalogue).map_err(|e| Refused(format!("--mix: {e}")))?;
+    let volume = units::parse_volume(args.volume.as_deref().unwrap_or_default())
+        .map_err(|e| Refused(format!("--volume: {e}")))?;
+    let pressure = units::parse_pressure(args.pressure.as_deref().unwrap_or_default(), ambient)
+        .map_err(|e| Refused(format!("--pressure: {e}")))?;
+    let t_ref = units::parse_temperature(args.temp.as_deref().unwrap_or("15C"))
+        .map_err(|e| Refused(format!("--temp: {e}")))?;
+    let rating = |text: &Option<String>, what: &str| -> Result<Option<f64>, Refused> {
+        text.as_deref()
+            .map(|t| units::parse_pressure(t, ambient))
+            .transpose()
+            .map_err(|e| Refused(format!("--{what}: {e}")))
+    };
+    let working = rating(&args.working_pressure, "working-pressure")?.unwrap_or(MAX_PRESSURE_PA);
+    let test = rating(&args.test_pressure, "test-pressure")?.unwrap_or(MAX_PRESSURE_PA);
+    if pressure > test {
+        return Err(Refused(format!(
+            "--pressure {:.2} bar is above --test-pressure {:.2} bar; this fill must not be made",
+            bar(pressure),
+            bar(test)
+        )));
+    }
+    let composition = Composition::from_parts(&parts);
+    let targets: Vec<Target> = parts
+        .iter()
+        .map(|p| Target {
+            gas: p.gas,
+            share: p.share,
+            tolerance: None,
+        })
+        .collect();
+    let balance = targets
+        .iter()
+        .position(|t| t.share == mixture::Share::Balance);
+    let sources = parts
+        .iter()
+        .map(|p| Source {
+            name: catalogue.gas(p.gas).id().to_string(),
+            composition: Composition {
+                gases: vec![p.gas],
+                fractions: vec![1.0],
+            },
+            pure: true,
+        })
+        .collect();
+    // A single pure gas: it is its own balance.
+    let balance = balance.or((targets.len() == 1).then_some(0));
+    Ok(Order {
+        name: composition.describe(catalogue),
+        description: String::new(),
+        order: String::new(),
+        targets,
+        balance,
+        composition,
+        volume_m3: volume,
+        working_pressure_pa: working,
+        test_pressure_pa: test,
+        tare_g: None,
+        serial: None,
+        fill: Fill::PressurePa(pressure),
+        reference_temperature_k: t_ref,
+        fill_temperature_k: t_ref,
+        ambient_pa: ambient,
+        model: None,
+        sources,
+        fill_order: Vec::new(),
+        notes: String::new(),
+    })
+}
+
+fn id(catalogue: &Catalogue, g: usize) -> &str {
+    catalogue.gas(g).id()
+}
+
+/// The plan as JSON (INTERFACE.md keys, plus the comparison and proposals).
+pub fn plan_json(plan: &Plan, order: &Order, catalogue: &Catalogue) -> Value {
+    let t = &plan.totals;
+    json!({
+        "model": plan.model.key(),
+        "recipe": order.name,
+        "final": {
+            "pressure_bar": bar(t.pressure_pa),
+            "temperature_k": t.temperature_k,
+            "amount_mol": t.amount_mol,
+            "mass_g": t.mass_g,
+            "z": t.z,
+            "density_g_per_l": t.density_g_per_l,
+            "volume_at_reference_m3": t.volume_at_reference_m3,
+        },
+        "components": plan.components.iter().map(|c| json!({
+            "id": id(catalogue, c.gas),
+            "mole_fraction": c.mole_fraction,
+            "amount_mol": c.amount_mol,
+            "mass_g": c.mass_g,
+            "partial_pressure_bar": bar(c.partial_pressure_pa),
+            "alone_pressure_bar": c.alone_pressure_pa.map(bar),
+            "tolerance": c.tolerance,
+        })).collect::<Vec<_>>(),
+        "steps": plan.steps.iter().map(|s| json!({
+            "source": s.source,
+            "add_amount_mol": s.add_amount_mol,
+            "add_mass_g": s.add_mass_g,
+            "scale_reading_g": s.scale_reading_g,
+            "pressure_after_bar": bar(s.pressure_after_pa),
+            "gauge_after_bar": bar(s.pressure_after_pa - plan.ambient_pa),
+            "increment_bar": bar(s.increment_pa),
+            "temperature_k": s.temperature_k,
+            "flags": s.flags.iter().map(|f| f.key()).collect::<Vec<_>>(),
+        })).collect::<Vec<_>>(),
+        "models": plan.models.iter().map(|m| match &m.result {
+            Ok(f) => json!({
+                "model": m.model.key(),
+                "amount_mol": f.amount_mol,
+                "z": f.z,
+                "step_pressures_bar": f.step_pressures_pa.iter().map(|p| bar(*p)).collect::<Vec<_>>(),
+            }),
+            Err(e) => json!({"model": m.model.key(), "error": e}),
+        }).collect::<Vec<_>>(),
+        "following": plan.following.iter().map(|f| json!({
+            "truth": f.truth.key(),
+            "rows": f.rows.iter().map(|r| json!({
+                "targets_of": r.targets_of.key(),
+                "composition": plan.gases.iter().enumerate().map(|(i, &g)| json!({
+                    "id": id(catalogue, g),
+                    "mole_fraction": r.fractions[i],
+                    "relative_error_percent": r.relative_error_percent[i],
+                    "out_of_tolerance": r.out_of_tolerance[i],
+                })).collect::<Vec<_>>(),
+            })).collect::<Vec<_>>(),
+        })).collect::<Vec<_>>(),
+        "premixes": plan.premixes.iter().map(|p| json!({
+            "step": p.step + 1,
+            "gas": id(catalogue, p.gas),
+            "mix": p.spec,
+            "name": p.name,
+            "mole_fraction": p.fraction,
+            "needed_mol": p.needed_mol,
+            "needed_g": p.needed_g,
+            "fill_pressure_bar": bar(p.fill_pressure_pa),
+            "plan": match &p.plan {
+                Ok(inner) => plan_json(inner, order, catalogue),
+                Err(e) => json!({"error": e}),
+            },
+        })).collect::<Vec<_>>(),
+        "notes": plan.notes,
+    })
+}
+
+/// The steps as CSV.
+pub fn steps_csv(plan: &Plan) -> String {
+    let mut s = String::from(
+        "step,source,add_amount_mol,add_mass_g,scale_reading_g,pressure_after_bar,gauge_after_bar,increment_bar,temperature_k,flags\n",
+    );
+    for (i, st) in plan.steps.iter().enumerate() {
+        let source = if st.source.contains([',', '"']) {
+            format!("\"{}\"", st.source.replace('"', "\"\""))
+        } else {
+            st.source.clone()
+        };
+        s.push_str(&format!(
+            "{},{},{},{},{},{},{},{},{},{}\n",
+            i + 1,
+            source,
+            st.add_amount_mol,
+            st.add_mass_g,
+            st.scale_reading_g,
+            bar(st.pressure_after_pa),
+            bar(st.pressure_after_pa - plan.ambient_pa),
+            bar(st.increment_pa),
+            st.temperature_k,
+            st.flags
+                .iter()
+                .map(|f| f.key())
+                .collect::<Vec<_>>()
+                .join(" "),
+        ));
+    }
+    s
+}
+
+fn share_text(order: &Order, g: usize, x: f64) -> String {
+    match order.targets.iter().find(|t| t.gas == g).map(|t| t.share) {
+        Some(mixture::Share::Of { value, unit }) => {
+            format!("{value} {}", unit.suffix()).trim_end().to_string()
+        }
+        Some(mixture::Share::Balance) => format!("bal. {} %", Sig(x * 100.0, 4)),
+        None => "from sources".into(),
+    }
+}
+
+/// The text fill sheet, 80 columns wide.
+pub fn fill_sheet(
+    plan: &Plan,
+    order: &Order,
+    catalogue: &Catalogue,
+    res: &Resolutions,
+    ambient_pa: f64,
+) -> String {
+    let mut o = String::new();
+    let mut line = |s: String| {
+        o.push_str(&s);
+        o.push('\n');
+    };
+    let t = &plan.totals;
+    line(format!("FILL SHEET  {}", order.name));
+    let mut ids = Vec::new();
+    if !order.order.is_empty() {
+        ids.push(format!("order {}", order.order));
+    }
+    if let Some(serial) = &order.serial {
+        ids.push(format!("cylinder {serial}"));
+    }
+    if !ids.is_empty() {
+        line(ids.join(" | "));
+    }
+    let mut who = vec![format!(
+        "{} L water capacity",
+        Sig(litres(order.volume_m3), 4)
+    )];
+    if order.working_pressure_pa < MAX_PRESSURE_PA {
+        who.push(format!(
+            "working {} bar",
+            Sig(bar(order.working_pressure_pa), 4)
+        ));
+    }
+    if order.test_pressure_pa < MAX_PRESSURE_PA {
+        who.push(format!("test {} bar", Sig(bar(order.test_pressure_pa), 4)));
+    }
+    line(who.join(" | "));
+    line(format!(
+        "fill to {:.3} bar at {:.1} °C | readings for {:.1} °C | ambient {} bar",
+        bar(t.pressure_pa),
+        celsius(t.temperature_k),
+        celsius(plan.fill_temperature_k),
+        Sig(bar(ambient_pa), 6)
+    ));
+    line(format!(
+        "model {} ({})",
+        plan.model.title(),
+        plan.model.key()
+    ));
+    line(String::new());
+
+    let scale_from = match order.tare_g {
+        Some(g) => format!("scale from tare {:.1} g", g),
+        None => "scale net of the cylinder".into(),
+    };
+    line(format!(
+        "STEPS  stop each addition at the pressure reading; {scale_from}"
+    ));
+    line(format!(
+        "{:>2}  {:<14}{:>9}{:>9}{:>11}{:>10}{:>10}{:>8}",
+        "#", "source", "add mol", "add g", "scale g", "stop bar", "gauge", "+bar"
+    ));
+    for (i, s) in plan.steps.iter().enumerate() {
+        let marks: String = s
+            .flags
+            .iter()
+            .map(|f| match f {
+                StepFlag::BelowGaugeResolution => '!',
+                StepFlag::BelowScaleResolution => '*',
+            })
+            .collect();
+        line(format!(
+            "{:>2}  {:<14}{:>9}{:>9}{:>11.1}{:>10.3}{:>10.3}{:>8.3} {}",
+            i + 1,
+            clip(&s.source, 14),
+            Sig(s.add_amount_mol, 4).to_string(),
+            Sig(s.add_mass_g, 4).to_string(),
+            s.scale_reading_g,
+            bar(s.pressure_after_pa),
+            bar(s.pressure_after_pa - ambient_pa),
+            bar(s.increment_pa),
+            marks
+        ));
+    }
+    if plan
+        .steps
+        .iter()
+        .any(|s| s.flags.contains(&StepFlag::BelowGaugeResolution))
+    {
+        line(format!(
+            "    ! increment below the gauge resolution ({} bar)",
+            Sig(bar(res.gauge_pa), 3)
+        ));
+    }
+    if plan
+        .steps
+        .iter()
+        .any(|s| s.flags.contains(&StepFlag::BelowScaleResolution))
+    {
+        line(format!(
+            "    * mass below the scale resolution ({} g)",
+            Sig(res.scale_g, 3)
+        ));
+    }
+    line(String::new());
+
+    line(format!("COMPONENTS  at {:.1} °C", celsius(t.temperature_k)));
+    line(format!(
+        "{:<9}{:>15}{:>11}{:>11}{:>11}{:>12}",
+        "gas", "target", "mol", "g", "x·P bar", "alone bar"
+    ));
+    for c in &plan.components {
+        line(format!(
+            "{:<9}{:>15}{:>11}{:>11}{:>11.4}{:>12}",
+            id(catalogue, c.gas),
+            clip(&share_text(order, c.gas, c.mole_fraction), 15),
+            Sig(c.amount_mol, 5).to_string(),
+            Sig(c.mass_g, 5).to_string(),
+            bar(c.partial_pressure_pa),
+            c.alone_pressure_pa
+                .map_or("–".to_string(), |p| format!("{:.4}", bar(p)))
+        ));
+    }
+    let sum_alone: Option<f64> = plan.components.iter().map(|c| c.alone_pressure_pa).sum();
+    if let Some(sum) = sum_alone {
+        line(format!(
+            "  the pressures alone add up to {:.3} bar, not {:.3} bar:",
+            bar(sum),
+            bar(t.pressure_pa)
+        ));
+        line("  at cylinder pressures Dalton's rule of additive pressures does not hold".into());
+    }
+    line(String::new());
+
+    line("BLEND".into());
+    line(format!(
+        "  {:.3} bar at {:.1} °C ({:.3} bar gauge), {} mol, {} g",
+        bar(t.pressure_pa),
+        celsius(t.temperature_k),
+        bar(t.pressure_pa - ambient_pa),
+        Sig(t.amount_mol, 6),
+        Sig(t.mass_g, 6)
+    ));
+    line(format!(
+        "  Z {:.5}, density {} g/L, {} m³ of gas at 15 °C and 101.325 kPa",
+        t.z,
+        Sig(t.density_g_per_l, 5),
+        Sig(t.volume_at_reference_m3, 4)
+    ));
+    line(String::new());
+
+    // Model comparison: rows are steps, columns are models.
+    let models: Vec<_> = plan.models.iter().filter(|m| m.result.is_ok()).collect();
+    line(format!(
+        "EVERY MODEL  stop readings at {:.1} °C, bar",
+        celsius(plan.fill_temperature_k)
+    ));
+    let mut head = format!("{:<18}", "step");
+    for m in &models {
+        head.push_str(&format!("{:>9}", m.model.key()));
+    }
+    line(head);
+    for (i, s) in plan.steps.iter().enumerate() {
+        let mut row = format!("{:<18}", clip(&format!("{} {}", i + 1, s.source), 18));
+        for m in &models {
+            let p = m
+                .result
+                .as_ref()
+                .ok()
+                .and_then(|f| f.step_pressures_pa.get(i))
+                .copied()
+                .unwrap_or(f64::NAN);
+            row.push_str(&format!("{:>9}", Sig(bar(p), 5).to_string()));
+        }
+        line(row);
+    }
+    let mut row = format!("{:<18}", "amount mol");
+    for m in &models {
+        row.push_str(&format!(
+            "{:>9}",
+            Sig(m.result.as_ref().map_or(f64::NAN, |f| f.amount_mol), 5).to_string()
+        ));
+    }
+    line(row);
+    let mut row = format!("{:<18}", "Z");
+    for m in &models {
+        row.push_str(&format!(
+            "{:>9.4}",
+            m.result.as_ref().map_or(f64::NAN, |f| f.z)
+        ));
+    }
+    line(row);
+    for m in plan.models.iter().filter(|m| m.result.is_err()) {
+        // The reason only, without the advice after the semicolon, to keep within 80 columns.
+        let reason = m
+            .result
+            .as_ref()
+            .err()
+            .map_or("", |e| e.split(';').next().unwrap_or(e));
+        line(clip(&format!("  {}: {reason}", m.model.key()), 80));
+    }
+    line(String::new());
+
+    for f in &plan.following {
+        line(format!(
+            "STOPPING AT EACH MODEL'S READINGS  composition error in % (gas as {} says)",
+            f.truth.key()
+        ));
+        let mut head = format!("{:<18}", "gas");
+        for r in &f.rows {
+            head.push_str(&format!("{:>9}", r.targets_of.key()));
+        }
+        line(head);
+        for (i, &g) in plan.gases.iter().enumerate() {
+            if plan.components[i].mole_fraction == 0.0 {
+                continue;
+            }
+            let mut row = format!("{:<18}", id(catalogue, g));
+            for r in &f.rows {
+                let mark = if r.out_of_tolerance[i] { "!" } else { " " };
+                // Rounding noise of an exact match reads as 0.00, not -0.00.
+                let e = r.relative_error_percent[i];
+                let e = if e.abs() < 0.005 { 0.0 } else { e };
+                row.push_str(&format!("{:>8}{mark}", format!("{e:+.2}")));
+            }
+            line(row);
+        }
+        if f.rows.iter().any(|r| r.out_of_tolerance.iter().any(|b| *b)) {
+            line("  ! outside the recipe's tolerance".into());
+        }
+        line(String::new());
+    }
+
+    for p in &plan.premixes {
+        let step = &plan.steps[p.step];
+        line(format!(
+            "PREMIX PROPOSED for step {} ({})",
+            p.step + 1,
+            step.source
+        ));
+        line(format!(
+            "  Dose {} from a premix {} ({}) instead:",
+            id(catalogue, p.gas),
+            p.name,
+            p.spec
+        ));
+        line(format!(
+            "  {} mol ({} g) of premix are needed.",
+            Sig(p.needed_mol, 4),
+            Sig(p.needed_g, 4)
+        ));
+        line(format!(
+            "  Make it in a {} L cylinder filled to {} bar:",
+            Sig(litres(order.volume_m3), 4),
+            Sig(bar(p.fill_pressure_pa), 4)
+        ));
+        match &p.plan {
+            Ok(inner) => {
+                for (i, s) in inner.steps.iter().enumerate() {
+                    line(format!(
+                        "    {}  {:<14} add {} mol ({} g), stop at {:.3} bar{}",
+                        i + 1,
+                        clip(&s.source, 14),
+                        Sig(s.add_amount_mol, 4),
+                        Sig(s.add_mass_g, 4),
+                        bar(s.pressure_after_pa),
+                        if s.flags.is_empty() {
+                            ""
+                        } else {
+                            "  (needs a premix itself)"
+                        }
+                    ));
+                }
+                for q in &inner.premixes {
+                    line(format!("    second stage: {} ({})", q.name, q.spec));
+                }
+            }
+            Err(e) => line(format!("    no plan for it: {e}")),
+        }
+        line(String::new());
+    }
+
+    for n in &plan.notes {
+        line(format!("NOTE  {n}"));
+    }
+    for text in [
+        "CAUTION  A computation aid only. Compressed gases are hazardous: check the",
+        "  cylinder's markings, valve and test date; follow local codes and licensed",
+        "  practice; fill slowly (the cylinder warms as it fills) and never above its",
+        "  working pressure.",
+    ] {
+        line(text.into());
+    }
+    o
+}
+
+fn clip(s: &str, width: usize) -> String {
+    if s.chars().count() <= width {
+        s.to_string()
+    } else {
+        let mut t: String = s.chars().take(width - 1).collect();
+        t.push('…');
+        t
+    }
+}

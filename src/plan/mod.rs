@@ -1,0 +1,737 @@
+//! The fill plan: from an order to the readings at which to stop.
+//!
+//! The cylinder is filled one source at a time. For each step the plan gives the amount
+//! and mass to add, the cumulative scale reading, and the pressure reading after the step
+//! at the fill temperature, all under a real-gas model; the sum of the pressures each gas
+//! would exert alone is not the total (Dalton's rule of additive pressures fails at
+//! cylinder pressures), which is why a plan made with ideal partial pressures misses.
+
+pub mod premix;
+pub mod sources;
+
+use nalgebra::{DMatrix, DVector};
+
+use crate::gas::Catalogue;
+use crate::recipe::{Fill, Order};
+use crate::thermo::{gerg, Fluid, Model, ThermoError};
+use crate::units::{bar, R, STANDARD_AMBIENT_PA};
+
+/// What the bench's instruments can resolve.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Resolutions {
+    /// Smallest pressure step the fill gauge shows, Pa.
+    pub gauge_pa: f64,
+    /// Smallest mass step the scale shows, g.
+    pub scale_g: f64,
+}
+
+impl Default for Resolutions {
+    /// 0.1 bar (a digital 0–250 bar transducer) and 0.1 g (a cylinder balance): common
+    /// practice, no source.
+    fn default() -> Self {
+        Resolutions {
+            gauge_pa: 0.1e5,
+            scale_g: 0.1,
+        }
+    }
+}
+
+/// Choices that override the recipe.
+#[derive(Debug, Clone, Default)]
+pub struct PlanOptions {
+    pub model: Option<Model>,
+    pub fill_temperature_k: Option<f64>,
+    /// Source names in fill order; every source exactly once.
+    pub order: Option<Vec<String>>,
+    pub resolutions: Resolutions,
+}
+
+/// Why there is no plan.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum PlanError {
+    #[error("{0}")]
+    Thermo(#[from] ThermoError),
+    #[error("the target cannot be made from these sources:\n{}", format_unreachable(.0))]
+    Unreachable(Vec<Unreachable>),
+    #[error("fill order: {0}")]
+    Order(String),
+    #[error(
+        "the fill comes to {final_bar:.2} bar at the reference temperature, above the cylinder's test pressure of \
+         {test_bar:.2} bar; this fill must not be made"
+    )]
+    AboveTestPressure { final_bar: f64, test_bar: f64 },
+}
+
+/// One component that the sources cannot deliver.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Unreachable {
+    pub id: String,
+    pub target_fraction: f64,
+    /// The closest composition the sources can give.
+    pub closest_fraction: f64,
+}
+
+fn format_unreachable(rows: &[Unreachable]) -> String {
+    rows.iter()
+        .map(|r| {
+            format!(
+                "  {}: target {} mol/mol, closest possible {} mol/mol ({:+.4} % relative)",
+                r.id,
+                r.target_fraction,
+                r.closest_fraction,
+                if r.target_fraction > 0.0 {
+                    (r.closest_fraction / r.target_fraction - 1.0) * 100.0
+                } else {
+                    f64::INFINITY
+                }
+            )
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+/// Why a step deserves a second look.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum StepFlag {
+    /// The pressure increment is below the gauge resolution.
+    BelowGaugeResolution,
+    /// The mass added is below the scale resolution.
+    BelowScaleResolution,
+}
+
+impl StepFlag {
+    pub fn key(self) -> &'static str {
+        match self {
+            StepFlag::BelowGaugeResolution => "below-gauge-resolution",
+            StepFlag::BelowScaleResolution => "below-scale-resolution",
+        }
+    }
+}
+
+/// One addition.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Step {
+    /// Source name: canonical id of a pure gas, or the premix name.
+    pub source: String,
+    pub add_amount_mol: f64,
+    pub add_mass_g: f64,
+    /// Scale reading after the step, g: from the tare when the recipe gives one, else net.
+    pub scale_reading_g: f64,
+    /// Absolute pressure after the step at `temperature_k`, Pa.
+    pub pressure_after_pa: f64,
+    /// Pressure increment of this step, Pa.
+    pub increment_pa: f64,
+    /// Cylinder temperature the reading is for, K.
+    pub temperature_k: f64,
+    /// Amount of each plan gas in the cylinder after the step, mol.
+    pub amounts_after_mol: Vec<f64>,
+    pub flags: Vec<StepFlag>,
+}
+
+/// One component of the blend.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ComponentRow {
+    pub gas: usize,
+    pub mole_fraction: f64,
+    pub amount_mol: f64,
+    pub mass_g: f64,
+    /// x_i P at the reference temperature, Pa.
+    pub partial_pressure_pa: f64,
+    /// The pressure the component alone would exert in the cylinder at the reference
+    /// temperature, Pa (None where the model has no gas state for it).
+    pub alone_pressure_pa: Option<f64>,
+    /// Allowed deviation of the mole fraction, if the recipe gives one.
+    pub tolerance: Option<f64>,
+}
+
+/// Blend totals at the reference temperature.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Totals {
+    pub pressure_pa: f64,
+    pub temperature_k: f64,
+    pub amount_mol: f64,
+    pub mass_g: f64,
+    pub z: f64,
+    pub density_g_per_l: f64,
+    /// The gas content as a volume at 15 °C and 101.325 kPa (ISO 13443), m³.
+    pub volume_at_reference_m3: f64,
+}
+
+/// Another model's plan for the same order.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelPlan {
+    pub model: Model,
+    pub result: Result<ModelFigures, String>,
+}
+
+/// The figures of one model's plan.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelFigures {
+    pub amount_mol: f64,
+    pub z: f64,
+    /// Stop readings of each step at the fill temperature, Pa.
+    pub step_pressures_pa: Vec<f64>,
+}
+
+/// The composition made by stopping at one model's pressure readings, when the gas
+/// behaves as the `truth` model says.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Followed {
+    /// Whose stop readings were followed.
+    pub targets_of: Model,
+    /// Mole fraction made, per plan gas.
+    pub fractions: Vec<f64>,
+    /// (made / target − 1) in %, per plan gas (0 for gases with no target).
+    pub relative_error_percent: Vec<f64>,
+    /// Per plan gas: outside the recipe tolerance.
+    pub out_of_tolerance: Vec<bool>,
+}
+
+/// Stopping at each model's readings, judged by one model.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Following {
+    pub truth: Model,
+    pub rows: Vec<Followed>,
+}
+
+/// A complete fill plan.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    pub model: Model,
+    /// The fluid the plan was computed with (for temperature corrections).
+    pub fluid: Fluid,
+    /// Catalogue indices of the plan gases: the targets, then gases the sources bring.
+    pub gases: Vec<usize>,
+    pub volume_m3: f64,
+    pub totals: Totals,
+    pub components: Vec<ComponentRow>,
+    pub steps: Vec<Step>,
+    pub ambient_pa: f64,
+    pub fill_temperature_k: f64,
+    pub models: Vec<ModelPlan>,
+    pub following: Vec<Following>,
+    pub premixes: Vec<premix::Proposal>,
+    /// Things the blender should know (sources not used, pressure above working pressure).
+    pub notes: Vec<String>,
+}
+
+impl Plan {
+    /// The reading to stop at for step `index` when the cylinder is at `t_measured_k`
+    /// now, Pa absolute.
+    pub fn corrected_target_pa(&self, index: usize, t_measured_k: f64) -> Result<f64, ThermoError> {
+        corrected_target_pa(
+            &self.fluid,
+            self.volume_m3,
+            &self.steps[index].amounts_after_mol,
+            t_measured_k,
+        )
+    }
+}
+
+/// The target reading after a step for the cylinder temperature measured now: the
+/// pressure of the gas that will be in the cylinder after the step, at that temperature.
+pub fn corrected_target_pa(
+    fluid: &Fluid,
+    volume_m3: f64,
+    amounts_after_mol: &[f64],
+    t_measured_k: f64,
+) -> Result<f64, ThermoError> {
+    fluid.pressure(t_measured_k, volume_m3, amounts_after_mol)
+}
+
+/// The plan's gases, target vector and source matrix.
+struct Setup {
+    gases: Vec<usize>,
+    x_target: Vec<f64>,
+    /// Components × sources.
+    a: DMatrix<f64>,
+}
+
+fn setup(order: &Order) -> Setup {
+    let mut gases: Vec<usize> = order.composition.gases.clone();
+    for s in &order.sources {
+        for &g in &s.composition.gases {
+            if !gases.contains(&g) {
+                gases.push(g);
+            }
+        }
+    }
+    let mut x_target = vec![0.0; gases.len()];
+    for (g, x) in order
+        .composition
+        .gases
+        .iter()
+        .zip(&order.composition.fractions)
+    {
+        x_target[gases.iter().position(|h| h == g).unwrap_or(0)] = *x;
+    }
+    let mut a = DMatrix::zeros(gases.len(), order.sources.len());
+    for (k, s) in order.sources.iter().enumerate() {
+        for (g, x) in s.composition.gases.iter().zip(&s.composition.fractions) {
+            if let Some(i) = gases.iter().position(|h| h == g) {
+                a[(i, k)] = *x;
+            }
+        }
+    }
+    Setup { gases, x_target, a }
+}
+
+/// The model to use: asked, else the recipe's, else gerg where it covers every gas, else pr.
+pub fn default_model(gases: &[usize], catalogue: &Catalogue) -> Model {
+    if gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id())) {
+        Model::Gerg
+    } else {
+        Model::Pr
+    }
+}
+
+/// Source amounts and step order, independent of the model but for the total amount.
+struct Dosing {
+    total_mol: f64,
+    /// Amount of each source, mol.
+    source_mol: Vec<f64>,
+    /// Source indices in fill order, zero-amount sources left out.
+    sequence: Vec<usize>,
+}
+
+fn total_amount(fluid: &Fluid, order: &Order, x: &[f64]) -> Result<f64, ThermoError> {
+    match order.fill {
+        Fill::PressurePa(p) => fluid.amount(order.reference_temperature_k, p, order.volume_m3, x),
+        Fill::MassG(m) => Ok(m / fluid.molar_mass(x)),
+        Fill::AmountMol(n) => Ok(n),
+    }
+}
+
+fn dosing(
+    fluid: &Fluid,
+    order: &Order,
+    setup: &Setup,
+    sequence_names: &Option<Vec<String>>,
+    catalogue: &Catalogue,
+) -> Result<Dosing, PlanError> {
+    let total_mol = total_amount(fluid, order, &setup.x_target)?;
+    let b = DVector::from_iterator(
+        setup.x_target.len(),
+        setup.x_target.iter().map(|x| x * total_mol),
+    );
+    let s = sources::nnls(&setup.a, &b);
+    let made = &setup.a * &s;
+    let made_total: f64 = made.iter().sum();
+    let unreachable: Vec<Unreachable> = (0..setup.gases.len())
+        .filter(|&i| (made[i] - b[i]).abs() > 1e-9 * total_mol)
+        .map(|i| Unreachable {
+            id: catalogue.gas(setup.gases[i]).id().to_string(),
+            target_fraction: setup.x_target[i],
+            closest_fraction: if made_total > 0.0 {
+                made[i] / made_total
+            } else {
+                0.0
+            },
+        })
+        .collect();
+    if !unreachable.is_empty() {
+        return Err(PlanError::Unreachable(unreachable));
+    }
+    let source_mol: Vec<f64> = s.iter().copied().collect();
+    let names: Vec<&str> = order.sources.iter().map(|s| s.name.as_str()).collect();
+    let sequence: Vec<usize> = match sequence_names {
+        Some(list) => {
+            for n in list {
+                if !names.contains(&n.as_str()) {
+                    return Err(PlanError::Order(format!(
+                        "{n:?} is not a source of this recipe; the sources are {}",
+                        names.join(", ")
+                    )));
+                }
+                if list.iter().filter(|m| *m == n).count() > 1 {
+                    return Err(PlanError::Order(format!("{n:?} is listed more than once")));
+                }
+            }
+            let missing: Vec<&str> = names
+                .iter()
+                .copied()
+                .filter(|n| !list.iter().any(|m| m == n))
+                .collect();
+            if !missing.is_empty() {
+                return Err(PlanError::Order(format!(
+                    "every source must be listed exactly once; missing: {}",
+                    missing.join(", ")
+                )));
+            }
+            list.iter()
+                .filter_map(|n| names.iter().position(|m| m == n))
+                .collect()
+        }
+        None => {
+            // Ascending amount, the balance gas last (DOMAIN.md: minor components first).
+            let balance_gas = order.balance.map(|b| order.targets[b].gas);
+            let is_balance = |k: usize| {
+                let s = &order.sources[k];
+                s.pure && Some(s.composition.gases[0]) == balance_gas
+            };
+            let mut seq: Vec<usize> = (0..order.sources.len()).collect();
+            seq.sort_by(|&i, &j| {
+                is_balance(i)
+                    .cmp(&is_balance(j))
+                    .then(source_mol[i].total_cmp(&source_mol[j]))
+            });
+            seq
+        }
+    };
+    let sequence = sequence
+        .into_iter()
+        .filter(|&k| source_mol[k] > 1e-12 * total_mol)
+        .collect();
+    Ok(Dosing {
+        total_mol,
+        source_mol,
+        sequence,
+    })
+}
+
+/// Source composition as a vector over the plan gases.
+fn source_vector(setup: &Setup, k: usize) -> Vec<f64> {
+    (0..setup.gases.len()).map(|i| setup.a[(i, k)]).collect()
+}
+
+/// Stop readings of each step at `t_k` for a dosing.
+fn step_pressures(
+    fluid: &Fluid,
+    order: &Order,
+    setup: &Setup,
+    d: &Dosing,
+    t_k: f64,
+) -> Result<Vec<(f64, Vec<f64>)>, ThermoError> {
+    let mut n = vec![0.0; setup.gases.len()];
+    let mut out = Vec::with_capacity(d.sequence.len());
+    for &k in &d.sequence {
+        let x_src = source_vector(setup, k);
+        for (ni, xi) in n.iter_mut().zip(&x_src) {
+            *ni += d.source_mol[k] * xi;
+        }
+        out.push((fluid.pressure(t_k, order.volume_m3, &n)?, n.clone()));
+    }
+    Ok(out)
+}
+
+/// Make the plan for an order.
+pub fn plan(
+    order: &Order,
+    catalogue: &Catalogue,
+    options: &PlanOptions,
+) -> Result<Plan, PlanError> {
+    plan_at_depth(order, catalogue, options, 0)
+}
+
+fn plan_at_depth(
+    order: &Order,
+    catalogue: &Catalogue,
+    options: &PlanOptions,
+    depth: usize,
+) -> Result<Plan, PlanError> {
+    let setup = setup(order);
+    let model = options
+        .model
+        .or(order.model)
+        .unwrap_or_else(|| default_model(&setup.gases, catalogue));
+    let fluid = Fluid::new(catalogue, &setup.gases, model)?;
+    let t_fill = options
+        .fill_temperature_k
+        .unwrap_or(order.fill_temperature_k);
+    let t_ref = order.reference_temperature_k;
+    let sequence_names = options
+        .order
+        .clone()
+        .or_else(|| (!order.fill_order.is_empty()).then(|| order.fill_order.clone()));
+    let d = dosing(&fluid, order, &setup, &sequence_names, catalogue)?;
+
+    // Steps.
+    let pressures = step_pressures(&fluid, order, &setup, &d, t_fill)?;
+    let mut steps = Vec::with_capacity(d.sequence.len());
+    let mut scale = order.tare_g.unwrap_or(0.0);
+    let mut previous_pa = 0.0;
+    for (&k, (p_after, n_after)) in d.sequence.iter().zip(pressures) {
+        let source = &order.sources[k];
+        let add_mass_g = d.source_mol[k] * source.composition.molar_mass(catalogue);
+        scale += add_mass_g;
+        let increment_pa = p_after - previous_pa;
+        let mut flags = Vec::new();
+        if increment_pa < options.resolutions.gauge_pa {
+            flags.push(StepFlag::BelowGaugeResolution);
+        }
+        if add_mass_g < options.resolutions.scale_g {
+            flags.push(StepFlag::BelowScaleResolution);
+        }
+        steps.push(Step {
+            source: source.name.clone(),
+            add_amount_mol: d.source_mol[k],
+            add_mass_g,
+            scale_reading_g: scale,
+            pressure_after_pa: p_after,
+            increment_pa,
+            temperature_k: t_fill,
+            amounts_after_mol: n_after,
+            flags,
+        });
+        previous_pa = p_after;
+    }
+
+    // Totals at the reference temperature.
+    let n_final: Vec<f64> = setup.x_target.iter().map(|x| x * d.total_mol).collect();
+    let p_final = match order.fill {
+        Fill::PressurePa(p) => p,
+        _ => fluid.pressure(t_ref, order.volume_m3, &n_final)?,
+    };
+    if p_final > order.test_pressure_pa {
+        return Err(PlanError::AboveTestPressure {
+            final_bar: bar(p_final),
+            test_bar: bar(order.test_pressure_pa),
+        });
+    }
+    let mass_g = d.total_mol * fluid.molar_mass(&setup.x_target);
+    let reference_volume = fluid.volume(
+        crate::units::REFERENCE_TEMPERATURE_K,
+        STANDARD_AMBIENT_PA,
+        d.total_mol,
+        &setup.x_target,
+    )?;
+    let totals = Totals {
+        pressure_pa: p_final,
+        temperature_k: t_ref,
+        amount_mol: d.total_mol,
+        mass_g,
+        z: p_final * order.volume_m3 / (d.total_mol * R * t_ref),
+        density_g_per_l: mass_g / (order.volume_m3 * 1e3),
+        volume_at_reference_m3: reference_volume,
+    };
+
+    // Components.
+    let components = setup
+        .gases
+        .iter()
+        .enumerate()
+        .map(|(i, &g)| {
+            let n_i = n_final[i];
+            let alone = if n_i > 0.0 {
+                Fluid::new(catalogue, &[g], model)
+                    .and_then(|f| f.pressure(t_ref, order.volume_m3, &[n_i]))
+                    .ok()
+            } else {
+                None
+            };
+            ComponentRow {
+                gas: g,
+                mole_fraction: setup.x_target[i],
+                amount_mol: n_i,
+                mass_g: n_i * catalogue.gas(g).molar_mass_g_per_mol,
+                partial_pressure_pa: setup.x_target[i] * p_final,
+                alone_pressure_pa: alone,
+                tolerance: order
+                    .targets
+                    .iter()
+                    .find(|t| t.gas == g)
+                    .and_then(|t| t.tolerance),
+            }
+        })
+        .collect::<Vec<_>>();
+
+    // Every model's own plan.
+    let models: Vec<ModelPlan> = Model::ALL
+        .iter()
+        .map(|&m| {
+            let result = Fluid::new(catalogue, &setup.gases, m)
+                .map_err(PlanError::from)
+                .and_then(|f| {
+                    let dm = dosing(&f, order, &setup, &sequence_names, catalogue)?;
+                    let ps = step_pressures(&f, order, &setup, &dm, t_fill)?;
+                    let n_m: Vec<f64> = setup.x_target.iter().map(|x| x * dm.total_mol).collect();
+                    let p_ref = f.pressure(t_ref, order.volume_m3, &n_m)?;
+                    Ok(ModelFigures {
+                        amount_mol: dm.total_mol,
+                        z: p_ref * order.volume_m3 / (dm.total_mol * R * t_ref),
+                        step_pressures_pa: ps.into_iter().map(|(p, _)| p).collect(),
+                    })
+                })
+                .map_err(|e| e.to_string());
+            ModelPlan { model: m, result }
+        })
+        .collect();
+
+    // Stopping at each model's readings, judged by the selected model and by GERG-2008.
+    let mut truths = vec![model];
+    if model != Model::Gerg
+        && setup
+            .gases
+            .iter()
+            .all(|&g| gerg::covers(catalogue.gas(g).id()))
+    {
+        truths.push(Model::Gerg);
+    }
+    let following = truths
+        .into_iter()
+        .filter_map(|truth| {
+            let truth_fluid = Fluid::new(catalogue, &setup.gases, truth).ok()?;
+            let rows = models
+                .iter()
+                .filter_map(|mp| {
+                    let figures = mp.result.as_ref().ok()?;
+                    let made = follow(
+                        &truth_fluid,
+                        order,
+                        &setup,
+                        &d,
+                        &figures.step_pressures_pa,
+                        t_fill,
+                    )
+                    .ok()?;
+                    let total: f64 = made.iter().sum();
+                    let fractions: Vec<f64> = made.iter().map(|n| n / total).collect();
+                    let relative_error_percent = fractions
+                        .iter()
+                        .zip(&setup.x_target)
+                        .map(|(x, t)| if *t > 0.0 { (x / t - 1.0) * 100.0 } else { 0.0 })
+                        .collect();
+                    let out_of_tolerance = fractions
+                        .iter()
+                        .zip(&components)
+                        .map(|(x, c)| {
+                            c.tolerance
+                                .is_some_and(|tol| (x - c.mole_fraction).abs() > tol)
+                        })
+                        .collect();
+                    Some(Followed {
+                        targets_of: mp.model,
+                        fractions,
+                        relative_error_percent,
+                        out_of_tolerance,
+                    })
+                })
+                .collect();
+            Some(Following { truth, rows })
+        })
+        .collect();
+
+    let mut notes = Vec::new();
+    for (k, s) in order.sources.iter().enumerate() {
+        if !d.sequence.contains(&k) {
+            notes.push(format!("source {} is not needed for this blend", s.name));
+        }
+    }
+    if p_final > order.working_pressure_pa {
+        notes.push(format!(
+            "the final pressure {:.2} bar is above the cylinder's working pressure {:.2} bar",
+            bar(p_final),
+            bar(order.working_pressure_pa)
+        ));
+    }
+
+    let mut plan = Plan {
+        model,
+        fluid,
+        gases: setup.gases.clone(),
+        volume_m3: order.volume_m3,
+        totals,
+        components,
+        steps,
+        ambient_pa: order.ambient_pa,
+        fill_temperature_k: t_fill,
+        models,
+        following,
+        premixes: Vec::new(),
+        notes,
+    };
+    if depth < premix::MAX_STAGES {
+        plan.premixes = premix::propose(&plan, order, catalogue, options, depth, plan_at_depth);
+    }
+    Ok(plan)
+}
+
+/// The amounts (mol per plan gas) in the cylinder after stopping each step at the given
+/// readings, when the gas behaves as `truth` says.
+fn follow(
+    truth: &Fluid,
+    order: &Order,
+    setup: &Setup,
+    d: &Dosing,
+    readings_pa: &[f64],
+    t_k: f64,
+) -> Result<Vec<f64>, ThermoError> {
+    let mut n = vec![0.0; setup.gases.len()];
+    for (&k, &target) in d.sequence.iter().zip(readings_pa) {
+        let x_src = source_vector(setup, k);
+        let with = |s: f64| -> Vec<f64> { n.iter().zip(&x_src).map(|(a, x)| a + s * x).collect() };
+        let p_of = |s: f64| truth.pressure(t_k, order.volume_m3, &with(s));
+        let p_now = if n.iter().sum::<f64>() > 0.0 {
+            p_of(0.0)?
+        } else {
+            0.0
+        };
+        if target <= p_now {
+            continue;
+        }
+        let s =
+            solve_rising(p_of, target, p_now, d.source_mol[k].max(1e-12)).ok_or_else(|| {
+                ThermoError::NoState {
+                    model: truth.model(),
+                    why: "no amount reaches the reading".into(),
+                }
+            })??;
+        n = with(s);
+    }
+    Ok(n)
+}
+
+/// The s ≥ 0 at which the rising function `f` reaches `target`, with f(0) = `f0` < target
+/// and `guess` a first bracket end. Regula falsi with bisection safeguard, to 1e-15.
+/// `None` when no bracket is found; `Some(Err)` when `f` fails.
+fn solve_rising(
+    f: impl Fn(f64) -> Result<f64, ThermoError>,
+    target: f64,
+    f0: f64,
+    guess: f64,
+) -> Option<Result<f64, ThermoError>> {
+    let (mut lo, mut f_lo) = (0.0, f0);
+    let mut hi = guess;
+    let mut f_hi = match f(hi) {
+        Ok(v) => v,
+        Err(e) => return Some(Err(e)),
+    };
+    let mut doublings = 0;
+    while f_hi < target {
+        lo = hi;
+        f_lo = f_hi;
+        hi *= 2.0;
+        f_hi = match f(hi) {
+            Ok(v) => v,
+            Err(e) => return Some(Err(e)),
+        };
+        doublings += 1;
+        if doublings > 60 {
+            return None;
+        }
+    }
+    for i in 0..200 {
+        let secant = lo + (target - f_lo) / (f_hi - f_lo) * (hi - lo);
+        // Every third step bisects, so that one-sided convergence cannot stall.
+        let mid = if i % 3 == 2 || !(secant > lo && secant < hi) {
+            0.5 * (lo + hi)
+        } else {
+            secant
+        };
+        let f_mid = match f(mid) {
+            Ok(v) => v,
+            Err(e) => return Some(Err(e)),
+        };
+        if (f_mid - target).abs() <= 1e-15 * target || hi - lo <= 1e-16 * hi {
+            return Some(Ok(mid));
+        }
+        if f_mid < target {
+            lo = mid;
+            f_lo = f_mid;
+        } else {
+            hi = mid;
+            f_hi = f_mid;
+        }
+    }
+    Some(Ok(0.5 * (lo + hi)))
+}

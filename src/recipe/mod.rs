@@ -1,0 +1,518 @@
+//! Recipes: an order as the blender writes it down, in a RON file.
+//!
+//! Quantities are kept as the text the user typed (`"500ppm"`, `"10L"`), so that a saved
+//! recipe shows exactly what was entered; [`Recipe::resolve`] reads them into an [`Order`]
+//! of SI numbers and reports every problem with the file, line and column.
+
+use serde::{Deserialize, Serialize};
+
+pub mod demo;
+
+use crate::gas::Catalogue;
+use crate::mixture::{self, Composition, Part, Share};
+use crate::thermo::Model;
+use crate::units::{self, AmountInput, STANDARD_AMBIENT_PA};
+
+/// The recipe file format this program reads and writes.
+pub const FORMAT: u32 = 1;
+
+/// Largest recipe file read, bytes; a recipe is a few kB.
+pub const MAX_RECIPE_BYTES: usize = 1024 * 1024;
+
+/// One target component as written.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ComponentLine {
+    /// Gas id, name or CAS number.
+    pub gas: String,
+    /// `500ppm`, `2.5%`, `0.025` or `balance`.
+    pub amount: String,
+    /// Allowed deviation: relative (`2%rel`) or absolute (`10ppm`, `0.1%`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tolerance: Option<String>,
+}
+
+/// The cylinder as written.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CylinderLine {
+    /// Water capacity (internal volume), e.g. `10L`.
+    pub water_capacity: String,
+    /// Working pressure at 15 °C, e.g. `200bar`.
+    pub working_pressure: String,
+    /// Hydraulic test pressure, e.g. `300bar`.
+    pub test_pressure: String,
+    /// Tare mass of the evacuated cylinder with valve, e.g. `13.25kg`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tare: Option<String>,
+    /// Serial number stamped on the cylinder.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub serial: Option<String>,
+}
+
+/// What the fill aims at.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum FillTarget {
+    /// Final settled pressure at the reference temperature, e.g. `Pressure("150bar")`.
+    Pressure(String),
+    /// Total mass of gas, e.g. `Mass("1.2kg")`.
+    Mass(String),
+    /// Total amount of gas, e.g. `Amount("60mol")`.
+    Amount(String),
+}
+
+/// A source cylinder available at the bench.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum SourceLine {
+    /// A pure gas, by id.
+    Pure(String),
+    /// A mixture of known composition (a premix, or a balance gas with its impurities).
+    Premix { name: String, mix: String },
+}
+
+/// A recipe file.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Recipe {
+    pub format: u32,
+    pub name: String,
+    #[serde(default)]
+    pub description: String,
+    /// The customer's order reference.
+    #[serde(default)]
+    pub order: String,
+    pub components: Vec<ComponentLine>,
+    pub cylinder: CylinderLine,
+    pub fill: FillTarget,
+    /// Temperature at which the final pressure is specified; default `15C`.
+    #[serde(default = "default_reference_temperature")]
+    pub reference_temperature: String,
+    /// Expected cylinder temperature during the fill; default the reference temperature.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fill_temperature: Option<String>,
+    /// Ambient pressure for gauge readings; default `1.01325bar`.
+    #[serde(default = "default_ambient")]
+    pub ambient: String,
+    /// Model; default: gerg where it covers the gases, else pr.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub model: Option<Model>,
+    /// Source cylinders; default: one pure source for each component.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub sources: Vec<SourceLine>,
+    /// Fill order by source name; default: ascending amount, the balance gas last.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub fill_order: Vec<String>,
+    #[serde(default)]
+    pub notes: String,
+}
+
+fn default_reference_temperature() -> String {
+    "15C".into()
+}
+
+fn default_ambient() -> String {
+    "1.01325bar".into()
+}
+
+/// A recipe problem, placed in its file.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{origin}:{line}:{column}: {message}")]
+pub struct RecipeError {
+    pub origin: String,
+    pub line: usize,
+    pub column: usize,
+    pub message: String,
+}
+
+/// A resolved target component.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Target {
+    /// Catalogue index.
+    pub gas: usize,
+    /// The share as written.
+    pub share: Share,
+    /// Allowed deviation of the mole fraction, absolute.
+    pub tolerance: Option<f64>,
+}
+
+/// A resolved source.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Source {
+    /// Canonical id of a pure gas, or the premix name.
+    pub name: String,
+    /// Composition of what is in the source cylinder.
+    pub composition: Composition,
+    /// True for a pure gas.
+    pub pure: bool,
+}
+
+/// How the fill is specified, resolved.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Fill {
+    /// Settled pressure at the reference temperature, Pa.
+    PressurePa(f64),
+    /// Total mass, g.
+    MassG(f64),
+    /// Total amount, mol.
+    AmountMol(f64),
+}
+
+/// A recipe read into numbers: everything the plan needs.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Order {
+    pub name: String,
+    pub description: String,
+    pub order: String,
+    pub targets: Vec<Target>,
+    /// Index in `targets` of the balance gas, if one was written.
+    pub balance: Option<usize>,
+    /// Target composition, in the order of `targets`.
+    pub composition: Composition,
+    pub volume_m3: f64,
+    pub working_pressure_pa: f64,
+    pub test_pressure_pa: f64,
+    pub tare_g: Option<f64>,
+    pub serial: Option<String>,
+    pub fill: Fill,
+    pub reference_temperature_k: f64,
+    pub fill_temperature_k: f64,
+    pub ambient_pa: f64,
+    pub model: Option<Model>,
+    pub sources: Vec<Source>,
+    /// Source names in the fill order given, empty for the default order.
+    pub fill_order: Vec<String>,
+    pub notes: String,
+}
+
+impl Recipe {
+    /// Parse a recipe file's text; `origin` names it in messages.
+    pub fn parse(text: &str, origin: &str) -> Result<Recipe, RecipeError> {
+        if text.len() > MAX_RECIPE_BYTES {
+            return Err(RecipeError {
+                origin: origin.into(),
+                line: 1,
+                column: 1,
+                message: format!(
+                    "{} bytes is larger than a recipe can be ({MAX_RECIPE_BYTES} bytes); not read",
+                    text.len()
+                ),
+            });
+        }
+        let options = ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
+        let recipe: Recipe = options.from_str(text).map_err(|e| RecipeError {
+            origin: origin.into(),
+            line: e.position.line,
+            column: e.position.col,
+            message: e.code.to_string(),
+        })?;
+        if recipe.format != FORMAT {
+            return Err(place(
+                origin,
+                text,
+                "format",
+                format!(
+                    "recipe format {} is not known; this program reads format {FORMAT}",
+                    recipe.format
+                ),
+            ));
+        }
+        Ok(recipe)
+    }
+
+    /// Parse and resolve in one go.
+    pub fn load(text: &str, origin: &str, catalogue: &Catalogue) -> Result<Order, RecipeError> {
+        Recipe::parse(text, origin)?.resolve(catalogue, text, origin)
+    }
+
+    /// Read every field into numbers, checking it. `text` is the file the recipe came
+    /// from (to place errors); pass "" for a recipe built in memory.
+    pub fn resolve(
+        &self,
+        catalogue: &Catalogue,
+        text: &str,
+        origin: &str,
+    ) -> Result<Order, RecipeError> {
+        let err = |needle: &str, message: String| place(origin, text, needle, message);
+        let quoted = |s: &str| format!("\"{s}\"");
+        let ambient_pa = units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
+            .map_err(|e| err(&quoted(&self.ambient), format!("ambient: {e}")))?;
+
+        if self.components.is_empty() {
+            return Err(err("components", "the recipe has no components".into()));
+        }
+        let mut parts: Vec<Part> = Vec::new();
+        let mut targets: Vec<Target> = Vec::new();
+        for line in &self.components {
+            let gas = catalogue
+                .find(&line.gas)
+                .map_err(|e| err(&quoted(&line.gas), e.to_string()))?;
+            let id = catalogue.gas(gas).id().to_string();
+            if parts.iter().any(|p| p.gas == gas) {
+                return Err(err(&quoted(&line.gas), format!("{id} is listed twice")));
+            }
+            let share = mixture::parse_share(&line.amount).map_err(|problem| {
+                err(
+                    &quoted(&line.amount),
+                    format!("{id:?} amount {:?} {problem}", line.amount),
+                )
+            })?;
+            let tolerance = match &line.tolerance {
+                None => None,
+                Some(t) => Some(
+                    parse_tolerance(t, share.fraction())
+                        .map_err(|p| err(&quoted(t), format!("{id:?} tolerance {t:?}: {p}")))?,
+                ),
+            };
+            parts.push(Part { gas, share });
+            targets.push(Target {
+                gas,
+                share,
+                tolerance,
+            });
+        }
+        mixture::check_parts(&parts, catalogue).map_err(|e| err("components", e.to_string()))?;
+        let composition = Composition::from_parts(&parts);
+        let balance = targets.iter().position(|t| t.share == Share::Balance);
+
+        let c = &self.cylinder;
+        let volume_m3 = units::parse_volume(&c.water_capacity)
+            .map_err(|e| err(&quoted(&c.water_capacity), format!("water_capacity: {e}")))?;
+        let working_pressure_pa =
+            units::parse_pressure(&c.working_pressure, ambient_pa).map_err(|e| {
+                err(
+                    &quoted(&c.working_pressure),
+                    format!("working_pressure: {e}"),
+                )
+            })?;
+        let test_pressure_pa = units::parse_pressure(&c.test_pressure, ambient_pa)
+            .map_err(|e| err(&quoted(&c.test_pressure), format!("test_pressure: {e}")))?;
+        if test_pressure_pa < working_pressure_pa {
+            return Err(err(
+                &quoted(&c.test_pressure),
+                format!(
+                    "test_pressure {:?} is below the working pressure {:?}; check the cylinder's markings",
+                    c.test_pressure, c.working_pressure
+                ),
+            ));
+        }
+        let tare_g = match &c.tare {
+            None => None,
+            Some(t) => match units::parse_amount(t) {
+                Ok(AmountInput::Grams(g)) => Some(g),
+                Ok(AmountInput::Moles(_)) => {
+                    return Err(err(
+                        &quoted(t),
+                        format!("tare {t:?} must be a mass (g or kg), not an amount"),
+                    ))
+                }
+                Err(e) => return Err(err(&quoted(t), format!("tare: {e}"))),
+            },
+        };
+
+        let fill = match &self.fill {
+            FillTarget::Pressure(p) => {
+                let pa = units::parse_pressure(p, ambient_pa)
+                    .map_err(|e| err(&quoted(p), format!("fill: {e}")))?;
+                if pa > test_pressure_pa {
+                    return Err(err(
+                        &quoted(p),
+                        format!(
+                            "fill pressure {p:?} is above the cylinder's test pressure {:?}; this fill must not be made",
+                            c.test_pressure
+                        ),
+                    ));
+                }
+                Fill::PressurePa(pa)
+            }
+            FillTarget::Mass(m) => match units::parse_amount(m) {
+                Ok(AmountInput::Grams(g)) => Fill::MassG(g),
+                Ok(AmountInput::Moles(_)) => {
+                    return Err(err(
+                        &quoted(m),
+                        format!("fill Mass({m:?}) must be a mass; use Amount(..) for mol"),
+                    ))
+                }
+                Err(e) => return Err(err(&quoted(m), format!("fill: {e}"))),
+            },
+            FillTarget::Amount(n) => match units::parse_amount(n) {
+                Ok(AmountInput::Moles(mol)) => Fill::AmountMol(mol),
+                Ok(AmountInput::Grams(_)) => {
+                    return Err(err(
+                        &quoted(n),
+                        format!("fill Amount({n:?}) must be in mol; use Mass(..) for g or kg"),
+                    ))
+                }
+                Err(e) => return Err(err(&quoted(n), format!("fill: {e}"))),
+            },
+        };
+
+        let reference_temperature_k = units::parse_temperature(&self.reference_temperature)
+            .map_err(|e| {
+                err(
+                    &quoted(&self.reference_temperature),
+                    format!("reference_temperature: {e}"),
+                )
+            })?;
+        let fill_temperature_k = match &self.fill_temperature {
+            None => reference_temperature_k,
+            Some(t) => units::parse_temperature(t)
+                .map_err(|e| err(&quoted(t), format!("fill_temperature: {e}")))?,
+        };
+
+        let sources = if self.sources.is_empty() {
+            targets
+                .iter()
+                .map(|t| {
+                    let id = catalogue.gas(t.gas).id().to_string();
+                    Source {
+                        name: id,
+                        composition: Composition {
+                            gases: vec![t.gas],
+                            fractions: vec![1.0],
+                        },
+                        pure: true,
+                    }
+                })
+                .collect()
+        } else {
+            let mut out: Vec<Source> = Vec::new();
+            for s in &self.sources {
+                let source = match s {
+                    SourceLine::Pure(id) => {
+                        let gas = catalogue
+                            .find(id)
+                            .map_err(|e| err(&quoted(id), format!("source: {e}")))?;
+                        Source {
+                            name: catalogue.gas(gas).id().to_string(),
+                            composition: Composition {
+                                gases: vec![gas],
+                                fractions: vec![1.0],
+                            },
+                            pure: true,
+                        }
+                    }
+                    SourceLine::Premix { name, mix } => {
+                        if name.trim().is_empty() {
+                            return Err(err(&quoted(mix), "a premix source needs a name".into()));
+                        }
+                        let composition = Composition::from_spec(mix, catalogue)
+                            .map_err(|e| err(&quoted(mix), format!("source {name:?}: {e}")))?;
+                        Source {
+                            name: name.clone(),
+                            composition,
+                            pure: false,
+                        }
+                    }
+                };
+                if out.iter().any(|o| o.name == source.name) {
+                    return Err(err(
+                        &quoted(&source.name),
+                        format!("source {:?} is listed twice", source.name),
+                    ));
+                }
+                out.push(source);
+            }
+            out
+        };
+
+        for name in &self.fill_order {
+            if !sources.iter().any(|s| &s.name == name) {
+                let known: Vec<&str> = sources.iter().map(|s| s.name.as_str()).collect();
+                return Err(err(
+                    &quoted(name),
+                    format!(
+                        "fill_order names {name:?}, which is not a source; the sources are {}",
+                        known.join(", ")
+                    ),
+                ));
+            }
+        }
+
+        Ok(Order {
+            name: self.name.clone(),
+            description: self.description.clone(),
+            order: self.order.clone(),
+            targets,
+            balance,
+            composition,
+            volume_m3,
+            working_pressure_pa,
+            test_pressure_pa,
+            tare_g,
+            serial: c.serial.clone(),
+            fill,
+            reference_temperature_k,
+            fill_temperature_k,
+            ambient_pa,
+            model: self.model,
+            sources,
+            fill_order: self.fill_order.clone(),
+            notes: self.notes.clone(),
+        })
+    }
+}
+
+/// Tolerance as written: `2%rel` (relative to the amount) or an absolute share (`10ppm`).
+/// Returns the absolute tolerance of the mole fraction.
+pub fn parse_tolerance(text: &str, fraction: Option<f64>) -> Result<f64, String> {
+    let t = text.trim();
+    let lower = t.to_ascii_lowercase();
+    if let Some(number) = lower
+        .strip_suffix("%rel")
+        .or_else(|| lower.strip_suffix("% rel"))
+    {
+        let rel: f64 = number
+            .trim()
+            .parse()
+            .map_err(|_| "is not a number".to_string())?;
+        if !(rel.is_finite() && rel > 0.0 && rel < 100.0) {
+            return Err("a relative tolerance must be between 0 and 100 %rel".into());
+        }
+        let Some(x) = fraction else {
+            return Err(
+                "the balance gas takes an absolute tolerance (e.g. 0.5%), not a relative one"
+                    .into(),
+            );
+        };
+        return Ok(x * rel / 100.0);
+    }
+    match mixture::parse_share(t)? {
+        Share::Of { value, unit } => Ok(value * unit.scale()),
+        Share::Balance => {
+            Err("accepted: 2%rel (relative) or an absolute amount such as 10ppm or 0.1%".into())
+        }
+    }
+}
+
+/// A [`RecipeError`] at the first occurrence of `needle` in `text`.
+fn place(origin: &str, text: &str, needle: &str, message: String) -> RecipeError {
+    let (line, column) = match text.find(needle) {
+        Some(pos) => {
+            let before = &text[..pos];
+            let line = before.matches('\n').count() + 1;
+            let column = pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1;
+            (line, column)
+        }
+        None => (1, 1),
+    };
+    RecipeError {
+        origin: origin.into(),
+        line,
+        column,
+        message,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn tolerances() {
+        assert!((parse_tolerance("2%rel", Some(0.15)).unwrap() - 0.003).abs() < 1e-15);
+        assert!((parse_tolerance("10ppm", Some(5e-4)).unwrap() - 1e-5).abs() < 1e-18);
+        assert!(parse_tolerance("2%rel", None).is_err());
+        assert!(parse_tolerance("abc", Some(0.1)).is_err());
+    }
+}

@@ -1,0 +1,218 @@
+//! `fillwright plan` as a user runs it.
+
+use std::process::{Command, Output};
+
+fn run(args: &[&str]) -> Output {
+    let config =
+        std::env::temp_dir().join(format!("fillwright-plan-test-empty-{}", std::process::id()));
+    Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(args)
+        .env("FILLWRIGHT_CONFIG", &config)
+        .env_remove("FILLWRIGHT_LIBRARY")
+        .output()
+        .unwrap()
+}
+
+fn stdout(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stdout).into_owned()
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+const DEMOS: &[&str] = &[
+    "flue-gas-span",
+    "nox-span-premix",
+    "pipeline-ng-9",
+    "fuel-cell-h2-he",
+    "lpg-in-methane",
+    "detector-test-ch4-air",
+    "laser-co2-he-n2",
+];
+
+#[test]
+fn every_demo_fill_sheet_fits_80_columns() {
+    for name in DEMOS {
+        let o = run(&["plan", name]);
+        assert!(o.status.success(), "{name}: {}", stderr(&o));
+        let text = stdout(&o);
+        for line in text.lines() {
+            assert!(
+                line.chars().count() <= 80,
+                "{name}: {} columns: {line}",
+                line.chars().count()
+            );
+        }
+        assert!(
+            text.contains("FILL SHEET") && text.contains("STEPS") && text.contains("CAUTION"),
+            "{name}"
+        );
+    }
+}
+
+#[test]
+fn json_has_the_keys_scripts_rely_on() {
+    let o = run(&["plan", "flue-gas-span", "--model", "pr", "--format", "json"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["model"], "pr");
+    for key in ["pressure_bar", "temperature_k", "amount_mol", "mass_g", "z"] {
+        assert!(v["final"][key].is_number(), "final.{key}");
+    }
+    for c in v["components"].as_array().unwrap() {
+        for key in [
+            "id",
+            "mole_fraction",
+            "amount_mol",
+            "mass_g",
+            "partial_pressure_bar",
+        ] {
+            assert!(!c[key].is_null(), "components[].{key}");
+        }
+    }
+    let steps = v["steps"].as_array().unwrap();
+    assert_eq!(steps.len(), 4);
+    for s in steps {
+        for key in [
+            "source",
+            "add_amount_mol",
+            "add_mass_g",
+            "pressure_after_bar",
+            "temperature_k",
+        ] {
+            assert!(!s[key].is_null(), "steps[].{key}");
+        }
+        assert_eq!(s["temperature_k"], 295.15);
+    }
+    assert_eq!(v["final"]["pressure_bar"], 150.0);
+    assert_eq!(steps[3]["source"], "N2");
+    let ids: Vec<&str> = v["components"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|c| c["id"].as_str().unwrap())
+        .collect();
+    assert_eq!(ids, ["CO", "CH4", "CO2", "N2"]);
+}
+
+#[test]
+fn csv_lists_the_steps() {
+    let o = run(&["plan", "pipeline-ng-9", "--format", "csv"]);
+    assert!(o.status.success());
+    let text = stdout(&o);
+    let lines: Vec<&str> = text.lines().collect();
+    assert!(lines[0]
+        .starts_with("step,source,add_amount_mol,add_mass_g,scale_reading_g,pressure_after_bar"));
+    assert_eq!(lines.len(), 1 + 9);
+    assert!(lines[9].starts_with("9,CH4,"), "{}", lines[9]);
+}
+
+#[test]
+fn mix_arguments_and_fill_temperature() {
+    let base = [
+        "plan",
+        "--mix",
+        "CO2=15%,N2=balance",
+        "--volume",
+        "10L",
+        "--pressure",
+        "150bar",
+        "--temp",
+        "15C",
+        "--model",
+        "pr",
+        "--format",
+        "json",
+    ];
+    let cold: serde_json::Value =
+        serde_json::from_slice(&run(&[&base[..], &["--fill-temp", "-5C"]].concat()).stdout)
+            .unwrap();
+    let warm: serde_json::Value =
+        serde_json::from_slice(&run(&[&base[..], &["--fill-temp", "35C"]].concat()).stdout)
+            .unwrap();
+    let last = |v: &serde_json::Value| v["steps"][1]["pressure_after_bar"].as_f64().unwrap();
+    assert!(
+        last(&cold) < 150.0 && last(&warm) > 150.0,
+        "{} {}",
+        last(&cold),
+        last(&warm)
+    );
+    assert_eq!(cold["steps"][0]["temperature_k"], 268.15);
+    // The amount does not depend on the fill temperature, only the readings do.
+    assert_eq!(cold["final"]["amount_mol"], warm["final"]["amount_mol"]);
+}
+
+#[test]
+fn order_option_is_checked() {
+    let o = run(&[
+        "plan",
+        "flue-gas-span",
+        "--order",
+        "N2,CO2,CH4,CO",
+        "--format",
+        "json",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = run(&["plan", "flue-gas-span", "--order", "N2,CO2"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("missing: CO, CH4"), "{}", stderr(&o));
+    let o = run(&["plan", "flue-gas-span", "--order", "N2,CO2,CH4,CO,Ar"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("\"Ar\" is not a source"),
+        "{}",
+        stderr(&o)
+    );
+}
+
+#[test]
+fn bad_recipes_are_refused_with_file_line_and_column() {
+    let cases = [
+        ("sum-not-100", ":4:5:", "add up to 95 %"),
+        ("two-balances", ":4:5:", "two balance gases (N2 and Ar)"),
+        ("unknown-gas", ":6:15:", "did you mean N2"),
+        ("negative-amount", ":5:30:", "must be above zero"),
+        ("not-finite", ":5:30:", "not a finite number"),
+        ("above-100", ":5:30:", "is above 100 %"),
+        (
+            "above-test-pressure",
+            ":9:20:",
+            "above the cylinder's test pressure",
+        ),
+        ("negative-volume", ":8:32:", "water_capacity"),
+        ("syntax", ":5:30:", "Expected string"),
+        (
+            "mass-above-test",
+            "mass-above-test.ron:",
+            "above the cylinder's test pressure",
+        ),
+    ];
+    for (file, place, needle) in cases {
+        let path = format!("tests/recipes/bad/{file}.ron");
+        let o = run(&["plan", &path]);
+        assert_eq!(o.status.code(), Some(1), "{file}");
+        let e = stderr(&o);
+        assert!(
+            e.contains(&format!("{path}{place}")) || e.contains(place),
+            "{file}: {e}"
+        );
+        assert!(e.contains(needle), "{file}: {e}");
+    }
+}
+
+#[test]
+fn unknown_recipe_names_list_the_demos() {
+    let o = run(&["plan", "no-such-recipe"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("flue-gas-span"), "{}", stderr(&o));
+    let o = run(&["plan"]);
+    assert_eq!(o.status.code(), Some(2));
+}
+
+#[test]
+fn gerg_on_uncovered_gases_is_refused_by_name() {
+    let o = run(&["plan", "nox-span-premix", "--model", "gerg"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("does not cover NO"), "{}", stderr(&o));
+}
