@@ -93,3 +93,32 @@ fn read_limited(path: &Path) -> Result<String, String> {
     }
     std::fs::read_to_string(path).map_err(|e| format!("{}: {e}", path.display()))
 }
+
+/// Largest settings file read, bytes.
+const MAX_SETTINGS_BYTES: u64 = 256 * 1024;
+
+/// The settings from `settings.ron` in the config folder, or the defaults when there is none.
+pub fn load_settings() -> Result<crate::settings::Resolved, String> {
+    use crate::settings::Settings;
+    let Some(path) = config_dir().map(|d| d.join("settings.ron")) else {
+        return Settings::default()
+            .resolve("", "defaults")
+            .map_err(|e| e.to_string());
+    };
+    let Ok(meta) = std::fs::metadata(&path) else {
+        return Settings::default()
+            .resolve("", "defaults")
+            .map_err(|e| e.to_string());
+    };
+    if meta.len() > MAX_SETTINGS_BYTES {
+        return Err(format!(
+            "{}: {} bytes is too large for a settings file; not read",
+            path.display(),
+            meta.len()
+        ));
+    }
+    let origin = path.display().to_string();
+    let text = std::fs::read_to_string(&path).map_err(|e| format!("{origin}: {e}"))?;
+    let settings = Settings::parse(&text, &origin).map_err(|e| e.to_string())?;
+    settings.resolve(&text, &origin).map_err(|e| e.to_string())
+}

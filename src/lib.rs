@@ -14,5 +14,6 @@ pub mod mixture;
 pub mod plan;
 pub mod recipe;
 pub mod record;
+pub mod settings;
 pub mod thermo;
 pub mod units;

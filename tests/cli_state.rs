@@ -354,3 +354,46 @@ fn broken_user_catalogue_is_reported_with_file_line_and_column() {
     assert!(e.contains("gases.ron:3:"), "{e}");
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn settings_choose_the_default_model_and_are_checked() {
+    let dir = std::env::temp_dir().join(format!("fillwright-test-settings-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let state = |dir: &std::path::Path, extra: &[&str]| {
+        Command::new(env!("CARGO_BIN_EXE_fillwright"))
+            .args([
+                "state",
+                "--mix",
+                "N2",
+                "--temp",
+                "15C",
+                "--volume",
+                "10L",
+                "--pressure",
+                "150bar",
+            ])
+            .args(extra)
+            .env("FILLWRIGHT_CONFIG", dir)
+            .output()
+            .unwrap()
+    };
+    std::fs::write(dir.join("settings.ron"), "(default_model: srk)\n").unwrap();
+    let o = state(&dir, &[]);
+    assert!(String::from_utf8_lossy(&o.stdout).contains("model: Soave-Redlich-Kwong (srk)"));
+    // The command line wins over the setting.
+    let o = state(&dir, &["--model", "vdw"]);
+    assert!(String::from_utf8_lossy(&o.stdout).contains("model: van der Waals (vdw)"));
+    std::fs::write(
+        dir.join("settings.ron"),
+        "(\n  default_model: srk,\n  ambient: \"one bar\",\n)\n",
+    )
+    .unwrap();
+    let o = state(&dir, &[]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("settings.ron:3:3: ambient"),
+        "{}",
+        stderr(&o)
+    );
+    std::fs::remove_dir_all(&dir).ok();
+}

@@ -11,7 +11,8 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use crate::gas::Catalogue;
 use crate::mixture::Composition;
-use crate::thermo::{gerg, Model};
+use crate::settings::Resolved;
+use crate::thermo::Model;
 use crate::units::{self, STANDARD_AMBIENT_PA};
 
 #[derive(Debug, Parser)]
@@ -60,36 +61,34 @@ pub struct Common {
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
     /// Ambient pressure for gauge readings and gauge input (barg, psig, kPag).
-    #[arg(long, default_value = "1.01325bar", value_name = "P")]
-    pub ambient: String,
+    /// Default: the settings file's, else 1.01325bar.
+    #[arg(long, value_name = "P")]
+    pub ambient: Option<String>,
 }
 
 impl Common {
-    /// Ambient pressure, Pa.
-    pub fn ambient_pa(&self) -> Result<f64, Refused> {
-        units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
-            .map_err(|e| Refused(format!("--ambient: {e}")))
+    /// Ambient pressure, Pa: the option, else the setting.
+    pub fn ambient_pa(&self, settings: &Resolved) -> Result<f64, Refused> {
+        match &self.ambient {
+            Some(text) => units::parse_pressure(text, STANDARD_AMBIENT_PA)
+                .map_err(|e| Refused(format!("--ambient: {e}"))),
+            None => Ok(settings.ambient_pa),
+        }
     }
 }
 
-/// The model to use: the one asked for, or the default rule (gerg where it covers the
-/// gases, else pr). Asking for gerg on gases it does not cover is refused by the fluid.
+/// The model to use: the one asked for, else the settings' default model, else gerg where
+/// it covers the gases, else pr. Asking for gerg on gases it does not cover is refused by
+/// the fluid.
 pub fn choose_model(
     asked: Option<Model>,
     composition: &Composition,
     catalogue: &Catalogue,
+    settings: &Resolved,
 ) -> Model {
-    asked.unwrap_or_else(|| {
-        if composition
-            .gases
-            .iter()
-            .all(|&g| gerg::covers(catalogue.gas(g).id()))
-        {
-            Model::Gerg
-        } else {
-            Model::Pr
-        }
-    })
+    asked
+        .or(settings.default_model)
+        .unwrap_or_else(|| crate::plan::default_model(&composition.gases, catalogue))
 }
 
 /// Input that was refused: exit status 1 with this message.

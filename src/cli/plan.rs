@@ -9,6 +9,7 @@ use crate::gas::Catalogue;
 use crate::mixture::{self, Composition};
 use crate::plan::{self, Plan, PlanOptions, Resolutions, StepFlag};
 use crate::recipe::{Fill, Order, Recipe, Source, Target};
+use crate::settings::Resolved;
 use crate::thermo::MAX_PRESSURE_PA;
 use crate::units::{self, bar, celsius, litres, Sig};
 
@@ -50,11 +51,13 @@ pub struct PlanArgs {
     #[arg(long, value_name = "P")]
     pub test_pressure: Option<String>,
     /// Smallest pressure step the fill gauge resolves; smaller steps are flagged.
-    #[arg(long, value_name = "P", default_value = "0.1bar")]
-    pub gauge_resolution: String,
+    /// Default: the settings file's, else 0.1bar.
+    #[arg(long, value_name = "P")]
+    pub gauge_resolution: Option<String>,
     /// Smallest mass step the scale resolves; smaller additions are flagged.
-    #[arg(long, value_name = "M", default_value = "0.1g")]
-    pub scale_resolution: String,
+    /// Default: the settings file's, else 0.1g.
+    #[arg(long, value_name = "M")]
+    pub scale_resolution: Option<String>,
     /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else the config folder's library/).
     #[arg(long, value_name = "DIR")]
     pub library: Option<std::path::PathBuf>,
@@ -64,12 +67,13 @@ pub struct PlanArgs {
 
 pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     let catalogue = config::load_catalogue().map_err(Refused)?;
+    let settings = config::load_settings().map_err(Refused)?;
     let (order, origin) = match (&args.recipe, &args.mix) {
         (Some(name), _) => {
             let (text, origin) = config::recipe_text(name, args.library.as_deref()).map_err(Refused)?;
             (Recipe::load(&text, &origin, &catalogue)?, Some(origin))
         }
-        (None, Some(_)) => (order_from_args(args, &catalogue)?, None),
+        (None, Some(_)) => (order_from_args(args, &catalogue, &settings)?, None),
         (None, None) => {
             return Err(Failure::Usage(
                 "plan needs a recipe (name or file) or --mix with --volume and --pressure; see `fillwright plan --help`"
@@ -84,16 +88,21 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         .map(units::parse_temperature)
         .transpose()
         .map_err(|e| Refused(format!("--fill-temp: {e}")))?;
-    let gauge_pa = units::parse_pressure(&args.gauge_resolution, 0.0)
-        .map_err(|e| Refused(format!("--gauge-resolution: {e}")))?;
-    let scale_g = match units::parse_amount(&args.scale_resolution) {
-        Ok(units::AmountInput::Grams(g)) => g,
-        Ok(_) => {
+    let gauge_pa = match &args.gauge_resolution {
+        Some(text) => units::parse_pressure(text, 0.0)
+            .map_err(|e| Refused(format!("--gauge-resolution: {e}")))?,
+        None => settings.gauge_resolution_pa,
+    };
+    let scale_g = match args.scale_resolution.as_deref().map(units::parse_amount) {
+        None => settings.scale_resolution_g,
+        Some(Ok(units::AmountInput::Grams(g))) => g,
+        Some(Ok(_)) => {
             return Err(Refused("--scale-resolution must be a mass such as 0.1g".into()).into())
         }
-        Err(e) => return Err(Refused(format!("--scale-resolution: {e}")).into()),
+        Some(Err(e)) => return Err(Refused(format!("--scale-resolution: {e}")).into()),
     };
     let options = PlanOptions {
+        default_model: settings.default_model,
         model: args.common.model,
         fill_temperature_k,
         order: args.order.clone(),
@@ -115,8 +124,12 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
 }
 
 /// An order from `--mix`, `--volume`, `--pressure`, `--temp`.
-fn order_from_args(args: &PlanArgs, catalogue: &Catalogue) -> Result<Order, Refused> {
-    let ambient = args.common.ambient_pa()?;
+fn order_from_args(
+    args: &PlanArgs,
+    catalogue: &Catalogue,
+    settings: &Resolved,
+) -> Result<Order, Refused> {
+    let ambient = args.common.ambient_pa(settings)?;
     let spec = args.mix.as_deref().unwrap_or_default();
     let parts = mixture::parse_spec(spec, catalogue).map_err(|e| Refused(format!("--mix: {e}")))?;
     let volume = units::parse_volume(args.volume.as_deref().unwrap_or_default())

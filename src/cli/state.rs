@@ -150,7 +150,8 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
         ));
     }
     let catalogue = config::load_catalogue().map_err(Refused)?;
-    let ambient = args.common.ambient_pa()?;
+    let settings = config::load_settings().map_err(Refused)?;
+    let ambient = args.common.ambient_pa(&settings)?;
     let composition = Composition::from_spec(&args.mix, &catalogue)
         .map_err(|e| Refused(format!("--mix: {e}")))?;
     let given = Given {
@@ -174,7 +175,7 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
             .transpose()
             .map_err(|e| Refused(format!("--amount: {e}")))?,
     };
-    let model = choose_model(args.common.model, &composition, &catalogue);
+    let model = choose_model(args.common.model, &composition, &catalogue, &settings);
     let x = &composition.fractions;
     let fluid_of = |m: Model| Fluid::new(&catalogue, &composition.gases, m);
     let chosen = solve(&fluid_of(model)?, x, &given, unknown)?;

@@ -6,6 +6,7 @@
 //! would exert alone is not the total (Dalton's rule of additive pressures fails at
 //! cylinder pressures), which is why a plan made with ideal partial pressures misses.
 
+pub mod accuracy;
 pub mod premix;
 pub mod sources;
 
@@ -39,7 +40,10 @@ impl Default for Resolutions {
 /// Choices that override the recipe.
 #[derive(Debug, Clone, Default)]
 pub struct PlanOptions {
+    /// The model asked for; wins over the recipe's.
     pub model: Option<Model>,
+    /// The model used when neither the options nor the recipe name one (a setting).
+    pub default_model: Option<Model>,
     pub fill_temperature_k: Option<f64>,
     /// Source names in fill order; every source exactly once.
     pub order: Option<Vec<String>>,

@@ -1,0 +1,173 @@
+//! The user's settings: a RON file `settings.ron` in the config folder. Every field is
+//! optional; what is left out takes the shipped default.
+
+use serde::{Deserialize, Serialize};
+
+use crate::thermo::Model;
+use crate::units::{self, STANDARD_AMBIENT_PA};
+
+/// Settings as written in the file.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct Settings {
+    pub format: u32,
+    /// Model used when neither the command nor the recipe names one. None: gerg where
+    /// GERG-2008 covers every gas, else pr.
+    pub default_model: Option<Model>,
+    /// Ambient pressure for gauge readings.
+    pub ambient: String,
+    /// Smallest pressure step the fill gauge resolves.
+    pub gauge_resolution: String,
+    /// Smallest mass step the scale resolves.
+    pub scale_resolution: String,
+    /// Lowest temperature the cylinder will see in storage and transport (screening).
+    pub min_storage_temperature: String,
+    /// Highest service temperature (screening of the pressure rating).
+    pub max_service_temperature: String,
+    /// Commit each library save when the library folder is a git work tree.
+    pub git_commit_on_save: bool,
+}
+
+impl Default for Settings {
+    fn default() -> Self {
+        Settings {
+            format: 1,
+            default_model: None,
+            ambient: "1.01325bar".into(),
+            // Common practice, no source: a digital 0-250 bar transducer and a cylinder balance.
+            gauge_resolution: "0.1bar".into(),
+            scale_resolution: "0.1g".into(),
+            min_storage_temperature: "0C".into(),
+            // The temperature transport rules use for the rating check (from memory).
+            max_service_temperature: "65C".into(),
+            git_commit_on_save: false,
+        }
+    }
+}
+
+/// A settings file that could not be used.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{origin}:{line}:{column}: {message}")]
+pub struct SettingsError {
+    pub origin: String,
+    pub line: usize,
+    pub column: usize,
+    pub message: String,
+}
+
+/// Settings read into numbers.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Resolved {
+    pub default_model: Option<Model>,
+    pub ambient_pa: f64,
+    pub gauge_resolution_pa: f64,
+    pub scale_resolution_g: f64,
+    pub min_storage_temperature_k: f64,
+    pub max_service_temperature_k: f64,
+    pub git_commit_on_save: bool,
+}
+
+impl Settings {
+    /// Parse a settings file's text.
+    pub fn parse(text: &str, origin: &str) -> Result<Settings, SettingsError> {
+        let options = ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
+        options.from_str(text).map_err(|e| SettingsError {
+            origin: origin.into(),
+            line: e.position.line,
+            column: e.position.col,
+            message: e.code.to_string(),
+        })
+    }
+
+    /// Read the quantities, naming the field of any that is wrong.
+    pub fn resolve(&self, text: &str, origin: &str) -> Result<Resolved, SettingsError> {
+        let err = |field: &str, message: String| {
+            let (line, column) = locate(text, field);
+            SettingsError {
+                origin: origin.into(),
+                line,
+                column,
+                message: format!("{field}: {message}"),
+            }
+        };
+        let ambient_pa = units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
+            .map_err(|e| err("ambient", e.to_string()))?;
+        let gauge_resolution_pa = units::parse_pressure(&self.gauge_resolution, 0.0)
+            .map_err(|e| err("gauge_resolution", e.to_string()))?;
+        let scale_resolution_g = match units::parse_amount(&self.scale_resolution) {
+            Ok(units::AmountInput::Grams(g)) => g,
+            Ok(_) => {
+                return Err(err(
+                    "scale_resolution",
+                    "must be a mass such as 0.1g".into(),
+                ))
+            }
+            Err(e) => return Err(err("scale_resolution", e.to_string())),
+        };
+        let min_storage_temperature_k = units::parse_temperature(&self.min_storage_temperature)
+            .map_err(|e| err("min_storage_temperature", e.to_string()))?;
+        let max_service_temperature_k = units::parse_temperature(&self.max_service_temperature)
+            .map_err(|e| err("max_service_temperature", e.to_string()))?;
+        Ok(Resolved {
+            default_model: self.default_model,
+            ambient_pa,
+            gauge_resolution_pa,
+            scale_resolution_g,
+            min_storage_temperature_k,
+            max_service_temperature_k,
+            git_commit_on_save: self.git_commit_on_save,
+        })
+    }
+}
+
+fn locate(text: &str, needle: &str) -> (usize, usize) {
+    match text.find(needle) {
+        Some(pos) => {
+            let before = &text[..pos];
+            (
+                before.matches('\n').count() + 1,
+                pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1,
+            )
+        }
+        None => (1, 1),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn defaults_resolve() {
+        let r = Settings::default().resolve("", "defaults").unwrap();
+        assert_eq!(r.ambient_pa, STANDARD_AMBIENT_PA);
+        assert_eq!(r.gauge_resolution_pa, 0.1e5);
+        assert_eq!(r.default_model, None);
+        assert!((r.max_service_temperature_k - 338.15).abs() < 1e-12);
+    }
+
+    #[test]
+    fn partial_files_keep_the_other_defaults() {
+        let s = Settings::parse(
+            "(default_model: srk, gauge_resolution: \"0.5bar\")",
+            "s.ron",
+        )
+        .unwrap();
+        assert_eq!(s.default_model, Some(Model::Srk));
+        let r = s.resolve("", "s.ron").unwrap();
+        assert_eq!(r.gauge_resolution_pa, 0.5e5);
+        assert_eq!(r.scale_resolution_g, 0.1);
+    }
+
+    #[test]
+    fn errors_are_placed() {
+        let text = "(\n  ambient: \"1.0\",\n)";
+        let s = Settings::parse(text, "s.ron").unwrap();
+        let e = s.resolve(text, "s.ron").unwrap_err();
+        assert_eq!((e.line, e.column), (2, 3));
+        assert!(e.message.contains("has no unit"));
+        let e = Settings::parse("(colour: true)", "s.ron").unwrap_err();
+        assert!(e.message.contains("colour"), "{e}");
+    }
+}
