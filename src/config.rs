@@ -122,3 +122,15 @@ pub fn load_settings() -> Result<crate::settings::Resolved, String> {
     let settings = Settings::parse(&text, &origin).map_err(|e| e.to_string())?;
     settings.resolve(&text, &origin).map_err(|e| e.to_string())
 }
+
+/// Write `settings.ron` into the config folder, crash-safely (temporary file, flush, rename).
+pub fn save_settings(settings: &crate::settings::Settings) -> Result<PathBuf, String> {
+    let dir = config_dir().ok_or("no config folder could be found")?;
+    std::fs::create_dir_all(&dir).map_err(|e| format!("{}: {e}", dir.display()))?;
+    let path = dir.join("settings.ron");
+    let text = ron::ser::to_string_pretty(settings, ron::ser::PrettyConfig::default())
+        .map_err(|e| format!("settings: {e}"))?;
+    crate::library::atomic::write(&path, format!("{text}\n").as_bytes())
+        .map_err(|e| format!("{}: {e}", path.display()))?;
+    Ok(path)
+}

@@ -10,6 +10,7 @@
 pub mod cli;
 pub mod config;
 pub mod gas;
+pub mod library;
 pub mod mixture;
 pub mod plan;
 pub mod recipe;

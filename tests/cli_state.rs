@@ -397,3 +397,25 @@ fn settings_choose_the_default_model_and_are_checked() {
     );
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn settings_written_by_the_program_read_back() {
+    let dir = std::env::temp_dir().join(format!(
+        "fillwright-test-settings-save-{}",
+        std::process::id()
+    ));
+    std::fs::create_dir_all(&dir).unwrap();
+    // This process-wide variable is read only by config::config_dir, and no other test in
+    // this binary reads it in-process (the others pass it to child processes).
+    std::env::set_var("FILLWRIGHT_CONFIG", &dir);
+    let s = fillwright::settings::Settings {
+        default_model: Some(fillwright::thermo::Model::Rk),
+        ..Default::default()
+    };
+    let path = fillwright::config::save_settings(&s).unwrap();
+    let loaded = fillwright::config::load_settings().unwrap();
+    assert_eq!(loaded.default_model, Some(fillwright::thermo::Model::Rk));
+    assert!(path.ends_with("settings.ron"));
+    std::env::remove_var("FILLWRIGHT_CONFIG");
+    std::fs::remove_dir_all(&dir).ok();
+}

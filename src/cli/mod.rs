@@ -2,6 +2,7 @@
 //! 2 wrong usage (INTERFACE.md).
 
 mod gases;
+mod library;
 mod plan;
 mod state;
 
@@ -37,6 +38,22 @@ enum Command {
     State(state::StateArgs),
     /// The fill plan: what to add, and the pressure and scale readings at which to stop.
     Plan(plan::PlanArgs),
+    /// List the recipe library (copies the demo recipes in when it is empty).
+    List(library::ListArgs),
+    /// The revisions of a recipe; --diff A B shows what changed, --restore REV brings one back.
+    History(library::HistoryArgs),
+    /// Rewrite recipe files in canonical form, or --check that they are.
+    Tidy(library::TidyArgs),
+    /// Bring a recipe file into the library.
+    Import(library::ImportArgs),
+    /// Write a library recipe to a file.
+    Export(library::ExportArgs),
+    /// Copy a library recipe under a new name.
+    Copy(library::TwoNames),
+    /// Rename a library recipe (with its history).
+    Rename(library::TwoNames),
+    /// Move a library recipe to the trash folder (recoverable).
+    Delete(library::DeleteArgs),
     /// List the gas catalogue with its constants and their sources.
     Gases(gases::GasesArgs),
 }
@@ -133,6 +150,14 @@ pub fn main() -> ExitCode {
         Some(Command::State(args)) => state::run(&args),
         Some(Command::Plan(args)) => plan::run(&args),
         Some(Command::Gases(args)) => gases::run(&args),
+        Some(Command::List(args)) => library::list(&args),
+        Some(Command::History(args)) => library::history(&args),
+        Some(Command::Tidy(args)) => library::tidy(&args),
+        Some(Command::Import(args)) => library::import(&args),
+        Some(Command::Export(args)) => library::export(&args),
+        Some(Command::Copy(args)) => library::copy(&args),
+        Some(Command::Rename(args)) => library::rename(&args),
+        Some(Command::Delete(args)) => library::delete(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

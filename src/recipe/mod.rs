@@ -6,6 +6,8 @@
 
 use serde::{Deserialize, Serialize};
 
+pub mod canonical;
+pub mod changes;
 pub mod demo;
 
 use crate::gas::Catalogue;
@@ -75,6 +77,15 @@ pub enum SourceLine {
 #[serde(deny_unknown_fields)]
 pub struct Recipe {
     pub format: u32,
+    /// Revision in the library: 0 for a recipe never saved there, then +1 per changed save.
+    #[serde(default)]
+    pub revision: u32,
+    /// When this revision was saved (UTC, RFC 3339).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub saved: Option<String>,
+    /// The note given with this revision.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub change_note: Option<String>,
     pub name: String,
     #[serde(default)]
     pub description: String,

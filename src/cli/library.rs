@@ -1,0 +1,293 @@
+//! The library commands: list, history, tidy, import, export, copy, rename, delete.
+
+use std::path::PathBuf;
+
+use clap::Args;
+use serde_json::json;
+
+use super::{print_json, Failure, Format, Refused};
+use crate::config;
+use crate::library::{clock, Library, Saved};
+use crate::recipe::{canonical, changes, Recipe};
+
+/// Where the library is.
+#[derive(Debug, Clone, Args)]
+pub struct Place {
+    /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else library/ in the config folder).
+    #[arg(long, value_name = "DIR")]
+    pub library: Option<PathBuf>,
+}
+
+impl Place {
+    pub fn open(&self) -> Result<Library, Refused> {
+        let dir = config::library_dir(self.library.as_deref())
+            .ok_or_else(|| Refused("no config folder could be found; give --library DIR".into()))?;
+        let mut lib = Library::at(&dir)?;
+        lib.git_commit = config::load_settings().map_err(Refused)?.git_commit_on_save;
+        Ok(lib)
+    }
+}
+
+#[derive(Debug, Args)]
+pub struct ListArgs {
+    #[command(flatten)]
+    pub place: Place,
+    /// Output format: text or json.
+    #[arg(long, value_enum, default_value = "text")]
+    pub format: Format,
+}
+
+pub fn list(args: &ListArgs) -> Result<(), Failure> {
+    let lib = args.place.open()?;
+    let seeded = lib.seed_demos_if_empty()?;
+    if seeded > 0 {
+        eprintln!(
+            "fillwright: the library was empty; copied {seeded} demo recipes into {}",
+            lib.dir().display()
+        );
+    }
+    let entries = lib.list()?;
+    if args.format == Format::Json {
+        print_json(&json!({
+            "library": lib.dir().display().to_string(),
+            "recipes": entries.iter().map(|e| match &e.summary {
+                Ok(s) => json!({"name": e.name, "title": s.title, "fill": s.fill, "cylinder": s.cylinder, "revision": s.revision}),
+                Err(err) => json!({"name": e.name, "error": err}),
+            }).collect::<Vec<_>>(),
+        }));
+        return Ok(());
+    }
+    println!("library {}", lib.dir().display());
+    // 80 columns: long names and titles are cut with an ellipsis.
+    println!(
+        "{:<22} {:>8} {:>13} {:>3}  recipe",
+        "name", "fill", "cylinder", "rev"
+    );
+    for e in &entries {
+        match &e.summary {
+            Ok(s) => println!(
+                "{:<22} {:>8} {:>13} {:>3}  {}",
+                clip(&e.name, 22),
+                clip(&s.fill, 8),
+                clip(&s.cylinder, 13),
+                s.revision,
+                clip(&s.title, 29)
+            ),
+            Err(err) => println!("{:<22} cannot be read: {err}", clip(&e.name, 22)),
+        }
+    }
+    if entries.is_empty() {
+        println!("(no recipes)");
+    }
+    Ok(())
+}
+
+#[derive(Debug, Args)]
+pub struct HistoryArgs {
+    /// Recipe name in the library.
+    pub name: String,
+    /// Show what changed from revision A to revision B.
+    #[arg(long, num_args = 2, value_names = ["A", "B"])]
+    pub diff: Option<Vec<u32>>,
+    /// Make revision REV the newest revision again.
+    #[arg(long, value_name = "REV", conflicts_with = "diff")]
+    pub restore: Option<u32>,
+    #[command(flatten)]
+    pub place: Place,
+    /// Output format: text or json.
+    #[arg(long, value_enum, default_value = "text")]
+    pub format: Format,
+}
+
+pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
+    let lib = args.place.open()?;
+    if let Some(rev) = args.restore {
+        report_save(&args.name, lib.restore(&args.name, rev, &clock::now_utc())?);
+        return Ok(());
+    }
+    if let Some(pair) = &args.diff {
+        let (a, b) = (
+            lib.revision(&args.name, pair[0])?,
+            lib.revision(&args.name, pair[1])?,
+        );
+        let list = changes::describe(&a, &b);
+        if args.format == Format::Json {
+            print_json(
+                &json!({"name": args.name, "from": pair[0], "to": pair[1], "changes": list}),
+            );
+        } else if list.is_empty() {
+            println!(
+                "{} revisions {} and {} are the same order",
+                args.name, pair[0], pair[1]
+            );
+        } else {
+            println!("{} revision {} → {}:", args.name, pair[0], pair[1]);
+            for c in list {
+                println!("  {c}");
+            }
+        }
+        return Ok(());
+    }
+    let revs = lib.history(&args.name)?;
+    if args.format == Format::Json {
+        print_json(
+            &json!({"name": args.name, "revisions": revs.iter().map(|r| json!({
+            "revision": r.revision, "saved": r.saved, "note": r.note,
+        })).collect::<Vec<_>>()}),
+        );
+        return Ok(());
+    }
+    println!("{:>4}  {:<21} note", "rev", "saved (UTC)");
+    for r in &revs {
+        println!(
+            "{:>4}  {:<21} {}",
+            r.revision,
+            r.saved.as_deref().unwrap_or("-"),
+            r.note.as_deref().unwrap_or("")
+        );
+    }
+    Ok(())
+}
+
+fn report_save(name: &str, saved: Saved) {
+    match saved {
+        Saved::Unchanged { revision } => println!("{name}: unchanged, still revision {revision}"),
+        Saved::Written {
+            revision,
+            changes,
+            git,
+        } => {
+            println!("{name}: saved revision {revision} ({})", changes.join("; "));
+            if let Some(Err(e)) = git {
+                eprintln!("fillwright: saved, but not committed: {e}");
+            }
+        }
+    }
+}
+
+#[derive(Debug, Args)]
+pub struct TidyArgs {
+    /// Only check: exit 1 naming the files that are not in canonical form.
+    #[arg(long)]
+    pub check: bool,
+    /// Recipe files.
+    #[arg(required = true, value_name = "FILE")]
+    pub files: Vec<PathBuf>,
+}
+
+pub fn tidy(args: &TidyArgs) -> Result<(), Failure> {
+    let mut untidy = Vec::new();
+    for file in &args.files {
+        let text = crate::library::read_limited(file)?;
+        let recipe = Recipe::parse(&text, &file.display().to_string())?;
+        let canon = canonical::to_text(&recipe);
+        if canon != text {
+            if args.check {
+                untidy.push(file.display().to_string());
+            } else {
+                crate::library::atomic::write(file, canon.as_bytes())
+                    .map_err(|e| Refused(format!("{}: {e}", file.display())))?;
+                println!("tidied {}", file.display());
+            }
+        }
+    }
+    if untidy.is_empty() {
+        Ok(())
+    } else {
+        Err(Refused(format!(
+            "not in canonical form (run `fillwright tidy` on them): {}",
+            untidy.join(", ")
+        ))
+        .into())
+    }
+}
+
+#[derive(Debug, Args)]
+pub struct ImportArgs {
+    /// Recipe file to bring into the library.
+    pub file: PathBuf,
+    /// Library name (default: the file name without .ron).
+    #[arg(long)]
+    pub name: Option<String>,
+    #[command(flatten)]
+    pub place: Place,
+}
+
+pub fn import(args: &ImportArgs) -> Result<(), Failure> {
+    let lib = args.place.open()?;
+    let name = match &args.name {
+        Some(n) => n.clone(),
+        None => args
+            .file
+            .file_stem()
+            .and_then(|s| s.to_str())
+            .unwrap_or_default()
+            .to_string(),
+    };
+    report_save(&name, lib.import(&args.file, &name, &clock::now_utc())?);
+    Ok(())
+}
+
+#[derive(Debug, Args)]
+pub struct ExportArgs {
+    /// Recipe name in the library.
+    pub name: String,
+    /// File to write.
+    pub file: PathBuf,
+    #[command(flatten)]
+    pub place: Place,
+}
+
+pub fn export(args: &ExportArgs) -> Result<(), Failure> {
+    args.place.open()?.export(&args.name, &args.file)?;
+    println!("wrote {}", args.file.display());
+    Ok(())
+}
+
+#[derive(Debug, Args)]
+pub struct TwoNames {
+    pub from: String,
+    pub to: String,
+    #[command(flatten)]
+    pub place: Place,
+}
+
+pub fn copy(args: &TwoNames) -> Result<(), Failure> {
+    report_save(
+        &args.to,
+        args.place
+            .open()?
+            .duplicate(&args.from, &args.to, &clock::now_utc())?,
+    );
+    Ok(())
+}
+
+pub fn rename(args: &TwoNames) -> Result<(), Failure> {
+    args.place.open()?.rename(&args.from, &args.to)?;
+    println!("renamed {} to {}", args.from, args.to);
+    Ok(())
+}
+
+#[derive(Debug, Args)]
+pub struct DeleteArgs {
+    pub name: String,
+    #[command(flatten)]
+    pub place: Place,
+}
+
+pub fn delete(args: &DeleteArgs) -> Result<(), Failure> {
+    let to = args.place.open()?.delete(&args.name, &clock::now_utc())?;
+    println!("moved {} to {} (recoverable)", args.name, to.display());
+    Ok(())
+}
+
+fn clip(s: &str, width: usize) -> String {
+    if s.chars().count() <= width {
+        s.to_string()
+    } else {
+        s.chars()
+            .take(width - 1)
+            .chain(std::iter::once('…'))
+            .collect()
+    }
+}

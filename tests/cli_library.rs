@@ -1,0 +1,123 @@
+//! The library commands as a user runs them.
+
+use std::path::PathBuf;
+use std::process::{Command, Output};
+
+fn fresh(tag: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("fillwright-cli-lib-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    dir
+}
+
+fn run(config: &PathBuf, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(args)
+        .env("FILLWRIGHT_CONFIG", config)
+        .env_remove("FILLWRIGHT_LIBRARY")
+        .output()
+        .unwrap()
+}
+
+fn out(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stdout).into_owned()
+}
+
+fn err(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+#[test]
+fn first_list_shows_the_demo_library_with_fill_pressures() {
+    let config = fresh("first");
+    let o = run(&config, &["list"]);
+    assert!(o.status.success(), "{}", err(&o));
+    assert!(err(&o).contains("copied 7 demo recipes"), "{}", err(&o));
+    let text = out(&o);
+    assert!(text.contains(&config.join("library").display().to_string()));
+    let flue = text
+        .lines()
+        .find(|l| l.starts_with("flue-gas-span"))
+        .unwrap();
+    assert!(
+        flue.contains("150bar") && flue.contains("10L, 200bar") && flue.contains("   1  "),
+        "{flue}"
+    );
+    // The second time nothing is copied.
+    let o = run(&config, &["list", "--format", "json"]);
+    assert!(!err(&o).contains("copied"));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["recipes"].as_array().unwrap().len(), 7);
+    // A library name plans.
+    let o = run(&config, &["plan", "pipeline-ng-9", "--format", "csv"]);
+    assert!(o.status.success());
+}
+
+#[test]
+fn history_diff_and_restore() {
+    let config = fresh("history");
+    run(&config, &["list"]);
+    let lib = config.join("library");
+    // Edit the file as a second program would, then import the change as a new revision.
+    let path = lib.join("flue-gas-span.ron");
+    let edited = std::fs::read_to_string(&path)
+        .unwrap()
+        .replace("\"15%\"", "\"14%\"")
+        .replace("\"150bar\"", "\"200bar\"");
+    let new_file = config.join("edited.ron");
+    std::fs::write(&new_file, edited).unwrap();
+    let o = run(
+        &config,
+        &["import", new_file.to_str().unwrap(), "--name", "flue-v2"],
+    );
+    assert!(o.status.success(), "{}", err(&o));
+    let o = run(&config, &["history", "flue-gas-span"]);
+    assert!(out(&o).contains("   1  "), "{}", out(&o));
+    let o = run(&config, &["copy", "flue-gas-span", "flue-b"]);
+    assert!(o.status.success(), "{}", err(&o));
+    let o = run(&config, &["history", "nope"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("no recipe \"nope\""));
+    let o = run(&config, &["history", "flue-gas-span", "--diff", "1", "7"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("no revision 7"), "{}", err(&o));
+    let o = run(&config, &["delete", "flue-b"]);
+    assert!(out(&o).contains("recoverable"));
+    let o = run(&config, &["rename", "flue-v2", "../x"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("path separator"), "{}", err(&o));
+}
+
+#[test]
+fn tidy_check_names_untidy_files_and_tidy_fixes_them() {
+    let config = fresh("tidy");
+    std::fs::create_dir_all(&config).unwrap();
+    let messy = config.join("messy.ron");
+    std::fs::write(&messy, "Recipe(format:1,name:\"m\",components:[(gas:\"N2\",amount:\"balance\")],cylinder:(water_capacity:\"10L\",working_pressure:\"200bar\",test_pressure:\"300bar\"),fill:Pressure(\"150bar\"))").unwrap();
+    let shipped = concat!(env!("CARGO_MANIFEST_DIR"), "/mixtures/flue-gas-span.ron");
+    let o = run(&config, &["tidy", "--check", shipped]);
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "the shipped demo recipes are canonical: {}",
+        err(&o)
+    );
+    let o = run(
+        &config,
+        &["tidy", "--check", shipped, messy.to_str().unwrap()],
+    );
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        err(&o).contains("messy.ron") && !err(&o).contains("flue-gas-span"),
+        "{}",
+        err(&o)
+    );
+    let o = run(&config, &["tidy", messy.to_str().unwrap()]);
+    assert!(o.status.success());
+    let o = run(&config, &["tidy", "--check", messy.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0));
+    let text = std::fs::read_to_string(&messy).unwrap();
+    assert!(
+        text.starts_with("Recipe(\n    format: 1,\n    revision: 0,\n"),
+        "{text}"
+    );
+}
