@@ -54,8 +54,7 @@ pub fn library_dir(flag: Option<&Path>) -> Option<PathBuf> {
 /// with the name to use for it in messages.
 pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String), String> {
     let as_path = Path::new(name);
-    let looks_like_path =
-        name.ends_with(".ron") || name.contains(std::path::MAIN_SEPARATOR) || name.contains('/');
+    let looks_like_path = name.ends_with(".ron") || name.contains(std::path::MAIN_SEPARATOR) || name.contains('/');
     if looks_like_path || as_path.is_file() {
         return read_limited(as_path).map(|t| (t, name.to_string()));
     }
@@ -69,14 +68,10 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
     if let Some(text) = crate::recipe::demo::find(name) {
         return Ok((text.to_string(), format!("demo recipe {name}")));
     }
-    let demos: Vec<&str> = crate::recipe::demo::RECIPES
-        .iter()
-        .map(|(n, _)| *n)
-        .collect();
+    let demos: Vec<&str> = crate::recipe::demo::RECIPES.iter().map(|(n, _)| *n).collect();
     Err(format!(
         "no recipe {name:?}: not a file, not in the library{}, and not a demo recipe ({})",
-        dir.map(|d| format!(" at {}", d.display()))
-            .unwrap_or_default(),
+        dir.map(|d| format!(" at {}", d.display())).unwrap_or_default(),
         demos.join(", ")
     ))
 }
@@ -101,21 +96,13 @@ const MAX_SETTINGS_BYTES: u64 = 256 * 1024;
 pub fn load_settings() -> Result<crate::settings::Resolved, String> {
     use crate::settings::Settings;
     let Some(path) = config_dir().map(|d| d.join("settings.ron")) else {
-        return Settings::default()
-            .resolve("", "defaults")
-            .map_err(|e| e.to_string());
+        return Settings::default().resolve("", "defaults").map_err(|e| e.to_string());
     };
     let Ok(meta) = std::fs::metadata(&path) else {
-        return Settings::default()
-            .resolve("", "defaults")
-            .map_err(|e| e.to_string());
+        return Settings::default().resolve("", "defaults").map_err(|e| e.to_string());
     };
     if meta.len() > MAX_SETTINGS_BYTES {
-        return Err(format!(
-            "{}: {} bytes is too large for a settings file; not read",
-            path.display(),
-            meta.len()
-        ));
+        return Err(format!("{}: {} bytes is too large for a settings file; not read", path.display(), meta.len()));
     }
     let origin = path.display().to_string();
     let text = std::fs::read_to_string(&path).map_err(|e| format!("{origin}: {e}"))?;

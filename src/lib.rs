@@ -7,6 +7,7 @@
 // `!(x > 0.0)` is the deliberate NaN-rejecting form throughout the numerical code.
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
+pub mod checks;
 pub mod cli;
 pub mod config;
 pub mod gas;
@@ -15,6 +16,7 @@ pub mod mixture;
 pub mod plan;
 pub mod recipe;
 pub mod record;
+pub mod ron_format;
 pub mod settings;
 pub mod thermo;
 pub mod units;

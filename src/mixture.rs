@@ -73,27 +73,25 @@ impl fmt::Display for Share {
 /// A mixture that could not be read.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum MixError {
-    #[error(
-        "mixture is empty; give components like \"CO2=15%,N2=balance\" or one pure gas like \"N2\""
-    )]
+    #[error("mixture is empty; give components like \"CO2=15%,N2=balance\" or one pure gas like \"N2\"")]
     Empty,
     #[error("component {0:?} has no amount; write it as GAS=AMOUNT (ppb, ppm, %, a fraction, or balance)")]
     MissingAmount(String),
     #[error("{0}")]
     UnknownGas(#[from] UnknownGas),
     #[error("amount {text:?} of {gas}: {problem}; accepted: a number with ppb, ppm or %, a bare mole fraction like 0.025, or balance")]
-    BadAmount {
-        gas: String,
-        text: String,
-        problem: String,
-    },
+    BadAmount { gas: String, text: String, problem: String },
     #[error("{0} is listed twice")]
     Duplicate(String),
     #[error("two balance gases ({0} and {1}); exactly one component may be balance")]
     TwoBalances(String, String),
-    #[error("the amounts add up to {sum_percent} %, not 100 %; add a balance gas (e.g. N2=balance) or correct the amounts")]
+    #[error(
+        "the amounts add up to {sum_percent} %, not 100 %; add a balance gas (e.g. N2=balance) or correct the amounts"
+    )]
     DoesNotSumToOne { sum_percent: f64 },
-    #[error("the amounts other than the balance gas {balance} already add up to {sum_percent} %; nothing is left for it")]
+    #[error(
+        "the amounts other than the balance gas {balance} already add up to {sum_percent} %; nothing is left for it"
+    )]
     NoRoomForBalance { balance: String, sum_percent: f64 },
 }
 
@@ -108,26 +106,17 @@ pub struct Part {
 
 /// Parse a mixture spec. Components keep the order written.
 pub fn parse_spec(spec: &str, catalogue: &Catalogue) -> Result<Vec<Part>, MixError> {
-    let items: Vec<&str> = spec
-        .split(',')
-        .map(str::trim)
-        .filter(|s| !s.is_empty())
-        .collect();
+    let items: Vec<&str> = spec.split(',').map(str::trim).filter(|s| !s.is_empty()).collect();
     if items.is_empty() {
         return Err(MixError::Empty);
     }
     if items.len() == 1 && !items[0].contains('=') {
         let gas = catalogue.find(items[0])?;
-        return Ok(vec![Part {
-            gas,
-            share: Share::Balance,
-        }]);
+        return Ok(vec![Part { gas, share: Share::Balance }]);
     }
     let mut parts: Vec<Part> = Vec::with_capacity(items.len());
     for item in items {
-        let (name, amount) = item
-            .split_once('=')
-            .ok_or_else(|| MixError::MissingAmount(item.to_string()))?;
+        let (name, amount) = item.split_once('=').ok_or_else(|| MixError::MissingAmount(item.to_string()))?;
         let gas = catalogue.find(name)?;
         let id = catalogue.gas(gas).id().to_string();
         if parts.iter().any(|p| p.gas == gas) {
@@ -159,10 +148,7 @@ pub fn parse_share(text: &str) -> Result<Share, String> {
     } else {
         (t, FractionUnit::Fraction)
     };
-    let value: f64 = number
-        .trim()
-        .parse()
-        .map_err(|_| "is not a number".to_string())?;
+    let value: f64 = number.trim().parse().map_err(|_| "is not a number".to_string())?;
     if !value.is_finite() {
         return Err("is not a finite number".into());
     }
@@ -191,9 +177,7 @@ pub fn check_parts(parts: &[Part], catalogue: &Catalogue) -> Result<(), MixError
     }
     let sum: f64 = parts.iter().filter_map(|p| p.share.fraction()).sum();
     match balances.first() {
-        None if (sum - 1.0).abs() > 1e-9 => Err(MixError::DoesNotSumToOne {
-            sum_percent: round_percent(sum),
-        }),
+        None if (sum - 1.0).abs() > 1e-9 => Err(MixError::DoesNotSumToOne { sum_percent: round_percent(sum) }),
         Some(b) if sum >= 1.0 => Err(MixError::NoRoomForBalance {
             balance: catalogue.gas(b.gas).id().into(),
             sum_percent: round_percent(sum),
@@ -236,19 +220,12 @@ impl Composition {
 
     /// Resolve checked parts.
     pub fn from_parts(parts: &[Part]) -> Composition {
-        Composition {
-            gases: parts.iter().map(|p| p.gas).collect(),
-            fractions: mole_fractions(parts),
-        }
+        Composition { gases: parts.iter().map(|p| p.gas).collect(), fractions: mole_fractions(parts) }
     }
 
     /// Mean molar mass, g/mol.
     pub fn molar_mass(&self, catalogue: &Catalogue) -> f64 {
-        self.gases
-            .iter()
-            .zip(&self.fractions)
-            .map(|(&g, x)| x * catalogue.gas(g).molar_mass_g_per_mol)
-            .sum()
+        self.gases.iter().zip(&self.fractions).map(|(&g, x)| x * catalogue.gas(g).molar_mass_g_per_mol).sum()
     }
 
     /// The spec in canonical ids, e.g. `CO2=0.15,N2=0.85`.

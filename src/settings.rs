@@ -70,9 +70,7 @@ pub struct Resolved {
 impl Settings {
     /// Parse a settings file's text.
     pub fn parse(text: &str, origin: &str) -> Result<Settings, SettingsError> {
-        let options = ron::Options::default()
-            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
-        options.from_str(text).map_err(|e| SettingsError {
+        crate::ron_format::options().from_str(text).map_err(|e| SettingsError {
             origin: origin.into(),
             line: e.position.line,
             column: e.position.col,
@@ -84,25 +82,15 @@ impl Settings {
     pub fn resolve(&self, text: &str, origin: &str) -> Result<Resolved, SettingsError> {
         let err = |field: &str, message: String| {
             let (line, column) = locate(text, field);
-            SettingsError {
-                origin: origin.into(),
-                line,
-                column,
-                message: format!("{field}: {message}"),
-            }
+            SettingsError { origin: origin.into(), line, column, message: format!("{field}: {message}") }
         };
-        let ambient_pa = units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
-            .map_err(|e| err("ambient", e.to_string()))?;
-        let gauge_resolution_pa = units::parse_pressure(&self.gauge_resolution, 0.0)
-            .map_err(|e| err("gauge_resolution", e.to_string()))?;
+        let ambient_pa =
+            units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA).map_err(|e| err("ambient", e.to_string()))?;
+        let gauge_resolution_pa =
+            units::parse_pressure(&self.gauge_resolution, 0.0).map_err(|e| err("gauge_resolution", e.to_string()))?;
         let scale_resolution_g = match units::parse_amount(&self.scale_resolution) {
             Ok(units::AmountInput::Grams(g)) => g,
-            Ok(_) => {
-                return Err(err(
-                    "scale_resolution",
-                    "must be a mass such as 0.1g".into(),
-                ))
-            }
+            Ok(_) => return Err(err("scale_resolution", "must be a mass such as 0.1g".into())),
             Err(e) => return Err(err("scale_resolution", e.to_string())),
         };
         let min_storage_temperature_k = units::parse_temperature(&self.min_storage_temperature)
@@ -125,10 +113,7 @@ fn locate(text: &str, needle: &str) -> (usize, usize) {
     match text.find(needle) {
         Some(pos) => {
             let before = &text[..pos];
-            (
-                before.matches('\n').count() + 1,
-                pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1,
-            )
+            (before.matches('\n').count() + 1, pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1)
         }
         None => (1, 1),
     }
@@ -149,11 +134,7 @@ mod tests {
 
     #[test]
     fn partial_files_keep_the_other_defaults() {
-        let s = Settings::parse(
-            "(default_model: srk, gauge_resolution: \"0.5bar\")",
-            "s.ron",
-        )
-        .unwrap();
+        let s = Settings::parse("(default_model: srk, gauge_resolution: \"0.5bar\")", "s.ron").unwrap();
         assert_eq!(s.default_model, Some(Model::Srk));
         let r = s.resolve("", "s.ron").unwrap();
         assert_eq!(r.gauge_resolution_pa, 0.5e5);

@@ -42,8 +42,7 @@ pub const PRESSURE_UNITS: &str =
     "a number with bar, mbar, kPa, MPa, Pa, psi, atm (absolute) or barg, kPag, MPag, psig (gauge), e.g. 150bar";
 pub const TEMPERATURE_UNITS: &str = "a number with C, K or F, e.g. 15C, 288.15K, 59F";
 pub const VOLUME_UNITS: &str = "a number with L, mL, m3 or dm3, e.g. 10L, 0.05m3";
-pub const AMOUNT_UNITS: &str =
-    "a number with mol, mmol or kmol (amount) or g, kg (mass), e.g. 12mol, 500g";
+pub const AMOUNT_UNITS: &str = "a number with mol, mmol or kmol (amount) or g, kg (mass), e.g. 12mol, 500g";
 
 /// Split "150 bar" / "150bar" / "-5.5e1C" into the number and the unit text.
 fn split_number(text: &str) -> Option<(f64, &str)> {
@@ -86,18 +85,8 @@ fn split_number(text: &str) -> Option<(f64, &str)> {
     Some((value, t[end..].trim()))
 }
 
-fn error(
-    what: &'static str,
-    text: &str,
-    problem: impl Into<String>,
-    accepted: &'static str,
-) -> QuantityError {
-    QuantityError {
-        what,
-        text: text.to_string(),
-        problem: problem.into(),
-        accepted,
-    }
+fn error(what: &'static str, text: &str, problem: impl Into<String>, accepted: &'static str) -> QuantityError {
+    QuantityError { what, text: text.to_string(), problem: problem.into(), accepted }
 }
 
 fn number_and_unit<'a>(
@@ -105,8 +94,8 @@ fn number_and_unit<'a>(
     text: &'a str,
     accepted: &'static str,
 ) -> Result<(f64, &'a str), QuantityError> {
-    let (value, unit) = split_number(text)
-        .ok_or_else(|| error(what, text, "does not start with a number", accepted))?;
+    let (value, unit) =
+        split_number(text).ok_or_else(|| error(what, text, "does not start with a number", accepted))?;
     if !value.is_finite() {
         return Err(error(what, text, "the number is not finite", accepted));
     }
@@ -132,23 +121,11 @@ pub fn parse_pressure(text: &str, ambient_pa: f64) -> Result<f64, QuantityError>
         "kpag" => (1.0e3, true),
         "mpag" => (1.0e6, true),
         "psig" => (PA_PER_PSI, true),
-        _ => {
-            return Err(error(
-                what,
-                text,
-                format!("unknown unit {unit:?}"),
-                PRESSURE_UNITS,
-            ))
-        }
+        _ => return Err(error(what, text, format!("unknown unit {unit:?}"), PRESSURE_UNITS)),
     };
     let pa = value * factor + if gauge { ambient_pa } else { 0.0 };
     if pa <= 0.0 {
-        return Err(error(
-            what,
-            text,
-            "the absolute pressure must be above zero",
-            PRESSURE_UNITS,
-        ));
+        return Err(error(what, text, "the absolute pressure must be above zero", PRESSURE_UNITS));
     }
     Ok(pa)
 }
@@ -161,22 +138,10 @@ pub fn parse_temperature(text: &str) -> Result<f64, QuantityError> {
         "C" | "c" | "°C" | "degC" => value + 273.15,
         "K" | "k" => value,
         "F" | "f" | "°F" | "degF" => (value - 32.0) * 5.0 / 9.0 + 273.15,
-        _ => {
-            return Err(error(
-                what,
-                text,
-                format!("unknown unit {unit:?}"),
-                TEMPERATURE_UNITS,
-            ))
-        }
+        _ => return Err(error(what, text, format!("unknown unit {unit:?}"), TEMPERATURE_UNITS)),
     };
     if kelvin <= 0.0 {
-        return Err(error(
-            what,
-            text,
-            "is at or below absolute zero",
-            TEMPERATURE_UNITS,
-        ));
+        return Err(error(what, text, "is at or below absolute zero", TEMPERATURE_UNITS));
     }
     Ok(kelvin)
 }
@@ -189,14 +154,7 @@ pub fn parse_volume(text: &str) -> Result<f64, QuantityError> {
         "L" | "l" | "dm3" => 1.0e-3,
         "mL" | "ml" => 1.0e-6,
         "m3" => 1.0,
-        _ => {
-            return Err(error(
-                what,
-                text,
-                format!("unknown unit {unit:?}"),
-                VOLUME_UNITS,
-            ))
-        }
+        _ => return Err(error(what, text, format!("unknown unit {unit:?}"), VOLUME_UNITS)),
     };
     if value <= 0.0 {
         return Err(error(what, text, "must be above zero", VOLUME_UNITS));
@@ -225,14 +183,7 @@ pub fn parse_amount(text: &str) -> Result<AmountInput, QuantityError> {
         "g" => AmountInput::Grams(value),
         "kg" => AmountInput::Grams(value * 1.0e3),
         "mg" => AmountInput::Grams(value * 1.0e-3),
-        _ => {
-            return Err(error(
-                what,
-                text,
-                format!("unknown unit {unit:?}"),
-                AMOUNT_UNITS,
-            ))
-        }
+        _ => return Err(error(what, text, format!("unknown unit {unit:?}"), AMOUNT_UNITS)),
     };
     if value <= 0.0 {
         return Err(error(what, text, "must be above zero", AMOUNT_UNITS));
@@ -287,9 +238,7 @@ mod tests {
         assert_eq!(parse_pressure("101.325kPa", amb).unwrap(), 101_325.0);
         assert_eq!(parse_pressure("1atm", amb).unwrap(), 101_325.0);
         // 1 psi = 6894.757293168 Pa (NIST SP 811, appendix B.8).
-        assert!(
-            (parse_pressure("2200psi", amb).unwrap() - 2200.0 * 6_894.757_293_168).abs() < 1e-3
-        );
+        assert!((parse_pressure("2200psi", amb).unwrap() - 2200.0 * 6_894.757_293_168).abs() < 1e-3);
         assert_eq!(parse_pressure("0barg", amb).unwrap(), amb);
         assert_eq!(parse_pressure("10barg", 0.95e5).unwrap(), 10.95e5);
         assert!((parse_pressure("100kPag", amb).unwrap() - 201_325.0).abs() < 1e-9);
@@ -324,22 +273,8 @@ mod tests {
 
     #[test]
     fn malformed_quantities_are_refused() {
-        for bad in [
-            "",
-            "bar",
-            "1e",
-            "nanbar",
-            "infbar",
-            "1.2.3bar",
-            "--5bar",
-            "5 furlongs",
-            "-1bar",
-            "0bar",
-        ] {
-            assert!(
-                parse_pressure(bad, STANDARD_AMBIENT_PA).is_err(),
-                "{bad:?} accepted"
-            );
+        for bad in ["", "bar", "1e", "nanbar", "infbar", "1.2.3bar", "--5bar", "5 furlongs", "-1bar", "0bar"] {
+            assert!(parse_pressure(bad, STANDARD_AMBIENT_PA).is_err(), "{bad:?} accepted");
         }
         assert!(parse_temperature("-300C").is_err());
         assert!(parse_temperature("0K").is_err());
@@ -350,10 +285,7 @@ mod tests {
 
     #[test]
     fn exponent_forms() {
-        assert_eq!(
-            parse_pressure("1.5e2bar", STANDARD_AMBIENT_PA).unwrap(),
-            150.0e5
-        );
+        assert_eq!(parse_pressure("1.5e2bar", STANDARD_AMBIENT_PA).unwrap(), 150.0e5);
         assert_eq!(parse_volume("1e1L").unwrap(), 0.01);
     }
 

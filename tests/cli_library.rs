@@ -34,14 +34,8 @@ fn first_list_shows_the_demo_library_with_fill_pressures() {
     assert!(err(&o).contains("copied 7 demo recipes"), "{}", err(&o));
     let text = out(&o);
     assert!(text.contains(&config.join("library").display().to_string()));
-    let flue = text
-        .lines()
-        .find(|l| l.starts_with("flue-gas-span"))
-        .unwrap();
-    assert!(
-        flue.contains("150bar") && flue.contains("10L, 200bar") && flue.contains("   1  "),
-        "{flue}"
-    );
+    let flue = text.lines().find(|l| l.starts_with("flue-gas-span")).unwrap();
+    assert!(flue.contains("150bar") && flue.contains("10L, 200bar") && flue.contains("   1  "), "{flue}");
     // The second time nothing is copied.
     let o = run(&config, &["list", "--format", "json"]);
     assert!(!err(&o).contains("copied"));
@@ -59,16 +53,11 @@ fn history_diff_and_restore() {
     let lib = config.join("library");
     // Edit the file as a second program would, then import the change as a new revision.
     let path = lib.join("flue-gas-span.ron");
-    let edited = std::fs::read_to_string(&path)
-        .unwrap()
-        .replace("\"15%\"", "\"14%\"")
-        .replace("\"150bar\"", "\"200bar\"");
+    let edited =
+        std::fs::read_to_string(&path).unwrap().replace("\"15%\"", "\"14%\"").replace("\"150bar\"", "\"200bar\"");
     let new_file = config.join("edited.ron");
     std::fs::write(&new_file, edited).unwrap();
-    let o = run(
-        &config,
-        &["import", new_file.to_str().unwrap(), "--name", "flue-v2"],
-    );
+    let o = run(&config, &["import", new_file.to_str().unwrap(), "--name", "flue-v2"]);
     assert!(o.status.success(), "{}", err(&o));
     let o = run(&config, &["history", "flue-gas-span"]);
     assert!(out(&o).contains("   1  "), "{}", out(&o));
@@ -95,29 +84,14 @@ fn tidy_check_names_untidy_files_and_tidy_fixes_them() {
     std::fs::write(&messy, "Recipe(format:1,name:\"m\",components:[(gas:\"N2\",amount:\"balance\")],cylinder:(water_capacity:\"10L\",working_pressure:\"200bar\",test_pressure:\"300bar\"),fill:Pressure(\"150bar\"))").unwrap();
     let shipped = concat!(env!("CARGO_MANIFEST_DIR"), "/mixtures/flue-gas-span.ron");
     let o = run(&config, &["tidy", "--check", shipped]);
-    assert_eq!(
-        o.status.code(),
-        Some(0),
-        "the shipped demo recipes are canonical: {}",
-        err(&o)
-    );
-    let o = run(
-        &config,
-        &["tidy", "--check", shipped, messy.to_str().unwrap()],
-    );
+    assert_eq!(o.status.code(), Some(0), "the shipped demo recipes are canonical: {}", err(&o));
+    let o = run(&config, &["tidy", "--check", shipped, messy.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(1));
-    assert!(
-        err(&o).contains("messy.ron") && !err(&o).contains("flue-gas-span"),
-        "{}",
-        err(&o)
-    );
+    assert!(err(&o).contains("messy.ron") && !err(&o).contains("flue-gas-span"), "{}", err(&o));
     let o = run(&config, &["tidy", messy.to_str().unwrap()]);
     assert!(o.status.success());
     let o = run(&config, &["tidy", "--check", messy.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(0));
     let text = std::fs::read_to_string(&messy).unwrap();
-    assert!(
-        text.starts_with("Recipe(\n    format: 1,\n    revision: 0,\n"),
-        "{text}"
-    );
+    assert!(text.starts_with("Recipe(\n    format: 1,\n    revision: 0,\n"), "{text}");
 }

@@ -3,8 +3,7 @@
 use std::process::{Command, Output};
 
 fn run(args: &[&str]) -> Output {
-    let config =
-        std::env::temp_dir().join(format!("fillwright-plan-test-empty-{}", std::process::id()));
+    let config = std::env::temp_dir().join(format!("fillwright-plan-test-empty-{}", std::process::id()));
     Command::new(env!("CARGO_BIN_EXE_fillwright"))
         .args(args)
         .env("FILLWRIGHT_CONFIG", &config)
@@ -38,16 +37,9 @@ fn every_demo_fill_sheet_fits_80_columns() {
         assert!(o.status.success(), "{name}: {}", stderr(&o));
         let text = stdout(&o);
         for line in text.lines() {
-            assert!(
-                line.chars().count() <= 80,
-                "{name}: {} columns: {line}",
-                line.chars().count()
-            );
+            assert!(line.chars().count() <= 80, "{name}: {} columns: {line}", line.chars().count());
         }
-        assert!(
-            text.contains("FILL SHEET") && text.contains("STEPS") && text.contains("CAUTION"),
-            "{name}"
-        );
+        assert!(text.contains("FILL SHEET") && text.contains("STEPS") && text.contains("CAUTION"), "{name}");
     }
 }
 
@@ -61,38 +53,21 @@ fn json_has_the_keys_scripts_rely_on() {
         assert!(v["final"][key].is_number(), "final.{key}");
     }
     for c in v["components"].as_array().unwrap() {
-        for key in [
-            "id",
-            "mole_fraction",
-            "amount_mol",
-            "mass_g",
-            "partial_pressure_bar",
-        ] {
+        for key in ["id", "mole_fraction", "amount_mol", "mass_g", "partial_pressure_bar"] {
             assert!(!c[key].is_null(), "components[].{key}");
         }
     }
     let steps = v["steps"].as_array().unwrap();
     assert_eq!(steps.len(), 4);
     for s in steps {
-        for key in [
-            "source",
-            "add_amount_mol",
-            "add_mass_g",
-            "pressure_after_bar",
-            "temperature_k",
-        ] {
+        for key in ["source", "add_amount_mol", "add_mass_g", "pressure_after_bar", "temperature_k"] {
             assert!(!s[key].is_null(), "steps[].{key}");
         }
         assert_eq!(s["temperature_k"], 295.15);
     }
     assert_eq!(v["final"]["pressure_bar"], 150.0);
     assert_eq!(steps[3]["source"], "N2");
-    let ids: Vec<&str> = v["components"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|c| c["id"].as_str().unwrap())
-        .collect();
+    let ids: Vec<&str> = v["components"].as_array().unwrap().iter().map(|c| c["id"].as_str().unwrap()).collect();
     assert_eq!(ids, ["CO", "CH4", "CO2", "N2"]);
 }
 
@@ -102,8 +77,7 @@ fn csv_lists_the_steps() {
     assert!(o.status.success());
     let text = stdout(&o);
     let lines: Vec<&str> = text.lines().collect();
-    assert!(lines[0]
-        .starts_with("step,source,add_amount_mol,add_mass_g,scale_reading_g,pressure_after_bar"));
+    assert!(lines[0].starts_with("step,source,add_amount_mol,add_mass_g,scale_reading_g,pressure_after_bar"));
     assert_eq!(lines.len(), 1 + 9);
     assert!(lines[9].starts_with("9,CH4,"), "{}", lines[9]);
 }
@@ -126,18 +100,11 @@ fn mix_arguments_and_fill_temperature() {
         "json",
     ];
     let cold: serde_json::Value =
-        serde_json::from_slice(&run(&[&base[..], &["--fill-temp", "-5C"]].concat()).stdout)
-            .unwrap();
+        serde_json::from_slice(&run(&[&base[..], &["--fill-temp", "-5C"]].concat()).stdout).unwrap();
     let warm: serde_json::Value =
-        serde_json::from_slice(&run(&[&base[..], &["--fill-temp", "35C"]].concat()).stdout)
-            .unwrap();
+        serde_json::from_slice(&run(&[&base[..], &["--fill-temp", "35C"]].concat()).stdout).unwrap();
     let last = |v: &serde_json::Value| v["steps"][1]["pressure_after_bar"].as_f64().unwrap();
-    assert!(
-        last(&cold) < 150.0 && last(&warm) > 150.0,
-        "{} {}",
-        last(&cold),
-        last(&warm)
-    );
+    assert!(last(&cold) < 150.0 && last(&warm) > 150.0, "{} {}", last(&cold), last(&warm));
     assert_eq!(cold["steps"][0]["temperature_k"], 268.15);
     // The amount does not depend on the fill temperature, only the readings do.
     assert_eq!(cold["final"]["amount_mol"], warm["final"]["amount_mol"]);
@@ -145,25 +112,14 @@ fn mix_arguments_and_fill_temperature() {
 
 #[test]
 fn order_option_is_checked() {
-    let o = run(&[
-        "plan",
-        "flue-gas-span",
-        "--order",
-        "N2,CO2,CH4,CO",
-        "--format",
-        "json",
-    ]);
+    let o = run(&["plan", "flue-gas-span", "--order", "N2,CO2,CH4,CO", "--format", "json"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let o = run(&["plan", "flue-gas-span", "--order", "N2,CO2"]);
     assert_eq!(o.status.code(), Some(1));
     assert!(stderr(&o).contains("missing: CO, CH4"), "{}", stderr(&o));
     let o = run(&["plan", "flue-gas-span", "--order", "N2,CO2,CH4,CO,Ar"]);
     assert_eq!(o.status.code(), Some(1));
-    assert!(
-        stderr(&o).contains("\"Ar\" is not a source"),
-        "{}",
-        stderr(&o)
-    );
+    assert!(stderr(&o).contains("\"Ar\" is not a source"), "{}", stderr(&o));
 }
 
 #[test]
@@ -175,28 +131,17 @@ fn bad_recipes_are_refused_with_file_line_and_column() {
         ("negative-amount", ":5:30:", "must be above zero"),
         ("not-finite", ":5:30:", "not a finite number"),
         ("above-100", ":5:30:", "is above 100 %"),
-        (
-            "above-test-pressure",
-            ":9:20:",
-            "above the cylinder's test pressure",
-        ),
+        ("above-test-pressure", ":9:20:", "above the cylinder's test pressure"),
         ("negative-volume", ":8:32:", "water_capacity"),
         ("syntax", ":5:30:", "Expected string"),
-        (
-            "mass-above-test",
-            "mass-above-test.ron:",
-            "above the cylinder's test pressure",
-        ),
+        ("mass-above-test", "mass-above-test.ron:", "above the cylinder's test pressure"),
     ];
     for (file, place, needle) in cases {
         let path = format!("tests/recipes/bad/{file}.ron");
         let o = run(&["plan", &path]);
         assert_eq!(o.status.code(), Some(1), "{file}");
         let e = stderr(&o);
-        assert!(
-            e.contains(&format!("{path}{place}")) || e.contains(place),
-            "{file}: {e}"
-        );
+        assert!(e.contains(&format!("{path}{place}")) || e.contains(place), "{file}: {e}");
         assert!(e.contains(needle), "{file}: {e}");
     }
 }

@@ -47,14 +47,9 @@ fn published_gerg_2008_check_value() {
     let f = gerg(&ids);
     let s = f.state_tp(400.0, 50_000.0e3, &x).unwrap();
     let rho_mol_per_l = 1e-3 / s.molar_volume_m3;
-    assert!(
-        (rho_mol_per_l / 12.798_286_260_820_62 - 1.0).abs() < 1e-9,
-        "{rho_mol_per_l}"
-    );
+    assert!((rho_mol_per_l / 12.798_286_260_820_62 - 1.0).abs() < 1e-9, "{rho_mol_per_l}");
     // And back: the pressure at that density is 50 000 kPa.
-    let p = f
-        .pressure_tv(400.0, 1e-3 / 12.798_286_260_820_62, &x)
-        .unwrap();
+    let p = f.pressure_tv(400.0, 1e-3 / 12.798_286_260_820_62, &x).unwrap();
     assert!((p / 50_000.0e3 - 1.0).abs() < 1e-8, "{p}");
 }
 
@@ -100,15 +95,8 @@ fn pressure_from_density_agrees_with_teqp_to_1e_9() {
     assert!(f.states.len() >= 30);
     for s in &f.states {
         let ids: Vec<&str> = s.ids.iter().map(String::as_str).collect();
-        let p = gerg(&ids)
-            .pressure_tv(s.temperature_k, 1.0 / s.density_mol_m3, &s.x)
-            .unwrap();
-        assert!(
-            (p / s.pressure_pa - 1.0).abs() < 1e-9,
-            "{ids:?} T={}: {p} vs {}",
-            s.temperature_k,
-            s.pressure_pa
-        );
+        let p = gerg(&ids).pressure_tv(s.temperature_k, 1.0 / s.density_mol_m3, &s.x).unwrap();
+        assert!((p / s.pressure_pa - 1.0).abs() < 1e-9, "{ids:?} T={}: {p} vs {}", s.temperature_k, s.pressure_pa);
     }
 }
 
@@ -123,11 +111,7 @@ fn gerg_plan_step_targets_agree_with_teqp_to_1e_8() {
             .zip(&case.x)
             .enumerate()
             .map(|(i, (id, x))| {
-                let amount = if i == n - 1 {
-                    "balance".to_string()
-                } else {
-                    x.to_string()
-                };
+                let amount = if i == n - 1 { "balance".to_string() } else { x.to_string() };
                 format!("(gas: \"{id}\", amount: \"{amount}\")")
             })
             .collect();
@@ -143,18 +127,11 @@ fn gerg_plan_step_targets_agree_with_teqp_to_1e_8() {
             case.fill_temperature_k
         );
         let order = Recipe::load(&text, &case.label, &c).unwrap();
-        let options = PlanOptions {
-            model: Some(Model::Gerg),
-            ..PlanOptions::default()
-        };
+        let options = PlanOptions { model: Some(Model::Gerg), ..PlanOptions::default() };
         let p = plan::plan(&order, &c, &options).unwrap();
         let sequence: Vec<&str> = p.steps.iter().map(|s| s.source.as_str()).collect();
         assert_eq!(sequence, case.sequence);
-        assert!(
-            (p.totals.amount_mol / case.amount_mol - 1.0).abs() < 1e-8,
-            "{}",
-            case.label
-        );
+        assert!((p.totals.amount_mol / case.amount_mol - 1.0).abs() < 1e-8, "{}", case.label);
         for (s, want) in p.steps.iter().zip(&case.step_pressures_pa) {
             assert!(
                 (s.pressure_after_pa / want - 1.0).abs() < 1e-8,

@@ -24,22 +24,12 @@ fn density_error_bands_against_gerg_2008() {
     let catalogue = Catalogue::built_in();
     let devs = density_deviations(&catalogue);
     let expected_points: usize = GASES.iter().map(|g| g.2.len()).sum::<usize>() * MODELS.len();
-    assert_eq!(
-        devs.len(),
-        expected_points,
-        "every gas, pressure and model was computed"
-    );
+    assert_eq!(devs.len(), expected_points, "every gas, pressure and model was computed");
     for (gas, bands) in BANDS {
         for (model, band) in MODELS.iter().zip(bands) {
-            let worst = devs
-                .iter()
-                .filter(|d| d.gas == *gas && d.model == *model)
-                .map(|d| d.percent.abs())
-                .fold(0.0, f64::max);
-            assert!(
-                (worst - band).abs() < 0.05,
-                "{gas} {model}: worst {worst:.3} % vs pinned {band} %"
-            );
+            let worst =
+                devs.iter().filter(|d| d.gas == *gas && d.model == *model).map(|d| d.percent.abs()).fold(0.0, f64::max);
+            assert!((worst - band).abs() < 0.05, "{gas} {model}: worst {worst:.3} % vs pinned {band} %");
         }
     }
 }
@@ -49,19 +39,9 @@ fn ideal_gas_error_is_z_minus_one() {
     // Nitrogen at 15 °C and 200 bar has Z ≈ 1.048 (DOMAIN.md); the ideal density is off by Z − 1.
     let catalogue = Catalogue::built_in();
     let devs = density_deviations(&catalogue);
-    let d = devs
-        .iter()
-        .find(|d| d.gas == "N2" && d.pressure_bar == 200.0 && d.model.key() == "ideal")
-        .unwrap();
+    let d = devs.iter().find(|d| d.gas == "N2" && d.pressure_bar == 200.0 && d.model.key() == "ideal").unwrap();
     assert!((d.percent - 4.8).abs() < 0.1, "{}", d.percent);
     // Methane at 15 °C and 200 bar has Z ≈ 0.80 (DOMAIN.md).
-    let d = devs
-        .iter()
-        .find(|d| d.gas == "CH4" && d.pressure_bar == 200.0 && d.model.key() == "ideal")
-        .unwrap();
-    assert!(
-        (d.percent - (0.80 / 1.0 - 1.0) * 100.0).abs() < 1.0,
-        "{}",
-        d.percent
-    );
+    let d = devs.iter().find(|d| d.gas == "CH4" && d.pressure_bar == 200.0 && d.model.key() == "ideal").unwrap();
+    assert!((d.percent - (0.80 / 1.0 - 1.0) * 100.0).abs() < 1.0, "{}", d.percent);
 }

@@ -19,9 +19,7 @@ fn van_der_waals_molar_volume_of_co2_textbook_example() {
     let s = f.state_tp(500.0, 101_325.0 * 100.0, &[1.0]).unwrap();
     let v_l = s.molar_volume_m3 * 1e3;
     assert!((v_l - 0.366).abs() < 0.0005, "{v_l}");
-    let ideal = fluid(&["CO2"], Model::Ideal)
-        .state_tp(500.0, 101_325.0 * 100.0, &[1.0])
-        .unwrap();
+    let ideal = fluid(&["CO2"], Model::Ideal).state_tp(500.0, 101_325.0 * 100.0, &[1.0]).unwrap();
     assert!((ideal.molar_volume_m3 * 1e3 - 0.410).abs() < 0.0005);
 }
 
@@ -36,11 +34,7 @@ fn van_der_waals_uses_the_handbook_table_where_it_has_it() {
     assert!((p / 1e5 - 24.577).abs() < 1e-3);
     // Propane has no handbook entry in our table: the critical-constant a, b are used.
     let c = Catalogue::built_in();
-    assert!(c
-        .gas(c.index_of("C3H8").unwrap())
-        .record
-        .van_der_waals
-        .is_none());
+    assert!(c.gas(c.index_of("C3H8").unwrap()).record.van_der_waals.is_none());
 }
 
 #[test]

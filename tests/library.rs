@@ -4,9 +4,7 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 
 use fillwright::library::{atomic, check_name, Library, LibraryError, OnConflict, Saved};
-use fillwright::recipe::{
-    canonical, demo, ComponentLine, CylinderLine, FillTarget, Recipe, SourceLine,
-};
+use fillwright::recipe::{canonical, demo, ComponentLine, CylinderLine, FillTarget, Recipe, SourceLine};
 use proptest::prelude::*;
 
 fn temp_dir(tag: &str) -> PathBuf {
@@ -31,21 +29,9 @@ fn saving_an_unchanged_recipe_writes_nothing() {
     let (lib, dir) = seeded("unchanged");
     for (name, text) in demo::RECIPES {
         let opened = lib.open(name).unwrap();
-        let saved = lib
-            .save(
-                name,
-                &opened.recipe,
-                Some(&opened),
-                None,
-                T1,
-                OnConflict::Refuse,
-            )
-            .unwrap();
+        let saved = lib.save(name, &opened.recipe, Some(&opened), None, T1, OnConflict::Refuse).unwrap();
         assert_eq!(saved, Saved::Unchanged { revision: 1 });
-        assert_eq!(
-            std::fs::read_to_string(dir.join(format!("{name}.ron"))).unwrap(),
-            *text
-        );
+        assert_eq!(std::fs::read_to_string(dir.join(format!("{name}.ron"))).unwrap(), *text);
     }
     // Seeding again does nothing: the library is not empty.
     assert_eq!(lib.seed_demos_if_empty().unwrap(), 0);
@@ -58,75 +44,30 @@ fn a_change_makes_a_new_revision_and_keeps_the_old() {
     let mut r = opened.recipe.clone();
     r.components[2].amount = "14%".into();
     r.fill = FillTarget::Pressure("200bar".into());
-    let saved = lib.save(
-        "flue-gas-span",
-        &r,
-        Some(&opened),
-        Some("customer asked for 200 bar"),
-        T1,
-        OnConflict::Refuse,
-    );
-    let Saved::Written {
-        revision, changes, ..
-    } = saved.unwrap()
-    else {
-        panic!()
-    };
+    let saved =
+        lib.save("flue-gas-span", &r, Some(&opened), Some("customer asked for 200 bar"), T1, OnConflict::Refuse);
+    let Saved::Written { revision, changes, .. } = saved.unwrap() else { panic!() };
     assert_eq!(revision, 2);
-    assert_eq!(
-        changes,
-        vec!["CO2 15 → 14 %", "fill pressure 150 → 200 bar"]
-    );
+    assert_eq!(changes, vec!["CO2 15 → 14 %", "fill pressure 150 → 200 bar"]);
     let now = lib.open("flue-gas-span").unwrap();
     assert_eq!(now.recipe.revision, 2);
     assert_eq!(now.recipe.saved.as_deref(), Some(T1));
-    assert_eq!(
-        now.recipe.change_note.as_deref(),
-        Some("customer asked for 200 bar")
-    );
+    assert_eq!(now.recipe.change_note.as_deref(), Some("customer asked for 200 bar"));
     // Saving the same content again keeps revision 2.
-    let again = lib
-        .save(
-            "flue-gas-span",
-            &now.recipe,
-            Some(&now),
-            None,
-            T2,
-            OnConflict::Refuse,
-        )
-        .unwrap();
+    let again = lib.save("flue-gas-span", &now.recipe, Some(&now), None, T2, OnConflict::Refuse).unwrap();
     assert_eq!(again, Saved::Unchanged { revision: 2 });
-    let revs: Vec<u32> = lib
-        .history("flue-gas-span")
-        .unwrap()
-        .iter()
-        .map(|r| r.revision)
-        .collect();
+    let revs: Vec<u32> = lib.history("flue-gas-span").unwrap().iter().map(|r| r.revision).collect();
     assert_eq!(revs, vec![1, 2]);
-    assert_eq!(
-        lib.revision("flue-gas-span", 1).unwrap().components[2].amount,
-        "15%"
-    );
+    assert_eq!(lib.revision("flue-gas-span", 1).unwrap().components[2].amount, "15%");
     // Restoring revision 1 makes revision 3 with revision 1's content.
-    let Saved::Written {
-        revision, changes, ..
-    } = lib.restore("flue-gas-span", 1, T2).unwrap()
-    else {
-        panic!()
-    };
+    let Saved::Written { revision, changes, .. } = lib.restore("flue-gas-span", 1, T2).unwrap() else { panic!() };
     assert_eq!(revision, 3);
-    assert_eq!(
-        changes,
-        vec!["CO2 14 → 15 %", "fill pressure 200 → 150 bar"]
-    );
+    assert_eq!(changes, vec!["CO2 14 → 15 %", "fill pressure 200 → 150 bar"]);
     let r3 = lib.open("flue-gas-span").unwrap().recipe;
     assert_eq!(r3.components[2].amount, "15%");
     assert_eq!(r3.change_note.as_deref(), Some("restored revision 1"));
     assert_eq!(lib.history("flue-gas-span").unwrap().len(), 3);
-    assert!(matches!(
-        lib.revision("flue-gas-span", 9),
-        Err(LibraryError::NoRevision { .. })
-    ));
+    assert!(matches!(lib.revision("flue-gas-span", 9), Err(LibraryError::NoRevision { .. })));
 }
 
 #[test]
@@ -134,9 +75,8 @@ fn an_interrupted_write_leaves_the_old_file_intact() {
     let (lib, dir) = seeded("crash");
     let path = dir.join("pipeline-ng-9.ron");
     let before = std::fs::read_to_string(&path).unwrap();
-    let result = atomic::write_with(&path, b"Recipe(half a fi", || {
-        Err(std::io::Error::other("power cut before the rename"))
-    });
+    let result =
+        atomic::write_with(&path, b"Recipe(half a fi", || Err(std::io::Error::other("power cut before the rename")));
     assert!(result.is_err());
     assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
     assert!(lib.open("pipeline-ng-9").is_ok());
@@ -155,71 +95,28 @@ fn a_second_writer_is_detected_and_nothing_is_lost() {
     let bench_b = lib.open("lpg-in-methane").unwrap();
     let mut b = bench_b.recipe.clone();
     b.notes = "bench B was here".into();
-    lib.save(
-        "lpg-in-methane",
-        &b,
-        Some(&bench_b),
-        None,
-        T1,
-        OnConflict::Refuse,
-    )
-    .unwrap();
+    lib.save("lpg-in-methane", &b, Some(&bench_b), None, T1, OnConflict::Refuse).unwrap();
     let mut a = bench_a.recipe.clone();
     a.components[0].amount = "7%".into();
-    let e = lib
-        .save(
-            "lpg-in-methane",
-            &a,
-            Some(&bench_a),
-            None,
-            T2,
-            OnConflict::Refuse,
-        )
-        .unwrap_err();
+    let e = lib.save("lpg-in-methane", &a, Some(&bench_a), None, T2, OnConflict::Refuse).unwrap_err();
     assert!(matches!(e, LibraryError::ChangedOnDisk(_)), "{e}");
     assert!(e.to_string().contains("Reload"));
-    assert_eq!(
-        lib.open("lpg-in-methane").unwrap().recipe.notes,
-        "bench B was here"
-    );
+    assert_eq!(lib.open("lpg-in-methane").unwrap().recipe.notes, "bench B was here");
     // A's work can still go elsewhere, or over B's when A says so; B's stays in the history.
     lib.save_as("lpg-in-methane-a", &a, T2).unwrap();
-    let Saved::Written { revision, .. } = lib
-        .save(
-            "lpg-in-methane",
-            &a,
-            Some(&bench_a),
-            None,
-            T2,
-            OnConflict::Overwrite,
-        )
-        .unwrap()
+    let Saved::Written { revision, .. } =
+        lib.save("lpg-in-methane", &a, Some(&bench_a), None, T2, OnConflict::Overwrite).unwrap()
     else {
         panic!()
     };
     assert_eq!(revision, 3);
-    assert_eq!(
-        lib.revision("lpg-in-methane", 2).unwrap().notes,
-        "bench B was here"
-    );
+    assert_eq!(lib.revision("lpg-in-methane", 2).unwrap().notes, "bench B was here");
 }
 
 #[test]
 fn hostile_names_are_refused() {
-    for bad in [
-        "",
-        "../escape",
-        "a/b",
-        "a\\b",
-        "..",
-        ".hidden",
-        "con",
-        "NUL.txt",
-        "tab\there",
-        "x:y",
-        "end.",
-        " lead",
-    ] {
+    for bad in ["", "../escape", "a/b", "a\\b", "..", ".hidden", "con", "NUL.txt", "tab\there", "x:y", "end.", " lead"]
+    {
         assert!(check_name(bad).is_err(), "{bad:?} accepted");
     }
     for good in ["flue-gas-span", "NO span 80 ppm", "Gemisch-Nr.7", "ü-mix"] {
@@ -227,10 +124,7 @@ fn hostile_names_are_refused() {
     }
     let (lib, _dir) = seeded("names");
     let r = lib.open("flue-gas-span").unwrap().recipe;
-    assert!(matches!(
-        lib.save_as("../../etc/passwd", &r, T1),
-        Err(LibraryError::BadName { .. })
-    ));
+    assert!(matches!(lib.save_as("../../etc/passwd", &r, T1), Err(LibraryError::BadName { .. })));
 }
 
 #[test]
@@ -241,38 +135,14 @@ fn oversized_and_broken_files_do_not_stop_the_library() {
     let entries = lib.list().unwrap();
     assert_eq!(entries.len(), demo::RECIPES.len() + 2);
     let huge = entries.iter().find(|e| e.name == "huge").unwrap();
-    assert!(huge
-        .summary
-        .as_ref()
-        .unwrap_err()
-        .contains("larger than a recipe can be"));
+    assert!(huge.summary.as_ref().unwrap_err().contains("larger than a recipe can be"));
     let broken = entries.iter().find(|e| e.name == "broken").unwrap();
-    assert!(
-        broken
-            .summary
-            .as_ref()
-            .unwrap_err()
-            .contains("broken.ron:1:"),
-        "{:?}",
-        broken.summary
-    );
+    assert!(broken.summary.as_ref().unwrap_err().contains("broken.ron:1:"), "{:?}", broken.summary);
     assert!(entries.iter().filter(|e| e.summary.is_ok()).count() == demo::RECIPES.len());
-    let flue = entries
-        .iter()
-        .find(|e| e.name == "flue-gas-span")
-        .unwrap()
-        .summary
-        .as_ref()
-        .unwrap();
-    assert_eq!(
-        (flue.fill.as_str(), flue.cylinder.as_str(), flue.revision),
-        ("150bar", "10L, 200bar", 1)
-    );
+    let flue = entries.iter().find(|e| e.name == "flue-gas-span").unwrap().summary.as_ref().unwrap();
+    assert_eq!((flue.fill.as_str(), flue.cylinder.as_str(), flue.revision), ("150bar", "10L, 200bar", 1));
     // The broken file was left untouched.
-    assert_eq!(
-        std::fs::read_to_string(dir.join("broken.ron")).unwrap(),
-        "Recipe(format: 1, name: "
-    );
+    assert_eq!(std::fs::read_to_string(dir.join("broken.ron")).unwrap(), "Recipe(format: 1, name: ");
 }
 
 #[test]
@@ -280,23 +150,14 @@ fn copy_rename_delete_import_export() {
     let (lib, dir) = seeded("ops");
     lib.duplicate("flue-gas-span", "flue-copy", T1).unwrap();
     assert_eq!(lib.open("flue-copy").unwrap().recipe.revision, 1);
-    assert!(matches!(
-        lib.duplicate("flue-gas-span", "flue-copy", T1),
-        Err(LibraryError::Exists(_))
-    ));
+    assert!(matches!(lib.duplicate("flue-gas-span", "flue-copy", T1), Err(LibraryError::Exists(_))));
     lib.rename("flue-copy", "flue-renamed").unwrap();
-    assert!(matches!(
-        lib.open("flue-copy"),
-        Err(LibraryError::NotFound(_))
-    ));
+    assert!(matches!(lib.open("flue-copy"), Err(LibraryError::NotFound(_))));
     let trashed = lib.delete("flue-renamed", T2).unwrap();
     assert!(trashed.starts_with(dir.join(".trash")) && trashed.is_file());
     let out = dir.join("exported.txt");
     lib.export("nox-span-premix", &out).unwrap();
-    assert_eq!(
-        std::fs::read_to_string(&out).unwrap(),
-        demo::find("nox-span-premix").unwrap()
-    );
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), demo::find("nox-span-premix").unwrap());
     lib.import(&out, "nox-again", T1).unwrap();
     assert_eq!(
         lib.open("nox-again").unwrap().recipe.components,
@@ -315,11 +176,7 @@ fn git(dir: &Path, args: &[&str]) -> String {
         .env("GIT_COMMITTER_EMAIL", "bench1@example.invalid")
         .output()
         .unwrap();
-    assert!(
-        o.status.success(),
-        "git {args:?}: {}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    assert!(o.status.success(), "git {args:?}: {}", String::from_utf8_lossy(&o.stderr));
     String::from_utf8_lossy(&o.stdout).into_owned()
 }
 
@@ -335,28 +192,12 @@ fn saves_are_committed_when_the_library_is_a_git_work_tree() {
     let opened = lib.open("detector-test-ch4-air").unwrap();
     let mut r = opened.recipe.clone();
     r.components[0].amount = "2.5%".into();
-    let saved = lib.save(
-        "detector-test-ch4-air",
-        &r,
-        Some(&opened),
-        Some("new LEL reference"),
-        T1,
-        OnConflict::Refuse,
-    );
-    let Saved::Written {
-        git: Some(result), ..
-    } = saved.unwrap()
-    else {
-        panic!("no commit attempted")
-    };
+    let saved = lib.save("detector-test-ch4-air", &r, Some(&opened), Some("new LEL reference"), T1, OnConflict::Refuse);
+    let Saved::Written { git: Some(result), .. } = saved.unwrap() else { panic!("no commit attempted") };
     assert_eq!(result, Ok(()));
     let log = git(&dir, &["log", "-1", "--format=%s"]);
     assert_eq!(log.trim(), "detector-test-ch4-air rev 2: new LEL reference");
-    assert!(git(
-        &dir,
-        &["status", "--porcelain", "--", "detector-test-ch4-air.ron"]
-    )
-    .is_empty());
+    assert!(git(&dir, &["status", "--porcelain", "--", "detector-test-ch4-air.ron"]).is_empty());
 }
 
 fn text_strategy() -> impl Strategy<Value = String> {
@@ -364,16 +205,8 @@ fn text_strategy() -> impl Strategy<Value = String> {
 }
 
 fn recipe_strategy() -> impl Strategy<Value = Recipe> {
-    let component = (
-        text_strategy(),
-        text_strategy(),
-        proptest::option::of(text_strategy()),
-    )
-        .prop_map(|(gas, amount, tolerance)| ComponentLine {
-            gas,
-            amount,
-            tolerance,
-        });
+    let component = (text_strategy(), text_strategy(), proptest::option::of(text_strategy()))
+        .prop_map(|(gas, amount, tolerance)| ComponentLine { gas, amount, tolerance });
     let source = prop_oneof![
         text_strategy().prop_map(SourceLine::Pure),
         (text_strategy(), text_strategy()).prop_map(|(name, mix)| SourceLine::Premix { name, mix }),
@@ -384,11 +217,7 @@ fn recipe_strategy() -> impl Strategy<Value = Recipe> {
         text_strategy().prop_map(FillTarget::Amount),
     ];
     (
-        (
-            0u32..50,
-            proptest::option::of(text_strategy()),
-            proptest::option::of(text_strategy()),
-        ),
+        (0u32..50, proptest::option::of(text_strategy()), proptest::option::of(text_strategy())),
         (text_strategy(), text_strategy(), text_strategy()),
         proptest::collection::vec(component, 0..5),
         (
@@ -399,48 +228,37 @@ fn recipe_strategy() -> impl Strategy<Value = Recipe> {
             proptest::option::of(text_strategy()),
         ),
         fill,
-        (
-            text_strategy(),
-            proptest::option::of(text_strategy()),
-            text_strategy(),
-        ),
-        proptest::option::of(prop_oneof![
-            Just(fillwright::thermo::Model::Pr),
-            Just(fillwright::thermo::Model::Gerg)
-        ]),
+        (text_strategy(), proptest::option::of(text_strategy()), text_strategy()),
+        proptest::option::of(prop_oneof![Just(fillwright::thermo::Model::Pr), Just(fillwright::thermo::Model::Gerg)]),
         proptest::collection::vec(source, 0..3),
         proptest::collection::vec(text_strategy(), 0..3),
         text_strategy(),
     )
-        .prop_map(
-            |(stamp, names, components, cyl, fill, temps, model, sources, fill_order, notes)| {
-                Recipe {
-                    format: 1,
-                    revision: stamp.0,
-                    saved: stamp.1,
-                    change_note: stamp.2,
-                    name: names.0,
-                    description: names.1,
-                    order: names.2,
-                    components,
-                    cylinder: CylinderLine {
-                        water_capacity: cyl.0,
-                        working_pressure: cyl.1,
-                        test_pressure: cyl.2,
-                        tare: cyl.3,
-                        serial: cyl.4,
-                    },
-                    fill,
-                    reference_temperature: temps.0,
-                    fill_temperature: temps.1,
-                    ambient: temps.2,
-                    model,
-                    sources,
-                    fill_order,
-                    notes,
-                }
+        .prop_map(|(stamp, names, components, cyl, fill, temps, model, sources, fill_order, notes)| Recipe {
+            format: 1,
+            revision: stamp.0,
+            saved: stamp.1,
+            change_note: stamp.2,
+            name: names.0,
+            description: names.1,
+            order: names.2,
+            components,
+            cylinder: CylinderLine {
+                water_capacity: cyl.0,
+                working_pressure: cyl.1,
+                test_pressure: cyl.2,
+                tare: cyl.3,
+                serial: cyl.4,
             },
-        )
+            fill,
+            reference_temperature: temps.0,
+            fill_temperature: temps.1,
+            ambient: temps.2,
+            model,
+            sources,
+            fill_order,
+            notes,
+        })
 }
 
 proptest! {

@@ -14,10 +14,7 @@ fn demo_order(name: &str, c: &Catalogue) -> fillwright::recipe::Order {
 }
 
 fn with_model(model: Model) -> PlanOptions {
-    PlanOptions {
-        model: Some(model),
-        ..PlanOptions::default()
-    }
+    PlanOptions { model: Some(model), ..PlanOptions::default() }
 }
 
 #[test]
@@ -27,24 +24,15 @@ fn every_demo_recipe_plans_under_every_model() {
     for (name, _) in demo::RECIPES {
         let order = demo_order(name, &c);
         for model in Model::ALL {
-            let covered = order
-                .sources
-                .iter()
-                .flat_map(|s| s.composition.gases.iter())
-                .all(|&g| gerg::covers(c.gas(g).id()));
+            let covered =
+                order.sources.iter().flat_map(|s| s.composition.gases.iter()).all(|&g| gerg::covers(c.gas(g).id()));
             match plan::plan(&order, &c, &with_model(model)) {
                 Ok(p) => {
                     assert!(!p.steps.is_empty(), "{name} {model}");
                     let last = p.steps.last().unwrap();
                     // The last step's amounts at the reference temperature give the final pressure.
-                    let p_ref = p
-                        .fluid
-                        .pressure(p.totals.temperature_k, p.volume_m3, &last.amounts_after_mol)
-                        .unwrap();
-                    assert!(
-                        (p_ref / p.totals.pressure_pa - 1.0).abs() < 1e-12,
-                        "{name} {model}"
-                    );
+                    let p_ref = p.fluid.pressure(p.totals.temperature_k, p.volume_m3, &last.amounts_after_mol).unwrap();
+                    assert!((p_ref / p.totals.pressure_pa - 1.0).abs() < 1e-12, "{name} {model}");
                 }
                 Err(PlanError::Thermo(e)) if model == Model::Gerg && !covered => {
                     assert!(e.to_string().contains("does not cover"), "{name}: {e}");
@@ -67,10 +55,7 @@ fn ideal_plan_obeys_pv_nrt_at_every_step() {
             assert!((pv_nrt - 1.0).abs() < 1e-12, "{name}: {pv_nrt}");
         }
         let t = &p.totals;
-        assert!(
-            (t.pressure_pa * p.volume_m3 / (t.amount_mol * R * t.temperature_k) - 1.0).abs()
-                < 1e-12
-        );
+        assert!((t.pressure_pa * p.volume_m3 / (t.amount_mol * R * t.temperature_k) - 1.0).abs() < 1e-12);
     }
 }
 
@@ -112,13 +97,7 @@ fn vdw_and_pr_step_targets_agree_with_thermo_to_1e_8() {
             .iter()
             .zip(&fp.x)
             .enumerate()
-            .map(|(i, (id, x))| {
-                if i == fp.ids.len() - 1 {
-                    format!("{id}=balance")
-                } else {
-                    format!("{id}={x}")
-                }
-            })
+            .map(|(i, (id, x))| if i == fp.ids.len() - 1 { format!("{id}=balance") } else { format!("{id}={x}") })
             .collect();
         let order_text = format!(
             "Recipe(format: 1, name: \"{}\", components: [{}], cylinder: (water_capacity: \"{}L\", \
@@ -143,11 +122,7 @@ fn vdw_and_pr_step_targets_agree_with_thermo_to_1e_8() {
             let p = plan::plan(&order, &c, &with_model(model)).unwrap();
             let sequence: Vec<&str> = p.steps.iter().map(|s| s.source.as_str()).collect();
             assert_eq!(sequence, fp.sequence, "{} {key}: fill order", fp.label);
-            assert!(
-                (p.totals.amount_mol / want.amount_mol - 1.0).abs() < 1e-8,
-                "{} {key} amount",
-                fp.label
-            );
+            assert!((p.totals.amount_mol / want.amount_mol - 1.0).abs() < 1e-8, "{} {key} amount", fp.label);
             for (s, w) in p.steps.iter().zip(&want.step_pressures_pa) {
                 assert!(
                     (s.pressure_after_pa / w - 1.0).abs() < 1e-8,
@@ -170,31 +145,12 @@ fn plan_masses_give_back_the_target_composition_by_iso_6142() {
         let parents: Vec<(&Composition, f64)> = p
             .steps
             .iter()
-            .map(|s| {
-                (
-                    &order
-                        .sources
-                        .iter()
-                        .find(|src| src.name == s.source)
-                        .unwrap()
-                        .composition,
-                    s.add_mass_g,
-                )
-            })
+            .map(|s| (&order.sources.iter().find(|src| src.name == s.source).unwrap().composition, s.add_mass_g))
             .collect();
         let made = composition_from_masses(&parents, &c);
         for (g, x) in made.gases.iter().zip(&made.fractions) {
-            let target = p
-                .components
-                .iter()
-                .find(|r| r.gas == *g)
-                .unwrap()
-                .mole_fraction;
-            assert!(
-                (x - target).abs() <= 1e-12 * target.max(1e-3),
-                "{name} {}: {x} vs {target}",
-                c.gas(*g).id()
-            );
+            let target = p.components.iter().find(|r| r.gas == *g).unwrap().mole_fraction;
+            assert!((x - target).abs() <= 1e-12 * target.max(1e-3), "{name} {}: {x} vs {target}", c.gas(*g).id());
         }
     }
 }
@@ -217,13 +173,7 @@ fn mass_and_mole_fractions_of_dry_air() {
         .iter()
         .zip(&air.fractions)
         .map(|(&g, x)| {
-            (
-                Composition {
-                    gases: vec![g],
-                    fractions: vec![1.0],
-                },
-                1000.0 * x * c.gas(g).molar_mass_g_per_mol / m,
-            )
+            (Composition { gases: vec![g], fractions: vec![1.0] }, 1000.0 * x * c.gas(g).molar_mass_g_per_mol / m)
         })
         .collect();
     let refs: Vec<(&Composition, f64)> = parts.iter().map(|(c, m)| (c, *m)).collect();
@@ -242,14 +192,8 @@ fn premix_source_is_dosed_exactly() {
     let premix = p.steps.iter().find(|s| s.source == "NO 1% in N2").unwrap();
     assert!((premix.add_amount_mol / p.totals.amount_mol - 0.008).abs() < 1e-14);
     let n2 = p.steps.iter().find(|s| s.source == "N2").unwrap();
-    assert!(
-        ((premix.add_amount_mol + n2.add_amount_mol) / p.totals.amount_mol - 1.0).abs() < 1e-14
-    );
-    assert_eq!(
-        p.steps.last().unwrap().source,
-        "N2",
-        "the balance gas goes last"
-    );
+    assert!(((premix.add_amount_mol + n2.add_amount_mol) / p.totals.amount_mol - 1.0).abs() < 1e-14);
+    assert_eq!(p.steps.last().unwrap().source, "N2", "the balance gas goes last");
 }
 
 #[test]
@@ -263,9 +207,7 @@ fn unreachable_targets_are_reported_component_by_component() {
         sources: [Premix(name: "CO 1% in N2", mix: "CO=1%,N2=balance"), Pure("CO2")])"#;
     let order = Recipe::load(text, "cannot", &c).unwrap();
     let e = plan::plan(&order, &c, &with_model(Model::Pr)).unwrap_err();
-    let PlanError::Unreachable(rows) = &e else {
-        panic!("{e}")
-    };
+    let PlanError::Unreachable(rows) = &e else { panic!("{e}") };
     let ids: Vec<&str> = rows.iter().map(|r| r.id.as_str()).collect();
     assert!(ids.contains(&"CO") && ids.contains(&"N2"), "{ids:?}");
     let msg = e.to_string();
@@ -307,18 +249,8 @@ fn the_fill_order_can_be_given_and_is_checked() {
         ..PlanOptions::default()
     };
     let p = plan::plan(&order, &c, &ordered(&["N2", "CO2", "CH4", "CO"])).unwrap();
-    assert_eq!(
-        p.steps
-            .iter()
-            .map(|s| s.source.as_str())
-            .collect::<Vec<_>>(),
-        ["N2", "CO2", "CH4", "CO"]
-    );
-    for bad in [
-        &["N2", "CO2", "CH4"][..],
-        &["N2", "CO2", "CH4", "CO", "CO"],
-        &["N2", "CO2", "CH4", "Xe"],
-    ] {
+    assert_eq!(p.steps.iter().map(|s| s.source.as_str()).collect::<Vec<_>>(), ["N2", "CO2", "CH4", "CO"]);
+    for bad in [&["N2", "CO2", "CH4"][..], &["N2", "CO2", "CH4", "CO", "CO"], &["N2", "CO2", "CH4", "Xe"]] {
         let e = plan::plan(&order, &c, &ordered(bad)).unwrap_err();
         assert!(matches!(e, PlanError::Order(_)), "{bad:?}: {e}");
     }
@@ -357,16 +289,8 @@ fn following_a_models_own_readings_reproduces_its_target() {
     }
     // Stopping at the ideal readings puts CO2 high: the real gas is more compressible,
     // so more CO2 fits under its ideal target (DOMAIN.md: about 11 % relative for this kind of blend).
-    let ideal = own
-        .rows
-        .iter()
-        .find(|r| r.targets_of == Model::Ideal)
-        .unwrap();
-    let co2 = p
-        .gases
-        .iter()
-        .position(|&g| c.gas(g).id() == "CO2")
-        .unwrap();
+    let ideal = own.rows.iter().find(|r| r.targets_of == Model::Ideal).unwrap();
+    let co2 = p.gases.iter().position(|&g| c.gas(g).id() == "CO2").unwrap();
     assert!(ideal.relative_error_percent[co2] > 8.0 && ideal.relative_error_percent[co2] < 15.0);
     // GERG-2008 covers every gas, so the comparison is also judged by it.
     assert!(p.following.iter().any(|f| f.truth == Model::Gerg));

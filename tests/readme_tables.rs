@@ -9,19 +9,13 @@ fn readme() -> String {
 #[test]
 fn density_table_is_current() {
     let table = fillwright::thermo::survey::markdown_table(&Catalogue::built_in());
-    assert!(
-        readme().contains(&table),
-        "run `cargo run --example density_table` and paste into README.md"
-    );
+    assert!(readme().contains(&table), "run `cargo run --example density_table` and paste into README.md");
 }
 
 #[test]
 fn accuracy_table_is_current() {
     let table = fillwright::plan::accuracy::markdown_table(&Catalogue::built_in());
-    assert!(
-        readme().contains(&table),
-        "run `cargo run --example accuracy_table` and paste into README.md"
-    );
+    assert!(readme().contains(&table), "run `cargo run --example accuracy_table` and paste into README.md");
 }
 
 #[test]
@@ -30,10 +24,7 @@ fn accuracy_rows_judge_by_gerg_where_it_covers() {
     let rows = fillwright::plan::accuracy::demo_rows(&c);
     assert_eq!(rows.len(), fillwright::recipe::demo::RECIPES.len());
     for r in &rows {
-        let gerg = r
-            .worst
-            .iter()
-            .find(|w| w.0 == fillwright::thermo::Model::Gerg);
+        let gerg = r.worst.iter().find(|w| w.0 == fillwright::thermo::Model::Gerg);
         match r.truth {
             fillwright::thermo::Model::Gerg => {
                 assert!(gerg.unwrap().2.abs() < 1e-8, "{}", r.recipe)
@@ -44,17 +35,9 @@ fn accuracy_rows_judge_by_gerg_where_it_covers() {
     // DOMAIN.md: on a four-component 150 bar blend an ideal plan puts CO2 about 11 %
     // relative high and a van der Waals plan about 7 %, judged by GERG-2008.
     let flue = rows.iter().find(|r| r.recipe == "flue-gas-span").unwrap();
-    let ideal = flue
-        .worst
-        .iter()
-        .find(|w| w.0 == fillwright::thermo::Model::Ideal)
-        .unwrap();
+    let ideal = flue.worst.iter().find(|w| w.0 == fillwright::thermo::Model::Ideal).unwrap();
     assert_eq!(ideal.1, "CO2");
     assert!((ideal.2 - 11.0).abs() < 1.5, "{}", ideal.2);
-    let vdw = flue
-        .worst
-        .iter()
-        .find(|w| w.0 == fillwright::thermo::Model::Vdw)
-        .unwrap();
+    let vdw = flue.worst.iter().find(|w| w.0 == fillwright::thermo::Model::Vdw).unwrap();
     assert!((vdw.2 - 7.0).abs() < 1.0, "{}", vdw.2);
 }

@@ -60,12 +60,7 @@ fn cubic_models_agree_with_thermo_to_1e_9() {
     let mut checked = 0;
     for s in &f.states {
         let comps: Vec<CubicComponent> = (0..s.ids.len())
-            .map(|i| CubicComponent {
-                tc_k: s.tc_k[i],
-                pc_pa: s.pc_pa[i],
-                omega: s.omega[i],
-                tabulated_ab: None,
-            })
+            .map(|i| CubicComponent { tc_k: s.tc_k[i], pc_pa: s.pc_pa[i], omega: s.omega[i], tabulated_ab: None })
             .collect();
         let zero = vec![vec![0.0; s.ids.len()]; s.ids.len()];
         for (name, kind, kij) in [
@@ -77,16 +72,8 @@ fn cubic_models_agree_with_thermo_to_1e_9() {
             let want = &s.models[name];
             let m = cubic::mix(kind, &comps, kij, &s.x, s.temperature_k);
             let sol = cubic::solve_z(kind, &m, s.temperature_k, s.pressure_pa).unwrap();
-            let at = format!(
-                "{name} {:?} x={:?} T={} P={}",
-                s.ids, s.x, s.temperature_k, s.pressure_pa
-            );
-            assert!(
-                rel(sol.z, want.z) < 1e-9,
-                "Z {} vs {} at {at}",
-                sol.z,
-                want.z
-            );
+            let at = format!("{name} {:?} x={:?} T={} P={}", s.ids, s.x, s.temperature_k, s.pressure_pa);
+            assert!(rel(sol.z, want.z) < 1e-9, "Z {} vs {} at {at}", sol.z, want.z);
             let root_name = match sol.root {
                 Root::Single => "single",
                 Root::VapourOfThree => "vapour",
@@ -94,18 +81,11 @@ fn cubic_models_agree_with_thermo_to_1e_9() {
             };
             assert_eq!(root_name, want.root, "root at {at}");
             let p = cubic::pressure(kind, &m, s.temperature_k, want.molar_volume_m3);
-            assert!(
-                rel(p, s.pressure_pa) < 1e-9,
-                "P {p} vs {} at {at}",
-                s.pressure_pa
-            );
+            assert!(rel(p, s.pressure_pa) < 1e-9, "P {p} vs {} at {at}", s.pressure_pa);
             let ln_phi = cubic::ln_phi(kind, &m, &sol);
             for (got, w) in ln_phi.iter().zip(&want.ln_phi) {
                 // Relative 1e-9, taken against max(|ln φ|, 1) since ln φ crosses zero.
-                assert!(
-                    (got - w).abs() < 1e-9 * w.abs().max(1.0),
-                    "ln φ {got} vs {w} at {at}"
-                );
+                assert!((got - w).abs() < 1e-9 * w.abs().max(1.0), "ln φ {got} vs {w} at {at}");
             }
             checked += 1;
         }

@@ -41,10 +41,7 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
     let seeded = lib.seed_demos_if_empty()?;
     if seeded > 0 {
-        eprintln!(
-            "fillwright: the library was empty; copied {seeded} demo recipes into {}",
-            lib.dir().display()
-        );
+        eprintln!("fillwright: the library was empty; copied {seeded} demo recipes into {}", lib.dir().display());
     }
     let entries = lib.list()?;
     if args.format == Format::Json {
@@ -59,10 +56,7 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
     }
     println!("library {}", lib.dir().display());
     // 80 columns: long names and titles are cut with an ellipsis.
-    println!(
-        "{:<22} {:>8} {:>13} {:>3}  recipe",
-        "name", "fill", "cylinder", "rev"
-    );
+    println!("{:<22} {:>8} {:>13} {:>3}  recipe", "name", "fill", "cylinder", "rev");
     for e in &entries {
         match &e.summary {
             Ok(s) => println!(
@@ -106,20 +100,12 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         return Ok(());
     }
     if let Some(pair) = &args.diff {
-        let (a, b) = (
-            lib.revision(&args.name, pair[0])?,
-            lib.revision(&args.name, pair[1])?,
-        );
+        let (a, b) = (lib.revision(&args.name, pair[0])?, lib.revision(&args.name, pair[1])?);
         let list = changes::describe(&a, &b);
         if args.format == Format::Json {
-            print_json(
-                &json!({"name": args.name, "from": pair[0], "to": pair[1], "changes": list}),
-            );
+            print_json(&json!({"name": args.name, "from": pair[0], "to": pair[1], "changes": list}));
         } else if list.is_empty() {
-            println!(
-                "{} revisions {} and {} are the same order",
-                args.name, pair[0], pair[1]
-            );
+            println!("{} revisions {} and {} are the same order", args.name, pair[0], pair[1]);
         } else {
             println!("{} revision {} → {}:", args.name, pair[0], pair[1]);
             for c in list {
@@ -130,21 +116,14 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     }
     let revs = lib.history(&args.name)?;
     if args.format == Format::Json {
-        print_json(
-            &json!({"name": args.name, "revisions": revs.iter().map(|r| json!({
+        print_json(&json!({"name": args.name, "revisions": revs.iter().map(|r| json!({
             "revision": r.revision, "saved": r.saved, "note": r.note,
-        })).collect::<Vec<_>>()}),
-        );
+        })).collect::<Vec<_>>()}));
         return Ok(());
     }
     println!("{:>4}  {:<21} note", "rev", "saved (UTC)");
     for r in &revs {
-        println!(
-            "{:>4}  {:<21} {}",
-            r.revision,
-            r.saved.as_deref().unwrap_or("-"),
-            r.note.as_deref().unwrap_or("")
-        );
+        println!("{:>4}  {:<21} {}", r.revision, r.saved.as_deref().unwrap_or("-"), r.note.as_deref().unwrap_or(""));
     }
     Ok(())
 }
@@ -152,11 +131,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
 fn report_save(name: &str, saved: Saved) {
     match saved {
         Saved::Unchanged { revision } => println!("{name}: unchanged, still revision {revision}"),
-        Saved::Written {
-            revision,
-            changes,
-            git,
-        } => {
+        Saved::Written { revision, changes, git } => {
             println!("{name}: saved revision {revision} ({})", changes.join("; "));
             if let Some(Err(e)) = git {
                 eprintln!("fillwright: saved, but not committed: {e}");
@@ -194,11 +169,7 @@ pub fn tidy(args: &TidyArgs) -> Result<(), Failure> {
     if untidy.is_empty() {
         Ok(())
     } else {
-        Err(Refused(format!(
-            "not in canonical form (run `fillwright tidy` on them): {}",
-            untidy.join(", ")
-        ))
-        .into())
+        Err(Refused(format!("not in canonical form (run `fillwright tidy` on them): {}", untidy.join(", "))).into())
     }
 }
 
@@ -217,12 +188,7 @@ pub fn import(args: &ImportArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
     let name = match &args.name {
         Some(n) => n.clone(),
-        None => args
-            .file
-            .file_stem()
-            .and_then(|s| s.to_str())
-            .unwrap_or_default()
-            .to_string(),
+        None => args.file.file_stem().and_then(|s| s.to_str()).unwrap_or_default().to_string(),
     };
     report_save(&name, lib.import(&args.file, &name, &clock::now_utc())?);
     Ok(())
@@ -253,12 +219,7 @@ pub struct TwoNames {
 }
 
 pub fn copy(args: &TwoNames) -> Result<(), Failure> {
-    report_save(
-        &args.to,
-        args.place
-            .open()?
-            .duplicate(&args.from, &args.to, &clock::now_utc())?,
-    );
+    report_save(&args.to, args.place.open()?.duplicate(&args.from, &args.to, &clock::now_utc())?);
     Ok(())
 }
 
@@ -285,9 +246,6 @@ fn clip(s: &str, width: usize) -> String {
     if s.chars().count() <= width {
         s.to_string()
     } else {
-        s.chars()
-            .take(width - 1)
-            .chain(std::iter::once('…'))
-            .collect()
+        s.chars().take(width - 1).chain(std::iter::once('…')).collect()
     }
 }

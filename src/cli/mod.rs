@@ -1,9 +1,10 @@
 //! The command line: parse, call the core, present. Exit status 0 success, 1 input refused,
 //! 2 wrong usage (INTERFACE.md).
 
+mod check;
 mod gases;
 mod library;
-mod plan;
+pub mod plan;
 mod state;
 
 use std::process::ExitCode;
@@ -38,6 +39,9 @@ enum Command {
     State(state::StateArgs),
     /// The fill plan: what to add, and the pressure and scale readings at which to stop.
     Plan(plan::PlanArgs),
+    /// Screen a blend before the fill: condensation, pressure rating, flammability,
+    /// oxidising ability, toxicity, incompatible pairs. Exit status 3 when something is at stop.
+    Check(check::CheckArgs),
     /// List the recipe library (copies the demo recipes in when it is empty).
     List(library::ListArgs),
     /// The revisions of a recipe; --diff A B shows what changed, --restore REV brings one back.
@@ -87,8 +91,9 @@ impl Common {
     /// Ambient pressure, Pa: the option, else the setting.
     pub fn ambient_pa(&self, settings: &Resolved) -> Result<f64, Refused> {
         match &self.ambient {
-            Some(text) => units::parse_pressure(text, STANDARD_AMBIENT_PA)
-                .map_err(|e| Refused(format!("--ambient: {e}"))),
+            Some(text) => {
+                units::parse_pressure(text, STANDARD_AMBIENT_PA).map_err(|e| Refused(format!("--ambient: {e}")))
+            }
             None => Ok(settings.ambient_pa),
         }
     }
@@ -103,9 +108,7 @@ pub fn choose_model(
     catalogue: &Catalogue,
     settings: &Resolved,
 ) -> Model {
-    asked
-        .or(settings.default_model)
-        .unwrap_or_else(|| crate::plan::default_model(&composition.gases, catalogue))
+    asked.or(settings.default_model).unwrap_or_else(|| crate::plan::default_model(&composition.gases, catalogue))
 }
 
 /// Input that was refused: exit status 1 with this message.
@@ -123,6 +126,8 @@ impl<E: std::error::Error> From<E> for Refused {
 pub enum Failure {
     Refused(Refused),
     Usage(String),
+    /// A screening finding at the highest severity: exit status 3 (the report is printed).
+    Findings,
 }
 
 impl<T: Into<Refused>> From<T> for Failure {
@@ -150,6 +155,7 @@ pub fn main() -> ExitCode {
         Some(Command::State(args)) => state::run(&args),
         Some(Command::Plan(args)) => plan::run(&args),
         Some(Command::Gases(args)) => gases::run(&args),
+        Some(Command::Check(args)) => check::run(&args),
         Some(Command::List(args)) => library::list(&args),
         Some(Command::History(args)) => library::history(&args),
         Some(Command::Tidy(args)) => library::tidy(&args),
@@ -169,13 +175,11 @@ pub fn main() -> ExitCode {
             eprintln!("fillwright: {message}");
             ExitCode::from(2)
         }
+        Err(Failure::Findings) => ExitCode::from(3),
     }
 }
 
 /// Print a JSON value (numbers at full precision).
 pub fn print_json(value: &serde_json::Value) {
-    println!(
-        "{}",
-        serde_json::to_string_pretty(value).unwrap_or_default()
-    );
+    println!("{}", serde_json::to_string_pretty(value).unwrap_or_default());
 }

@@ -9,34 +9,21 @@ use crate::gas::Catalogue;
 use crate::mixture::{self, Composition};
 use crate::plan::{self, Plan, PlanOptions, Resolutions, StepFlag};
 use crate::recipe::{Fill, Order, Recipe, Source, Target};
-use crate::settings::Resolved;
 use crate::thermo::MAX_PRESSURE_PA;
 use crate::units::{self, bar, celsius, litres, Sig};
 
 #[derive(Debug, Args)]
-#[command(
-    after_help = "Give a recipe (a library name, a demo recipe name or a .ron file), or the order with \
+#[command(after_help = "Give a recipe (a library name, a demo recipe name or a .ron file), or the order with \
                         --mix, --volume, --pressure and --temp.\n\n\
                         Examples:\n  fillwright plan flue-gas-span\n  \
                         fillwright plan mixtures/pipeline-ng-9.ron --fill-temp 28C --model pr\n  \
-                        fillwright plan --mix \"CO2=15%,N2=balance\" --volume 10L --pressure 150bar --temp 15C --format csv"
-)]
+                        fillwright plan --mix \"CO2=15%,N2=balance\" --volume 10L --pressure 150bar --temp 15C --format csv")]
 pub struct PlanArgs {
     /// Recipe: a name in the library, a demo recipe name, or a path to a .ron file.
     #[arg(value_name = "RECIPE", conflicts_with = "mix")]
     pub recipe: Option<String>,
-    /// Target mixture, as for `state`: "CO=500ppm,CO2=15%,N2=balance".
-    #[arg(long, value_name = "SPEC", requires_all = ["volume", "pressure"])]
-    pub mix: Option<String>,
-    /// Cylinder water capacity (with --mix): 10L, 0.05m3.
-    #[arg(long, value_name = "V", allow_hyphen_values = true)]
-    pub volume: Option<String>,
-    /// Final pressure at --temp (with --mix): 150bar, 2200psig.
-    #[arg(long, value_name = "P", allow_hyphen_values = true)]
-    pub pressure: Option<String>,
-    /// Temperature at which the final pressure is meant (with --mix); default 15C.
-    #[arg(long, value_name = "T", allow_hyphen_values = true)]
-    pub temp: Option<String>,
+    #[command(flatten)]
+    pub given: OrderArgs,
     /// Cylinder temperature during the fill: the stop readings are computed for it.
     /// Default: the recipe's fill temperature, or --temp.
     #[arg(long, value_name = "T", allow_hyphen_values = true)]
@@ -44,12 +31,6 @@ pub struct PlanArgs {
     /// Fill order: every source exactly once, comma-separated (pure gases by id, premixes by name).
     #[arg(long, value_name = "ID,ID,…", value_delimiter = ',')]
     pub order: Option<Vec<String>>,
-    /// Cylinder working pressure at 15 °C (with --mix), for the rating note.
-    #[arg(long, value_name = "P")]
-    pub working_pressure: Option<String>,
-    /// Cylinder test pressure (with --mix): a fill above it is refused.
-    #[arg(long, value_name = "P")]
-    pub test_pressure: Option<String>,
     /// Smallest pressure step the fill gauge resolves; smaller steps are flagged.
     /// Default: the settings file's, else 0.1bar.
     #[arg(long, value_name = "P")]
@@ -68,18 +49,16 @@ pub struct PlanArgs {
 pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let settings = config::load_settings().map_err(Refused)?;
-    let (order, origin) = match (&args.recipe, &args.mix) {
+    let (order, origin) = match (&args.recipe, &args.given.mix) {
         (Some(name), _) => {
             let (text, origin) = config::recipe_text(name, args.library.as_deref()).map_err(Refused)?;
             (Recipe::load(&text, &origin, &catalogue)?, Some(origin))
         }
-        (None, Some(_)) => (order_from_args(args, &catalogue, &settings)?, None),
-        (None, None) => {
-            return Err(Failure::Usage(
-                "plan needs a recipe (name or file) or --mix with --volume and --pressure; see `fillwright plan --help`"
-                    .into(),
-            ))
-        }
+        (None, Some(_)) => (args.given.order(args.common.ambient_pa(&settings)?, &catalogue)?, None),
+        (None, None) => return Err(Failure::Usage(
+            "plan needs a recipe (name or file) or --mix with --volume and --pressure; see `fillwright plan --help`"
+                .into(),
+        )),
     };
     let ambient = order.ambient_pa;
     let fill_temperature_k = args
@@ -89,16 +68,13 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         .transpose()
         .map_err(|e| Refused(format!("--fill-temp: {e}")))?;
     let gauge_pa = match &args.gauge_resolution {
-        Some(text) => units::parse_pressure(text, 0.0)
-            .map_err(|e| Refused(format!("--gauge-resolution: {e}")))?,
+        Some(text) => units::parse_pressure(text, 0.0).map_err(|e| Refused(format!("--gauge-resolution: {e}")))?,
         None => settings.gauge_resolution_pa,
     };
     let scale_g = match args.scale_resolution.as_deref().map(units::parse_amount) {
         None => settings.scale_resolution_g,
         Some(Ok(units::AmountInput::Grams(g))) => g,
-        Some(Ok(_)) => {
-            return Err(Refused("--scale-resolution must be a mass such as 0.1g".into()).into())
-        }
+        Some(Ok(_)) => return Err(Refused("--scale-resolution must be a mass such as 0.1g".into()).into()),
         Some(Err(e)) => return Err(Refused(format!("--scale-resolution: {e}")).into()),
     };
     let options = PlanOptions {
@@ -115,70 +91,89 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     match args.common.format {
         Format::Json => print_json(&plan_json(&plan, &order, &catalogue)),
         Format::Csv => print!("{}", steps_csv(&plan)),
-        Format::Text => print!(
-            "{}",
-            fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient)
-        ),
+        Format::Text => print!("{}", fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient)),
     }
     Ok(())
 }
 
-/// An order from `--mix`, `--volume`, `--pressure`, `--temp`.
-fn order_from_args(
-    args: &PlanArgs,
-    catalogue: &Catalogue,
-    settings: &Resolved,
-) -> Result<Order, Refused> {
-    let ambient = args.common.ambient_pa(settings)?;
-    let spec = args.mix.as_deref().unwrap_or_default();
-    let parts = mixture::parse_spec(spec, catalogue).map_err(|e| Refused(format!("--mix: {e}")))?;
-    let volume = units::parse_volume(args.volume.as_deref().unwrap_or_default())
-        .map_err(|e| Refused(format!("--volume: {e}")))?;
-    let pressure = units::parse_pressure(args.pressure.as_deref().unwrap_or_default(), ambient)
-        .map_err(|e| Refused(format!("--pressure: {e}")))?;
-    let t_ref = units::parse_temperature(args.temp.as_deref().unwrap_or("15C"))
-        .map_err(|e| Refused(format!("--temp: {e}")))?;
-    let rating = |text: &Option<String>, what: &str| -> Result<Option<f64>, Refused> {
-        text.as_deref()
-            .map(|t| units::parse_pressure(t, ambient))
-            .transpose()
-            .map_err(|e| Refused(format!("--{what}: {e}")))
-    };
-    let working = rating(&args.working_pressure, "working-pressure")?.unwrap_or(MAX_PRESSURE_PA);
-    let test = rating(&args.test_pressure, "test-pressure")?.unwrap_or(MAX_PRESSURE_PA);
-    if pressure > test {
-        return Err(Refused(format!(
-            "--pressure {:.2} bar is above --test-pressure {:.2} bar; this fill must not be made",
-            bar(pressure),
-            bar(test)
-        )));
+/// An order given on the command line instead of a recipe.
+#[derive(Debug, Clone, Args)]
+pub struct OrderArgs {
+    /// Target mixture, as for `state`: "CO=500ppm,CO2=15%,N2=balance".
+    #[arg(long, value_name = "SPEC", requires_all = ["volume", "pressure"])]
+    pub mix: Option<String>,
+    /// Cylinder water capacity (with --mix): 10L, 0.05m3.
+    #[arg(long, value_name = "V", allow_hyphen_values = true)]
+    pub volume: Option<String>,
+    /// Final pressure at --temp (with --mix): 150bar, 2200psig.
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
+    pub pressure: Option<String>,
+    /// Temperature at which the final pressure is meant (with --mix); default 15C.
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
+    pub temp: Option<String>,
+    /// Cylinder working pressure at 15 °C (with --mix), for the rating check.
+    #[arg(long, value_name = "P")]
+    pub working_pressure: Option<String>,
+    /// Cylinder test pressure (with --mix): a fill above it is refused.
+    #[arg(long, value_name = "P")]
+    pub test_pressure: Option<String>,
+}
+
+impl OrderArgs {
+    /// The order, with pure sources for every component.
+    pub fn order(&self, ambient: f64, catalogue: &Catalogue) -> Result<Order, Refused> {
+        let spec = self.mix.as_deref().unwrap_or_default();
+        let parts = mixture::parse_spec(spec, catalogue).map_err(|e| Refused(format!("--mix: {e}")))?;
+        let volume = units::parse_volume(self.volume.as_deref().unwrap_or_default())
+            .map_err(|e| Refused(format!("--volume: {e}")))?;
+        let pressure = units::parse_pressure(self.pressure.as_deref().unwrap_or_default(), ambient)
+            .map_err(|e| Refused(format!("--pressure: {e}")))?;
+        let t_ref = units::parse_temperature(self.temp.as_deref().unwrap_or("15C"))
+            .map_err(|e| Refused(format!("--temp: {e}")))?;
+        let rating = |text: &Option<String>, what: &str| -> Result<Option<f64>, Refused> {
+            text.as_deref()
+                .map(|t| units::parse_pressure(t, ambient))
+                .transpose()
+                .map_err(|e| Refused(format!("--{what}: {e}")))
+        };
+        let working = rating(&self.working_pressure, "working-pressure")?.unwrap_or(MAX_PRESSURE_PA);
+        let test = rating(&self.test_pressure, "test-pressure")?.unwrap_or(MAX_PRESSURE_PA);
+        if pressure > test {
+            return Err(Refused(format!(
+                "--pressure {:.2} bar is above --test-pressure {:.2} bar; this fill must not be made",
+                bar(pressure),
+                bar(test)
+            )));
+        }
+        Ok(build_order(parts, volume, pressure, t_ref, working, test, ambient, catalogue))
     }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn build_order(
+    parts: Vec<mixture::Part>,
+    volume: f64,
+    pressure: f64,
+    t_ref: f64,
+    working: f64,
+    test: f64,
+    ambient: f64,
+    catalogue: &Catalogue,
+) -> Order {
     let composition = Composition::from_parts(&parts);
-    let targets: Vec<Target> = parts
-        .iter()
-        .map(|p| Target {
-            gas: p.gas,
-            share: p.share,
-            tolerance: None,
-        })
-        .collect();
-    let balance = targets
-        .iter()
-        .position(|t| t.share == mixture::Share::Balance);
+    let targets: Vec<Target> = parts.iter().map(|p| Target { gas: p.gas, share: p.share, tolerance: None }).collect();
+    let balance = targets.iter().position(|t| t.share == mixture::Share::Balance);
     let sources = parts
         .iter()
         .map(|p| Source {
             name: catalogue.gas(p.gas).id().to_string(),
-            composition: Composition {
-                gases: vec![p.gas],
-                fractions: vec![1.0],
-            },
+            composition: Composition { gases: vec![p.gas], fractions: vec![1.0] },
             pure: true,
         })
         .collect();
     // A single pure gas: it is its own balance.
     let balance = balance.or((targets.len() == 1).then_some(0));
-    Ok(Order {
+    Order {
         name: composition.describe(catalogue),
         description: String::new(),
         order: String::new(),
@@ -198,7 +193,7 @@ fn order_from_args(
         sources,
         fill_order: Vec::new(),
         notes: String::new(),
-    })
+    }
 }
 
 fn id(catalogue: &Catalogue, g: usize) -> &str {
@@ -301,11 +296,7 @@ pub fn steps_csv(plan: &Plan) -> String {
             bar(st.pressure_after_pa - plan.ambient_pa),
             bar(st.increment_pa),
             st.temperature_k,
-            st.flags
-                .iter()
-                .map(|f| f.key())
-                .collect::<Vec<_>>()
-                .join(" "),
+            st.flags.iter().map(|f| f.key()).collect::<Vec<_>>().join(" "),
         ));
     }
     s
@@ -313,22 +304,14 @@ pub fn steps_csv(plan: &Plan) -> String {
 
 fn share_text(order: &Order, g: usize, x: f64) -> String {
     match order.targets.iter().find(|t| t.gas == g).map(|t| t.share) {
-        Some(mixture::Share::Of { value, unit }) => {
-            format!("{value} {}", unit.suffix()).trim_end().to_string()
-        }
+        Some(mixture::Share::Of { value, unit }) => format!("{value} {}", unit.suffix()).trim_end().to_string(),
         Some(mixture::Share::Balance) => format!("bal. {} %", Sig(x * 100.0, 4)),
         None => "from sources".into(),
     }
 }
 
 /// The text fill sheet, 80 columns wide.
-pub fn fill_sheet(
-    plan: &Plan,
-    order: &Order,
-    catalogue: &Catalogue,
-    res: &Resolutions,
-    ambient_pa: f64,
-) -> String {
+pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resolutions, ambient_pa: f64) -> String {
     let mut o = String::new();
     let mut line = |s: String| {
         o.push_str(&s);
@@ -346,15 +329,9 @@ pub fn fill_sheet(
     if !ids.is_empty() {
         line(ids.join(" | "));
     }
-    let mut who = vec![format!(
-        "{} L water capacity",
-        Sig(litres(order.volume_m3), 4)
-    )];
+    let mut who = vec![format!("{} L water capacity", Sig(litres(order.volume_m3), 4))];
     if order.working_pressure_pa < MAX_PRESSURE_PA {
-        who.push(format!(
-            "working {} bar",
-            Sig(bar(order.working_pressure_pa), 4)
-        ));
+        who.push(format!("working {} bar", Sig(bar(order.working_pressure_pa), 4)));
     }
     if order.test_pressure_pa < MAX_PRESSURE_PA {
         who.push(format!("test {} bar", Sig(bar(order.test_pressure_pa), 4)));
@@ -367,20 +344,14 @@ pub fn fill_sheet(
         celsius(plan.fill_temperature_k),
         Sig(bar(ambient_pa), 6)
     ));
-    line(format!(
-        "model {} ({})",
-        plan.model.title(),
-        plan.model.key()
-    ));
+    line(format!("model {} ({})", plan.model.title(), plan.model.key()));
     line(String::new());
 
     let scale_from = match order.tare_g {
         Some(g) => format!("scale from tare {:.1} g", g),
         None => "scale net of the cylinder".into(),
     };
-    line(format!(
-        "STEPS  stop each addition at the pressure reading; {scale_from}"
-    ));
+    line(format!("STEPS  stop each addition at the pressure reading; {scale_from}"));
     line(format!(
         "{:>2}  {:<14}{:>9}{:>9}{:>11}{:>10}{:>10}{:>8}",
         "#", "source", "add mol", "add g", "scale g", "stop bar", "gauge", "+bar"
@@ -407,33 +378,16 @@ pub fn fill_sheet(
             marks
         ));
     }
-    if plan
-        .steps
-        .iter()
-        .any(|s| s.flags.contains(&StepFlag::BelowGaugeResolution))
-    {
-        line(format!(
-            "    ! increment below the gauge resolution ({} bar)",
-            Sig(bar(res.gauge_pa), 3)
-        ));
+    if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::BelowGaugeResolution)) {
+        line(format!("    ! increment below the gauge resolution ({} bar)", Sig(bar(res.gauge_pa), 3)));
     }
-    if plan
-        .steps
-        .iter()
-        .any(|s| s.flags.contains(&StepFlag::BelowScaleResolution))
-    {
-        line(format!(
-            "    * mass below the scale resolution ({} g)",
-            Sig(res.scale_g, 3)
-        ));
+    if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::BelowScaleResolution)) {
+        line(format!("    * mass below the scale resolution ({} g)", Sig(res.scale_g, 3)));
     }
     line(String::new());
 
     line(format!("COMPONENTS  at {:.1} °C", celsius(t.temperature_k)));
-    line(format!(
-        "{:<9}{:>15}{:>11}{:>11}{:>11}{:>12}",
-        "gas", "target", "mol", "g", "x·P bar", "alone bar"
-    ));
+    line(format!("{:<9}{:>15}{:>11}{:>11}{:>11}{:>12}", "gas", "target", "mol", "g", "x·P bar", "alone bar"));
     for c in &plan.components {
         line(format!(
             "{:<9}{:>15}{:>11}{:>11}{:>11.4}{:>12}",
@@ -442,17 +396,12 @@ pub fn fill_sheet(
             Sig(c.amount_mol, 5).to_string(),
             Sig(c.mass_g, 5).to_string(),
             bar(c.partial_pressure_pa),
-            c.alone_pressure_pa
-                .map_or("–".to_string(), |p| format!("{:.4}", bar(p)))
+            c.alone_pressure_pa.map_or("–".to_string(), |p| format!("{:.4}", bar(p)))
         ));
     }
     let sum_alone: Option<f64> = plan.components.iter().map(|c| c.alone_pressure_pa).sum();
     if let Some(sum) = sum_alone {
-        line(format!(
-            "  the pressures alone add up to {:.3} bar, not {:.3} bar:",
-            bar(sum),
-            bar(t.pressure_pa)
-        ));
+        line(format!("  the pressures alone add up to {:.3} bar, not {:.3} bar:", bar(sum), bar(t.pressure_pa)));
         line("  at cylinder pressures Dalton's rule of additive pressures does not hold".into());
     }
     line(String::new());
@@ -476,10 +425,7 @@ pub fn fill_sheet(
 
     // Model comparison: rows are steps, columns are models.
     let models: Vec<_> = plan.models.iter().filter(|m| m.result.is_ok()).collect();
-    line(format!(
-        "EVERY MODEL  stop readings at {:.1} °C, bar",
-        celsius(plan.fill_temperature_k)
-    ));
+    line(format!("EVERY MODEL  stop readings at {:.1} °C, bar", celsius(plan.fill_temperature_k)));
     let mut head = format!("{:<18}", "step");
     for m in &models {
         head.push_str(&format!("{:>9}", m.model.key()));
@@ -488,49 +434,30 @@ pub fn fill_sheet(
     for (i, s) in plan.steps.iter().enumerate() {
         let mut row = format!("{:<18}", clip(&format!("{} {}", i + 1, s.source), 18));
         for m in &models {
-            let p = m
-                .result
-                .as_ref()
-                .ok()
-                .and_then(|f| f.step_pressures_pa.get(i))
-                .copied()
-                .unwrap_or(f64::NAN);
+            let p = m.result.as_ref().ok().and_then(|f| f.step_pressures_pa.get(i)).copied().unwrap_or(f64::NAN);
             row.push_str(&format!("{:>9}", Sig(bar(p), 5).to_string()));
         }
         line(row);
     }
     let mut row = format!("{:<18}", "amount mol");
     for m in &models {
-        row.push_str(&format!(
-            "{:>9}",
-            Sig(m.result.as_ref().map_or(f64::NAN, |f| f.amount_mol), 5).to_string()
-        ));
+        row.push_str(&format!("{:>9}", Sig(m.result.as_ref().map_or(f64::NAN, |f| f.amount_mol), 5).to_string()));
     }
     line(row);
     let mut row = format!("{:<18}", "Z");
     for m in &models {
-        row.push_str(&format!(
-            "{:>9.4}",
-            m.result.as_ref().map_or(f64::NAN, |f| f.z)
-        ));
+        row.push_str(&format!("{:>9.4}", m.result.as_ref().map_or(f64::NAN, |f| f.z)));
     }
     line(row);
     for m in plan.models.iter().filter(|m| m.result.is_err()) {
         // The reason only, without the advice after the semicolon, to keep within 80 columns.
-        let reason = m
-            .result
-            .as_ref()
-            .err()
-            .map_or("", |e| e.split(';').next().unwrap_or(e));
+        let reason = m.result.as_ref().err().map_or("", |e| e.split(';').next().unwrap_or(e));
         line(clip(&format!("  {}: {reason}", m.model.key()), 80));
     }
     line(String::new());
 
     for f in &plan.following {
-        line(format!(
-            "STOPPING AT EACH MODEL'S READINGS  composition error in % (gas as {} says)",
-            f.truth.key()
-        ));
+        line(format!("STOPPING AT EACH MODEL'S READINGS  composition error in % (gas as {} says)", f.truth.key()));
         let mut head = format!("{:<18}", "gas");
         for r in &f.rows {
             head.push_str(&format!("{:>9}", r.targets_of.key()));
@@ -558,22 +485,9 @@ pub fn fill_sheet(
 
     for p in &plan.premixes {
         let step = &plan.steps[p.step];
-        line(format!(
-            "PREMIX PROPOSED for step {} ({})",
-            p.step + 1,
-            step.source
-        ));
-        line(format!(
-            "  Dose {} from a premix {} ({}) instead:",
-            id(catalogue, p.gas),
-            p.name,
-            p.spec
-        ));
-        line(format!(
-            "  {} mol ({} g) of premix are needed.",
-            Sig(p.needed_mol, 4),
-            Sig(p.needed_g, 4)
-        ));
+        line(format!("PREMIX PROPOSED for step {} ({})", p.step + 1, step.source));
+        line(format!("  Dose {} from a premix {} ({}) instead:", id(catalogue, p.gas), p.name, p.spec));
+        line(format!("  {} mol ({} g) of premix are needed.", Sig(p.needed_mol, 4), Sig(p.needed_g, 4)));
         line(format!(
             "  Make it in a {} L cylinder filled to {} bar:",
             Sig(litres(order.volume_m3), 4),
@@ -589,11 +503,7 @@ pub fn fill_sheet(
                         Sig(s.add_amount_mol, 4),
                         Sig(s.add_mass_g, 4),
                         bar(s.pressure_after_pa),
-                        if s.flags.is_empty() {
-                            ""
-                        } else {
-                            "  (needs a premix itself)"
-                        }
+                        if s.flags.is_empty() { "" } else { "  (needs a premix itself)" }
                     ));
                 }
                 for q in &inner.premixes {

@@ -10,11 +10,9 @@ use crate::thermo::{Fluid, Model, ThermoError};
 use crate::units::{self, bar, celsius, litres, AmountInput, Sig, R};
 
 #[derive(Debug, Args)]
-#[command(
-    after_help = "Give two of --volume, --pressure and --amount; the third is solved.\n\n\
+#[command(after_help = "Give two of --volume, --pressure and --amount; the third is solved.\n\n\
                   Examples:\n  fillwright state --mix \"CO2=15%,N2=balance\" --temp 15C --volume 10L --pressure 150bar\n  \
-                  fillwright state --mix CH4 --temp 288.15K --volume 50L --amount 8kg --model pr --format json"
-)]
+                  fillwright state --mix CH4 --temp 288.15K --volume 50L --amount 8kg --model pr --format json")]
 pub struct StateArgs {
     /// Mixture: GAS=AMOUNT pairs separated by commas, amounts in ppb, ppm, % or a bare mole
     /// fraction, at most one GAS=balance; or a single pure gas. E.g. "CO=500ppm,CO2=15%,N2=balance".
@@ -124,14 +122,8 @@ fn solve(fluid: &Fluid, x: &[f64], given: &Given, unknown: Unknown) -> Result<So
 }
 
 pub fn run(args: &StateArgs) -> Result<(), Failure> {
-    let given_count = [
-        args.volume.is_some(),
-        args.pressure.is_some(),
-        args.amount.is_some(),
-    ]
-    .iter()
-    .filter(|b| **b)
-    .count();
+    let given_count =
+        [args.volume.is_some(), args.pressure.is_some(), args.amount.is_some()].iter().filter(|b| **b).count();
     if given_count != 2 {
         return Err(Failure::Usage(format!(
             "state needs exactly two of --volume, --pressure and --amount (got {given_count}); the third is solved"
@@ -145,15 +137,12 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
         Unknown::Amount
     };
     if args.common.format == Format::Csv {
-        return Err(Failure::Usage(
-            "state prints one state: use --format text or json".into(),
-        ));
+        return Err(Failure::Usage("state prints one state: use --format text or json".into()));
     }
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let settings = config::load_settings().map_err(Refused)?;
     let ambient = args.common.ambient_pa(&settings)?;
-    let composition = Composition::from_spec(&args.mix, &catalogue)
-        .map_err(|e| Refused(format!("--mix: {e}")))?;
+    let composition = Composition::from_spec(&args.mix, &catalogue).map_err(|e| Refused(format!("--mix: {e}")))?;
     let given = Given {
         t_k: units::parse_temperature(&args.temp).map_err(|e| Refused(format!("--temp: {e}")))?,
         p_pa: args
@@ -185,11 +174,7 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
         .map(|&m| (m, fluid_of(m).and_then(|f| solve(&f, x, &given, unknown))))
         .collect();
 
-    let ids: Vec<&str> = composition
-        .gases
-        .iter()
-        .map(|&g| catalogue.gas(g).id())
-        .collect();
+    let ids: Vec<&str> = composition.gases.iter().map(|&g| catalogue.gas(g).id()).collect();
     match args.common.format {
         Format::Json => {
             let comparison: Vec<serde_json::Value> = others
@@ -219,14 +204,9 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
                 "comparison": comparison,
             }));
         }
-        Format::Text | Format::Csv => print_text(
-            &composition.describe(&catalogue),
-            &given,
-            ambient,
-            unknown,
-            &chosen,
-            &others,
-        ),
+        Format::Text | Format::Csv => {
+            print_text(&composition.describe(&catalogue), &given, ambient, unknown, &chosen, &others)
+        }
     }
     Ok(())
 }
@@ -256,33 +236,18 @@ fn print_text(
     println!("Gas state of {mix}");
     println!("model: {} ({})", s.model.title(), s.model.key());
     println!();
-    println!(
-        "  temperature  {:>12} °C   {:>10} K",
-        Sig(celsius(given.t_k), 5),
-        Sig(given.t_k, 6)
-    );
+    println!("  temperature  {:>12} °C   {:>10} K", Sig(celsius(given.t_k), 5), Sig(given.t_k, 6));
     println!(
         "  pressure     {:>12} bar  {:>10} bar gauge{}",
         Sig(bar(s.p_pa), 6),
         Sig(bar(s.p_pa - ambient_pa), 6),
         mark(Unknown::Pressure)
     );
-    println!(
-        "  volume       {:>12} L{}",
-        Sig(litres(s.volume_m3), 6),
-        mark(Unknown::Volume)
-    );
-    println!(
-        "  amount       {:>12} mol{}",
-        Sig(s.amount_mol, 6),
-        mark(Unknown::Amount)
-    );
+    println!("  volume       {:>12} L{}", Sig(litres(s.volume_m3), 6), mark(Unknown::Volume));
+    println!("  amount       {:>12} mol{}", Sig(s.amount_mol, 6), mark(Unknown::Amount));
     println!("  mass         {:>12} g", Sig(s.mass_g, 6));
     println!("  Z            {:>12.5}", s.z);
-    println!(
-        "  density      {:>12} g/L",
-        Sig(s.mass_g / litres(s.volume_m3), 5)
-    );
+    println!("  density      {:>12} g/L", Sig(s.mass_g / litres(s.volume_m3), 5));
     if s.liquid_like {
         println!();
         println!("  ! The stable root is liquid-like: at this state the mixture may be liquid or two-phase.");

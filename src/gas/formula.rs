@@ -21,10 +21,7 @@ const ATOMIC_WEIGHTS: &[(&str, f64)] = &[
 
 /// Atomic weight of one element symbol, g/mol.
 pub fn atomic_weight(symbol: &str) -> Option<f64> {
-    ATOMIC_WEIGHTS
-        .iter()
-        .find(|(s, _)| *s == symbol)
-        .map(|&(_, w)| w)
+    ATOMIC_WEIGHTS.iter().find(|(s, _)| *s == symbol).map(|&(_, w)| w)
 }
 
 /// Element counts of a plain formula such as `C2H6O` or `SF6` (no brackets, no charges).
@@ -38,10 +35,7 @@ pub fn element_counts(formula: &str) -> Result<Vec<(String, u32)>, String> {
     while i < chars.len() {
         let c = chars[i];
         if !c.is_ascii_uppercase() {
-            return Err(format!(
-                "unexpected {c:?} at position {} in formula {formula:?}",
-                i + 1
-            ));
+            return Err(format!("unexpected {c:?} at position {} in formula {formula:?}", i + 1));
         }
         let mut symbol = c.to_string();
         i += 1;
@@ -63,9 +57,7 @@ pub fn element_counts(formula: &str) -> Result<Vec<(String, u32)>, String> {
                 .map_err(|_| format!("count too large in formula {formula:?}"))?
         };
         if atomic_weight(&symbol).is_none() {
-            return Err(format!(
-                "element {symbol:?} in formula {formula:?} has no atomic weight here"
-            ));
+            return Err(format!("element {symbol:?} in formula {formula:?} has no atomic weight here"));
         }
         match counts.iter_mut().find(|(s, _)| *s == symbol) {
             Some((_, k)) => *k += n,
@@ -77,10 +69,7 @@ pub fn element_counts(formula: &str) -> Result<Vec<(String, u32)>, String> {
 
 /// Molar mass of a formula, g/mol.
 pub fn molar_mass(formula: &str) -> Result<f64, String> {
-    Ok(element_counts(formula)?
-        .iter()
-        .map(|(s, n)| atomic_weight(s).unwrap_or(0.0) * f64::from(*n))
-        .sum())
+    Ok(element_counts(formula)?.iter().map(|(s, n)| atomic_weight(s).unwrap_or(0.0) * f64::from(*n)).sum())
 }
 
 #[cfg(test)]
@@ -112,10 +101,7 @@ mod tests {
 
     #[test]
     fn repeated_elements_are_summed() {
-        assert_eq!(
-            element_counts("C2H6O").unwrap(),
-            element_counts("C2H5OH").unwrap()
-        );
+        assert_eq!(element_counts("C2H6O").unwrap(), element_counts("C2H5OH").unwrap());
     }
 
     #[test]

@@ -14,6 +14,33 @@ use serde::{Deserialize, Serialize};
 pub use vapour_pressure::VapourPressure;
 
 const BUILT_IN: &str = include_str!("catalogue.ron");
+const HAZARDS: &str = include_str!("hazards.ron");
+
+/// Screening data of one gas; absent fields mean "not flammable", "not oxidising", …
+/// as far as the catalogue knows (see `hazards.ron` for the sources).
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct Hazard {
+    /// Lower flammability limit in air, % by volume (flammable when present).
+    pub lfl_percent: Option<f64>,
+    /// ISO 10156 T_ci: largest content in N2 not flammable in air, %.
+    pub tci_percent: Option<f64>,
+    /// ISO 10156 K_k: inerting power relative to N2 (inert when present).
+    pub inert_k: Option<f64>,
+    /// ISO 10156 C_i: oxygen equivalence (oxidising when present).
+    pub oxidising_c: Option<f64>,
+    /// LC50, rat, 1 h, ppm (toxic by inhalation when present).
+    pub lc50_ppm: Option<f64>,
+    /// Corrosive.
+    pub corrosive: bool,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields, rename = "Hazards")]
+struct HazardFile {
+    references: BTreeMap<String, String>,
+    gases: BTreeMap<String, Hazard>,
+}
 
 /// Tabulated van der Waals constants of one gas.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -60,6 +87,9 @@ pub struct GasRecord {
     /// Tabulated van der Waals constants, when the handbook lists the gas.
     #[serde(default)]
     pub van_der_waals: Option<VanDerWaalsConstants>,
+    /// Screening data; for built-in gases it comes from `hazards.ron`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hazard: Option<Hazard>,
 }
 
 /// A gas ready for computation.
@@ -87,11 +117,13 @@ impl Gas {
     pub fn omega(&self) -> f64 {
         self.record.acentric_factor
     }
+    /// Screening data (all absent for a gas without any).
+    pub fn hazard(&self) -> Hazard {
+        self.record.hazard.clone().unwrap_or_default()
+    }
     /// Saturation pressure at `t_k`, Pa (None above Tc or outside the correlation).
     pub fn vapour_pressure_pa(&self, t_k: f64) -> Option<f64> {
-        self.record
-            .vapour_pressure
-            .pressure_pa(t_k, self.tc_k(), self.pc_pa(), self.omega())
+        self.record.vapour_pressure.pressure_pa(t_k, self.tc_k(), self.pc_pa(), self.omega())
     }
 }
 
@@ -149,15 +181,23 @@ impl Catalogue {
         // The built-in file is checked by the test suite; failing here is a build defect.
         PARSED
             .get_or_init(|| {
-                Catalogue::parse(BUILT_IN, "built-in catalogue")
-                    .expect("built-in gas catalogue is valid")
+                let mut c = Catalogue::parse(BUILT_IN, "built-in catalogue").expect("built-in gas catalogue is valid");
+                let hazards: HazardFile =
+                    crate::ron_format::options().from_str(HAZARDS).expect("built-in hazard table is valid");
+                for gas in &mut c.gases {
+                    if gas.record.hazard.is_none() {
+                        gas.record.hazard = hazards.gases.get(gas.id()).cloned();
+                    }
+                }
+                c.references.extend(hazards.references);
+                c
             })
             .clone()
     }
 
     /// Parse a catalogue file's text. `origin` names it in messages.
     pub fn parse(text: &str, origin: &str) -> Result<Catalogue, CatalogueError> {
-        let file: CatalogueFile = ron::from_str(text).map_err(|e| CatalogueError {
+        let file: CatalogueFile = crate::ron_format::options().from_str(text).map_err(|e| CatalogueError {
             origin: origin.to_string(),
             line: e.position.line,
             column: e.position.col,
@@ -168,22 +208,14 @@ impl Catalogue {
                 origin: origin.into(),
                 line: 1,
                 column: 1,
-                message: format!(
-                    "catalogue format {} is not known; this program reads format 1",
-                    file.format
-                ),
+                message: format!("catalogue format {} is not known; this program reads format 1", file.format),
             });
         }
         let mut gases = Vec::with_capacity(file.gases.len());
         for record in file.gases {
             let gas = validate(record, text).map_err(|(needle, message)| {
                 let (line, column) = locate(text, &needle);
-                CatalogueError {
-                    origin: origin.to_string(),
-                    line,
-                    column,
-                    message,
-                }
+                CatalogueError { origin: origin.to_string(), line, column, message }
             })?;
             if gases.iter().any(|g: &Gas| g.id() == gas.id()) {
                 let needle = format!("\"{}\"", gas.id());
@@ -197,10 +229,7 @@ impl Catalogue {
             }
             gases.push(gas);
         }
-        Ok(Catalogue {
-            gases,
-            references: file.references,
-        })
+        Ok(Catalogue { gases, references: file.references })
     }
 
     /// The built-in catalogue with a user file's entries added or replacing by id.
@@ -246,10 +275,7 @@ impl Catalogue {
                 || g.record.cas == t
                 || g.record.aliases.iter().any(|a| a.to_lowercase() == lower)
         });
-        hit.ok_or_else(|| UnknownGas {
-            text: t.to_string(),
-            suggestions: self.nearest(t, 3),
-        })
+        hit.ok_or_else(|| UnknownGas { text: t.to_string(), suggestions: self.nearest(t, 3) })
     }
 
     /// The ids of the gases whose id, name or alias is closest to `text`.
@@ -262,19 +288,13 @@ impl Catalogue {
                 let names = std::iter::once(g.id())
                     .chain(std::iter::once(g.name()))
                     .chain(g.record.aliases.iter().map(String::as_str));
-                let best = names
-                    .map(|n| strsim::jaro_winkler(&lower, &n.to_lowercase()))
-                    .fold(0.0, f64::max);
+                let best = names.map(|n| strsim::jaro_winkler(&lower, &n.to_lowercase())).fold(0.0, f64::max);
                 (best, g.id())
             })
             .filter(|(s, _)| *s > 0.7)
             .collect();
         scored.sort_by(|a, b| b.0.total_cmp(&a.0));
-        scored
-            .into_iter()
-            .take(count)
-            .map(|(_, id)| id.to_string())
-            .collect()
+        scored.into_iter().take(count).map(|(_, id)| id.to_string()).collect()
     }
 }
 
@@ -283,10 +303,7 @@ fn validate(record: GasRecord, _text: &str) -> Result<Gas, (String, String)> {
     let at = format!("\"{}\"", record.id);
     let fail = |m: String| Err((at.clone(), m));
     if record.id.trim().is_empty() || record.id.contains([',', '=', ' ']) {
-        return fail(format!(
-            "gas id {:?} must be non-empty, without spaces, commas or '='",
-            record.id
-        ));
+        return fail(format!("gas id {:?} must be non-empty, without spaces, commas or '='", record.id));
     }
     let molar_mass = match formula::molar_mass(&record.formula) {
         Ok(m) => m,
@@ -299,20 +316,11 @@ fn validate(record: GasRecord, _text: &str) -> Result<Gas, (String, String)> {
     ];
     for (field, v) in positive {
         if !(v.is_finite() && v > 0.0) {
-            return fail(format!(
-                "gas {}: {field} must be a positive finite number, found {v}",
-                record.id
-            ));
+            return fail(format!("gas {}: {field} must be a positive finite number, found {v}", record.id));
         }
     }
-    if !(record.acentric_factor.is_finite()
-        && record.acentric_factor > -1.0
-        && record.acentric_factor < 2.0)
-    {
-        return fail(format!(
-            "gas {}: acentric_factor {} is outside -1 … 2",
-            record.id, record.acentric_factor
-        ));
+    if !(record.acentric_factor.is_finite() && record.acentric_factor > -1.0 && record.acentric_factor < 2.0) {
+        return fail(format!("gas {}: acentric_factor {} is outside -1 … 2", record.id, record.acentric_factor));
     }
     if let Some(v) = &record.van_der_waals {
         if !(v.a_bar_l2_per_mol2.is_finite()
@@ -320,16 +328,10 @@ fn validate(record: GasRecord, _text: &str) -> Result<Gas, (String, String)> {
             && v.b_l_per_mol.is_finite()
             && v.b_l_per_mol > 0.0)
         {
-            return fail(format!(
-                "gas {}: van der Waals a and b must be positive",
-                record.id
-            ));
+            return fail(format!("gas {}: van der Waals a and b must be positive", record.id));
         }
     }
-    Ok(Gas {
-        record,
-        molar_mass_g_per_mol: molar_mass,
-    })
+    Ok(Gas { record, molar_mass_g_per_mol: molar_mass })
 }
 
 /// Line and column (1-based) of the first occurrence of `needle`, or 1:1.
@@ -354,10 +356,9 @@ mod tests {
         let c = Catalogue::built_in();
         assert!(c.gases().len() >= 40);
         for id in [
-            "N2", "O2", "Ar", "He", "Ne", "Kr", "Xe", "H2", "CO", "CO2", "CH4", "C2H6", "C3H8",
-            "n-C4H10", "i-C4H10", "n-C5H12", "i-C5H12", "n-C6H14", "C2H4", "C3H6", "C2H2", "C4H6",
-            "NO", "NO2", "N2O", "SO2", "H2S", "COS", "NH3", "HCl", "Cl2", "SF6", "CF4", "NF3",
-            "H2O", "CH3OH", "C2H5OH", "C6H6", "C7H8",
+            "N2", "O2", "Ar", "He", "Ne", "Kr", "Xe", "H2", "CO", "CO2", "CH4", "C2H6", "C3H8", "n-C4H10", "i-C4H10",
+            "n-C5H12", "i-C5H12", "n-C6H14", "C2H4", "C3H6", "C2H2", "C4H6", "NO", "NO2", "N2O", "SO2", "H2S", "COS",
+            "NH3", "HCl", "Cl2", "SF6", "CF4", "NF3", "H2O", "CH3OH", "C2H5OH", "C6H6", "C7H8",
         ] {
             assert!(c.index_of(id).is_some(), "{id} missing");
         }
@@ -374,13 +375,21 @@ mod tests {
                 keys.push(&v.source);
             }
             for k in keys.into_iter().map(String::as_str).chain([vp.as_str()]) {
-                assert!(
-                    c.reference(k).is_some(),
-                    "{}: source key {k} not in references",
-                    r.id
-                );
+                assert!(c.reference(k).is_some(), "{}: source key {k} not in references", r.id);
             }
         }
+    }
+
+    #[test]
+    fn hazard_table_names_only_catalogue_gases() {
+        let table: HazardFile = crate::ron_format::options().from_str(HAZARDS).unwrap();
+        let c = Catalogue::built_in();
+        for id in table.gases.keys() {
+            assert!(c.index_of(id).is_some(), "hazards.ron names unknown gas {id}");
+        }
+        let ch4 = c.gas(c.index_of("CH4").unwrap()).hazard();
+        assert_eq!((ch4.lfl_percent, ch4.tci_percent), (Some(4.4), Some(14.3)));
+        assert!(c.reference("tci_percent").unwrap().contains("from memory"));
     }
 
     #[test]
@@ -443,10 +452,7 @@ mod tests {
         let c = Catalogue::built_in();
         let mut r = c.gas(0).record.clone();
         r.critical_pressure_pa = -1.0;
-        let text = format!(
-            "// a comment\n{}",
-            ron::to_string(&serde_helper(vec![r])).unwrap()
-        );
+        let text = format!("// a comment\n{}", ron::to_string(&serde_helper(vec![r])).unwrap());
         let e = Catalogue::parse(&text, "user").unwrap_err();
         assert_eq!(e.line, 2);
         assert!(e.message.contains("critical_pressure_pa"), "{e}");

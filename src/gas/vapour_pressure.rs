@@ -7,16 +7,7 @@ use serde::{Deserialize, Serialize};
 pub enum VapourPressure {
     /// DIPPR equation 101: ln(P/Pa) = c1 + c2/T + c3 ln T + c4 T^c5, T in K, valid from
     /// `t_min_k` to `t_max_k` (Perry's Handbook, 8th ed., Table 2-8).
-    Dippr101 {
-        c1: f64,
-        c2: f64,
-        c3: f64,
-        c4: f64,
-        c5: f64,
-        t_min_k: f64,
-        t_max_k: f64,
-        source: String,
-    },
+    Dippr101 { c1: f64, c2: f64, c3: f64, c4: f64, c5: f64, t_min_k: f64, t_max_k: f64, source: String },
     /// Lee–Kesler corresponding-states estimate from Tc, Pc and ω
     /// (Lee & Kesler, AIChE J. 21 (1975) 510), for gases with no fitted correlation.
     LeeKesler { source: String },
@@ -26,9 +17,7 @@ impl VapourPressure {
     /// Source key of the correlation.
     pub fn source(&self) -> &str {
         match self {
-            VapourPressure::Dippr101 { source, .. } | VapourPressure::LeeKesler { source } => {
-                source
-            }
+            VapourPressure::Dippr101 { source, .. } | VapourPressure::LeeKesler { source } => source,
         }
     }
 
@@ -39,16 +28,7 @@ impl VapourPressure {
             return None;
         }
         match *self {
-            VapourPressure::Dippr101 {
-                c1,
-                c2,
-                c3,
-                c4,
-                c5,
-                t_min_k,
-                t_max_k,
-                ..
-            } => {
+            VapourPressure::Dippr101 { c1, c2, c3, c4, c5, t_min_k, t_max_k, .. } => {
                 if t_k < t_min_k || t_k > t_max_k {
                     return None;
                 }

@@ -17,10 +17,7 @@ pub fn write_with(
     bytes: &[u8],
     before_rename: impl FnOnce() -> std::io::Result<()>,
 ) -> std::io::Result<()> {
-    let dir = path
-        .parent()
-        .filter(|d| !d.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
+    let dir = path.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new("."));
     let file_name = path.file_name().and_then(|n| n.to_str()).unwrap_or("file");
     let tmp = dir.join(format!(".{file_name}.{}.tmp", std::process::id()));
     let result = (|| {

@@ -4,9 +4,7 @@ use std::time::{SystemTime, UNIX_EPOCH};
 
 /// Now, e.g. `2026-12-01T22:40:05Z`.
 pub fn now_utc() -> String {
-    let secs = SystemTime::now()
-        .duration_since(UNIX_EPOCH)
-        .map_or(0, |d| d.as_secs());
+    let secs = SystemTime::now().duration_since(UNIX_EPOCH).map_or(0, |d| d.as_secs());
     format_utc(secs as i64)
 }
 
@@ -15,12 +13,7 @@ pub fn format_utc(secs: i64) -> String {
     let days = secs.div_euclid(86_400);
     let rem = secs.rem_euclid(86_400);
     let (y, m, d) = civil_from_days(days);
-    format!(
-        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
-        rem / 3600,
-        rem % 3600 / 60,
-        rem % 60
-    )
+    format!("{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z", rem / 3600, rem % 3600 / 60, rem % 60)
 }
 
 /// Howard Hinnant's `civil_from_days` (proleptic Gregorian calendar).

@@ -28,46 +28,29 @@ pub enum LibraryError {
          another name, or overwrite it explicitly"
     )]
     ChangedOnDisk(PathBuf),
-    #[error(
-        "{path}: {size} bytes is larger than a recipe can be ({MAX_RECIPE_BYTES} bytes); not read"
-    )]
+    #[error("{path}: {size} bytes is larger than a recipe can be ({MAX_RECIPE_BYTES} bytes); not read")]
     TooLarge { path: PathBuf, size: u64 },
     #[error("{0}")]
     Recipe(#[from] crate::recipe::RecipeError),
     #[error("no revision {revision} of {name:?}; it has revisions {have}")]
-    NoRevision {
-        name: String,
-        revision: u32,
-        have: String,
-    },
+    NoRevision { name: String, revision: u32, have: String },
     #[error("{path}: {source}")]
-    Io {
-        path: PathBuf,
-        source: std::io::Error,
-    },
+    Io { path: PathBuf, source: std::io::Error },
 }
 
 fn io(path: &Path) -> impl FnOnce(std::io::Error) -> LibraryError + '_ {
-    move |source| LibraryError::Io {
-        path: path.to_path_buf(),
-        source,
-    }
+    move |source| LibraryError::Io { path: path.to_path_buf(), source }
 }
 
 /// Names a recipe may not have on common file systems.
 const RESERVED: &[&str] = &[
-    "con", "prn", "aux", "nul", "com1", "com2", "com3", "com4", "com5", "com6", "com7", "com8",
-    "com9", "lpt1", "lpt2", "lpt3", "lpt4", "lpt5", "lpt6", "lpt7", "lpt8", "lpt9",
+    "con", "prn", "aux", "nul", "com1", "com2", "com3", "com4", "com5", "com6", "com7", "com8", "com9", "lpt1", "lpt2",
+    "lpt3", "lpt4", "lpt5", "lpt6", "lpt7", "lpt8", "lpt9",
 ];
 
 /// Check a library name: a plain file stem.
 pub fn check_name(name: &str) -> Result<(), LibraryError> {
-    let bad = |why| {
-        Err(LibraryError::BadName {
-            name: name.to_string(),
-            why,
-        })
-    };
+    let bad = |why| Err(LibraryError::BadName { name: name.to_string(), why });
     if name.trim().is_empty() {
         return bad("it is empty");
     }
@@ -111,10 +94,7 @@ impl Fingerprint {
             hash ^= u64::from(*b);
             hash = hash.wrapping_mul(0x0100_0000_01b3);
         }
-        Fingerprint {
-            len: bytes.len(),
-            hash,
-        }
+        Fingerprint { len: bytes.len(), hash }
     }
 }
 
@@ -158,10 +138,7 @@ impl Summary {
                 FillTarget::Mass(m) => format!("{m} (mass)"),
                 FillTarget::Amount(n) => format!("{n} (amount)"),
             },
-            cylinder: format!(
-                "{}, {}",
-                r.cylinder.water_capacity, r.cylinder.working_pressure
-            ),
+            cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
             revision: r.revision,
         }
     }
@@ -182,11 +159,7 @@ pub enum Saved {
     /// Nothing changed; the file was left alone.
     Unchanged { revision: u32 },
     /// A new revision was written.
-    Written {
-        revision: u32,
-        changes: Vec<String>,
-        git: Option<Result<(), String>>,
-    },
+    Written { revision: u32, changes: Vec<String>, git: Option<Result<(), String>> },
 }
 
 /// How a save treats a file that changed on disk since it was opened.
@@ -210,10 +183,7 @@ impl Library {
     /// The library at `dir` (created when missing).
     pub fn at(dir: &Path) -> Result<Library, LibraryError> {
         std::fs::create_dir_all(dir).map_err(io(dir))?;
-        Ok(Library {
-            dir: dir.to_path_buf(),
-            git_commit: false,
-        })
+        Ok(Library { dir: dir.to_path_buf(), git_commit: false })
     }
 
     pub fn dir(&self) -> &Path {
@@ -235,8 +205,7 @@ impl Library {
             return Ok(0);
         }
         for (name, text) in demo::RECIPES {
-            atomic::write(&self.dir.join(format!("{name}.ron")), text.as_bytes())
-                .map_err(io(&self.dir))?;
+            atomic::write(&self.dir.join(format!("{name}.ron")), text.as_bytes()).map_err(io(&self.dir))?;
         }
         Ok(demo::RECIPES.len())
     }
@@ -267,15 +236,8 @@ impl Library {
             .into_iter()
             .map(|name| {
                 let path = self.dir.join(format!("{name}.ron"));
-                let summary = self
-                    .open(&name)
-                    .map(|o| Summary::of(&o.recipe))
-                    .map_err(|e| e.to_string());
-                Entry {
-                    name,
-                    path,
-                    summary,
-                }
+                let summary = self.open(&name).map(|o| Summary::of(&o.recipe)).map_err(|e| e.to_string());
+                Entry { name, path, summary }
             })
             .collect())
     }
@@ -290,13 +252,7 @@ impl Library {
             other => other,
         })?;
         let recipe = Recipe::parse(&text, &path.display().to_string())?;
-        Ok(Opened {
-            name: name.to_string(),
-            fingerprint: Fingerprint::of(text.as_bytes()),
-            path,
-            text,
-            recipe,
-        })
+        Ok(Opened { name: name.to_string(), fingerprint: Fingerprint::of(text.as_bytes()), path, text, recipe })
     }
 
     /// Save `recipe` as `name`. `opened` is what the editor started from (None for a new
@@ -320,9 +276,7 @@ impl Library {
         let previous_recipe = match (&current, opened) {
             (None, _) => None,
             (Some(text), Some(o)) => {
-                if Fingerprint::of(text.as_bytes()) != o.fingerprint
-                    && on_conflict == OnConflict::Refuse
-                {
+                if Fingerprint::of(text.as_bytes()) != o.fingerprint && on_conflict == OnConflict::Refuse {
                     return Err(LibraryError::ChangedOnDisk(path));
                 }
                 Recipe::parse(text, &path.display().to_string()).ok()
@@ -334,14 +288,10 @@ impl Library {
         };
         if let Some(prev) = &previous_recipe {
             if changes::same_content(prev, recipe) {
-                return Ok(Saved::Unchanged {
-                    revision: prev.revision,
-                });
+                return Ok(Saved::Unchanged { revision: prev.revision });
             }
         }
-        let base_revision = previous_recipe
-            .as_ref()
-            .map_or(recipe.revision, |p| p.revision.max(recipe.revision));
+        let base_revision = previous_recipe.as_ref().map_or(recipe.revision, |p| p.revision.max(recipe.revision));
         let change_list = match &previous_recipe {
             Some(prev) => changes::describe(prev, recipe),
             None => vec!["created".to_string()],
@@ -350,46 +300,28 @@ impl Library {
         if let Some(text) = &current {
             let dir = self.history_dir(name);
             std::fs::create_dir_all(&dir).map_err(io(&dir))?;
-            let kept = dir.join(format!(
-                "{:04}.ron",
-                previous_recipe.as_ref().map_or(0, |p| p.revision)
-            ));
+            let kept = dir.join(format!("{:04}.ron", previous_recipe.as_ref().map_or(0, |p| p.revision)));
             atomic::write(&kept, text.as_bytes()).map_err(io(&kept))?;
         }
         let note = note.map(str::trim).filter(|n| !n.is_empty());
         let new = Recipe {
             revision: base_revision + 1,
             saved: Some(now.to_string()),
-            change_note: note
-                .map(str::to_string)
-                .or_else(|| Some(change_list.join("; "))),
+            change_note: note.map(str::to_string).or_else(|| Some(change_list.join("; "))),
             ..recipe.clone()
         };
         let text = canonical::to_text(&new);
         atomic::write(&path, text.as_bytes()).map_err(io(&path))?;
         let git = self.git_commit.then(|| {
-            let message = format!(
-                "{name} rev {}: {}",
-                new.revision,
-                new.change_note.clone().unwrap_or_default()
-            );
+            let message = format!("{name} rev {}: {}", new.revision, new.change_note.clone().unwrap_or_default());
             git::commit(&self.dir, &path, &message)
         });
-        Ok(Saved::Written {
-            revision: new.revision,
-            changes: change_list,
-            git,
-        })
+        Ok(Saved::Written { revision: new.revision, changes: change_list, git })
     }
 
     /// Save under a new name that must not exist yet.
     pub fn save_as(&self, name: &str, recipe: &Recipe, now: &str) -> Result<Saved, LibraryError> {
-        let fresh = Recipe {
-            revision: 0,
-            saved: None,
-            change_note: None,
-            ..recipe.clone()
-        };
+        let fresh = Recipe { revision: 0, saved: None, change_note: None, ..recipe.clone() };
         self.save(name, &fresh, None, None, now, OnConflict::Refuse)
     }
 
@@ -455,12 +387,7 @@ impl Library {
                     continue;
                 };
                 if let Ok(r) = Recipe::parse(&text, &path.display().to_string()) {
-                    out.push(Revision {
-                        revision: r.revision,
-                        saved: r.saved,
-                        note: r.change_note,
-                        path,
-                    });
+                    out.push(Revision { revision: r.revision, saved: r.saved, note: r.change_note, path });
                 }
             }
         }
@@ -483,11 +410,7 @@ impl Library {
             return Err(LibraryError::NoRevision {
                 name: name.to_string(),
                 revision,
-                have: all
-                    .iter()
-                    .map(|r| r.revision.to_string())
-                    .collect::<Vec<_>>()
-                    .join(", "),
+                have: all.iter().map(|r| r.revision.to_string()).collect::<Vec<_>>().join(", "),
             });
         };
         let text = read_limited(&r.path)?;
@@ -499,14 +422,7 @@ impl Library {
         let old = self.revision(name, revision)?;
         let opened = self.open(name)?;
         let note = format!("restored revision {revision}");
-        self.save(
-            name,
-            &old,
-            Some(&opened),
-            Some(&note),
-            now,
-            OnConflict::Refuse,
-        )
+        self.save(name, &old, Some(&opened), Some(&note), now, OnConflict::Refuse)
     }
 }
 
@@ -514,10 +430,7 @@ impl Library {
 pub fn read_limited(path: &Path) -> Result<String, LibraryError> {
     let meta = std::fs::metadata(path).map_err(io(path))?;
     if meta.len() > MAX_RECIPE_BYTES as u64 {
-        return Err(LibraryError::TooLarge {
-            path: path.to_path_buf(),
-            size: meta.len(),
-        });
+        return Err(LibraryError::TooLarge { path: path.to_path_buf(), size: meta.len() });
     }
     std::fs::read_to_string(path).map_err(io(path))
 }

@@ -26,11 +26,7 @@ pub fn demo_rows(catalogue: &Catalogue) -> Vec<Row> {
         let Ok(p) = plan(&order, catalogue, &PlanOptions::default()) else {
             continue;
         };
-        let Some(following) = p
-            .following
-            .iter()
-            .find(|f| f.truth == Model::Gerg)
-            .or_else(|| p.following.first())
+        let Some(following) = p.following.iter().find(|f| f.truth == Model::Gerg).or_else(|| p.following.first())
         else {
             continue;
         };
@@ -48,11 +44,7 @@ pub fn demo_rows(catalogue: &Catalogue) -> Vec<Row> {
                 (r.targets_of, catalogue.gas(p.gases[i]).id().to_string(), e)
             })
             .collect();
-        rows.push(Row {
-            recipe: name,
-            truth: following.truth,
-            worst,
-        });
+        rows.push(Row { recipe: name, truth: following.truth, worst });
     }
     rows
 }

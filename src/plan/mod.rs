@@ -30,10 +30,7 @@ impl Default for Resolutions {
     /// 0.1 bar (a digital 0–250 bar transducer) and 0.1 g (a cylinder balance): common
     /// practice, no source.
     fn default() -> Self {
-        Resolutions {
-            gauge_pa: 0.1e5,
-            scale_g: 0.1,
-        }
+        Resolutions { gauge_pa: 0.1e5, scale_g: 0.1 }
     }
 }
 
@@ -223,12 +220,7 @@ impl Plan {
     /// The reading to stop at for step `index` when the cylinder is at `t_measured_k`
     /// now, Pa absolute.
     pub fn corrected_target_pa(&self, index: usize, t_measured_k: f64) -> Result<f64, ThermoError> {
-        corrected_target_pa(
-            &self.fluid,
-            self.volume_m3,
-            &self.steps[index].amounts_after_mol,
-            t_measured_k,
-        )
+        corrected_target_pa(&self.fluid, self.volume_m3, &self.steps[index].amounts_after_mol, t_measured_k)
     }
 }
 
@@ -261,12 +253,7 @@ fn setup(order: &Order) -> Setup {
         }
     }
     let mut x_target = vec![0.0; gases.len()];
-    for (g, x) in order
-        .composition
-        .gases
-        .iter()
-        .zip(&order.composition.fractions)
-    {
+    for (g, x) in order.composition.gases.iter().zip(&order.composition.fractions) {
         x_target[gases.iter().position(|h| h == g).unwrap_or(0)] = *x;
     }
     let mut a = DMatrix::zeros(gases.len(), order.sources.len());
@@ -314,10 +301,7 @@ fn dosing(
     catalogue: &Catalogue,
 ) -> Result<Dosing, PlanError> {
     let total_mol = total_amount(fluid, order, &setup.x_target)?;
-    let b = DVector::from_iterator(
-        setup.x_target.len(),
-        setup.x_target.iter().map(|x| x * total_mol),
-    );
+    let b = DVector::from_iterator(setup.x_target.len(), setup.x_target.iter().map(|x| x * total_mol));
     let s = sources::nnls(&setup.a, &b);
     let made = &setup.a * &s;
     let made_total: f64 = made.iter().sum();
@@ -326,11 +310,7 @@ fn dosing(
         .map(|i| Unreachable {
             id: catalogue.gas(setup.gases[i]).id().to_string(),
             target_fraction: setup.x_target[i],
-            closest_fraction: if made_total > 0.0 {
-                made[i] / made_total
-            } else {
-                0.0
-            },
+            closest_fraction: if made_total > 0.0 { made[i] / made_total } else { 0.0 },
         })
         .collect();
     if !unreachable.is_empty() {
@@ -351,20 +331,14 @@ fn dosing(
                     return Err(PlanError::Order(format!("{n:?} is listed more than once")));
                 }
             }
-            let missing: Vec<&str> = names
-                .iter()
-                .copied()
-                .filter(|n| !list.iter().any(|m| m == n))
-                .collect();
+            let missing: Vec<&str> = names.iter().copied().filter(|n| !list.iter().any(|m| m == n)).collect();
             if !missing.is_empty() {
                 return Err(PlanError::Order(format!(
                     "every source must be listed exactly once; missing: {}",
                     missing.join(", ")
                 )));
             }
-            list.iter()
-                .filter_map(|n| names.iter().position(|m| m == n))
-                .collect()
+            list.iter().filter_map(|n| names.iter().position(|m| m == n)).collect()
         }
         None => {
             // Ascending amount, the balance gas last (DOMAIN.md: minor components first).
@@ -374,23 +348,12 @@ fn dosing(
                 s.pure && Some(s.composition.gases[0]) == balance_gas
             };
             let mut seq: Vec<usize> = (0..order.sources.len()).collect();
-            seq.sort_by(|&i, &j| {
-                is_balance(i)
-                    .cmp(&is_balance(j))
-                    .then(source_mol[i].total_cmp(&source_mol[j]))
-            });
+            seq.sort_by(|&i, &j| is_balance(i).cmp(&is_balance(j)).then(source_mol[i].total_cmp(&source_mol[j])));
             seq
         }
     };
-    let sequence = sequence
-        .into_iter()
-        .filter(|&k| source_mol[k] > 1e-12 * total_mol)
-        .collect();
-    Ok(Dosing {
-        total_mol,
-        source_mol,
-        sequence,
-    })
+    let sequence = sequence.into_iter().filter(|&k| source_mol[k] > 1e-12 * total_mol).collect();
+    Ok(Dosing { total_mol, source_mol, sequence })
 }
 
 /// Source composition as a vector over the plan gases.
@@ -419,34 +382,18 @@ fn step_pressures(
 }
 
 /// Make the plan for an order.
-pub fn plan(
-    order: &Order,
-    catalogue: &Catalogue,
-    options: &PlanOptions,
-) -> Result<Plan, PlanError> {
+pub fn plan(order: &Order, catalogue: &Catalogue, options: &PlanOptions) -> Result<Plan, PlanError> {
     plan_at_depth(order, catalogue, options, 0)
 }
 
-fn plan_at_depth(
-    order: &Order,
-    catalogue: &Catalogue,
-    options: &PlanOptions,
-    depth: usize,
-) -> Result<Plan, PlanError> {
+fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, depth: usize) -> Result<Plan, PlanError> {
     let setup = setup(order);
-    let model = options
-        .model
-        .or(order.model)
-        .unwrap_or_else(|| default_model(&setup.gases, catalogue));
+    let model = options.model.or(order.model).unwrap_or_else(|| default_model(&setup.gases, catalogue));
     let fluid = Fluid::new(catalogue, &setup.gases, model)?;
-    let t_fill = options
-        .fill_temperature_k
-        .unwrap_or(order.fill_temperature_k);
+    let t_fill = options.fill_temperature_k.unwrap_or(order.fill_temperature_k);
     let t_ref = order.reference_temperature_k;
-    let sequence_names = options
-        .order
-        .clone()
-        .or_else(|| (!order.fill_order.is_empty()).then(|| order.fill_order.clone()));
+    let sequence_names =
+        options.order.clone().or_else(|| (!order.fill_order.is_empty()).then(|| order.fill_order.clone()));
     let d = dosing(&fluid, order, &setup, &sequence_names, catalogue)?;
 
     // Steps.
@@ -487,18 +434,11 @@ fn plan_at_depth(
         _ => fluid.pressure(t_ref, order.volume_m3, &n_final)?,
     };
     if p_final > order.test_pressure_pa {
-        return Err(PlanError::AboveTestPressure {
-            final_bar: bar(p_final),
-            test_bar: bar(order.test_pressure_pa),
-        });
+        return Err(PlanError::AboveTestPressure { final_bar: bar(p_final), test_bar: bar(order.test_pressure_pa) });
     }
     let mass_g = d.total_mol * fluid.molar_mass(&setup.x_target);
-    let reference_volume = fluid.volume(
-        crate::units::REFERENCE_TEMPERATURE_K,
-        STANDARD_AMBIENT_PA,
-        d.total_mol,
-        &setup.x_target,
-    )?;
+    let reference_volume =
+        fluid.volume(crate::units::REFERENCE_TEMPERATURE_K, STANDARD_AMBIENT_PA, d.total_mol, &setup.x_target)?;
     let totals = Totals {
         pressure_pa: p_final,
         temperature_k: t_ref,
@@ -517,9 +457,7 @@ fn plan_at_depth(
         .map(|(i, &g)| {
             let n_i = n_final[i];
             let alone = if n_i > 0.0 {
-                Fluid::new(catalogue, &[g], model)
-                    .and_then(|f| f.pressure(t_ref, order.volume_m3, &[n_i]))
-                    .ok()
+                Fluid::new(catalogue, &[g], model).and_then(|f| f.pressure(t_ref, order.volume_m3, &[n_i])).ok()
             } else {
                 None
             };
@@ -530,11 +468,7 @@ fn plan_at_depth(
                 mass_g: n_i * catalogue.gas(g).molar_mass_g_per_mol,
                 partial_pressure_pa: setup.x_target[i] * p_final,
                 alone_pressure_pa: alone,
-                tolerance: order
-                    .targets
-                    .iter()
-                    .find(|t| t.gas == g)
-                    .and_then(|t| t.tolerance),
+                tolerance: order.targets.iter().find(|t| t.gas == g).and_then(|t| t.tolerance),
             }
         })
         .collect::<Vec<_>>();
@@ -563,12 +497,7 @@ fn plan_at_depth(
 
     // Stopping at each model's readings, judged by the selected model and by GERG-2008.
     let mut truths = vec![model];
-    if model != Model::Gerg
-        && setup
-            .gases
-            .iter()
-            .all(|&g| gerg::covers(catalogue.gas(g).id()))
-    {
+    if model != Model::Gerg && setup.gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id())) {
         truths.push(Model::Gerg);
     }
     let following = truths
@@ -579,15 +508,7 @@ fn plan_at_depth(
                 .iter()
                 .filter_map(|mp| {
                     let figures = mp.result.as_ref().ok()?;
-                    let made = follow(
-                        &truth_fluid,
-                        order,
-                        &setup,
-                        &d,
-                        &figures.step_pressures_pa,
-                        t_fill,
-                    )
-                    .ok()?;
+                    let made = follow(&truth_fluid, order, &setup, &d, &figures.step_pressures_pa, t_fill).ok()?;
                     let total: f64 = made.iter().sum();
                     let fractions: Vec<f64> = made.iter().map(|n| n / total).collect();
                     let relative_error_percent = fractions
@@ -598,17 +519,9 @@ fn plan_at_depth(
                     let out_of_tolerance = fractions
                         .iter()
                         .zip(&components)
-                        .map(|(x, c)| {
-                            c.tolerance
-                                .is_some_and(|tol| (x - c.mole_fraction).abs() > tol)
-                        })
+                        .map(|(x, c)| c.tolerance.is_some_and(|tol| (x - c.mole_fraction).abs() > tol))
                         .collect();
-                    Some(Followed {
-                        targets_of: mp.model,
-                        fractions,
-                        relative_error_percent,
-                        out_of_tolerance,
-                    })
+                    Some(Followed { targets_of: mp.model, fractions, relative_error_percent, out_of_tolerance })
                 })
                 .collect();
             Some(Following { truth, rows })
@@ -665,21 +578,13 @@ fn follow(
         let x_src = source_vector(setup, k);
         let with = |s: f64| -> Vec<f64> { n.iter().zip(&x_src).map(|(a, x)| a + s * x).collect() };
         let p_of = |s: f64| truth.pressure(t_k, order.volume_m3, &with(s));
-        let p_now = if n.iter().sum::<f64>() > 0.0 {
-            p_of(0.0)?
-        } else {
-            0.0
-        };
+        let p_now = if n.iter().sum::<f64>() > 0.0 { p_of(0.0)? } else { 0.0 };
         if target <= p_now {
             continue;
         }
-        let s =
-            solve_rising(p_of, target, p_now, d.source_mol[k].max(1e-12)).ok_or_else(|| {
-                ThermoError::NoState {
-                    model: truth.model(),
-                    why: "no amount reaches the reading".into(),
-                }
-            })??;
+        let s = solve_rising(p_of, target, p_now, d.source_mol[k].max(1e-12)).ok_or_else(|| {
+            ThermoError::NoState { model: truth.model(), why: "no amount reaches the reading".into() }
+        })??;
         n = with(s);
     }
     Ok(n)
@@ -717,11 +622,7 @@ fn solve_rising(
     for i in 0..200 {
         let secant = lo + (target - f_lo) / (f_hi - f_lo) * (hi - lo);
         // Every third step bisects, so that one-sided convergence cannot stall.
-        let mid = if i % 3 == 2 || !(secant > lo && secant < hi) {
-            0.5 * (lo + hi)
-        } else {
-            secant
-        };
+        let mid = if i % 3 == 2 || !(secant > lo && secant < hi) { 0.5 * (lo + hi) } else { secant };
         let f_mid = match f(mid) {
             Ok(v) => v,
             Err(e) => return Some(Err(e)),

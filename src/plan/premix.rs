@@ -63,10 +63,7 @@ pub fn share_of(fraction: f64) -> Share {
         (fraction * 1e9, FractionUnit::Ppb)
     };
     // Values come from round_down_125, so a short decimal is exact enough to print.
-    Share::Of {
-        value: (value * 1e9).round() / 1e9,
-        unit,
-    }
+    Share::Of { value: (value * 1e9).round() / 1e9, unit }
 }
 
 type Planner = fn(&Order, &Catalogue, &PlanOptions, usize) -> Result<Plan, PlanError>;
@@ -84,9 +81,7 @@ pub fn propose(
         Some(b) => order.targets[b].gas,
         None => {
             let i = (0..order.composition.gases.len())
-                .max_by(|&a, &b| {
-                    order.composition.fractions[a].total_cmp(&order.composition.fractions[b])
-                })
+                .max_by(|&a, &b| order.composition.fractions[a].total_cmp(&order.composition.fractions[b]))
                 .unwrap_or(0);
             order.composition.gases[i]
         }
@@ -104,11 +99,7 @@ pub fn propose(
             continue;
         }
         let gas = source.composition.gases[0];
-        let x = plan
-            .components
-            .iter()
-            .find(|c| c.gas == gas)
-            .map_or(0.0, |c| c.mole_fraction);
+        let x = plan.components.iter().find(|c| c.gas == gas).map_or(0.0, |c| c.mole_fraction);
         if !(x > 0.0) {
             continue;
         }
@@ -121,10 +112,7 @@ pub fn propose(
         let spec = format!("{id}={share},{balance_id}=balance");
         let name = format!("{id} {} in {balance_id}", share_text(&share));
         let needed_mol = step.add_amount_mol / fraction;
-        let premix = Composition {
-            gases: vec![gas, balance_gas],
-            fractions: vec![fraction, 1.0 - fraction],
-        };
+        let premix = Composition { gases: vec![gas, balance_gas], fractions: vec![fraction, 1.0 - fraction] };
         let needed_g = needed_mol * premix.molar_mass(catalogue);
         let fill_pressure_pa = plan.totals.pressure_pa.min(order.working_pressure_pa);
         let premix_order = Order {
@@ -132,16 +120,8 @@ pub fn propose(
             description: format!("premix for {}", order.name),
             order: order.order.clone(),
             targets: vec![
-                Target {
-                    gas,
-                    share,
-                    tolerance: None,
-                },
-                Target {
-                    gas: balance_gas,
-                    share: Share::Balance,
-                    tolerance: None,
-                },
+                Target { gas, share, tolerance: None },
+                Target { gas: balance_gas, share: Share::Balance, tolerance: None },
             ],
             balance: Some(1),
             composition: premix.clone(),
@@ -153,24 +133,10 @@ pub fn propose(
             notes: String::new(),
             ..order.clone()
         };
-        let premix_options = PlanOptions {
-            order: None,
-            ..options.clone()
-        };
-        let plan = planner(&premix_order, catalogue, &premix_options, depth + 1)
-            .map(Box::new)
-            .map_err(|e| e.to_string());
-        out.push(Proposal {
-            step: index,
-            gas,
-            fraction,
-            spec,
-            name,
-            needed_mol,
-            needed_g,
-            fill_pressure_pa,
-            plan,
-        });
+        let premix_options = PlanOptions { order: None, ..options.clone() };
+        let plan =
+            planner(&premix_order, catalogue, &premix_options, depth + 1).map(Box::new).map_err(|e| e.to_string());
+        out.push(Proposal { step: index, gas, fraction, spec, name, needed_mol, needed_g, fill_pressure_pa, plan });
     }
     out
 }
@@ -178,20 +144,14 @@ pub fn propose(
 fn pure(gas: usize, catalogue: &Catalogue) -> Source {
     Source {
         name: catalogue.gas(gas).id().to_string(),
-        composition: Composition {
-            gases: vec![gas],
-            fractions: vec![1.0],
-        },
+        composition: Composition { gases: vec![gas], fractions: vec![1.0] },
         pure: true,
     }
 }
 
 fn share_text(share: &Share) -> String {
     match share {
-        Share::Of {
-            value,
-            unit: FractionUnit::Percent,
-        } => format!("{value} %"),
+        Share::Of { value, unit: FractionUnit::Percent } => format!("{value} %"),
         Share::Of { value, unit } => format!("{value} {}", unit.suffix()),
         Share::Balance => "balance".into(),
     }

@@ -12,9 +12,7 @@ pub fn nnls(a: &DMatrix<f64>, b: &DVector<f64>) -> DVector<f64> {
     let tol = 1e-12 * scale;
     for _ in 0..(3 * n + 10) {
         let w = a.transpose() * (b - a * &s);
-        let pick = (0..n)
-            .filter(|&j| !passive[j])
-            .max_by(|&i, &j| w[i].total_cmp(&w[j]));
+        let pick = (0..n).filter(|&j| !passive[j]).max_by(|&i, &j| w[i].total_cmp(&w[j]));
         let Some(j) = pick else { break };
         if w[j] <= tol {
             break;
@@ -63,10 +61,7 @@ pub fn nnls(a: &DMatrix<f64>, b: &DVector<f64>) -> DVector<f64> {
 /// 1e-10 relative on premix-and-diluent systems, more than a plan may carry.
 fn least_squares(a: &DMatrix<f64>, b: &DVector<f64>) -> DVector<f64> {
     let svd = a.clone().svd(true, true);
-    let solve = |rhs: &DVector<f64>| {
-        svd.solve(rhs, 1e-14)
-            .unwrap_or_else(|_| DVector::zeros(a.ncols()))
-    };
+    let solve = |rhs: &DVector<f64>| svd.solve(rhs, 1e-14).unwrap_or_else(|_| DVector::zeros(a.ncols()));
     let mut z = solve(b);
     for _ in 0..2 {
         let r = b - a * &z;

@@ -44,16 +44,8 @@ pub fn to_text(r: &Recipe) -> String {
         .components
         .iter()
         .map(|c| {
-            let tolerance = c
-                .tolerance
-                .as_ref()
-                .map(|t| format!(", tolerance: {}", q(t)))
-                .unwrap_or_default();
-            format!(
-                "        (gas: {}, amount: {}{tolerance}),\n",
-                q(&c.gas),
-                q(&c.amount)
-            )
+            let tolerance = c.tolerance.as_ref().map(|t| format!(", tolerance: {}", q(t))).unwrap_or_default();
+            format!("        (gas: {}, amount: {}{tolerance}),\n", q(&c.gas), q(&c.amount))
         })
         .collect();
     field("components", format!("[\n{components}    ]"));
@@ -102,17 +94,7 @@ pub fn to_text(r: &Recipe) -> String {
         field("sources", format!("[\n{list}    ]"));
     }
     if !r.fill_order.is_empty() {
-        field(
-            "fill_order",
-            format!(
-                "[{}]",
-                r.fill_order
-                    .iter()
-                    .map(|s| q(s))
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ),
-        );
+        field("fill_order", format!("[{}]", r.fill_order.iter().map(|s| q(s)).collect::<Vec<_>>().join(", ")));
     }
     field("notes", q(&r.notes));
     o.push_str(")\n");
@@ -128,11 +110,7 @@ mod tests {
     fn demo_recipes_are_canonical() {
         for (name, text) in demo::RECIPES {
             let r = Recipe::parse(text, name).unwrap();
-            assert_eq!(
-                to_text(&r),
-                *text,
-                "{name} is not canonical: run `fillwright tidy mixtures/{name}.ron`"
-            );
+            assert_eq!(to_text(&r), *text, "{name} is not canonical: run `fillwright tidy mixtures/{name}.ron`");
         }
     }
 

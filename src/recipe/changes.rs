@@ -77,11 +77,7 @@ fn quantity_change(label: &str, x: &str, y: &str) -> Option<String> {
 pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
     let mut out: Vec<String> = Vec::new();
     out.extend(text_change("name", &old.name, &new.name));
-    out.extend(text_change(
-        "description",
-        &old.description,
-        &new.description,
-    ));
+    out.extend(text_change("description", &old.description, &new.description));
     out.extend(text_change("order", &old.order, &new.order));
 
     let key = |g: &str| g.to_ascii_lowercase();
@@ -128,32 +124,18 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
             quantity_change("test pressure", &a.test_pressure, &b.test_pressure),
             quantity_change("tare", opt(&a.tare), opt(&b.tare)),
             fill,
-            quantity_change(
-                "reference temperature",
-                &old.reference_temperature,
-                &new.reference_temperature,
-            ),
-            quantity_change(
-                "fill temperature",
-                opt(&old.fill_temperature),
-                opt(&new.fill_temperature),
-            ),
+            quantity_change("reference temperature", &old.reference_temperature, &new.reference_temperature),
+            quantity_change("fill temperature", opt(&old.fill_temperature), opt(&new.fill_temperature)),
             quantity_change("ambient", &old.ambient, &new.ambient),
         ]
         .into_iter()
         .flatten(),
     );
     if a.serial != b.serial {
-        out.push(format!(
-            "cylinder serial {:?} → {:?}",
-            opt(&a.serial),
-            opt(&b.serial)
-        ));
+        out.push(format!("cylinder serial {:?} → {:?}", opt(&a.serial), opt(&b.serial)));
     }
     if old.model != new.model {
-        let name = |m: Option<crate::thermo::Model>| {
-            m.map_or("default".to_string(), |m| m.key().to_string())
-        };
+        let name = |m: Option<crate::thermo::Model>| m.map_or("default".to_string(), |m| m.key().to_string());
         out.push(format!("model {} → {}", name(old.model), name(new.model)));
     }
     let source_name = |s: &SourceLine| match s {
@@ -178,11 +160,7 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
                 v.join(", ")
             }
         };
-        out.push(format!(
-            "fill order {} → {}",
-            show(&old.fill_order),
-            show(&new.fill_order)
-        ));
+        out.push(format!("fill order {} → {}", show(&old.fill_order), show(&new.fill_order)));
     }
     if old.notes != new.notes {
         out.push("notes changed".into());
@@ -192,12 +170,7 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
 
 /// The two recipes are the same order (revision stamps aside).
 pub fn same_content(a: &Recipe, b: &Recipe) -> bool {
-    let strip = |r: &Recipe| Recipe {
-        revision: 0,
-        saved: None,
-        change_note: None,
-        ..r.clone()
-    };
+    let strip = |r: &Recipe| Recipe { revision: 0, saved: None, change_note: None, ..r.clone() };
     strip(a) == strip(b)
 }
 
@@ -216,10 +189,7 @@ mod tests {
         let mut new = old.clone();
         new.components[2].amount = "14%".into();
         new.fill = FillTarget::Pressure("200bar".into());
-        assert_eq!(
-            describe(&old, &new),
-            vec!["CO2 15 → 14 %", "fill pressure 150 → 200 bar"]
-        );
+        assert_eq!(describe(&old, &new), vec!["CO2 15 → 14 %", "fill pressure 150 → 200 bar"]);
     }
 
     #[test]
@@ -227,14 +197,8 @@ mod tests {
         let old = flue();
         let mut new = old.clone();
         new.components.remove(1);
-        new.components.insert(
-            0,
-            crate::recipe::ComponentLine {
-                gas: "Ar".into(),
-                amount: "1%".into(),
-                tolerance: None,
-            },
-        );
+        new.components
+            .insert(0, crate::recipe::ComponentLine { gas: "Ar".into(), amount: "1%".into(), tolerance: None });
         new.fill_temperature = Some("30C".into());
         new.model = Some(crate::thermo::Model::Pr);
         new.notes.push_str(" More.");
@@ -259,10 +223,7 @@ mod tests {
         new.fill = FillTarget::Pressure("15MPa".into());
         assert_eq!(describe(&old, &new), vec!["fill pressure 150 bar → 15 MPa"]);
         new.fill = FillTarget::Mass("2kg".into());
-        assert_eq!(
-            describe(&old, &new),
-            vec!["fill pressure 150 bar → fill mass 2 kg"]
-        );
+        assert_eq!(describe(&old, &new), vec!["fill pressure 150 bar → fill mass 2 kg"]);
     }
 
     #[test]

@@ -209,9 +209,7 @@ impl Recipe {
                 ),
             });
         }
-        let options = ron::Options::default()
-            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
-        let recipe: Recipe = options.from_str(text).map_err(|e| RecipeError {
+        let recipe: Recipe = crate::ron_format::options().from_str(text).map_err(|e| RecipeError {
             origin: origin.into(),
             line: e.position.line,
             column: e.position.col,
@@ -222,10 +220,7 @@ impl Recipe {
                 origin,
                 text,
                 "format",
-                format!(
-                    "recipe format {} is not known; this program reads format {FORMAT}",
-                    recipe.format
-                ),
+                format!("recipe format {} is not known; this program reads format {FORMAT}", recipe.format),
             ));
         }
         Ok(recipe)
@@ -238,12 +233,7 @@ impl Recipe {
 
     /// Read every field into numbers, checking it. `text` is the file the recipe came
     /// from (to place errors); pass "" for a recipe built in memory.
-    pub fn resolve(
-        &self,
-        catalogue: &Catalogue,
-        text: &str,
-        origin: &str,
-    ) -> Result<Order, RecipeError> {
+    pub fn resolve(&self, catalogue: &Catalogue, text: &str, origin: &str) -> Result<Order, RecipeError> {
         let err = |needle: &str, message: String| place(origin, text, needle, message);
         let quoted = |s: &str| format!("\"{s}\"");
         let ambient_pa = units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
@@ -255,19 +245,13 @@ impl Recipe {
         let mut parts: Vec<Part> = Vec::new();
         let mut targets: Vec<Target> = Vec::new();
         for line in &self.components {
-            let gas = catalogue
-                .find(&line.gas)
-                .map_err(|e| err(&quoted(&line.gas), e.to_string()))?;
+            let gas = catalogue.find(&line.gas).map_err(|e| err(&quoted(&line.gas), e.to_string()))?;
             let id = catalogue.gas(gas).id().to_string();
             if parts.iter().any(|p| p.gas == gas) {
                 return Err(err(&quoted(&line.gas), format!("{id} is listed twice")));
             }
-            let share = mixture::parse_share(&line.amount).map_err(|problem| {
-                err(
-                    &quoted(&line.amount),
-                    format!("{id:?} amount {:?} {problem}", line.amount),
-                )
-            })?;
+            let share = mixture::parse_share(&line.amount)
+                .map_err(|problem| err(&quoted(&line.amount), format!("{id:?} amount {:?} {problem}", line.amount)))?;
             let tolerance = match &line.tolerance {
                 None => None,
                 Some(t) => Some(
@@ -276,11 +260,7 @@ impl Recipe {
                 ),
             };
             parts.push(Part { gas, share });
-            targets.push(Target {
-                gas,
-                share,
-                tolerance,
-            });
+            targets.push(Target { gas, share, tolerance });
         }
         mixture::check_parts(&parts, catalogue).map_err(|e| err("components", e.to_string()))?;
         let composition = Composition::from_parts(&parts);
@@ -289,13 +269,8 @@ impl Recipe {
         let c = &self.cylinder;
         let volume_m3 = units::parse_volume(&c.water_capacity)
             .map_err(|e| err(&quoted(&c.water_capacity), format!("water_capacity: {e}")))?;
-        let working_pressure_pa =
-            units::parse_pressure(&c.working_pressure, ambient_pa).map_err(|e| {
-                err(
-                    &quoted(&c.working_pressure),
-                    format!("working_pressure: {e}"),
-                )
-            })?;
+        let working_pressure_pa = units::parse_pressure(&c.working_pressure, ambient_pa)
+            .map_err(|e| err(&quoted(&c.working_pressure), format!("working_pressure: {e}")))?;
         let test_pressure_pa = units::parse_pressure(&c.test_pressure, ambient_pa)
             .map_err(|e| err(&quoted(&c.test_pressure), format!("test_pressure: {e}")))?;
         if test_pressure_pa < working_pressure_pa {
@@ -312,10 +287,7 @@ impl Recipe {
             Some(t) => match units::parse_amount(t) {
                 Ok(AmountInput::Grams(g)) => Some(g),
                 Ok(AmountInput::Moles(_)) => {
-                    return Err(err(
-                        &quoted(t),
-                        format!("tare {t:?} must be a mass (g or kg), not an amount"),
-                    ))
+                    return Err(err(&quoted(t), format!("tare {t:?} must be a mass (g or kg), not an amount")))
                 }
                 Err(e) => return Err(err(&quoted(t), format!("tare: {e}"))),
             },
@@ -323,8 +295,7 @@ impl Recipe {
 
         let fill = match &self.fill {
             FillTarget::Pressure(p) => {
-                let pa = units::parse_pressure(p, ambient_pa)
-                    .map_err(|e| err(&quoted(p), format!("fill: {e}")))?;
+                let pa = units::parse_pressure(p, ambient_pa).map_err(|e| err(&quoted(p), format!("fill: {e}")))?;
                 if pa > test_pressure_pa {
                     return Err(err(
                         &quoted(p),
@@ -339,36 +310,24 @@ impl Recipe {
             FillTarget::Mass(m) => match units::parse_amount(m) {
                 Ok(AmountInput::Grams(g)) => Fill::MassG(g),
                 Ok(AmountInput::Moles(_)) => {
-                    return Err(err(
-                        &quoted(m),
-                        format!("fill Mass({m:?}) must be a mass; use Amount(..) for mol"),
-                    ))
+                    return Err(err(&quoted(m), format!("fill Mass({m:?}) must be a mass; use Amount(..) for mol")))
                 }
                 Err(e) => return Err(err(&quoted(m), format!("fill: {e}"))),
             },
             FillTarget::Amount(n) => match units::parse_amount(n) {
                 Ok(AmountInput::Moles(mol)) => Fill::AmountMol(mol),
                 Ok(AmountInput::Grams(_)) => {
-                    return Err(err(
-                        &quoted(n),
-                        format!("fill Amount({n:?}) must be in mol; use Mass(..) for g or kg"),
-                    ))
+                    return Err(err(&quoted(n), format!("fill Amount({n:?}) must be in mol; use Mass(..) for g or kg")))
                 }
                 Err(e) => return Err(err(&quoted(n), format!("fill: {e}"))),
             },
         };
 
         let reference_temperature_k = units::parse_temperature(&self.reference_temperature)
-            .map_err(|e| {
-                err(
-                    &quoted(&self.reference_temperature),
-                    format!("reference_temperature: {e}"),
-                )
-            })?;
+            .map_err(|e| err(&quoted(&self.reference_temperature), format!("reference_temperature: {e}")))?;
         let fill_temperature_k = match &self.fill_temperature {
             None => reference_temperature_k,
-            Some(t) => units::parse_temperature(t)
-                .map_err(|e| err(&quoted(t), format!("fill_temperature: {e}")))?,
+            Some(t) => units::parse_temperature(t).map_err(|e| err(&quoted(t), format!("fill_temperature: {e}")))?,
         };
 
         let sources = if self.sources.is_empty() {
@@ -378,10 +337,7 @@ impl Recipe {
                     let id = catalogue.gas(t.gas).id().to_string();
                     Source {
                         name: id,
-                        composition: Composition {
-                            gases: vec![t.gas],
-                            fractions: vec![1.0],
-                        },
+                        composition: Composition { gases: vec![t.gas], fractions: vec![1.0] },
                         pure: true,
                     }
                 })
@@ -391,15 +347,10 @@ impl Recipe {
             for s in &self.sources {
                 let source = match s {
                     SourceLine::Pure(id) => {
-                        let gas = catalogue
-                            .find(id)
-                            .map_err(|e| err(&quoted(id), format!("source: {e}")))?;
+                        let gas = catalogue.find(id).map_err(|e| err(&quoted(id), format!("source: {e}")))?;
                         Source {
                             name: catalogue.gas(gas).id().to_string(),
-                            composition: Composition {
-                                gases: vec![gas],
-                                fractions: vec![1.0],
-                            },
+                            composition: Composition { gases: vec![gas], fractions: vec![1.0] },
                             pure: true,
                         }
                     }
@@ -409,18 +360,11 @@ impl Recipe {
                         }
                         let composition = Composition::from_spec(mix, catalogue)
                             .map_err(|e| err(&quoted(mix), format!("source {name:?}: {e}")))?;
-                        Source {
-                            name: name.clone(),
-                            composition,
-                            pure: false,
-                        }
+                        Source { name: name.clone(), composition, pure: false }
                     }
                 };
                 if out.iter().any(|o| o.name == source.name) {
-                    return Err(err(
-                        &quoted(&source.name),
-                        format!("source {:?} is listed twice", source.name),
-                    ));
+                    return Err(err(&quoted(&source.name), format!("source {:?} is listed twice", source.name)));
                 }
                 out.push(source);
             }
@@ -432,10 +376,7 @@ impl Recipe {
                 let known: Vec<&str> = sources.iter().map(|s| s.name.as_str()).collect();
                 return Err(err(
                     &quoted(name),
-                    format!(
-                        "fill_order names {name:?}, which is not a source; the sources are {}",
-                        known.join(", ")
-                    ),
+                    format!("fill_order names {name:?}, which is not a source; the sources are {}", known.join(", ")),
                 ));
             }
         }
@@ -469,30 +410,19 @@ impl Recipe {
 pub fn parse_tolerance(text: &str, fraction: Option<f64>) -> Result<f64, String> {
     let t = text.trim();
     let lower = t.to_ascii_lowercase();
-    if let Some(number) = lower
-        .strip_suffix("%rel")
-        .or_else(|| lower.strip_suffix("% rel"))
-    {
-        let rel: f64 = number
-            .trim()
-            .parse()
-            .map_err(|_| "is not a number".to_string())?;
+    if let Some(number) = lower.strip_suffix("%rel").or_else(|| lower.strip_suffix("% rel")) {
+        let rel: f64 = number.trim().parse().map_err(|_| "is not a number".to_string())?;
         if !(rel.is_finite() && rel > 0.0 && rel < 100.0) {
             return Err("a relative tolerance must be between 0 and 100 %rel".into());
         }
         let Some(x) = fraction else {
-            return Err(
-                "the balance gas takes an absolute tolerance (e.g. 0.5%), not a relative one"
-                    .into(),
-            );
+            return Err("the balance gas takes an absolute tolerance (e.g. 0.5%), not a relative one".into());
         };
         return Ok(x * rel / 100.0);
     }
     match mixture::parse_share(t)? {
         Share::Of { value, unit } => Ok(value * unit.scale()),
-        Share::Balance => {
-            Err("accepted: 2%rel (relative) or an absolute amount such as 10ppm or 0.1%".into())
-        }
+        Share::Balance => Err("accepted: 2%rel (relative) or an absolute amount such as 10ppm or 0.1%".into()),
     }
 }
 
@@ -507,12 +437,7 @@ fn place(origin: &str, text: &str, needle: &str, message: String) -> RecipeError
         }
         None => (1, 1),
     };
-    RecipeError {
-        origin: origin.into(),
-        line,
-        column,
-        message,
-    }
+    RecipeError { origin: origin.into(), line, column, message }
 }
 
 #[cfg(test)]

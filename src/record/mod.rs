@@ -9,10 +9,7 @@ use crate::mixture::Composition;
 ///
 /// with `parents` the parent compositions and the mass of each added, g. The result lists
 /// the gases in order of first appearance.
-pub fn composition_from_masses(
-    parents: &[(&Composition, f64)],
-    catalogue: &Catalogue,
-) -> Composition {
+pub fn composition_from_masses(parents: &[(&Composition, f64)], catalogue: &Catalogue) -> Composition {
     let mut gases: Vec<usize> = Vec::new();
     for (c, _) in parents {
         for &g in &c.gases {
@@ -31,10 +28,7 @@ pub fn composition_from_masses(
         }
     }
     let total: f64 = moles.iter().sum();
-    Composition {
-        gases,
-        fractions: moles.iter().map(|n| n / total).collect(),
-    }
+    Composition { gases, fractions: moles.iter().map(|n| n / total).collect() }
 }
 
 #[cfg(test)]
@@ -45,14 +39,8 @@ mod tests {
     fn two_pure_parents() {
         // 44.009 g of CO2 (1 mol) and 28.014 g of N2 (1 mol) make a 50/50 mixture.
         let c = Catalogue::built_in();
-        let co2 = Composition {
-            gases: vec![c.index_of("CO2").unwrap()],
-            fractions: vec![1.0],
-        };
-        let n2 = Composition {
-            gases: vec![c.index_of("N2").unwrap()],
-            fractions: vec![1.0],
-        };
+        let co2 = Composition { gases: vec![c.index_of("CO2").unwrap()], fractions: vec![1.0] };
+        let n2 = Composition { gases: vec![c.index_of("N2").unwrap()], fractions: vec![1.0] };
         let made = composition_from_masses(&[(&co2, 44.009), (&n2, 28.014)], &c);
         assert!((made.fractions[0] - 0.5).abs() < 1e-15);
     }

@@ -36,10 +36,7 @@ impl CubicKind {
         match self {
             CubicKind::VanDerWaals => (0.0, 0.0),
             CubicKind::RedlichKwong | CubicKind::SoaveRedlichKwong => (0.0, 1.0),
-            CubicKind::PengRobinson => (
-                1.0 - std::f64::consts::SQRT_2,
-                1.0 + std::f64::consts::SQRT_2,
-            ),
+            CubicKind::PengRobinson => (1.0 - std::f64::consts::SQRT_2, 1.0 + std::f64::consts::SQRT_2),
         }
     }
 
@@ -113,13 +110,7 @@ pub struct Mix {
 
 /// Van der Waals one-fluid mixing:
 /// a = Σ_i Σ_j x_i x_j √(a_i a_j)(1 − k_ij), b = Σ_i x_i b_i.
-pub fn mix(
-    kind: CubicKind,
-    components: &[CubicComponent],
-    kij: &[Vec<f64>],
-    x: &[f64],
-    t_k: f64,
-) -> Mix {
+pub fn mix(kind: CubicKind, components: &[CubicComponent], kij: &[Vec<f64>], x: &[f64], t_k: f64) -> Mix {
     let (a_i, b_i): (Vec<f64>, Vec<f64>) = components.iter().map(|c| c.a_b(kind, t_k)).unzip();
     let n = components.len();
     let mut a_row = vec![0.0; n];
@@ -193,10 +184,7 @@ pub fn solve_z(kind: CubicKind, m: &Mix, t_k: f64, p_pa: f64) -> Option<ZSolutio
     let c2 = -(1.0 + big_b - (eps + sig) * big_b);
     let c1 = big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b);
     let c0 = -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b));
-    let mut roots: Vec<f64> = real_cubic_roots(c2, c1, c0)
-        .into_iter()
-        .filter(|&z| z > big_b)
-        .collect();
+    let mut roots: Vec<f64> = real_cubic_roots(c2, c1, c0).into_iter().filter(|&z| z > big_b).collect();
     roots.sort_by(f64::total_cmp);
     roots.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs());
     let (z, root) = match roots.as_slice() {
@@ -212,12 +200,7 @@ pub fn solve_z(kind: CubicKind, m: &Mix, t_k: f64, p_pa: f64) -> Option<ZSolutio
             }
         }
     };
-    Some(ZSolution {
-        z,
-        root,
-        big_a,
-        big_b,
-    })
+    Some(ZSolution { z, root, big_a, big_b })
 }
 
 /// ln φ_i of each component at a solved Z.
@@ -290,24 +273,13 @@ mod tests {
     #[test]
     fn critical_isotherm_inflects_at_the_critical_point() {
         // At Tc, Pc the cubic has a triple root Z_c: 3/8 (vdW), 1/3 (RK), 0.30740 (PR).
-        let comp = CubicComponent {
-            tc_k: 190.564,
-            pc_pa: 4.5992e6,
-            omega: 0.0,
-            tabulated_ab: None,
-        };
+        let comp = CubicComponent { tc_k: 190.564, pc_pa: 4.5992e6, omega: 0.0, tabulated_ab: None };
         for (kind, zc) in [
             (CubicKind::VanDerWaals, 0.375),
             (CubicKind::RedlichKwong, 1.0 / 3.0),
             (CubicKind::PengRobinson, 0.307_401_3),
         ] {
-            let m = mix(
-                kind,
-                std::slice::from_ref(&comp),
-                &[vec![0.0]],
-                &[1.0],
-                comp.tc_k,
-            );
+            let m = mix(kind, std::slice::from_ref(&comp), &[vec![0.0]], &[1.0], comp.tc_k);
             let s = solve_z(kind, &m, comp.tc_k, comp.pc_pa).unwrap();
             assert!((s.z - zc).abs() < 2e-4, "{kind:?}: {}", s.z);
         }

@@ -9,8 +9,8 @@ use aga8::gerg2008::Gerg2008;
 
 /// The 21 GERG-2008 components, by our canonical id.
 pub const COVERED: [&str; 21] = [
-    "CH4", "N2", "CO2", "C2H6", "C3H8", "i-C4H10", "n-C4H10", "i-C5H12", "n-C5H12", "n-C6H14",
-    "n-C7H16", "n-C8H18", "n-C9H20", "n-C10H22", "H2", "O2", "CO", "H2O", "H2S", "He", "Ar",
+    "CH4", "N2", "CO2", "C2H6", "C3H8", "i-C4H10", "n-C4H10", "i-C5H12", "n-C5H12", "n-C6H14", "n-C7H16", "n-C8H18",
+    "n-C9H20", "n-C10H22", "H2", "O2", "CO", "H2O", "H2S", "He", "Ar",
 ];
 
 /// Whether GERG-2008 covers a gas id.
@@ -54,15 +54,9 @@ pub struct Gerg {
 impl Gerg {
     /// `None` lists the uncovered ids.
     pub fn new(ids: &[&str]) -> Result<Gerg, Vec<String>> {
-        let missing: Vec<String> = ids
-            .iter()
-            .filter(|id| !covers(id))
-            .map(|s| s.to_string())
-            .collect();
+        let missing: Vec<String> = ids.iter().filter(|id| !covers(id)).map(|s| s.to_string()).collect();
         if missing.is_empty() {
-            Ok(Gerg {
-                ids: ids.iter().map(|s| s.to_string()).collect(),
-            })
+            Ok(Gerg { ids: ids.iter().map(|s| s.to_string()).collect() })
         } else {
             Err(missing)
         }

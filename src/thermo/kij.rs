@@ -19,23 +19,14 @@ fn pr_table() -> &'static [(String, String, f64)] {
 /// The published k_ij of `model` for a pair of gas ids, 0 where none is listed.
 pub fn value(model: Model, a: &str, b: &str) -> f64 {
     match model {
-        Model::Pr => pr_table()
-            .iter()
-            .find(|(x, y, _)| (x == a && y == b) || (x == b && y == a))
-            .map_or(0.0, |t| t.2),
+        Model::Pr => pr_table().iter().find(|(x, y, _)| (x == a && y == b) || (x == b && y == a)).map_or(0.0, |t| t.2),
         _ => 0.0,
     }
 }
 
 /// The symmetric k_ij matrix of `model` for `ids`.
 pub fn matrix(model: Model, ids: &[&str]) -> Vec<Vec<f64>> {
-    ids.iter()
-        .map(|a| {
-            ids.iter()
-                .map(|b| if a == b { 0.0 } else { value(model, a, b) })
-                .collect()
-        })
-        .collect()
+    ids.iter().map(|a| ids.iter().map(|b| if a == b { 0.0 } else { value(model, a, b) }).collect()).collect()
 }
 
 #[cfg(test)]
@@ -46,10 +37,7 @@ mod tests {
     fn pr_table_is_symmetric_in_lookup_and_names_known_gases() {
         let c = crate::gas::Catalogue::built_in();
         for (a, b, k) in pr_table() {
-            assert!(
-                c.index_of(a).is_some() && c.index_of(b).is_some(),
-                "{a}-{b}"
-            );
+            assert!(c.index_of(a).is_some() && c.index_of(b).is_some(), "{a}-{b}");
             assert!(k.is_finite() && k.abs() < 1.0);
         }
         // ChemSep PR k_ij for N2-CH4 is 0.0289 (thermo IPDB 'ChemSep PR').

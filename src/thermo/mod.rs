@@ -40,14 +40,7 @@ pub enum Model {
 
 impl Model {
     /// Every model, simplest first.
-    pub const ALL: [Model; 6] = [
-        Model::Ideal,
-        Model::Vdw,
-        Model::Rk,
-        Model::Srk,
-        Model::Pr,
-        Model::Gerg,
-    ];
+    pub const ALL: [Model; 6] = [Model::Ideal, Model::Vdw, Model::Rk, Model::Srk, Model::Pr, Model::Gerg];
 
     /// The name used on the command line and in JSON.
     pub fn key(self) -> &'static str {
@@ -109,11 +102,7 @@ pub enum ThermoError {
         "molar volume {v_l_per_mol:.6} L/mol is not above the {model} co-volume b = {b_l_per_mol:.6} L/mol: \
          more gas than the model can fit in that volume"
     )]
-    BelowCovolume {
-        model: Model,
-        v_l_per_mol: f64,
-        b_l_per_mol: f64,
-    },
+    BelowCovolume { model: Model, v_l_per_mol: f64, b_l_per_mol: f64 },
     #[error("the {model} model gives no gas state here ({why})")]
     NoState { model: Model, why: String },
     #[error("GERG-2008 does not cover {}; choose another model (pr, srk, rk, vdw, ideal)", .0.join(", "))]
@@ -154,10 +143,7 @@ impl Fluid {
         if gases.is_empty() {
             return Err(ThermoError::Composition("no components".into()));
         }
-        let ids: Vec<String> = gases
-            .iter()
-            .map(|&g| catalogue.gas(g).id().to_string())
-            .collect();
+        let ids: Vec<String> = gases.iter().map(|&g| catalogue.gas(g).id().to_string()).collect();
         let id_refs: Vec<&str> = ids.iter().map(String::as_str).collect();
         let gerg = match model {
             Model::Gerg => Some(gerg::Gerg::new(&id_refs).map_err(ThermoError::NotCovered)?),
@@ -181,10 +167,7 @@ impl Fluid {
             .collect();
         Ok(Fluid {
             model,
-            molar_masses: gases
-                .iter()
-                .map(|&g| catalogue.gas(g).molar_mass_g_per_mol)
-                .collect(),
+            molar_masses: gases.iter().map(|&g| catalogue.gas(g).molar_mass_g_per_mol).collect(),
             kij: kij::matrix(model, &id_refs),
             ids,
             cubic,
@@ -219,22 +202,14 @@ impl Fluid {
 
     fn check_x(&self, x: &[f64]) -> Result<(), ThermoError> {
         if x.len() != self.ids.len() {
-            return Err(ThermoError::Composition(format!(
-                "{} mole fractions for {} gases",
-                x.len(),
-                self.ids.len()
-            )));
+            return Err(ThermoError::Composition(format!("{} mole fractions for {} gases", x.len(), self.ids.len())));
         }
         if x.iter().any(|v| !v.is_finite() || *v < 0.0) {
-            return Err(ThermoError::Composition(
-                "mole fractions must be finite and not negative".into(),
-            ));
+            return Err(ThermoError::Composition("mole fractions must be finite and not negative".into()));
         }
         let sum: f64 = x.iter().sum();
         if (sum - 1.0).abs() > 1e-9 {
-            return Err(ThermoError::Composition(format!(
-                "mole fractions add up to {sum}, not 1"
-            )));
+            return Err(ThermoError::Composition(format!("mole fractions add up to {sum}, not 1")));
         }
         Ok(())
     }
@@ -271,18 +246,14 @@ impl Fluid {
             (Model::Ideal, _) => (1.0, false, false),
             (_, Some(kind)) => {
                 let m = self.mix(kind, t_k, x);
-                let s =
-                    cubic::solve_z(kind, &m, t_k, p_pa).ok_or_else(|| ThermoError::NoState {
-                        model: self.model,
-                        why: "no root of the cubic above the co-volume".into(),
-                    })?;
+                let s = cubic::solve_z(kind, &m, t_k, p_pa).ok_or_else(|| ThermoError::NoState {
+                    model: self.model,
+                    why: "no root of the cubic above the co-volume".into(),
+                })?;
                 (s.z, s.root != Root::Single, s.root == Root::LiquidOfThree)
             }
             (_, None) => {
-                let g = self
-                    .gerg
-                    .as_ref()
-                    .ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+                let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
                 let rho = g.density(x, t_k, p_pa).ok_or_else(|| ThermoError::NoState {
                     model: self.model,
                     why: "the GERG-2008 density iteration found no root; the state may be two-phase".into(),
@@ -292,12 +263,7 @@ impl Fluid {
                 (p_pa / (rho * rt), false, false)
             }
         };
-        Ok(TpState {
-            z,
-            molar_volume_m3: z * rt / p_pa,
-            near_condensation: near,
-            liquid_like: liquid,
-        })
+        Ok(TpState { z, molar_volume_m3: z * rt / p_pa, near_condensation: near, liquid_like: liquid })
     }
 
     /// Pressure, Pa, at (T, molar volume v in m³/mol, x).
@@ -321,15 +287,11 @@ impl Fluid {
                 cubic::pressure(kind, &m, t_k, v_m3_per_mol)
             }
             (_, None) => {
-                let g = self
-                    .gerg
-                    .as_ref()
-                    .ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                g.pressure(x, t_k, 1.0 / v_m3_per_mol)
-                    .ok_or_else(|| ThermoError::NoState {
-                        model: self.model,
-                        why: "GERG-2008 pressure is not finite".into(),
-                    })?
+                let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+                g.pressure(x, t_k, 1.0 / v_m3_per_mol).ok_or_else(|| ThermoError::NoState {
+                    model: self.model,
+                    why: "GERG-2008 pressure is not finite".into(),
+                })?
             }
         };
         if !(p.is_finite() && p > 0.0) {
@@ -346,12 +308,7 @@ impl Fluid {
     pub fn dp_dv(&self, t_k: f64, v_m3_per_mol: f64, x: &[f64]) -> Option<f64> {
         match (self.model, self.model.cubic_kind()) {
             (Model::Ideal, _) => Some(-R * t_k / (v_m3_per_mol * v_m3_per_mol)),
-            (_, Some(kind)) => Some(cubic::dp_dv(
-                kind,
-                &self.mix(kind, t_k, x),
-                t_k,
-                v_m3_per_mol,
-            )),
+            (_, Some(kind)) => Some(cubic::dp_dv(kind, &self.mix(kind, t_k, x), t_k, v_m3_per_mol)),
             _ => None,
         }
     }
@@ -365,11 +322,8 @@ impl Fluid {
             (Model::Ideal, _) => Ok(vec![0.0; x.len()]),
             (_, Some(kind)) => {
                 let m = self.mix(kind, t_k, x);
-                let s =
-                    cubic::solve_z(kind, &m, t_k, p_pa).ok_or_else(|| ThermoError::NoState {
-                        model: self.model,
-                        why: "no root".into(),
-                    })?;
+                let s = cubic::solve_z(kind, &m, t_k, p_pa)
+                    .ok_or_else(|| ThermoError::NoState { model: self.model, why: "no root".into() })?;
                 Ok(cubic::ln_phi(kind, &m, &s))
             }
             _ => Err(ThermoError::NoFugacity(self.model)),
@@ -377,13 +331,7 @@ impl Fluid {
     }
 
     /// Amount of gas, mol, in `volume_m3` at (T, P, x).
-    pub fn amount(
-        &self,
-        t_k: f64,
-        p_pa: f64,
-        volume_m3: f64,
-        x: &[f64],
-    ) -> Result<f64, ThermoError> {
+    pub fn amount(&self, t_k: f64, p_pa: f64, volume_m3: f64, x: &[f64]) -> Result<f64, ThermoError> {
         if !(volume_m3.is_finite() && volume_m3 > 0.0) {
             return Err(ThermoError::Volume(volume_m3 * 1e3));
         }
@@ -391,13 +339,7 @@ impl Fluid {
     }
 
     /// Volume, m³, that `amount_mol` occupies at (T, P, x).
-    pub fn volume(
-        &self,
-        t_k: f64,
-        p_pa: f64,
-        amount_mol: f64,
-        x: &[f64],
-    ) -> Result<f64, ThermoError> {
+    pub fn volume(&self, t_k: f64, p_pa: f64, amount_mol: f64, x: &[f64]) -> Result<f64, ThermoError> {
         if !(amount_mol.is_finite() && amount_mol > 0.0) {
             return Err(ThermoError::Amount(amount_mol));
         }
@@ -405,19 +347,12 @@ impl Fluid {
     }
 
     /// Pressure, Pa, of the amounts `amounts_mol` (one per gas) in `volume_m3` at T.
-    pub fn pressure(
-        &self,
-        t_k: f64,
-        volume_m3: f64,
-        amounts_mol: &[f64],
-    ) -> Result<f64, ThermoError> {
+    pub fn pressure(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<f64, ThermoError> {
         if !(volume_m3.is_finite() && volume_m3 > 0.0) {
             return Err(ThermoError::Volume(volume_m3 * 1e3));
         }
         if amounts_mol.iter().any(|n| !n.is_finite() || *n < 0.0) {
-            return Err(ThermoError::Amount(
-                amounts_mol.iter().copied().fold(f64::NAN, f64::min),
-            ));
+            return Err(ThermoError::Amount(amounts_mol.iter().copied().fold(f64::NAN, f64::min)));
         }
         let total: f64 = amounts_mol.iter().sum();
         if !(total > 0.0) {
@@ -443,9 +378,7 @@ mod tests {
         // Permanent gases: |Z - 1| = |B| P/RT is below 1e-6 at 1 mbar for every model.
         for model in Model::ALL {
             let f = fluid(&["N2", "O2", "Ar", "CH4", "He"], model);
-            let s = f
-                .state_tp(288.15, 100.0, &[0.7, 0.1, 0.1, 0.05, 0.05])
-                .unwrap();
+            let s = f.state_tp(288.15, 100.0, &[0.7, 0.1, 0.1, 0.05, 0.05]).unwrap();
             assert!((s.z - 1.0).abs() < 1e-6, "{model}: Z = {}", s.z);
         }
     }
@@ -462,11 +395,7 @@ mod tests {
                 let z1 = f.state_tp(400.0, 100.0, &[1.0]).unwrap().z - 1.0;
                 let z2 = f.state_tp(400.0, 10.0, &[1.0]).unwrap().z - 1.0;
                 assert!(z1.abs() < 1e-4, "{model} {}: {z1}", c.gas(g).id());
-                assert!(
-                    (z1 / z2 - 10.0).abs() < 1e-3,
-                    "{model} {}: {z1} {z2}",
-                    c.gas(g).id()
-                );
+                assert!((z1 / z2 - 10.0).abs() < 1e-3, "{model} {}: {z1} {z2}", c.gas(g).id());
             }
         }
     }
@@ -474,55 +403,22 @@ mod tests {
     #[test]
     fn out_of_domain_inputs_are_errors_not_nan() {
         let f = fluid(&["N2"], Model::Pr);
-        assert!(matches!(
-            f.state_tp(0.0, 1e5, &[1.0]),
-            Err(ThermoError::Temperature(_))
-        ));
-        assert!(matches!(
-            f.state_tp(-5.0, 1e5, &[1.0]),
-            Err(ThermoError::Temperature(_))
-        ));
-        assert!(matches!(
-            f.state_tp(f64::NAN, 1e5, &[1.0]),
-            Err(ThermoError::Temperature(_))
-        ));
-        assert!(matches!(
-            f.state_tp(300.0, 0.0, &[1.0]),
-            Err(ThermoError::PressureNotPositive(_))
-        ));
-        assert!(matches!(
-            f.state_tp(300.0, 1001e5, &[1.0]),
-            Err(ThermoError::PressureTooHigh(_))
-        ));
-        assert!(matches!(
-            f.amount(300.0, 1e5, 0.0, &[1.0]),
-            Err(ThermoError::Volume(_))
-        ));
-        assert!(matches!(
-            f.volume(300.0, 1e5, -1.0, &[1.0]),
-            Err(ThermoError::Amount(_))
-        ));
-        assert!(matches!(
-            f.pressure(300.0, 1e-3, &[0.0]),
-            Err(ThermoError::Amount(_))
-        ));
-        assert!(matches!(
-            f.pressure_tv(300.0, 1e-6, &[1.0]),
-            Err(ThermoError::BelowCovolume { .. })
-        ));
-        assert!(matches!(
-            f.state_tp(300.0, 1e5, &[0.5]),
-            Err(ThermoError::Composition(_))
-        ));
+        assert!(matches!(f.state_tp(0.0, 1e5, &[1.0]), Err(ThermoError::Temperature(_))));
+        assert!(matches!(f.state_tp(-5.0, 1e5, &[1.0]), Err(ThermoError::Temperature(_))));
+        assert!(matches!(f.state_tp(f64::NAN, 1e5, &[1.0]), Err(ThermoError::Temperature(_))));
+        assert!(matches!(f.state_tp(300.0, 0.0, &[1.0]), Err(ThermoError::PressureNotPositive(_))));
+        assert!(matches!(f.state_tp(300.0, 1001e5, &[1.0]), Err(ThermoError::PressureTooHigh(_))));
+        assert!(matches!(f.amount(300.0, 1e5, 0.0, &[1.0]), Err(ThermoError::Volume(_))));
+        assert!(matches!(f.volume(300.0, 1e5, -1.0, &[1.0]), Err(ThermoError::Amount(_))));
+        assert!(matches!(f.pressure(300.0, 1e-3, &[0.0]), Err(ThermoError::Amount(_))));
+        assert!(matches!(f.pressure_tv(300.0, 1e-6, &[1.0]), Err(ThermoError::BelowCovolume { .. })));
+        assert!(matches!(f.state_tp(300.0, 1e5, &[0.5]), Err(ThermoError::Composition(_))));
     }
 
     #[test]
     fn gerg_refuses_gases_it_does_not_cover() {
         let c = Catalogue::built_in();
-        let idx: Vec<usize> = ["N2", "SO2", "NO"]
-            .iter()
-            .map(|id| c.index_of(id).unwrap())
-            .collect();
+        let idx: Vec<usize> = ["N2", "SO2", "NO"].iter().map(|id| c.index_of(id).unwrap()).collect();
         let e = Fluid::new(&c, &idx, Model::Gerg).unwrap_err();
         assert_eq!(e, ThermoError::NotCovered(vec!["SO2".into(), "NO".into()]));
         assert!(e.to_string().contains("SO2, NO"));
@@ -537,9 +433,7 @@ mod tests {
         assert!(s.near_condensation && !s.liquid_like);
         let s = f.state_tp(288.15, 9e5, &[1.0]).unwrap();
         assert!(s.near_condensation && s.liquid_like);
-        let s = fluid(&["N2"], Model::Pr)
-            .state_tp(288.15, 200e5, &[1.0])
-            .unwrap();
+        let s = fluid(&["N2"], Model::Pr).state_tp(288.15, 200e5, &[1.0]).unwrap();
         assert!(!s.near_condensation);
     }
 }

@@ -22,21 +22,10 @@ pub const GASES: &[SurveyGas] = &[
     ("Ar", &[("Ar", 1.0)], FULL_RANGE),
     ("He", &[("He", 1.0)], FULL_RANGE),
     ("H2", &[("H2", 1.0)], FULL_RANGE),
-    (
-        "air-like",
-        &[("N2", 0.7812), ("O2", 0.2096), ("Ar", 0.0092)],
-        FULL_RANGE,
-    ),
+    ("air-like", &[("N2", 0.7812), ("O2", 0.2096), ("Ar", 0.0092)], FULL_RANGE),
     (
         "natural-gas-like",
-        &[
-            ("CH4", 0.90),
-            ("C2H6", 0.05),
-            ("C3H8", 0.02),
-            ("N2", 0.015),
-            ("CO2", 0.01),
-            ("n-C4H10", 0.005),
-        ],
+        &[("CH4", 0.90), ("C2H6", 0.05), ("C3H8", 0.02), ("N2", 0.015), ("CO2", 0.01), ("n-C4H10", 0.005)],
         FULL_RANGE,
     ),
 ];
@@ -57,10 +46,7 @@ pub struct Deviation {
 pub fn density_deviations(catalogue: &Catalogue) -> Vec<Deviation> {
     let mut out = Vec::new();
     for &(label, parts, pressures) in GASES {
-        let gases: Vec<usize> = parts
-            .iter()
-            .filter_map(|(id, _)| catalogue.index_of(id))
-            .collect();
+        let gases: Vec<usize> = parts.iter().filter_map(|(id, _)| catalogue.index_of(id)).collect();
         let x: Vec<f64> = parts.iter().map(|p| p.1).collect();
         let Ok(reference) = Fluid::new(catalogue, &gases, Model::Gerg) else {
             continue;
@@ -104,10 +90,7 @@ pub fn markdown_table(catalogue: &Catalogue) -> String {
         for &p in pressures {
             s.push_str(&format!("| {label} | {p} |"));
             for m in MODELS {
-                match devs
-                    .iter()
-                    .find(|d| d.gas == label && d.model == m && d.pressure_bar == p)
-                {
+                match devs.iter().find(|d| d.gas == label && d.model == m && d.pressure_bar == p) {
                     Some(d) => s.push_str(&format!(" {:+.2} % |", d.percent)),
                     None => s.push_str(" – |"),
                 }

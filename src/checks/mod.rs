@@ -1,0 +1,95 @@
+//! Screening before the fill: condensation, pressure rating, flammability, oxidising
+//! ability, toxicity and incompatible pairs.
+//!
+//! Every result is a screening aid, not a classification: the values behind the ISO 10156
+//! and ISO 10298 methods are marked "from memory" in `gas/hazards.ron` until checked, and
+//! local codes, the cylinder's markings and licensed practice decide.
+
+pub mod condensation;
+pub mod hazards;
+pub mod phase;
+pub mod rating;
+
+use serde_json::{Map, Value};
+
+use crate::gas::Catalogue;
+use crate::plan::Plan;
+use crate::recipe::Order;
+use crate::thermo::Model;
+
+/// How much a finding matters.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum Severity {
+    Ok,
+    Caution,
+    Stop,
+}
+
+impl Severity {
+    pub fn key(self) -> &'static str {
+        match self {
+            Severity::Ok => "ok",
+            Severity::Caution => "caution",
+            Severity::Stop => "stop",
+        }
+    }
+}
+
+/// One screening result.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Check {
+    /// `condensation`, `pressure-rating`, `flammability`, `oxidising`, `toxicity` or
+    /// `incompatibility`.
+    pub id: &'static str,
+    pub severity: Severity,
+    /// The verdict in one sentence.
+    pub message: String,
+    /// The figures behind it, one line each, for the text output.
+    pub details: Vec<String>,
+    /// The same figures for JSON.
+    pub data: Map<String, Value>,
+}
+
+/// Conditions the cylinder will see.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Conditions {
+    /// Lowest storage and transport temperature, K.
+    pub min_temperature_k: f64,
+    /// Highest service temperature, K.
+    pub max_temperature_k: f64,
+}
+
+/// The usual cautions, shown after every screening.
+pub const CAUTIONS: &[&str] = &[
+    "These checks are screening aids, not a classification; hazard values marked \"from memory\" in the catalogue must be checked against the current standards.",
+    "Follow local codes, the cylinder's markings (working and test pressure, test date, valve outlet) and licensed practice.",
+    "High-pressure gas can kill: use rated equipment, fill slowly (the cylinder warms as it fills) and never exceed the working pressure.",
+    "Flammable, toxic and oxidising gases need their own valves, labels, ventilation and leak checks; keep oxidisers and flammables apart until the procedure says otherwise.",
+    "Mixtures above about 23.5 % O2 need oxygen-clean equipment; rapid filling with oxygen heats the gas adiabatically (common practice).",
+];
+
+/// The model used for the equation-of-state parts of the screening: the plan's cubic
+/// model where it has one, else Peng–Robinson.
+pub fn phase_model(plan_model: Model) -> Model {
+    match plan_model {
+        Model::Vdw | Model::Rk | Model::Srk | Model::Pr => plan_model,
+        Model::Ideal | Model::Gerg => Model::Pr,
+    }
+}
+
+/// Run every check on a planned order.
+pub fn screen(plan: &Plan, order: &Order, catalogue: &Catalogue, conditions: &Conditions) -> Vec<Check> {
+    vec![
+        condensation::check(plan, order, catalogue, conditions),
+        rating::check(plan, order, conditions),
+        hazards::flammability(plan, catalogue),
+        hazards::oxidising(plan, catalogue),
+        hazards::toxicity(plan, catalogue),
+        hazards::incompatibility(plan, catalogue),
+    ]
+}
+
+/// The highest severity of a set of checks.
+pub fn worst(checks: &[Check]) -> Severity {
+    checks.iter().map(|c| c.severity).max().unwrap_or(Severity::Ok)
+}

@@ -1,0 +1,111 @@
+//! The cylinder's pressure rating: settled pressure at 15 °C against the working pressure,
+//! the pressure at the highest service temperature against the test pressure, for the
+//! final fill and every step on the way.
+
+use serde_json::{json, Map};
+
+use super::{Check, Conditions, Severity};
+use crate::plan::Plan;
+use crate::recipe::Order;
+use crate::thermo::MAX_PRESSURE_PA;
+use crate::units::{bar, celsius, REFERENCE_TEMPERATURE_K};
+
+/// Within this fraction of the test pressure at the highest service temperature, caution.
+const TEST_MARGIN: f64 = 0.9;
+
+pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
+    let mut data = Map::new();
+    let rated = order.working_pressure_pa < MAX_PRESSURE_PA && order.test_pressure_pa < MAX_PRESSURE_PA;
+    let last = plan.steps.last().map(|s| s.amounts_after_mol.clone()).unwrap_or_default();
+    let at = |t: f64, amounts: &[f64]| plan.fluid.pressure(t, order.volume_m3, amounts);
+    let settled = match at(REFERENCE_TEMPERATURE_K, &last) {
+        Ok(p) => p,
+        Err(e) => {
+            return Check {
+                id: "pressure-rating",
+                severity: Severity::Stop,
+                message: format!("the settled pressure cannot be computed: {e}"),
+                details: Vec::new(),
+                data,
+            }
+        }
+    };
+    let hot: Vec<Result<f64, String>> =
+        plan.steps.iter().map(|s| at(c.max_temperature_k, &s.amounts_after_mol).map_err(|e| e.to_string())).collect();
+    let hot_final = hot.last().cloned().unwrap_or(Ok(settled));
+    data.insert("settled_pressure_bar".into(), json!(bar(settled)));
+    data.insert("hot_pressure_bar".into(), json!(hot_final.as_ref().ok().map(|p| bar(*p))));
+    data.insert("max_temperature_k".into(), json!(c.max_temperature_k));
+    let mut details = vec![format!("settled at 15 °C: {:.2} bar", bar(settled))];
+    match &hot_final {
+        Ok(p) => details.push(format!("at {:.0} °C: {:.2} bar", celsius(c.max_temperature_k), bar(*p))),
+        Err(e) => details.push(format!("at {:.0} °C: no gas state ({e})", celsius(c.max_temperature_k))),
+    }
+    for (i, (s, h)) in plan.steps.iter().zip(&hot).enumerate() {
+        details.push(format!(
+            "step {} {}: {:.2} bar at {:.1} °C, {} at {:.0} °C",
+            i + 1,
+            s.source,
+            bar(s.pressure_after_pa),
+            celsius(s.temperature_k),
+            h.as_ref().map_or("–".to_string(), |p| format!("{:.2} bar", bar(*p))),
+            celsius(c.max_temperature_k)
+        ));
+    }
+    if !rated {
+        return Check {
+            id: "pressure-rating",
+            severity: Severity::Caution,
+            message: "no cylinder rating given: set the working and test pressure (recipe cylinder, or --working-pressure and --test-pressure)".into(),
+            details,
+            data,
+        };
+    }
+    data.insert("working_pressure_bar".into(), json!(bar(order.working_pressure_pa)));
+    data.insert("test_pressure_bar".into(), json!(bar(order.test_pressure_pa)));
+    let step_over_test = plan.steps.iter().position(|s| s.pressure_after_pa > order.test_pressure_pa);
+    let (severity, message) = match hot_final {
+        _ if settled > order.working_pressure_pa => (
+            Severity::Stop,
+            format!(
+                "settled pressure {:.1} bar at 15 °C is above the working pressure {:.1} bar",
+                bar(settled),
+                bar(order.working_pressure_pa)
+            ),
+        ),
+        _ if step_over_test.is_some() => (
+            Severity::Stop,
+            format!("step {} reads above the test pressure during the fill", step_over_test.unwrap_or(0) + 1),
+        ),
+        Err(e) => (Severity::Stop, format!("no gas state at the highest service temperature: {e}")),
+        Ok(p) if p > order.test_pressure_pa => (
+            Severity::Stop,
+            format!(
+                "at {:.0} °C the cylinder would reach {:.1} bar, above its test pressure {:.1} bar",
+                celsius(c.max_temperature_k),
+                bar(p),
+                bar(order.test_pressure_pa)
+            ),
+        ),
+        Ok(p) if p > TEST_MARGIN * order.test_pressure_pa => (
+            Severity::Caution,
+            format!(
+                "at {:.0} °C the cylinder would reach {:.1} bar, within 10 % of its test pressure",
+                celsius(c.max_temperature_k),
+                bar(p)
+            ),
+        ),
+        Ok(p) => (
+            Severity::Ok,
+            format!(
+                "{:.1} bar settled (working {:.0} bar), {:.1} bar at {:.0} °C (test {:.0} bar)",
+                bar(settled),
+                bar(order.working_pressure_pa),
+                bar(p),
+                celsius(c.max_temperature_k),
+                bar(order.test_pressure_pa)
+            ),
+        ),
+    };
+    Check { id: "pressure-rating", severity, message, details, data }
+}

@@ -1,0 +1,78 @@
+//! `fillwright check` as a user runs it.
+
+use std::process::{Command, Output};
+
+fn run(args: &[&str]) -> Output {
+    let config = std::env::temp_dir().join(format!("fillwright-check-test-empty-{}", std::process::id()));
+    Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(args)
+        .env("FILLWRIGHT_CONFIG", &config)
+        .env_remove("FILLWRIGHT_LIBRARY")
+        .output()
+        .unwrap()
+}
+
+fn json(o: &Output) -> serde_json::Value {
+    serde_json::from_slice(&o.stdout).unwrap_or_else(|e| panic!("{e}: {}", String::from_utf8_lossy(&o.stdout)))
+}
+
+#[test]
+fn json_carries_every_check_with_its_figures() {
+    let o = run(&["check", "lpg-in-methane", "--format", "json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
+    let v = json(&o);
+    let checks = v["checks"].as_array().unwrap();
+    let ids: Vec<&str> = checks.iter().map(|c| c["id"].as_str().unwrap()).collect();
+    assert_eq!(ids, ["condensation", "pressure-rating", "flammability", "oxidising", "toxicity", "incompatibility"]);
+    for c in checks {
+        assert!(["ok", "caution", "stop"].contains(&c["severity"].as_str().unwrap()));
+        assert!(c["message"].is_string());
+    }
+    assert!(checks[0]["cricondentherm_k"].is_number());
+    assert_eq!(checks[2]["flammable"], true);
+    assert_eq!(checks[3]["oxidising"], false);
+    assert_eq!(checks[4]["toxic"], false);
+    assert!(!v["cautions"].as_array().unwrap().is_empty());
+}
+
+#[test]
+fn a_stop_finding_exits_3() {
+    let o = run(&[
+        "check",
+        "--mix",
+        "NH3=1%,HCl=1%,N2=balance",
+        "--volume",
+        "10L",
+        "--pressure",
+        "100bar",
+        "--working-pressure",
+        "200bar",
+        "--test-pressure",
+        "300bar",
+    ]);
+    assert_eq!(o.status.code(), Some(3));
+    let text = String::from_utf8_lossy(&o.stdout);
+    let first = text.lines().next().unwrap();
+    assert!(first.contains("STOP"), "leads with what matters: {first}");
+    let second = text.lines().nth(1).unwrap();
+    assert!(second.contains("[stop") && second.contains("incompatibility"), "{second}");
+    assert!(text.trim_end().lines().last().unwrap().contains("oxygen"), "ends with the cautions");
+    // Too cold for the propane-butane blend: liquid at -20 °C.
+    let o = run(&["check", "lpg-in-methane", "--min-temp", "-20C"]);
+    assert_eq!(o.status.code(), Some(3), "{}", String::from_utf8_lossy(&o.stdout));
+}
+
+#[test]
+fn folders_of_recipes_and_refused_input() {
+    let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/mixtures");
+    let o = run(&["check", dir, "--format", "json"]);
+    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
+    let v = json(&o);
+    assert_eq!(v["checks"].as_array().unwrap().len(), 7 * 6);
+    let o =
+        run(&["check", "--mix", "CO2=15%,N2=balance", "--volume", "10L", "--pressure", "150bar", "--min-temp", "cold"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("--min-temp"));
+    let o = run(&["check"]);
+    assert_eq!(o.status.code(), Some(2));
+}

@@ -1,0 +1,253 @@
+//! Screening before the fill, against outside references and on either side of each limit.
+
+use fillwright::checks::hazards::{iso_10156_index, le_chatelier};
+use fillwright::checks::phase::PhaseFluid;
+use fillwright::checks::{self, Conditions, Severity};
+use fillwright::gas::Catalogue;
+use fillwright::plan::{self, PlanOptions};
+use fillwright::recipe::{demo, Recipe};
+use fillwright::thermo::{Fluid, Model};
+use serde::Deserialize;
+
+#[derive(Deserialize)]
+struct Fixture {
+    library: String,
+    vapour_pressures: Vec<Vapour>,
+    mixtures: Vec<Mixture>,
+}
+
+#[derive(Deserialize)]
+struct Vapour {
+    id: String,
+    temperature_k: f64,
+    pressure_pa: f64,
+}
+
+#[derive(Deserialize)]
+struct Mixture {
+    label: String,
+    ids: Vec<String>,
+    x: Vec<f64>,
+    dew_points: Vec<DewPoint>,
+    cricondentherm_k: f64,
+}
+
+#[derive(Deserialize)]
+struct DewPoint {
+    pressure_pa: f64,
+    dew_temperature_k: f64,
+}
+
+fn fixture() -> Fixture {
+    // tests/fixtures/phase_reference.json, made by tests/reference/make_phase_fixture.py.
+    serde_json::from_str(include_str!("fixtures/phase_reference.json")).unwrap()
+}
+
+#[test]
+fn vapour_pressures_agree_with_coolprop() {
+    let f = fixture();
+    assert!(f.library.contains("CoolProp"));
+    let c = Catalogue::built_in();
+    let gases: std::collections::BTreeSet<&str> = f.vapour_pressures.iter().map(|v| v.id.as_str()).collect();
+    assert!(gases.len() >= 10);
+    let mut compared = std::collections::BTreeSet::new();
+    for v in &f.vapour_pressures {
+        let gas = c.gas(c.index_of(&v.id).unwrap());
+        // CO2 and SF6 at 0.6 Tc lie below their triple points, outside the correlation.
+        let Some(p) = gas.vapour_pressure_pa(v.temperature_k) else { continue };
+        // Perry's DIPPR-101 fits against CoolProp's reference equations: within 2 %, but for
+        // three gases whose fits are older and measured here at up to 3.2 % (SO2, SF6) and
+        // 5.0 % (N2O, at 0.6 Tc); pinned so that a change of data shows.
+        let allowed = match v.id.as_str() {
+            "N2O" => 0.055,
+            "SO2" | "SF6" => 0.035,
+            _ => 0.02,
+        };
+        let dev = p / v.pressure_pa - 1.0;
+        assert!(
+            dev.abs() < allowed,
+            "{} at {:.2} K: {p} vs {} ({:+.2} %)",
+            v.id,
+            v.temperature_k,
+            v.pressure_pa,
+            dev * 100.0
+        );
+        compared.insert(v.id.clone());
+    }
+    assert!(compared.len() >= 10);
+}
+
+fn phase_fluid<'a>(c: &Catalogue, fluid: &'a Fluid, ids: &[String]) -> PhaseFluid<'a> {
+    let g: Vec<_> = ids.iter().map(|id| c.gas(c.index_of(id).unwrap())).collect();
+    PhaseFluid {
+        fluid,
+        tc: g.iter().map(|g| g.tc_k()).collect(),
+        pc: g.iter().map(|g| g.pc_pa()).collect(),
+        omega: g.iter().map(|g| g.omega()).collect(),
+    }
+}
+
+#[test]
+fn dew_points_and_cricondentherms_agree_with_thermo_within_half_a_kelvin() {
+    let c = Catalogue::built_in();
+    let f = fixture();
+    assert!(f.mixtures.len() >= 4);
+    for m in &f.mixtures {
+        let idx: Vec<usize> = m.ids.iter().map(|id| c.index_of(id).unwrap()).collect();
+        let fluid = Fluid::new(&c, &idx, Model::Pr).unwrap();
+        let phase = phase_fluid(&c, &fluid, &m.ids);
+        for d in &m.dew_points {
+            let t = phase.dew_temperature(d.pressure_pa, &m.x, 80.0).unwrap().unwrap();
+            assert!(
+                (t - d.dew_temperature_k).abs() < 0.5,
+                "{} at {} bar: {t} vs {}",
+                m.label,
+                d.pressure_pa / 1e5,
+                d.dew_temperature_k
+            );
+        }
+        let (ct, _) = phase.cricondentherm(&m.x, 80.0, 300e5).unwrap().unwrap();
+        assert!((ct - m.cricondentherm_k).abs() < 0.5, "{} cricondentherm {ct} vs {}", m.label, m.cricondentherm_k);
+    }
+}
+
+fn screen(name: &str) -> Vec<checks::Check> {
+    let c = Catalogue::built_in();
+    let order = Recipe::load(demo::find(name).unwrap(), name, &c).unwrap();
+    let p = plan::plan(&order, &c, &PlanOptions::default()).unwrap();
+    checks::screen(&p, &order, &c, &Conditions { min_temperature_k: 273.15, max_temperature_k: 338.15 })
+}
+
+#[test]
+fn every_demo_recipe_screens() {
+    for (name, _) in demo::RECIPES {
+        let list = screen(name);
+        let ids: Vec<&str> = list.iter().map(|c| c.id).collect();
+        assert_eq!(
+            ids,
+            ["condensation", "pressure-rating", "flammability", "oxidising", "toxicity", "incompatibility"]
+        );
+        assert!(
+            checks::worst(&list) < Severity::Stop,
+            "{name}: {:?}",
+            list.iter().map(|c| &c.message).collect::<Vec<_>>()
+        );
+    }
+}
+
+#[test]
+fn the_near_condensation_demo_shows_its_cricondentherm_and_safe_fill() {
+    let list = screen("lpg-in-methane");
+    let cond = &list[0];
+    assert_eq!(cond.severity, Severity::Caution);
+    let ct = cond.data["cricondentherm_k"].as_f64().unwrap();
+    // Same mixture in the thermo fixture: 276.38 K.
+    assert!((ct - 276.38).abs() < 0.5, "{ct}");
+    let max_fill = cond.data["max_single_phase_fill_bar"].as_f64().unwrap();
+    assert!(max_fill > 40.0 && max_fill < 45.0, "{max_fill}");
+    // Filled above that, liquid forms at 0 °C: stop.
+    let c = Catalogue::built_in();
+    let text = demo::find("lpg-in-methane").unwrap().replace("Pressure(\"40bar\")", "Pressure(\"50bar\")");
+    let order = Recipe::load(&text, "lpg-50", &c).unwrap();
+    let p = plan::plan(&order, &c, &PlanOptions::default()).unwrap();
+    let list = checks::screen(&p, &order, &c, &Conditions { min_temperature_k: 273.15, max_temperature_k: 338.15 });
+    assert_eq!(list[0].severity, Severity::Stop, "{}", list[0].message);
+    // A gas of permanent gases only has no cricondentherm to speak of.
+    let detector = screen("detector-test-ch4-air");
+    assert!(detector[0].data["cricondentherm_k"].is_null());
+}
+
+#[test]
+fn iso_10156_limits_on_either_side() {
+    // T_ci of CH4 in N2 is 14.3 % (ISO 10156:2010 table 2, from memory): 14.2 % in N2 is
+    // not flammable in air, 14.4 % is.
+    assert!(iso_10156_index(&[(0.142, 14.3)], &[(0.858, 1.0)]) < 1.0);
+    assert!(iso_10156_index(&[(0.144, 14.3)], &[(0.856, 1.0)]) > 1.0);
+    // CO2 inerts 1.5 times as well as N2 (K = 1.5, from memory): the limit moves to
+    // 1.5 T / (1 + 0.5 T) = 20.02 % CH4 in CO2.
+    assert!(iso_10156_index(&[(0.199, 14.3)], &[(0.801, 1.5)]) < 1.0);
+    assert!(iso_10156_index(&[(0.201, 14.3)], &[(0.799, 1.5)]) > 1.0);
+    // Worked by hand with the formula of ISO 10156 (values from memory): 2 % H2 + 3 % CH4
+    // + 10 % CO2 + 85 % N2 gives 2/105·100/5.5 + 3/105·100/14.3 = 0.5461: not flammable.
+    let index = iso_10156_index(&[(0.02, 5.5), (0.03, 14.3)], &[(0.10, 1.5), (0.85, 1.0)]);
+    assert!((index - 0.5461).abs() < 1e-4, "{index}");
+}
+
+#[test]
+fn le_chatelier_against_a_textbook_example() {
+    // Crowl & Louvar, Chemical Process Safety, example of a mixture of 0.8 % hexane,
+    // 2.0 % methane and 0.5 % ethylene in air with LFLs 1.2, 5.3 and 3.1 %: the
+    // flammable part has an LFL of 2.74 % (from memory).
+    let lfl = le_chatelier(&[(0.8, 1.2), (2.0, 5.3), (0.5, 3.1)]).unwrap();
+    assert!((lfl - 2.74).abs() < 0.01, "{lfl}");
+}
+
+fn screen_mix(spec: &str, p_bar: f64) -> Vec<checks::Check> {
+    let c = Catalogue::built_in();
+    let parts = fillwright::mixture::parse_spec(spec, &c).unwrap();
+    let mut lines = Vec::new();
+    for p in &parts {
+        lines.push(format!("(gas: \"{}\", amount: \"{}\")", c.gas(p.gas).id(), p.share));
+    }
+    let text = format!(
+        "Recipe(format: 1, name: \"t\", components: [{}], cylinder: (water_capacity: \"10L\", working_pressure: \"200bar\", \
+         test_pressure: \"300bar\"), fill: Pressure(\"{p_bar}bar\"))",
+        lines.join(", ")
+    );
+    let order = Recipe::load(&text, "t", &c).unwrap();
+    let opts = PlanOptions { model: Some(Model::Pr), ..PlanOptions::default() };
+    let p = plan::plan(&order, &c, &opts).unwrap();
+    checks::screen(&p, &order, &c, &Conditions { min_temperature_k: 273.15, max_temperature_k: 338.15 })
+}
+
+fn find<'a>(list: &'a [checks::Check], id: &str) -> &'a checks::Check {
+    list.iter().find(|c| c.id == id).unwrap()
+}
+
+#[test]
+fn oxidising_ability_on_either_side_of_0_235() {
+    assert_eq!(find(&screen_mix("O2=23.4%,N2=balance", 100.0), "oxidising").data["oxidising"], false);
+    assert_eq!(find(&screen_mix("O2=23.6%,N2=balance", 100.0), "oxidising").data["oxidising"], true);
+    // N2O counts 0.6 (from memory): 39 % gives 0.234, 40 % gives 0.240.
+    assert_eq!(find(&screen_mix("N2O=39%,N2=balance", 30.0), "oxidising").data["oxidising"], false);
+    assert_eq!(find(&screen_mix("N2O=40%,N2=balance", 30.0), "oxidising").data["oxidising"], true);
+}
+
+#[test]
+fn toxicity_on_either_side_of_5000_ppm() {
+    // CO has LC50 3760 ppm (ISO 10298, from memory): the mixture LC50 is 3760/x, so
+    // 75.0 % CO gives 5013 ppm (not toxic) and 75.5 % gives 4980 ppm (toxic).
+    let below = screen_mix("CO=75%,N2=balance", 50.0);
+    let above = screen_mix("CO=75.5%,N2=balance", 50.0);
+    assert_eq!(find(&below, "toxicity").data["toxic"], false);
+    assert_eq!(find(&above, "toxicity").data["toxic"], true);
+    // H2S 712 ppm: 14.2 % is 5014 ppm, 14.3 % is 4979 ppm.
+    assert_eq!(find(&screen_mix("H2S=14.2%,N2=balance", 10.0), "toxicity").data["toxic"], false);
+    assert_eq!(find(&screen_mix("H2S=14.3%,N2=balance", 10.0), "toxicity").data["toxic"], true);
+}
+
+#[test]
+fn incompatible_pairs_and_flammables_with_oxidisers_stop() {
+    let list = screen_mix("NH3=1%,HCl=1%,N2=balance", 50.0);
+    let inc = find(&list, "incompatibility");
+    assert_eq!(inc.severity, Severity::Stop);
+    assert!(inc.details[0].contains("ammonium chloride"));
+    let list = screen_mix("CH4=5%,O2=21%,N2=balance", 100.0);
+    assert_eq!(find(&list, "incompatibility").severity, Severity::Stop, "5 % CH4 in air is above its 4.4 % LFL");
+    let list = screen_mix("CH4=2%,O2=21%,N2=balance", 100.0);
+    assert_eq!(find(&list, "incompatibility").severity, Severity::Caution);
+    let list = screen_mix("CH4=2%,O2=5%,N2=balance", 100.0);
+    assert_eq!(find(&list, "incompatibility").severity, Severity::Ok, "too little oxidiser to burn");
+}
+
+#[test]
+fn pressure_rating_limits() {
+    // 200 bar settled in a 200 bar cylinder is fine; 210 bar is above the working pressure.
+    assert_eq!(find(&screen_mix("N2", 200.0), "pressure-rating").severity, Severity::Ok);
+    assert_eq!(find(&screen_mix("N2", 210.0), "pressure-rating").severity, Severity::Stop);
+    // He: 200 bar at 15 °C rises to about 230 bar at 65 °C, within the 300 bar test pressure.
+    let he_checks = screen_mix("He", 200.0);
+    let he = find(&he_checks, "pressure-rating");
+    let hot = he.data["hot_pressure_bar"].as_f64().unwrap();
+    assert!(hot > 225.0 && hot < 240.0, "{hot}");
+}

@@ -1,0 +1,38 @@
+#!/usr/bin/env python3
+"""Regenerate the generated parts of README.md between their markers:
+
+  <!-- generated: density-table -->   cargo run --example density_table
+  <!-- generated: accuracy-table -->  cargo run --example accuracy_table
+  <!-- generated: fill-sheet -->      cargo run -- plan flue-gas-span
+
+Run from anywhere: python3 tools/update_readme.py
+"""
+import os
+import re
+import subprocess
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+PARTS = {
+    "density-table": (["cargo", "run", "-q", "--example", "density_table"], False),
+    "accuracy-table": (["cargo", "run", "-q", "--example", "accuracy_table"], False),
+    "fill-sheet": (["cargo", "run", "-q", "--", "plan", "flue-gas-span"], True),
+}
+
+
+def main():
+    path = os.path.join(ROOT, "README.md")
+    text = open(path, encoding="utf-8").read()
+    env = dict(os.environ, FILLWRIGHT_CONFIG=os.path.join(ROOT, "target", "readme-config"))
+    for name, (cmd, fenced) in PARTS.items():
+        out = subprocess.run(cmd, cwd=ROOT, check=True, capture_output=True, text=True, env=env).stdout
+        body = f"```\n$ fillwright plan flue-gas-span\n{out}```\n" if fenced else out
+        pattern = re.compile(rf"(<!-- generated: {name} -->\n).*?(<!-- /generated -->)", re.S)
+        text, n = pattern.subn(lambda m: m.group(1) + body + m.group(2), text)
+        if n != 1:
+            raise SystemExit(f"README.md has no marker for {name}")
+    open(path, "w", encoding="utf-8").write(text)
+
+
+if __name__ == "__main__":
+    main()
