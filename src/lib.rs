@@ -19,4 +19,5 @@ pub mod record;
 pub mod ron_format;
 pub mod settings;
 pub mod thermo;
+pub mod tui;
 pub mod units;

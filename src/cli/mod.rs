@@ -11,6 +11,7 @@ use std::process::ExitCode;
 
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
+use crate::config;
 use crate::gas::Catalogue;
 use crate::mixture::Composition;
 use crate::settings::Resolved;
@@ -30,10 +31,16 @@ use crate::units::{self, STANDARD_AMBIENT_PA};
 struct Cli {
     #[command(subcommand)]
     command: Option<Command>,
+    /// Recipe library folder for the screen (default: $FILLWRIGHT_LIBRARY, else library/ in
+    /// the config folder).
+    #[arg(long, value_name = "DIR")]
+    library: Option<std::path::PathBuf>,
 }
 
 #[derive(Debug, Subcommand)]
 enum Command {
+    /// Open the screen on one recipe: a library name or a .ron file.
+    Edit(EditArgs),
     /// Solve a gas state: give the mixture, the temperature and two of volume, pressure
     /// and amount; the third is computed, under every model for comparison.
     State(state::StateArgs),
@@ -60,6 +67,15 @@ enum Command {
     Delete(library::DeleteArgs),
     /// List the gas catalogue with its constants and their sources.
     Gases(gases::GasesArgs),
+}
+
+#[derive(Debug, Args)]
+struct EditArgs {
+    /// Library name, or a path to a .ron file (saved in place, with its history beside it).
+    recipe: String,
+    /// Recipe library folder.
+    #[arg(long, value_name = "DIR")]
+    library: Option<std::path::PathBuf>,
 }
 
 /// Output format.
@@ -146,12 +162,12 @@ pub fn main() -> ExitCode {
         }
     };
     let result = match cli.command {
-        None => {
-            println!(
-                "fillwright: the terminal screen is not built yet; try `fillwright state --help` or `fillwright --help`."
-            );
-            Ok(())
-        }
+        None => config::library_dir(cli.library.as_deref())
+            .ok_or_else(|| Refused("no config folder could be found; give --library DIR".into()).into())
+            .and_then(|dir| crate::tui::run(&dir, None).map_err(|e| Refused(e).into())),
+        Some(Command::Edit(args)) => crate::tui::place_of(&args.recipe, args.library.as_deref())
+            .map_err(|e| Refused(e).into())
+            .and_then(|(dir, name)| crate::tui::run(&dir, Some(&name)).map_err(|e| Refused(e).into())),
         Some(Command::State(args)) => state::run(&args),
         Some(Command::Plan(args)) => plan::run(&args),
         Some(Command::Gases(args)) => gases::run(&args),

@@ -1,0 +1,162 @@
+//! The terminal screen: one [`model::Model`], messages from keys, a testable
+//! [`update::update`], and views that only draw ([`view::view`]).
+//!
+//! The runtime here owns the terminal. It restores it on quit, on panic, on SIGTERM and on
+//! SIGHUP, and on a panic or a signal it first writes any unsaved edits as a draft in the
+//! config folder's `drafts/`, which the next start offers to recover.
+
+pub mod model;
+pub mod picker;
+pub mod scenes;
+pub mod svg;
+pub mod update;
+pub mod view;
+
+use std::path::{Path, PathBuf};
+use std::sync::Mutex;
+use std::time::Duration;
+
+use ratatui::crossterm::event::{self, Event, KeyCode, KeyEventKind, KeyModifiers};
+
+use crate::config;
+use crate::library::{clock, Library};
+use crate::recipe::canonical;
+use model::Model;
+use update::{Context, Key, Msg};
+
+/// The draft to write if the session ends suddenly: (path, canonical recipe text).
+static PENDING_DRAFT: Mutex<Option<(PathBuf, String)>> = Mutex::new(None);
+
+fn write_pending_draft() {
+    if let Ok(guard) = PENDING_DRAFT.lock() {
+        if let Some((path, text)) = guard.as_ref() {
+            if let Some(dir) = path.parent() {
+                let _ = std::fs::create_dir_all(dir);
+            }
+            let _ = crate::library::atomic::write(path, text.as_bytes());
+        }
+    }
+}
+
+/// Keep the pending draft in step with the model after every update.
+fn remember_draft(model: &Model, ctx: &Context) {
+    let pending = match (&model.doc, &ctx.drafts) {
+        (Some(doc), Some(dir)) if doc.dirty() => {
+            Some((dir.join(format!("{}.ron", doc.name)), canonical::to_text(&doc.recipe)))
+        }
+        _ => None,
+    };
+    if let Ok(mut guard) = PENDING_DRAFT.lock() {
+        *guard = pending;
+    }
+}
+
+/// A crossterm key as our own [`Key`].
+fn key_of(ev: &event::KeyEvent) -> Option<Key> {
+    if ev.kind != KeyEventKind::Press {
+        return None;
+    }
+    let ctrl = ev.modifiers.contains(KeyModifiers::CONTROL);
+    Some(match ev.code {
+        KeyCode::Char(c) if ctrl => Key::Ctrl(c.to_ascii_lowercase()),
+        KeyCode::Char(c) => Key::Char(c),
+        KeyCode::Enter => Key::Enter,
+        KeyCode::Esc => Key::Esc,
+        KeyCode::Tab => Key::Tab,
+        KeyCode::BackTab => Key::BackTab,
+        KeyCode::Up => Key::Up,
+        KeyCode::Down => Key::Down,
+        KeyCode::Left => Key::Left,
+        KeyCode::Right => Key::Right,
+        KeyCode::Home => Key::Home,
+        KeyCode::End => Key::End,
+        KeyCode::PageUp => Key::PageUp,
+        KeyCode::PageDown => Key::PageDown,
+        KeyCode::Backspace => Key::Backspace,
+        KeyCode::Delete => Key::Delete,
+        KeyCode::F(n) => Key::F(n),
+        _ => return None,
+    })
+}
+
+/// Where to find the recipe `edit` names: a file path is a one-recipe library in its folder.
+pub fn place_of(target: &str, library: Option<&Path>) -> Result<(PathBuf, String), String> {
+    let path = Path::new(target);
+    if target.ends_with(".ron") || path.is_file() {
+        let dir = path.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new(".")).to_path_buf();
+        let name =
+            path.file_stem().and_then(|s| s.to_str()).ok_or_else(|| format!("{target}: not a recipe file name"))?;
+        return Ok((dir, name.to_string()));
+    }
+    let dir = config::library_dir(library).ok_or("no config folder could be found; give --library DIR")?;
+    Ok((dir, target.to_string()))
+}
+
+/// Run the screen on the library at `dir`, opening `open` when given.
+pub fn run(dir: &Path, open: Option<&str>) -> Result<(), String> {
+    let catalogue = config::load_catalogue()?;
+    let settings = config::load_settings()?;
+    let mut library = Library::at(dir).map_err(|e| e.to_string())?;
+    library.git_commit = settings.git_commit_on_save;
+    let drafts = config::config_dir().map(|d| d.join("drafts"));
+    let color = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
+    let mut ctx = Context { library, catalogue, settings, drafts, now: clock::now_utc };
+    let mut model = Model::new(dir.display().to_string(), color);
+    update::start(&mut model, &mut ctx);
+    if let Some(name) = open {
+        if matches!(model.overlay, model::Overlay::None) {
+            update::open(&mut model, &ctx, name);
+        }
+    }
+
+    // Signals are handled on their own thread: when the SSH session drops, the terminal
+    // library can be stuck reading a closed terminal, so the main loop may never see them.
+    #[cfg(unix)]
+    {
+        use signal_hook::consts::{SIGHUP, SIGINT, SIGTERM};
+        let mut signals = signal_hook::iterator::Signals::new([SIGHUP, SIGTERM, SIGINT]).map_err(|e| e.to_string())?;
+        std::thread::spawn(move || {
+            if let Some(signal) = signals.forever().next() {
+                write_pending_draft();
+                ratatui::restore();
+                std::process::exit(128 + signal);
+            }
+        });
+    }
+
+    let mut terminal = ratatui::try_init().map_err(|e| format!("cannot open the terminal: {e}"))?;
+    // ratatui's hook restores the terminal; ours first keeps the unsaved edits.
+    let restore_hook = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        write_pending_draft();
+        restore_hook(info);
+    }));
+    if let Ok(size) = terminal.size() {
+        update::update(&mut model, Msg::Resize(size.width, size.height), &mut ctx);
+    }
+    let result = (|| -> Result<(), String> {
+        loop {
+            terminal.draw(|f| view::view(&model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
+            if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
+                let msg = match event::read().map_err(|e| e.to_string())? {
+                    Event::Key(k) => key_of(&k).map(Msg::Key),
+                    Event::Resize(w, h) => Some(Msg::Resize(w, h)),
+                    _ => None,
+                };
+                if let Some(msg) = msg {
+                    update::update(&mut model, msg, &mut ctx);
+                    remember_draft(&model, &ctx);
+                }
+                if model.quit {
+                    return Ok(());
+                }
+            }
+        }
+    })();
+    // A lost terminal (the SSH session dropped) ends the loop with an error: keep the edits.
+    if result.is_err() {
+        write_pending_draft();
+    }
+    ratatui::restore();
+    result
+}

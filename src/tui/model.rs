@@ -1,0 +1,323 @@
+//! All the screen's state in one place. Modes are enums, not flags; everything the views
+//! show that needs thermodynamics is computed here ([`Computed`]), never in a view.
+
+use tui_input::Input;
+
+use crate::checks::{self, Check, Conditions};
+use crate::gas::Catalogue;
+use crate::library::{Entry, Opened, Revision};
+use crate::plan::{self, Plan, PlanOptions};
+use crate::recipe::{Order, Recipe};
+use crate::settings::Resolved;
+use crate::thermo::{Fluid, Model as Eos};
+
+/// The views of the workspace, in Tab order.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum View {
+    Library,
+    Editor,
+    Sheet,
+    Models,
+    Checks,
+}
+
+impl View {
+    pub const ALL: [View; 5] = [View::Library, View::Editor, View::Sheet, View::Models, View::Checks];
+
+    pub fn title(self) -> &'static str {
+        match self {
+            View::Library => "Library",
+            View::Editor => "Recipe",
+            View::Sheet => "Fill sheet",
+            View::Models => "Models",
+            View::Checks => "Screening",
+        }
+    }
+}
+
+/// A question on top of the current view.
+#[derive(Debug, Clone)]
+pub enum Overlay {
+    None,
+    Help,
+    /// Quit with unsaved changes?
+    ConfirmQuit,
+    /// Delete this library recipe?
+    ConfirmDelete(String),
+    /// The file changed on disk since it was opened.
+    Conflict,
+    /// A line of text for `purpose`.
+    Prompt {
+        purpose: Prompt,
+        input: Input,
+    },
+    /// Choose a gas: search text and the selected row.
+    Picker {
+        input: Input,
+        selected: usize,
+        purpose: PickFor,
+    },
+    /// Revisions of a recipe, the selected one, and its changes against the newest.
+    History {
+        name: String,
+        revisions: Vec<Revision>,
+        selected: usize,
+        changes: Vec<String>,
+    },
+    /// Drafts left by a session that ended with unsaved edits.
+    Drafts {
+        names: Vec<String>,
+        selected: usize,
+    },
+}
+
+/// What a prompt's text is for.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Prompt {
+    Duplicate(String),
+    Rename(String),
+    SaveAs,
+    SaveNote,
+    NewRecipe,
+    MeasuredTemperature,
+    ActualReading(usize),
+    AddSource,
+}
+
+/// What a gas pick does.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum PickFor {
+    AddComponent,
+    ReplaceComponent(usize),
+}
+
+/// One editable line of the recipe editor.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Field {
+    Name,
+    Description,
+    Order,
+    Component(usize),
+    Tolerance(usize),
+    AddComponent,
+    WaterCapacity,
+    WorkingPressure,
+    TestPressure,
+    Tare,
+    Serial,
+    FillKind,
+    FillValue,
+    ReferenceTemperature,
+    FillTemperature,
+    Ambient,
+    Model,
+    Source(usize),
+    AddSource,
+    FillOrder,
+    Notes,
+}
+
+/// The fields of a recipe, in screen order.
+pub fn fields(r: &Recipe) -> Vec<Field> {
+    let mut f = vec![Field::Name, Field::Description, Field::Order];
+    for i in 0..r.components.len() {
+        f.push(Field::Component(i));
+        f.push(Field::Tolerance(i));
+    }
+    f.push(Field::AddComponent);
+    f.extend([
+        Field::WaterCapacity,
+        Field::WorkingPressure,
+        Field::TestPressure,
+        Field::Tare,
+        Field::Serial,
+        Field::FillKind,
+        Field::FillValue,
+        Field::ReferenceTemperature,
+        Field::FillTemperature,
+        Field::Ambient,
+        Field::Model,
+    ]);
+    for i in 0..r.sources.len() {
+        f.push(Field::Source(i));
+    }
+    f.extend([Field::AddSource, Field::FillOrder, Field::Notes]);
+    f
+}
+
+/// What the screen shows that needs computing, recomputed after every edit.
+#[derive(Debug, Clone)]
+pub struct Computed {
+    /// The order read from the recipe, or why it cannot be.
+    pub order: Result<Order, String>,
+    pub plan: Result<Plan, String>,
+    /// Screening results (computed when the recipe plans).
+    pub checks: Option<Vec<Check>>,
+    /// Z against pressure for every model at the reference temperature: (model, points).
+    pub z_curves: Vec<(Eos, Vec<(f64, f64)>)>,
+}
+
+impl Computed {
+    pub fn of(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
+        let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| e.message);
+        let options = PlanOptions {
+            default_model: settings.default_model,
+            resolutions: plan::Resolutions {
+                gauge_pa: settings.gauge_resolution_pa,
+                scale_g: settings.scale_resolution_g,
+            },
+            ..PlanOptions::default()
+        };
+        let plan = match &order {
+            Ok(o) => plan::plan(o, catalogue, &options).map_err(|e| e.to_string()),
+            Err(e) => Err(e.clone()),
+        };
+        let conditions = Conditions {
+            min_temperature_k: settings.min_storage_temperature_k,
+            max_temperature_k: settings.max_service_temperature_k,
+        };
+        let checks = match (&plan, &order) {
+            (Ok(p), Ok(o)) => Some(checks::screen(p, o, catalogue, &conditions)),
+            _ => None,
+        };
+        let z_curves = match (&plan, &order) {
+            (Ok(p), Ok(o)) => z_curves(p, o, catalogue),
+            _ => Vec::new(),
+        };
+        Computed { order, plan, checks, z_curves }
+    }
+}
+
+/// Z of the finished blend from 1 bar to 1.2 times the fill pressure, for each model.
+fn z_curves(p: &Plan, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f64)>)> {
+    let x: Vec<f64> = p.components.iter().map(|c| c.mole_fraction).collect();
+    let top = 1.2 * p.totals.pressure_pa / 1e5;
+    Eos::ALL
+        .iter()
+        .filter_map(|&m| {
+            let f = Fluid::new(catalogue, &p.gases, m).ok()?;
+            let pts: Vec<(f64, f64)> = (0..=30)
+                .filter_map(|k| {
+                    let p_bar = 1.0 + (top - 1.0) * k as f64 / 30.0;
+                    f.state_tp(o.reference_temperature_k, p_bar * 1e5, &x).ok().map(|s| (p_bar, s.z))
+                })
+                .collect();
+            Some((m, pts))
+        })
+        .collect()
+}
+
+/// The fill as it happens at the bench.
+#[derive(Debug, Clone, Default)]
+pub struct Bench {
+    pub selected: usize,
+    pub done: Vec<bool>,
+    /// Cylinder temperature measured now, K.
+    pub measured_k: Option<f64>,
+    /// Absolute readings reached, Pa, per step.
+    pub actual_pa: Vec<Option<f64>>,
+    /// Stop readings corrected to `measured_k`, Pa, per step (computed in `update`).
+    pub corrected_pa: Vec<Option<f64>>,
+}
+
+impl Bench {
+    /// Recompute the corrected targets for the measured temperature.
+    pub fn correct(&mut self, plan: Option<&Plan>) {
+        self.corrected_pa = match (plan, self.measured_k) {
+            (Some(p), Some(t)) => (0..p.steps.len()).map(|i| p.corrected_target_pa(i, t).ok()).collect(),
+            _ => Vec::new(),
+        };
+    }
+}
+
+/// The recipe being edited.
+#[derive(Debug, Clone)]
+pub struct Document {
+    /// Library name.
+    pub name: String,
+    /// What was read from disk (None for a recipe not yet saved).
+    pub opened: Option<Opened>,
+    pub recipe: Recipe,
+    /// The recipe as last saved or opened, to tell unsaved changes.
+    pub saved: Recipe,
+    pub undo: Vec<Recipe>,
+    pub redo: Vec<Recipe>,
+    /// Selected editor line.
+    pub field: usize,
+    /// The line being typed, when editing.
+    pub editing: Option<Input>,
+    pub computed: Computed,
+    pub bench: Bench,
+}
+
+impl Document {
+    pub fn dirty(&self) -> bool {
+        !crate::recipe::changes::same_content(&self.recipe, &self.saved)
+    }
+
+    pub fn current_field(&self) -> Field {
+        let f = fields(&self.recipe);
+        f[self.field.min(f.len() - 1)]
+    }
+}
+
+/// The library view's state.
+#[derive(Debug, Clone, Default)]
+pub struct LibraryState {
+    pub entries: Vec<Entry>,
+    /// Search text; the list shows only matching recipes.
+    pub filter: Option<Input>,
+    pub selected: usize,
+    /// The library folder, as shown.
+    pub label: String,
+}
+
+impl LibraryState {
+    /// Indices into `entries` that match the search.
+    pub fn visible(&self) -> Vec<usize> {
+        let text = self.filter.as_ref().map(|i| i.value().to_lowercase()).unwrap_or_default();
+        (0..self.entries.len())
+            .filter(|&i| {
+                let e = &self.entries[i];
+                text.is_empty()
+                    || e.name.to_lowercase().contains(&text)
+                    || e.summary.as_ref().is_ok_and(|s| s.title.to_lowercase().contains(&text))
+            })
+            .collect()
+    }
+}
+
+/// The whole screen.
+#[derive(Debug, Clone)]
+pub struct Model {
+    pub view: View,
+    pub overlay: Overlay,
+    pub library: LibraryState,
+    pub doc: Option<Document>,
+    /// Selected line of the screening view.
+    pub check_selected: usize,
+    /// What just happened, for the status line.
+    pub status: String,
+    pub width: u16,
+    pub height: u16,
+    /// Colours on (off for NO_COLOR).
+    pub color: bool,
+    pub quit: bool,
+}
+
+impl Model {
+    pub fn new(label: String, color: bool) -> Model {
+        Model {
+            view: View::Library,
+            overlay: Overlay::None,
+            library: LibraryState { label, ..LibraryState::default() },
+            doc: None,
+            check_selected: 0,
+            status: String::new(),
+            width: 80,
+            height: 24,
+            color,
+            quit: false,
+        }
+    }
+}

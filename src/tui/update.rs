@@ -1,0 +1,948 @@
+//! Every key press becomes a [`Msg`]; [`update`] changes the [`Model`]. It touches the
+//! disk only through the library in [`Context`], so it runs in tests without a terminal.
+
+use std::path::PathBuf;
+
+use tui_input::{Input, InputRequest};
+
+use super::model::{fields, Bench, Computed, Document, Field, Model, Overlay, PickFor, Prompt, View};
+use crate::gas::Catalogue;
+use crate::library::{Library, LibraryError, OnConflict, Saved};
+use crate::recipe::{canonical, ComponentLine, CylinderLine, FillTarget, Recipe, SourceLine, FORMAT};
+use crate::settings::Resolved;
+use crate::thermo::Model as Eos;
+use crate::units;
+
+/// A key, independent of the terminal library.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Key {
+    Char(char),
+    Ctrl(char),
+    Enter,
+    Esc,
+    Tab,
+    BackTab,
+    Up,
+    Down,
+    Left,
+    Right,
+    Home,
+    End,
+    PageUp,
+    PageDown,
+    Backspace,
+    Delete,
+    F(u8),
+}
+
+/// Everything that can happen to the screen.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Msg {
+    Key(Key),
+    Resize(u16, u16),
+}
+
+/// What `update` may use besides the model.
+pub struct Context {
+    pub library: Library,
+    pub catalogue: Catalogue,
+    pub settings: Resolved,
+    /// Where drafts of unsaved edits are kept.
+    pub drafts: Option<PathBuf>,
+    /// The time stamp for saves.
+    pub now: fn() -> String,
+}
+
+impl Context {
+    fn draft_path(&self, name: &str) -> Option<PathBuf> {
+        self.drafts.as_ref().map(|d| d.join(format!("{name}.ron")))
+    }
+
+    /// Write the draft of a recipe with unsaved edits.
+    pub fn write_draft(&self, name: &str, recipe: &Recipe) -> std::io::Result<()> {
+        let Some(path) = self.draft_path(name) else { return Ok(()) };
+        if let Some(dir) = path.parent() {
+            std::fs::create_dir_all(dir)?;
+        }
+        crate::library::atomic::write(&path, canonical::to_text(recipe).as_bytes())
+    }
+
+    fn remove_draft(&self, name: &str) {
+        if let Some(p) = self.draft_path(name) {
+            let _ = std::fs::remove_file(p);
+        }
+    }
+
+    /// Names of the drafts waiting to be recovered.
+    pub fn draft_names(&self) -> Vec<String> {
+        let Some(dir) = &self.drafts else { return Vec::new() };
+        let mut names: Vec<String> = std::fs::read_dir(dir)
+            .map(|rd| {
+                rd.flatten()
+                    .filter_map(|e| {
+                        let p = e.path();
+                        (p.extension().and_then(|x| x.to_str()) == Some("ron"))
+                            .then(|| p.file_stem().and_then(|s| s.to_str()).map(str::to_string))
+                            .flatten()
+                    })
+                    .collect()
+            })
+            .unwrap_or_default();
+        names.sort();
+        names
+    }
+}
+
+/// Read the library into the model and offer any drafts.
+pub fn start(model: &mut Model, ctx: &mut Context) {
+    match ctx.library.seed_demos_if_empty() {
+        Ok(n) if n > 0 => model.status = format!("new library: copied {n} demo recipes in"),
+        Ok(_) => {}
+        Err(e) => model.status = format!("library: {e}"),
+    }
+    refresh(model, ctx);
+    let names = ctx.draft_names();
+    if !names.is_empty() {
+        model.overlay = Overlay::Drafts { names, selected: 0 };
+    }
+}
+
+fn refresh(model: &mut Model, ctx: &Context) {
+    match ctx.library.list() {
+        Ok(entries) => model.library.entries = entries,
+        Err(e) => model.status = format!("cannot list the library: {e}"),
+    }
+    let n = model.library.visible().len();
+    model.library.selected = model.library.selected.min(n.saturating_sub(1));
+}
+
+fn input(text: &str) -> Input {
+    Input::new(text.to_string())
+}
+
+fn recompute(doc: &mut Document, ctx: &Context) {
+    doc.computed = Computed::of(&doc.recipe, &ctx.catalogue, &ctx.settings);
+    let steps = doc.computed.plan.as_ref().map_or(0, |p| p.steps.len());
+    doc.bench.done.resize(steps, false);
+    doc.bench.actual_pa.resize(steps, None);
+    doc.bench.selected = doc.bench.selected.min(steps.saturating_sub(1));
+    doc.bench.correct(doc.computed.plan.as_ref().ok());
+}
+
+fn open_document(name: &str, recipe: Recipe, opened: Option<crate::library::Opened>, ctx: &Context) -> Document {
+    let saved = opened.as_ref().map_or_else(|| recipe.clone(), |o| o.recipe.clone());
+    let mut doc = Document {
+        name: name.to_string(),
+        opened,
+        recipe,
+        saved,
+        undo: Vec::new(),
+        redo: Vec::new(),
+        field: 0,
+        editing: None,
+        computed: Computed::of(&Recipe::default_for_screen(), &ctx.catalogue, &ctx.settings),
+        bench: Bench::default(),
+    };
+    recompute(&mut doc, ctx);
+    doc
+}
+
+/// Open a library recipe in the editor.
+pub fn open(model: &mut Model, ctx: &Context, name: &str) {
+    match ctx.library.open(name) {
+        Ok(o) => {
+            let recipe = o.recipe.clone();
+            model.doc = Some(open_document(name, recipe, Some(o), ctx));
+            model.view = View::Editor;
+            model.status = format!("opened {name}");
+        }
+        Err(e) => model.status = e.to_string(),
+    }
+}
+
+/// Change the recipe, keeping the previous state for undo, and recompute.
+fn edit(doc: &mut Document, ctx: &Context, change: impl FnOnce(&mut Recipe)) {
+    let before = doc.recipe.clone();
+    change(&mut doc.recipe);
+    if doc.recipe != before {
+        doc.undo.push(before);
+        doc.redo.clear();
+        recompute(doc, ctx);
+    }
+}
+
+fn input_request(key: Key) -> Option<InputRequest> {
+    Some(match key {
+        Key::Char(c) => InputRequest::InsertChar(c),
+        Key::Backspace => InputRequest::DeletePrevChar,
+        Key::Delete => InputRequest::DeleteNextChar,
+        Key::Left => InputRequest::GoToPrevChar,
+        Key::Right => InputRequest::GoToNextChar,
+        Key::Home | Key::Ctrl('a') => InputRequest::GoToStart,
+        Key::End | Key::Ctrl('e') => InputRequest::GoToEnd,
+        Key::Ctrl('u') => InputRequest::DeleteLine,
+        Key::Ctrl('w') => InputRequest::DeletePrevWord,
+        _ => return None,
+    })
+}
+
+/// The top-level update.
+pub fn update(model: &mut Model, msg: Msg, ctx: &mut Context) {
+    match msg {
+        Msg::Resize(w, h) => {
+            model.width = w;
+            model.height = h;
+        }
+        Msg::Key(key) => on_key(model, key, ctx),
+    }
+}
+
+fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
+    // Overlays take the keys first.
+    if !matches!(model.overlay, Overlay::None) {
+        on_overlay_key(model, key, ctx);
+        return;
+    }
+    // Typing into an editor field.
+    if let Some(doc) = model.doc.as_mut() {
+        if doc.editing.is_some() && model.view == View::Editor {
+            on_field_typing(doc, key, ctx, &mut model.status);
+            return;
+        }
+    }
+    // Typing a library search.
+    if model.view == View::Library && model.library.filter.is_some() && !matches!(key, Key::Up | Key::Down) {
+        let filter = model.library.filter.as_mut().expect("checked");
+        match key {
+            Key::Esc => model.library.filter = None,
+            Key::Enter => {
+                if filter.value().is_empty() {
+                    model.library.filter = None;
+                } else {
+                    open_selected(model, ctx);
+                }
+            }
+            k => {
+                if let Some(r) = input_request(k) {
+                    filter.handle(r);
+                    model.library.selected = 0;
+                }
+            }
+        }
+        return;
+    }
+    match key {
+        Key::Char('?') | Key::F(1) => model.overlay = Overlay::Help,
+        Key::Char('q') | Key::Ctrl('q') => {
+            if model.doc.as_ref().is_some_and(Document::dirty) {
+                model.overlay = Overlay::ConfirmQuit;
+            } else {
+                model.quit = true;
+            }
+        }
+        Key::Tab => switch_view(model, 1),
+        Key::BackTab => switch_view(model, -1),
+        Key::Char(c @ '1'..='5') => {
+            let v = View::ALL[(c as u8 - b'1') as usize];
+            go_to(model, v);
+        }
+        Key::Char('s') | Key::F(2) if model.doc.is_some() && model.view != View::Library => {
+            save(model, ctx, None, false)
+        }
+        Key::Char('S') if model.doc.is_some() && model.view != View::Library => {
+            model.overlay = Overlay::Prompt { purpose: Prompt::SaveNote, input: input("") }
+        }
+        Key::Esc if model.view != View::Library => model.view = View::Library,
+        _ => match model.view {
+            View::Library => on_library_key(model, key, ctx),
+            View::Editor => on_editor_key(model, key, ctx),
+            View::Sheet => on_sheet_key(model, key),
+            View::Checks => match key {
+                Key::Up | Key::Char('k') => model.check_selected = model.check_selected.saturating_sub(1),
+                Key::Down | Key::Char('j') => model.check_selected = (model.check_selected + 1).min(5),
+                _ => {}
+            },
+            View::Models => {}
+        },
+    }
+}
+
+fn go_to(model: &mut Model, v: View) {
+    if v != View::Library && model.doc.is_none() {
+        model.status = "open a recipe first (Enter on a library line)".into();
+    } else {
+        model.view = v;
+    }
+}
+
+fn switch_view(model: &mut Model, step: i32) {
+    let n = View::ALL.len() as i32;
+    let i = View::ALL.iter().position(|v| *v == model.view).unwrap_or(0) as i32;
+    let next = View::ALL[((i + step).rem_euclid(n)) as usize];
+    go_to(model, next);
+}
+
+fn selected_name(model: &Model) -> Option<String> {
+    let vis = model.library.visible();
+    vis.get(model.library.selected).map(|&i| model.library.entries[i].name.clone())
+}
+
+fn open_selected(model: &mut Model, ctx: &Context) {
+    let Some(name) = selected_name(model) else { return };
+    if model.doc.as_ref().is_some_and(|d| d.dirty() && d.name != name) {
+        model.status =
+            format!("save or undo the changes to {} first (s saves)", model.doc.as_ref().map_or("", |d| &d.name));
+        return;
+    }
+    model.library.filter = None;
+    open(model, ctx, &name);
+}
+
+fn on_library_key(model: &mut Model, key: Key, ctx: &mut Context) {
+    let n = model.library.visible().len();
+    match key {
+        Key::Up | Key::Char('k') => model.library.selected = model.library.selected.saturating_sub(1),
+        Key::Down | Key::Char('j') => model.library.selected = (model.library.selected + 1).min(n.saturating_sub(1)),
+        Key::Home => model.library.selected = 0,
+        Key::End => model.library.selected = n.saturating_sub(1),
+        Key::Enter => open_selected(model, ctx),
+        Key::Char('/') => model.library.filter = Some(input("")),
+        Key::Char('n') => model.overlay = Overlay::Prompt { purpose: Prompt::NewRecipe, input: input("") },
+        Key::Char('c') => {
+            if let Some(name) = selected_name(model) {
+                let proposal = format!("{name}-copy");
+                model.overlay = Overlay::Prompt { purpose: Prompt::Duplicate(name), input: input(&proposal) };
+            }
+        }
+        Key::Char('r') => {
+            if let Some(name) = selected_name(model) {
+                model.overlay = Overlay::Prompt { purpose: Prompt::Rename(name.clone()), input: input(&name) };
+            }
+        }
+        Key::Char('d') | Key::Delete => {
+            if let Some(name) = selected_name(model) {
+                model.overlay = Overlay::ConfirmDelete(name);
+            }
+        }
+        Key::Char('h') => {
+            if let Some(name) = selected_name(model) {
+                show_history(model, ctx, &name);
+            }
+        }
+        Key::Char('g') => {
+            refresh(model, ctx);
+            model.status = "library read again".into();
+        }
+        _ => {}
+    }
+}
+
+fn show_history(model: &mut Model, ctx: &Context, name: &str) {
+    match ctx.library.history(name) {
+        Ok(revisions) => {
+            let selected = revisions.len().saturating_sub(1);
+            let mut overlay = Overlay::History { name: name.to_string(), revisions, selected, changes: Vec::new() };
+            history_changes(&mut overlay, ctx);
+            model.overlay = overlay;
+        }
+        Err(e) => model.status = e.to_string(),
+    }
+}
+
+/// The changes from the selected revision to the newest, in the trade's words.
+fn history_changes(overlay: &mut Overlay, ctx: &Context) {
+    if let Overlay::History { name, revisions, selected, changes } = overlay {
+        let newest = revisions.last().map(|r| r.revision);
+        let chosen = revisions.get(*selected).map(|r| r.revision);
+        *changes = match (chosen, newest) {
+            (Some(a), Some(b)) if a != b => match (ctx.library.revision(name, a), ctx.library.revision(name, b)) {
+                (Ok(ra), Ok(rb)) => {
+                    let list = crate::recipe::changes::describe(&ra, &rb);
+                    if list.is_empty() {
+                        vec![format!("revisions {a} and {b} are the same order")]
+                    } else {
+                        list
+                    }
+                }
+                (Err(e), _) | (_, Err(e)) => vec![e.to_string()],
+            },
+            _ => vec!["this is the newest revision".into()],
+        };
+    }
+}
+
+fn on_editor_key(model: &mut Model, key: Key, ctx: &mut Context) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let count = fields(&doc.recipe).len();
+    let field = doc.current_field();
+    match key {
+        Key::Up | Key::Char('k') => doc.field = doc.field.saturating_sub(1),
+        Key::Down | Key::Char('j') => doc.field = (doc.field + 1).min(count - 1),
+        Key::PageUp => doc.field = doc.field.saturating_sub(10),
+        Key::PageDown => doc.field = (doc.field + 10).min(count - 1),
+        Key::Home => doc.field = 0,
+        Key::End => doc.field = count - 1,
+        Key::Char('u') | Key::Ctrl('z') => {
+            if let Some(prev) = doc.undo.pop() {
+                doc.redo.push(std::mem::replace(&mut doc.recipe, prev));
+                recompute(doc, ctx);
+                model.status = "undone".into();
+            } else {
+                model.status = "nothing to undo".into();
+            }
+        }
+        Key::Ctrl('r') | Key::Ctrl('y') => {
+            if let Some(next) = doc.redo.pop() {
+                doc.undo.push(std::mem::replace(&mut doc.recipe, next));
+                recompute(doc, ctx);
+                model.status = "redone".into();
+            } else {
+                model.status = "nothing to redo".into();
+            }
+        }
+        Key::Char('a') => {
+            model.overlay = Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::AddComponent };
+        }
+        Key::Char('g') => {
+            if let Field::Component(i) = field {
+                model.overlay =
+                    Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::ReplaceComponent(i) };
+            }
+        }
+        Key::Char('b') => {
+            if let Field::Component(i) = field {
+                let fractions = doc.computed.order.as_ref().ok().map(|o| o.composition.fractions.clone());
+                edit(doc, ctx, |r| {
+                    for (k, c) in r.components.iter_mut().enumerate() {
+                        if k != i && c.amount.trim().eq_ignore_ascii_case("balance") {
+                            let x = fractions.as_ref().and_then(|f| f.get(k)).copied().unwrap_or(0.0);
+                            c.amount = format!("{}%", (x * 1e6).round() / 1e4);
+                        }
+                    }
+                    r.components[i].amount = "balance".into();
+                });
+                model.status = format!("{} is the balance gas", doc.recipe.components[i].gas);
+            }
+        }
+        Key::Char('x') | Key::Delete => match field {
+            Field::Component(i) | Field::Tolerance(i) => {
+                let gas = doc.recipe.components[i].gas.clone();
+                edit(doc, ctx, |r| {
+                    r.components.remove(i);
+                });
+                doc.field = doc.field.min(fields(&doc.recipe).len() - 1);
+                model.status = format!("{gas} removed (u undoes)");
+            }
+            Field::Source(i) => {
+                edit(doc, ctx, |r| {
+                    r.sources.remove(i);
+                });
+                doc.field = doc.field.min(fields(&doc.recipe).len() - 1);
+            }
+            _ => {}
+        },
+        Key::Enter | Key::Char('e') => match field {
+            Field::AddComponent => {
+                model.overlay = Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::AddComponent }
+            }
+            Field::AddSource => {
+                model.overlay = Overlay::Prompt { purpose: Prompt::AddSource, input: input("") };
+            }
+            Field::FillKind => {
+                edit(doc, ctx, |r| {
+                    r.fill = match &r.fill {
+                        FillTarget::Pressure(v) => FillTarget::Mass(v.clone()),
+                        FillTarget::Mass(v) => FillTarget::Amount(v.clone()),
+                        FillTarget::Amount(v) => FillTarget::Pressure(v.clone()),
+                    }
+                });
+            }
+            Field::Model => {
+                edit(doc, ctx, |r| {
+                    r.model = match r.model {
+                        None => Some(Eos::ALL[0]),
+                        Some(m) => {
+                            let i = Eos::ALL.iter().position(|x| *x == m).unwrap_or(0);
+                            Eos::ALL.get(i + 1).copied()
+                        }
+                    }
+                });
+            }
+            f => doc.editing = Some(input(&field_text(&doc.recipe, f))),
+        },
+        _ => {}
+    }
+}
+
+/// The text of a field, as edited.
+pub fn field_text(r: &Recipe, f: Field) -> String {
+    let opt = |o: &Option<String>| o.clone().unwrap_or_default();
+    match f {
+        Field::Name => r.name.clone(),
+        Field::Description => r.description.clone(),
+        Field::Order => r.order.clone(),
+        Field::Component(i) => r.components[i].amount.clone(),
+        Field::Tolerance(i) => opt(&r.components[i].tolerance),
+        Field::WaterCapacity => r.cylinder.water_capacity.clone(),
+        Field::WorkingPressure => r.cylinder.working_pressure.clone(),
+        Field::TestPressure => r.cylinder.test_pressure.clone(),
+        Field::Tare => opt(&r.cylinder.tare),
+        Field::Serial => opt(&r.cylinder.serial),
+        Field::FillKind => match r.fill {
+            FillTarget::Pressure(_) => "pressure".into(),
+            FillTarget::Mass(_) => "mass".into(),
+            FillTarget::Amount(_) => "amount".into(),
+        },
+        Field::FillValue => match &r.fill {
+            FillTarget::Pressure(v) | FillTarget::Mass(v) | FillTarget::Amount(v) => v.clone(),
+        },
+        Field::ReferenceTemperature => r.reference_temperature.clone(),
+        Field::FillTemperature => opt(&r.fill_temperature),
+        Field::Ambient => r.ambient.clone(),
+        Field::Model => r.model.map_or("default".to_string(), |m| m.key().to_string()),
+        Field::Source(i) => match &r.sources[i] {
+            SourceLine::Pure(id) => id.clone(),
+            SourceLine::Premix { name, mix } => format!("{name} = {mix}"),
+        },
+        Field::FillOrder => r.fill_order.join(", "),
+        Field::Notes => r.notes.clone(),
+        Field::AddComponent | Field::AddSource => String::new(),
+    }
+}
+
+fn set_field(r: &mut Recipe, f: Field, text: &str) {
+    let t = text.trim().to_string();
+    let opt = |t: &str| (!t.is_empty()).then(|| t.to_string());
+    match f {
+        Field::Name => r.name = t,
+        Field::Description => r.description = t,
+        Field::Order => r.order = t,
+        Field::Component(i) => r.components[i].amount = t,
+        Field::Tolerance(i) => r.components[i].tolerance = opt(&t),
+        Field::WaterCapacity => r.cylinder.water_capacity = t,
+        Field::WorkingPressure => r.cylinder.working_pressure = t,
+        Field::TestPressure => r.cylinder.test_pressure = t,
+        Field::Tare => r.cylinder.tare = opt(&t),
+        Field::Serial => r.cylinder.serial = opt(&t),
+        Field::FillValue => {
+            r.fill = match &r.fill {
+                FillTarget::Pressure(_) => FillTarget::Pressure(t),
+                FillTarget::Mass(_) => FillTarget::Mass(t),
+                FillTarget::Amount(_) => FillTarget::Amount(t),
+            }
+        }
+        Field::ReferenceTemperature => r.reference_temperature = t,
+        Field::FillTemperature => r.fill_temperature = opt(&t),
+        Field::Ambient => r.ambient = t,
+        Field::Source(i) => r.sources[i] = parse_source(&t),
+        Field::FillOrder => {
+            r.fill_order = t.split(',').map(|s| s.trim().to_string()).filter(|s| !s.is_empty()).collect()
+        }
+        Field::Notes => r.notes = t,
+        Field::FillKind | Field::Model | Field::AddComponent | Field::AddSource => {}
+    }
+}
+
+/// `NAME = SPEC` is a premix, a bare id a pure gas.
+fn parse_source(t: &str) -> SourceLine {
+    match t.split_once('=') {
+        Some((name, mix))
+            if mix.contains('=') || mix.contains(',') || !name.trim().is_empty() && !mix.trim().is_empty() =>
+        {
+            SourceLine::Premix { name: name.trim().to_string(), mix: mix.trim().to_string() }
+        }
+        _ => SourceLine::Pure(t.trim().to_string()),
+    }
+}
+
+fn on_field_typing(doc: &mut Document, key: Key, ctx: &Context, status: &mut String) {
+    let field = doc.current_field();
+    match key {
+        Key::Esc => {
+            doc.editing = None;
+            *status = "edit cancelled".into();
+        }
+        Key::Enter => {
+            let text = doc.editing.take().map(|i| i.value().to_string()).unwrap_or_default();
+            edit(doc, ctx, |r| set_field(r, field, &text));
+            *status = match &doc.computed.plan {
+                Ok(_) => "recomputed".into(),
+                Err(e) => format!("not plannable yet: {}", first_line(e)),
+            };
+        }
+        k => {
+            if let (Some(req), Some(inp)) = (input_request(k), doc.editing.as_mut()) {
+                inp.handle(req);
+            }
+        }
+    }
+}
+
+fn first_line(s: &str) -> &str {
+    s.lines().next().unwrap_or(s)
+}
+
+fn on_sheet_key(model: &mut Model, key: Key) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let steps = doc.bench.done.len();
+    match key {
+        Key::Up | Key::Char('k') => doc.bench.selected = doc.bench.selected.saturating_sub(1),
+        Key::Down | Key::Char('j') => doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1)),
+        Key::Char(' ') | Key::Enter => {
+            if let Some(d) = doc.bench.done.get_mut(doc.bench.selected) {
+                *d = !*d;
+                model.status = format!("step {} {}", doc.bench.selected + 1, if *d { "done" } else { "not done" });
+                if *d {
+                    doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1));
+                }
+            }
+        }
+        Key::Char('t') => {
+            let now = doc.bench.measured_k.map(|t| format!("{:.1}C", units::celsius(t))).unwrap_or_default();
+            model.overlay = Overlay::Prompt { purpose: Prompt::MeasuredTemperature, input: input(&now) };
+        }
+        Key::Char('r') if steps > 0 => {
+            model.overlay = Overlay::Prompt { purpose: Prompt::ActualReading(doc.bench.selected), input: input("") };
+        }
+        Key::Char('c') => {
+            doc.bench.measured_k = None;
+            doc.bench.correct(None);
+            model.status = "targets for the planned fill temperature again".into();
+        }
+        _ => {}
+    }
+}
+
+fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
+    let overlay = std::mem::replace(&mut model.overlay, Overlay::None);
+    match overlay {
+        Overlay::None => {}
+        Overlay::Help => {}
+        Overlay::ConfirmQuit => match key {
+            Key::Char('y') => {
+                // The user chose to drop the edits: no draft of them should linger.
+                if let Some(doc) = &model.doc {
+                    ctx.remove_draft(&doc.name);
+                }
+                model.quit = true;
+            }
+            Key::Char('s') => {
+                save(model, ctx, None, false);
+                if !model.doc.as_ref().is_some_and(Document::dirty) {
+                    model.quit = true;
+                }
+            }
+            _ => model.status = "not quitting".into(),
+        },
+        Overlay::ConfirmDelete(name) => {
+            if key == Key::Char('y') {
+                match ctx.library.delete(&name, &(ctx.now)()) {
+                    Ok(to) => model.status = format!("{name} moved to {}", to.display()),
+                    Err(e) => model.status = e.to_string(),
+                }
+                if model.doc.as_ref().is_some_and(|d| d.name == name) {
+                    model.doc = None;
+                }
+                refresh(model, ctx);
+            } else {
+                model.status = "nothing deleted".into();
+            }
+        }
+        Overlay::Conflict => match key {
+            Key::Char('r') => {
+                if let Some(name) = model.doc.as_ref().map(|d| d.name.clone()) {
+                    open(model, ctx, &name);
+                    model.status = format!("reloaded {name} from disk; your edits were dropped");
+                }
+            }
+            Key::Char('a') => model.overlay = Overlay::Prompt { purpose: Prompt::SaveAs, input: input("") },
+            Key::Char('o') => save(model, ctx, None, true),
+            _ => model.status = "not saved: the file on disk is unchanged".into(),
+        },
+        Overlay::Prompt { purpose, mut input } => match key {
+            Key::Esc => model.status = "cancelled".into(),
+            Key::Enter => on_prompt(model, ctx, purpose, input.value().trim().to_string()),
+            k => {
+                if let Some(r) = input_request(k) {
+                    input.handle(r);
+                }
+                model.overlay = Overlay::Prompt { purpose, input };
+            }
+        },
+        Overlay::Picker { mut input, mut selected, purpose } => {
+            let hits = super::picker::matches(&ctx.catalogue, input.value());
+            match key {
+                Key::Esc => {}
+                Key::Up => {
+                    selected = selected.saturating_sub(1);
+                    model.overlay = Overlay::Picker { input, selected, purpose };
+                }
+                Key::Down => {
+                    selected = (selected + 1).min(hits.len().saturating_sub(1));
+                    model.overlay = Overlay::Picker { input, selected, purpose };
+                }
+                Key::Enter => {
+                    if let (Some(&g), Some(doc)) = (hits.get(selected), model.doc.as_mut()) {
+                        let id = ctx.catalogue.gas(g).id().to_string();
+                        match purpose {
+                            PickFor::AddComponent => {
+                                edit(doc, ctx, |r| {
+                                    let at = r.components.len().saturating_sub(1);
+                                    let line = ComponentLine { gas: id.clone(), amount: "1%".into(), tolerance: None };
+                                    // New gases go before the balance gas, which usually closes the list.
+                                    if r.components.last().is_some_and(|c| c.amount == "balance") {
+                                        r.components.insert(at, line);
+                                    } else {
+                                        r.components.push(line);
+                                    }
+                                });
+                                let i = doc.recipe.components.iter().position(|c| c.gas == id).unwrap_or(0);
+                                doc.field =
+                                    fields(&doc.recipe).iter().position(|f| *f == Field::Component(i)).unwrap_or(0);
+                                doc.editing = Some(Input::new("1%".into()));
+                                model.status = format!("{id} added: type its amount");
+                            }
+                            PickFor::ReplaceComponent(i) => {
+                                edit(doc, ctx, |r| r.components[i].gas = id.clone());
+                                model.status = format!("component is now {id}");
+                            }
+                        }
+                    }
+                }
+                k => {
+                    if let Some(r) = input_request(k) {
+                        input.handle(r);
+                        selected = 0;
+                    }
+                    model.overlay = Overlay::Picker { input, selected, purpose };
+                }
+            }
+        }
+        Overlay::History { name, revisions, mut selected, changes } => match key {
+            Key::Up | Key::Char('k') => {
+                selected = selected.saturating_sub(1);
+                let mut o = Overlay::History { name, revisions, selected, changes };
+                history_changes(&mut o, ctx);
+                model.overlay = o;
+            }
+            Key::Down | Key::Char('j') => {
+                selected = (selected + 1).min(revisions.len().saturating_sub(1));
+                let mut o = Overlay::History { name, revisions, selected, changes };
+                history_changes(&mut o, ctx);
+                model.overlay = o;
+            }
+            Key::Char('r') => {
+                let rev = revisions.get(selected).map_or(0, |r| r.revision);
+                match ctx.library.restore(&name, rev, &(ctx.now)()) {
+                    Ok(Saved::Written { revision, .. }) => {
+                        model.status = format!("restored revision {rev} of {name} as revision {revision}")
+                    }
+                    Ok(Saved::Unchanged { .. }) => model.status = "that revision is the current content".into(),
+                    Err(e) => model.status = e.to_string(),
+                }
+                refresh(model, ctx);
+            }
+            Key::Esc | Key::Char('q') => {}
+            _ => model.overlay = Overlay::History { name, revisions, selected, changes },
+        },
+        Overlay::Drafts { names, mut selected } => match key {
+            Key::Up => {
+                selected = selected.saturating_sub(1);
+                model.overlay = Overlay::Drafts { names, selected };
+            }
+            Key::Down => {
+                selected = (selected + 1).min(names.len().saturating_sub(1));
+                model.overlay = Overlay::Drafts { names, selected };
+            }
+            Key::Enter | Key::Char('y') => {
+                let name = names[selected].clone();
+                recover_draft(model, ctx, &name);
+            }
+            Key::Char('d') => {
+                let name = names[selected].clone();
+                ctx.remove_draft(&name);
+                model.status = format!("draft of {name} discarded");
+                let rest: Vec<String> = names.into_iter().filter(|n| *n != name).collect();
+                if !rest.is_empty() {
+                    model.overlay = Overlay::Drafts { names: rest, selected: 0 };
+                }
+            }
+            _ => model.status = "drafts kept for later".into(),
+        },
+    }
+}
+
+fn recover_draft(model: &mut Model, ctx: &Context, name: &str) {
+    let Some(path) = ctx.draft_path(name) else { return };
+    let text = match crate::library::read_limited(&path) {
+        Ok(t) => t,
+        Err(e) => {
+            model.status = e.to_string();
+            return;
+        }
+    };
+    match Recipe::parse(&text, &path.display().to_string()) {
+        Ok(recipe) => {
+            let opened = ctx.library.open(name).ok();
+            let mut doc = open_document(name, recipe, opened, ctx);
+            if doc.opened.is_none() {
+                doc.saved = Recipe::default_for_screen();
+            }
+            model.doc = Some(doc);
+            model.view = View::Editor;
+            model.status = format!("recovered the unsaved edits of {name}: s saves them");
+        }
+        Err(e) => model.status = format!("the draft cannot be read: {e}"),
+    }
+}
+
+fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String) {
+    let now = (ctx.now)();
+    match purpose {
+        Prompt::Duplicate(from) => match ctx.library.duplicate(&from, &text, &now) {
+            Ok(_) => {
+                model.status = format!("{from} copied to {text}");
+                refresh(model, ctx);
+            }
+            Err(e) => model.status = e.to_string(),
+        },
+        Prompt::Rename(from) => match ctx.library.rename(&from, &text) {
+            Ok(()) => {
+                if let Some(doc) = model.doc.as_mut().filter(|d| d.name == from) {
+                    doc.name = text.clone();
+                    doc.opened = ctx.library.open(&text).ok();
+                }
+                model.status = format!("{from} renamed to {text}");
+                refresh(model, ctx);
+            }
+            Err(e) => model.status = e.to_string(),
+        },
+        Prompt::NewRecipe => {
+            if let Err(e) = crate::library::check_name(&text) {
+                model.status = e.to_string();
+                return;
+            }
+            let mut recipe = Recipe::default_for_screen();
+            recipe.name = text.clone();
+            let mut doc = open_document(&text, recipe, None, ctx);
+            doc.saved = Recipe::default_for_screen();
+            model.doc = Some(doc);
+            model.view = View::Editor;
+            model.status = format!("new recipe {text}: edit it, s saves");
+        }
+        Prompt::SaveAs => {
+            if let Some(doc) = model.doc.as_mut() {
+                match ctx.library.save_as(&text, &doc.recipe, &now) {
+                    Ok(Saved::Written { revision, .. }) | Ok(Saved::Unchanged { revision }) => {
+                        ctx.remove_draft(&doc.name);
+                        doc.name = text.clone();
+                        doc.opened = ctx.library.open(&text).ok();
+                        if let Some(o) = &doc.opened {
+                            doc.recipe = o.recipe.clone();
+                            doc.saved = o.recipe.clone();
+                        }
+                        model.status = format!("saved as {text}, rev {revision}");
+                        refresh(model, ctx);
+                    }
+                    Err(e) => model.status = e.to_string(),
+                }
+            }
+        }
+        Prompt::SaveNote => save(model, ctx, Some(text), false),
+        Prompt::MeasuredTemperature => match units::parse_temperature(&text) {
+            Ok(t) => {
+                if let Some(doc) = model.doc.as_mut() {
+                    doc.bench.measured_k = Some(t);
+                    doc.bench.correct(doc.computed.plan.as_ref().ok());
+                    model.status = format!("targets corrected for {:.1} °C", units::celsius(t));
+                }
+            }
+            Err(e) => model.status = e.to_string(),
+        },
+        Prompt::ActualReading(step) => {
+            let ambient = model
+                .doc
+                .as_ref()
+                .and_then(|d| d.computed.order.as_ref().ok().map(|o| o.ambient_pa))
+                .unwrap_or(units::STANDARD_AMBIENT_PA);
+            match units::parse_pressure(&text, ambient) {
+                Ok(p) => {
+                    if let Some(slot) = model.doc.as_mut().and_then(|d| d.bench.actual_pa.get_mut(step)) {
+                        *slot = Some(p);
+                        model.status = format!("step {} reached {:.3} bar", step + 1, p / 1e5);
+                    }
+                }
+                Err(e) => model.status = e.to_string(),
+            }
+        }
+        Prompt::AddSource => {
+            if let Some(doc) = model.doc.as_mut() {
+                if !text.is_empty() {
+                    edit(doc, ctx, |r| r.sources.push(parse_source(&text)));
+                }
+            }
+        }
+    }
+}
+
+/// Save the open recipe to the library.
+fn save(model: &mut Model, ctx: &mut Context, note: Option<String>, overwrite: bool) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let now = (ctx.now)();
+    let on_conflict = if overwrite { OnConflict::Overwrite } else { OnConflict::Refuse };
+    match ctx.library.save(&doc.name, &doc.recipe, doc.opened.as_ref(), note.as_deref(), &now, on_conflict) {
+        Ok(saved) => {
+            ctx.remove_draft(&doc.name);
+            doc.opened = ctx.library.open(&doc.name).ok();
+            if let Some(o) = &doc.opened {
+                doc.recipe = o.recipe.clone();
+                doc.saved = o.recipe.clone();
+            }
+            model.status = match saved {
+                Saved::Unchanged { revision } => format!("nothing changed; still rev {revision}"),
+                Saved::Written { revision, git: Some(Err(e)), .. } => {
+                    format!("saved rev {revision}; not committed: {e}")
+                }
+                Saved::Written { revision, .. } => format!("saved rev {revision}"),
+            };
+            refresh(model, ctx);
+        }
+        Err(LibraryError::ChangedOnDisk(_)) => model.overlay = Overlay::Conflict,
+        Err(LibraryError::Exists(name)) => {
+            model.status = format!("a recipe {name} already exists: choose another name");
+            model.overlay = Overlay::Prompt { purpose: Prompt::SaveAs, input: Input::new(String::new()) };
+        }
+        Err(e) => model.status = format!("not saved: {e}"),
+    }
+}
+
+impl Recipe {
+    /// A new recipe to start from on the screen: nitrogen in a 10 L cylinder.
+    pub fn default_for_screen() -> Recipe {
+        Recipe {
+            format: FORMAT,
+            revision: 0,
+            saved: None,
+            change_note: None,
+            name: String::new(),
+            description: String::new(),
+            order: String::new(),
+            components: vec![ComponentLine { gas: "N2".into(), amount: "balance".into(), tolerance: None }],
+            cylinder: CylinderLine {
+                water_capacity: "10L".into(),
+                working_pressure: "200bar".into(),
+                test_pressure: "300bar".into(),
+                tare: None,
+                serial: None,
+            },
+            fill: FillTarget::Pressure("150bar".into()),
+            reference_temperature: "15C".into(),
+            fill_temperature: None,
+            ambient: "1.01325bar".into(),
+            model: None,
+            sources: Vec::new(),
+            fill_order: Vec::new(),
+            notes: String::new(),
+        }
+    }
+}

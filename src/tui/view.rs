@@ -1,0 +1,711 @@
+//! Drawing only: every figure shown here was computed in `update` (see `Computed`).
+//! Meaning is never carried by colour alone: selection has a marker, severities and flags
+//! have words and signs, and with `NO_COLOR` no colour is used at all.
+
+use ratatui::layout::{Constraint, Layout, Rect};
+use ratatui::style::{Color, Modifier, Style};
+use ratatui::symbols::Marker;
+use ratatui::text::{Line, Span};
+use ratatui::widgets::{Axis, Block, Borders, Chart, Clear, Dataset, GraphType, Paragraph, Wrap};
+use ratatui::Frame;
+
+use super::model::{fields, Document, Field, Model, Overlay, PickFor, Prompt, View};
+use super::update::field_text;
+use crate::checks::{Severity, CAUTIONS};
+use crate::gas::Catalogue;
+use crate::recipe::FillTarget;
+use crate::units::{bar, celsius};
+
+/// Smallest terminal the screen draws in.
+pub const MIN_WIDTH: u16 = 60;
+pub const MIN_HEIGHT: u16 = 16;
+
+struct Theme {
+    color: bool,
+}
+
+impl Theme {
+    fn fg(&self, c: Color) -> Style {
+        if self.color {
+            Style::default().fg(c)
+        } else {
+            Style::default()
+        }
+    }
+    fn selected(&self) -> Style {
+        Style::default().add_modifier(Modifier::REVERSED)
+    }
+    fn bold(&self) -> Style {
+        Style::default().add_modifier(Modifier::BOLD)
+    }
+    fn dim(&self) -> Style {
+        if self.color {
+            Style::default().fg(Color::DarkGray)
+        } else {
+            Style::default()
+        }
+    }
+    fn severity(&self, s: Severity) -> Style {
+        self.fg(match s {
+            Severity::Ok => Color::Green,
+            Severity::Caution => Color::Yellow,
+            Severity::Stop => Color::Red,
+        })
+    }
+}
+
+/// Draw the whole screen.
+pub fn view(model: &Model, catalogue: &Catalogue, frame: &mut Frame) {
+    let area = frame.area();
+    let theme = Theme { color: model.color };
+    if area.width < MIN_WIDTH || area.height < MIN_HEIGHT {
+        let text = format!(
+            "The terminal is {}×{}; fillwright needs at least {MIN_WIDTH}×{MIN_HEIGHT}. Enlarge the window (q quits).",
+            area.width, area.height
+        );
+        frame.render_widget(Paragraph::new(text).wrap(Wrap { trim: true }), area);
+        return;
+    }
+    let [top, body, status] =
+        Layout::vertical([Constraint::Length(1), Constraint::Min(1), Constraint::Length(1)]).areas(area);
+    header(model, &theme, frame, top);
+    match model.view {
+        View::Library => library(model, &theme, frame, body),
+        View::Editor => editor(model, &theme, frame, body),
+        View::Sheet => sheet(model, &theme, frame, body),
+        View::Models => models(model, &theme, frame, body),
+        View::Checks => screening(model, &theme, frame, body),
+    }
+    status_line(model, &theme, frame, status);
+    overlay(model, catalogue, &theme, frame, body);
+}
+
+fn header(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let mut spans = vec![Span::styled("fillwright ", theme.bold())];
+    for (i, v) in View::ALL.iter().enumerate() {
+        let label = format!("{} {}", i + 1, v.title());
+        if *v == model.view {
+            spans.push(Span::styled(format!("[{label}]"), theme.selected()));
+        } else {
+            spans.push(Span::raw(format!(" {label} ")));
+        }
+    }
+    if let Some(doc) = &model.doc {
+        // The recipe's name and state; the body's block titles repeat it where there is room.
+        let dirty = if doc.dirty() { "*" } else { "" };
+        spans.push(Span::raw(format!(" {}{dirty}", doc.name)));
+    }
+    frame.render_widget(Paragraph::new(Line::from(spans)), area);
+}
+
+/// The keys that matter in the current context.
+fn keys_hint(model: &Model) -> &'static str {
+    match (&model.overlay, model.view) {
+        (Overlay::None, View::Library) if model.library.filter.is_some() => "type to search · Enter open · Esc clear",
+        (Overlay::None, View::Library) => {
+            "Enter open · / search · n new · c copy · r rename · d delete · h history · ? help · q quit"
+        }
+        (Overlay::None, View::Editor) if model.doc.as_ref().is_some_and(|d| d.editing.is_some()) => {
+            "type · Enter keep · Esc cancel"
+        }
+        (Overlay::None, View::Editor) => {
+            "↑↓ move · Enter edit · a add gas · x remove · u undo · s save · Tab next view · ? help"
+        }
+        (Overlay::None, View::Sheet) => "↑↓ step · Space done · t cylinder temp · r reading · s save · ? help",
+        (Overlay::None, View::Checks) => "↑↓ choose a check · Tab next view · Esc library · ? help",
+        (Overlay::None, _) => "Tab next view · Esc library · s save · ? help · q quit",
+        _ => "Esc closes",
+    }
+}
+
+fn status_line(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let line = if model.status.is_empty() {
+        Line::from(Span::styled(keys_hint(model), theme.dim()))
+    } else {
+        Line::from(vec![
+            Span::styled(model.status.clone(), theme.bold()),
+            Span::raw(" │ "),
+            Span::styled(keys_hint(model), theme.dim()),
+        ])
+    };
+    frame.render_widget(Paragraph::new(line), area);
+}
+
+fn clip(s: &str, width: usize) -> String {
+    if s.chars().count() <= width {
+        s.to_string()
+    } else if width == 0 {
+        String::new()
+    } else {
+        s.chars().take(width - 1).chain(std::iter::once('…')).collect()
+    }
+}
+
+fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let block = Block::default().borders(Borders::ALL).title(format!(" Recipes in {} ", model.library.label));
+    let inner = block.inner(area);
+    frame.render_widget(block, area);
+    let w = inner.width as usize;
+    let title_w = w.saturating_sub(22 + 9 + 14 + 4 + 5);
+    let mut lines = vec![Line::styled(
+        format!("  {:<22}{:>9}{:>14}{:>4}  {}", "name", "fill", "cylinder", "rev", "recipe"),
+        theme.bold(),
+    )];
+    let visible = model.library.visible();
+    let rows = inner.height.saturating_sub(2) as usize;
+    let first = model.library.selected.saturating_sub(rows.saturating_sub(1));
+    for (k, &i) in visible.iter().enumerate().skip(first).take(rows) {
+        let e = &model.library.entries[i];
+        let selected = k == model.library.selected;
+        let marker = if selected { "▶ " } else { "  " };
+        let text = match &e.summary {
+            Ok(s) => format!(
+                "{marker}{:<22}{:>9}{:>14}{:>4}  {}",
+                clip(&e.name, 21),
+                clip(&s.fill, 8),
+                clip(&s.cylinder, 13),
+                s.revision,
+                clip(&s.title, title_w)
+            ),
+            Err(err) => {
+                format!("{marker}{:<22} cannot be read: {}", clip(&e.name, 21), clip(err, w.saturating_sub(40)))
+            }
+        };
+        let style = if selected {
+            theme.selected()
+        } else if e.summary.is_err() {
+            theme.fg(Color::Red)
+        } else {
+            Style::default()
+        };
+        lines.push(Line::styled(text, style));
+    }
+    if visible.is_empty() {
+        lines.push(Line::raw("  (no recipe matches)"));
+    }
+    if let Some(f) = &model.library.filter {
+        let at = inner.height.saturating_sub(1);
+        let text = format!("search: {}", f.value());
+        frame.render_widget(
+            Paragraph::new(Line::styled(text, theme.bold())),
+            Rect { x: inner.x, y: inner.y + at, width: inner.width, height: 1 },
+        );
+        frame.set_cursor_position((inner.x + 8 + f.visual_cursor() as u16, inner.y + at));
+    }
+    frame.render_widget(Paragraph::new(lines), Rect { height: inner.height.saturating_sub(1), ..inner });
+}
+
+fn field_label(doc: &Document, f: Field) -> String {
+    let r = &doc.recipe;
+    match f {
+        Field::Name => "name".into(),
+        Field::Description => "description".into(),
+        Field::Order => "order ref".into(),
+        Field::Component(i) => format!("  {}", r.components[i].gas),
+        Field::Tolerance(_) => "    tolerance".into(),
+        Field::AddComponent => "+ add a gas (a)".into(),
+        Field::WaterCapacity => "water capacity".into(),
+        Field::WorkingPressure => "working pressure".into(),
+        Field::TestPressure => "test pressure".into(),
+        Field::Tare => "tare".into(),
+        Field::Serial => "cylinder serial".into(),
+        Field::FillKind => "fill by".into(),
+        Field::FillValue => match r.fill {
+            FillTarget::Pressure(_) => "fill pressure".into(),
+            FillTarget::Mass(_) => "fill mass".into(),
+            FillTarget::Amount(_) => "fill amount".into(),
+        },
+        Field::ReferenceTemperature => "reference temp".into(),
+        Field::FillTemperature => "fill temp".into(),
+        Field::Ambient => "ambient".into(),
+        Field::Model => "model".into(),
+        Field::Source(_) => "  source".into(),
+        Field::AddSource => "+ add a source".into(),
+        Field::FillOrder => "fill order".into(),
+        Field::Notes => "notes".into(),
+    }
+}
+
+fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let Some(doc) = &model.doc else { return };
+    let right_w = if area.width >= 110 { 52 } else { 36 };
+    let [left, right] = Layout::horizontal([Constraint::Min(30), Constraint::Length(right_w)]).areas(area);
+    let state = if doc.dirty() { ", unsaved changes" } else { "" };
+    let block =
+        Block::default().borders(Borders::ALL).title(format!(" {} rev {}{state} ", doc.name, doc.recipe.revision));
+    let inner = block.inner(left);
+    frame.render_widget(block, left);
+    let list = fields(&doc.recipe);
+    let rows = inner.height as usize;
+    let first = doc.field.saturating_sub(rows.saturating_sub(2));
+    let label_w = 17usize;
+    let value_w = (inner.width as usize).saturating_sub(label_w + 3);
+    let mut lines = Vec::new();
+    for (k, f) in list.iter().enumerate().skip(first).take(rows) {
+        let selected = k == doc.field;
+        let value = if selected {
+            match &doc.editing {
+                Some(inp) => inp.value().to_string(),
+                None => field_text(&doc.recipe, *f),
+            }
+        } else {
+            field_text(&doc.recipe, *f)
+        };
+        let value = match f {
+            Field::FillKind | Field::Model => format!("{value}  (Enter changes)"),
+            _ => value,
+        };
+        let marker = if selected { "▶" } else { " " };
+        let text = format!("{marker}{:<label_w$} {}", clip(&field_label(doc, *f), label_w), clip(&value, value_w));
+        let style = if selected && doc.editing.is_some() {
+            theme.bold().add_modifier(Modifier::UNDERLINED)
+        } else if selected {
+            theme.selected()
+        } else {
+            Style::default()
+        };
+        lines.push(Line::styled(text, style));
+        if selected {
+            if let Some(inp) = &doc.editing {
+                let row = (k - first) as u16;
+                let x = inner.x + 1 + label_w as u16 + 1 + inp.visual_cursor().min(value_w) as u16;
+                frame.set_cursor_position((x, inner.y + row));
+            }
+        }
+    }
+    frame.render_widget(Paragraph::new(lines), inner);
+    result_pane(doc, theme, frame, right);
+}
+
+fn result_pane(doc: &Document, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let block = Block::default().borders(Borders::ALL).title(" Result ");
+    let inner = block.inner(area);
+    frame.render_widget(block, area);
+    let w = inner.width as usize;
+    let mut lines: Vec<Line> = Vec::new();
+    match &doc.computed.plan {
+        Err(e) => {
+            lines.push(Line::styled("cannot plan yet:", theme.fg(Color::Red).add_modifier(Modifier::BOLD)));
+            for l in e.lines() {
+                lines.push(Line::raw(l.to_string()));
+            }
+        }
+        Ok(p) => {
+            let t = &p.totals;
+            lines.push(Line::styled(format!("{} ({})", p.model.title(), p.model.key()), theme.bold()));
+            lines.push(Line::raw(format!("{:.2} bar at {:.1} °C", bar(t.pressure_pa), celsius(t.temperature_k))));
+            lines.push(Line::raw(format!("{:.4} mol  {:.1} g  Z {:.4}", t.amount_mol, t.mass_g, t.z)));
+            lines.push(Line::raw(String::new()));
+            lines.push(Line::styled(format!("{:<12}{:>10}{:>11}", "add", "stop bar", "scale g"), theme.bold()));
+            for s in &p.steps {
+                let flag = if s.flags.is_empty() { " " } else { "!" };
+                lines.push(Line::raw(format!(
+                    "{:<12}{:>10.3}{:>11.1}{flag}",
+                    clip(&s.source, 11),
+                    bar(s.pressure_after_pa),
+                    s.scale_reading_g
+                )));
+            }
+            lines.push(Line::styled(format!("readings for {:.1} °C", celsius(p.fill_temperature_k)), theme.dim()));
+            if let Some(checks) = &doc.computed.checks {
+                lines.push(Line::raw(String::new()));
+                for c in checks {
+                    lines.push(Line::from(vec![
+                        Span::styled(format!("{:<8}", c.severity.key()), theme.severity(c.severity)),
+                        Span::raw(clip(c.id, w.saturating_sub(8))),
+                    ]));
+                }
+            }
+        }
+    }
+    frame.render_widget(Paragraph::new(lines).wrap(Wrap { trim: false }), inner);
+}
+
+fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let Some(doc) = &model.doc else { return };
+    let block = Block::default().borders(Borders::ALL).title(" Fill sheet ");
+    let inner = block.inner(area);
+    frame.render_widget(block, area);
+    let Ok(p) = &doc.computed.plan else {
+        frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), inner);
+        return;
+    };
+    let b = &doc.bench;
+    let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
+    let mut lines = vec![Line::raw(match b.measured_k {
+        Some(t) => format!(
+            "planned for {:.1} °C; cylinder now {:.1} °C: stop at 'now bar'",
+            celsius(p.fill_temperature_k),
+            celsius(t)
+        ),
+        None => format!("readings for {:.1} °C; t: type the cylinder temperature now", celsius(p.fill_temperature_k)),
+    })];
+    lines.push(Line::styled(
+        format!(
+            " {:<4}{:<3}{:<11}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
+            "", "#", "source", "add g", "scale g", "stop bar", "gauge", "now bar", "reached"
+        ),
+        theme.bold(),
+    ));
+    for (i, s) in p.steps.iter().enumerate() {
+        let selected = i == b.selected;
+        let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
+        let now = b.corrected_pa.get(i).copied().flatten().map_or("–".to_string(), |v| format!("{:.3}", bar(v)));
+        let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| format!("{:.3}", bar(v)));
+        let flag = if s.flags.is_empty() { "" } else { " !" };
+        let text = format!(
+            "{}{:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10.3}{:>9.3}{:>9}{:>9}{flag}",
+            if selected { "▶" } else { " " },
+            done,
+            i + 1,
+            clip(&s.source, 10),
+            s.add_mass_g,
+            s.scale_reading_g,
+            bar(s.pressure_after_pa),
+            bar(s.pressure_after_pa - ambient),
+            now,
+            reached
+        );
+        lines.push(Line::styled(text, if selected { theme.selected() } else { Style::default() }));
+    }
+    if let (Some(Some(actual)), Some(s)) = (b.actual_pa.get(b.selected), p.steps.get(b.selected)) {
+        let target = b.corrected_pa.get(b.selected).copied().flatten().unwrap_or(s.pressure_after_pa);
+        lines.push(Line::raw(format!(
+            "step {}: reached {:.3} bar, target {:.3} bar, {:+.3} bar off",
+            b.selected + 1,
+            bar(*actual),
+            bar(target),
+            bar(actual - target)
+        )));
+    }
+    if p.steps.iter().any(|s| !s.flags.is_empty()) {
+        lines.push(Line::styled(
+            "! below the gauge or scale resolution: a premix is proposed on the sheet",
+            theme.fg(Color::Yellow),
+        ));
+    }
+    let done = b.done.iter().filter(|d| **d).count();
+    lines.push(Line::raw(format!("{done} of {} steps done", p.steps.len())));
+    frame.render_widget(Paragraph::new(lines), inner);
+}
+
+fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let Some(doc) = &model.doc else { return };
+    let Ok(p) = &doc.computed.plan else {
+        frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), area);
+        return;
+    };
+    let table_h = (p.models.len() as u16 + 3).min(area.height / 2);
+    let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
+    let reference = p
+        .models
+        .iter()
+        .find(|m| m.model == crate::thermo::Model::Gerg && m.result.is_ok())
+        .map_or(p.model, |m| m.model);
+    let ref_amount =
+        p.models.iter().find(|m| m.model == reference).and_then(|m| m.result.as_ref().ok()).map(|f| f.amount_mol);
+    let block = Block::default().borders(Borders::ALL).title(format!(" Every model (reference {}) ", reference.key()));
+    let inner = block.inner(top);
+    frame.render_widget(block, top);
+    let mut lines = vec![Line::styled(
+        format!("{:<22}{:>12}{:>10}{:>9}{:>12}", "model", "amount mol", "vs ref", "Z", "last stop"),
+        theme.bold(),
+    )];
+    for m in &p.models {
+        let text = match &m.result {
+            Ok(f) => format!(
+                "{:<22}{:>12.4}{:>9.2}%{:>9.4}{:>12.3}",
+                m.model.title(),
+                f.amount_mol,
+                ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0),
+                f.z,
+                f.step_pressures_pa.last().map_or(0.0, |v| bar(*v))
+            ),
+            Err(e) => format!("{:<22}{}", m.model.title(), clip(e.split(';').next().unwrap_or(e), 50)),
+        };
+        let style = if m.model == p.model { theme.bold() } else { Style::default() };
+        lines.push(Line::styled(text, style));
+    }
+    frame.render_widget(Paragraph::new(lines), inner);
+
+    let [zc, fc] = Layout::horizontal([Constraint::Percentage(50), Constraint::Percentage(50)]).areas(bottom);
+    // One marker per model, so that the curves are told apart without colour.
+    let markers = [Marker::Dot, Marker::Braille, Marker::Block, Marker::Bar, Marker::HalfBlock, Marker::Quadrant];
+    let marks = ["•", "⣿", "█", "▄", "▀", "▖"];
+    let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red];
+    let (mut zmin, mut zmax, mut pmax) = (f64::INFINITY, f64::NEG_INFINITY, 1.0f64);
+    for (_, pts) in &doc.computed.z_curves {
+        for (pp, z) in pts {
+            zmin = zmin.min(*z);
+            zmax = zmax.max(*z);
+            pmax = pmax.max(*pp);
+        }
+    }
+    let datasets: Vec<Dataset> = doc
+        .computed
+        .z_curves
+        .iter()
+        .enumerate()
+        .map(|(i, (m, pts))| {
+            Dataset::default()
+                .name(m.key())
+                .marker(markers[i % markers.len()])
+                .graph_type(GraphType::Line)
+                .style(theme.fg(colors[i % colors.len()]))
+                .data(pts)
+        })
+        .collect();
+    let pad = ((zmax - zmin) * 0.05).max(0.005);
+    let legend: String = doc
+        .computed
+        .z_curves
+        .iter()
+        .enumerate()
+        .map(|(i, (m, _))| format!("{} {}", marks[i % marks.len()], m.key()))
+        .collect::<Vec<_>>()
+        .join(" ");
+    let chart = Chart::new(datasets)
+        .legend_position(None)
+        .block(Block::default().borders(Borders::ALL).title(" Z against pressure ").title_bottom(format!(" {legend} ")))
+        .x_axis(Axis::default().title("bar").bounds([0.0, pmax]).labels(["0".to_string(), format!("{pmax:.0}")]))
+        .y_axis(
+            Axis::default()
+                .title("Z")
+                .bounds([zmin - pad, zmax + pad])
+                .labels([format!("{:.2}", zmin - pad), format!("{:.2}", zmax + pad)]),
+        );
+    frame.render_widget(chart, zc);
+    // The fill: pressure reading against the amount added so far.
+    let mut pts = vec![(0.0, 0.0)];
+    let mut n = 0.0;
+    for s in &p.steps {
+        n += s.add_amount_mol;
+        pts.push((n, bar(s.pressure_after_pa)));
+    }
+    let (nmax, ptop) = pts.iter().fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
+    let chart = Chart::new(vec![Dataset::default()
+        .name(p.model.key())
+        .marker(Marker::Braille)
+        .graph_type(GraphType::Line)
+        .style(theme.fg(Color::Cyan))
+        .data(&pts)])
+    .block(Block::default().borders(Borders::ALL).title(" The fill: reading against amount "))
+    .x_axis(Axis::default().title("mol").bounds([0.0, nmax.max(1e-9)]).labels(["0".to_string(), format!("{nmax:.1}")]))
+    .y_axis(Axis::default().title("bar").bounds([0.0, ptop.max(1e-9)]).labels(["0".to_string(), format!("{ptop:.0}")]));
+    frame.render_widget(chart, fc);
+}
+
+fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let Some(doc) = &model.doc else { return };
+    let block = Block::default().borders(Borders::ALL).title(" Screening before the fill ");
+    let inner = block.inner(area);
+    frame.render_widget(block, area);
+    let Some(checks) = &doc.computed.checks else {
+        frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), inner);
+        return;
+    };
+    let mut lines = Vec::new();
+    let mut sorted: Vec<_> = checks.iter().collect();
+    sorted.sort_by_key(|c| std::cmp::Reverse(c.severity));
+    let w = inner.width as usize;
+    let chosen = model.check_selected.min(sorted.len().saturating_sub(1));
+    for (k, c) in sorted.iter().enumerate() {
+        let marker = if k == chosen { "▶" } else { " " };
+        lines.push(Line::from(vec![
+            Span::raw(marker),
+            Span::styled(
+                format!("[{:<7}] ", c.severity.key()),
+                theme.severity(c.severity).add_modifier(Modifier::BOLD),
+            ),
+            Span::styled(format!("{:<16}", c.id), theme.bold()),
+            Span::raw(clip(&c.message, w.saturating_sub(27))),
+        ]));
+    }
+    if let Some(c) = sorted.get(chosen) {
+        lines.push(Line::raw(String::new()));
+        lines.push(Line::styled(format!("{}: {}", c.id, c.message), theme.bold()));
+        for d in &c.details {
+            lines.push(Line::raw(format!("  {d}")));
+        }
+    }
+    lines.push(Line::raw(String::new()));
+    for c in CAUTIONS {
+        lines.push(Line::styled(format!("- {c}"), theme.dim()));
+    }
+    frame.render_widget(Paragraph::new(lines).wrap(Wrap { trim: false }), inner);
+}
+
+fn centered(area: Rect, width: u16, height: u16) -> Rect {
+    let w = width.min(area.width);
+    let h = height.min(area.height);
+    Rect { x: area.x + (area.width - w) / 2, y: area.y + (area.height - h) / 2, width: w, height: h }
+}
+
+fn boxed(frame: &mut Frame, area: Rect, title: &str, lines: Vec<Line>) -> Rect {
+    frame.render_widget(Clear, area);
+    let block = Block::default().borders(Borders::ALL).title(format!(" {title} "));
+    let inner = block.inner(area);
+    frame.render_widget(Paragraph::new(lines).block(block).wrap(Wrap { trim: false }), area);
+    inner
+}
+
+fn help_lines(view: View) -> Vec<&'static str> {
+    let mut v = match view {
+        View::Library => vec![
+            "↑↓ or j k   choose a recipe",
+            "Enter       open it in the editor",
+            "/           search as you type (Esc clears)",
+            "n           new recipe",
+            "c           copy the recipe under a new name",
+            "r           rename it",
+            "d or Del    delete it (kept in the library's .trash)",
+            "h           history: revisions and what changed; r restores",
+            "g           read the library folder again",
+        ],
+        View::Editor => vec![
+            "↑↓ or j k   move between lines",
+            "Enter or e  edit the line (Enter keeps, Esc cancels)",
+            "a           add a gas (search by formula, name or CAS)",
+            "g           change the gas of a component",
+            "b           make the component the balance gas",
+            "x or Del    remove the component or source",
+            "u, Ctrl-z   undo      Ctrl-r, Ctrl-y  redo",
+        ],
+        View::Sheet => vec![
+            "↑↓ or j k   choose a step",
+            "Space       mark the step done",
+            "t           type the cylinder temperature measured now",
+            "c           back to the planned fill temperature",
+            "r           type the reading reached (bar, barg, psig …)",
+        ],
+        View::Models => vec!["every model's amount, Z and last stop reading;", "charts of Z and of the fill"],
+        View::Checks => vec![
+            "↑↓ or j k   choose a check; its figures show below",
+            "checks: condensation, rating, flammability, oxidising,",
+            "toxicity and incompatible pairs, worst first",
+        ],
+    };
+    v.extend([
+        "",
+        "Tab, S-Tab  next, previous view   1-5 go to a view",
+        "s or F2     save (S: save with a note)",
+        "Esc         back out              ? help   q quit",
+    ]);
+    v
+}
+
+fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Frame, area: Rect) {
+    match &model.overlay {
+        Overlay::None => {}
+        Overlay::Help => {
+            let lines: Vec<Line> = help_lines(model.view).into_iter().map(Line::raw).collect();
+            let h = lines.len() as u16 + 2;
+            boxed(frame, centered(area, 64, h), &format!("Keys: {}", model.view.title()), lines);
+        }
+        Overlay::ConfirmQuit => {
+            let lines = vec![
+                Line::raw("The recipe has unsaved changes."),
+                Line::raw("s  save and quit     y  quit without saving"),
+                Line::raw("any other key: stay"),
+            ];
+            boxed(frame, centered(area, 50, 5), "Quit?", lines);
+        }
+        Overlay::ConfirmDelete(name) => {
+            let lines = vec![
+                Line::raw(format!("Move {name} to the trash folder?")),
+                Line::raw("y  delete (recoverable)     any other key: keep"),
+            ];
+            boxed(frame, centered(area, 56, 4), "Delete", lines);
+        }
+        Overlay::Conflict => {
+            let lines = vec![
+                Line::raw("The file changed on disk since it was opened"),
+                Line::raw("(another bench or program saved it). Nothing was written."),
+                Line::raw("r  reload from disk (drops your edits)"),
+                Line::raw("a  save yours under another name"),
+                Line::raw("o  overwrite the file on disk"),
+            ];
+            boxed(frame, centered(area, 62, 7), "Changed on disk", lines);
+        }
+        Overlay::Prompt { purpose, input } => {
+            let title = match purpose {
+                Prompt::Duplicate(n) => format!("Copy {n} as"),
+                Prompt::Rename(n) => format!("Rename {n} to"),
+                Prompt::SaveAs => "Save as".into(),
+                Prompt::SaveNote => "Note for this revision".into(),
+                Prompt::NewRecipe => "Name of the new recipe".into(),
+                Prompt::MeasuredTemperature => "Cylinder temperature now (e.g. 28C)".into(),
+                Prompt::ActualReading(i) => format!("Reading reached at step {} (e.g. 48.2bar)", i + 1),
+                Prompt::AddSource => "Source: a gas id, or NAME = SPEC for a premix".into(),
+            };
+            let r = centered(area, 60, 4);
+            let inner = boxed(
+                frame,
+                r,
+                &title,
+                vec![Line::raw(input.value().to_string()), Line::styled("Enter keeps · Esc cancels", theme.dim())],
+            );
+            frame.set_cursor_position((inner.x + input.visual_cursor() as u16, inner.y));
+        }
+        Overlay::Picker { input, selected, purpose } => {
+            let hits = super::picker::matches(catalogue, input.value());
+            let r = centered(area, 64, area.height.min(16));
+            let rows = r.height.saturating_sub(4) as usize;
+            let first = selected.saturating_sub(rows.saturating_sub(1));
+            let mut lines = vec![Line::styled(format!("search: {}", input.value()), theme.bold())];
+            for (k, &g) in hits.iter().enumerate().skip(first).take(rows) {
+                let gas = catalogue.gas(g);
+                let text = format!(
+                    "{} {:<10} {:<24} {}",
+                    if k == *selected { "▶" } else { " " },
+                    gas.id(),
+                    clip(gas.name(), 24),
+                    gas.record.cas
+                );
+                lines.push(Line::styled(text, if k == *selected { theme.selected() } else { Style::default() }));
+            }
+            if hits.is_empty() {
+                lines.push(Line::raw("  no gas matches"));
+            }
+            let title = match purpose {
+                PickFor::AddComponent => "Add a gas",
+                PickFor::ReplaceComponent(_) => "Change the gas",
+            };
+            let inner = boxed(frame, r, title, lines);
+            frame.set_cursor_position((inner.x + 8 + input.visual_cursor() as u16, inner.y));
+        }
+        Overlay::History { name, revisions, selected, changes } => {
+            let mut lines: Vec<Line> = revisions
+                .iter()
+                .enumerate()
+                .map(|(k, r)| {
+                    let text = format!(
+                        "{} rev {:>3}  {:<20}  {}",
+                        if k == *selected { "▶" } else { " " },
+                        r.revision,
+                        r.saved.as_deref().unwrap_or("-"),
+                        clip(r.note.as_deref().unwrap_or(""), 30)
+                    );
+                    Line::styled(text, if k == *selected { theme.selected() } else { Style::default() })
+                })
+                .collect();
+            lines.push(Line::styled("from the chosen revision to the newest:", theme.bold()));
+            lines.extend(changes.iter().map(|c| Line::raw(format!("  {c}"))));
+            lines.push(Line::styled("↑↓ choose · r restore as the newest revision · Esc close", theme.dim()));
+            let h = (lines.len() as u16 + 2).min(area.height);
+            boxed(frame, centered(area, 76, h), &format!("History of {name}"), lines);
+        }
+        Overlay::Drafts { names, selected } => {
+            let mut lines = vec![Line::raw("A session ended with unsaved edits; they were kept:")];
+            for (k, n) in names.iter().enumerate() {
+                lines.push(Line::styled(
+                    format!("{} {n}", if k == *selected { "▶" } else { " " }),
+                    if k == *selected { theme.selected() } else { Style::default() },
+                ));
+            }
+            lines.push(Line::styled("Enter recover · d discard · Esc later", theme.dim()));
+            let h = lines.len() as u16 + 2;
+            boxed(frame, centered(area, 60, h), "Recover unsaved edits?", lines);
+        }
+    }
+}

@@ -1,0 +1,136 @@
+//! End to end: the real binary in a real terminal (tmux), as a blender would use it.
+//! Needs tmux (`.ci/run` installs it).
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+use std::time::{Duration, Instant};
+
+struct Tmux {
+    socket: String,
+}
+
+impl Tmux {
+    fn new(tag: &str) -> Tmux {
+        assert!(
+            Command::new("tmux").arg("-V").output().is_ok_and(|o| o.status.success()),
+            "this test drives the program in tmux: install tmux (apt-get install tmux)"
+        );
+        Tmux { socket: format!("fillwright-test-{tag}-{}", std::process::id()) }
+    }
+
+    fn run(&self, args: &[&str]) -> String {
+        let o = Command::new("tmux").arg("-L").arg(&self.socket).args(args).output().unwrap();
+        String::from_utf8_lossy(&o.stdout).into_owned()
+    }
+
+    fn start(&self, config: &Path, args: &str) {
+        let bin = env!("CARGO_BIN_EXE_fillwright");
+        let cmd = format!("env -u NO_COLOR FILLWRIGHT_CONFIG={} {bin} {args}", config.display());
+        self.run(&["new-session", "-d", "-s", "bench", "-x", "80", "-y", "24", &cmd]);
+        self.run(&["set-option", "-t", "bench", "remain-on-exit", "on"]);
+    }
+
+    fn screen(&self) -> String {
+        self.run(&["capture-pane", "-p", "-t", "bench"])
+    }
+
+    fn keys(&self, keys: &[&str]) {
+        for k in keys {
+            self.run(&["send-keys", "-t", "bench", k]);
+            std::thread::sleep(Duration::from_millis(60));
+        }
+    }
+
+    fn type_text(&self, text: &str) {
+        self.run(&["send-keys", "-t", "bench", "-l", text]);
+        std::thread::sleep(Duration::from_millis(100));
+    }
+
+    fn wait_for(&self, needle: &str) -> String {
+        let start = Instant::now();
+        loop {
+            let s = self.screen();
+            if s.contains(needle) {
+                return s;
+            }
+            assert!(start.elapsed() < Duration::from_secs(20), "waited for {needle:?}; the screen shows:\n{s}");
+            std::thread::sleep(Duration::from_millis(100));
+        }
+    }
+
+    fn wait_exit(&self) {
+        let start = Instant::now();
+        while self.run(&["display-message", "-p", "-t", "bench", "#{pane_dead}"]).trim() != "1" {
+            assert!(start.elapsed() < Duration::from_secs(20), "the program did not exit:\n{}", self.screen());
+            std::thread::sleep(Duration::from_millis(100));
+        }
+    }
+
+    fn kill_session(&self) {
+        self.run(&["kill-session", "-t", "bench"]);
+    }
+}
+
+impl Drop for Tmux {
+    fn drop(&mut self) {
+        self.run(&["kill-server"]);
+    }
+}
+
+fn fresh_config(tag: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("fillwright-e2e-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    dir
+}
+
+#[test]
+fn open_change_save_quit_then_recover_after_a_dropped_session() {
+    let config = fresh_config("bench");
+    let t = Tmux::new("bench");
+
+    // A new user: the demo library is there, with fill pressures.
+    t.start(&config, "");
+    let s = t.wait_for("Recipes in");
+    assert!(s.contains("flue-gas-span") && s.contains("150bar"), "{s}");
+    t.keys(&["/"]);
+    t.type_text("flue-gas");
+    t.keys(&["Enter"]);
+    t.wait_for("flue-gas-span rev 1");
+    // Down to the CO2 amount, change it, save, quit.
+    t.keys(&["Down", "Down", "Down", "Down", "Down", "Down", "Down", "Enter", "C-u"]);
+    t.type_text("14%");
+    t.keys(&["Enter"]);
+    t.wait_for("unsaved changes");
+    t.keys(&["s"]);
+    t.wait_for("saved rev 2");
+    t.keys(&["q"]);
+    t.wait_exit();
+    let file = std::fs::read_to_string(config.join("library/flue-gas-span.ron")).unwrap();
+    assert!(file.contains("(gas: \"CO2\", amount: \"14%\""), "{file}");
+    assert!(file.contains("revision: 2,"), "{file}");
+    t.kill_session();
+
+    // The SSH session drops in the middle of an edit: the edit survives as a draft.
+    t.start(&config, "edit flue-gas-span");
+    t.wait_for("flue-gas-span rev 2");
+    t.keys(&["Down", "Down", "Down", "Down", "Down", "Down", "Down", "Enter", "C-u"]);
+    t.type_text("13%");
+    t.keys(&["Enter"]);
+    t.wait_for("unsaved changes");
+    t.kill_session();
+    let draft = config.join("drafts/flue-gas-span.ron");
+    let start = Instant::now();
+    while !draft.is_file() {
+        assert!(start.elapsed() < Duration::from_secs(10), "no draft was written on SIGHUP");
+        std::thread::sleep(Duration::from_millis(100));
+    }
+    assert!(std::fs::read_to_string(&draft).unwrap().contains("amount: \"13%\""));
+    // The next start offers it.
+    t.start(&config, "");
+    t.wait_for("Recover unsaved edits?");
+    t.keys(&["Enter"]);
+    let s = t.wait_for("recovered the unsaved edits");
+    assert!(s.contains("13%"), "{s}");
+    t.keys(&["q", "y"]);
+    t.wait_exit();
+}

@@ -1,0 +1,268 @@
+//! The screen's update logic, driven by key messages with no terminal.
+
+use std::path::PathBuf;
+
+use fillwright::gas::Catalogue;
+use fillwright::library::Library;
+use fillwright::settings::Settings;
+use fillwright::tui::model::{Model, Overlay, View};
+use fillwright::tui::update::{self, Context, Key, Msg};
+
+fn stamp() -> String {
+    "2026-12-01T12:00:00Z".into()
+}
+
+fn setup(tag: &str) -> (Model, Context, PathBuf) {
+    let dir = std::env::temp_dir().join(format!("fillwright-tui-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    let library = Library::at(&dir.join("library")).unwrap();
+    let mut ctx = Context {
+        library,
+        catalogue: Catalogue::built_in(),
+        settings: Settings::default().resolve("", "defaults").unwrap(),
+        drafts: Some(dir.join("drafts")),
+        now: stamp,
+    };
+    let mut model = Model::new("test library".into(), false);
+    update::start(&mut model, &mut ctx);
+    (model, ctx, dir)
+}
+
+fn keys(model: &mut Model, ctx: &mut Context, keys: &[Key]) {
+    for k in keys {
+        update::update(model, Msg::Key(*k), ctx);
+    }
+}
+
+fn text(model: &mut Model, ctx: &mut Context, s: &str) {
+    for c in s.chars() {
+        update::update(model, Msg::Key(Key::Char(c)), ctx);
+    }
+}
+
+/// Open a demo recipe by searching for it.
+fn open(model: &mut Model, ctx: &mut Context, name: &str) {
+    keys(model, ctx, &[Key::Char('/')]);
+    text(model, ctx, name);
+    keys(model, ctx, &[Key::Enter]);
+    assert_eq!(model.view, View::Editor, "{}", model.status);
+    assert_eq!(model.doc.as_ref().unwrap().name, name);
+}
+
+/// Move the editor to the line whose label starts with `gas` (a component row).
+fn go_to_component(model: &mut Model, ctx: &mut Context, gas: &str) {
+    keys(model, ctx, &[Key::Home]);
+    for _ in 0..40 {
+        let doc = model.doc.as_ref().unwrap();
+        if let fillwright::tui::model::Field::Component(i) = doc.current_field() {
+            if doc.recipe.components[i].gas == gas {
+                return;
+            }
+        }
+        keys(model, ctx, &[Key::Down]);
+    }
+    panic!("no component {gas}");
+}
+
+#[test]
+fn first_start_seeds_the_demo_library_and_lists_it() {
+    let (model, _ctx, _dir) = setup("seed");
+    assert_eq!(model.library.entries.len(), 7);
+    assert!(model.status.contains("copied 7 demo recipes"));
+    assert_eq!(model.view, View::Library);
+}
+
+#[test]
+fn search_as_you_type_narrows_the_list() {
+    let (mut model, mut ctx, _dir) = setup("search");
+    keys(&mut model, &mut ctx, &[Key::Char('/')]);
+    text(&mut model, &mut ctx, "span");
+    let names: Vec<&str> = model.library.visible().iter().map(|&i| model.library.entries[i].name.as_str()).collect();
+    assert_eq!(names, ["flue-gas-span", "nox-span-premix"]);
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert_eq!(model.library.visible().len(), 7);
+}
+
+#[test]
+fn editing_an_amount_recomputes_and_undo_redo_restore_it() {
+    let (mut model, mut ctx, _dir) = setup("edit");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let before = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().totals.amount_mol;
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "14%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components[2].amount, "14%");
+    assert!(doc.dirty());
+    let after = doc.computed.plan.as_ref().unwrap().totals.amount_mol;
+    assert!((after - before).abs() > 0.01, "the plan was recomputed: {before} → {after}");
+    keys(&mut model, &mut ctx, &[Key::Char('u')]);
+    assert_eq!(model.doc.as_ref().unwrap().recipe.components[2].amount, "15%");
+    assert!(!model.doc.as_ref().unwrap().dirty());
+    keys(&mut model, &mut ctx, &[Key::Ctrl('r')]);
+    assert_eq!(model.doc.as_ref().unwrap().recipe.components[2].amount, "14%");
+    // Esc while typing keeps the old value.
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "99%");
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert_eq!(model.doc.as_ref().unwrap().recipe.components[2].amount, "14%");
+}
+
+#[test]
+fn bad_input_is_shown_and_nothing_is_lost() {
+    let (mut model, mut ctx, _dir) = setup("bad");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "115%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components[2].amount, "115%", "what was typed is kept");
+    assert!(doc.computed.plan.as_ref().unwrap_err().contains("above 100 %"));
+    assert!(model.status.contains("not plannable yet"));
+}
+
+#[test]
+fn adding_a_gas_through_the_picker() {
+    let (mut model, mut ctx, _dir) = setup("picker");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    assert!(matches!(model.overlay, Overlay::Picker { .. }));
+    text(&mut model, &mut ctx, "argon");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "0.5%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    let ar = doc.recipe.components.iter().find(|c| c.gas == "Ar").unwrap();
+    assert_eq!(ar.amount, "0.5%");
+    assert_eq!(doc.recipe.components.last().unwrap().gas, "N2", "the balance gas stays last");
+    assert!(doc.computed.plan.is_ok());
+}
+
+#[test]
+fn saving_makes_a_revision_and_quitting_guards_unsaved_changes() {
+    let (mut model, mut ctx, dir) = setup("save");
+    open(&mut model, &mut ctx, "nox-span-premix");
+    keys(&mut model, &mut ctx, &[Key::Home]);
+    for _ in 0..3 {
+        keys(&mut model, &mut ctx, &[Key::Down]);
+    }
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "90ppm");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    keys(&mut model, &mut ctx, &[Key::Char('q')]);
+    assert!(matches!(model.overlay, Overlay::ConfirmQuit));
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    assert!(!model.quit, "any other key stays");
+    keys(&mut model, &mut ctx, &[Key::Char('s')]);
+    assert_eq!(model.status, "saved rev 2");
+    let text = std::fs::read_to_string(dir.join("library/nox-span-premix.ron")).unwrap();
+    assert!(text.contains("amount: \"90ppm\"") && text.contains("revision: 2"));
+    keys(&mut model, &mut ctx, &[Key::Char('q')]);
+    assert!(model.quit, "nothing unsaved: q quits at once");
+}
+
+#[test]
+fn a_file_changed_on_disk_is_not_overwritten() {
+    let (mut model, mut ctx, dir) = setup("conflict");
+    open(&mut model, &mut ctx, "pipeline-ng-9");
+    let path = dir.join("library/pipeline-ng-9.ron");
+    let other = std::fs::read_to_string(&path).unwrap().replace("\"100bar\"", "\"90bar\"");
+    std::fs::write(&path, &other).unwrap();
+    keys(&mut model, &mut ctx, &[Key::Home, Key::Enter, Key::Char('!'), Key::Enter, Key::Char('s')]);
+    assert!(matches!(model.overlay, Overlay::Conflict));
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), other);
+    // Save under another name instead.
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    text(&mut model, &mut ctx, "pipeline-mine");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.starts_with("saved as pipeline-mine"), "{}", model.status);
+    assert!(dir.join("library/pipeline-mine.ron").is_file());
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), other);
+}
+
+#[test]
+fn views_need_a_recipe_and_tab_cycles_them() {
+    let (mut model, mut ctx, _dir) = setup("views");
+    keys(&mut model, &mut ctx, &[Key::Tab]);
+    assert_eq!(model.view, View::Library);
+    assert!(model.status.contains("open a recipe first"));
+    open(&mut model, &mut ctx, "lpg-in-methane");
+    let mut seen = vec![model.view];
+    for _ in 0..5 {
+        keys(&mut model, &mut ctx, &[Key::Tab]);
+        seen.push(model.view);
+    }
+    assert_eq!(seen, [View::Editor, View::Sheet, View::Models, View::Checks, View::Library, View::Editor]);
+    keys(&mut model, &mut ctx, &[Key::BackTab]);
+    assert_eq!(model.view, View::Library);
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    assert_eq!(model.view, View::Sheet);
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert_eq!(model.view, View::Library);
+    keys(&mut model, &mut ctx, &[Key::Char('?')]);
+    assert!(matches!(model.overlay, Overlay::Help));
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert!(matches!(model.overlay, Overlay::None));
+}
+
+#[test]
+fn the_fill_sheet_corrects_targets_for_the_measured_temperature() {
+    let (mut model, mut ctx, _dir) = setup("sheet");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('t'), Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "35C");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    let plan = doc.computed.plan.as_ref().unwrap();
+    let last = plan.steps.len() - 1;
+    let corrected = doc.bench.corrected_pa[last].unwrap();
+    assert_eq!(corrected, plan.corrected_target_pa(last, 308.15).unwrap());
+    assert!(corrected > plan.steps[last].pressure_after_pa, "a warmer cylinder reads higher");
+    // Mark the first step done and type the reading reached.
+    keys(&mut model, &mut ctx, &[Key::Char(' ')]);
+    assert!(model.doc.as_ref().unwrap().bench.done[0]);
+    keys(&mut model, &mut ctx, &[Key::Up, Key::Char('r')]);
+    text(&mut model, &mut ctx, "0.09bar");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(model.doc.as_ref().unwrap().bench.actual_pa[0], Some(9000.0));
+    // A typing error is reported and changes nothing.
+    keys(&mut model, &mut ctx, &[Key::Char('t'), Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "warm");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("temperature"), "{}", model.status);
+    assert_eq!(model.doc.as_ref().unwrap().bench.measured_k, Some(308.15));
+}
+
+#[test]
+fn drafts_are_offered_and_recovered() {
+    let (mut model, mut ctx, _dir) = setup("drafts");
+    let mut recipe = ctx.library.open("laser-co2-he-n2").unwrap().recipe;
+    recipe.components[0].amount = "5%".into();
+    ctx.write_draft("laser-co2-he-n2", &recipe).unwrap();
+    let mut model2 = Model::new("test library".into(), false);
+    update::start(&mut model2, &mut ctx);
+    assert!(matches!(model2.overlay, Overlay::Drafts { .. }));
+    keys(&mut model2, &mut ctx, &[Key::Enter]);
+    let doc = model2.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components[0].amount, "5%");
+    assert!(doc.dirty(), "recovered edits are unsaved until saved");
+    keys(&mut model2, &mut ctx, &[Key::Char('s')]);
+    assert!(ctx.draft_names().is_empty(), "saving clears the draft");
+    let _ = &mut model;
+}
+
+#[test]
+fn library_operations_from_the_screen() {
+    let (mut model, mut ctx, dir) = setup("ops");
+    keys(&mut model, &mut ctx, &[Key::Char('c'), Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "copy-one");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(dir.join("library/copy-one.ron").is_file(), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Home, Key::Char('d'), Key::Char('y')]);
+    assert!(!dir.join("library/copy-one.ron").is_file(), "{}", model.status);
+    assert!(model.status.contains(".trash"));
+    keys(&mut model, &mut ctx, &[Key::Char('h')]);
+    assert!(matches!(model.overlay, Overlay::History { .. }));
+}
