@@ -41,8 +41,11 @@ fn type_text(model: &mut Model, ctx: &mut Context, text: &str) {
     }
 }
 
-/// Each scene: its name and the keys that lead to it from a fresh start.
-pub fn scenes() -> Vec<(&'static str, Box<dyn Fn(&mut Model, &mut Context)>)> {
+/// The keys that lead to a scene from a fresh start.
+pub type Steps = Box<dyn Fn(&mut Model, &mut Context)>;
+
+/// Each scene: its name and how to get there.
+pub fn scenes() -> Vec<(&'static str, Steps)> {
     let open_flue = |m: &mut Model, c: &mut Context| {
         press(m, c, &[Key::Char('/')]);
         type_text(m, c, "flue-gas");
