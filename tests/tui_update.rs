@@ -266,3 +266,31 @@ fn library_operations_from_the_screen() {
     keys(&mut model, &mut ctx, &[Key::Char('h')]);
     assert!(matches!(model.overlay, Overlay::History { .. }));
 }
+
+#[test]
+fn history_shows_what_changed_between_two_revisions() {
+    let (mut model, mut ctx, _dir) = setup("history");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    for amount in ["14%", "13%"] {
+        go_to_component(&mut model, &mut ctx, "CO2");
+        keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+        text(&mut model, &mut ctx, amount);
+        keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('s')]);
+    }
+    assert_eq!(model.status, "saved rev 3");
+    // In the library, flue-gas-span is the second recipe.
+    keys(&mut model, &mut ctx, &[Key::Char('1'), Key::Home, Key::Down, Key::Char('h')]);
+    let changes = |m: &Model| match &m.overlay {
+        Overlay::History { changes, .. } => changes.clone(),
+        other => panic!("{other:?}"),
+    };
+    // The newest is selected: choose revision 1, compared with the newest.
+    keys(&mut model, &mut ctx, &[Key::Up, Key::Up]);
+    assert_eq!(changes(&model), vec!["CO2 15 → 13 %"]);
+    // Compare from revision 1 to revision 2.
+    keys(&mut model, &mut ctx, &[Key::Char(' '), Key::Down]);
+    assert_eq!(changes(&model), vec!["CO2 15 → 14 %"]);
+    // Restore revision 2 as revision 4.
+    keys(&mut model, &mut ctx, &[Key::Char('r')]);
+    assert!(model.status.contains("as revision 4"), "{}", model.status);
+}

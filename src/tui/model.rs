@@ -57,12 +57,14 @@ pub enum Overlay {
         selected: usize,
         purpose: PickFor,
     },
-    /// Revisions of a recipe, the selected one, and its changes against the newest.
+    /// Revisions of a recipe, the selected one, the revision marked to compare from (None:
+    /// the selected one is compared with the newest), and the changes between them.
     History {
         name: String,
         revisions: Vec<Revision>,
         selected: usize,
         changes: Vec<String>,
+        base: Option<u32>,
     },
     /// Drafts left by a session that ended with unsaved edits.
     Drafts {

@@ -341,7 +341,8 @@ fn show_history(model: &mut Model, ctx: &Context, name: &str) {
     match ctx.library.history(name) {
         Ok(revisions) => {
             let selected = revisions.len().saturating_sub(1);
-            let mut overlay = Overlay::History { name: name.to_string(), revisions, selected, changes: Vec::new() };
+            let mut overlay =
+                Overlay::History { name: name.to_string(), revisions, selected, changes: Vec::new(), base: None };
             history_changes(&mut overlay, ctx);
             model.overlay = overlay;
         }
@@ -349,12 +350,17 @@ fn show_history(model: &mut Model, ctx: &Context, name: &str) {
     }
 }
 
-/// The changes from the selected revision to the newest, in the trade's words.
+/// The changes between two revisions, in the trade's words: from the marked one (or the
+/// selected one) to the selected one (or the newest).
 fn history_changes(overlay: &mut Overlay, ctx: &Context) {
-    if let Overlay::History { name, revisions, selected, changes } = overlay {
+    if let Overlay::History { name, revisions, selected, changes, base } = overlay {
         let newest = revisions.last().map(|r| r.revision);
         let chosen = revisions.get(*selected).map(|r| r.revision);
-        *changes = match (chosen, newest) {
+        let (from, to) = match base {
+            Some(b) => (Some(*b), chosen),
+            None => (chosen, newest),
+        };
+        *changes = match (from, to) {
             (Some(a), Some(b)) if a != b => match (ctx.library.revision(name, a), ctx.library.revision(name, b)) {
                 (Ok(ra), Ok(rb)) => {
                     let list = crate::recipe::changes::describe(&ra, &rb);
@@ -366,7 +372,7 @@ fn history_changes(overlay: &mut Overlay, ctx: &Context) {
                 }
                 (Err(e), _) | (_, Err(e)) => vec![e.to_string()],
             },
-            _ => vec!["this is the newest revision".into()],
+            _ => vec!["the same revision: choose another, or Space to compare from this one".into()],
         };
     }
 }
@@ -718,16 +724,17 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 }
             }
         }
-        Overlay::History { name, revisions, mut selected, changes } => match key {
-            Key::Up | Key::Char('k') => {
-                selected = selected.saturating_sub(1);
-                let mut o = Overlay::History { name, revisions, selected, changes };
-                history_changes(&mut o, ctx);
-                model.overlay = o;
-            }
-            Key::Down | Key::Char('j') => {
-                selected = (selected + 1).min(revisions.len().saturating_sub(1));
-                let mut o = Overlay::History { name, revisions, selected, changes };
+        Overlay::History { name, revisions, mut selected, changes, mut base } => match key {
+            Key::Up | Key::Char('k') | Key::Down | Key::Char('j') | Key::Char(' ') => {
+                match key {
+                    Key::Up | Key::Char('k') => selected = selected.saturating_sub(1),
+                    Key::Down | Key::Char('j') => selected = (selected + 1).min(revisions.len().saturating_sub(1)),
+                    _ => {
+                        let here = revisions.get(selected).map(|r| r.revision);
+                        base = if base == here { None } else { here };
+                    }
+                }
+                let mut o = Overlay::History { name, revisions, selected, changes, base };
                 history_changes(&mut o, ctx);
                 model.overlay = o;
             }
@@ -743,7 +750,7 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 refresh(model, ctx);
             }
             Key::Esc | Key::Char('q') => {}
-            _ => model.overlay = Overlay::History { name, revisions, selected, changes },
+            _ => model.overlay = Overlay::History { name, revisions, selected, changes, base },
         },
         Overlay::Drafts { names, mut selected } => match key {
             Key::Up => {

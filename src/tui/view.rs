@@ -14,7 +14,7 @@ use super::update::field_text;
 use crate::checks::{Severity, CAUTIONS};
 use crate::gas::Catalogue;
 use crate::recipe::FillTarget;
-use crate::units::{bar, celsius};
+use crate::units::{bar, celsius, Sig};
 
 /// Smallest terminal the screen draws in.
 pub const MIN_WIDTH: u16 = 60;
@@ -395,36 +395,56 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), area);
         return;
     };
-    let table_h = (p.models.len() as u16 + 3).min(area.height / 2);
+    // One table: a column per model; the stop reading of each step, then the amount, its
+    // difference from the reference, and Z.
+    let ok: Vec<_> = p.models.iter().filter_map(|m| m.result.as_ref().ok().map(|f| (m.model, f))).collect();
+    let reference = ok.iter().find(|(m, _)| *m == crate::thermo::Model::Gerg).map_or(p.model, |(m, _)| *m);
+    let ref_amount = ok.iter().find(|(m, _)| *m == reference).map(|(_, f)| f.amount_mol);
+    let max_steps = (area.height as usize).saturating_sub(14).clamp(2, 12);
+    let shown = p.steps.len().min(max_steps);
+    let table_h = (shown + 6) as u16;
     let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
-    let reference = p
-        .models
-        .iter()
-        .find(|m| m.model == crate::thermo::Model::Gerg && m.result.is_ok())
-        .map_or(p.model, |m| m.model);
-    let ref_amount =
-        p.models.iter().find(|m| m.model == reference).and_then(|m| m.result.as_ref().ok()).map(|f| f.amount_mol);
-    let block = Block::default().borders(Borders::ALL).title(format!(" Every model (reference {}) ", reference.key()));
+    let block = Block::default().borders(Borders::ALL).title(format!(
+        " Every model: stop readings at {:.1} °C in bar; reference {} ",
+        celsius(p.fill_temperature_k),
+        reference.key()
+    ));
     let inner = block.inner(top);
     frame.render_widget(block, top);
-    let mut lines = vec![Line::styled(
-        format!("{:<22}{:>12}{:>10}{:>9}{:>12}", "model", "amount mol", "vs ref", "Z", "last stop"),
-        theme.bold(),
-    )];
-    for m in &p.models {
-        let text = match &m.result {
-            Ok(f) => format!(
-                "{:<22}{:>12.4}{:>9.2}%{:>9.4}{:>12.3}",
-                m.model.title(),
-                f.amount_mol,
-                ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0),
-                f.z,
-                f.step_pressures_pa.last().map_or(0.0, |v| bar(*v))
-            ),
-            Err(e) => format!("{:<22}{}", m.model.title(), clip(e.split(';').next().unwrap_or(e), 50)),
-        };
-        let style = if m.model == p.model { theme.bold() } else { Style::default() };
-        lines.push(Line::styled(text, style));
+    let mut head = format!("{:<14}", "");
+    for (m, _) in &ok {
+        let mark = if *m == p.model { "*" } else { "" };
+        head.push_str(&format!("{:>9}", format!("{}{mark}", m.key())));
+    }
+    let mut lines = vec![Line::styled(head, theme.bold())];
+    for (i, s) in p.steps.iter().enumerate().take(shown) {
+        let mut row = format!("{:<14}", clip(&format!("{} {}", i + 1, s.source), 13));
+        for (_, f) in &ok {
+            row.push_str(&format!(
+                "{:>9}",
+                Sig(f.step_pressures_pa.get(i).map_or(f64::NAN, |v| bar(*v)), 5).to_string()
+            ));
+        }
+        lines.push(Line::raw(row));
+    }
+    if p.steps.len() > shown {
+        lines.push(Line::styled(format!("… {} more steps on the fill sheet", p.steps.len() - shown), theme.dim()));
+    }
+    let mut amount = format!("{:<14}", "amount mol");
+    let mut diff = format!("{:<14}", "vs reference");
+    let mut z = format!("{:<14}", "Z");
+    for (_, f) in &ok {
+        amount.push_str(&format!("{:>9}", Sig(f.amount_mol, 5).to_string()));
+        diff.push_str(&format!(
+            "{:>9}",
+            format!("{:+.2}%", ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0))
+        ));
+        z.push_str(&format!("{:>9.4}", f.z));
+    }
+    lines.extend([Line::styled(amount, theme.bold()), Line::raw(diff), Line::raw(z)]);
+    for m in p.models.iter().filter(|m| m.result.is_err()) {
+        let e = m.result.as_ref().err().map_or("", |e| e.split(';').next().unwrap_or(e));
+        lines.push(Line::styled(clip(&format!("{}: {e}", m.model.key()), inner.width as usize), theme.dim()));
     }
     frame.render_widget(Paragraph::new(lines), inner);
 
@@ -674,7 +694,7 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             let inner = boxed(frame, r, title, lines);
             frame.set_cursor_position((inner.x + 8 + input.visual_cursor() as u16, inner.y));
         }
-        Overlay::History { name, revisions, selected, changes } => {
+        Overlay::History { name, revisions, selected, changes, base } => {
             let mut lines: Vec<Line> = revisions
                 .iter()
                 .enumerate()
@@ -689,9 +709,15 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                     Line::styled(text, if k == *selected { theme.selected() } else { Style::default() })
                 })
                 .collect();
-            lines.push(Line::styled("from the chosen revision to the newest:", theme.bold()));
+            lines.push(Line::styled(
+                match base {
+                    Some(b) => format!("from revision {b} to the chosen one:"),
+                    None => "from the chosen revision to the newest:".to_string(),
+                },
+                theme.bold(),
+            ));
             lines.extend(changes.iter().map(|c| Line::raw(format!("  {c}"))));
-            lines.push(Line::styled("↑↓ choose · r restore as the newest revision · Esc close", theme.dim()));
+            lines.push(Line::styled("↑↓ choose · Space compare from here · r restore · Esc close", theme.dim()));
             let h = (lines.len() as u16 + 2).min(area.height);
             boxed(frame, centered(area, 76, h), &format!("History of {name}"), lines);
         }
