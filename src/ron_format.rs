@@ -1,7 +1,45 @@
 //! How every RON file of the program is read: optional fields may be written bare
-//! (`tolerance: "2%rel"` rather than `tolerance: Some("2%rel")`).
+//! (`tolerance: "2%rel"` rather than `tolerance: Some("2%rel")`); and the two text helpers
+//! shared by the file readers and the printers.
 
 /// The RON options for reading recipes, settings and catalogue files.
 pub fn options() -> ron::Options {
     ron::Options::default().with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
+}
+
+/// Line and column (1-based) of the first occurrence of `needle` in `text`, or 1:1, to place
+/// a problem found after parsing (a value that parsed but is not acceptable).
+pub fn locate(text: &str, needle: &str) -> (usize, usize) {
+    match text.find(needle) {
+        Some(pos) => {
+            let before = &text[..pos];
+            (before.matches('\n').count() + 1, pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1)
+        }
+        None => (1, 1),
+    }
+}
+
+/// `text` cut to `width` characters, an ellipsis marking the cut.
+pub fn clip(text: &str, width: usize) -> String {
+    if text.chars().count() <= width {
+        text.to_string()
+    } else if width == 0 {
+        String::new()
+    } else {
+        text.chars().take(width - 1).chain(std::iter::once('…')).collect()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn places_and_clips() {
+        assert_eq!(locate("ab\ncd \"x\"", "\"x\""), (2, 4));
+        assert_eq!(locate("abc", "zz"), (1, 1));
+        assert_eq!(clip("abcdef", 4), "abc…");
+        assert_eq!(clip("abc", 4), "abc");
+        assert_eq!(clip("abc", 0), "");
+    }
 }

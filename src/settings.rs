@@ -81,7 +81,7 @@ impl Settings {
     /// Read the quantities, naming the field of any that is wrong.
     pub fn resolve(&self, text: &str, origin: &str) -> Result<Resolved, SettingsError> {
         let err = |field: &str, message: String| {
-            let (line, column) = locate(text, field);
+            let (line, column) = crate::ron_format::locate(text, field);
             SettingsError { origin: origin.into(), line, column, message: format!("{field}: {message}") }
         };
         let ambient_pa =
@@ -106,16 +106,6 @@ impl Settings {
             max_service_temperature_k,
             git_commit_on_save: self.git_commit_on_save,
         })
-    }
-}
-
-fn locate(text: &str, needle: &str) -> (usize, usize) {
-    match text.find(needle) {
-        Some(pos) => {
-            let before = &text[..pos];
-            (before.matches('\n').count() + 1, pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1)
-        }
-        None => (1, 1),
     }
 }
 

@@ -1,5 +1,7 @@
 //! GERG-2008 through our integration, against published check values and against teqp.
 
+mod common;
+
 use fillwright::gas::Catalogue;
 use fillwright::plan::{self, PlanOptions};
 use fillwright::recipe::Recipe;
@@ -104,27 +106,14 @@ fn pressure_from_density_agrees_with_teqp_to_1e_9() {
 fn gerg_plan_step_targets_agree_with_teqp_to_1e_8() {
     let c = Catalogue::built_in();
     for case in fixture().plans {
-        let n = case.ids.len();
-        let components: Vec<String> = case
-            .ids
-            .iter()
-            .zip(&case.x)
-            .enumerate()
-            .map(|(i, (id, x))| {
-                let amount = if i == n - 1 { "balance".to_string() } else { x.to_string() };
-                format!("(gas: \"{id}\", amount: \"{amount}\")")
-            })
-            .collect();
-        let text = format!(
-            "Recipe(format: 1, name: \"{}\", components: [{}], cylinder: (water_capacity: \"{}L\", \
-             working_pressure: \"300bar\", test_pressure: \"450bar\"), fill: Pressure(\"{}bar\"), \
-             reference_temperature: \"{}K\", fill_temperature: \"{}K\")",
-            case.label,
-            components.join(", "),
+        let text = common::recipe_text(
+            &case.label,
+            &case.ids,
+            &case.x,
             case.volume_l,
             case.pressure_bar,
             case.reference_temperature_k,
-            case.fill_temperature_k
+            case.fill_temperature_k,
         );
         let order = Recipe::load(&text, &case.label, &c).unwrap();
         let options = PlanOptions { model: Some(Model::Gerg), ..PlanOptions::default() };

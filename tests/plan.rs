@@ -1,5 +1,7 @@
 //! The fill plan against outside references and its own invariants.
 
+mod common;
+
 use fillwright::gas::Catalogue;
 use fillwright::mixture::Composition;
 use fillwright::plan::{self, PlanError, PlanOptions};
@@ -92,29 +94,14 @@ fn vdw_and_pr_step_targets_agree_with_thermo_to_1e_8() {
     assert!(f.library.starts_with("thermo "));
     let c = Catalogue::built_in();
     for fp in &f.plans {
-        let spec: Vec<String> = fp
-            .ids
-            .iter()
-            .zip(&fp.x)
-            .enumerate()
-            .map(|(i, (id, x))| if i == fp.ids.len() - 1 { format!("{id}=balance") } else { format!("{id}={x}") })
-            .collect();
-        let order_text = format!(
-            "Recipe(format: 1, name: \"{}\", components: [{}], cylinder: (water_capacity: \"{}L\", \
-             working_pressure: \"300bar\", test_pressure: \"450bar\"), fill: Pressure(\"{}bar\"), \
-             reference_temperature: \"{}K\", fill_temperature: \"{}K\")",
-            fp.label,
-            spec.iter()
-                .map(|s| {
-                    let (g, a) = s.split_once('=').unwrap();
-                    format!("(gas: \"{g}\", amount: \"{a}\")")
-                })
-                .collect::<Vec<_>>()
-                .join(", "),
+        let order_text = common::recipe_text(
+            &fp.label,
+            &fp.ids,
+            &fp.x,
             fp.volume_l,
             fp.pressure_bar,
             fp.reference_temperature_k,
-            fp.fill_temperature_k
+            fp.fill_temperature_k,
         );
         let order = Recipe::load(&order_text, &fp.label, &c).unwrap();
         for (key, model) in [("vdw", Model::Vdw), ("pr", Model::Pr)] {

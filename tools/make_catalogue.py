@@ -97,6 +97,20 @@ def pick(methods, prefer):
     raise SystemExit(f"no preferred method among {methods}")
 
 
+def kij_matrix(cas):
+    """The ChemSep PR k_ij matrix for a list of CAS numbers, 0 where none is listed."""
+    n = len(cas)
+    k = [[0.0] * n for _ in range(n)]
+    for a in range(n):
+        for b in range(n):
+            if a != b:
+                try:
+                    k[a][b] = float(IPDB.get_ip_specific("ChemSep PR", [cas[a], cas[b]], "kij") or 0.0)
+                except Exception:
+                    pass
+    return k
+
+
 def num(x):
     r = repr(float(x))
     return r

@@ -1,5 +1,6 @@
 //! The library commands: list, history, tidy, import, export, copy, rename, delete.
 
+use crate::ron_format::clip;
 use std::path::PathBuf;
 
 use clap::Args;
@@ -240,12 +241,4 @@ pub fn delete(args: &DeleteArgs) -> Result<(), Failure> {
     let to = args.place.open()?.delete(&args.name, &clock::now_utc())?;
     println!("moved {} to {} (recoverable)", args.name, to.display());
     Ok(())
-}
-
-fn clip(s: &str, width: usize) -> String {
-    if s.chars().count() <= width {
-        s.to_string()
-    } else {
-        s.chars().take(width - 1).chain(std::iter::once('…')).collect()
-    }
 }

@@ -1,5 +1,6 @@
 //! `fillwright plan`: the fill sheet for a recipe or for an order given on the command line.
 
+use crate::ron_format::clip;
 use clap::Args;
 use serde_json::{json, Value};
 
@@ -527,14 +528,4 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
         line(text.into());
     }
     o
-}
-
-fn clip(s: &str, width: usize) -> String {
-    if s.chars().count() <= width {
-        s.to_string()
-    } else {
-        let mut t: String = s.chars().take(width - 1).collect();
-        t.push('…');
-        t
-    }
 }

@@ -214,12 +214,12 @@ impl Catalogue {
         let mut gases = Vec::with_capacity(file.gases.len());
         for record in file.gases {
             let gas = validate(record, text).map_err(|(needle, message)| {
-                let (line, column) = locate(text, &needle);
+                let (line, column) = crate::ron_format::locate(text, &needle);
                 CatalogueError { origin: origin.to_string(), line, column, message }
             })?;
             if gases.iter().any(|g: &Gas| g.id() == gas.id()) {
                 let needle = format!("\"{}\"", gas.id());
-                let (line, column) = locate(text, &needle);
+                let (line, column) = crate::ron_format::locate(text, &needle);
                 return Err(CatalogueError {
                     origin: origin.into(),
                     line,
@@ -332,19 +332,6 @@ fn validate(record: GasRecord, _text: &str) -> Result<Gas, (String, String)> {
         }
     }
     Ok(Gas { record, molar_mass_g_per_mol: molar_mass })
-}
-
-/// Line and column (1-based) of the first occurrence of `needle`, or 1:1.
-fn locate(text: &str, needle: &str) -> (usize, usize) {
-    match text.find(needle) {
-        Some(pos) => {
-            let before = &text[..pos];
-            let line = before.matches('\n').count() + 1;
-            let column = before.rfind('\n').map_or(pos, |nl| pos - nl - 1) + 1;
-            (line, column)
-        }
-        None => (1, 1),
-    }
 }
 
 #[cfg(test)]

@@ -428,15 +428,7 @@ pub fn parse_tolerance(text: &str, fraction: Option<f64>) -> Result<f64, String>
 
 /// A [`RecipeError`] at the first occurrence of `needle` in `text`.
 fn place(origin: &str, text: &str, needle: &str, message: String) -> RecipeError {
-    let (line, column) = match text.find(needle) {
-        Some(pos) => {
-            let before = &text[..pos];
-            let line = before.matches('\n').count() + 1;
-            let column = pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1;
-            (line, column)
-        }
-        None => (1, 1),
-    };
+    let (line, column) = crate::ron_format::locate(text, needle);
     RecipeError { origin: origin.into(), line, column, message }
 }
 

@@ -2,6 +2,7 @@
 //! Meaning is never carried by colour alone: selection has a marker, severities and flags
 //! have words and signs, and with `NO_COLOR` no colour is used at all.
 
+use crate::ron_format::clip;
 use ratatui::layout::{Constraint, Layout, Rect};
 use ratatui::style::{Color, Modifier, Style};
 use ratatui::symbols::Marker;
@@ -129,16 +130,6 @@ fn status_line(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         ])
     };
     frame.render_widget(Paragraph::new(line), area);
-}
-
-fn clip(s: &str, width: usize) -> String {
-    if s.chars().count() <= width {
-        s.to_string()
-    } else if width == 0 {
-        String::new()
-    } else {
-        s.chars().take(width - 1).chain(std::iter::once('…')).collect()
-    }
 }
 
 fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {

@@ -12,6 +12,7 @@ Peng-Robinson dew points and cricondentherms from thermo's flash.
 Run:  cargo build && pip install CoolProp==8.0.0 thermo==0.6.1 && python3 tests/reference/make_phase_fixture.py
 """
 import json
+import sys
 import math
 import os
 import subprocess
@@ -21,10 +22,11 @@ import thermo
 from CoolProp.CoolProp import PropsSI
 from scipy.optimize import minimize_scalar
 from thermo import CEOSGas, CEOSLiquid, ChemicalConstantsPackage, FlashVL, PRMIX
-from thermo.interaction_parameters import IPDB
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(os.path.dirname(HERE))
+sys.path.insert(0, os.path.join(ROOT, "tools"))
+import make_catalogue as mc  # noqa: E402
 
 COOLPROP = {
     "CO2": "CarbonDioxide", "C3H8": "Propane", "n-C4H10": "n-Butane", "i-C4H10": "IsoButane",
@@ -65,15 +67,7 @@ def main():
         pcs = [gases[i]["critical_pressure_bar"] * 1e5 for i in ids]
         oms = [gases[i]["acentric_factor"] for i in ids]
         cas = [gases[i]["cas"] for i in ids]
-        n = len(ids)
-        kij = [[0.0] * n for _ in range(n)]
-        for a in range(n):
-            for b in range(n):
-                if a != b:
-                    try:
-                        kij[a][b] = float(IPDB.get_ip_specific("ChemSep PR", [cas[a], cas[b]], "kij") or 0.0)
-                    except Exception:
-                        pass
+        kij = mc.kij_matrix(cas)
         consts, props = ChemicalConstantsPackage.from_IDs(cas)
         consts = ChemicalConstantsPackage(Tcs=tcs, Pcs=pcs, omegas=oms, MWs=consts.MWs, CASs=cas)
         kw = dict(Tcs=tcs, Pcs=pcs, omegas=oms, kijs=kij)

@@ -11,15 +11,17 @@ constants Tc = 8a/(27Rb), Pc = a/(27b^2); where the table has no entry, Tc and P
 Run:  cargo build && pip install thermo==0.6.1 && python3 tests/reference/make_plan_fixture.py
 """
 import json
+import sys
 import os
 import subprocess
 
 import thermo
 from thermo.eos_mix import PRMIX, VDWMIX
-from thermo.interaction_parameters import IPDB
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(os.path.dirname(HERE))
+sys.path.insert(0, os.path.join(ROOT, "tools"))
+import make_catalogue as mc  # noqa: E402
 R = thermo.eos.R
 
 ORDERS = [
@@ -52,14 +54,7 @@ def main():
         om = [gases[i]["acentric_factor"] for i in ids]
         n = len(ids)
         cas = [gases[i]["cas"] for i in ids]
-        kij = [[0.0] * n for _ in range(n)]
-        for a in range(n):
-            for b in range(n):
-                if a != b:
-                    try:
-                        kij[a][b] = float(IPDB.get_ip_specific("ChemSep PR", [cas[a], cas[b]], "kij") or 0.0)
-                    except Exception:
-                        pass
+        kij = mc.kij_matrix(cas)
         tc_vdw, pc_vdw = [], []
         for i, g in enumerate(ids):
             a = gases[g]["van_der_waals_a_bar_l2_per_mol2"]

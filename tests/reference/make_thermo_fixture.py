@@ -35,19 +35,7 @@ def constants(gid):
 
 
 def kij_matrix(ids):
-    from thermo.interaction_parameters import IPDB
-    cas = [next(r[1] for r in mc.GASES if r[0] == g) for g in ids]
-    n = len(ids)
-    k = [[0.0] * n for _ in range(n)]
-    for i in range(n):
-        for j in range(n):
-            if i != j:
-                try:
-                    v = IPDB.get_ip_specific("ChemSep PR", [cas[i], cas[j]], "kij")
-                except Exception:
-                    v = 0.0
-                k[i][j] = float(v or 0.0)
-    return k
+    return mc.kij_matrix([next(r[1] for r in mc.GASES if r[0] == g) for g in ids])
 
 
 def stable(eos):
