@@ -432,6 +432,37 @@ fn place(origin: &str, text: &str, needle: &str, message: String) -> RecipeError
     RecipeError { origin: origin.into(), line, column, message }
 }
 
+impl Recipe {
+    /// A new recipe to start from: nitrogen in a 10 L, 200 bar cylinder, filled to 150 bar.
+    pub fn blank() -> Recipe {
+        Recipe {
+            format: FORMAT,
+            revision: 0,
+            saved: None,
+            change_note: None,
+            name: String::new(),
+            description: String::new(),
+            order: String::new(),
+            components: vec![ComponentLine { gas: "N2".into(), amount: "balance".into(), tolerance: None }],
+            cylinder: CylinderLine {
+                water_capacity: "10L".into(),
+                working_pressure: "200bar".into(),
+                test_pressure: "300bar".into(),
+                tare: None,
+                serial: None,
+            },
+            fill: FillTarget::Pressure("150bar".into()),
+            reference_temperature: "15C".into(),
+            fill_temperature: None,
+            ambient: "1.01325bar".into(),
+            model: None,
+            sources: Vec::new(),
+            fill_order: Vec::new(),
+            notes: String::new(),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -8,7 +8,7 @@ use tui_input::{Input, InputRequest};
 use super::model::{fields, Bench, Computed, Document, Field, Model, Overlay, PickFor, Prompt, View};
 use crate::gas::Catalogue;
 use crate::library::{Library, LibraryError, OnConflict, Saved};
-use crate::recipe::{canonical, ComponentLine, CylinderLine, FillTarget, Recipe, SourceLine, FORMAT};
+use crate::recipe::{canonical, ComponentLine, FillTarget, Recipe, SourceLine};
 use crate::settings::Resolved;
 use crate::thermo::Model as Eos;
 use crate::units;
@@ -122,6 +122,11 @@ fn input(text: &str) -> Input {
 
 fn recompute(doc: &mut Document, ctx: &Context) {
     doc.computed = Computed::of(&doc.recipe, &ctx.catalogue, &ctx.settings);
+    fit_bench(doc);
+}
+
+/// Size the bench's per-step state to the plan and redo the corrected targets.
+fn fit_bench(doc: &mut Document) {
     let steps = doc.computed.plan.as_ref().map_or(0, |p| p.steps.len());
     doc.bench.done.resize(steps, false);
     doc.bench.actual_pa.resize(steps, None);
@@ -131,6 +136,7 @@ fn recompute(doc: &mut Document, ctx: &Context) {
 
 fn open_document(name: &str, recipe: Recipe, opened: Option<crate::library::Opened>, ctx: &Context) -> Document {
     let saved = opened.as_ref().map_or_else(|| recipe.clone(), |o| o.recipe.clone());
+    let computed = Computed::of(&recipe, &ctx.catalogue, &ctx.settings);
     let mut doc = Document {
         name: name.to_string(),
         opened,
@@ -140,10 +146,10 @@ fn open_document(name: &str, recipe: Recipe, opened: Option<crate::library::Open
         redo: Vec::new(),
         field: 0,
         editing: None,
-        computed: Computed::of(&Recipe::default_for_screen(), &ctx.catalogue, &ctx.settings),
+        computed,
         bench: Bench::default(),
     };
-    recompute(&mut doc, ctx);
+    fit_bench(&mut doc);
     doc
 }
 
@@ -793,7 +799,7 @@ fn recover_draft(model: &mut Model, ctx: &Context, name: &str) {
             let opened = ctx.library.open(name).ok();
             let mut doc = open_document(name, recipe, opened, ctx);
             if doc.opened.is_none() {
-                doc.saved = Recipe::default_for_screen();
+                doc.saved = Recipe::blank();
             }
             model.doc = Some(doc);
             model.view = View::Editor;
@@ -829,10 +835,10 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
                 model.status = e.to_string();
                 return;
             }
-            let mut recipe = Recipe::default_for_screen();
+            let mut recipe = Recipe::blank();
             recipe.name = text.clone();
             let mut doc = open_document(&text, recipe, None, ctx);
-            doc.saved = Recipe::default_for_screen();
+            doc.saved = Recipe::blank();
             model.doc = Some(doc);
             model.view = View::Editor;
             model.status = format!("new recipe {text}: edit it, s saves");
@@ -920,36 +926,5 @@ fn save(model: &mut Model, ctx: &mut Context, note: Option<String>, overwrite: b
             model.overlay = Overlay::Prompt { purpose: Prompt::SaveAs, input: Input::new(String::new()) };
         }
         Err(e) => model.status = format!("not saved: {e}"),
-    }
-}
-
-impl Recipe {
-    /// A new recipe to start from on the screen: nitrogen in a 10 L cylinder.
-    pub fn default_for_screen() -> Recipe {
-        Recipe {
-            format: FORMAT,
-            revision: 0,
-            saved: None,
-            change_note: None,
-            name: String::new(),
-            description: String::new(),
-            order: String::new(),
-            components: vec![ComponentLine { gas: "N2".into(), amount: "balance".into(), tolerance: None }],
-            cylinder: CylinderLine {
-                water_capacity: "10L".into(),
-                working_pressure: "200bar".into(),
-                test_pressure: "300bar".into(),
-                tare: None,
-                serial: None,
-            },
-            fill: FillTarget::Pressure("150bar".into()),
-            reference_temperature: "15C".into(),
-            fill_temperature: None,
-            ambient: "1.01325bar".into(),
-            model: None,
-            sources: Vec::new(),
-            fill_order: Vec::new(),
-            notes: String::new(),
-        }
     }
 }
