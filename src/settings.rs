@@ -11,6 +11,11 @@ use crate::units::{self, STANDARD_AMBIENT_PA};
 #[serde(deny_unknown_fields, default)]
 pub struct Settings {
     pub format: u32,
+    /// Unit of pressures in the text outputs and on the screen: bar, psi, MPa or kPa
+    /// (JSON is always in bar).
+    pub pressure_unit: crate::units::PressureUnit,
+    /// Unit of temperatures in the text outputs and on the screen: C, K or F.
+    pub temperature_unit: crate::units::TemperatureUnit,
     /// Model used when neither the command nor the recipe names one. None: gerg where
     /// GERG-2008 covers every gas, else pr.
     pub default_model: Option<Model>,
@@ -32,6 +37,8 @@ impl Default for Settings {
     fn default() -> Self {
         Settings {
             format: 1,
+            pressure_unit: crate::units::PressureUnit::Bar,
+            temperature_unit: crate::units::TemperatureUnit::C,
             default_model: None,
             ambient: "1.01325bar".into(),
             // Common practice, no source: a digital 0-250 bar transducer and a cylinder balance.
@@ -58,6 +65,7 @@ pub struct SettingsError {
 /// Settings read into numbers.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Resolved {
+    pub shown: crate::units::Shown,
     pub default_model: Option<Model>,
     pub ambient_pa: f64,
     pub gauge_resolution_pa: f64,
@@ -98,6 +106,7 @@ impl Settings {
         let max_service_temperature_k = units::parse_temperature(&self.max_service_temperature)
             .map_err(|e| err("max_service_temperature", e.to_string()))?;
         Ok(Resolved {
+            shown: crate::units::Shown { pressure: self.pressure_unit, temperature: self.temperature_unit },
             default_model: self.default_model,
             ambient_pa,
             gauge_resolution_pa,
@@ -129,6 +138,15 @@ mod tests {
         let r = s.resolve("", "s.ron").unwrap();
         assert_eq!(r.gauge_resolution_pa, 0.5e5);
         assert_eq!(r.scale_resolution_g, 0.1);
+    }
+
+    #[test]
+    fn units_are_read() {
+        let s = Settings::parse("(pressure_unit: psi, temperature_unit: F)", "s.ron").unwrap();
+        let r = s.resolve("", "s.ron").unwrap();
+        assert_eq!(r.shown.pu(), "psi");
+        assert_eq!(r.shown.tu(), "°F");
+        assert!(Settings::parse("(pressure_unit: furlongs)", "s.ron").is_err());
     }
 
     #[test]

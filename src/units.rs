@@ -225,6 +225,100 @@ impl fmt::Display for Sig {
     }
 }
 
+/// The pressure unit of the text outputs and the screen (JSON stays in bar, INTERFACE.md).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum PressureUnit {
+    #[serde(rename = "bar")]
+    Bar,
+    #[serde(rename = "psi")]
+    Psi,
+    #[serde(rename = "MPa")]
+    MPa,
+    #[serde(rename = "kPa")]
+    KPa,
+}
+
+/// The temperature unit of the text outputs and the screen.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum TemperatureUnit {
+    C,
+    K,
+    F,
+}
+
+/// How figures are shown to people: the units of the settings file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Shown {
+    pub pressure: PressureUnit,
+    pub temperature: TemperatureUnit,
+}
+
+impl Default for Shown {
+    fn default() -> Self {
+        Shown { pressure: PressureUnit::Bar, temperature: TemperatureUnit::C }
+    }
+}
+
+impl Shown {
+    /// A pressure in the shown unit, from Pa.
+    pub fn p(&self, pa: f64) -> f64 {
+        match self.pressure {
+            PressureUnit::Bar => pa / PA_PER_BAR,
+            PressureUnit::Psi => pa / PA_PER_PSI,
+            PressureUnit::MPa => pa / 1.0e6,
+            PressureUnit::KPa => pa / 1.0e3,
+        }
+    }
+
+    /// The pressure unit's symbol.
+    pub fn pu(&self) -> &'static str {
+        match self.pressure {
+            PressureUnit::Bar => "bar",
+            PressureUnit::Psi => "psi",
+            PressureUnit::MPa => "MPa",
+            PressureUnit::KPa => "kPa",
+        }
+    }
+
+    /// Decimals that show a pressure to about 1 mbar.
+    pub fn pd(&self) -> usize {
+        match self.pressure {
+            PressureUnit::Bar => 3,
+            PressureUnit::Psi => 2,
+            PressureUnit::MPa => 4,
+            PressureUnit::KPa => 1,
+        }
+    }
+
+    /// A pressure with its decimals, without the unit.
+    pub fn pf(&self, pa: f64) -> String {
+        format!("{:.*}", self.pd(), self.p(pa))
+    }
+
+    /// A temperature in the shown unit, from K.
+    pub fn t(&self, k: f64) -> f64 {
+        match self.temperature {
+            TemperatureUnit::C => k - 273.15,
+            TemperatureUnit::K => k,
+            TemperatureUnit::F => (k - 273.15) * 9.0 / 5.0 + 32.0,
+        }
+    }
+
+    /// The temperature unit's symbol.
+    pub fn tu(&self) -> &'static str {
+        match self.temperature {
+            TemperatureUnit::C => "°C",
+            TemperatureUnit::K => "K",
+            TemperatureUnit::F => "°F",
+        }
+    }
+
+    /// A temperature to 0.1 with its unit, e.g. `22.0 °C`.
+    pub fn tf(&self, k: f64) -> String {
+        format!("{:.1} {}", self.t(k), self.tu())
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -287,6 +381,16 @@ mod tests {
     fn exponent_forms() {
         assert_eq!(parse_pressure("1.5e2bar", STANDARD_AMBIENT_PA).unwrap(), 150.0e5);
         assert_eq!(parse_volume("1e1L").unwrap(), 0.01);
+    }
+
+    #[test]
+    fn shown_units_convert_from_si() {
+        let psi = Shown { pressure: PressureUnit::Psi, temperature: TemperatureUnit::F };
+        // 150 bar = 2175.57 psi; 288.15 K = 59 °F (NIST SP 811 factors).
+        assert!((psi.p(150.0e5) - 2175.566).abs() < 1e-3);
+        assert!((psi.t(288.15) - 59.0).abs() < 1e-12);
+        assert_eq!(Shown::default().pf(150.0e5), "150.000");
+        assert_eq!(Shown::default().tf(295.15), "22.0 °C");
     }
 
     #[test]

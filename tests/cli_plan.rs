@@ -161,3 +161,43 @@ fn gerg_on_uncovered_gases_is_refused_by_name() {
     assert_eq!(o.status.code(), Some(1));
     assert!(stderr(&o).contains("does not cover NO"), "{}", stderr(&o));
 }
+
+#[test]
+fn the_fill_sheet_uses_the_units_of_the_settings() {
+    let config = std::env::temp_dir().join(format!("fillwright-plan-units-{}", std::process::id()));
+    std::fs::create_dir_all(&config).unwrap();
+    std::fs::write(config.join("settings.ron"), "(pressure_unit: MPa, temperature_unit: K)\n").unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(["plan", "flue-gas-span"])
+        .env("FILLWRIGHT_CONFIG", &config)
+        .output()
+        .unwrap();
+    let text = stdout(&o);
+    assert!(text.contains("fill to 15.0000 MPa at 288.1 K"), "{text}");
+    assert!(text.contains("stop MPa"), "{text}");
+    // JSON stays in bar whatever the settings say (INTERFACE.md).
+    let o = Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(["plan", "flue-gas-span", "--format", "json"])
+        .env("FILLWRIGHT_CONFIG", &config)
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["final"]["pressure_bar"], 150.0);
+}
+
+#[test]
+fn a_reader_that_stops_early_is_not_a_crash() {
+    use std::io::{BufRead, BufReader};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(["gases"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut first = String::new();
+    BufReader::new(child.stdout.take().unwrap()).read_line(&mut first).unwrap();
+    assert!(first.starts_with("id"));
+    // The pipe is closed now (the reader was dropped); the program must end without a panic.
+    let out = child.wait_with_output().unwrap();
+    assert!(!String::from_utf8_lossy(&out.stderr).contains("panicked"));
+}

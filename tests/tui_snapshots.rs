@@ -36,3 +36,18 @@ fn no_colour_means_no_colour() {
         }
     }
 }
+
+#[test]
+fn the_screen_shows_the_units_of_the_settings() {
+    use fillwright::units::{PressureUnit, Shown, TemperatureUnit};
+    let dir = std::env::temp_dir().join(format!("fillwright-snap-units-{}", std::process::id()));
+    let scenes = scenes::scenes();
+    let sheet = scenes.iter().find(|s| s.0 == "fill-sheet").unwrap();
+    let shown = Shown { pressure: PressureUnit::Psi, temperature: TemperatureUnit::F };
+    let text = scenes::text(&scenes::render_in(&dir, sheet.1.as_ref(), 80, 24, false, shown));
+    assert!(text.contains("stop psi"), "{text}");
+    // 22 °C planned and 28 °C typed are 71.6 °F and 82.4 °F.
+    assert!(text.contains("71.6 °F") && text.contains("82.4 °F"), "{text}");
+    // The last stop reading of the flue-gas span, 155.562 bar at 22 °C (GERG-2008), is 2256.24 psi.
+    assert!(text.contains("2256.24"), "{text}");
+}

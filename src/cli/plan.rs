@@ -11,7 +11,7 @@ use crate::mixture::{self, Composition};
 use crate::plan::{self, Plan, PlanOptions, Resolutions, StepFlag};
 use crate::recipe::{Fill, Order, Recipe, Source, Target};
 use crate::thermo::MAX_PRESSURE_PA;
-use crate::units::{self, bar, celsius, litres, Sig};
+use crate::units::{self, bar, litres, Shown, Sig};
 
 #[derive(Debug, Args)]
 #[command(after_help = "Give a recipe (a library name, a demo recipe name or a .ron file), or the order with \
@@ -92,7 +92,9 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     match args.common.format {
         Format::Json => print_json(&plan_json(&plan, &order, &catalogue)),
         Format::Csv => print!("{}", steps_csv(&plan)),
-        Format::Text => print!("{}", fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient)),
+        Format::Text => {
+            print!("{}", fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown))
+        }
     }
     Ok(())
 }
@@ -312,7 +314,14 @@ fn share_text(order: &Order, g: usize, x: f64) -> String {
 }
 
 /// The text fill sheet, 80 columns wide.
-pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resolutions, ambient_pa: f64) -> String {
+pub fn fill_sheet(
+    plan: &Plan,
+    order: &Order,
+    catalogue: &Catalogue,
+    res: &Resolutions,
+    ambient_pa: f64,
+    d: &Shown,
+) -> String {
     let mut o = String::new();
     let mut line = |s: String| {
         o.push_str(&s);
@@ -332,18 +341,20 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
     }
     let mut who = vec![format!("{} L water capacity", Sig(litres(order.volume_m3), 4))];
     if order.working_pressure_pa < MAX_PRESSURE_PA {
-        who.push(format!("working {} bar", Sig(bar(order.working_pressure_pa), 4)));
+        who.push(format!("working {} {}", Sig(d.p(order.working_pressure_pa), 4), d.pu()));
     }
     if order.test_pressure_pa < MAX_PRESSURE_PA {
-        who.push(format!("test {} bar", Sig(bar(order.test_pressure_pa), 4)));
+        who.push(format!("test {} {}", Sig(d.p(order.test_pressure_pa), 4), d.pu()));
     }
     line(who.join(" | "));
     line(format!(
-        "fill to {:.3} bar at {:.1} °C | readings for {:.1} °C | ambient {} bar",
-        bar(t.pressure_pa),
-        celsius(t.temperature_k),
-        celsius(plan.fill_temperature_k),
-        Sig(bar(ambient_pa), 6)
+        "fill to {} {} at {} | readings for {} | ambient {} {}",
+        d.pf(t.pressure_pa),
+        d.pu(),
+        d.tf(t.temperature_k),
+        d.tf(plan.fill_temperature_k),
+        Sig(d.p(ambient_pa), 6),
+        d.pu()
     ));
     line(format!("model {} ({})", plan.model.title(), plan.model.key()));
     line(String::new());
@@ -355,7 +366,14 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
     line(format!("STEPS  stop each addition at the pressure reading; {scale_from}"));
     line(format!(
         "{:>2}  {:<14}{:>9}{:>9}{:>11}{:>10}{:>10}{:>8}",
-        "#", "source", "add mol", "add g", "scale g", "stop bar", "gauge", "+bar"
+        "#",
+        "source",
+        "add mol",
+        "add g",
+        "scale g",
+        format!("stop {}", d.pu()),
+        "gauge",
+        format!("+{}", d.pu())
     ));
     for (i, s) in plan.steps.iter().enumerate() {
         let marks: String = s
@@ -367,28 +385,36 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
             })
             .collect();
         line(format!(
-            "{:>2}  {:<14}{:>9}{:>9}{:>11.1}{:>10.3}{:>10.3}{:>8.3} {}",
+            "{:>2}  {:<14}{:>9}{:>9}{:>11.1}{:>10}{:>10}{:>8} {}",
             i + 1,
             clip(&s.source, 14),
             Sig(s.add_amount_mol, 4).to_string(),
             Sig(s.add_mass_g, 4).to_string(),
             s.scale_reading_g,
-            bar(s.pressure_after_pa),
-            bar(s.pressure_after_pa - ambient_pa),
-            bar(s.increment_pa),
+            d.pf(s.pressure_after_pa),
+            d.pf(s.pressure_after_pa - ambient_pa),
+            d.pf(s.increment_pa),
             marks
         ));
     }
     if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::BelowGaugeResolution)) {
-        line(format!("    ! increment below the gauge resolution ({} bar)", Sig(bar(res.gauge_pa), 3)));
+        line(format!("    ! increment below the gauge resolution ({} {})", Sig(d.p(res.gauge_pa), 3), d.pu()));
     }
     if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::BelowScaleResolution)) {
         line(format!("    * mass below the scale resolution ({} g)", Sig(res.scale_g, 3)));
     }
     line(String::new());
 
-    line(format!("COMPONENTS  at {:.1} °C", celsius(t.temperature_k)));
-    line(format!("{:<9}{:>15}{:>11}{:>11}{:>11}{:>12}", "gas", "target", "mol", "g", "x·P bar", "alone bar"));
+    line(format!("COMPONENTS  at {}", d.tf(t.temperature_k)));
+    line(format!(
+        "{:<9}{:>15}{:>11}{:>11}{:>11}{:>12}",
+        "gas",
+        "target",
+        "mol",
+        "g",
+        format!("x·P {}", d.pu()),
+        format!("alone {}", d.pu())
+    ));
     for c in &plan.components {
         line(format!(
             "{:<9}{:>15}{:>11}{:>11}{:>11.4}{:>12}",
@@ -396,25 +422,31 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
             clip(&share_text(order, c.gas, c.mole_fraction), 15),
             Sig(c.amount_mol, 5).to_string(),
             Sig(c.mass_g, 5).to_string(),
-            bar(c.partial_pressure_pa),
-            c.alone_pressure_pa.map_or("–".to_string(), |p| format!("{:.4}", bar(p)))
+            d.p(c.partial_pressure_pa),
+            c.alone_pressure_pa.map_or("–".to_string(), |p| format!("{:.4}", d.p(p)))
         ));
     }
     let sum_alone: Option<f64> = plan.components.iter().map(|c| c.alone_pressure_pa).sum();
     if let Some(sum) = sum_alone {
-        line(format!("  the pressures alone add up to {:.3} bar, not {:.3} bar:", bar(sum), bar(t.pressure_pa)));
+        line(format!(
+            "  the pressures alone add up to {} {u}, not {} {u}:",
+            d.pf(sum),
+            d.pf(t.pressure_pa),
+            u = d.pu()
+        ));
         line("  at cylinder pressures Dalton's rule of additive pressures does not hold".into());
     }
     line(String::new());
 
     line("BLEND".into());
     line(format!(
-        "  {:.3} bar at {:.1} °C ({:.3} bar gauge), {} mol, {} g",
-        bar(t.pressure_pa),
-        celsius(t.temperature_k),
-        bar(t.pressure_pa - ambient_pa),
+        "  {} {u} at {} ({} {u} gauge), {} mol, {} g",
+        d.pf(t.pressure_pa),
+        d.tf(t.temperature_k),
+        d.pf(t.pressure_pa - ambient_pa),
         Sig(t.amount_mol, 6),
-        Sig(t.mass_g, 6)
+        Sig(t.mass_g, 6),
+        u = d.pu()
     ));
     line(format!(
         "  Z {:.5}, density {} g/L, {} m³ of gas at 15 °C and 101.325 kPa",
@@ -426,7 +458,7 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
 
     // Model comparison: rows are steps, columns are models.
     let models: Vec<_> = plan.models.iter().filter(|m| m.result.is_ok()).collect();
-    line(format!("EVERY MODEL  stop readings at {:.1} °C, bar", celsius(plan.fill_temperature_k)));
+    line(format!("EVERY MODEL  stop readings at {}, {}", d.tf(plan.fill_temperature_k), d.pu()));
     let mut head = format!("{:<18}", "step");
     for m in &models {
         head.push_str(&format!("{:>9}", m.model.key()));
@@ -436,7 +468,7 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
         let mut row = format!("{:<18}", clip(&format!("{} {}", i + 1, s.source), 18));
         for m in &models {
             let p = m.result.as_ref().ok().and_then(|f| f.step_pressures_pa.get(i)).copied().unwrap_or(f64::NAN);
-            row.push_str(&format!("{:>9}", Sig(bar(p), 5).to_string()));
+            row.push_str(&format!("{:>9}", Sig(d.p(p), 5).to_string()));
         }
         line(row);
     }
@@ -490,20 +522,22 @@ pub fn fill_sheet(plan: &Plan, order: &Order, catalogue: &Catalogue, res: &Resol
         line(format!("  Dose {} from a premix {} ({}) instead:", id(catalogue, p.gas), p.name, p.spec));
         line(format!("  {} mol ({} g) of premix are needed.", Sig(p.needed_mol, 4), Sig(p.needed_g, 4)));
         line(format!(
-            "  Make it in a {} L cylinder filled to {} bar:",
+            "  Make it in a {} L cylinder filled to {} {}:",
             Sig(litres(order.volume_m3), 4),
-            Sig(bar(p.fill_pressure_pa), 4)
+            Sig(d.p(p.fill_pressure_pa), 4),
+            d.pu()
         ));
         match &p.plan {
             Ok(inner) => {
                 for (i, s) in inner.steps.iter().enumerate() {
                     line(format!(
-                        "    {}  {:<14} add {} mol ({} g), stop at {:.3} bar{}",
+                        "    {}  {:<14} add {} mol ({} g), stop at {} {}{}",
                         i + 1,
                         clip(&s.source, 14),
                         Sig(s.add_amount_mol, 4),
                         Sig(s.add_mass_g, 4),
-                        bar(s.pressure_after_pa),
+                        d.pf(s.pressure_after_pa),
+                        d.pu(),
                         if s.flags.is_empty() { "" } else { "  (needs a premix itself)" }
                     ));
                 }

@@ -7,7 +7,7 @@ use super::{choose_model, print_json, Common, Failure, Format, Refused};
 use crate::config;
 use crate::mixture::Composition;
 use crate::thermo::{Fluid, Model, ThermoError};
-use crate::units::{self, bar, celsius, litres, AmountInput, Sig, R};
+use crate::units::{self, bar, litres, AmountInput, Shown, Sig, R};
 
 #[derive(Debug, Args)]
 #[command(after_help = "Give two of --volume, --pressure and --amount; the third is solved.\n\n\
@@ -205,7 +205,7 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
             }));
         }
         Format::Text | Format::Csv => {
-            print_text(&composition.describe(&catalogue), &given, ambient, unknown, &chosen, &others)
+            print_text(&composition.describe(&catalogue), &given, ambient, unknown, &chosen, &others, &settings.shown)
         }
     }
     Ok(())
@@ -231,17 +231,19 @@ fn print_text(
     unknown: Unknown,
     s: &Solved,
     others: &[(Model, Result<Solved, ThermoError>)],
+    d: &Shown,
 ) {
     let mark = |u: Unknown| if u == unknown { "  <- solved" } else { "" };
     println!("Gas state of {mix}");
     println!("model: {} ({})", s.model.title(), s.model.key());
     println!();
-    println!("  temperature  {:>12} °C   {:>10} K", Sig(celsius(given.t_k), 5), Sig(given.t_k, 6));
+    println!("  temperature  {:>12} {:<4} {:>10} K", Sig(d.t(given.t_k), 5), d.tu(), Sig(given.t_k, 6));
     println!(
-        "  pressure     {:>12} bar  {:>10} bar gauge{}",
-        Sig(bar(s.p_pa), 6),
-        Sig(bar(s.p_pa - ambient_pa), 6),
-        mark(Unknown::Pressure)
+        "  pressure     {:>12} {u:<4} {:>10} {u} gauge{}",
+        Sig(d.p(s.p_pa), 6),
+        Sig(d.p(s.p_pa - ambient_pa), 6),
+        mark(Unknown::Pressure),
+        u = d.pu()
     );
     println!("  volume       {:>12} L{}", Sig(litres(s.volume_m3), 6), mark(Unknown::Volume));
     println!("  amount       {:>12} mol{}", Sig(s.amount_mol, 6), mark(Unknown::Amount));
@@ -257,7 +259,7 @@ fn print_text(
     }
     println!();
     let unit = match unknown {
-        Unknown::Pressure => "bar",
+        Unknown::Pressure => d.pu(),
         Unknown::Volume => "L",
         Unknown::Amount => "mol",
     };
@@ -273,7 +275,11 @@ fn print_text(
             Ok(o) => println!(
                 "  {:<22} {:>12} {:>9} {:>9}%",
                 m.title(),
-                Sig(si_to_output(unknown, o.value(unknown)), 6).to_string(),
+                Sig(
+                    if unknown == Unknown::Pressure { d.p(o.p_pa) } else { si_to_output(unknown, o.value(unknown)) },
+                    6
+                )
+                .to_string(),
                 format!("{:.5}", o.z),
                 format!("{:+.3}", percent(o.value(unknown), s.value(unknown)))
             ),

@@ -102,6 +102,7 @@ pub fn run(dir: &Path, open: Option<&str>) -> Result<(), String> {
     let color = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
     let mut ctx = Context { library, catalogue, settings, drafts, now: clock::now_utc };
     let mut model = Model::new(dir.display().to_string(), color);
+    model.shown = ctx.settings.shown;
     update::start(&mut model, &mut ctx);
     if let Some(name) = open {
         if matches!(model.overlay, model::Overlay::None) {

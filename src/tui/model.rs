@@ -304,6 +304,8 @@ pub struct Model {
     pub height: u16,
     /// Colours on (off for NO_COLOR).
     pub color: bool,
+    /// Units of the figures shown (from the settings).
+    pub shown: crate::units::Shown,
     pub quit: bool,
 }
 
@@ -319,6 +321,7 @@ impl Model {
             width: 80,
             height: 24,
             color,
+            shown: crate::units::Shown::default(),
             quit: false,
         }
     }

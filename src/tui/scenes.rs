@@ -98,8 +98,21 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
 
 /// Render one scene at `width`×`height`, on a demo library in `dir`.
 pub fn render(dir: &Path, scene: &dyn Fn(&mut Model, &mut Context), width: u16, height: u16, color: bool) -> Buffer {
+    render_in(dir, scene, width, height, color, crate::units::Shown::default())
+}
+
+/// As [`render`], with figures shown in other units.
+pub fn render_in(
+    dir: &Path,
+    scene: &dyn Fn(&mut Model, &mut Context),
+    width: u16,
+    height: u16,
+    color: bool,
+    shown: crate::units::Shown,
+) -> Buffer {
     let mut ctx = demo_context(dir);
     let mut model = Model::new("demo library".into(), color);
+    model.shown = shown;
     update::start(&mut model, &mut ctx);
     model.status.clear();
     update::update(&mut model, Msg::Resize(width, height), &mut ctx);

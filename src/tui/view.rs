@@ -15,7 +15,7 @@ use super::update::field_text;
 use crate::checks::{Severity, CAUTIONS};
 use crate::gas::Catalogue;
 use crate::recipe::FillTarget;
-use crate::units::{bar, celsius, Sig};
+use crate::units::{Shown, Sig};
 
 /// Smallest terminal the screen draws in.
 pub const MIN_WIDTH: u16 = 60;
@@ -265,10 +265,10 @@ fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         }
     }
     frame.render_widget(Paragraph::new(lines), inner);
-    result_pane(doc, theme, frame, right);
+    result_pane(doc, &model.shown, theme, frame, right);
 }
 
-fn result_pane(doc: &Document, theme: &Theme, frame: &mut Frame, area: Rect) {
+fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area: Rect) {
     let block = Block::default().borders(Borders::ALL).title(" Result ");
     let inner = block.inner(area);
     frame.render_widget(block, area);
@@ -284,20 +284,23 @@ fn result_pane(doc: &Document, theme: &Theme, frame: &mut Frame, area: Rect) {
         Ok(p) => {
             let t = &p.totals;
             lines.push(Line::styled(format!("{} ({})", p.model.title(), p.model.key()), theme.bold()));
-            lines.push(Line::raw(format!("{:.2} bar at {:.1} °C", bar(t.pressure_pa), celsius(t.temperature_k))));
+            lines.push(Line::raw(format!("{} {} at {}", d.pf(t.pressure_pa), d.pu(), d.tf(t.temperature_k))));
             lines.push(Line::raw(format!("{:.4} mol  {:.1} g  Z {:.4}", t.amount_mol, t.mass_g, t.z)));
             lines.push(Line::raw(String::new()));
-            lines.push(Line::styled(format!("{:<12}{:>10}{:>11}", "add", "stop bar", "scale g"), theme.bold()));
+            lines.push(Line::styled(
+                format!("{:<12}{:>10}{:>11}", "add", format!("stop {}", d.pu()), "scale g"),
+                theme.bold(),
+            ));
             for s in &p.steps {
                 let flag = if s.flags.is_empty() { " " } else { "!" };
                 lines.push(Line::raw(format!(
-                    "{:<12}{:>10.3}{:>11.1}{flag}",
+                    "{:<12}{:>10}{:>11.1}{flag}",
                     clip(&s.source, 11),
-                    bar(s.pressure_after_pa),
+                    d.pf(s.pressure_after_pa),
                     s.scale_reading_g
                 )));
             }
-            lines.push(Line::styled(format!("readings for {:.1} °C", celsius(p.fill_temperature_k)), theme.dim()));
+            lines.push(Line::styled(format!("readings for {}", d.tf(p.fill_temperature_k)), theme.dim()));
             if let Some(checks) = &doc.computed.checks {
                 lines.push(Line::raw(String::new()));
                 for c in checks {
@@ -322,38 +325,43 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         return;
     };
     let b = &doc.bench;
+    let d = &model.shown;
     let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
     let mut lines = vec![Line::raw(match b.measured_k {
-        Some(t) => format!(
-            "planned for {:.1} °C; cylinder now {:.1} °C: stop at 'now bar'",
-            celsius(p.fill_temperature_k),
-            celsius(t)
-        ),
-        None => format!("readings for {:.1} °C; t: type the cylinder temperature now", celsius(p.fill_temperature_k)),
+        Some(t) => format!("planned for {}; cylinder now {}: stop at 'now'", d.tf(p.fill_temperature_k), d.tf(t)),
+        None => format!("readings for {}; t: type the cylinder temperature now", d.tf(p.fill_temperature_k)),
     })];
     lines.push(Line::styled(
         format!(
             " {:<4}{:<3}{:<11}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
-            "", "#", "source", "add g", "scale g", "stop bar", "gauge", "now bar", "reached"
+            "",
+            "#",
+            "source",
+            "add g",
+            "scale g",
+            format!("stop {}", d.pu()),
+            "gauge",
+            "now",
+            "reached"
         ),
         theme.bold(),
     ));
     for (i, s) in p.steps.iter().enumerate() {
         let selected = i == b.selected;
         let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
-        let now = b.corrected_pa.get(i).copied().flatten().map_or("–".to_string(), |v| format!("{:.3}", bar(v)));
-        let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| format!("{:.3}", bar(v)));
+        let now = b.corrected_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
+        let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
         let flag = if s.flags.is_empty() { "" } else { " !" };
         let text = format!(
-            "{}{:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10.3}{:>9.3}{:>9}{:>9}{flag}",
+            "{}{:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}{:>9}{:>9}{flag}",
             if selected { "▶" } else { " " },
             done,
             i + 1,
             clip(&s.source, 10),
             s.add_mass_g,
             s.scale_reading_g,
-            bar(s.pressure_after_pa),
-            bar(s.pressure_after_pa - ambient),
+            d.pf(s.pressure_after_pa),
+            d.pf(s.pressure_after_pa - ambient),
             now,
             reached
         );
@@ -362,11 +370,13 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     if let (Some(Some(actual)), Some(s)) = (b.actual_pa.get(b.selected), p.steps.get(b.selected)) {
         let target = b.corrected_pa.get(b.selected).copied().flatten().unwrap_or(s.pressure_after_pa);
         lines.push(Line::raw(format!(
-            "step {}: reached {:.3} bar, target {:.3} bar, {:+.3} bar off",
+            "step {}: reached {} {u}, target {} {u}, {:+.*} {u} off",
             b.selected + 1,
-            bar(*actual),
-            bar(target),
-            bar(actual - target)
+            d.pf(*actual),
+            d.pf(target),
+            d.pd(),
+            d.p(actual - target),
+            u = d.pu()
         )));
     }
     if p.steps.iter().any(|s| !s.flags.is_empty()) {
@@ -396,8 +406,9 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let table_h = (shown + 6) as u16;
     let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
     let block = Block::default().borders(Borders::ALL).title(format!(
-        " Every model: stop readings at {:.1} °C in bar; reference {} ",
-        celsius(p.fill_temperature_k),
+        " Every model: stop readings at {} in {}; reference {} ",
+        model.shown.tf(p.fill_temperature_k),
+        model.shown.pu(),
         reference.key()
     ));
     let inner = block.inner(top);
@@ -413,7 +424,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         for (_, f) in &ok {
             row.push_str(&format!(
                 "{:>9}",
-                Sig(f.step_pressures_pa.get(i).map_or(f64::NAN, |v| bar(*v)), 5).to_string()
+                Sig(f.step_pressures_pa.get(i).map_or(f64::NAN, |v| model.shown.p(*v)), 5).to_string()
             ));
         }
         lines.push(Line::raw(row));
@@ -445,7 +456,14 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let marks = ["•", "⣿", "█", "▄", "▀", "▖"];
     let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red];
     let (mut zmin, mut zmax, mut pmax) = (f64::INFINITY, f64::NEG_INFINITY, 1.0f64);
-    for (_, pts) in &doc.computed.z_curves {
+    // The curves are computed in bar; shown in the settings' unit.
+    let curves: Vec<Vec<(f64, f64)>> = doc
+        .computed
+        .z_curves
+        .iter()
+        .map(|(_, pts)| pts.iter().map(|(p_bar, z)| (model.shown.p(p_bar * 1e5), *z)).collect())
+        .collect();
+    for pts in &curves {
         for (pp, z) in pts {
             zmin = zmin.min(*z);
             zmax = zmax.max(*z);
@@ -456,8 +474,9 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         .computed
         .z_curves
         .iter()
+        .zip(&curves)
         .enumerate()
-        .map(|(i, (m, pts))| {
+        .map(|(i, ((m, _), pts))| {
             Dataset::default()
                 .name(m.key())
                 .marker(markers[i % markers.len()])
@@ -478,7 +497,9 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let chart = Chart::new(datasets)
         .legend_position(None)
         .block(Block::default().borders(Borders::ALL).title(" Z against pressure ").title_bottom(format!(" {legend} ")))
-        .x_axis(Axis::default().title("bar").bounds([0.0, pmax]).labels(["0".to_string(), format!("{pmax:.0}")]))
+        .x_axis(
+            Axis::default().title(model.shown.pu()).bounds([0.0, pmax]).labels(["0".to_string(), format!("{pmax:.0}")]),
+        )
         .y_axis(
             Axis::default()
                 .title("Z")
@@ -491,7 +512,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let mut n = 0.0;
     for s in &p.steps {
         n += s.add_amount_mol;
-        pts.push((n, bar(s.pressure_after_pa)));
+        pts.push((n, model.shown.p(s.pressure_after_pa)));
     }
     let (nmax, ptop) = pts.iter().fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
     let chart = Chart::new(vec![Dataset::default()
@@ -502,7 +523,12 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         .data(&pts)])
     .block(Block::default().borders(Borders::ALL).title(" The fill: reading against amount "))
     .x_axis(Axis::default().title("mol").bounds([0.0, nmax.max(1e-9)]).labels(["0".to_string(), format!("{nmax:.1}")]))
-    .y_axis(Axis::default().title("bar").bounds([0.0, ptop.max(1e-9)]).labels(["0".to_string(), format!("{ptop:.0}")]));
+    .y_axis(
+        Axis::default()
+            .title(model.shown.pu())
+            .bounds([0.0, ptop.max(1e-9)])
+            .labels(["0".to_string(), format!("{ptop:.0}")]),
+    );
     frame.render_widget(chart, fc);
 }
 
