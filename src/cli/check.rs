@@ -9,10 +9,10 @@ use super::plan::OrderArgs;
 use super::{print_json, Common, Failure, Format, Refused};
 use crate::checks::{self, Check, Conditions, Severity, CAUTIONS};
 use crate::config;
-use crate::gas::Catalogue;
 use crate::plan::{self, PlanOptions};
 use crate::recipe::{Order, Recipe};
-use crate::units;
+use crate::thermo::Model;
+use crate::units::{self, Shown};
 
 #[derive(Debug, Args)]
 #[command(after_help = "Give recipes (library names, demo names, .ron files or folders of them), or the order \
@@ -80,28 +80,37 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         resolutions: plan::Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
         ..PlanOptions::default()
     };
-    let mut results: Vec<(String, Vec<Check>)> = Vec::new();
+    let mut results: Vec<(String, Model, Vec<Check>)> = Vec::new();
     for (origin, order) in &orders {
         let p = plan::plan(order, &catalogue, &options).map_err(|e| Refused(format!("{origin}: {e}")))?;
-        results.push((origin.clone(), checks::screen(&p, order, &catalogue, &conditions)));
+        results.push((origin.clone(), p.model, checks::screen(&p, order, &catalogue, &conditions)));
     }
     match args.common.format {
         Format::Json => print_json(&json!({
-            "checks": results.iter().flat_map(|(origin, checks)| checks.iter().map(move |c| check_json(origin, c))).collect::<Vec<_>>(),
+            "checks": results
+                .iter()
+                .flat_map(|(origin, model, checks)| checks.iter().map(move |c| check_json(origin, *model, c)))
+                .collect::<Vec<_>>(),
             "cautions": CAUTIONS,
         })),
-        Format::Text | Format::Csv => print_text(&results, &catalogue, &conditions),
+        Format::Text | Format::Csv => print_text(&results, &conditions, &settings.shown),
     }
-    let worst = results.iter().map(|(_, c)| checks::worst(c)).max().unwrap_or(Severity::Ok);
+    let worst = results.iter().map(|(_, _, c)| checks::worst(c)).max().unwrap_or(Severity::Ok);
     if worst == Severity::Stop {
         return Err(Failure::Findings);
     }
     Ok(())
 }
 
-fn check_json(origin: &str, c: &Check) -> Value {
-    let mut v =
-        json!({"recipe": origin, "id": c.id, "severity": c.severity.key(), "message": c.message, "details": c.details});
+fn check_json(origin: &str, model: Model, c: &Check) -> Value {
+    let mut v = json!({
+        "recipe": origin,
+        "model": model.key(),
+        "id": c.id,
+        "severity": c.severity.key(),
+        "message": c.message,
+        "details": c.details,
+    });
     if let Value::Object(map) = &mut v {
         for (k, val) in &c.data {
             map.insert(k.clone(), val.clone());
@@ -110,19 +119,20 @@ fn check_json(origin: &str, c: &Check) -> Value {
     v
 }
 
-fn print_text(results: &[(String, Vec<Check>)], _catalogue: &Catalogue, conditions: &Conditions) {
-    for (origin, list) in results {
+fn print_text(results: &[(String, Model, Vec<Check>)], conditions: &Conditions, d: &Shown) {
+    for (origin, model, list) in results {
         let worst = checks::worst(list);
         println!(
-            "{}: {}  (storage down to {:.1} °C, service up to {:.1} °C)",
+            "{}: {}  (plan {}; storage down to {}, service up to {})",
             origin,
             match worst {
                 Severity::Stop => "STOP - do not fill as planned",
                 Severity::Caution => "CAUTION",
                 Severity::Ok => "OK",
             },
-            units::celsius(conditions.min_temperature_k),
-            units::celsius(conditions.max_temperature_k)
+            model.key(),
+            d.tf(conditions.min_temperature_k),
+            d.tf(conditions.max_temperature_k)
         );
         // What matters first: stop, then caution, then ok.
         let mut sorted: Vec<&Check> = list.iter().collect();
