@@ -41,3 +41,21 @@ fn accuracy_rows_judge_by_gerg_where_it_covers() {
     let vdw = flue.worst.iter().find(|w| w.0 == fillwright::thermo::Model::Vdw).unwrap();
     assert!((vdw.2 - 7.0).abs() < 1.0, "{}", vdw.2);
 }
+
+#[test]
+fn fill_sheet_and_screening_examples_are_current() {
+    let config = std::env::temp_dir().join(format!("fillwright-readme-{}", std::process::id()));
+    for args in [["plan", "flue-gas-span"], ["check", "lpg-in-methane"]] {
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))
+            .args(args)
+            .env("FILLWRIGHT_CONFIG", &config)
+            .output()
+            .unwrap();
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(
+            readme().contains(text.as_ref()),
+            "`fillwright {}` changed: run `python3 tools/update_readme.py`",
+            args.join(" ")
+        );
+    }
+}

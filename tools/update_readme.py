@@ -4,6 +4,7 @@
   <!-- generated: density-table -->   cargo run --example density_table
   <!-- generated: accuracy-table -->  cargo run --example accuracy_table
   <!-- generated: fill-sheet -->      cargo run -- plan flue-gas-span
+  <!-- generated: check-lpg -->       cargo run -- check lpg-in-methane
 
 Run from anywhere: python3 tools/update_readme.py
 """
@@ -14,9 +15,10 @@ import subprocess
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 PARTS = {
-    "density-table": (["cargo", "run", "-q", "--example", "density_table"], False),
-    "accuracy-table": (["cargo", "run", "-q", "--example", "accuracy_table"], False),
-    "fill-sheet": (["cargo", "run", "-q", "--", "plan", "flue-gas-span"], True),
+    "density-table": (["cargo", "run", "-q", "--example", "density_table"], None),
+    "accuracy-table": (["cargo", "run", "-q", "--example", "accuracy_table"], None),
+    "fill-sheet": (["cargo", "run", "-q", "--", "plan", "flue-gas-span"], "plan flue-gas-span"),
+    "check-lpg": (["cargo", "run", "-q", "--", "check", "lpg-in-methane"], "check lpg-in-methane"),
 }
 
 
@@ -26,7 +28,7 @@ def main():
     env = dict(os.environ, FILLWRIGHT_CONFIG=os.path.join(ROOT, "target", "readme-config"))
     for name, (cmd, fenced) in PARTS.items():
         out = subprocess.run(cmd, cwd=ROOT, check=True, capture_output=True, text=True, env=env).stdout
-        body = f"```\n$ fillwright plan flue-gas-span\n{out}```\n" if fenced else out
+        body = f"```\n$ fillwright {fenced}\n{out}```\n" if fenced else out
         pattern = re.compile(rf"(<!-- generated: {name} -->\n).*?(<!-- /generated -->)", re.S)
         text, n = pattern.subn(lambda m: m.group(1) + body + m.group(2), text)
         if n != 1:
