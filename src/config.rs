@@ -77,16 +77,7 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
 }
 
 fn read_limited(path: &Path) -> Result<String, String> {
-    let meta = std::fs::metadata(path).map_err(|e| format!("{}: {e}", path.display()))?;
-    if meta.len() > crate::recipe::MAX_RECIPE_BYTES as u64 {
-        return Err(format!(
-            "{}: {} bytes is larger than a recipe can be ({} bytes); not read",
-            path.display(),
-            meta.len(),
-            crate::recipe::MAX_RECIPE_BYTES
-        ));
-    }
-    std::fs::read_to_string(path).map_err(|e| format!("{}: {e}", path.display()))
+    crate::library::read_limited(path).map_err(|e| e.to_string())
 }
 
 /// Largest settings file read, bytes.
