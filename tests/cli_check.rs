@@ -76,3 +76,23 @@ fn folders_of_recipes_and_refused_input() {
     let o = run(&["check"]);
     assert_eq!(o.status.code(), Some(2));
 }
+
+#[test]
+fn a_recipe_can_be_checked_against_another_cylinder_rating() {
+    // The flue-gas span is 150 bar settled; in a cylinder rated 140 bar it must stop.
+    let o = run(&[
+        "check",
+        "flue-gas-span",
+        "--working-pressure",
+        "140bar",
+        "--test-pressure",
+        "210bar",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(o.status.code(), Some(3));
+    let v = json(&o);
+    let rating = v["checks"].as_array().unwrap().iter().find(|c| c["id"] == "pressure-rating").unwrap();
+    assert_eq!(rating["severity"], "stop");
+    assert_eq!(rating["working_pressure_bar"], 140.0);
+}
