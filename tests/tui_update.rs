@@ -294,3 +294,22 @@ fn history_shows_what_changed_between_two_revisions() {
     keys(&mut model, &mut ctx, &[Key::Char('r')]);
     assert!(model.status.contains("as revision 4"), "{}", model.status);
 }
+
+#[test]
+fn a_new_recipe_is_saved_as_revision_1_and_bad_names_are_refused() {
+    let (mut model, mut ctx, dir) = setup("new");
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    text(&mut model, &mut ctx, "../escape");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("path separator"), "{}", model.status);
+    assert!(model.doc.is_none());
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    text(&mut model, &mut ctx, "zero-gas");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(model.view, View::Editor);
+    assert!(model.doc.as_ref().unwrap().computed.plan.is_ok(), "a new recipe plans at once");
+    keys(&mut model, &mut ctx, &[Key::Char('s')]);
+    assert_eq!(model.status, "saved rev 1");
+    let text = std::fs::read_to_string(dir.join("library/zero-gas.ron")).unwrap();
+    assert!(text.contains("revision: 1,") && text.contains("name: \"zero-gas\""), "{text}");
+}

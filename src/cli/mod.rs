@@ -164,10 +164,10 @@ pub fn main() -> ExitCode {
     let result = match cli.command {
         None => config::library_dir(cli.library.as_deref())
             .ok_or_else(|| Refused("no config folder could be found; give --library DIR".into()).into())
-            .and_then(|dir| crate::tui::run(&dir, None).map_err(|e| Refused(e).into())),
+            .and_then(|dir| crate::tui::run(&dir, None, true).map_err(|e| Refused(e).into())),
         Some(Command::Edit(args)) => crate::tui::place_of(&args.recipe, args.library.as_deref())
             .map_err(|e| Refused(e).into())
-            .and_then(|(dir, name)| crate::tui::run(&dir, Some(&name)).map_err(|e| Refused(e).into())),
+            .and_then(|(dir, name, seed)| crate::tui::run(&dir, Some(&name), seed).map_err(|e| Refused(e).into())),
         Some(Command::State(args)) => state::run(&args),
         Some(Command::Plan(args)) => plan::run(&args),
         Some(Command::Gases(args)) => gases::run(&args),

@@ -79,21 +79,23 @@ fn key_of(ev: &event::KeyEvent) -> Option<Key> {
     })
 }
 
-/// Where to find the recipe `edit` names: a file path is a one-recipe library in its folder.
-pub fn place_of(target: &str, library: Option<&Path>) -> Result<(PathBuf, String), String> {
+/// Where to find the recipe `edit` names: a file path is a one-recipe library in its folder
+/// (returned with `false`: not the library, so no demo recipes are copied there).
+pub fn place_of(target: &str, library: Option<&Path>) -> Result<(PathBuf, String, bool), String> {
     let path = Path::new(target);
     if target.ends_with(".ron") || path.is_file() {
         let dir = path.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new(".")).to_path_buf();
         let name =
             path.file_stem().and_then(|s| s.to_str()).ok_or_else(|| format!("{target}: not a recipe file name"))?;
-        return Ok((dir, name.to_string()));
+        return Ok((dir, name.to_string(), false));
     }
     let dir = config::library_dir(library).ok_or("no config folder could be found; give --library DIR")?;
-    Ok((dir, target.to_string()))
+    Ok((dir, target.to_string(), true))
 }
 
-/// Run the screen on the library at `dir`, opening `open` when given.
-pub fn run(dir: &Path, open: Option<&str>) -> Result<(), String> {
+/// Run the screen on the library at `dir`, opening `open` when given. `seed` copies the
+/// demo recipes into an empty library (not into the folder of a recipe file).
+pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let catalogue = config::load_catalogue()?;
     let settings = config::load_settings()?;
     let mut library = Library::at(dir).map_err(|e| e.to_string())?;
@@ -103,10 +105,14 @@ pub fn run(dir: &Path, open: Option<&str>) -> Result<(), String> {
     let mut ctx = Context { library, catalogue, settings, drafts, now: clock::now_utc };
     let mut model = Model::new(dir.display().to_string(), color);
     model.shown = ctx.settings.shown;
-    update::start(&mut model, &mut ctx);
+    update::start_with(&mut model, &mut ctx, seed);
     if let Some(name) = open {
         if matches!(model.overlay, model::Overlay::None) {
-            update::open(&mut model, &ctx, name);
+            // `edit NAME` of a recipe that does not exist yet starts it.
+            match ctx.library.open(name) {
+                Err(crate::library::LibraryError::NotFound(_)) => update::new_recipe(&mut model, &ctx, name),
+                _ => update::open(&mut model, &ctx, name),
+            }
         }
     }
 

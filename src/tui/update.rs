@@ -93,12 +93,21 @@ impl Context {
     }
 }
 
-/// Read the library into the model and offer any drafts.
+/// Read the library into the model and offer any drafts. An empty library gets the demo
+/// recipes first.
 pub fn start(model: &mut Model, ctx: &mut Context) {
-    match ctx.library.seed_demos_if_empty() {
-        Ok(n) if n > 0 => model.status = format!("new library: copied {n} demo recipes in"),
-        Ok(_) => {}
-        Err(e) => model.status = format!("library: {e}"),
+    start_with(model, ctx, true);
+}
+
+/// As [`start`]; `seed` false leaves an empty folder empty (a recipe file opened in a folder
+/// that is not the library).
+pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
+    if seed {
+        match ctx.library.seed_demos_if_empty() {
+            Ok(n) if n > 0 => model.status = format!("new library: copied {n} demo recipes in"),
+            Ok(_) => {}
+            Err(e) => model.status = format!("library: {e}"),
+        }
     }
     refresh(model, ctx);
     let names = ctx.draft_names();
@@ -151,6 +160,21 @@ fn open_document(name: &str, recipe: Recipe, opened: Option<crate::library::Open
     };
     fit_bench(&mut doc);
     doc
+}
+
+/// Start a new recipe called `name` in the editor (saved on the first `s`).
+pub fn new_recipe(model: &mut Model, ctx: &Context, name: &str) {
+    if let Err(e) = crate::library::check_name(name) {
+        model.status = e.to_string();
+        return;
+    }
+    let mut recipe = Recipe::blank();
+    recipe.name = name.to_string();
+    let mut doc = open_document(name, recipe, None, ctx);
+    doc.saved = Recipe::blank();
+    model.doc = Some(doc);
+    model.view = View::Editor;
+    model.status = format!("new recipe {name}: edit it, s saves");
 }
 
 /// Open a library recipe in the editor.
@@ -830,19 +854,7 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
             }
             Err(e) => model.status = e.to_string(),
         },
-        Prompt::NewRecipe => {
-            if let Err(e) = crate::library::check_name(&text) {
-                model.status = e.to_string();
-                return;
-            }
-            let mut recipe = Recipe::blank();
-            recipe.name = text.clone();
-            let mut doc = open_document(&text, recipe, None, ctx);
-            doc.saved = Recipe::blank();
-            model.doc = Some(doc);
-            model.view = View::Editor;
-            model.status = format!("new recipe {text}: edit it, s saves");
-        }
+        Prompt::NewRecipe => new_recipe(model, ctx, &text),
         Prompt::SaveAs => {
             if let Some(doc) = model.doc.as_mut() {
                 match ctx.library.save_as(&text, &doc.recipe, &now) {
