@@ -1,15 +1,11 @@
 //! `fillwright check` as a user runs it.
 
-use std::process::{Command, Output};
+mod common;
+
+use std::process::Output;
 
 fn run(args: &[&str]) -> Output {
-    let config = std::env::temp_dir().join(format!("fillwright-check-test-empty-{}", std::process::id()));
-    Command::new(env!("CARGO_BIN_EXE_fillwright"))
-        .args(args)
-        .env("FILLWRIGHT_CONFIG", &config)
-        .env_remove("FILLWRIGHT_LIBRARY")
-        .output()
-        .unwrap()
+    common::run_fillwright("check", args)
 }
 
 fn json(o: &Output) -> serde_json::Value {

@@ -1,15 +1,11 @@
 //! `fillwright plan` as a user runs it.
 
+mod common;
+
 use std::process::{Command, Output};
 
 fn run(args: &[&str]) -> Output {
-    let config = std::env::temp_dir().join(format!("fillwright-plan-test-empty-{}", std::process::id()));
-    Command::new(env!("CARGO_BIN_EXE_fillwright"))
-        .args(args)
-        .env("FILLWRIGHT_CONFIG", &config)
-        .env_remove("FILLWRIGHT_LIBRARY")
-        .output()
-        .unwrap()
+    common::run_fillwright("plan", args)
 }
 
 fn stdout(o: &Output) -> String {

@@ -1,15 +1,11 @@
 //! `fillwright state` as a user runs it: output, JSON keys, exit statuses and messages.
 
+mod common;
+
 use std::process::{Command, Output};
 
 fn run(args: &[&str]) -> Output {
-    let config = std::env::temp_dir().join(format!("fillwright-test-empty-{}", std::process::id()));
-    Command::new(env!("CARGO_BIN_EXE_fillwright"))
-        .args(args)
-        .env("FILLWRIGHT_CONFIG", &config)
-        .env_remove("RUST_BACKTRACE")
-        .output()
-        .unwrap()
+    common::run_fillwright("state", args)
 }
 
 fn stderr(o: &Output) -> String {

@@ -144,6 +144,10 @@ fn the_near_condensation_demo_shows_its_cricondentherm_and_safe_fill() {
     // Same mixture in the thermo fixture: 276.38 K.
     assert!((ct - 276.38).abs() < 0.5, "{ct}");
     let max_fill = cond.data["max_single_phase_fill_bar"].as_f64().unwrap();
+    // The demo's 40 bar fill was chosen just below this limit (measured here: 42.3 bar); the
+    // thermo flash (fixture above) puts the dew point at 40 bar at 273.40 K, so at 0 °C the
+    // lower dew pressure lies just below 40 bar, and its isochore reaches a little over 40 bar
+    // at 15 °C.
     assert!(max_fill > 40.0 && max_fill < 45.0, "{max_fill}");
     // Filled above that, liquid forms at 0 °C: stop.
     let c = Catalogue::built_in();
@@ -246,6 +250,8 @@ fn pressure_rating_limits() {
     assert_eq!(find(&screen_mix("N2", 200.0), "pressure-rating").severity, Severity::Ok);
     assert_eq!(find(&screen_mix("N2", 210.0), "pressure-rating").severity, Severity::Stop);
     // He: 200 bar at 15 °C rises to about 230 bar at 65 °C, within the 300 bar test pressure.
+    // Helium is nearly ideal: the ideal isochore gives 200 × 338.15/288.15 = 234.7 bar, and
+    // its Z rises with T and P only by a few per cent (GERG-2008 table above).
     let he_checks = screen_mix("He", 200.0);
     let he = find(&he_checks, "pressure-rating");
     let hot = he.data["hot_pressure_bar"].as_f64().unwrap();

@@ -76,16 +76,11 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
     }
     // --working-pressure and --test-pressure check a recipe against another cylinder rating.
     for (origin, order) in orders.iter_mut().filter(|_| args.given.mix.is_none()) {
-        let rating = |text: &Option<String>, what: &str| -> Result<Option<f64>, Refused> {
-            text.as_deref()
-                .map(|t| units::parse_pressure(t, order.ambient_pa))
-                .transpose()
-                .map_err(|e| Refused(format!("--{what}: {e}")))
-        };
-        if let Some(p) = rating(&args.given.working_pressure, "working-pressure")? {
+        let (working, test) = args.given.ratings(order.ambient_pa)?;
+        if let Some(p) = working {
             order.working_pressure_pa = p;
         }
-        if let Some(p) = rating(&args.given.test_pressure, "test-pressure")? {
+        if let Some(p) = test {
             order.test_pressure_pa = p;
         }
         if order.test_pressure_pa < order.working_pressure_pa {

@@ -123,6 +123,17 @@ pub struct OrderArgs {
 }
 
 impl OrderArgs {
+    /// `--working-pressure` and `--test-pressure`, Pa, where given.
+    pub fn ratings(&self, ambient: f64) -> Result<(Option<f64>, Option<f64>), Refused> {
+        let rating = |text: &Option<String>, what: &str| -> Result<Option<f64>, Refused> {
+            text.as_deref()
+                .map(|t| units::parse_pressure(t, ambient))
+                .transpose()
+                .map_err(|e| Refused(format!("--{what}: {e}")))
+        };
+        Ok((rating(&self.working_pressure, "working-pressure")?, rating(&self.test_pressure, "test-pressure")?))
+    }
+
     /// The order, with pure sources for every component.
     pub fn order(&self, ambient: f64, catalogue: &Catalogue) -> Result<Order, Refused> {
         let spec = self.mix.as_deref().unwrap_or_default();
@@ -133,14 +144,8 @@ impl OrderArgs {
             .map_err(|e| Refused(format!("--pressure: {e}")))?;
         let t_ref = units::parse_temperature(self.temp.as_deref().unwrap_or("15C"))
             .map_err(|e| Refused(format!("--temp: {e}")))?;
-        let rating = |text: &Option<String>, what: &str| -> Result<Option<f64>, Refused> {
-            text.as_deref()
-                .map(|t| units::parse_pressure(t, ambient))
-                .transpose()
-                .map_err(|e| Refused(format!("--{what}: {e}")))
-        };
-        let working = rating(&self.working_pressure, "working-pressure")?.unwrap_or(MAX_PRESSURE_PA);
-        let test = rating(&self.test_pressure, "test-pressure")?.unwrap_or(MAX_PRESSURE_PA);
+        let (working, test) = self.ratings(ambient)?;
+        let (working, test) = (working.unwrap_or(MAX_PRESSURE_PA), test.unwrap_or(MAX_PRESSURE_PA));
         if pressure > test {
             return Err(Refused(format!(
                 "--pressure {:.2} bar is above --test-pressure {:.2} bar; this fill must not be made",

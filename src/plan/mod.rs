@@ -473,10 +473,18 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         })
         .collect::<Vec<_>>();
 
-    // Every model's own plan.
+    // Every model's own plan; the selected model's is the one just made.
+    let own = ModelFigures {
+        amount_mol: totals.amount_mol,
+        z: totals.z,
+        step_pressures_pa: steps.iter().map(|s| s.pressure_after_pa).collect(),
+    };
     let models: Vec<ModelPlan> = Model::ALL
         .iter()
         .map(|&m| {
+            if m == model {
+                return ModelPlan { model: m, result: Ok(own.clone()) };
+            }
             let result = Fluid::new(catalogue, &setup.gases, m)
                 .map_err(PlanError::from)
                 .and_then(|f| {

@@ -175,24 +175,8 @@ impl Fluid {
         })
     }
 
-    /// Replace the k_ij matrix (symmetric, zero diagonal), e.g. for comparisons with a
-    /// reference that uses other values.
-    pub fn with_kij(mut self, kij: Vec<Vec<f64>>) -> Fluid {
-        self.kij = kij;
-        self
-    }
-
     pub fn model(&self) -> Model {
         self.model
-    }
-
-    pub fn ids(&self) -> &[String] {
-        &self.ids
-    }
-
-    /// The k_ij in use.
-    pub fn kij(&self) -> &[Vec<f64>] {
-        &self.kij
     }
 
     /// Mean molar mass, g/mol.

@@ -40,12 +40,11 @@ fn write_pending_draft() {
 
 /// Keep the pending draft in step with the model after every update.
 fn remember_draft(model: &Model, ctx: &Context) {
-    let pending = match (&model.doc, &ctx.drafts) {
-        (Some(doc), Some(dir)) if doc.dirty() => {
-            Some((dir.join(format!("{}.ron", doc.name)), canonical::to_text(&doc.recipe)))
-        }
-        _ => None,
-    };
+    let pending = model
+        .doc
+        .as_ref()
+        .filter(|doc| doc.dirty())
+        .and_then(|doc| Some((ctx.draft_path(&doc.name)?, canonical::to_text(&doc.recipe))));
     if let Ok(mut guard) = PENDING_DRAFT.lock() {
         *guard = pending;
     }
@@ -138,16 +137,13 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
         write_pending_draft();
         restore_hook(info);
     }));
-    if let Ok(size) = terminal.size() {
-        update::update(&mut model, Msg::Resize(size.width, size.height), &mut ctx);
-    }
     let result = (|| -> Result<(), String> {
         loop {
             terminal.draw(|f| view::view(&model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
             if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
                 let msg = match event::read().map_err(|e| e.to_string())? {
                     Event::Key(k) => key_of(&k).map(Msg::Key),
-                    Event::Resize(w, h) => Some(Msg::Resize(w, h)),
+                    // A resize needs no message: the next draw uses the new size.
                     _ => None,
                 };
                 if let Some(msg) = msg {

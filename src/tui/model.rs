@@ -300,8 +300,6 @@ pub struct Model {
     pub check_selected: usize,
     /// What just happened, for the status line.
     pub status: String,
-    pub width: u16,
-    pub height: u16,
     /// Colours on (off for NO_COLOR).
     pub color: bool,
     /// Units of the figures shown (from the settings).
@@ -318,8 +316,6 @@ impl Model {
             doc: None,
             check_selected: 0,
             status: String::new(),
-            width: 80,
-            height: 24,
             color,
             shown: crate::units::Shown::default(),
             quit: false,

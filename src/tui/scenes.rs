@@ -115,7 +115,6 @@ pub fn render_in(
     model.shown = shown;
     update::start(&mut model, &mut ctx);
     model.status.clear();
-    update::update(&mut model, Msg::Resize(width, height), &mut ctx);
     scene(&mut model, &mut ctx);
     let mut terminal = Terminal::new(TestBackend::new(width, height)).expect("a test terminal");
     terminal.draw(|f| super::view::view(&model, &ctx.catalogue, f)).expect("drawing on a test terminal");

@@ -39,7 +39,6 @@ pub enum Key {
 #[derive(Debug, Clone, PartialEq)]
 pub enum Msg {
     Key(Key),
-    Resize(u16, u16),
 }
 
 /// What `update` may use besides the model.
@@ -54,7 +53,8 @@ pub struct Context {
 }
 
 impl Context {
-    fn draft_path(&self, name: &str) -> Option<PathBuf> {
+    /// Where the draft of recipe `name` is kept.
+    pub(crate) fn draft_path(&self, name: &str) -> Option<PathBuf> {
         self.drafts.as_ref().map(|d| d.join(format!("{name}.ron")))
     }
 
@@ -219,10 +219,6 @@ fn input_request(key: Key) -> Option<InputRequest> {
 /// The top-level update.
 pub fn update(model: &mut Model, msg: Msg, ctx: &mut Context) {
     match msg {
-        Msg::Resize(w, h) => {
-            model.width = w;
-            model.height = h;
-        }
         Msg::Key(key) => on_key(model, key, ctx),
     }
 }

@@ -1,5 +1,23 @@
 //! Helpers shared by the integration tests.
 
+// Each test crate uses a part of these.
+#![allow(dead_code)]
+
+use std::process::{Command, Output};
+
+/// Run the program with `args` and an empty config folder of its own (named by `tag`), so
+/// that no user library, settings or catalogue of the machine takes part.
+pub fn run_fillwright(tag: &str, args: &[&str]) -> Output {
+    let config = std::env::temp_dir().join(format!("fillwright-{tag}-empty-{}", std::process::id()));
+    Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(args)
+        .env("FILLWRIGHT_CONFIG", &config)
+        .env_remove("FILLWRIGHT_LIBRARY")
+        .env_remove("RUST_BACKTRACE")
+        .output()
+        .unwrap()
+}
+
 /// Recipe text for an order given as gases and mole fractions (the last gas is the
 /// balance), in a cylinder rated well above the fill.
 pub fn recipe_text(
