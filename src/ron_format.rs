@@ -7,6 +7,15 @@ pub fn options() -> ron::Options {
     ron::Options::default().with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
 }
 
+/// A RON error message in the words of the file, without the program's type names:
+/// "missing field `test_pressure` in `CylinderLine`" becomes "missing field `test_pressure`".
+pub fn plain_ron_message(message: &str) -> String {
+    match message.find(" in `") {
+        Some(i) if message[i + 5..].ends_with('`') => message[..i].to_string(),
+        _ => message.to_string(),
+    }
+}
+
 /// Line and column (1-based) of the first occurrence of `needle` in `text`, or 1:1, to place
 /// a problem found after parsing (a value that parsed but is not acceptable).
 pub fn locate(text: &str, needle: &str) -> (usize, usize) {

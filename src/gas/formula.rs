@@ -19,6 +19,48 @@ const ATOMIC_WEIGHTS: &[(&str, f64)] = &[
     ("Xe", 131.293),
 ];
 
+/// The uncertainty of the standard atomic weights as used for certificates. CIAAW gives
+/// an interval [a, b] for elements whose isotopic composition varies in nature, and a
+/// value with an uncertainty ±U for the others. Following the IUPAC Technical Report
+/// "Interpretation and use of standard atomic weights" (van der Veen, Meija, Possolo and
+/// Hibbert, Pure Appl. Chem. 93 (2021) 629), both are read as rectangular distributions:
+/// u = (b − a)/(2√3) for an interval (centred, by our documented choice, on the
+/// conventional value used above so that plan and record use the same molar masses), and
+/// u = U/√3 for a value ±U. Intervals and ±U from the CIAAW 2021 table (from memory, not
+/// checked against the table); argon is atmospheric argon, 39.948(1).
+const ATOMIC_WEIGHT_SPANS: &[(&str, AtomicSpan)] = &[
+    ("H", AtomicSpan::Interval(1.007_84, 1.008_11)),
+    ("He", AtomicSpan::PlusMinus(0.000_002)),
+    ("C", AtomicSpan::Interval(12.0096, 12.0116)),
+    ("N", AtomicSpan::Interval(14.006_43, 14.007_28)),
+    ("O", AtomicSpan::Interval(15.999_03, 15.999_77)),
+    ("F", AtomicSpan::PlusMinus(0.000_000_005)),
+    ("Ne", AtomicSpan::PlusMinus(0.0006)),
+    ("S", AtomicSpan::Interval(32.059, 32.076)),
+    ("Cl", AtomicSpan::Interval(35.446, 35.457)),
+    ("Ar", AtomicSpan::PlusMinus(0.001)),
+    ("Kr", AtomicSpan::PlusMinus(0.002)),
+    ("Xe", AtomicSpan::PlusMinus(0.006)),
+];
+
+/// How CIAAW states the spread of one standard atomic weight.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum AtomicSpan {
+    /// The interval [a, b].
+    Interval(f64, f64),
+    /// ±U about the value.
+    PlusMinus(f64),
+}
+
+/// Standard uncertainty of an element's atomic weight, g/mol (rectangular, see
+/// [`ATOMIC_WEIGHT_SPANS`]); None for an element not in the table.
+pub fn atomic_weight_uncertainty(symbol: &str) -> Option<f64> {
+    ATOMIC_WEIGHT_SPANS.iter().find(|(s, _)| *s == symbol).map(|&(_, span)| match span {
+        AtomicSpan::Interval(a, b) => (b - a) / (2.0 * 3f64.sqrt()),
+        AtomicSpan::PlusMinus(u) => u / 3f64.sqrt(),
+    })
+}
+
 /// Atomic weight of one element symbol, g/mol.
 pub fn atomic_weight(symbol: &str) -> Option<f64> {
     ATOMIC_WEIGHTS.iter().find(|(s, _)| *s == symbol).map(|&(_, w)| w)
@@ -97,6 +139,16 @@ mod tests {
             let got = molar_mass(f).unwrap();
             assert!((got - m).abs() < 6e-3, "{f}: {got} vs {m}");
         }
+    }
+
+    #[test]
+    fn every_element_has_an_uncertainty() {
+        for (symbol, _) in ATOMIC_WEIGHTS {
+            assert!(atomic_weight_uncertainty(symbol).is_some_and(|u| u > 0.0), "{symbol}");
+        }
+        // Carbon: interval [12.0096, 12.0116] gives u = 0.0020/(2√3) = 5.77e-4 g/mol, the
+        // value the IUPAC technical report (van der Veen et al. 2021) derives for carbon.
+        assert!((atomic_weight_uncertainty("C").unwrap() - 5.7735e-4).abs() < 1e-8);
     }
 
     #[test]

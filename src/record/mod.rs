@@ -1,47 +1,491 @@
-//! The composition actually made, from the fill record.
+//! The fill record: what actually went into one cylinder, and the composition it made.
+//!
+//! A record is a RON file per filled cylinder. Its weighings are the readings of the scale
+//! before the first addition and after each; its additions name the source of each
+//! addition as an analysis with uncertainties (see [`analysis`]) and may carry the pressure
+//! reading and cylinder temperature at the end of the addition. The composition made and
+//! its uncertainty follow in [`composition`] with the engine of [`uncertainty`]. This room
+//! is pure: source look-ups (the source library, other records) come in as a closure.
+
+pub mod analysis;
+pub mod composition;
+pub mod uncertainty;
+
+use nalgebra::DMatrix;
+use serde::{Deserialize, Serialize};
 
 use crate::gas::Catalogue;
 use crate::mixture::Composition;
+use crate::thermo::Model;
+use crate::units::{self, AmountInput, STANDARD_AMBIENT_PA};
+use analysis::Analysis;
+pub use composition::composition_from_masses;
 
-/// Composition from the masses of the parent gases (ISO 6142-1, eq. for x_i):
-///
-/// x_i = Σ_A (x_{i,A} m_A / M_A) / Σ_A (m_A / M_A),  M_A = Σ_i x_{i,A} M_i,
-///
-/// with `parents` the parent compositions and the mass of each added, g. The result lists
-/// the gases in order of first appearance.
-pub fn composition_from_masses(parents: &[(&Composition, f64)], catalogue: &Catalogue) -> Composition {
-    let mut gases: Vec<usize> = Vec::new();
-    for (c, _) in parents {
-        for &g in &c.gases {
-            if !gases.contains(&g) {
-                gases.push(g);
-            }
+/// The record file format this program reads and writes.
+pub const FORMAT: u32 = 1;
+
+/// One addition as recorded.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct Addition {
+    /// The source: an analysis as a mix spec with uncertainties (`N2=balance,O2=<2ppm`),
+    /// `@NAME` for an entry of the source library, or `record:ID` for a premix whose own
+    /// fill record gives its certified composition.
+    pub source: String,
+    /// The source cylinder or lot, as the bench names it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source_name: Option<String>,
+    /// Pressure reading at the end of the addition (`155.5bar`, `154.5barg`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pressure: Option<String>,
+    /// Cylinder temperature at that moment (`21.5C`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature: Option<String>,
+    /// When the addition ended (UTC, RFC 3339).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub time: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub note: Option<String>,
+}
+
+/// A fill record file.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Record {
+    pub format: u32,
+    /// Revision of this record: 0 never saved, then +1 per save (a correction is a revision).
+    #[serde(default)]
+    pub revision: u32,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub saved: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub change_note: Option<String>,
+    /// The recipe filled: its library name.
+    pub recipe: String,
+    /// Its revision when the fill started.
+    #[serde(default)]
+    pub recipe_revision: u32,
+    /// SHA-256 of that revision's canonical text, hex.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recipe_sha256: Option<String>,
+    /// Serial of the filled cylinder.
+    pub cylinder: String,
+    /// Its water capacity (needed for a record of pressure readings).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub water_capacity: Option<String>,
+    /// Who filled it.
+    #[serde(default)]
+    pub operator: String,
+    /// The balance: identity and calibration, as the lab's quality system names it.
+    #[serde(default)]
+    pub balance: String,
+    /// When the fill started and ended (UTC).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub started: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub finished: Option<String>,
+    /// Standard uncertainty of one scale reading (`0.010g`).
+    pub scale_uncertainty: String,
+    /// Standard uncertainty of one pressure reading (record of pressure readings only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pressure_uncertainty: Option<String>,
+    /// Standard uncertainty of one cylinder-temperature reading (`0.5K`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_uncertainty: Option<String>,
+    /// Model for a record of pressure readings; default as for plans.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub model: Option<Model>,
+    /// Ambient pressure for gauge readings; default 1.01325 bar.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ambient: Option<String>,
+    /// Scale readings: before the first addition, then after each.
+    #[serde(default)]
+    pub weighings: Vec<String>,
+    #[serde(default)]
+    pub additions: Vec<Addition>,
+    #[serde(default)]
+    pub notes: String,
+}
+
+/// A record problem, placed in its file.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{origin}:{line}:{column}: {message}")]
+pub struct RecordError {
+    pub origin: String,
+    pub line: usize,
+    pub column: usize,
+    pub message: String,
+}
+
+/// A source resolved into numbers.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SourceInput {
+    /// An analysis: each non-balance amount is an independent input.
+    Analysis(Analysis),
+    /// A certified composition (a premix with its own record): fractions of every gas
+    /// with their covariance.
+    Certified { gases: Vec<usize>, fractions: Vec<f64>, covariance: DMatrix<f64> },
+}
+
+impl SourceInput {
+    /// Gases and estimated mole fractions.
+    pub fn composition(&self) -> Composition {
+        match self {
+            SourceInput::Analysis(a) => Composition { gases: a.lines.iter().map(|l| l.gas).collect(), fractions: a.fractions() },
+            SourceInput::Certified { gases, fractions, .. } => Composition { gases: gases.clone(), fractions: fractions.clone() },
         }
     }
-    let mut moles = vec![0.0; gases.len()];
-    for (c, mass_g) in parents {
-        let n_parent = mass_g / c.molar_mass(catalogue);
-        for (g, x) in c.gases.iter().zip(&c.fractions) {
-            if let Some(i) = gases.iter().position(|h| h == g) {
-                moles[i] += x * n_parent;
-            }
+}
+
+/// One addition read into numbers.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CheckedAddition {
+    /// How the source was written (its spec or reference).
+    pub written: String,
+    /// Cylinder or lot of the source, if recorded.
+    pub source_name: Option<String>,
+    pub source: SourceInput,
+    /// Pressure reading, Pa absolute, and cylinder temperature, K, if both were recorded.
+    pub reading: Option<(f64, f64)>,
+}
+
+/// How the composition follows from the record.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    /// From the masses (ISO 6142-1).
+    Gravimetric,
+    /// From the pressure readings under an equation of state (no weighings).
+    Manometric,
+}
+
+/// A record read into numbers and checked.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Checked {
+    pub method: Method,
+    pub scale_u_g: f64,
+    pub weighings_g: Vec<f64>,
+    pub additions: Vec<CheckedAddition>,
+    /// Additions complete enough to enter the composition (weighed, or with a reading).
+    pub complete: usize,
+    pub pressure_u_pa: f64,
+    pub temperature_u_k: f64,
+    pub volume_m3: Option<f64>,
+}
+
+/// Default standard uncertainty of a pressure reading: 0.05 bar, half the 0.1 bar
+/// resolution of the gauge the plan assumes (common practice, no source).
+pub const DEFAULT_PRESSURE_U_PA: f64 = 0.05e5;
+/// Default standard uncertainty of a cylinder-temperature reading: 0.5 K (common
+/// practice, no source: a contact thermometer on a cylinder wall).
+pub const DEFAULT_TEMPERATURE_U_K: f64 = 0.5;
+
+impl Record {
+    /// A new record for `recipe` at `revision`, its canonical text hashed.
+    pub fn start(recipe: &str, revision: u32, canonical_text: &str, cylinder: &str, now: &str) -> Record {
+        Record {
+            format: FORMAT,
+            revision: 0,
+            saved: None,
+            change_note: None,
+            recipe: recipe.to_string(),
+            recipe_revision: revision,
+            recipe_sha256: Some(sha256_hex(canonical_text.as_bytes())),
+            cylinder: cylinder.to_string(),
+            water_capacity: None,
+            operator: String::new(),
+            balance: String::new(),
+            started: Some(now.to_string()),
+            finished: None,
+            scale_uncertainty: "0.010g".into(),
+            pressure_uncertainty: None,
+            temperature_uncertainty: None,
+            model: None,
+            ambient: None,
+            weighings: Vec::new(),
+            additions: Vec::new(),
+            notes: String::new(),
         }
     }
-    let total: f64 = moles.iter().sum();
-    Composition { gases, fractions: moles.iter().map(|n| n / total).collect() }
+
+    /// Parse a record file's text; `origin` names it in messages.
+    pub fn parse(text: &str, origin: &str) -> Result<Record, RecordError> {
+        let record: Record = crate::ron_format::options().from_str(text).map_err(|e| RecordError {
+            origin: origin.into(),
+            line: e.position.line,
+            column: e.position.col,
+            message: crate::ron_format::plain_ron_message(&e.code.to_string()),
+        })?;
+        if record.format != FORMAT {
+            let (line, column) = crate::ron_format::locate(text, "format");
+            return Err(RecordError {
+                origin: origin.into(),
+                line,
+                column,
+                message: format!("record format {} is not known; this program reads format {FORMAT}", record.format),
+            });
+        }
+        Ok(record)
+    }
+
+    /// The canonical text of the record (fixed field order, quantities as typed).
+    pub fn to_text(&self) -> String {
+        let config = ron::ser::PrettyConfig::new().depth_limit(3).struct_names(true);
+        let mut text = ron::ser::to_string_pretty(self, config).unwrap_or_default();
+        text.push('\n');
+        text
+    }
+
+    /// Read every field into numbers. `lookup` resolves `@NAME` and `record:ID` sources;
+    /// `text` and `origin` place the errors.
+    pub fn check(
+        &self,
+        catalogue: &Catalogue,
+        lookup: &dyn Fn(&str) -> Result<SourceInput, String>,
+        text: &str,
+        origin: &str,
+    ) -> Result<Checked, RecordError> {
+        let err = |needle: &str, message: String| {
+            let (line, column) = crate::ron_format::locate(text, needle);
+            RecordError { origin: origin.into(), line, column, message }
+        };
+        let quoted = |s: &str| format!("\"{s}\"");
+        let ambient_pa = match &self.ambient {
+            None => STANDARD_AMBIENT_PA,
+            Some(a) => units::parse_pressure(a, STANDARD_AMBIENT_PA)
+                .map_err(|e| err(&quoted(a), format!("ambient: {e}")))?,
+        };
+        let scale_u_g = parse_mass_u(&self.scale_uncertainty)
+            .map_err(|e| err(&quoted(&self.scale_uncertainty), format!("scale_uncertainty: {e}")))?;
+        let mut weighings_g = Vec::with_capacity(self.weighings.len());
+        for (k, w) in self.weighings.iter().enumerate() {
+            let g = match units::parse_amount(w) {
+                Ok(AmountInput::Grams(g)) => g,
+                Ok(AmountInput::Moles(_)) => {
+                    return Err(err(&quoted(w), format!("weighing {} {w:?} must be a mass (g or kg)", k + 1)))
+                }
+                Err(e) => return Err(err(&quoted(w), format!("weighing {}: {e}", k + 1))),
+            };
+            if let Some(&before) = weighings_g.last() {
+                if g <= before {
+                    return Err(err(
+                        &quoted(w),
+                        format!(
+                            "weighing {} ({w}) is not above the one before ({}); every addition adds mass. \
+                             Correct the reading (a new revision keeps the old one)",
+                            k + 1,
+                            self.weighings[k - 1]
+                        ),
+                    ));
+                }
+            }
+            weighings_g.push(g);
+        }
+        if self.additions.is_empty() {
+            return Err(err("additions", "the record has no additions yet".into()));
+        }
+        let gravimetric = !weighings_g.is_empty();
+        if gravimetric && weighings_g.len() > self.additions.len() + 1 {
+            return Err(err(
+                "weighings",
+                format!(
+                    "{} weighings for {} additions: a record has one weighing before the first addition and one \
+                     after each; add the missing addition or remove the extra weighing",
+                    weighings_g.len(),
+                    self.additions.len()
+                ),
+            ));
+        }
+        let mut additions = Vec::with_capacity(self.additions.len());
+        for (k, a) in self.additions.iter().enumerate() {
+            let source = resolve_source(&a.source, catalogue, lookup)
+                .map_err(|e| err(&quoted(&a.source), format!("addition {}: source {:?}: {e}", k + 1, a.source)))?;
+            let pressure = match &a.pressure {
+                None => None,
+                Some(p) => Some(
+                    units::parse_pressure(p, ambient_pa)
+                        .map_err(|e| err(&quoted(p), format!("addition {} pressure: {e}", k + 1)))?,
+                ),
+            };
+            let temperature = match &a.temperature {
+                None => None,
+                Some(t) => Some(
+                    units::parse_temperature(t)
+                        .map_err(|e| err(&quoted(t), format!("addition {} temperature: {e}", k + 1)))?,
+                ),
+            };
+            if !gravimetric && k + 1 < self.additions.len() && (pressure.is_none() || temperature.is_none()) {
+                return Err(err(
+                    &quoted(&a.source),
+                    format!(
+                        "addition {}: a record without weighings needs the pressure reading and the cylinder \
+                         temperature of every addition (pressure: \"…bar\", temperature: \"…C\")",
+                        k + 1
+                    ),
+                ));
+            }
+            additions.push(CheckedAddition {
+                written: a.source.clone(),
+                source_name: a.source_name.clone(),
+                source,
+                reading: pressure.zip(temperature),
+            });
+        }
+        let complete = if gravimetric {
+            weighings_g.len() - 1
+        } else {
+            additions.iter().take_while(|a| a.reading.is_some()).count()
+        };
+        if complete == 0 {
+            return Err(err(
+                if gravimetric { "weighings" } else { "additions" },
+                "no addition is complete yet: the first needs its weighing (or, without weighings, its pressure \
+                 reading and temperature)"
+                    .into(),
+            ));
+        }
+        let pressure_u_pa = match &self.pressure_uncertainty {
+            None => DEFAULT_PRESSURE_U_PA,
+            Some(p) => parse_delta_pressure(p).map_err(|e| err(&quoted(p), format!("pressure_uncertainty: {e}")))?,
+        };
+        let temperature_u_k = match &self.temperature_uncertainty {
+            None => DEFAULT_TEMPERATURE_U_K,
+            Some(t) => parse_delta_temperature(t)
+                .map_err(|e| err(&quoted(t), format!("temperature_uncertainty: {e}")))?,
+        };
+        let volume_m3 = match &self.water_capacity {
+            None => None,
+            Some(v) => {
+                Some(units::parse_volume(v).map_err(|e| err(&quoted(v), format!("water_capacity: {e}")))?)
+            }
+        };
+        Ok(Checked {
+            method: if gravimetric { Method::Gravimetric } else { Method::Manometric },
+            scale_u_g,
+            weighings_g,
+            additions,
+            complete,
+            pressure_u_pa,
+            temperature_u_k,
+            volume_m3,
+        })
+    }
+}
+
+/// Resolve a source as written: an analysis spec, or a reference for `lookup`.
+pub fn resolve_source(
+    written: &str,
+    catalogue: &Catalogue,
+    lookup: &dyn Fn(&str) -> Result<SourceInput, String>,
+) -> Result<SourceInput, String> {
+    let w = written.trim();
+    if w.starts_with('@') || w.starts_with("record:") {
+        return lookup(w);
+    }
+    Analysis::parse(w, catalogue).map(SourceInput::Analysis).map_err(|e| e.to_string())
+}
+
+/// A lookup that knows no source library and no records (for a record outside a library).
+pub fn no_lookup(reference: &str) -> Result<SourceInput, String> {
+    Err(format!("{reference} cannot be looked up here: no source library or record folder is at hand"))
+}
+
+/// A standard uncertainty of a mass: `0.010g`, `5mg`. Zero is accepted (an exact reading).
+fn parse_mass_u(text: &str) -> Result<f64, String> {
+    parse_non_negative(text, |t| match units::parse_amount(t) {
+        Ok(AmountInput::Grams(g)) => Ok(g),
+        Ok(AmountInput::Moles(_)) => Err("must be a mass (g, mg or kg), not an amount".to_string()),
+        Err(e) => Err(e.to_string()),
+    })
+}
+
+/// A pressure difference (`0.05bar`): parsed as an absolute pressure, which it scales like.
+fn parse_delta_pressure(text: &str) -> Result<f64, String> {
+    parse_non_negative(text, |t| units::parse_pressure(t, 0.0).map_err(|e| e.to_string()))
+}
+
+/// A temperature difference: `0.5K` or `0.5C` (a kelvin and a degree Celsius are the same step).
+fn parse_delta_temperature(text: &str) -> Result<f64, String> {
+    let t = text.trim();
+    let number = t.strip_suffix('K').or_else(|| t.strip_suffix('C')).or_else(|| t.strip_suffix("°C"));
+    let Some(number) = number else {
+        return Err(format!("{t:?} needs a unit: K (or C, the same step)"));
+    };
+    parse_non_negative(number, |n| n.trim().parse::<f64>().map_err(|_| format!("{t:?} is not a number")))
+}
+
+fn parse_non_negative(text: &str, parse: impl Fn(&str) -> Result<f64, String>) -> Result<f64, String> {
+    let t = text.trim();
+    if let Some(rest) = t.strip_prefix('-') {
+        if parse(rest).is_ok() {
+            return Err(format!("{t:?} is negative; a standard uncertainty is zero or more"));
+        }
+    }
+    if t.trim_end_matches(|c: char| c.is_alphabetic() || c == '°').trim().parse::<f64>() == Ok(0.0) {
+        return Ok(0.0);
+    }
+    parse(t)
+}
+
+/// SHA-256 of `bytes`, lower-case hex.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    Sha256::digest(bytes).iter().map(|b| format!("{b:02x}")).collect()
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
+    const EXAMPLE: &str = r#"Record(
+    format: 1,
+    recipe: "flue-gas-span",
+    recipe_revision: 1,
+    cylinder: "FC-10-2291",
+    scale_uncertainty: "0.010g",
+    weighings: ["13412.000g", "13504.850g", "13942.450g", "15473.450g"],
+    additions: [
+        (source: "CO=1%±0.002%,N2=balance"),
+        (source: "CO2=balance,N2=<10ppm"),
+        (source: "N2=balance,O2=<2ppm,Ar=5ppm±1ppm"),
+    ],
+)"#;
+
     #[test]
-    fn two_pure_parents() {
-        // 44.009 g of CO2 (1 mol) and 28.014 g of N2 (1 mol) make a 50/50 mixture.
+    fn the_interface_example_reads_and_checks() {
         let c = Catalogue::built_in();
-        let co2 = Composition { gases: vec![c.index_of("CO2").unwrap()], fractions: vec![1.0] };
-        let n2 = Composition { gases: vec![c.index_of("N2").unwrap()], fractions: vec![1.0] };
-        let made = composition_from_masses(&[(&co2, 44.009), (&n2, 28.014)], &c);
-        assert!((made.fractions[0] - 0.5).abs() < 1e-15);
+        let r = Record::parse(EXAMPLE, "example.ron").unwrap();
+        let checked = r.check(&c, &no_lookup, EXAMPLE, "example.ron").unwrap();
+        assert_eq!(checked.method, Method::Gravimetric);
+        assert_eq!(checked.complete, 3);
+        assert_eq!(checked.scale_u_g, 0.010);
+        // Round trip through the canonical text.
+        assert_eq!(Record::parse(&r.to_text(), "again").unwrap(), r);
+    }
+
+    #[test]
+    fn bad_records_are_refused_with_their_place() {
+        let c = Catalogue::built_in();
+        let cases = [
+            (EXAMPLE.replace("\"13942.450g\"", "\"13500.000g\""), "is not above", 7),
+            (EXAMPLE.replace("0.010g", "-0.010g"), "negative", 6),
+            (EXAMPLE.replace("O2=<2ppm", "Q9=<2ppm"), "unknown gas", 11),
+            (EXAMPLE.replace("0.002%,", "-0.002%,"), "negative", 9),
+            (EXAMPLE.replace(", \"15473.450g\"", ", \"15473.450g\", \"15500g\""), "5 weighings for 3", 7),
+            (EXAMPLE.replace("CO2=balance,N2=<10ppm", "@co2-lot-4"), "cannot be looked up", 10),
+        ];
+        for (text, needle, line) in cases {
+            let r = Record::parse(&text, "r.ron").unwrap();
+            let e = r.check(&c, &no_lookup, &text, "r.ron").unwrap_err();
+            assert!(e.message.contains(needle), "{needle}: {e}");
+            assert_eq!(e.line, line, "{e}");
+        }
+        let e = Record::parse(&EXAMPLE.replace("cylinder:", "cylindre:"), "r.ron").unwrap_err();
+        assert!(e.to_string().starts_with("r.ron:5:"), "{e}");
+    }
+
+    #[test]
+    fn sha256_of_a_known_text() {
+        // FIPS 180-2, appendix B.1: SHA-256("abc").
+        assert_eq!(sha256_hex(b"abc"), "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
     }
 }
