@@ -7,6 +7,7 @@
 // `!(x > 0.0)` is the deliberate NaN-rejecting form throughout the numerical code.
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
+pub mod certificate;
 pub mod checks;
 pub mod cli;
 pub mod config;

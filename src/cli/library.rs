@@ -116,15 +116,36 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         return Ok(());
     }
     let revs = lib.history(&args.name)?;
+    let all = lib.records()?;
+    let records: Vec<&(String, Result<crate::record::Record, String>)> =
+        all.iter().filter(|(_, r)| r.as_ref().is_ok_and(|r| r.recipe == args.name)).collect();
     if args.format == Format::Json {
         print_json(&json!({"name": args.name, "revisions": revs.iter().map(|r| json!({
             "revision": r.revision, "saved": r.saved, "note": r.note,
-        })).collect::<Vec<_>>()}));
+        })).collect::<Vec<_>>(),
+        "records": records.iter().filter_map(|(id, r)| r.as_ref().ok().map(|r| json!({
+            "id": id, "recipe_revision": r.recipe_revision, "cylinder": r.cylinder,
+            "started": r.started, "finished": r.finished,
+        }))).collect::<Vec<_>>()}));
         return Ok(());
     }
     println!("{:>4}  {:<21} note", "rev", "saved (UTC)");
     for r in &revs {
-        println!("{:>4}  {:<21} {}", r.revision, r.saved.as_deref().unwrap_or("-"), r.note.as_deref().unwrap_or(""));
+        let filled: Vec<&str> = records
+            .iter()
+            .filter(|(_, rec)| rec.as_ref().is_ok_and(|rec| rec.recipe_revision == r.revision))
+            .map(|(id, _)| id.as_str())
+            .collect();
+        let note = r.note.as_deref().unwrap_or("");
+        println!("{:>4}  {:<21} {}", r.revision, r.saved.as_deref().unwrap_or("-"), clip(note, 52));
+        for id in filled {
+            println!("{:>4}  {:<21} filled: record {id}", "", "");
+        }
+    }
+    if !records.is_empty() {
+        println!();
+        println!("fill records of {}:", args.name);
+        super::record::print_records(&records);
     }
     Ok(())
 }

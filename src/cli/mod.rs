@@ -5,6 +5,7 @@ mod check;
 mod gases;
 mod library;
 pub mod plan;
+pub mod record;
 mod state;
 
 use std::process::ExitCode;
@@ -67,6 +68,11 @@ enum Command {
     Delete(library::DeleteArgs),
     /// List the gas catalogue with its constants and their sources.
     Gases(gases::GasesArgs),
+    /// The certificate of a fill record: the composition made with its expanded
+    /// uncertainty (ISO 6142-1, GUM, checked by Monte Carlo). A draft for review.
+    Certify(record::CertifyArgs),
+    /// List the fill records of the library, or of one recipe.
+    Records(record::RecordsArgs),
 }
 
 #[derive(Debug, Args)]
@@ -180,6 +186,8 @@ pub fn main() -> ExitCode {
         Some(Command::Copy(args)) => library::copy(&args),
         Some(Command::Rename(args)) => library::rename(&args),
         Some(Command::Delete(args)) => library::delete(&args),
+        Some(Command::Certify(args)) => record::certify(&args),
+        Some(Command::Records(args)) => record::records(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

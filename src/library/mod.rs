@@ -9,6 +9,7 @@
 pub mod atomic;
 pub mod clock;
 pub mod git;
+pub mod records;
 
 use std::path::{Path, PathBuf};
 

@@ -1,0 +1,359 @@
+//! The certificate of preparation: the composition made with its expanded uncertainty,
+//! the method, the traceability the record gives, the budget and the Monte Carlo check.
+//! A presenter above the record: it computes nothing itself. Text (80 columns), JSON and
+//! PDF carry the same content; the PDF is the text set in a fixed-width font.
+
+pub mod pdf;
+
+use serde_json::{json, Value};
+
+use crate::gas::Catalogue;
+use crate::record::{Checked, Evaluation, Method, Record};
+
+/// The coverage factor of the expanded uncertainty.
+pub const COVERAGE_FACTOR: f64 = 2.0;
+
+/// How the record's recipe was checked against the library.
+#[derive(Debug, Clone, PartialEq)]
+pub enum RecipeCheck {
+    /// The revision is on file and its canonical text has the recorded hash.
+    Verified,
+    /// Something does not match, or could not be checked: why.
+    NotVerified(String),
+}
+
+/// A target of the recipe, for the comparison on the certificate.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Target {
+    pub gas: usize,
+    pub fraction: f64,
+    /// Allowed deviation, absolute mole fraction.
+    pub tolerance: Option<f64>,
+}
+
+/// Everything the certificate shows.
+#[derive(Debug, Clone)]
+pub struct Certificate<'a> {
+    /// The record's id in the library, or its file.
+    pub id: String,
+    pub record: &'a Record,
+    pub checked: &'a Checked,
+    pub evaluation: &'a Evaluation,
+    pub catalogue: &'a Catalogue,
+    pub recipe_check: RecipeCheck,
+    pub targets: Vec<Target>,
+    /// Other things that could not be verified or deserve the reviewer's eye.
+    pub remarks: Vec<String>,
+}
+
+/// A mole fraction and its expanded uncertainty in a unit that suits the magnitude,
+/// with two significant digits of the uncertainty: ("500.12", "0.55", "ppm").
+pub fn with_uncertainty(x: f64, expanded: f64) -> (String, String, &'static str) {
+    let (scale, unit) = unit_for(x.abs().max(expanded));
+    let (xs, us) = (x * scale, expanded * scale);
+    let decimals = if us > 0.0 { (1 - us.log10().floor() as i32).clamp(0, 12) as usize } else { 6 };
+    (format!("{xs:.decimals$}"), format!("{us:.decimals$}"), unit)
+}
+
+fn unit_for(x: f64) -> (f64, &'static str) {
+    if x >= 0.01 {
+        (100.0, "%")
+    } else if x >= 1e-6 {
+        (1e6, "ppm")
+    } else {
+        (1e9, "ppb")
+    }
+}
+
+/// A fraction shown alone in a chosen unit.
+fn in_unit(x: f64, unit: &str) -> String {
+    let scale = match unit {
+        "%" => 100.0,
+        "ppm" => 1e6,
+        _ => 1e9,
+    };
+    let v = x * scale;
+    let decimals = if v.abs() >= 100.0 { 2 } else if v.abs() >= 1.0 { 3 } else { 4 };
+    format!("{v:.decimals$}")
+}
+
+impl Certificate<'_> {
+    fn id_of(&self, i: usize) -> &str {
+        self.catalogue.gas(self.evaluation.measurand.gases[i]).id()
+    }
+
+    fn method_text(&self) -> &'static str {
+        match self.checked.method {
+            Method::Gravimetric => "gravimetric preparation (ISO 6142-1)",
+            Method::Manometric => "manometric preparation from pressure readings (equation of state)",
+        }
+    }
+
+    fn in_progress(&self) -> bool {
+        self.checked.complete < self.checked.additions.len()
+    }
+
+    /// The certificate as lines of at most 80 columns.
+    pub fn text(&self) -> String {
+        let e = self.evaluation;
+        let r = self.record;
+        let mut o: Vec<String> = Vec::new();
+        o.push("CERTIFICATE OF PREPARATION  draft for review by the laboratory".into());
+        o.push(format!("record {} rev {} | cylinder {}", self.id, r.revision, r.cylinder));
+        o.push(format!("recipe {} revision {}", r.recipe, r.recipe_revision));
+        if let Some(h) = &r.recipe_sha256 {
+            o.push(format!("  sha256 {h}"));
+        }
+        o.push(match &self.recipe_check {
+            RecipeCheck::Verified => "  verified: that revision is on file with this hash".into(),
+            RecipeCheck::NotVerified(why) => format!("  NOT VERIFIED: {why}"),
+        });
+        o.push(format!(
+            "filled {} to {}",
+            r.started.as_deref().unwrap_or("(start not recorded)"),
+            r.finished.as_deref().unwrap_or("(not finished)")
+        ));
+        o.push(format!(
+            "operator {} | balance {}",
+            if r.operator.is_empty() { "(not recorded)" } else { &r.operator },
+            if r.balance.is_empty() { "(not recorded)" } else { &r.balance }
+        ));
+        o.push(format!("method {}", self.method_text()));
+        if let Some((model, other)) = e.measurand.models() {
+            o.push(format!(
+                "  model {}{}",
+                model.key(),
+                other.map(|m| format!("; spread against {} in the budget", m.key())).unwrap_or_default()
+            ));
+        }
+        o.push("uncertainty JCGM 100 (GUM), checked by Monte Carlo (JCGM 101)".into());
+        if self.in_progress() {
+            o.push(format!(
+                "FILL IN PROGRESS: {} of {} additions complete; figures so far",
+                self.checked.complete,
+                self.checked.additions.len()
+            ));
+        }
+        o.push(String::new());
+        o.push(format!("COMPOSITION  U = k u with k = {COVERAGE_FACTOR} (about 95 %)"));
+        o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", "gas", "amount", "U", "unit", "target", "judged"));
+        for i in 0..e.gum.values.len() {
+            let (x, u) = (e.gum.values[i], e.gum.u[i]);
+            let (xs, us, unit) = with_uncertainty(x, COVERAGE_FACTOR * u);
+            let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
+            let (ts, judged) = match target {
+                Some(t) => (
+                    in_unit(t.fraction, unit),
+                    match t.tolerance {
+                        Some(tol) if (x - t.fraction).abs() <= tol => "within tolerance".to_string(),
+                        Some(_) => "OUTSIDE tolerance".to_string(),
+                        None => format!("{:+.3} % rel", (x / t.fraction - 1.0) * 100.0),
+                    },
+                ),
+                None => ("–".into(), "impurity".into()),
+            };
+            o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", self.id_of(i), xs, us, unit, ts, judged));
+        }
+        o.push(String::new());
+        o.push("ADDITIONS".into());
+        for (k, a) in self.checked.additions.iter().enumerate() {
+            let mass = match self.checked.method {
+                Method::Gravimetric => self
+                    .checked
+                    .weighings_g
+                    .get(k + 1)
+                    .map_or("not weighed".into(), |w| format!("{:.3} g", w - self.checked.weighings_g[k])),
+                Method::Manometric => {
+                    a.reading.map_or("no reading".into(), |(p, t)| format!("{:.3} bar at {:.2} °C", p / 1e5, t - 273.15))
+                }
+            };
+            o.push(format!("{:>2} {}  {}", k + 1, mass, a.written));
+            if let Some(n) = &a.source_name {
+                o.push(format!("   source {n}"));
+            }
+        }
+        if self.checked.method == Method::Gravimetric {
+            o.push(format!("  scale: u = {} g per reading", self.checked.scale_u_g));
+        } else {
+            o.push(format!(
+                "  gauge: u = {} bar; thermometer: u = {} K",
+                self.checked.pressure_u_pa / 1e5,
+                self.checked.temperature_u_k
+            ));
+        }
+        o.push("  atomic weights: CIAAW standard atomic weights, rectangular over the".into());
+        o.push("  interval (IUPAC technical report 2021)".into());
+        o.push(String::new());
+        o.push("UNCERTAINTY BUDGET  the largest contributions to u, share of u²".into());
+        for i in 0..e.gum.values.len() {
+            let (_, us, unit) = with_uncertainty(e.gum.values[i], e.gum.u[i]);
+            o.push(format!("{} u = {us} {unit}", self.id_of(i)));
+            for c in e.gum.budget[i].iter().filter(|c| c.share_percent >= 0.01).take(4) {
+                o.push(format!("   {:<44} {:>7.2} %", crate::ron_format::clip(&c.group, 44), c.share_percent));
+            }
+        }
+        o.push(String::new());
+        let mc = &e.monte_carlo;
+        o.push(format!("MONTE CARLO CHECK  {} draws, seed {}, 95 % intervals", mc.draws, mc.seed));
+        o.push(format!("{:<10} {:<5} {:>10} {:>10} {:>22}  {}", "gas", "unit", "u GUM", "u MC", "interval MC", "agrees"));
+        for i in 0..e.gum.values.len() {
+            let Some(a) = e.agreement.get(i) else { continue };
+            let (_, _, unit) = with_uncertainty(e.gum.values[i], e.gum.u[i]);
+            let interval = format!("{} to {}", in_unit(mc.low[i], unit), in_unit(mc.high[i], unit));
+            o.push(format!(
+                "{:<10} {:<5} {:>10} {:>10} {:>22}  {}",
+                self.id_of(i),
+                unit,
+                in_unit(e.gum.u[i], unit),
+                in_unit(mc.u[i], unit),
+                interval,
+                if a.agrees { "yes" } else { "NO" }
+            ));
+        }
+        if e.agreement.iter().any(|a| !a.agrees) {
+            o.push("  where NO: GUM and Monte Carlo differ by more than 5 % of u (JCGM 101,".into());
+            o.push("  8.2); the Monte Carlo interval is the better statement there.".into());
+        }
+        if mc.failed > 0 {
+            o.push(format!("  {} draws had no value and were left out", mc.failed));
+        }
+        if !self.remarks.is_empty() {
+            o.push(String::new());
+            o.push("FOR THE REVIEWER".into());
+            for rmk in &self.remarks {
+                o.extend(wrap(&format!("- {rmk}"), 78, "  "));
+            }
+        }
+        o.push(String::new());
+        o.extend(wrap(
+            "CAUTION  A draft produced by a computation aid, to be reviewed, verified (ISO 6143) and signed under \
+             the laboratory's quality system before it is issued. The cylinder holds gas under high pressure: \
+             follow local codes, the cylinder's markings and licensed practice.",
+            78,
+            "  ",
+        ));
+        let mut text = o.join("\n");
+        text.push('\n');
+        text
+    }
+
+    /// The certificate as JSON (mol/mol throughout).
+    pub fn json(&self) -> Value {
+        let e = self.evaluation;
+        let r = self.record;
+        let components: Vec<Value> = (0..e.gum.values.len())
+            .map(|i| {
+                let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
+                json!({
+                    "id": self.id_of(i),
+                    "mole_fraction": e.gum.values[i],
+                    "standard_uncertainty": e.gum.u[i],
+                    "expanded_uncertainty": COVERAGE_FACTOR * e.gum.u[i],
+                    "coverage_factor": COVERAGE_FACTOR,
+                    "target": target.map(|t| t.fraction),
+                    "tolerance": target.and_then(|t| t.tolerance),
+                    "within_tolerance": target.and_then(|t| t.tolerance.map(|tol| (e.gum.values[i] - t.fraction).abs() <= tol)),
+                })
+            })
+            .collect();
+        let budget: Vec<Value> = (0..e.gum.values.len())
+            .map(|i| {
+                json!({
+                    "id": self.id_of(i),
+                    "contributions": e.gum.budget[i].iter().map(|c| json!({
+                        "input": c.group,
+                        "standard_uncertainty": c.u,
+                        "sensitivity": if c.sensitivity.is_finite() { json!(c.sensitivity) } else { Value::Null },
+                        "contribution": c.contribution,
+                        "share_percent": c.share_percent,
+                    })).collect::<Vec<_>>(),
+                })
+            })
+            .collect();
+        let mc = &e.monte_carlo;
+        json!({
+            "record": self.id,
+            "record_revision": r.revision,
+            "draft": true,
+            "cylinder": r.cylinder,
+            "recipe": {
+                "name": r.recipe,
+                "revision": r.recipe_revision,
+                "sha256": r.recipe_sha256,
+                "verified": self.recipe_check == RecipeCheck::Verified,
+                "not_verified_because": match &self.recipe_check { RecipeCheck::NotVerified(w) => json!(w), RecipeCheck::Verified => Value::Null },
+            },
+            "operator": r.operator,
+            "balance": r.balance,
+            "started": r.started,
+            "finished": r.finished,
+            "complete_additions": self.checked.complete,
+            "additions": self.checked.additions.len(),
+            "method": match self.checked.method { Method::Gravimetric => "gravimetric", Method::Manometric => "manometric" },
+            "model": e.measurand.models().map(|(m, _)| m.key()),
+            "components": components,
+            "budget": budget,
+            "inputs": e.measurand.inputs.list.iter().map(|i| json!({
+                "input": i.label, "value": i.value, "standard_uncertainty": i.u, "distribution": i.shape.key(),
+            })).collect::<Vec<_>>(),
+            "monte_carlo": {
+                "draws": mc.draws,
+                "seed": mc.seed,
+                "failed": mc.failed,
+                "agrees": e.agreement.iter().all(|a| a.agrees),
+                "tolerance_of_u": crate::record::uncertainty::AGREEMENT_TOLERANCE,
+                "components": (0..mc.mean.len()).map(|i| json!({
+                    "id": self.id_of(i),
+                    "mean": mc.mean[i],
+                    "standard_uncertainty": mc.u[i],
+                    "low": mc.low[i],
+                    "high": mc.high[i],
+                    "agrees": e.agreement.get(i).map(|a| a.agrees),
+                    "low_gap_of_u": e.agreement.get(i).map(|a| a.low_gap),
+                    "high_gap_of_u": e.agreement.get(i).map(|a| a.high_gap),
+                })).collect::<Vec<_>>(),
+            },
+            "remarks": self.remarks,
+            "text": self.text(),
+        })
+    }
+}
+
+/// Wrap `text` at `width` columns, continuation lines indented by `indent`.
+pub fn wrap(text: &str, width: usize, indent: &str) -> Vec<String> {
+    let mut lines = Vec::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        let len = line.chars().count();
+        if len > 0 && len + 1 + word.chars().count() > width {
+            lines.push(std::mem::take(&mut line));
+            line.push_str(indent);
+        } else if len > 0 && !line.ends_with(' ') {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    if !line.trim().is_empty() {
+        lines.push(line);
+    }
+    lines
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn uncertainties_set_the_digits() {
+        assert_eq!(with_uncertainty(500.123e-6, 0.55e-6), ("500.12".into(), "0.55".into(), "ppm"));
+        assert_eq!(with_uncertainty(0.15012, 0.00031), ("15.012".into(), "0.031".into(), "%"));
+        assert_eq!(with_uncertainty(2.5e-9, 1.2e-9), ("2.5".into(), "1.2".into(), "ppb"));
+    }
+
+    #[test]
+    fn wrapping_keeps_within_the_width() {
+        let lines = wrap(&"word ".repeat(60), 30, "  ");
+        assert!(lines.iter().all(|l| l.chars().count() <= 30));
+        assert_eq!(lines.iter().map(|l| l.split_whitespace().count()).sum::<usize>(), 60);
+    }
+}

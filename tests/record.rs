@@ -1,0 +1,293 @@
+//! The fill record: composition made and uncertainty against the `uncertainties` package,
+//! the Monte Carlo check, the plan fed back through the record, and `certify` as a user
+//! runs it (text, JSON, PDF read back, bad records, the recipe's hash).
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use fillwright::gas::Catalogue;
+use fillwright::plan::{self, PlanOptions};
+use fillwright::recipe::{demo, Recipe};
+use fillwright::record::{self, no_lookup, Record};
+use fillwright::thermo::Model;
+
+fn check(text: &str) -> record::Checked {
+    let c = Catalogue::built_in();
+    Record::parse(text, "t").unwrap().check(&c, &no_lookup, text, "t").unwrap()
+}
+
+fn evaluate(text: &str, draws: usize) -> record::Evaluation {
+    let c = Catalogue::built_in();
+    record::evaluate(&check(text), &c, Model::Pr, None, &[], draws, 11).unwrap()
+}
+
+#[test]
+fn composition_and_uncertainty_agree_with_the_uncertainties_package() {
+    // tests/fixtures/uncertainties_records.json: the same records computed with the
+    // `uncertainties` package (PyPI 3.2.3) by tests/reference/make_record_fixture.py.
+    let fixture: serde_json::Value =
+        serde_json::from_str(include_str!("fixtures/uncertainties_records.json")).unwrap();
+    let c = Catalogue::built_in();
+    let records = fixture["records"].as_object().unwrap();
+    assert_eq!(records.len(), 3);
+    for (name, expected) in records {
+        let text = std::fs::read_to_string(format!("tests/records/{name}.ron")).unwrap();
+        let e = evaluate(&text, 0);
+        let expected = expected.as_object().unwrap();
+        assert_eq!(e.gum.values.len(), expected.len(), "{name}");
+        for (i, &g) in e.measurand.gases.iter().enumerate() {
+            let id = c.gas(g).id();
+            let x = expected[id]["mole_fraction"].as_f64().unwrap();
+            let u = expected[id]["standard_uncertainty"].as_f64().unwrap();
+            assert!((e.gum.values[i] / x - 1.0).abs() < 1e-9, "{name} {id}: {} vs {x}", e.gum.values[i]);
+            assert!((e.gum.u[i] / u - 1.0).abs() < 1e-6, "{name} {id}: u {} vs {u}", e.gum.u[i]);
+        }
+    }
+}
+
+#[test]
+fn monte_carlo_agrees_where_linear_and_differs_for_a_trace_at_its_detection_limit() {
+    let text = std::fs::read_to_string("tests/records/flue-gas-made.ron").unwrap();
+    let e = evaluate(&text, 100_000);
+    let c = Catalogue::built_in();
+    for (i, &g) in e.measurand.gases.iter().enumerate() {
+        let id = c.gas(g).id();
+        let a = e.agreement[i];
+        match id {
+            // CO, CO2 and N2 follow from normal inputs through a nearly linear function.
+            "CO" | "CO2" | "N2" => assert!(a.agrees, "{id}: {a:?}"),
+            // O2 comes only from "<2ppm" in the balance N2: rectangular, so its 95 %
+            // interval is narrower than ±1.96 u although u is the same.
+            "O2" => {
+                assert!(!a.agrees, "{id}: {a:?}");
+                assert!(a.u_ratio_gap.abs() < 0.02, "{id}: {a:?}");
+                assert!(e.monte_carlo.low[i] > 0.0, "a rectangular input never draws a negative amount");
+                assert!(e.gum.values[i] - 1.96 * e.gum.u[i] < e.monte_carlo.low[i]);
+            }
+            _ => {}
+        }
+    }
+}
+
+#[test]
+fn the_plans_masses_fed_back_through_a_record_give_the_target() {
+    let c = Catalogue::built_in();
+    for name in ["flue-gas-span", "pipeline-ng-9", "laser-co2-he-n2"] {
+        let order = Recipe::load(demo::find(name).unwrap(), name, &c).unwrap();
+        let p = plan::plan(&order, &c, &PlanOptions::default()).unwrap();
+        let tare = 10_000.0;
+        let mut weighings = vec![format!("{tare}g")];
+        let mut additions = Vec::new();
+        let mut scale = tare;
+        for s in &p.steps {
+            scale += s.add_mass_g;
+            weighings.push(format!("{scale}g"));
+            let source = order.sources.iter().find(|o| o.name == s.source).unwrap();
+            additions.push(format!("(source: \"{}\")", source.composition.describe(&c)));
+        }
+        let text = format!(
+            "Record(format: 1, recipe: \"{name}\", cylinder: \"X\", scale_uncertainty: \"0.01g\", weighings: [{}], additions: [{}])",
+            weighings.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", "),
+            additions.join(", ")
+        );
+        let e = evaluate(&text, 0);
+        for (i, &g) in e.measurand.gases.iter().enumerate() {
+            let target = p.components.iter().find(|r| r.gas == g).unwrap().mole_fraction;
+            // The masses pass through text at about 1e-13 g of 10 kg: 1e-9 relative is plenty.
+            assert!((e.gum.values[i] / target - 1.0).abs() < 1e-9, "{name} {}: {} vs {target}", c.gas(g).id(), e.gum.values[i]);
+        }
+    }
+}
+
+#[test]
+fn adjacent_masses_share_a_reading() {
+    // A middle weighing raises one mass and lowers the next: its sensitivity for the first
+    // source's component has the opposite sign of the next weighing's.
+    let text = std::fs::read_to_string("tests/records/flue-gas-made.ron").unwrap();
+    let e = evaluate(&text, 0);
+    let co = 0;
+    let w = |k: usize| e.gum.budget[co].iter().find(|c| c.group == format!("weighing {k}")).map(|c| c.sensitivity);
+    let before = e.gum.budget[co].iter().find(|c| c.group == "weighing before the fill").unwrap().sensitivity;
+    assert!(w(1).unwrap() > 0.0 && before < 0.0, "{:?} {before}", w(1));
+}
+
+// --- the command line ---
+
+fn fresh(tag: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("fillwright-record-{tag}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+fn run(config: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(args)
+        .env("FILLWRIGHT_CONFIG", config)
+        .env_remove("FILLWRIGHT_LIBRARY")
+        .output()
+        .unwrap()
+}
+
+fn out(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stdout).into_owned()
+}
+
+/// A library with the demo recipes and the flue-gas record in records/.
+fn library_with_record(tag: &str) -> (PathBuf, PathBuf) {
+    let config = fresh(tag);
+    assert!(run(&config, &["list"]).status.success());
+    let lib = config.join("library");
+    let text = std::fs::read_to_string("tests/records/flue-gas-made.ron").unwrap();
+    let canonical = fillwright::recipe::canonical::to_text(&Recipe::parse(demo::find("flue-gas-span").unwrap(), "d").unwrap());
+    let hash = record::sha256_hex(canonical.as_bytes());
+    let text = text.replace("recipe_revision: 1,", &format!("recipe_revision: 1,\n    recipe_sha256: \"{hash}\",\n    finished: \"2026-12-02T10:00:00Z\","));
+    std::fs::create_dir_all(lib.join("records")).unwrap();
+    std::fs::write(lib.join("records/FC-10-2291-20261202.ron"), text).unwrap();
+    (config, lib)
+}
+
+#[test]
+fn certify_in_the_library_verifies_the_recipe_and_judges_the_targets() {
+    let (config, _) = library_with_record("verify");
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "2000"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let text = out(&o);
+    assert!(text.contains("verified: that revision is on file with this hash"), "{text}");
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "{text}");
+    // CO is 488 ppm against 500 ppm ± 2 %rel (10 ppm): outside; CO2 14.64 % against 15 %.
+    let co = text.lines().find(|l| l.starts_with("CO ")).unwrap();
+    assert!(co.contains("OUTSIDE tolerance"), "{co}");
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--format", "json", "--draws", "2000"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["recipe"]["verified"], true);
+    let comps = v["components"].as_array().unwrap();
+    let co = comps.iter().find(|c| c["id"] == "CO").unwrap();
+    assert_eq!(co["coverage_factor"], 2.0);
+    let (u, big_u) = (co["standard_uncertainty"].as_f64().unwrap(), co["expanded_uncertainty"].as_f64().unwrap());
+    assert!((big_u - 2.0 * u).abs() < 1e-18 && u > 0.0);
+    assert!(v["monte_carlo"]["draws"] == 2000 && v["budget"].as_array().unwrap().len() == comps.len());
+
+    // `records` and `history` list it beside the recipe's revisions.
+    let o = run(&config, &["records", "flue-gas-span"]);
+    assert!(out(&o).contains("FC-10-2291-20261202") && out(&o).contains("finished"), "{}", out(&o));
+    let o = run(&config, &["history", "flue-gas-span"]);
+    assert!(out(&o).contains("filled: record FC-10-2291-20261202"), "{}", out(&o));
+}
+
+#[test]
+fn a_changed_recipe_is_named_and_certify_still_works() {
+    let (config, lib) = library_with_record("changed");
+    // Someone edits revision 1 in place (no new revision): the hash no longer matches.
+    let path = lib.join("flue-gas-span.ron");
+    let text = std::fs::read_to_string(&path).unwrap().replace("150bar", "140bar");
+    std::fs::write(&path, text).unwrap();
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+    assert!(o.status.success());
+    assert!(out(&o).contains("NOT VERIFIED: revision 1 on file hashes to"), "{}", out(&o));
+    // Outside the library the record certifies and says what it could not verify.
+    let outside = fresh("outside").join("r.ron");
+    std::fs::copy(lib.join("records/FC-10-2291-20261202.ron"), &outside).unwrap();
+    let o = run(&config, &["certify", outside.to_str().unwrap(), "--draws", "1000"]);
+    assert!(o.status.success());
+    assert!(out(&o).contains("NOT VERIFIED: the record is not in a library"), "{}", out(&o));
+}
+
+#[test]
+fn bad_records_are_refused_with_exit_1_and_their_place() {
+    let dir = fresh("bad");
+    let good = std::fs::read_to_string("tests/records/flue-gas-made.ron").unwrap();
+    let cases = [
+        (good.replace("\"13942.450g\"", "\"13400.000g\""), "weighing 3 (13400.000g) is not above"),
+        (good.replace("\"15473.450g\"]", "]").replace(", ]", "]"), ""),
+        (good.replace("±0.002%", "±-0.002%"), "negative"),
+        (good.replace("\"0.010g\"", "\"-0.010g\""), "negative"),
+        (good.replace("O2=<2ppm", "Oxy=<2ppm"), "unknown gas \"Oxy\""),
+        (good.replace("CO2=balance,N2=<10ppm", "@co2-lot-4"), "no source \"co2-lot-4\""),
+        (good.replace("weighings", "weighing"), "weighing"),
+    ];
+    for (k, (text, needle)) in cases.iter().enumerate() {
+        let file = dir.join(format!("bad{k}.ron"));
+        std::fs::write(&file, text).unwrap();
+        let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "100"]);
+        let err = String::from_utf8_lossy(&o.stderr);
+        if needle.is_empty() {
+            // A record whose last addition is not weighed yet certifies what is complete.
+            assert!(o.status.success(), "{err}");
+            assert!(out(&o).contains("FILL IN PROGRESS: 2 of 3"), "{}", out(&o));
+            continue;
+        }
+        assert_eq!(o.status.code(), Some(1), "{k}: {err}");
+        assert!(err.contains(needle), "{k}: {err}");
+        assert!(err.contains(&format!("bad{k}.ron:")), "{k}: the place is named: {err}");
+    }
+}
+
+#[test]
+fn the_source_library_supplies_analyses_by_name() {
+    let (config, lib) = library_with_record("sources");
+    std::fs::create_dir_all(config.join("sources")).unwrap();
+    std::fs::write(
+        config.join("sources/co2-lot-4.ron"),
+        "Source(analysis: \"CO2=balance,N2=<10ppm\", cylinder: \"L4-2201\", expiry: \"2026-01-31\")",
+    )
+    .unwrap();
+    let path = lib.join("records/FC-10-2291-20261202.ron");
+    let text = std::fs::read_to_string(&path).unwrap().replace("CO2=balance,N2=<10ppm", "@co2-lot-4");
+    std::fs::write(&path, text.replace("finished:", "started: \"2026-12-01T08:00:00Z\",\n    finished:")).unwrap();
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(out(&o).contains("the analysis of source co2-lot-4 expired on 2026-01-31"), "{}", out(&o));
+}
+
+#[test]
+fn a_record_of_pressure_readings_carries_gauge_temperature_and_model_in_its_budget() {
+    let dir = fresh("mano");
+    let file = dir.join("m.ron");
+    std::fs::write(
+        &file,
+        r#"Record(format: 1, recipe: "x", cylinder: "M-1", scale_uncertainty: "0g", water_capacity: "10L",
+        pressure_uncertainty: "0.05bar", temperature_uncertainty: "0.5K",
+        additions: [
+            (source: "CO2", pressure: "20.1bar", temperature: "21C"),
+            (source: "N2", pressure: "150.4bar", temperature: "23C"),
+        ])"#,
+    )
+    .unwrap();
+    let o = run(&dir, &["certify", file.to_str().unwrap(), "--format", "json", "--draws", "2000", "--model", "pr"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["method"], "manometric");
+    let inputs: Vec<&str> = v["budget"][0]["contributions"].as_array().unwrap().iter().map(|c| c["input"].as_str().unwrap()).collect();
+    assert!(inputs.iter().any(|i| i.starts_with("model (pr against")), "{inputs:?}");
+    assert!(inputs.contains(&"pressure reading 1") && inputs.contains(&"cylinder temperature 2"), "{inputs:?}");
+    // About 13 % CO2 by pressure; the relative u is of the order of a percent, not 0.01 %.
+    let x = v["components"][0]["mole_fraction"].as_f64().unwrap();
+    let u = v["components"][0]["standard_uncertainty"].as_f64().unwrap();
+    assert!(x > 0.10 && x < 0.16 && u / x > 1e-3, "{x} {u}");
+}
+
+#[test]
+fn the_pdf_holds_every_number_of_the_text_certificate() {
+    let (config, _) = library_with_record("pdf");
+    let pdf = config.join("cert.pdf");
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "2000", "--pdf", pdf.to_str().unwrap()]);
+    assert!(o.status.success());
+    let text = out(&o);
+    let back = Command::new("pdftotext").args(["-layout", pdf.to_str().unwrap(), "-"]).output();
+    let Ok(back) = back else {
+        panic!("pdftotext is needed to read the certificate back (poppler-utils; .ci/run installs it)");
+    };
+    let back = String::from_utf8_lossy(&back.stdout);
+    let numbers = |s: &str| -> Vec<String> {
+        s.split(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-'))
+            .filter(|w| w.chars().any(|c| c.is_ascii_digit()))
+            .map(str::to_string)
+            .collect()
+    };
+    let in_pdf = numbers(&back);
+    for n in numbers(&text) {
+        assert!(in_pdf.contains(&n), "{n} is missing from the PDF:\n{back}");
+    }
+    assert!(back.contains("CERTIFICATE OF PREPARATION") && back.contains("±") == text.contains('±'));
+}
