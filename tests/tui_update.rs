@@ -21,6 +21,7 @@ fn setup(tag: &str) -> (Model, Context, PathBuf) {
         catalogue: Catalogue::built_in(),
         settings: Settings::default().resolve("", "defaults").unwrap(),
         drafts: Some(dir.join("drafts")),
+        sources: Some(dir.join("sources")),
         now: stamp,
     };
     let mut model = Model::new("test library".into(), false);
@@ -312,4 +313,76 @@ fn a_new_recipe_is_saved_as_revision_1_and_bad_names_are_refused() {
     assert_eq!(model.status, "saved rev 1");
     let text = std::fs::read_to_string(dir.join("library/zero-gas.ron")).unwrap();
     assert!(text.contains("revision: 1,") && text.contains("name: \"zero-gas\""), "{text}");
+}
+
+#[test]
+fn a_fill_at_the_bench_is_recorded_entry_by_entry_and_continues_after_a_restart() {
+    let (mut model, mut ctx, dir) = setup("bench");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    assert_eq!(model.view, View::Sheet);
+    // The empty cylinder, then step 1 (CO) with its pressure reading and temperature.
+    keys(&mut model, &mut ctx, &[Key::Char('w')]);
+    text(&mut model, &mut ctx, "13412.000g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("record FC-10-2291-"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Char('t')]);
+    text(&mut model, &mut ctx, "21.5C");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("(recorded)"), "{}", model.status);
+    // A reading below the previous one keeps the prompt open with a message.
+    keys(&mut model, &mut ctx, &[Key::Char('w')]);
+    text(&mut model, &mut ctx, "13000g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(matches!(model.overlay, Overlay::Prompt { .. }), "the dialog stays open");
+    assert!(model.status.contains("not above the previous reading"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    // The plan's mass of CO is 0.928 g: 13412.928 g after step 1.
+    text(&mut model, &mut ctx, "13412.928g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("step 1 weighed"), "{}", model.status);
+    let records = dir.join("library/records");
+    let file = std::fs::read_dir(&records).unwrap().flatten().find(|e| e.path().is_file()).unwrap().path();
+    let saved = std::fs::read_to_string(&file).unwrap();
+    assert!(saved.contains("\"13412.928g\"") && saved.contains("temperature: \"21.5C\""), "{saved}");
+    assert!(saved.contains("recipe_sha256"), "{saved}");
+
+    // The session ends here (nothing else is saved); a new one continues the fill.
+    let mut model = Model::new("test library".into(), false);
+    update::start(&mut model, &mut ctx);
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let doc = model.doc.as_ref().unwrap();
+    let rec = doc.bench.record.as_ref().expect("the fill in progress is picked up");
+    assert_eq!(rec.record.weighings.len(), 2);
+    assert_eq!(doc.bench.done, vec![true, false, false, false]);
+    assert_eq!(doc.bench.selected, 1, "the step in progress is selected");
+    let progress = doc.bench.progress.as_ref().unwrap();
+    assert!(progress.replan.as_ref().unwrap().on_target, "CO within 0.1 % of the plan");
+
+    // Step 2 (CH4) goes 3 % over its 26.59 g: the rest is re-planned and the target
+    // can no longer be met within CH4's 1 %rel tolerance.
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
+    text(&mut model, &mut ctx, &format!("{}g", 13412.928 + 26.585 * 1.03));
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    let replan = doc.bench.progress.as_ref().unwrap().replan.as_ref().unwrap();
+    assert_eq!(replan.steps.len(), 2);
+    assert!(!replan.on_target, "{:?}", replan.deviations);
+    assert!(replan.steps[1].add_amount_mol > 54.65, "more balance to bring the minors back: {:?}", replan.steps);
+    // The history keeps every entry as a revision.
+    let history = ctx.library.record_history(&doc.bench.record.as_ref().unwrap().id);
+    assert!(history.len() >= 3, "{history:?}");
+}
+
+#[test]
+fn a_record_needs_a_saved_recipe() {
+    let (mut model, mut ctx, _dir) = setup("bench-unsaved");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Down, Key::Down, Key::Char('e')]);
+    text(&mut model, &mut ctx, " changed");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('3'), Key::Char('w')]);
+    text(&mut model, &mut ctx, "13412g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("save the recipe first"), "{}", model.status);
+    assert!(model.doc.as_ref().unwrap().bench.record.is_none());
 }

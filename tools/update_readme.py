@@ -5,6 +5,7 @@
   <!-- generated: accuracy-table -->  cargo run --example accuracy_table
   <!-- generated: fill-sheet -->      cargo run -- plan flue-gas-span
   <!-- generated: check-lpg -->       cargo run -- check lpg-in-methane
+  <!-- generated: certificate -->     cargo run -- certify tests/records/flue-gas-made.ron
 
 Run from anywhere: python3 tools/update_readme.py
 """
@@ -19,6 +20,8 @@ PARTS = {
     "accuracy-table": (["cargo", "run", "-q", "--example", "accuracy_table"], None),
     "fill-sheet": (["cargo", "run", "-q", "--", "plan", "flue-gas-span"], "plan flue-gas-span"),
     "check-lpg": (["cargo", "run", "-q", "--", "check", "lpg-in-methane"], "check lpg-in-methane"),
+    "certificate": (["cargo", "run", "-q", "--", "certify", "tests/records/flue-gas-made.ron"],
+                    "certify tests/records/flue-gas-made.ron"),
 }
 
 

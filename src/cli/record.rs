@@ -40,13 +40,21 @@ pub struct CertifyArgs {
 }
 
 /// A record found for certification.
-struct Found {
-    id: String,
-    origin: String,
-    text: String,
-    record: Record,
+pub struct Found {
+    pub id: String,
+    pub origin: String,
+    pub text: String,
+    pub record: Record,
     /// The library it belongs to (None for a file elsewhere).
-    library: Option<Library>,
+    pub library: Option<Library>,
+}
+
+/// How to evaluate: the model for pressure readings, the Monte Carlo draws and seed.
+#[derive(Debug, Clone, Copy)]
+pub struct Evaluate {
+    pub model: Option<Model>,
+    pub draws: usize,
+    pub seed: u64,
 }
 
 fn looks_like_path(s: &str) -> bool {
@@ -123,17 +131,10 @@ pub struct Certified {
 }
 
 /// Check, evaluate and verify a record.
-pub fn certify_record(
-    id: &str,
-    record: &Record,
-    text: &str,
-    origin: &str,
-    library: Option<&Library>,
-    catalogue: &Catalogue,
-    model: Option<Model>,
-    draws: usize,
-    seed: u64,
-) -> Result<Certified, String> {
+pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Result<Certified, String> {
+    let Evaluate { model, draws, seed } = how;
+    let (id, record, library) = (found.id.as_str(), &found.record, found.library.as_ref());
+    let (text, origin) = (found.text.as_str(), found.origin.as_str());
     let sources = config::config_dir().map(|d| d.join("sources"));
     let lookup = Lookup { library, sources: sources.as_deref(), catalogue, depth: 0 };
     let checked = record.check(catalogue, &|r| lookup.resolve(r), text, origin).map_err(|e| e.to_string())?;
@@ -206,18 +207,8 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     }
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let found = find(args)?;
-    let c = certify_record(
-        &found.id,
-        &found.record,
-        &found.text,
-        &found.origin,
-        found.library.as_ref(),
-        &catalogue,
-        args.model,
-        args.draws,
-        args.seed,
-    )
-    .map_err(Refused)?;
+    let how = Evaluate { model: args.model, draws: args.draws, seed: args.seed };
+    let c = certify_record(&found, &catalogue, how).map_err(Refused)?;
     let cert = c.certificate(&catalogue);
     let text = cert.text();
     if let Some(pdf) = &args.pdf {

@@ -15,6 +15,9 @@ use crate::gas::Catalogue;
 use crate::record::{self, Record, SourceInput};
 use crate::recipe::canonical;
 
+/// Record ids with the record, or why it cannot be read.
+pub type RecordList = Vec<(String, Result<Record, String>)>;
+
 /// A record read from the library.
 #[derive(Debug, Clone)]
 pub struct OpenedRecord {
@@ -131,10 +134,10 @@ impl Library {
     }
 
     /// The ids of every record, sorted, with the record or why it cannot be read.
-    pub fn records(&self) -> Result<Vec<(String, Result<Record, String>)>, LibraryError> {
+    pub fn records(&self) -> Result<RecordList, LibraryError> {
         let dir = self.records_dir();
         let Ok(entries) = std::fs::read_dir(&dir) else { return Ok(Vec::new()) };
-        let mut out: Vec<(String, Result<Record, String>)> = entries
+        let mut out: RecordList = entries
             .flatten()
             .filter_map(|e| {
                 let p = e.path();

@@ -8,6 +8,7 @@
 
 pub mod accuracy;
 pub mod premix;
+pub mod replan;
 pub mod sources;
 
 use nalgebra::{DMatrix, DVector};

@@ -67,6 +67,8 @@ impl Sub for Dual {
     }
 }
 
+// The product and quotient rules mix the operators on purpose.
+#[allow(clippy::suspicious_arithmetic_impl)]
 impl Mul for Dual {
     type Output = Dual;
     fn mul(self, o: Dual) -> Dual {
@@ -75,6 +77,7 @@ impl Mul for Dual {
     }
 }
 
+#[allow(clippy::suspicious_arithmetic_impl)]
 impl Div for Dual {
     type Output = Dual;
     fn div(self, o: Dual) -> Dual {

@@ -8,6 +8,7 @@
 pub mod model;
 pub mod picker;
 pub mod scenes;
+mod sheet;
 pub mod svg;
 pub mod update;
 pub mod view;
@@ -101,7 +102,8 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     library.git_commit = settings.git_commit_on_save;
     let drafts = config::config_dir().map(|d| d.join("drafts"));
     let color = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
-    let mut ctx = Context { library, catalogue, settings, drafts, now: clock::now_utc };
+    let sources = config::config_dir().map(|d| d.join("sources"));
+    let mut ctx = Context { library, catalogue, settings, drafts, sources, now: clock::now_utc };
     let mut model = Model::new(dir.display().to_string(), color);
     model.shown = ctx.settings.shown;
     update::start_with(&mut model, &mut ctx, seed);

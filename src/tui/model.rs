@@ -84,6 +84,10 @@ pub enum Prompt {
     MeasuredTemperature,
     ActualReading(usize),
     AddSource,
+    /// The scale reading of the next weighing of the fill record.
+    Weighing,
+    /// The source (analysis or @name) of the step in progress.
+    StepSource,
 }
 
 /// What a gas pick does.
@@ -209,9 +213,27 @@ fn z_curves(p: &Plan, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f
         .collect()
 }
 
+/// What the fill record says so far, and the rest of the fill re-planned from it.
+#[derive(Debug, Clone)]
+pub struct Progress {
+    /// Steps weighed.
+    pub weighed: usize,
+    /// Per plan gas: its id, the amount in the cylinder now and as planned after as many
+    /// steps, mol.
+    pub rows: Vec<(String, f64, f64)>,
+    /// The remaining steps re-planned (or why not).
+    pub replan: Result<crate::plan::replan::Replan, String>,
+}
+
 /// The fill as it happens at the bench.
 #[derive(Debug, Clone, Default)]
 pub struct Bench {
+    /// The fill record being written (every entry is saved at once).
+    pub record: Option<crate::library::records::OpenedRecord>,
+    /// The record so far against the plan.
+    pub progress: Option<Progress>,
+    /// The source chosen for the step in progress (analysis or @name), else the plan's.
+    pub chosen_source: Option<String>,
     pub selected: usize,
     pub done: Vec<bool>,
     /// Cylinder temperature measured now, K.

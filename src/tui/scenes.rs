@@ -25,6 +25,7 @@ pub fn demo_context(dir: &Path) -> Context {
         catalogue: Catalogue::built_in(),
         settings: Settings::default().resolve("", "defaults").expect("the defaults resolve"),
         drafts: None,
+        sources: None,
         now: stamp,
     }
 }

@@ -11,7 +11,6 @@ use crate::library::{Library, LibraryError, OnConflict, Saved};
 use crate::recipe::{canonical, ComponentLine, FillTarget, Recipe, SourceLine};
 use crate::settings::Resolved;
 use crate::thermo::Model as Eos;
-use crate::units;
 
 /// A key, independent of the terminal library.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -48,6 +47,8 @@ pub struct Context {
     pub settings: Resolved,
     /// Where drafts of unsaved edits are kept.
     pub drafts: Option<PathBuf>,
+    /// The source library (analyses of the source cylinders).
+    pub sources: Option<PathBuf>,
     /// The time stamp for saves.
     pub now: fn() -> String,
 }
@@ -125,13 +126,14 @@ fn refresh(model: &mut Model, ctx: &Context) {
     model.library.selected = model.library.selected.min(n.saturating_sub(1));
 }
 
-fn input(text: &str) -> Input {
+pub(super) fn input(text: &str) -> Input {
     Input::new(text.to_string())
 }
 
 fn recompute(doc: &mut Document, ctx: &Context) {
     doc.computed = Computed::of(&doc.recipe, &ctx.catalogue, &ctx.settings);
     fit_bench(doc);
+    super::sheet::sync_from_record(doc, ctx);
 }
 
 /// Size the bench's per-step state to the plan and redo the corrected targets.
@@ -159,6 +161,7 @@ fn open_document(name: &str, recipe: Recipe, opened: Option<crate::library::Open
         bench: Bench::default(),
     };
     fit_bench(&mut doc);
+    super::sheet::attach_record(&mut doc, ctx);
     doc
 }
 
@@ -282,7 +285,7 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
         _ => match model.view {
             View::Library => on_library_key(model, key, ctx),
             View::Editor => on_editor_key(model, key, ctx),
-            View::Sheet => on_sheet_key(model, key),
+            View::Sheet => super::sheet::on_key(model, key),
             View::Checks => match key {
                 Key::Up | Key::Char('k') => model.check_selected = model.check_selected.saturating_sub(1),
                 Key::Down | Key::Char('j') => model.check_selected = (model.check_selected + 1).min(5),
@@ -614,37 +617,6 @@ fn first_line(s: &str) -> &str {
     s.lines().next().unwrap_or(s)
 }
 
-fn on_sheet_key(model: &mut Model, key: Key) {
-    let Some(doc) = model.doc.as_mut() else { return };
-    let steps = doc.bench.done.len();
-    match key {
-        Key::Up | Key::Char('k') => doc.bench.selected = doc.bench.selected.saturating_sub(1),
-        Key::Down | Key::Char('j') => doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1)),
-        Key::Char(' ') | Key::Enter => {
-            if let Some(d) = doc.bench.done.get_mut(doc.bench.selected) {
-                *d = !*d;
-                model.status = format!("step {} {}", doc.bench.selected + 1, if *d { "done" } else { "not done" });
-                if *d {
-                    doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1));
-                }
-            }
-        }
-        Key::Char('t') => {
-            let now = doc.bench.measured_k.map(|t| format!("{:.1}C", units::celsius(t))).unwrap_or_default();
-            model.overlay = Overlay::Prompt { purpose: Prompt::MeasuredTemperature, input: input(&now) };
-        }
-        Key::Char('r') if steps > 0 => {
-            model.overlay = Overlay::Prompt { purpose: Prompt::ActualReading(doc.bench.selected), input: input("") };
-        }
-        Key::Char('c') => {
-            doc.bench.measured_k = None;
-            doc.bench.correct(None);
-            model.status = "targets for the planned fill temperature again".into();
-        }
-        _ => {}
-    }
-}
-
 fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
     let overlay = std::mem::replace(&mut model.overlay, Overlay::None);
     match overlay {
@@ -870,32 +842,10 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
             }
         }
         Prompt::SaveNote => save(model, ctx, Some(text), false),
-        Prompt::MeasuredTemperature => match units::parse_temperature(&text) {
-            Ok(t) => {
-                if let Some(doc) = model.doc.as_mut() {
-                    doc.bench.measured_k = Some(t);
-                    doc.bench.correct(doc.computed.plan.as_ref().ok());
-                    model.status = format!("targets corrected for {:.1} °C", units::celsius(t));
-                }
-            }
-            Err(e) => model.status = e.to_string(),
-        },
-        Prompt::ActualReading(step) => {
-            let ambient = model
-                .doc
-                .as_ref()
-                .and_then(|d| d.computed.order.as_ref().ok().map(|o| o.ambient_pa))
-                .unwrap_or(units::STANDARD_AMBIENT_PA);
-            match units::parse_pressure(&text, ambient) {
-                Ok(p) => {
-                    if let Some(slot) = model.doc.as_mut().and_then(|d| d.bench.actual_pa.get_mut(step)) {
-                        *slot = Some(p);
-                        model.status = format!("step {} reached {:.3} bar", step + 1, p / 1e5);
-                    }
-                }
-                Err(e) => model.status = e.to_string(),
-            }
-        }
+        Prompt::MeasuredTemperature => super::sheet::on_temperature(model, ctx, &text),
+        Prompt::ActualReading(step) => super::sheet::on_pressure(model, ctx, step, &text),
+        Prompt::Weighing => super::sheet::on_weighing(model, ctx, &text),
+        Prompt::StepSource => super::sheet::on_source(model, ctx, &text),
         Prompt::AddSource => {
             if let Some(doc) = model.doc.as_mut() {
                 if !text.is_empty() {

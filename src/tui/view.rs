@@ -112,7 +112,7 @@ fn keys_hint(model: &Model) -> &'static str {
         (Overlay::None, View::Editor) => {
             "↑↓ move · Enter edit · a add gas · x remove · u undo · s save · Tab next view · ? help"
         }
-        (Overlay::None, View::Sheet) => "↑↓ step · Space done · t cylinder temp · r reading · s save · ? help",
+        (Overlay::None, View::Sheet) => "? help · w weigh · r reading · t temp · l source · ↑↓ step · Space done",
         (Overlay::None, View::Checks) => "↑↓ choose a check · Tab next view · Esc library · ? help",
         (Overlay::None, _) => "Tab next view · Esc library · s save · ? help · q quit",
         _ => "Esc closes",
@@ -387,7 +387,54 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     }
     let done = b.done.iter().filter(|d| **d).count();
     lines.push(Line::raw(format!("{done} of {} steps done", p.steps.len())));
+    lines.extend(record_lines(doc, model, theme));
     frame.render_widget(Paragraph::new(lines), inner);
+}
+
+/// The fill record under the steps: where it is, the composition so far against the plan,
+/// and the rest of the fill re-planned from the weighings.
+fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'static>> {
+    let d = &model.shown;
+    let Some(rec) = &doc.bench.record else {
+        return vec![Line::styled("no fill record yet: w types the empty cylinder's scale reading", theme.dim())];
+    };
+    let r = &rec.record;
+    let mut lines = vec![Line::raw(format!(
+        "record {} rev {}: {} weighings{}",
+        rec.id,
+        r.revision,
+        r.weighings.len(),
+        if r.finished.is_some() { ", finished" } else { "" }
+    ))];
+    let Some(prog) = &doc.bench.progress else { return lines };
+    let Ok(plan) = &doc.computed.plan else { return lines };
+    let mut so_far = String::from("so far vs plan:");
+    for (id, now, planned) in &prog.rows {
+        if *planned > 0.0 {
+            so_far.push_str(&format!(" {id} {:+.2}%", (now / planned - 1.0) * 100.0));
+        }
+    }
+    lines.push(Line::raw(clip(&so_far, 78)));
+    match &prog.replan {
+        Ok(rp) if prog.weighed < plan.steps.len() => {
+            let mut rest = String::from("rest re-planned:");
+            for s in &rp.steps {
+                rest.push_str(&format!(" {} {:.2}g→{}", clip(&s.source, 8), s.add_mass_g, d.pf(s.pressure_after_pa)));
+            }
+            lines.push(Line::raw(clip(&rest, 78)));
+            let verdict = if rp.on_target {
+                format!("on target; final {} {} settled", d.pf(rp.final_pressure_pa), d.pu())
+            } else {
+                let worst = rp.deviations.iter().filter(|x| !x.2).map(|x| format!("{} {:+.2}%", prog.rows[x.0].0, x.1 * 100.0));
+                format!("target can no longer be met: {}", worst.collect::<Vec<_>>().join(", "))
+            };
+            let style = if rp.on_target { Style::default() } else { theme.fg(Color::Red) };
+            lines.push(Line::styled(clip(&verdict, 78), style));
+        }
+        Ok(_) => lines.push(Line::raw(format!("fill complete: fillwright certify {}", rec.id))),
+        Err(e) => lines.push(Line::styled(clip(&format!("cannot re-plan: {e}"), 78), theme.fg(Color::Red))),
+    }
+    lines
 }
 
 fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
@@ -614,6 +661,12 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "t           type the cylinder temperature measured now",
             "c           back to the planned fill temperature",
             "r           type the reading reached (bar, barg, psig …)",
+            "w           type the scale reading: before the fill, then",
+            "            after each step (starts and writes the fill record)",
+            "l           the source of the next addition: @NAME or analysis",
+            "every entry is saved in records/ at once; reopening the",
+            "recipe continues the fill; fillwright certify ID prints",
+            "the certificate",
         ],
         View::Models => vec!["every model's amount, Z and last stop reading;", "charts of Z and of the fill"],
         View::Checks => vec![
@@ -674,6 +727,8 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Prompt::MeasuredTemperature => "Cylinder temperature now (e.g. 28C)".into(),
                 Prompt::ActualReading(i) => format!("Reading reached at step {} (e.g. 48.2bar)", i + 1),
                 Prompt::AddSource => "Source: a gas id, or NAME = SPEC for a premix".into(),
+                Prompt::Weighing => "Scale reading (e.g. 13504.85g) for the fill record".into(),
+                Prompt::StepSource => "Source: @NAME, or an analysis (N2=balance,O2=<2ppm)".into(),
             };
             let r = centered(area, 60, 4);
             let inner = boxed(

@@ -1,0 +1,338 @@
+//! The Fill sheet at the bench: ticking steps, the cylinder temperature now, and the fill
+//! record. Every scale reading, pressure reading and temperature typed for the step in
+//! progress is written to the record at once (a new revision of its file), so nothing is
+//! lost when the session ends; opening the recipe again continues the fill. After each
+//! weighing the composition so far is compared with the plan and the rest re-planned.
+
+use super::model::{Document, Model, Overlay, Progress, Prompt};
+use super::update::{input, Context, Key};
+use crate::library::records::Lookup;
+use crate::record::composition::Measurand;
+use crate::record::Record;
+use crate::recipe::canonical;
+use crate::units::{self, AmountInput};
+
+/// Keys of the Fill sheet.
+pub fn on_key(model: &mut Model, key: Key) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let steps = doc.bench.done.len();
+    match key {
+        Key::Up | Key::Char('k') => doc.bench.selected = doc.bench.selected.saturating_sub(1),
+        Key::Down | Key::Char('j') => doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1)),
+        Key::Char(' ') | Key::Enter => {
+            if let Some(d) = doc.bench.done.get_mut(doc.bench.selected) {
+                *d = !*d;
+                model.status = format!("step {} {}", doc.bench.selected + 1, if *d { "done" } else { "not done" });
+                if *d {
+                    doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1));
+                }
+            }
+        }
+        Key::Char('t') => {
+            // Offered selected-as-empty: typing replaces it.
+            model.overlay = Overlay::Prompt { purpose: Prompt::MeasuredTemperature, input: input("") };
+            if let Some(t) = doc.bench.measured_k {
+                model.status = format!("cylinder was {:.1} °C; type the temperature now (e.g. 21.5C)", units::celsius(t));
+            }
+        }
+        Key::Char('r') if steps > 0 => {
+            model.overlay = Overlay::Prompt { purpose: Prompt::ActualReading(doc.bench.selected), input: input("") };
+        }
+        Key::Char('w') if steps > 0 => {
+            model.overlay = Overlay::Prompt { purpose: Prompt::Weighing, input: input("") };
+            model.status = match weighed(doc) {
+                None => "type the scale reading of the cylinder before the first addition (e.g. 13412.00g)".into(),
+                Some(k) if k < steps => format!("type the scale reading after step {} ({})", k + 1, step_source(doc, k)),
+                Some(_) => "every step is weighed; a correction is made in the record file (a new revision)".into(),
+            };
+        }
+        Key::Char('l') if steps > 0 => {
+            let names = ctx_free_source_hint(doc);
+            model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
+            model.status = format!("source of the next addition: @NAME from the source library{names}, or its analysis");
+        }
+        Key::Char('c') => {
+            doc.bench.measured_k = None;
+            doc.bench.correct(None);
+            model.status = "targets for the planned fill temperature again".into();
+        }
+        _ => {}
+    }
+}
+
+fn ctx_free_source_hint(doc: &Document) -> String {
+    doc.bench.chosen_source.as_ref().map(|s| format!(" (now {s})")).unwrap_or_default()
+}
+
+/// Steps weighed so far in the record (None: no weighing yet, not even the empty cylinder).
+fn weighed(doc: &Document) -> Option<usize> {
+    let r = &doc.bench.record.as_ref()?.record;
+    r.weighings.len().checked_sub(1)
+}
+
+/// The step in progress: the first one not weighed.
+fn step_in_progress(doc: &Document) -> usize {
+    weighed(doc).unwrap_or(0)
+}
+
+/// How the source of step `k` is written in the record: the chosen analysis, else the
+/// plan's source composition.
+fn step_source(doc: &Document, k: usize) -> String {
+    if let Some(s) = &doc.bench.chosen_source {
+        return s.clone();
+    }
+    let (Ok(plan), Ok(order)) = (&doc.computed.plan, &doc.computed.order) else { return String::new() };
+    let Some(step) = plan.steps.get(k) else { return String::new() };
+    match order.sources.iter().find(|s| s.name == step.source) {
+        Some(s) if s.pure => s.name.clone(),
+        Some(s) => doc
+            .recipe
+            .sources
+            .iter()
+            .find_map(|l| match l {
+                crate::recipe::SourceLine::Premix { name, mix } if *name == s.name => Some(mix.clone()),
+                _ => None,
+            })
+            .unwrap_or_else(|| s.name.clone()),
+        None => step.source.clone(),
+    }
+}
+
+/// Pick up the fill in progress of the opened recipe, if there is one.
+pub fn attach_record(doc: &mut Document, ctx: &Context) {
+    doc.bench.record = ctx.library.record_in_progress(&doc.name);
+    sync_from_record(doc, ctx);
+}
+
+/// Make the bench show what the record holds, and recompute the progress.
+pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
+    let Some(opened) = &doc.bench.record else {
+        doc.bench.progress = None;
+        return;
+    };
+    let r = &opened.record;
+    let ambient = doc.computed.order.as_ref().map_or(units::STANDARD_AMBIENT_PA, |o| o.ambient_pa);
+    let weighed = r.weighings.len().saturating_sub(1);
+    for (k, d) in doc.bench.done.iter_mut().enumerate() {
+        *d = *d || k < weighed;
+    }
+    for (k, a) in r.additions.iter().enumerate() {
+        if let (Some(p), Some(slot)) = (&a.pressure, doc.bench.actual_pa.get_mut(k)) {
+            *slot = units::parse_pressure(p, ambient).ok();
+        }
+        if let Some(t) = a.temperature.as_deref().and_then(|t| units::parse_temperature(t).ok()) {
+            doc.bench.measured_k = Some(t);
+        }
+    }
+    doc.bench.correct(doc.computed.plan.as_ref().ok());
+    doc.bench.selected = weighed.min(doc.bench.done.len().saturating_sub(1));
+    doc.bench.progress = progress(doc, ctx);
+}
+
+/// The composition so far from the record's masses, against the plan, and the rest re-planned.
+fn progress(doc: &Document, ctx: &Context) -> Option<Progress> {
+    let opened = doc.bench.record.as_ref()?;
+    let (Ok(plan), Ok(order)) = (&doc.computed.plan, &doc.computed.order) else { return None };
+    let origin = opened.path.display().to_string();
+    let lookup = Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
+    let checked = opened.record.check(&ctx.catalogue, &|r| lookup.resolve(r), &opened.text, &origin).ok()?;
+    let m = Measurand::of(&checked, &ctx.catalogue, plan.model, Some(plan.volume_m3), &[]).ok()?;
+    let amounts = m.amounts_mol();
+    let weighed = checked.complete.min(plan.steps.len());
+    let planned = &plan.steps[weighed - 1].amounts_after_mol;
+    let now: Vec<f64> = plan
+        .gases
+        .iter()
+        .map(|g| m.gases.iter().position(|h| h == g).map_or(0.0, |i| amounts[i]))
+        .collect();
+    let rows = plan.gases.iter().enumerate().map(|(i, &g)| (ctx.catalogue.gas(g).id().to_string(), now[i], planned[i])).collect();
+    let replan = crate::plan::replan::replan(plan, order, weighed, &now);
+    Some(Progress { weighed, rows, replan })
+}
+
+/// Write a change to the fill record as its next revision (creating the record on the
+/// first weighing). Returns the message for the status line.
+fn write_record(
+    doc: &mut Document,
+    ctx: &Context,
+    note: &str,
+    change: impl FnOnce(&mut Record),
+) -> Result<(), String> {
+    let now = (ctx.now)();
+    match &doc.bench.record {
+        None => {
+            let Some(opened) = &doc.opened else {
+                return Err("save the recipe first (s): the fill record names its revision".into());
+            };
+            if doc.dirty() {
+                return Err("save the recipe first (s): the fill record names the revision it fills".into());
+            }
+            let saved = &opened.recipe;
+            let serial = saved.cylinder.serial.clone().unwrap_or_else(|| "cylinder".into());
+            let mut record = Record::start(&doc.name, saved.revision, &canonical::to_text(saved), &serial, &now);
+            record.water_capacity = Some(saved.cylinder.water_capacity.clone());
+            record.operator = std::env::var("USER").or_else(|_| std::env::var("LOGNAME")).unwrap_or_default();
+            change(&mut record);
+            let id = ctx.library.create_record(&record, &now).map_err(|e| e.to_string())?;
+            doc.bench.record = Some(ctx.library.open_record(&id).map_err(|e| e.to_string())?);
+        }
+        Some(opened) => {
+            let mut record = opened.record.clone();
+            change(&mut record);
+            let saved = ctx.library.save_record(opened, &record, note, &now).map_err(|e| e.to_string())?;
+            doc.bench.record = Some(saved);
+        }
+    }
+    sync_from_record(doc, ctx);
+    Ok(())
+}
+
+/// Make sure the record has an addition entry for step `k` (the step in progress).
+fn addition_for(record: &mut Record, k: usize, source: &str) -> Option<usize> {
+    if k < record.additions.len() {
+        return Some(k);
+    }
+    if k == record.additions.len() {
+        record.additions.push(crate::record::Addition { source: source.to_string(), ..Default::default() });
+        return Some(k);
+    }
+    None
+}
+
+/// A scale reading typed at the bench.
+pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let steps = doc.bench.done.len();
+    let grams = match units::parse_amount(text) {
+        Ok(AmountInput::Grams(g)) => g,
+        Ok(AmountInput::Moles(_)) => return keep_prompt(model, Prompt::Weighing, text, "a scale reading is a mass (g or kg)"),
+        Err(e) => return keep_prompt(model, Prompt::Weighing, text, &e.to_string()),
+    };
+    let previous = doc.bench.record.as_ref().and_then(|o| o.record.weighings.last().cloned());
+    if let Some(prev) = &previous {
+        if let Ok(AmountInput::Grams(p)) = units::parse_amount(prev) {
+            if grams <= p {
+                let why = format!("{text} is not above the previous reading {prev}; every addition adds mass");
+                return keep_prompt(model, Prompt::Weighing, text, &why);
+            }
+        }
+    }
+    let k = weighed(doc);
+    if k.is_some_and(|k| k >= steps) {
+        model.status = "every step is weighed already".into();
+        return;
+    }
+    // Kept as typed: the record shows the reading the scale showed.
+    let reading = text.trim().to_string();
+    let source = k.map(|k| step_source(doc, k)).unwrap_or_default();
+    let now = (ctx.now)();
+    let note = match k {
+        None => format!("empty cylinder weighed: {reading}"),
+        Some(k) => format!("step {} weighed: {reading}", k + 1),
+    };
+    let last = k.is_some_and(|k| k + 1 == steps);
+    let result = write_record(doc, ctx, &note, |r| {
+        if let Some(k) = k {
+            if let Some(a) = addition_for(r, k, &source) {
+                r.additions[a].time = Some(now.clone());
+            }
+        }
+        r.weighings.push(reading.clone());
+        if last {
+            r.finished = Some(now.clone());
+        }
+    });
+    match result {
+        Ok(()) => {
+            doc.bench.chosen_source = None;
+            let id = doc.bench.record.as_ref().map_or(String::new(), |o| o.id.clone());
+            model.status = match (k, last) {
+                (None, _) => format!("record {id} started: {reading} before the fill"),
+                (Some(_), true) => format!("{note}; the fill is finished: fillwright certify {id}"),
+                (Some(_), false) => format!("{note} (record {id})"),
+            };
+        }
+        Err(e) => model.status = format!("not recorded: {e}"),
+    }
+}
+
+/// A pressure reading typed for step `step`: shown on the sheet, and recorded when it is
+/// the step in progress.
+pub fn on_pressure(model: &mut Model, ctx: &Context, step: usize, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let ambient = doc.computed.order.as_ref().map_or(units::STANDARD_AMBIENT_PA, |o| o.ambient_pa);
+    let p = match units::parse_pressure(text, ambient) {
+        Ok(p) => p,
+        Err(e) => return keep_prompt(model, Prompt::ActualReading(step), text, &e.to_string()),
+    };
+    if let Some(slot) = doc.bench.actual_pa.get_mut(step) {
+        *slot = Some(p);
+    }
+    model.status = format!("step {} reached {:.3} bar", step + 1, p / 1e5);
+    if doc.bench.record.is_some() && step == step_in_progress(doc) {
+        let source = step_source(doc, step);
+        let typed = text.trim().to_string();
+        let note = format!("step {} pressure reading {typed}", step + 1);
+        if let Err(e) = write_record(doc, ctx, &note, |r| {
+            if let Some(a) = addition_for(r, step, &source) {
+                r.additions[a].pressure = Some(typed.clone());
+            }
+        }) {
+            model.status = format!("shown, not recorded: {e}");
+        } else {
+            model.status.push_str(" (recorded)");
+        }
+    }
+}
+
+/// The cylinder temperature measured now: corrects the targets, and is recorded with the
+/// step in progress.
+pub fn on_temperature(model: &mut Model, ctx: &Context, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let t = match units::parse_temperature(text) {
+        Ok(t) => t,
+        Err(e) => return keep_prompt(model, Prompt::MeasuredTemperature, text, &e.to_string()),
+    };
+    doc.bench.measured_k = Some(t);
+    doc.bench.correct(doc.computed.plan.as_ref().ok());
+    model.status = format!("targets corrected for {:.1} °C", units::celsius(t));
+    if doc.bench.record.is_some() && step_in_progress(doc) < doc.bench.done.len() {
+        let step = step_in_progress(doc);
+        let source = step_source(doc, step);
+        let typed = text.trim().to_string();
+        let note = format!("step {} cylinder temperature {typed}", step + 1);
+        match write_record(doc, ctx, &note, |r| {
+            if let Some(a) = addition_for(r, step, &source) {
+                r.additions[a].temperature = Some(typed.clone());
+            }
+        }) {
+            Ok(()) => model.status.push_str(" (recorded)"),
+            Err(e) => model.status = format!("targets corrected; not recorded: {e}"),
+        }
+    }
+}
+
+/// The source of the step in progress: `@NAME` or an analysis with uncertainties.
+pub fn on_source(model: &mut Model, ctx: &Context, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let lookup = Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
+    if let Err(e) = crate::record::resolve_source(text, &ctx.catalogue, &|r| lookup.resolve(r)) {
+        return keep_prompt(model, Prompt::StepSource, text, &e);
+    }
+    let typed = text.trim().to_string();
+    doc.bench.chosen_source = Some(typed.clone());
+    model.status = format!("the next addition comes from {typed}");
+    let step = step_in_progress(doc);
+    if doc.bench.record.as_ref().is_some_and(|o| step < o.record.additions.len()) {
+        let note = format!("step {} source {typed}", step + 1);
+        if let Err(e) = write_record(doc, ctx, &note, |r| r.additions[step].source = typed.clone()) {
+            model.status = format!("not recorded: {e}");
+        }
+    }
+}
+
+/// A refused entry keeps its prompt open with the text typed and says why.
+fn keep_prompt(model: &mut Model, purpose: Prompt, text: &str, why: &str) {
+    model.overlay = Overlay::Prompt { purpose, input: input(text) };
+    model.status = format!("{why} (Esc cancels)");
+}
