@@ -45,7 +45,8 @@ fn accuracy_rows_judge_by_gerg_where_it_covers() {
 #[test]
 fn fill_sheet_and_screening_examples_are_current() {
     let config = std::env::temp_dir().join(format!("fillwright-readme-{}", std::process::id()));
-    for args in [["plan", "flue-gas-span"], ["check", "lpg-in-methane"], ["certify", "tests/records/flue-gas-made.ron"]] {
+    for args in [["plan", "flue-gas-span"], ["check", "lpg-in-methane"], ["certify", "tests/records/flue-gas-made.ron"]]
+    {
         let out = std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))
             .args(args)
             .env("FILLWRIGHT_CONFIG", &config)

@@ -25,8 +25,7 @@ fn evaluate(text: &str, draws: usize) -> record::Evaluation {
 fn composition_and_uncertainty_agree_with_the_uncertainties_package() {
     // tests/fixtures/uncertainties_records.json: the same records computed with the
     // `uncertainties` package (PyPI 3.2.3) by tests/reference/make_record_fixture.py.
-    let fixture: serde_json::Value =
-        serde_json::from_str(include_str!("fixtures/uncertainties_records.json")).unwrap();
+    let fixture: serde_json::Value = serde_json::from_str(include_str!("fixtures/uncertainties_records.json")).unwrap();
     let c = Catalogue::built_in();
     let records = fixture["records"].as_object().unwrap();
     assert_eq!(records.len(), 3);
@@ -94,7 +93,12 @@ fn the_plans_masses_fed_back_through_a_record_give_the_target() {
         for (i, &g) in e.measurand.gases.iter().enumerate() {
             let target = p.components.iter().find(|r| r.gas == g).unwrap().mole_fraction;
             // The masses pass through text at about 1e-13 g of 10 kg: 1e-9 relative is plenty.
-            assert!((e.gum.values[i] / target - 1.0).abs() < 1e-9, "{name} {}: {} vs {target}", c.gas(g).id(), e.gum.values[i]);
+            assert!(
+                (e.gum.values[i] / target - 1.0).abs() < 1e-9,
+                "{name} {}: {} vs {target}",
+                c.gas(g).id(),
+                e.gum.values[i]
+            );
         }
     }
 }
@@ -139,9 +143,13 @@ fn library_with_record(tag: &str) -> (PathBuf, PathBuf) {
     assert!(run(&config, &["list"]).status.success());
     let lib = config.join("library");
     let text = std::fs::read_to_string("tests/records/flue-gas-made.ron").unwrap();
-    let canonical = fillwright::recipe::canonical::to_text(&Recipe::parse(demo::find("flue-gas-span").unwrap(), "d").unwrap());
+    let canonical =
+        fillwright::recipe::canonical::to_text(&Recipe::parse(demo::find("flue-gas-span").unwrap(), "d").unwrap());
     let hash = record::sha256_hex(canonical.as_bytes());
-    let text = text.replace("recipe_revision: 1,", &format!("recipe_revision: 1,\n    recipe_sha256: \"{hash}\",\n    finished: \"2026-12-02T10:00:00Z\","));
+    let text = text.replace(
+        "recipe_revision: 1,",
+        &format!("recipe_revision: 1,\n    recipe_sha256: \"{hash}\",\n    finished: \"2026-12-02T10:00:00Z\","),
+    );
     std::fs::create_dir_all(lib.join("records")).unwrap();
     std::fs::write(lib.join("records/FC-10-2291-20261202.ron"), text).unwrap();
     (config, lib)
@@ -258,7 +266,8 @@ fn a_record_of_pressure_readings_carries_gauge_temperature_and_model_in_its_budg
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(v["method"], "manometric");
-    let inputs: Vec<&str> = v["budget"][0]["contributions"].as_array().unwrap().iter().map(|c| c["input"].as_str().unwrap()).collect();
+    let inputs: Vec<&str> =
+        v["budget"][0]["contributions"].as_array().unwrap().iter().map(|c| c["input"].as_str().unwrap()).collect();
     assert!(inputs.iter().any(|i| i.starts_with("model (pr against")), "{inputs:?}");
     assert!(inputs.contains(&"pressure reading 1") && inputs.contains(&"cylinder temperature 2"), "{inputs:?}");
     // About 13 % CO2 by pressure; the relative u is of the order of a percent, not 0.01 %.

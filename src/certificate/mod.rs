@@ -73,7 +73,13 @@ fn in_unit(x: f64, unit: &str) -> String {
         _ => 1e9,
     };
     let v = x * scale;
-    let decimals = if v.abs() >= 100.0 { 2 } else if v.abs() >= 1.0 { 3 } else { 4 };
+    let decimals = if v.abs() >= 100.0 {
+        2
+    } else if v.abs() >= 1.0 {
+        3
+    } else {
+        4
+    };
     format!("{v:.decimals$}")
 }
 
@@ -150,6 +156,7 @@ impl Certificate<'_> {
                         None => format!("{:+.3} % rel", (x / t.fraction - 1.0) * 100.0),
                     },
                 ),
+                None if self.targets.is_empty() => ("–".into(), "–".into()),
                 None => ("–".into(), "impurity".into()),
             };
             o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", self.id_of(i), xs, us, unit, ts, judged));
@@ -163,9 +170,9 @@ impl Certificate<'_> {
                     .weighings_g
                     .get(k + 1)
                     .map_or("not weighed".into(), |w| format!("{:.3} g", w - self.checked.weighings_g[k])),
-                Method::Manometric => {
-                    a.reading.map_or("no reading".into(), |(p, t)| format!("{:.3} bar at {:.2} °C", p / 1e5, t - 273.15))
-                }
+                Method::Manometric => a
+                    .reading
+                    .map_or("no reading".into(), |(p, t)| format!("{:.3} bar at {:.2} °C", p / 1e5, t - 273.15)),
             };
             o.push(format!("{:>2} {}  {}", k + 1, mass, a.written));
             if let Some(n) = &a.source_name {
@@ -195,7 +202,10 @@ impl Certificate<'_> {
         o.push(String::new());
         let mc = &e.monte_carlo;
         o.push(format!("MONTE CARLO CHECK  {} draws, seed {}, 95 % intervals", mc.draws, mc.seed));
-        o.push(format!("{:<10} {:<5} {:>10} {:>10} {:>22}  {}", "gas", "unit", "u GUM", "u MC", "interval MC", "agrees"));
+        o.push(format!(
+            "{:<10} {:<5} {:>10} {:>10} {:>22}  {}",
+            "gas", "unit", "u GUM", "u MC", "interval MC", "agrees"
+        ));
         for i in 0..e.gum.values.len() {
             let Some(a) = e.agreement.get(i) else { continue };
             let (_, _, unit) = with_uncertainty(e.gum.values[i], e.gum.u[i]);

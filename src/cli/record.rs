@@ -12,8 +12,8 @@ use crate::config;
 use crate::gas::Catalogue;
 use crate::library::records::Lookup;
 use crate::library::Library;
-use crate::record::{self, Checked, Record};
 use crate::recipe::Recipe;
+use crate::record::{self, Checked, Record};
 use crate::thermo::Model;
 
 #[derive(Debug, Args)]
@@ -67,11 +67,12 @@ fn find(args: &CertifyArgs) -> Result<Found, Refused> {
         let text = crate::library::read_limited(path)?;
         let origin = path.display().to_string();
         let record = Record::parse(&text, &origin)?;
-        // A file inside a library's records/ folder belongs to that library.
+        // A file in the records/ folder of a library that holds its recipe belongs to it.
         let library = path
             .canonicalize()
             .ok()
             .and_then(|p| p.parent().filter(|d| d.ends_with("records")).and_then(Path::parent).map(Path::to_path_buf))
+            .filter(|dir| dir.join(format!("{}.ron", record.recipe)).is_file())
             .and_then(|dir| Library::at(&dir).ok());
         let id = path.file_stem().and_then(|s| s.to_str()).unwrap_or("record").to_string();
         return Ok(Found { id, origin, text, record, library });
@@ -91,11 +92,19 @@ fn find(args: &CertifyArgs) -> Result<Found, Refused> {
 /// recipe at that revision if it is on file.
 fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Option<Recipe>) {
     let Some(lib) = library else {
-        return (RecipeCheck::NotVerified("the record is not in a library, so its recipe could not be looked up".into()), None);
+        return (
+            RecipeCheck::NotVerified("the record is not in a library, so its recipe could not be looked up".into()),
+            None,
+        );
     };
     let recipe = match lib.revision(&record.recipe, record.recipe_revision) {
         Ok(r) => r,
-        Err(e) => return (RecipeCheck::NotVerified(format!("recipe {} revision {}: {e}", record.recipe, record.recipe_revision)), None),
+        Err(e) => {
+            return (
+                RecipeCheck::NotVerified(format!("recipe {} revision {}: {e}", record.recipe, record.recipe_revision)),
+                None,
+            )
+        }
     };
     let text = crate::recipe::canonical::to_text(&recipe);
     let hash = record::sha256_hex(text.as_bytes());
@@ -141,7 +150,8 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     let (recipe_check, recipe) = check_recipe(record, library);
     let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
     let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));
-    let settings = config::load_settings().unwrap_or_else(|_| crate::settings::Settings::default().resolve("", "").expect("defaults resolve"));
+    let settings = config::load_settings()
+        .unwrap_or_else(|_| crate::settings::Settings::default().resolve("", "").expect("defaults resolve"));
     let gases: Vec<usize> = checked.additions.iter().flat_map(|a| a.source.composition().gases).collect();
     let model = model
         .or(record.model)
@@ -161,24 +171,34 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
         })
         .unwrap_or_default();
     let mut remarks = Vec::new();
-    if let Some(note) = recipe.as_ref().and_then(|r| r.change_note.clone()).filter(|n| n.starts_with("the recipe is now")) {
+    if let Some(note) =
+        recipe.as_ref().and_then(|r| r.change_note.clone()).filter(|n| n.starts_with("the recipe is now"))
+    {
         remarks.push(format!("{note}; the record was filled to revision {}", record.recipe_revision));
     }
     if library.is_none() {
-        remarks.push("record file outside a library: the recipe, its hash and any record: premix sources could not be verified".into());
+        remarks.push(
+            "record file outside a library: the recipe, its hash and any record: premix sources could not be verified"
+                .into(),
+        );
     }
     for (k, a) in record.additions.iter().enumerate() {
         if let (Some(name), Some(dir)) = (a.source.trim().strip_prefix('@'), sources.as_deref()) {
             if let Ok(entry) = crate::library::records::open_source(dir, name.trim()) {
                 let when = a.time.as_deref().or(record.started.as_deref()).unwrap_or("");
-                if let Some(expiry) = entry.expiry.as_deref().filter(|e| !when.is_empty() && when.get(..10).is_some_and(|w| w > *e)) {
+                if let Some(expiry) =
+                    entry.expiry.as_deref().filter(|e| !when.is_empty() && when.get(..10).is_some_and(|w| w > *e))
+                {
                     remarks.push(format!("addition {}: the analysis of source {name} expired on {expiry}", k + 1));
                 }
             }
         }
     }
     if draws < record::DEFAULT_DRAWS {
-        remarks.push(format!("Monte Carlo with {draws} draws only; a certificate wants at least {}", record::DEFAULT_DRAWS));
+        remarks.push(format!(
+            "Monte Carlo with {draws} draws only; a certificate wants at least {}",
+            record::DEFAULT_DRAWS
+        ));
     }
     if checked.method == record::Method::Manometric {
         remarks.push("composition from pressure readings: expect about 1 % relative, ten times a gravimetric preparation (common practice)".into());
@@ -278,7 +298,14 @@ pub fn print_records(shown: &[&(String, Result<Record, String>)]) {
         match r {
             Ok(r) => {
                 let s = summary(id, r);
-                println!("{:<22} {:<18} {:>3} {:<10}  {}", clip(&s.0, 22), clip(&s.1, 18), s.2, clip(&s.4, 10), clip(&s.5, 23));
+                println!(
+                    "{:<22} {:<18} {:>3} {:<10}  {}",
+                    clip(&s.0, 22),
+                    clip(&s.1, 18),
+                    s.2,
+                    clip(&s.4, 10),
+                    clip(&s.5, 23)
+                );
             }
             Err(e) => println!("{:<22} cannot be read: {}", clip(id, 22), clip(e, 40)),
         }

@@ -12,8 +12,8 @@ use serde::{Deserialize, Serialize};
 
 use super::{atomic, check_name, io, read_limited, Fingerprint, Library, LibraryError};
 use crate::gas::Catalogue;
-use crate::record::{self, Record, SourceInput};
 use crate::recipe::canonical;
+use crate::record::{self, Record, SourceInput};
 
 /// Record ids with the record, or why it cannot be read.
 pub type RecordList = Vec<(String, Result<Record, String>)>;
@@ -79,7 +79,8 @@ impl Library {
             .find(|id| !dir.join(format!("{id}.ron")).exists())
             .ok_or_else(|| LibraryError::Exists(base.clone()))?;
         check_name(&id)?;
-        let new = Record { revision: 1, saved: Some(now.to_string()), change_note: Some("started".into()), ..record.clone() };
+        let new =
+            Record { revision: 1, saved: Some(now.to_string()), change_note: Some("started".into()), ..record.clone() };
         let path = dir.join(format!("{id}.ron"));
         // create_new: two benches starting a record at once never share a file.
         let mut f = std::fs::OpenOptions::new().write(true).create_new(true).open(&path).map_err(io(&path))?;
@@ -130,7 +131,13 @@ impl Library {
         };
         let text = new.to_text();
         atomic::write(&path, text.as_bytes()).map_err(io(&path))?;
-        Ok(OpenedRecord { id: opened.id.clone(), path, fingerprint: Fingerprint::of(text.as_bytes()), text, record: new })
+        Ok(OpenedRecord {
+            id: opened.id.clone(),
+            path,
+            fingerprint: Fingerprint::of(text.as_bytes()),
+            text,
+            record: new,
+        })
     }
 
     /// The ids of every record, sorted, with the record or why it cannot be read.

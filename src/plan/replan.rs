@@ -48,7 +48,11 @@ pub fn replan(plan: &Plan, order: &Order, done: usize, amounts_mol: &[f64]) -> R
             let src = order.sources.iter().find(|o| o.name == s.source).ok_or("unknown source")?;
             Ok((0..n_gas)
                 .map(|i| {
-                    src.composition.gases.iter().position(|g| *g == plan.gases[i]).map_or(0.0, |k| src.composition.fractions[k])
+                    src.composition
+                        .gases
+                        .iter()
+                        .position(|g| *g == plan.gases[i])
+                        .map_or(0.0, |k| src.composition.fractions[k])
                 })
                 .collect())
         })
@@ -68,19 +72,20 @@ pub fn replan(plan: &Plan, order: &Order, done: usize, amounts_mol: &[f64]) -> R
         for i in 0..n_gas {
             cumulative[i] += add[j] * columns[j][i];
         }
-        let pressure_after_pa = plan
-            .fluid
-            .pressure(plan.fill_temperature_k, plan.volume_m3, &cumulative)
-            .map_err(|e| e.to_string())?;
+        let pressure_after_pa =
+            plan.fluid.pressure(plan.fill_temperature_k, plan.volume_m3, &cumulative).map_err(|e| e.to_string())?;
         let molar: f64 = (0..n_gas).map(|i| columns[j][i] * plan.fluid.molar_mass(&unit(n_gas, i))).sum();
-        steps.push(Replanned { source: s.source.clone(), add_amount_mol: add[j], add_mass_g: add[j] * molar, pressure_after_pa });
+        steps.push(Replanned {
+            source: s.source.clone(),
+            add_amount_mol: add[j],
+            add_mass_g: add[j] * molar,
+            pressure_after_pa,
+        });
     }
     let total: f64 = cumulative.iter().sum();
     let final_fractions: Vec<f64> = cumulative.iter().map(|n| n / total).collect();
-    let final_pressure_pa = plan
-        .fluid
-        .pressure(plan.totals.temperature_k, plan.volume_m3, &cumulative)
-        .map_err(|e| e.to_string())?;
+    let final_pressure_pa =
+        plan.fluid.pressure(plan.totals.temperature_k, plan.volume_m3, &cumulative).map_err(|e| e.to_string())?;
     let deviations: Vec<(usize, f64, bool)> = plan
         .components
         .iter()

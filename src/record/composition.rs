@@ -116,7 +116,12 @@ fn source_terms(
             for (a, (&g, &x)) in gs.iter().zip(fractions).enumerate() {
                 let i = slot(g, gases);
                 let id = catalogue.gas(g).id();
-                let j = inputs.push(format!("{id} in {label} {}", k + 1), x, covariance[(a, a)].max(0.0).sqrt(), Shape::Normal);
+                let j = inputs.push(
+                    format!("{id} in {label} {}", k + 1),
+                    x,
+                    covariance[(a, a)].max(0.0).sqrt(),
+                    Shape::Normal,
+                );
                 inputs.list[j].group = group.clone();
                 terms.push((i, Term::Input(j)));
             }
@@ -153,7 +158,8 @@ impl Measurand {
                     .iter()
                     .enumerate()
                     .map(|(k, &w)| {
-                        let label = if k == 0 { "weighing before the fill".to_string() } else { format!("weighing {k}") };
+                        let label =
+                            if k == 0 { "weighing before the fill".to_string() } else { format!("weighing {k}") };
                         inputs.push(label, w, checked.scale_u_g, Shape::Normal)
                     })
                     .collect();
@@ -166,8 +172,8 @@ impl Measurand {
                 let mut formulas = Vec::new();
                 for &g in &gases {
                     let gas = catalogue.gas(g);
-                    let counts = formula::element_counts(&gas.record.formula)
-                        .map_err(|e| format!("{}: {e}", gas.id()))?;
+                    let counts =
+                        formula::element_counts(&gas.record.formula).map_err(|e| format!("{}: {e}", gas.id()))?;
                     let mut f = Vec::new();
                     for (symbol, n) in counts {
                         let j = match elements.iter().find(|(s, _)| *s == symbol) {
@@ -196,7 +202,12 @@ impl Measurand {
                 let mut temperatures = Vec::new();
                 for (k, a) in additions.iter().enumerate() {
                     let (p, t) = a.reading.expect("complete additions have readings");
-                    pressures.push(inputs.push(format!("pressure reading {}", k + 1), p, checked.pressure_u_pa, Shape::Normal));
+                    pressures.push(inputs.push(
+                        format!("pressure reading {}", k + 1),
+                        p,
+                        checked.pressure_u_pa,
+                        Shape::Normal,
+                    ));
                     temperatures.push(inputs.push(
                         format!("cylinder temperature {}", k + 1),
                         t,
@@ -219,7 +230,12 @@ impl Measurand {
                     model_shift: vec![0.0; gases.len()],
                     furthest: None,
                 };
-                let mut me = Measurand { gases: gases.clone(), inputs, method: Shape_::Manometric(Box::new(m.clone())), sources };
+                let mut me = Measurand {
+                    gases: gases.clone(),
+                    inputs,
+                    method: Shape_::Manometric(Box::new(m.clone())),
+                    sources,
+                };
                 let base = me.values()?;
                 // The model spread: the composition under each other model; the one furthest
                 // away (largest relative change of any component) bounds a rectangular input.
@@ -291,7 +307,9 @@ impl Measurand {
         let x = self.inputs.values();
         match &self.method {
             Shape_::Gravimetric { weighings, formulas } => self.gravimetric_amounts(&x, weighings, formulas),
-            Shape_::Manometric(m) => self.manometric_amounts(m, &x).unwrap_or_else(|_| vec![f64::NAN; self.gases.len()]),
+            Shape_::Manometric(m) => {
+                self.manometric_amounts(m, &x).unwrap_or_else(|_| vec![f64::NAN; self.gases.len()])
+            }
         }
     }
 
@@ -370,7 +388,8 @@ impl Measurand {
             // Implicit function theorem on P(T, V, N + n x_A) = P_read:
             // dn = (dP − P_T dT − Σ_i P_Ni (dN_i + n dx_iA)) / Σ_i P_Ni x_iA.
             let slope: f64 = dp_dn.iter().zip(&xa_f).map(|(a, b)| a * b).sum();
-            let mut num = (x[m.pressures[k]].clone() - zero.lift(p)) - (x[m.temperatures[k]].clone() - zero.lift(t)) * zero.lift(dp_dt);
+            let mut num = (x[m.pressures[k]].clone() - zero.lift(p))
+                - (x[m.temperatures[k]].clone() - zero.lift(t)) * zero.lift(dp_dt);
             for i in 0..self.gases.len() {
                 let d_n = n_d[i].clone() - zero.lift(n_f[i]);
                 let d_x = xa_d[i].clone() - zero.lift(xa_f[i]);
@@ -419,7 +438,10 @@ fn solve_addition(
         let h = 1e-7 * (n + held).max(1e-12);
         let slope = (at(n + h)? - at((n - h).max(0.0))?) / (n + h - (n - h).max(0.0));
         if !(slope > 0.0) {
-            return Err(ThermoError::NoState { model: fluid.model(), why: "the pressure does not rise with the addition".into() });
+            return Err(ThermoError::NoState {
+                model: fluid.model(),
+                why: "the pressure does not rise with the addition".into(),
+            });
         }
         let step = f / slope;
         let next = (n - step).max(n / 10.0);

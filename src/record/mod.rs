@@ -131,8 +131,12 @@ impl SourceInput {
     /// Gases and estimated mole fractions.
     pub fn composition(&self) -> Composition {
         match self {
-            SourceInput::Analysis(a) => Composition { gases: a.lines.iter().map(|l| l.gas).collect(), fractions: a.fractions() },
-            SourceInput::Certified { gases, fractions, .. } => Composition { gases: gases.clone(), fractions: fractions.clone() },
+            SourceInput::Analysis(a) => {
+                Composition { gases: a.lines.iter().map(|l| l.gas).collect(), fractions: a.fractions() }
+            }
+            SourceInput::Certified { gases, fractions, .. } => {
+                Composition { gases: gases.clone(), fractions: fractions.clone() }
+            }
         }
     }
 }
@@ -254,8 +258,9 @@ impl Record {
         let quoted = |s: &str| format!("\"{s}\"");
         let ambient_pa = match &self.ambient {
             None => STANDARD_AMBIENT_PA,
-            Some(a) => units::parse_pressure(a, STANDARD_AMBIENT_PA)
-                .map_err(|e| err(&quoted(a), format!("ambient: {e}")))?,
+            Some(a) => {
+                units::parse_pressure(a, STANDARD_AMBIENT_PA).map_err(|e| err(&quoted(a), format!("ambient: {e}")))?
+            }
         };
         let scale_u_g = parse_mass_u(&self.scale_uncertainty)
             .map_err(|e| err(&quoted(&self.scale_uncertainty), format!("scale_uncertainty: {e}")))?;
@@ -352,14 +357,13 @@ impl Record {
         };
         let temperature_u_k = match &self.temperature_uncertainty {
             None => DEFAULT_TEMPERATURE_U_K,
-            Some(t) => parse_delta_temperature(t)
-                .map_err(|e| err(&quoted(t), format!("temperature_uncertainty: {e}")))?,
+            Some(t) => {
+                parse_delta_temperature(t).map_err(|e| err(&quoted(t), format!("temperature_uncertainty: {e}")))?
+            }
         };
         let volume_m3 = match &self.water_capacity {
             None => None,
-            Some(v) => {
-                Some(units::parse_volume(v).map_err(|e| err(&quoted(v), format!("water_capacity: {e}")))?)
-            }
+            Some(v) => Some(units::parse_volume(v).map_err(|e| err(&quoted(v), format!("water_capacity: {e}")))?),
         };
         Ok(Checked {
             method: if gravimetric { Method::Gravimetric } else { Method::Manometric },

@@ -376,8 +376,9 @@ pub fn compare(g: &Gum, mc: &MonteCarlo) -> Vec<Agreement> {
             let low_gap = (y - K_95 * u - mc.low[i]).abs() / u;
             let high_gap = (y + K_95 * u - mc.high[i]).abs() / u;
             let u_ratio_gap = (mc.u[i] - u) / u;
-            let agrees =
-                low_gap <= AGREEMENT_TOLERANCE && high_gap <= AGREEMENT_TOLERANCE && u_ratio_gap.abs() <= AGREEMENT_TOLERANCE;
+            let agrees = low_gap <= AGREEMENT_TOLERANCE
+                && high_gap <= AGREEMENT_TOLERANCE
+                && u_ratio_gap.abs() <= AGREEMENT_TOLERANCE;
             Agreement { low_gap, high_gap, u_ratio_gap, agrees }
         })
         .collect()

@@ -7,9 +7,9 @@
 use super::model::{Document, Model, Overlay, Progress, Prompt};
 use super::update::{input, Context, Key};
 use crate::library::records::Lookup;
+use crate::recipe::canonical;
 use crate::record::composition::Measurand;
 use crate::record::Record;
-use crate::recipe::canonical;
 use crate::units::{self, AmountInput};
 
 /// Keys of the Fill sheet.
@@ -32,7 +32,8 @@ pub fn on_key(model: &mut Model, key: Key) {
             // Offered selected-as-empty: typing replaces it.
             model.overlay = Overlay::Prompt { purpose: Prompt::MeasuredTemperature, input: input("") };
             if let Some(t) = doc.bench.measured_k {
-                model.status = format!("cylinder was {:.1} °C; type the temperature now (e.g. 21.5C)", units::celsius(t));
+                model.status =
+                    format!("cylinder was {:.1} °C; type the temperature now (e.g. 21.5C)", units::celsius(t));
             }
         }
         Key::Char('r') if steps > 0 => {
@@ -42,14 +43,17 @@ pub fn on_key(model: &mut Model, key: Key) {
             model.overlay = Overlay::Prompt { purpose: Prompt::Weighing, input: input("") };
             model.status = match weighed(doc) {
                 None => "type the scale reading of the cylinder before the first addition (e.g. 13412.00g)".into(),
-                Some(k) if k < steps => format!("type the scale reading after step {} ({})", k + 1, step_source(doc, k)),
+                Some(k) if k < steps => {
+                    format!("type the scale reading after step {} ({})", k + 1, step_source(doc, k))
+                }
                 Some(_) => "every step is weighed; a correction is made in the record file (a new revision)".into(),
             };
         }
         Key::Char('l') if steps > 0 => {
             let names = ctx_free_source_hint(doc);
             model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
-            model.status = format!("source of the next addition: @NAME from the source library{names}, or its analysis");
+            model.status =
+                format!("source of the next addition: @NAME from the source library{names}, or its analysis");
         }
         Key::Char('c') => {
             doc.bench.measured_k = None;
@@ -134,30 +138,28 @@ fn progress(doc: &Document, ctx: &Context) -> Option<Progress> {
     let opened = doc.bench.record.as_ref()?;
     let (Ok(plan), Ok(order)) = (&doc.computed.plan, &doc.computed.order) else { return None };
     let origin = opened.path.display().to_string();
-    let lookup = Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
+    let lookup =
+        Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
     let checked = opened.record.check(&ctx.catalogue, &|r| lookup.resolve(r), &opened.text, &origin).ok()?;
     let m = Measurand::of(&checked, &ctx.catalogue, plan.model, Some(plan.volume_m3), &[]).ok()?;
     let amounts = m.amounts_mol();
     let weighed = checked.complete.min(plan.steps.len());
     let planned = &plan.steps[weighed - 1].amounts_after_mol;
-    let now: Vec<f64> = plan
+    let now: Vec<f64> =
+        plan.gases.iter().map(|g| m.gases.iter().position(|h| h == g).map_or(0.0, |i| amounts[i])).collect();
+    let rows = plan
         .gases
         .iter()
-        .map(|g| m.gases.iter().position(|h| h == g).map_or(0.0, |i| amounts[i]))
+        .enumerate()
+        .map(|(i, &g)| (ctx.catalogue.gas(g).id().to_string(), now[i], planned[i]))
         .collect();
-    let rows = plan.gases.iter().enumerate().map(|(i, &g)| (ctx.catalogue.gas(g).id().to_string(), now[i], planned[i])).collect();
     let replan = crate::plan::replan::replan(plan, order, weighed, &now);
     Some(Progress { weighed, rows, replan })
 }
 
 /// Write a change to the fill record as its next revision (creating the record on the
 /// first weighing). Returns the message for the status line.
-fn write_record(
-    doc: &mut Document,
-    ctx: &Context,
-    note: &str,
-    change: impl FnOnce(&mut Record),
-) -> Result<(), String> {
+fn write_record(doc: &mut Document, ctx: &Context, note: &str, change: impl FnOnce(&mut Record)) -> Result<(), String> {
     let now = (ctx.now)();
     match &doc.bench.record {
         None => {
@@ -205,7 +207,9 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
     let steps = doc.bench.done.len();
     let grams = match units::parse_amount(text) {
         Ok(AmountInput::Grams(g)) => g,
-        Ok(AmountInput::Moles(_)) => return keep_prompt(model, Prompt::Weighing, text, "a scale reading is a mass (g or kg)"),
+        Ok(AmountInput::Moles(_)) => {
+            return keep_prompt(model, Prompt::Weighing, text, "a scale reading is a mass (g or kg)")
+        }
         Err(e) => return keep_prompt(model, Prompt::Weighing, text, &e.to_string()),
     };
     let previous = doc.bench.record.as_ref().and_then(|o| o.record.weighings.last().cloned());
@@ -315,7 +319,8 @@ pub fn on_temperature(model: &mut Model, ctx: &Context, text: &str) {
 /// The source of the step in progress: `@NAME` or an analysis with uncertainties.
 pub fn on_source(model: &mut Model, ctx: &Context, text: &str) {
     let Some(doc) = model.doc.as_mut() else { return };
-    let lookup = Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
+    let lookup =
+        Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
     if let Err(e) = crate::record::resolve_source(text, &ctx.catalogue, &|r| lookup.resolve(r)) {
         return keep_prompt(model, Prompt::StepSource, text, &e);
     }

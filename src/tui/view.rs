@@ -425,7 +425,8 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
             let verdict = if rp.on_target {
                 format!("on target; final {} {} settled", d.pf(rp.final_pressure_pa), d.pu())
             } else {
-                let worst = rp.deviations.iter().filter(|x| !x.2).map(|x| format!("{} {:+.2}%", prog.rows[x.0].0, x.1 * 100.0));
+                let worst =
+                    rp.deviations.iter().filter(|x| !x.2).map(|x| format!("{} {:+.2}%", prog.rows[x.0].0, x.1 * 100.0));
                 format!("target can no longer be met: {}", worst.collect::<Vec<_>>().join(", "))
             };
             let style = if rp.on_target { Style::default() } else { theme.fg(Color::Red) };
