@@ -222,7 +222,7 @@ fn bad_records_are_refused_with_exit_1_and_their_place() {
         if needle.is_empty() {
             // A record whose last addition is not weighed yet certifies what is complete.
             assert!(o.status.success(), "{err}");
-            assert!(out(&o).contains("FILL IN PROGRESS: 2 of 3"), "{}", out(&o));
+            assert!(out(&o).contains("FILL IN PROGRESS: 2 additions complete (3 recorded)"), "{}", out(&o));
             continue;
         }
         assert_eq!(o.status.code(), Some(1), "{k}: {err}");
@@ -299,4 +299,39 @@ fn the_pdf_holds_every_number_of_the_text_certificate() {
         assert!(in_pdf.contains(&n), "{n} is missing from the PDF:\n{back}");
     }
     assert!(back.contains("CERTIFICATE OF PREPARATION") && back.contains("±") == text.contains('±'));
+}
+
+#[test]
+fn a_premix_made_here_brings_its_certified_composition_and_covariance() {
+    let (config, lib) = library_with_record("premix");
+    // The premix: 1 % CO in N2 made by mass in this library.
+    std::fs::write(
+        lib.join("records/PX-118-20261120.ron"),
+        r#"Record(format: 1, recipe: "co-premix", cylinder: "PX-118", scale_uncertainty: "0.005g",
+        finished: "2026-11-20T15:00:00Z",
+        weighings: ["8000.000g", "8028.010g", "10774.000g"],
+        additions: [(source: "CO=balance,CO2=<20ppm"), (source: "N2=balance,O2=<2ppm")])"#,
+    )
+    .unwrap();
+    let path = lib.join("records/FC-10-2291-20261202.ron");
+    let text = std::fs::read_to_string(&path).unwrap().replace("CO=1%±0.002%,N2=balance", "record:PX-118-20261120");
+    std::fs::write(&path, text).unwrap();
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--format", "json", "--draws", "2000"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let co = v["budget"].as_array().unwrap().iter().find(|b| b["id"] == "CO").unwrap();
+    let first = &co["contributions"][0];
+    // The premix's whole composition is one correlated input group.
+    assert_eq!(first["input"], "composition of source 1", "{co}");
+    assert!(first["sensitivity"].is_null());
+    // Its CO2 impurity reaches the blend; the premix's CO is 1.0 % by its masses.
+    let ids: Vec<&str> = v["components"].as_array().unwrap().iter().map(|c| c["id"].as_str().unwrap()).collect();
+    assert!(ids.contains(&"CO2") && ids.contains(&"O2"), "{ids:?}");
+    // A premix referring to itself is refused, not looped.
+    let own = lib.join("records/PX-118-20261120.ron");
+    let t = std::fs::read_to_string(&own).unwrap().replace("CO=balance,CO2=<20ppm", "record:PX-118-20261120");
+    std::fs::write(&own, t).unwrap();
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "100"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("nest deeper"), "{}", String::from_utf8_lossy(&o.stderr));
 }

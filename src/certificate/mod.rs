@@ -95,8 +95,10 @@ impl Certificate<'_> {
         }
     }
 
+    /// Additions not weighed yet, or an unfinished record that lacks a target gas.
     fn in_progress(&self) -> bool {
-        self.checked.complete < self.checked.additions.len()
+        let missing_target = self.targets.iter().any(|t| !self.evaluation.measurand.gases.contains(&t.gas));
+        self.checked.complete < self.checked.additions.len() || (self.record.finished.is_none() && missing_target)
     }
 
     /// The certificate as lines of at most 80 columns.
@@ -135,7 +137,7 @@ impl Certificate<'_> {
         o.push("uncertainty JCGM 100 (GUM), checked by Monte Carlo (JCGM 101)".into());
         if self.in_progress() {
             o.push(format!(
-                "FILL IN PROGRESS: {} of {} additions complete; figures so far",
+                "FILL IN PROGRESS: {} additions complete ({} recorded); figures so far, not judged",
                 self.checked.complete,
                 self.checked.additions.len()
             ));
@@ -148,6 +150,7 @@ impl Certificate<'_> {
             let (xs, us, unit) = with_uncertainty(x, COVERAGE_FACTOR * u);
             let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
             let (ts, judged) = match target {
+                Some(t) if self.in_progress() => (in_unit(t.fraction, unit), "fill in progress".to_string()),
                 Some(t) => (
                     in_unit(t.fraction, unit),
                     match t.tolerance {
