@@ -56,23 +56,28 @@ pub fn with_uncertainty(x: f64, expanded: f64) -> (String, String, &'static str)
 }
 
 fn unit_for(x: f64) -> (f64, &'static str) {
-    if x >= 0.01 {
-        (100.0, "%")
+    let unit = if x >= 0.01 {
+        "%"
     } else if x >= 1e-6 {
-        (1e6, "ppm")
+        "ppm"
     } else {
-        (1e9, "ppb")
+        "ppb"
+    };
+    (scale_of(unit), unit)
+}
+
+/// Mole fraction → the unit's number.
+fn scale_of(unit: &str) -> f64 {
+    match unit {
+        "%" => 100.0,
+        "ppm" => 1e6,
+        _ => 1e9,
     }
 }
 
 /// A fraction shown alone in a chosen unit.
 fn in_unit(x: f64, unit: &str) -> String {
-    let scale = match unit {
-        "%" => 100.0,
-        "ppm" => 1e6,
-        _ => 1e9,
-    };
-    let v = x * scale;
+    let v = x * scale_of(unit);
     let decimals = if v.abs() >= 100.0 {
         2
     } else if v.abs() >= 1.0 {

@@ -89,26 +89,21 @@ fn find(args: &CertifyArgs) -> Result<Found, Refused> {
 }
 
 /// What the library says of the record's recipe: the check of revision and hash, the
-/// recipe at that revision if it is on file.
-fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Option<Recipe>) {
+/// recipe at that revision if it is on file, and the recipe's current revision.
+fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Option<Recipe>, Option<u32>) {
     let Some(lib) = library else {
-        return (
-            RecipeCheck::NotVerified("the record is not in a library, so its recipe could not be looked up".into()),
-            None,
-        );
+        let why = "the record is not in a library, so its recipe could not be looked up";
+        return (RecipeCheck::NotVerified(why.into()), None, None);
     };
     let recipe = match lib.revision(&record.recipe, record.recipe_revision) {
         Ok(r) => r,
         Err(e) => {
-            return (
-                RecipeCheck::NotVerified(format!("recipe {} revision {}: {e}", record.recipe, record.recipe_revision)),
-                None,
-            )
+            let why = format!("recipe {} revision {}: {e}", record.recipe, record.recipe_revision);
+            return (RecipeCheck::NotVerified(why), None, None);
         }
     };
-    let text = crate::recipe::canonical::to_text(&recipe);
-    let hash = record::sha256_hex(text.as_bytes());
-    let current = lib.open(&record.recipe).map(|o| o.recipe.revision).unwrap_or(0);
+    let hash = record::sha256_hex(crate::recipe::canonical::to_text(&recipe).as_bytes());
+    let current = lib.open(&record.recipe).ok().map(|o| o.recipe.revision);
     let check = match &record.recipe_sha256 {
         None => RecipeCheck::NotVerified("the record carries no hash of the recipe".into()),
         Some(h) if *h != hash => RecipeCheck::NotVerified(format!(
@@ -117,15 +112,9 @@ fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Opt
             &hash[..12],
             h.get(..12).unwrap_or(h)
         )),
-        Some(_) if current != record.recipe_revision => {
-            return (
-                RecipeCheck::Verified,
-                Some(Recipe { change_note: Some(format!("the recipe is now at revision {current}")), ..recipe }),
-            )
-        }
         Some(_) => RecipeCheck::Verified,
     };
-    (check, Some(recipe))
+    (check, Some(recipe), current)
 }
 
 /// Everything `certify` computes, for the command and the screen.
@@ -147,7 +136,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     let sources = config::config_dir().map(|d| d.join("sources"));
     let lookup = Lookup { library, sources: sources.as_deref(), catalogue, depth: 0 };
     let checked = record.check(catalogue, &|r| lookup.resolve(r), text, origin).map_err(|e| e.to_string())?;
-    let (recipe_check, recipe) = check_recipe(record, library);
+    let (recipe_check, recipe, current_revision) = check_recipe(record, library);
     let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
     let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));
     let settings = config::load_settings()
@@ -171,10 +160,9 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
         })
         .unwrap_or_default();
     let mut remarks = Vec::new();
-    if let Some(note) =
-        recipe.as_ref().and_then(|r| r.change_note.clone()).filter(|n| n.starts_with("the recipe is now"))
-    {
-        remarks.push(format!("{note}; the record was filled to revision {}", record.recipe_revision));
+    if let Some(now) = current_revision.filter(|&r| r != record.recipe_revision) {
+        let filled = record.recipe_revision;
+        remarks.push(format!("the recipe is now at revision {now}; the record was filled to revision {filled}"));
     }
     if library.is_none() {
         remarks.push(

@@ -74,7 +74,7 @@ pub fn replan(plan: &Plan, order: &Order, done: usize, amounts_mol: &[f64]) -> R
         }
         let pressure_after_pa =
             plan.fluid.pressure(plan.fill_temperature_k, plan.volume_m3, &cumulative).map_err(|e| e.to_string())?;
-        let molar: f64 = (0..n_gas).map(|i| columns[j][i] * plan.fluid.molar_mass(&unit(n_gas, i))).sum();
+        let molar = plan.fluid.molar_mass(&columns[j]);
         steps.push(Replanned {
             source: s.source.clone(),
             add_amount_mol: add[j],
@@ -102,12 +102,6 @@ pub fn replan(plan: &Plan, order: &Order, done: usize, amounts_mol: &[f64]) -> R
         .collect();
     let on_target = deviations.iter().all(|d| d.2);
     Ok(Replan { steps, final_fractions, final_pressure_pa, deviations, on_target })
-}
-
-fn unit(n: usize, i: usize) -> Vec<f64> {
-    let mut v = vec![0.0; n];
-    v[i] = 1.0;
-    v
 }
 
 #[cfg(test)]

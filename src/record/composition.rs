@@ -38,12 +38,12 @@ pub struct Measurand {
     /// Catalogue indices of the gases of the blend, in order of first appearance.
     pub gases: Vec<usize>,
     pub inputs: Inputs,
-    method: Shape_,
+    method: Kind,
     sources: Vec<SourceTerms>,
 }
 
 #[derive(Debug, Clone)]
-enum Shape_ {
+enum Kind {
     Gravimetric {
         /// Input indices of the weighings used.
         weighings: Vec<usize>,
@@ -190,7 +190,7 @@ impl Measurand {
                     }
                     formulas.push(f);
                 }
-                Ok(Measurand { gases, inputs, method: Shape_::Gravimetric { weighings, formulas }, sources })
+                Ok(Measurand { gases, inputs, method: Kind::Gravimetric { weighings, formulas }, sources })
             }
             super::Method::Manometric => {
                 let volume_m3 = volume_m3.ok_or_else(|| {
@@ -230,12 +230,8 @@ impl Measurand {
                     model_shift: vec![0.0; gases.len()],
                     furthest: None,
                 };
-                let mut me = Measurand {
-                    gases: gases.clone(),
-                    inputs,
-                    method: Shape_::Manometric(Box::new(m.clone())),
-                    sources,
-                };
+                let mut me =
+                    Measurand { gases: gases.clone(), inputs, method: Kind::Manometric(Box::new(m.clone())), sources };
                 let base = me.values()?;
                 // The model spread: the composition under each other model; the one furthest
                 // away (largest relative change of any component) bounds a rectangular input.
@@ -261,22 +257,17 @@ impl Measurand {
                         Shape::Rectangular,
                     ));
                 }
-                me.method = Shape_::Manometric(Box::new(m));
+                me.method = Kind::Manometric(Box::new(m));
                 Ok(me)
             }
         }
     }
 
-    /// Gravimetric or manometric.
-    pub fn is_gravimetric(&self) -> bool {
-        matches!(self.method, Shape_::Gravimetric { .. })
-    }
-
     /// The model behind a manometric composition and the one furthest from it.
     pub fn models(&self) -> Option<(Model, Option<Model>)> {
         match &self.method {
-            Shape_::Manometric(m) => Some((m.fluid.model(), m.furthest.map(|(o, _)| o))),
-            Shape_::Gravimetric { .. } => None,
+            Kind::Manometric(m) => Some((m.fluid.model(), m.furthest.map(|(o, _)| o))),
+            Kind::Gravimetric { .. } => None,
         }
     }
 
@@ -289,8 +280,8 @@ impl Measurand {
     /// measurand has no value there.
     pub fn evaluate(&self, x: &[f64]) -> Option<Vec<f64>> {
         match &self.method {
-            Shape_::Gravimetric { weighings, formulas } => Some(self.gravimetric(x, weighings, formulas)),
-            Shape_::Manometric(m) => {
+            Kind::Gravimetric { weighings, formulas } => Some(self.gravimetric(x, weighings, formulas)),
+            Kind::Manometric(m) => {
                 let mut y = self.manometric_values(m, x).ok()?;
                 if let Some(j) = m.model_input {
                     for (yi, s) in y.iter_mut().zip(&m.model_shift) {
@@ -306,10 +297,8 @@ impl Measurand {
     pub fn amounts_mol(&self) -> Vec<f64> {
         let x = self.inputs.values();
         match &self.method {
-            Shape_::Gravimetric { weighings, formulas } => self.gravimetric_amounts(&x, weighings, formulas),
-            Shape_::Manometric(m) => {
-                self.manometric_amounts(m, &x).unwrap_or_else(|_| vec![f64::NAN; self.gases.len()])
-            }
+            Kind::Gravimetric { weighings, formulas } => self.gravimetric_amounts(&x, weighings, formulas),
+            Kind::Manometric(m) => self.manometric_amounts(m, &x).unwrap_or_else(|_| vec![f64::NAN; self.gases.len()]),
         }
     }
 
@@ -317,8 +306,8 @@ impl Measurand {
     pub fn duals(&self) -> Vec<Dual> {
         let x = self.inputs.duals();
         match &self.method {
-            Shape_::Gravimetric { weighings, formulas } => self.gravimetric(&x, weighings, formulas),
-            Shape_::Manometric(m) => self.manometric_duals(m, &x).unwrap_or_else(|_| {
+            Kind::Gravimetric { weighings, formulas } => self.gravimetric(&x, weighings, formulas),
+            Kind::Manometric(m) => self.manometric_duals(m, &x).unwrap_or_else(|_| {
                 let nan = x[0].lift(f64::NAN);
                 vec![nan; self.gases.len()]
             }),
@@ -536,8 +525,7 @@ mod tests {
         let d = m.duals();
         assert!((d[0].d[0] - 1e-7).abs() < 1e-13, "{:?}", d[0].d);
         assert!((d[0].d[2] + 3e-8).abs() < 1e-13, "{:?}", d[0].d);
-        // No sensitivity to a temperature that is the same for both readings... only
-        // through the difference: ∂x/∂T1 = −x/T1 · (P2-ratio) is not zero; check its sign.
-        assert!(d[0].d[1] < 0.0);
+        // A warmer first reading means less CO2 for the same pressure: ∂x/∂T1 = −x/T1.
+        assert!((d[0].d[1] + 0.3 / 293.15).abs() < 1e-9, "{:?}", d[0].d);
     }
 }

@@ -404,7 +404,6 @@ pub fn evaluate(
     seed: u64,
 ) -> Result<Evaluation, String> {
     let measurand = composition::Measurand::of(checked, catalogue, model, volume_m3, others)?;
-    measurand.values()?;
     let gum = uncertainty::gum(&measurand.inputs, |_| measurand.duals());
     if gum.values.iter().chain(&gum.u).any(|v| !v.is_finite()) {
         return Err("the composition has no finite value or uncertainty at these readings".into());

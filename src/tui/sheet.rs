@@ -50,10 +50,9 @@ pub fn on_key(model: &mut Model, key: Key) {
             };
         }
         Key::Char('l') if steps > 0 => {
-            let names = ctx_free_source_hint(doc);
+            let now = chosen_source_hint(doc);
             model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
-            model.status =
-                format!("source of the next addition: @NAME from the source library{names}, or its analysis");
+            model.status = format!("source of the next addition: @NAME from the source library{now}, or its analysis");
         }
         Key::Char('c') => {
             doc.bench.measured_k = None;
@@ -64,7 +63,7 @@ pub fn on_key(model: &mut Model, key: Key) {
     }
 }
 
-fn ctx_free_source_hint(doc: &Document) -> String {
+fn chosen_source_hint(doc: &Document) -> String {
     doc.bench.chosen_source.as_ref().map(|s| format!(" (now {s})")).unwrap_or_default()
 }
 
