@@ -2,6 +2,8 @@
 //! the Monte Carlo check, the plan fed back through the record, and `certify` as a user
 //! runs it (text, JSON, PDF read back, bad records, the recipe's hash).
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
@@ -125,12 +127,7 @@ fn fresh(tag: &str) -> PathBuf {
 }
 
 fn run(config: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_fillwright"))
-        .args(args)
-        .env("FILLWRIGHT_CONFIG", config)
-        .env_remove("FILLWRIGHT_LIBRARY")
-        .output()
-        .unwrap()
+    common::run_in(config, args)
 }
 
 fn out(o: &Output) -> String {

@@ -8,10 +8,15 @@ use std::process::{Command, Output};
 /// Run the program with `args` and an empty config folder of its own (named by `tag`), so
 /// that no user library, settings or catalogue of the machine takes part.
 pub fn run_fillwright(tag: &str, args: &[&str]) -> Output {
-    let config = std::env::temp_dir().join(format!("fillwright-{tag}-empty-{}", std::process::id()));
+    run_in(&std::env::temp_dir().join(format!("fillwright-{tag}-empty-{}", std::process::id())), args)
+}
+
+/// Run the program with `args` and the config folder `config` (a library, settings and
+/// sources of the test's own).
+pub fn run_in(config: &std::path::Path, args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_fillwright"))
         .args(args)
-        .env("FILLWRIGHT_CONFIG", &config)
+        .env("FILLWRIGHT_CONFIG", config)
         .env_remove("FILLWRIGHT_LIBRARY")
         .env_remove("RUST_BACKTRACE")
         .output()
