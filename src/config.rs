@@ -61,8 +61,11 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
     let dir = library_dir(library);
     if let Some(dir) = &dir {
         let file = dir.join(format!("{name}.ron"));
-        if file.is_file() {
-            return read_limited(&file).map(|t| (t, file.display().to_string()));
+        if std::fs::symlink_metadata(&file).is_ok() {
+            return crate::library::Library::existing(dir)
+                .read_text(name)
+                .map(|(t, path)| (t, path.display().to_string()))
+                .map_err(|e| e.to_string());
         }
     }
     if let Some(text) = crate::recipe::demo::find(name) {

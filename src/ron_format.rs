@@ -39,9 +39,42 @@ pub fn clip(text: &str, width: usize) -> String {
     }
 }
 
+/// A message with every overlong word in it (a pasted value, a runaway number) shortened:
+/// its beginning and end stay, the middle is replaced by how many characters were left
+/// out. Messages then stay readable when a file or an option holds a huge value.
+pub fn shorten(message: &str) -> String {
+    const KEEP: usize = 30;
+    let mut out = String::with_capacity(message.len().min(4096));
+    for (i, word) in message.split(' ').enumerate() {
+        if i > 0 {
+            out.push(' ');
+        }
+        let n = word.chars().count();
+        if n <= 2 * KEEP + 20 {
+            out.push_str(word);
+        } else {
+            out.extend(word.chars().take(KEEP));
+            out.push_str(&format!("…[{} characters left out]…", n - 2 * KEEP));
+            out.extend(word.chars().skip(n - KEEP));
+        }
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn long_messages_are_shortened_with_both_ends_kept() {
+        let long = format!("--volume: \"{}\" is not a number", "9".repeat(100_000));
+        let short = shorten(&long);
+        assert!(short.chars().count() < 200, "{short}");
+        assert!(short.starts_with("--volume: \"999"));
+        assert!(short.ends_with("is not a number"));
+        assert!(short.contains("characters left out"));
+        assert_eq!(shorten("short message"), "short message");
+    }
 
     #[test]
     fn places_and_clips() {

@@ -37,6 +37,9 @@ pub struct CheckArgs {
     pub common: Common,
 }
 
+/// One recipe's screening: its origin, and the model and checks, or why it was not screened.
+type Screened = (String, Result<(Model, Vec<Check>), String>);
+
 pub fn run(args: &CheckArgs) -> Result<(), Failure> {
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let settings = config::load_settings().map_err(Refused)?;
@@ -47,21 +50,33 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         min_temperature_k: temp(&args.min_temp, "min-temp", settings.min_storage_temperature_k)?,
         max_temperature_k: temp(&args.max_temp, "max-temp", settings.max_service_temperature_k)?,
     };
-    let mut orders: Vec<(String, Order)> = Vec::new();
+    if conditions.min_temperature_k >= conditions.max_temperature_k {
+        return Err(Refused(format!(
+            "--min-temp {} is not below --max-temp {}: the lowest storage temperature must be below the highest \
+             service temperature",
+            settings.shown.tf(conditions.min_temperature_k),
+            settings.shown.tf(conditions.max_temperature_k)
+        ))
+        .into());
+    }
+    // Every recipe named is screened; one that cannot be read or planned is reported with
+    // its error and the others still run.
+    let mut orders: Vec<(String, Result<Order, String>)> = Vec::new();
     if args.given.mix.is_some() {
         let order = args.given.order(args.common.ambient_pa(&settings)?, &catalogue)?;
-        orders.push((order.name.clone(), order));
+        orders.push((order.name.clone(), Ok(order)));
     } else if args.recipes.is_empty() {
         return Err(Failure::Usage("check needs recipes or --mix with --volume and --pressure".into()));
     }
     for name in &args.recipes {
         let path = Path::new(name);
-        let names: Vec<String> = if path.is_dir() {
+        let names: Vec<String> = if std::fs::symlink_metadata(path).is_ok_and(|m| m.is_dir()) {
             let mut files: Vec<String> = std::fs::read_dir(path)
                 .map_err(|e| Refused(format!("{name}: {e}")))?
                 .flatten()
                 .map(|e| e.path())
                 .filter(|p| p.extension().and_then(|x| x.to_str()) == Some("ron"))
+                .filter(|p| !p.file_name().and_then(|f| f.to_str()).is_some_and(|f| f.starts_with('.')))
                 .map(|p| p.display().to_string())
                 .collect();
             files.sort();
@@ -70,21 +85,29 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
             vec![name.clone()]
         };
         for n in names {
-            let (text, origin) = config::recipe_text(&n, args.library.as_deref()).map_err(Refused)?;
-            orders.push((origin.clone(), Recipe::load(&text, &origin, &catalogue)?));
+            let loaded = config::recipe_text(&n, args.library.as_deref()).and_then(|(text, origin)| {
+                Recipe::load(&text, &origin, &catalogue).map(|o| (origin, o)).map_err(|e| e.to_string())
+            });
+            match loaded {
+                Ok((origin, order)) => orders.push((origin, Ok(order))),
+                Err(e) => orders.push((n, Err(e))),
+            }
         }
     }
     // --working-pressure and --test-pressure check a recipe against another cylinder rating.
-    for (origin, order) in orders.iter_mut().filter(|_| args.given.mix.is_none()) {
-        let (working, test) = args.given.ratings(order.ambient_pa)?;
-        if let Some(p) = working {
-            order.working_pressure_pa = p;
-        }
-        if let Some(p) = test {
-            order.test_pressure_pa = p;
-        }
-        if order.test_pressure_pa < order.working_pressure_pa {
-            return Err(Refused(format!("{origin}: the test pressure is below the working pressure")).into());
+    if args.given.mix.is_none() {
+        for (origin, order) in &mut orders {
+            let Ok(o) = order else { continue };
+            let (working, test) = args.given.ratings(o.ambient_pa)?;
+            if let Some(p) = working {
+                o.working_pressure_pa = p;
+            }
+            if let Some(p) = test {
+                o.test_pressure_pa = p;
+            }
+            if o.test_pressure_pa < o.working_pressure_pa {
+                *order = Err(format!("{origin}: the test pressure is below the working pressure"));
+            }
         }
     }
     let options = PlanOptions {
@@ -93,24 +116,52 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         resolutions: plan::Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
         ..PlanOptions::default()
     };
-    let mut results: Vec<(String, Model, Vec<Check>)> = Vec::new();
-    for (origin, order) in &orders {
-        let p = plan::plan(order, &catalogue, &options).map_err(|e| Refused(format!("{origin}: {e}")))?;
-        results.push((origin.clone(), p.model, checks::screen(&p, order, &catalogue, &conditions)));
-    }
+    let results: Vec<Screened> = orders
+        .iter()
+        .map(|(origin, order)| {
+            let screened = order.as_ref().map_err(Clone::clone).and_then(|order| {
+                let p = plan::plan(order, &catalogue, &options).map_err(|e| format!("{origin}: {e}"))?;
+                Ok((p.model, checks::screen(&p, order, &catalogue, &conditions)))
+            });
+            (origin.clone(), screened)
+        })
+        .collect();
     match args.common.format {
         Format::Json => print_json(&json!({
             "checks": results
                 .iter()
+                .filter_map(|(origin, r)| r.as_ref().ok().map(|(model, checks)| (origin, model, checks)))
                 .flat_map(|(origin, model, checks)| checks.iter().map(move |c| check_json(origin, *model, c)))
+                .collect::<Vec<_>>(),
+            "unreadable": results
+                .iter()
+                .filter_map(|(origin, r)| r.as_ref().err().map(|e| json!({"recipe": origin, "error": e})))
                 .collect::<Vec<_>>(),
             "cautions": CAUTIONS,
         })),
         Format::Text | Format::Csv => print_text(&results, &conditions, &settings.shown),
     }
-    let worst = results.iter().map(|(_, _, c)| checks::worst(c)).max().unwrap_or(Severity::Ok);
+    let worst = results
+        .iter()
+        .filter_map(|(_, r)| r.as_ref().ok())
+        .map(|(_, c)| checks::worst(c))
+        .max()
+        .unwrap_or(Severity::Ok);
+    let unreadable = results.iter().filter(|(_, r)| r.is_err()).count();
+    // The worst status wins: a finding at stop (3), else a recipe that could not be
+    // screened (1), else 0.
     if worst == Severity::Stop {
         return Err(Failure::Findings);
+    }
+    if let [(_, Err(e))] = &results[..] {
+        return Err(Refused(e.clone()).into());
+    }
+    if unreadable > 0 {
+        return Err(Refused(format!(
+            "{unreadable} of {} recipes could not be screened (each is named above with its error)",
+            results.len()
+        ))
+        .into());
     }
     Ok(())
 }
@@ -132,8 +183,17 @@ fn check_json(origin: &str, model: Model, c: &Check) -> Value {
     v
 }
 
-fn print_text(results: &[(String, Model, Vec<Check>)], conditions: &Conditions, d: &Shown) {
-    for (origin, model, list) in results {
+fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
+    for (origin, result) in results {
+        let (model, list) = match result {
+            Ok((model, list)) => (model, list),
+            Err(e) => {
+                println!("{origin}: NOT SCREENED - cannot be read or planned");
+                println!("  {}", crate::ron_format::shorten(e));
+                println!();
+                continue;
+            }
+        };
         let worst = checks::worst(list);
         println!(
             "{}: {}  (plan {}; storage down to {}, service up to {})",

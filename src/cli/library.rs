@@ -68,6 +68,7 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
                 s.revision,
                 clip(&s.title, 29)
             ),
+            Err(err) if err.starts_with("skipped:") => println!("{:<22} {err}", clip(&e.name, 22)),
             Err(err) => println!("{:<22} cannot be read: {err}", clip(&e.name, 22)),
         }
     }
@@ -97,8 +98,7 @@ pub struct HistoryArgs {
 pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
     if let Some(rev) = args.restore {
-        report_save(&args.name, lib.restore(&args.name, rev, &clock::now_utc())?);
-        return Ok(());
+        return report_save(&args.name, lib.restore(&args.name, rev, &clock::now_utc())?);
     }
     if let Some(pair) = &args.diff {
         let (a, b) = (lib.revision(&args.name, pair[0])?, lib.revision(&args.name, pair[1])?);
@@ -150,16 +150,21 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     Ok(())
 }
 
-fn report_save(name: &str, saved: Saved) {
+/// Say what a save did; a save whose git commit failed is kept and reported with its own
+/// exit status (4).
+fn report_save(name: &str, saved: Saved) -> Result<(), Failure> {
     match saved {
         Saved::Unchanged { revision } => println!("{name}: unchanged, still revision {revision}"),
         Saved::Written { revision, changes, git } => {
             println!("{name}: saved revision {revision} ({})", changes.join("; "));
             if let Some(Err(e)) = git {
-                eprintln!("fillwright: saved, but not committed: {e}");
+                return Err(Failure::NotCommitted(format!(
+                    "{name} revision {revision} is saved in the library, but not committed: {e}"
+                )));
             }
         }
     }
+    Ok(())
 }
 
 #[derive(Debug, Args)]
@@ -212,8 +217,7 @@ pub fn import(args: &ImportArgs) -> Result<(), Failure> {
         Some(n) => n.clone(),
         None => args.file.file_stem().and_then(|s| s.to_str()).unwrap_or_default().to_string(),
     };
-    report_save(&name, lib.import(&args.file, &name, &clock::now_utc())?);
-    Ok(())
+    report_save(&name, lib.import(&args.file, &name, &clock::now_utc())?)
 }
 
 #[derive(Debug, Args)]
@@ -241,8 +245,7 @@ pub struct TwoNames {
 }
 
 pub fn copy(args: &TwoNames) -> Result<(), Failure> {
-    report_save(&args.to, args.place.open()?.duplicate(&args.from, &args.to, &clock::now_utc())?);
-    Ok(())
+    report_save(&args.to, args.place.open()?.duplicate(&args.from, &args.to, &clock::now_utc())?)
 }
 
 pub fn rename(args: &TwoNames) -> Result<(), Failure> {

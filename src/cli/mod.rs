@@ -150,6 +150,8 @@ pub enum Failure {
     Usage(String),
     /// A screening finding at the highest severity: exit status 3 (the report is printed).
     Findings,
+    /// The save is done and kept, but its git commit failed: exit status 4.
+    NotCommitted(String),
 }
 
 impl<T: Into<Refused>> From<T> for Failure {
@@ -192,7 +194,7 @@ pub fn main() -> ExitCode {
     match result {
         Ok(()) => ExitCode::SUCCESS,
         Err(Failure::Refused(Refused(message))) => {
-            eprintln!("fillwright: {message}");
+            eprintln!("fillwright: {}", crate::ron_format::shorten(&message));
             ExitCode::from(1)
         }
         Err(Failure::Usage(message)) => {
@@ -200,6 +202,10 @@ pub fn main() -> ExitCode {
             ExitCode::from(2)
         }
         Err(Failure::Findings) => ExitCode::from(3),
+        Err(Failure::NotCommitted(message)) => {
+            eprintln!("fillwright: {message}");
+            ExitCode::from(4)
+        }
     }
 }
 

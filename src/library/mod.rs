@@ -37,6 +37,10 @@ pub enum LibraryError {
     NoRevision { name: String, revision: u32, have: String },
     #[error("{path}: {source}")]
     Io { path: PathBuf, source: std::io::Error },
+    #[error("{path}: {why}")]
+    Unsafe { path: PathBuf, why: String },
+    #[error("recipe name {name:?} looks the same as the existing recipe {existing:?} (it differs only by {how}); choose another name")]
+    LookAlike { name: String, existing: String, how: &'static str },
 }
 
 fn io(path: &Path) -> impl FnOnce(std::io::Error) -> LibraryError + '_ {
@@ -67,6 +71,11 @@ pub fn check_name(name: &str) -> Result<(), LibraryError> {
     if name.chars().any(|c| c.is_control()) {
         return bad("it contains a control character");
     }
+    if name.chars().any(is_invisible) {
+        return bad(
+            "it contains an invisible or text-direction character (such as a zero-width space or a right-to-left mark)",
+        );
+    }
     if name.contains([':', '*', '?', '"', '<', '>', '|']) {
         return bad("it contains one of : * ? \" < > |");
     }
@@ -78,6 +87,23 @@ pub fn check_name(name: &str) -> Result<(), LibraryError> {
         return bad("it is a reserved device name");
     }
     Ok(())
+}
+
+/// Characters that show nothing or change the direction of the text around them: a name
+/// holding one reads the same as, or differently from, what it is (Unicode's
+/// Default_Ignorable_Code_Point set, the bidirectional controls, and the blank fillers).
+pub fn is_invisible(c: char) -> bool {
+    matches!(c as u32,
+        0x00AD | 0x034F | 0x061C | 0x115F | 0x1160 | 0x17B4 | 0x17B5 | 0x180B..=0x180F
+        | 0x200B..=0x200F | 0x202A..=0x202E | 0x2060..=0x206F | 0x3164 | 0xFE00..=0xFE0F
+        | 0xFEFF | 0xFFA0 | 0xFFF0..=0xFFF8 | 0x1BCA0..=0x1BCA3 | 0x1D173..=0x1D17A
+        | 0xE0000..=0xE0FFF)
+}
+
+/// What two names that read the same have in common: lower case, invisible characters
+/// dropped.
+fn folded(name: &str) -> String {
+    name.chars().filter(|c| !is_invisible(*c)).flat_map(char::to_lowercase).collect()
 }
 
 /// A fingerprint of a file's bytes (FNV-1a, 64 bit) with its length, to notice a change
@@ -172,6 +198,9 @@ pub enum OnConflict {
     Overwrite,
 }
 
+/// An entry of the library folder that is not read as a recipe: its name and why.
+type Skipped = (String, String);
+
 /// A library folder.
 #[derive(Debug, Clone)]
 pub struct Library {
@@ -187,6 +216,11 @@ impl Library {
         Ok(Library { dir: dir.to_path_buf(), git_commit: false })
     }
 
+    /// The library at `dir` as it is, creating nothing (for reading).
+    pub fn existing(dir: &Path) -> Library {
+        Library { dir: dir.to_path_buf(), git_commit: false }
+    }
+
     pub fn dir(&self) -> &Path {
         &self.dir
     }
@@ -194,10 +228,6 @@ impl Library {
     fn path_of(&self, name: &str) -> Result<PathBuf, LibraryError> {
         check_name(name)?;
         Ok(self.dir.join(format!("{name}.ron")))
-    }
-
-    fn history_dir(&self, name: &str) -> PathBuf {
-        self.dir.join(".history").join(name)
     }
 
     /// Copy the demo recipes in when the library has no recipe at all; returns how many.
@@ -213,53 +243,165 @@ impl Library {
 
     /// The recipe names, sorted.
     pub fn names(&self) -> Result<Vec<String>, LibraryError> {
+        Ok(self.scan()?.0)
+    }
+
+    /// The recipe names, and the `.ron` entries that are not recipes with why they were
+    /// skipped (a folder, a FIFO, a link out of the library, a name not allowed), sorted.
+    fn scan(&self) -> Result<(Vec<String>, Vec<Skipped>), LibraryError> {
         let mut names = Vec::new();
+        let mut skipped = Vec::new();
         for entry in std::fs::read_dir(&self.dir).map_err(io(&self.dir))? {
             let entry = entry.map_err(io(&self.dir))?;
             let path = entry.path();
-            if path.extension().and_then(|e| e.to_str()) != Some("ron") || !path.is_file() {
+            if path.extension().and_then(|e| e.to_str()) != Some("ron") {
                 continue;
             }
-            if let Some(stem) = path.file_stem().and_then(|s| s.to_str()) {
-                if check_name(stem).is_ok() {
-                    names.push(stem.to_string());
-                }
+            let Some(stem) = path.file_stem().and_then(|s| s.to_str()) else {
+                skipped.push((path.display().to_string(), "the name is not valid UTF-8".to_string()));
+                continue;
+            };
+            if stem.starts_with('.') {
+                continue;
+            }
+            if let Err(e) = check_name(stem) {
+                let why = match e {
+                    LibraryError::BadName { why, .. } => why.to_string(),
+                    other => other.to_string(),
+                };
+                skipped.push((stem.to_string(), format!("skipped: the name is not allowed ({why})")));
+                continue;
+            }
+            match self.readable(&path) {
+                Ok(()) => names.push(stem.to_string()),
+                Err(why) => skipped.push((stem.to_string(), format!("skipped: {why}"))),
             }
         }
         names.sort();
-        Ok(names)
+        skipped.sort();
+        Ok((names, skipped))
     }
 
-    /// Every recipe with its summary; a file that does not parse is listed with its error.
+    /// Whether `path` (in the library folder) may be read as a recipe: a regular file, or a
+    /// symbolic link to a regular file inside the library. Says why not.
+    fn readable(&self, path: &Path) -> Result<(), String> {
+        let meta = std::fs::symlink_metadata(path).map_err(|e| e.to_string())?;
+        if meta.file_type().is_symlink() {
+            let target = std::fs::canonicalize(path).map_err(|_| "a symbolic link to nothing".to_string())?;
+            let home = std::fs::canonicalize(&self.dir).unwrap_or_else(|_| self.dir.clone());
+            if !target.starts_with(&home) {
+                return Err("a symbolic link to a file outside the library; only files inside it are read".into());
+            }
+            let meta = std::fs::metadata(&target).map_err(|e| e.to_string())?;
+            return kind_allowed(&meta);
+        }
+        kind_allowed(&meta)
+    }
+
+    /// Every recipe with its summary; a file that does not parse is listed with its error,
+    /// and an entry that is not a recipe file with why it was skipped.
     pub fn list(&self) -> Result<Vec<Entry>, LibraryError> {
-        Ok(self
-            .names()?
+        let (names, skipped) = self.scan()?;
+        let mut entries: Vec<Entry> = names
             .into_iter()
             .map(|name| {
                 let path = self.dir.join(format!("{name}.ron"));
                 let summary = self.open(&name).map(|o| Summary::of(&o.recipe)).map_err(|e| e.to_string());
                 Entry { name, path, summary }
             })
-            .collect())
+            .collect();
+        entries.extend(skipped.into_iter().map(|(name, why)| Entry {
+            path: self.dir.join(format!("{name}.ron")),
+            name,
+            summary: Err(why),
+        }));
+        entries.sort_by(|a, b| a.name.cmp(&b.name));
+        Ok(entries)
+    }
+
+    /// A folder of the library's own (`.history/NAME`, `.trash`, `.locks`, `records` …),
+    /// created where missing. Refused when it, or a folder on the way to it, is a symbolic
+    /// link or not a folder: nothing is ever written outside the library through one.
+    pub(crate) fn own_dir(&self, parts: &[&str]) -> Result<PathBuf, LibraryError> {
+        let mut dir = self.dir.clone();
+        for part in parts {
+            dir.push(part);
+            match std::fs::symlink_metadata(&dir) {
+                Ok(m) if m.file_type().is_symlink() => {
+                    return Err(LibraryError::Unsafe {
+                        path: dir,
+                        why: "is a symbolic link; the library writes only into its own folders. Replace the link \
+                              with a folder"
+                            .into(),
+                    })
+                }
+                Ok(m) if !m.is_dir() => {
+                    return Err(LibraryError::Unsafe { path: dir, why: "is in the way: it should be a folder".into() })
+                }
+                Ok(_) => {}
+                Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+                    std::fs::create_dir(&dir)
+                        .or_else(|e| if dir.is_dir() { Ok(()) } else { Err(e) })
+                        .map_err(io(&dir))?;
+                }
+                Err(e) => return Err(LibraryError::Io { path: dir, source: e }),
+            }
+        }
+        Ok(dir)
+    }
+
+    /// Hold the lock of `key` (a recipe name, or `record.ID`) until the guard is dropped:
+    /// every change to that recipe (save, restore, import, rename, delete), from any
+    /// screen or command, happens one at a time.
+    pub(crate) fn lock(&self, key: &str) -> Result<Lock, LibraryError> {
+        let dir = self.own_dir(&[".locks"])?;
+        Lock::take(&dir.join(format!("{key}.lock")))
+    }
+
+    /// Refuse a new name that reads the same as an existing recipe: it differs only by
+    /// case (two such files cannot live side by side on a case-insensitive volume, nor in
+    /// a git repository checked out on one) or by invisible characters.
+    fn check_new_name(&self, name: &str) -> Result<(), LibraryError> {
+        let wanted = folded(name);
+        for entry in std::fs::read_dir(&self.dir).map_err(io(&self.dir))?.flatten() {
+            let file = entry.file_name();
+            let Some(stem) = file.to_str().and_then(|f| f.strip_suffix(".ron")) else {
+                continue;
+            };
+            if stem != name && folded(stem) == wanted {
+                let how = if stem.chars().any(is_invisible) { "invisible characters" } else { "upper and lower case" };
+                return Err(LibraryError::LookAlike { name: name.to_string(), existing: stem.to_string(), how });
+            }
+        }
+        Ok(())
     }
 
     /// Read a recipe (parsed, not yet resolved against the catalogue).
     pub fn open(&self, name: &str) -> Result<Opened, LibraryError> {
-        let path = self.path_of(name)?;
-        let text = read_limited(&path).map_err(|e| match e {
-            LibraryError::Io { source, .. } if source.kind() == std::io::ErrorKind::NotFound => {
-                LibraryError::NotFound(name.to_string())
-            }
-            other => other,
-        })?;
+        let (text, path) = self.read_text(name)?;
         let recipe = Recipe::parse(&text, &path.display().to_string())?;
         Ok(Opened { name: name.to_string(), fingerprint: Fingerprint::of(text.as_bytes()), path, text, recipe })
+    }
+
+    /// A recipe file's text and path, read only where it is a regular file in the library
+    /// (or a link to one inside it).
+    pub fn read_text(&self, name: &str) -> Result<(String, PathBuf), LibraryError> {
+        let path = self.path_of(name)?;
+        if std::fs::symlink_metadata(&path).is_err() {
+            return Err(LibraryError::NotFound(name.to_string()));
+        }
+        self.readable(&path)
+            .map_err(|why| LibraryError::Unsafe { path: path.clone(), why: format!("{why}; not read") })?;
+        let text = read_limited(&path)?;
+        Ok((text, path))
     }
 
     /// Save `recipe` as `name`. `opened` is what the editor started from (None for a new
     /// recipe: an existing file of that name is then refused). Unchanged content writes
     /// nothing; changed content becomes the next revision, stamped with `now` and `note`,
-    /// and the previous file goes to the history folder.
+    /// and the previous file goes to the history folder. The recipe's lock is held from
+    /// the look at the file on disk to the rename, so of two saves at once the second sees
+    /// the first.
     pub fn save(
         &self,
         name: &str,
@@ -270,15 +412,41 @@ impl Library {
         on_conflict: OnConflict,
     ) -> Result<Saved, LibraryError> {
         let path = self.path_of(name)?;
-        let current = match std::fs::metadata(&path) {
-            Ok(_) => Some(read_limited(&path)?),
+        let _lock = self.lock(name)?;
+        self.save_locked(name, &path, recipe, opened, note, now, on_conflict)
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn save_locked(
+        &self,
+        name: &str,
+        path: &Path,
+        recipe: &Recipe,
+        opened: Option<&Opened>,
+        note: Option<&str>,
+        now: &str,
+        on_conflict: OnConflict,
+    ) -> Result<Saved, LibraryError> {
+        let current = match std::fs::symlink_metadata(path) {
+            Ok(m) if m.file_type().is_symlink() => {
+                return Err(LibraryError::Unsafe {
+                    path: path.to_path_buf(),
+                    why: "is a symbolic link; the library does not write through or over links. Save under \
+                          another name"
+                        .into(),
+                })
+            }
+            Ok(_) => Some(read_limited(path)?),
             Err(_) => None,
         };
+        if current.is_none() {
+            self.check_new_name(name)?;
+        }
         let previous_recipe = match (&current, opened) {
             (None, _) => None,
             (Some(text), Some(o)) => {
                 if Fingerprint::of(text.as_bytes()) != o.fingerprint && on_conflict == OnConflict::Refuse {
-                    return Err(LibraryError::ChangedOnDisk(path));
+                    return Err(LibraryError::ChangedOnDisk(path.to_path_buf()));
                 }
                 Recipe::parse(text, &path.display().to_string()).ok()
             }
@@ -299,8 +467,7 @@ impl Library {
         };
         // Keep the file being replaced, whatever it holds.
         if let Some(text) = &current {
-            let dir = self.history_dir(name);
-            std::fs::create_dir_all(&dir).map_err(io(&dir))?;
+            let dir = self.own_dir(&[".history", name])?;
             let kept = dir.join(format!("{:04}.ron", previous_recipe.as_ref().map_or(0, |p| p.revision)));
             atomic::write(&kept, text.as_bytes()).map_err(io(&kept))?;
         }
@@ -312,10 +479,10 @@ impl Library {
             ..recipe.clone()
         };
         let text = canonical::to_text(&new);
-        atomic::write(&path, text.as_bytes()).map_err(io(&path))?;
+        atomic::write(path, text.as_bytes()).map_err(io(path))?;
         let git = self.git_commit.then(|| {
             let message = format!("{name} rev {}: {}", new.revision, new.change_note.clone().unwrap_or_default());
-            git::commit(&self.dir, &path, &message)
+            git::commit(&self.dir, path, &message)
         });
         Ok(Saved::Written { revision: new.revision, changes: change_list, git })
     }
@@ -335,15 +502,22 @@ impl Library {
     /// Rename a recipe and its history.
     pub fn rename(&self, from: &str, to: &str) -> Result<(), LibraryError> {
         let (src, dst) = (self.path_of(from)?, self.path_of(to)?);
-        if !src.is_file() {
+        // Both locks, always in the same order, so two renames cannot wait on each other.
+        let (first, second) = if from <= to { (from, to) } else { (to, from) };
+        let _a = self.lock(first)?;
+        let _b = (first != second).then(|| self.lock(second)).transpose()?;
+        if std::fs::symlink_metadata(&src).map_or(true, |m| !m.is_file()) {
             return Err(LibraryError::NotFound(from.to_string()));
         }
-        if dst.exists() {
+        if std::fs::symlink_metadata(&dst).is_ok() {
             return Err(LibraryError::Exists(to.to_string()));
         }
+        self.check_new_name(to)?;
         std::fs::rename(&src, &dst).map_err(io(&src))?;
-        let (h_src, h_dst) = (self.history_dir(from), self.history_dir(to));
-        if h_src.is_dir() && !h_dst.exists() {
+        let history = self.own_dir(&[".history"])?;
+        let (h_src, h_dst) = (history.join(from), history.join(to));
+        let src_is_dir = std::fs::symlink_metadata(&h_src).is_ok_and(|m| m.is_dir());
+        if src_is_dir && std::fs::symlink_metadata(&h_dst).is_err() {
             std::fs::rename(&h_src, &h_dst).map_err(io(&h_src))?;
         }
         Ok(())
@@ -352,11 +526,11 @@ impl Library {
     /// Move a recipe to `.trash/` (recoverable); returns where it went.
     pub fn delete(&self, name: &str, now: &str) -> Result<PathBuf, LibraryError> {
         let src = self.path_of(name)?;
-        if !src.is_file() {
+        let _lock = self.lock(name)?;
+        if std::fs::symlink_metadata(&src).map_or(true, |m| !m.is_file()) {
             return Err(LibraryError::NotFound(name.to_string()));
         }
-        let trash = self.dir.join(".trash");
-        std::fs::create_dir_all(&trash).map_err(io(&trash))?;
+        let trash = self.own_dir(&[".trash"])?;
         let stamp: String = now.chars().filter(|c| c.is_ascii_alphanumeric()).collect();
         let dst = trash.join(format!("{name}.{stamp}.ron"));
         std::fs::rename(&src, &dst).map_err(io(&src))?;
@@ -380,10 +554,18 @@ impl Library {
     pub fn history(&self, name: &str) -> Result<Vec<Revision>, LibraryError> {
         let current = self.open(name)?;
         let mut out = Vec::new();
-        let dir = self.history_dir(name);
-        if let Ok(entries) = std::fs::read_dir(&dir) {
+        let dir = self.dir.join(".history").join(name);
+        let real_dirs = [self.dir.join(".history"), dir.clone()]
+            .iter()
+            .all(|d| std::fs::symlink_metadata(d).is_ok_and(|m| m.is_dir()));
+        if let Ok(entries) =
+            std::fs::read_dir(&dir).map_err(|_| ()).and_then(|r| if real_dirs { Ok(r) } else { Err(()) })
+        {
             for e in entries.flatten() {
                 let path = e.path();
+                if !e.file_type().is_ok_and(|t| t.is_file()) {
+                    continue;
+                }
                 let Ok(text) = read_limited(&path) else {
                     continue;
                 };
@@ -418,20 +600,91 @@ impl Library {
         Ok(Recipe::parse(&text, &r.path.display().to_string())?)
     }
 
-    /// Make an old revision the newest one.
+    /// Make an old revision the newest one. The lock is held from reading the current
+    /// file to the rename: two restores at once become two revisions, one after the other.
     pub fn restore(&self, name: &str, revision: u32, now: &str) -> Result<Saved, LibraryError> {
+        let path = self.path_of(name)?;
+        let _lock = self.lock(name)?;
         let old = self.revision(name, revision)?;
         let opened = self.open(name)?;
         let note = format!("restored revision {revision}");
-        self.save(name, &old, Some(&opened), Some(&note), now, OnConflict::Refuse)
+        self.save_locked(name, &path, &old, Some(&opened), Some(&note), now, OnConflict::Refuse)
     }
 }
 
-/// Read a file, refusing anything larger than a recipe can be before reading it.
+/// Only regular files are read: a FIFO would block the reader, a device never ends.
+fn kind_allowed(meta: &std::fs::Metadata) -> Result<(), String> {
+    use std::os::unix::fs::FileTypeExt;
+    let t = meta.file_type();
+    let what = if t.is_file() {
+        return Ok(());
+    } else if t.is_dir() {
+        "a folder"
+    } else if t.is_fifo() {
+        "a FIFO (named pipe)"
+    } else if t.is_socket() {
+        "a socket"
+    } else if t.is_char_device() || t.is_block_device() {
+        "a device"
+    } else {
+        "not a regular file"
+    };
+    Err(format!("{what}, not a regular file; only regular files are read as recipes"))
+}
+
+/// Read a file, refusing anything larger than a recipe can be before reading it, and
+/// anything that is not a regular file (without blocking on a FIFO: it is opened
+/// non-blocking and looked at before a byte is read).
 pub fn read_limited(path: &Path) -> Result<String, LibraryError> {
-    let meta = std::fs::metadata(path).map_err(io(path))?;
+    use std::io::Read;
+    use std::os::unix::fs::OpenOptionsExt;
+    let mut file =
+        std::fs::OpenOptions::new().read(true).custom_flags(libc::O_NONBLOCK).open(path).map_err(io(path))?;
+    let meta = file.metadata().map_err(io(path))?;
+    kind_allowed(&meta).map_err(|why| LibraryError::Unsafe { path: path.to_path_buf(), why })?;
     if meta.len() > MAX_RECIPE_BYTES as u64 {
         return Err(LibraryError::TooLarge { path: path.to_path_buf(), size: meta.len() });
     }
-    std::fs::read_to_string(path).map_err(io(path))
+    let mut bytes = Vec::with_capacity(meta.len() as usize);
+    file.by_ref().take(MAX_RECIPE_BYTES as u64 + 1).read_to_end(&mut bytes).map_err(io(path))?;
+    if bytes.len() > MAX_RECIPE_BYTES {
+        return Err(LibraryError::TooLarge { path: path.to_path_buf(), size: bytes.len() as u64 });
+    }
+    String::from_utf8(bytes).map_err(|_| LibraryError::Unsafe {
+        path: path.to_path_buf(),
+        why: "is not UTF-8 text; a recipe is a RON text file".into(),
+    })
+}
+
+/// An advisory lock (`flock`) on a lock file, released when dropped or when the process
+/// ends, however it ends.
+#[derive(Debug)]
+pub struct Lock {
+    _file: std::fs::File,
+}
+
+impl Lock {
+    fn take(path: &Path) -> Result<Lock, LibraryError> {
+        use std::os::fd::AsRawFd;
+        use std::os::unix::fs::OpenOptionsExt;
+        let file = std::fs::OpenOptions::new()
+            .read(true)
+            .write(true)
+            .create(true)
+            .truncate(false)
+            .mode(0o644)
+            .custom_flags(libc::O_NOFOLLOW | libc::O_NONBLOCK)
+            .open(path)
+            .map_err(io(path))?;
+        loop {
+            // SAFETY: flock on a descriptor we own; it only takes or waits for the lock.
+            if unsafe { libc::flock(file.as_raw_fd(), libc::LOCK_EX) } == 0 {
+                return Ok(Lock { _file: file });
+            }
+            let e = std::io::Error::last_os_error();
+            if e.kind() != std::io::ErrorKind::Interrupted {
+                return Err(LibraryError::Io { path: path.to_path_buf(), source: e });
+            }
+        }
+    }
 }

@@ -63,8 +63,7 @@ impl Library {
     /// A new record: written as revision 1 under `SERIAL-YYYYMMDD` (with `-2`, `-3` … for a
     /// second fill of the cylinder that day). Returns its id.
     pub fn create_record(&self, record: &Record, now: &str) -> Result<String, LibraryError> {
-        let dir = self.records_dir();
-        std::fs::create_dir_all(&dir).map_err(io(&dir))?;
+        let dir = self.own_dir(&["records"])?;
         let serial: String = record
             .cylinder
             .trim()
@@ -115,12 +114,13 @@ impl Library {
         now: &str,
     ) -> Result<OpenedRecord, LibraryError> {
         let path = self.record_path(&opened.id)?;
+        let _lock = self.lock(&format!("record.{}", opened.id))?;
+        self.own_dir(&["records"])?;
         let current = read_limited(&path)?;
         if Fingerprint::of(current.as_bytes()) != opened.fingerprint {
             return Err(LibraryError::ChangedOnDisk(path));
         }
-        let history = self.records_dir().join(".history").join(&opened.id);
-        std::fs::create_dir_all(&history).map_err(io(&history))?;
+        let history = self.own_dir(&["records", ".history", &opened.id])?;
         let kept = history.join(format!("{:04}.ron", opened.record.revision));
         atomic::write(&kept, current.as_bytes()).map_err(io(&kept))?;
         let new = Record {

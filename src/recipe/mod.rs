@@ -213,7 +213,13 @@ impl Recipe {
             origin: origin.into(),
             line: e.position.line,
             column: e.position.col,
-            message: e.code.to_string(),
+            message: match e.code {
+                // The file is not a recipe at all: say so without quoting what it holds.
+                ron::Error::ExpectedDifferentStructName { .. } | ron::Error::ExpectedNamedStructLike(_) => {
+                    "this is not a recipe: a recipe file begins with `Recipe(`".to_string()
+                }
+                code => crate::ron_format::shorten(&code.to_string()),
+            },
         })?;
         if recipe.format != FORMAT {
             return Err(place(
