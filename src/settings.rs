@@ -105,6 +105,15 @@ impl Settings {
             .map_err(|e| err("min_storage_temperature", e.to_string()))?;
         let max_service_temperature_k = units::parse_temperature(&self.max_service_temperature)
             .map_err(|e| err("max_service_temperature", e.to_string()))?;
+        if min_storage_temperature_k >= max_service_temperature_k {
+            return Err(err(
+                "min_storage_temperature",
+                format!(
+                    "{:?} is not below max_service_temperature {:?}; the storage range must run from low to high",
+                    self.min_storage_temperature, self.max_service_temperature
+                ),
+            ));
+        }
         Ok(Resolved {
             shown: crate::units::Shown { pressure: self.pressure_unit, temperature: self.temperature_unit },
             default_model: self.default_model,
@@ -121,6 +130,15 @@ impl Settings {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn an_inverted_temperature_range_is_refused_at_its_place() {
+        let text = "(\n  min_storage_temperature: \"80C\",\n  max_service_temperature: \"0C\",\n)";
+        let s = Settings::parse(text, "settings.ron").unwrap();
+        let e = s.resolve(text, "settings.ron").unwrap_err();
+        assert_eq!((e.line, e.column), (2, 3));
+        assert!(e.message.contains("not below max_service_temperature"), "{}", e.message);
+    }
 
     #[test]
     fn defaults_resolve() {

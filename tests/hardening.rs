@@ -373,3 +373,122 @@ fn an_inverted_temperature_range_is_refused() {
     assert_eq!(o.status.code(), Some(1));
     assert!(err(&o).contains("--min-temp") && err(&o).contains("--max-temp"), "{}", err(&o));
 }
+
+fn rating_of(o: &Output) -> serde_json::Value {
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap_or_else(|_| panic!("{}", out(o)));
+    v
+}
+
+#[test]
+fn a_working_or_test_pressure_given_alone_is_rated_against() {
+    let order = ["--mix", "N2", "--volume", "10L", "--pressure", "200bar", "--temp", "15C"];
+    let run = |extra: &[&str]| {
+        let args: Vec<&str> =
+            ["check"].iter().chain(&order).chain(extra).chain(&["--format", "json"]).copied().collect();
+        common::run_fillwright("alone", &args)
+    };
+    let rating = |o: &Output| {
+        let v = rating_of(o);
+        v["checks"].as_array().unwrap().iter().find(|c| c["id"] == "pressure-rating").unwrap().clone()
+    };
+    // Working pressure alone, below the settled pressure: stop.
+    let o = run(&["--working-pressure", "150bar"]);
+    assert_eq!(o.status.code(), Some(3));
+    assert_eq!(rating(&o)["severity"], "stop");
+    // Working pressure alone, above it: a caution that says the test pressure is unknown.
+    let o = run(&["--working-pressure", "230bar"]);
+    assert_eq!(o.status.code(), Some(0));
+    let r = rating(&o);
+    assert_eq!(r["severity"], "caution");
+    assert!(r["message"].as_str().unwrap().contains("test pressure is unknown"), "{r}");
+    // Test pressure alone: the hot pressure (N2 at 200 bar, 15 °C, comes to about 249 bar at
+    // 65 °C) is judged against it (a fill above the test pressure itself is refused).
+    let o = run(&["--test-pressure", "240bar"]);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(rating(&o)["message"].as_str().unwrap().contains("above its test pressure"));
+    let o = run(&["--test-pressure", "300bar"]);
+    assert_eq!(o.status.code(), Some(0));
+    assert!(rating(&o)["message"].as_str().unwrap().contains("working pressure is unknown"), "{}", rating(&o));
+    // A test pressure below the working pressure is refused, naming both.
+    let o = run(&["--working-pressure", "300bar", "--test-pressure", "200bar"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("--test-pressure") && err(&o).contains("--working-pressure"), "{}", err(&o));
+}
+
+#[test]
+fn plan_and_check_agree_a_fill_above_the_working_pressure_is_a_stop() {
+    let order = [
+        "--mix",
+        "N2",
+        "--volume",
+        "10L",
+        "--pressure",
+        "200bar",
+        "--temp",
+        "15C",
+        "--working-pressure",
+        "150bar",
+        "--test-pressure",
+        "300bar",
+    ];
+    let plan: Vec<&str> = ["plan"].iter().chain(&order).copied().collect();
+    let o = common::run_fillwright("over-wp", &plan);
+    assert_eq!(o.status.code(), Some(3), "{}", err(&o));
+    let text = out(&o);
+    assert!(text.starts_with("!!!"), "{text}");
+    assert!(text.lines().nth(1).unwrap().contains("STOP"), "{text}");
+    assert!(text[..400].contains("above the working pressure"), "{text}");
+    assert!(text.contains("FILL SHEET"), "the sheet still follows the banner");
+    let json: Vec<&str> = plan.iter().chain(&["--format", "json"]).copied().collect();
+    let o = common::run_fillwright("over-wp", &json);
+    assert_eq!(o.status.code(), Some(3));
+    assert_eq!(rating_of(&o)["rating"]["severity"], "stop");
+    let check: Vec<&str> = ["check"].iter().chain(&order).copied().collect();
+    let o = common::run_fillwright("over-wp", &check);
+    assert_eq!(o.status.code(), Some(3));
+    // Within the rating, plan has no banner and exits 0.
+    let ok = [
+        "plan",
+        "--mix",
+        "N2",
+        "--volume",
+        "10L",
+        "--pressure",
+        "140bar",
+        "--working-pressure",
+        "150bar",
+        "--test-pressure",
+        "225bar",
+    ];
+    let o = common::run_fillwright("over-wp", &ok);
+    assert_eq!(o.status.code(), Some(0), "{}", err(&o));
+    assert!(!out(&o).contains("DO NOT FILL"));
+    // Above the test pressure there is no plan at all: refused by both, saying why.
+    let over_test = ["--mix", "N2", "--volume", "10L", "--pressure", "200bar", "--test-pressure", "150bar"];
+    for cmd in ["plan", "check"] {
+        let args: Vec<&str> = [cmd].iter().chain(&over_test).copied().collect();
+        let o = common::run_fillwright("over-test", &args);
+        assert_eq!(o.status.code(), Some(1), "{cmd}: {}", out(&o));
+        assert!(err(&o).contains("above the cylinder's test pressure"), "{cmd}: {}", err(&o));
+    }
+}
+
+#[test]
+fn a_warm_fill_reading_above_the_working_pressure_that_settles_within_it_is_explained() {
+    let config = config("warm");
+    // N2 to 195 bar at 15 °C, filled at 35 °C: the last reading is above 200 bar while the
+    // settled pressure stays below the working pressure.
+    let text = std::fs::read_to_string(config.join("library/flue-gas-span.ron"))
+        .unwrap()
+        .replace("fill: Pressure(\"150bar\")", "fill: Pressure(\"195bar\")");
+    let text = text.replace("fill_temperature: \"22C\"", "fill_temperature: \"35C\"");
+    assert!(text.contains("fill_temperature: \"35C\""), "the demo recipe changed: {text}");
+    let file = config.join("warm.ron");
+    std::fs::write(&file, text).unwrap();
+    let o = run_in(&config, &["check", file.to_str().unwrap(), "--format", "json"]);
+    let v = rating_of(&o);
+    let r = v["checks"].as_array().unwrap().iter().find(|c| c["id"] == "pressure-rating").unwrap();
+    assert_ne!(r["severity"], "stop", "{r}");
+    let details = r["details"].to_string();
+    assert!(details.contains("normal while the gas is warm"), "{details}");
+}

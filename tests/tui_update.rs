@@ -386,3 +386,86 @@ fn a_record_needs_a_saved_recipe() {
     assert!(model.status.contains("save the recipe first"), "{}", model.status);
     assert!(model.doc.as_ref().unwrap().bench.record.is_none());
 }
+
+/// A copy of flue-gas-span (working 200 bar) filled to `fill`, opened on the Fill sheet.
+fn sheet_of_copy(model: &mut Model, ctx: &mut Context, name: &str, fill: &str) {
+    let mut r = ctx.library.open("flue-gas-span").unwrap().recipe;
+    r.fill = fillwright::recipe::FillTarget::Pressure(fill.into());
+    ctx.library.save_as(name, &r, &stamp()).unwrap();
+    update::refresh(model, ctx);
+    open(model, ctx, name);
+    keys(model, ctx, &[Key::Char('3')]);
+}
+
+#[test]
+fn a_plan_at_stop_locks_its_steps_until_the_user_confirms() {
+    let (mut model, mut ctx, _dir) = setup("stop-lock");
+    sheet_of_copy(&mut model, &mut ctx, "over-rated", "230bar");
+    assert!(fillwright::tui::sheet::first_stop(model.doc.as_ref().unwrap()).unwrap().contains("working pressure"));
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("STOP - do not fill as planned"), "{screen}");
+    keys(&mut model, &mut ctx, &[Key::Char(' ')]);
+    assert!(matches!(model.overlay, Overlay::ConfirmStop(_)), "{:?}", model.overlay);
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    assert!(!model.doc.as_ref().unwrap().bench.done[0], "ticked without confirming");
+    keys(&mut model, &mut ctx, &[Key::Char('w')]);
+    assert!(matches!(model.overlay, Overlay::ConfirmStop(_)), "weighing is locked too");
+    keys(&mut model, &mut ctx, &[Key::Char('y'), Key::Char(' ')]);
+    assert!(model.doc.as_ref().unwrap().bench.done[0], "{}", model.status);
+    // A plan within its rating is not locked.
+    let (mut model, mut ctx, _dir) = setup("stop-none");
+    sheet_of_copy(&mut model, &mut ctx, "within", "150bar");
+    keys(&mut model, &mut ctx, &[Key::Char(' ')]);
+    assert!(matches!(model.overlay, Overlay::None));
+    assert!(model.doc.as_ref().unwrap().bench.done[0]);
+}
+
+fn render(model: &Model, ctx: &Context) -> ratatui::buffer::Buffer {
+    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(120, 40)).unwrap();
+    terminal.draw(|f| fillwright::tui::view::view(model, &ctx.catalogue, f)).unwrap();
+    terminal.backend().buffer().clone()
+}
+
+#[test]
+fn typed_readings_and_temperatures_are_judged_against_the_rating_and_the_plan() {
+    let (mut model, mut ctx, _dir) = setup("readings");
+    sheet_of_copy(&mut model, &mut ctx, "near-rated", "195bar");
+    let last = model.doc.as_ref().unwrap().bench.done.len() - 1;
+    // A cylinder temperature above the service range.
+    keys(&mut model, &mut ctx, &[Key::Char('t')]);
+    text(&mut model, &mut ctx, "90C");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("above the highest service temperature"), "{}", model.status);
+    assert!(fillwright::tui::scenes::text(&render(&model, &ctx)).contains("above the highest service temperature"));
+    // Warm at 35 °C: the last step's target reads above 200 bar and settles to 195 bar.
+    keys(&mut model, &mut ctx, &[Key::Char('t')]);
+    text(&mut model, &mut ctx, "35C");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let target = model.doc.as_ref().unwrap().bench.corrected_pa[last].unwrap();
+    assert!(target > 200e5, "{target}");
+    for _ in 0..last {
+        keys(&mut model, &mut ctx, &[Key::Down]);
+    }
+    keys(&mut model, &mut ctx, &[Key::Char('r')]);
+    text(&mut model, &mut ctx, &format!("{:.2}bar", target / 1e5));
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    let notes = fillwright::tui::sheet::reading_notes(doc, &model.limits, &model.shown, last);
+    assert!(notes.iter().any(|(_, n)| n.contains("Normal")), "{notes:?}");
+    assert!(notes.iter().all(|(s, _)| *s == fillwright::checks::Severity::Ok), "{notes:?}");
+    // 230 bar at 35 °C settles above the working pressure: stop.
+    keys(&mut model, &mut ctx, &[Key::Char('r')]);
+    text(&mut model, &mut ctx, "230bar");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.starts_with("STOP") && model.status.contains("settles to"), "{}", model.status);
+    // A reading far below the plan on the first step is flagged.
+    for _ in 0..last {
+        keys(&mut model, &mut ctx, &[Key::Up]);
+    }
+    let first_target = model.doc.as_ref().unwrap().bench.corrected_pa[0].unwrap();
+    keys(&mut model, &mut ctx, &[Key::Char('r')]);
+    let typed = format!("{:.2}bar", first_target / 1e5 + 20.0);
+    text(&mut model, &mut ctx, &typed);
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("far from the plan"), "{}: {}", typed, model.status);
+}

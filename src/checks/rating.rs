@@ -15,7 +15,6 @@ const TEST_MARGIN: f64 = 0.9;
 
 pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
     let mut data = Map::new();
-    let rated = order.working_pressure_pa < MAX_PRESSURE_PA && order.test_pressure_pa < MAX_PRESSURE_PA;
     let last = plan.steps.last().map(|s| s.amounts_after_mol.clone()).unwrap_or_default();
     let at = |t: f64, amounts: &[f64]| plan.fluid.pressure(t, order.volume_m3, amounts);
     let settled = match at(REFERENCE_TEMPERATURE_K, &last) {
@@ -52,7 +51,9 @@ pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
             celsius(c.max_temperature_k)
         ));
     }
-    if !rated {
+    let working = (order.working_pressure_pa < MAX_PRESSURE_PA).then_some(order.working_pressure_pa);
+    let test = (order.test_pressure_pa < MAX_PRESSURE_PA).then_some(order.test_pressure_pa);
+    if working.is_none() && test.is_none() {
         return Check {
             id: "pressure-rating",
             severity: Severity::Caution,
@@ -61,51 +62,81 @@ pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
             data,
         };
     }
-    data.insert("working_pressure_bar".into(), json!(bar(order.working_pressure_pa)));
-    data.insert("test_pressure_bar".into(), json!(bar(order.test_pressure_pa)));
-    let step_over_test = plan.steps.iter().position(|s| s.pressure_after_pa > order.test_pressure_pa);
-    let (severity, message) = match hot_final {
-        _ if settled > order.working_pressure_pa => (
+    if let Some(w) = working {
+        data.insert("working_pressure_bar".into(), json!(bar(w)));
+        // A warm fill reads above the working pressure and settles within it: normal.
+        for (i, s) in plan.steps.iter().enumerate() {
+            if s.pressure_after_pa > w && settled <= w && s.temperature_k > REFERENCE_TEMPERATURE_K {
+                details.push(format!(
+                    "step {} reads {:.1} bar at {:.1} °C, above the working pressure: normal while the gas is warm from \
+                     filling; the cylinder settles to {:.1} bar at 15 °C",
+                    i + 1,
+                    bar(s.pressure_after_pa),
+                    celsius(s.temperature_k),
+                    bar(settled)
+                ));
+            }
+        }
+    }
+    if let Some(t) = test {
+        data.insert("test_pressure_bar".into(), json!(bar(t)));
+    }
+    let step_over_test = test.and_then(|t| plan.steps.iter().position(|s| s.pressure_after_pa > t));
+    let hot_text =
+        |p: f64| format!("at {:.0} °C the cylinder would reach {:.1} bar", celsius(c.max_temperature_k), bar(p));
+    let (severity, message) = match (&hot_final, working, test) {
+        (_, Some(w), _) if settled > w => (
             Severity::Stop,
             format!(
                 "settled pressure {:.1} bar at 15 °C is above the working pressure {:.1} bar",
                 bar(settled),
-                bar(order.working_pressure_pa)
+                bar(w)
             ),
         ),
         _ if step_over_test.is_some() => (
             Severity::Stop,
             format!("step {} reads above the test pressure during the fill", step_over_test.unwrap_or(0) + 1),
         ),
-        Err(e) => (Severity::Stop, format!("no gas state at the highest service temperature: {e}")),
-        Ok(p) if p > order.test_pressure_pa => (
-            Severity::Stop,
-            format!(
-                "at {:.0} °C the cylinder would reach {:.1} bar, above its test pressure {:.1} bar",
-                celsius(c.max_temperature_k),
-                bar(p),
-                bar(order.test_pressure_pa)
-            ),
-        ),
-        Ok(p) if p > TEST_MARGIN * order.test_pressure_pa => (
+        (Err(e), _, _) => (Severity::Stop, format!("no gas state at the highest service temperature: {e}")),
+        (Ok(p), _, Some(t)) if *p > t => {
+            (Severity::Stop, format!("{}, above its test pressure {:.1} bar", hot_text(*p), bar(t)))
+        }
+        (Ok(p), _, Some(t)) if *p > TEST_MARGIN * t => {
+            (Severity::Caution, format!("{}, within 10 % of its test pressure {:.0} bar", hot_text(*p), bar(t)))
+        }
+        (Ok(p), Some(w), None) => (
             Severity::Caution,
             format!(
-                "at {:.0} °C the cylinder would reach {:.1} bar, within 10 % of its test pressure",
-                celsius(c.max_temperature_k),
-                bar(p)
+                "{:.1} bar settled is within the working pressure {:.0} bar; the test pressure is unknown, so {:.1} bar \
+                 at {:.0} °C is not judged: read it from the cylinder's markings",
+                bar(settled),
+                bar(w),
+                bar(*p),
+                celsius(c.max_temperature_k)
             ),
         ),
-        Ok(p) => (
+        (Ok(p), None, Some(t)) => (
+            Severity::Caution,
+            format!(
+                "{} (test {:.0} bar); the working pressure is unknown, so the settled {:.1} bar is not judged: read it \
+                 from the cylinder's markings",
+                hot_text(*p),
+                bar(t),
+                bar(settled)
+            ),
+        ),
+        (Ok(p), Some(w), Some(t)) => (
             Severity::Ok,
             format!(
                 "{:.1} bar settled (working {:.0} bar), {:.1} bar at {:.0} °C (test {:.0} bar)",
                 bar(settled),
-                bar(order.working_pressure_pa),
-                bar(p),
+                bar(w),
+                bar(*p),
                 celsius(c.max_temperature_k),
-                bar(order.test_pressure_pa)
+                bar(t)
             ),
         ),
+        (Ok(_), None, None) => (Severity::Caution, "no cylinder rating given".into()),
     };
     Check { id: "pressure-rating", severity, message, details, data }
 }

@@ -120,6 +120,7 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         .iter()
         .map(|(origin, order)| {
             let screened = order.as_ref().map_err(Clone::clone).and_then(|order| {
+                // A fill above the test pressure has no plan: it is refused, in `plan` alike.
                 let p = plan::plan(order, &catalogue, &options).map_err(|e| format!("{origin}: {e}"))?;
                 Ok((p.model, checks::screen(&p, order, &catalogue, &conditions)))
             });
@@ -188,7 +189,7 @@ fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
         let (model, list) = match result {
             Ok((model, list)) => (model, list),
             Err(e) => {
-                println!("{origin}: NOT SCREENED - cannot be read or planned");
+                println!("{origin}: NOT SCREENED - refused");
                 println!("  {}", crate::ron_format::shorten(e));
                 println!();
                 continue;

@@ -5,6 +5,7 @@ use clap::Args;
 use serde_json::{json, Value};
 
 use super::{print_json, Common, Failure, Format, Refused};
+use crate::checks::{self, Conditions, Severity};
 use crate::config;
 use crate::gas::Catalogue;
 use crate::mixture::{self, Composition};
@@ -89,14 +90,70 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         Some(o) => Refused(format!("{o}: {e}")),
         None => Refused(e.to_string()),
     })?;
+    // The cylinder's rating is judged here as in `check`: a fill above it is a stop, with
+    // a banner at the top of the sheet and exit status 3.
+    let conditions = Conditions {
+        min_temperature_k: settings.min_storage_temperature_k,
+        max_temperature_k: settings.max_service_temperature_k,
+    };
+    let rating = checks::rating::check(&plan, &order, &conditions);
     match args.common.format {
-        Format::Json => print_json(&plan_json(&plan, &order, &catalogue)),
+        Format::Json => {
+            let mut v = plan_json(&plan, &order, &catalogue);
+            v["rating"] = json!({
+                "severity": rating.severity.key(),
+                "message": rating.message,
+                "details": rating.details,
+            });
+            print_json(&v)
+        }
         Format::Csv => print!("{}", steps_csv(&plan)),
         Format::Text => {
+            if rating.severity == Severity::Stop {
+                print!("{}", stop_banner(&rating.message));
+            }
             print!("{}", fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown))
         }
     }
+    if rating.severity == Severity::Stop {
+        if args.common.format == Format::Csv {
+            eprintln!("fillwright: STOP - {}", rating.message);
+        }
+        return Err(Failure::Findings);
+    }
     Ok(())
+}
+
+/// The banner above a sheet whose plan must not be filled as it stands, 80 columns wide.
+pub fn stop_banner(message: &str) -> String {
+    let mut o = String::new();
+    o.push_str(&format!("{}\n", "!".repeat(78)));
+    o.push_str("!! STOP - DO NOT FILL AS PLANNED\n");
+    for line in wrap(message, 72) {
+        o.push_str(&format!("!! {line}\n"));
+    }
+    o.push_str("!! Lower the fill, or use a cylinder rated for it (see its markings).\n");
+    o.push_str(&format!("{}\n\n", "!".repeat(78)));
+    o
+}
+
+/// `text` in lines of at most `width` characters, broken at spaces.
+fn wrap(text: &str, width: usize) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
+            lines.push(std::mem::take(&mut line));
+        }
+        if !line.is_empty() {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    if !line.is_empty() {
+        lines.push(line);
+    }
+    lines
 }
 
 /// An order given on the command line instead of a recipe.
@@ -131,7 +188,19 @@ impl OrderArgs {
                 .transpose()
                 .map_err(|e| Refused(format!("--{what}: {e}")))
         };
-        Ok((rating(&self.working_pressure, "working-pressure")?, rating(&self.test_pressure, "test-pressure")?))
+        let (working, test) =
+            (rating(&self.working_pressure, "working-pressure")?, rating(&self.test_pressure, "test-pressure")?);
+        if let (Some(w), Some(t)) = (working, test) {
+            if t < w {
+                return Err(Refused(format!(
+                    "--test-pressure {:.2} bar is below --working-pressure {:.2} bar; a cylinder is tested above its \
+                     working pressure (read both from its markings)",
+                    bar(t),
+                    bar(w)
+                )));
+            }
+        }
+        Ok((working, test))
     }
 
     /// The order, with pure sources for every component.
@@ -145,14 +214,9 @@ impl OrderArgs {
         let t_ref = units::parse_temperature(self.temp.as_deref().unwrap_or("15C"))
             .map_err(|e| Refused(format!("--temp: {e}")))?;
         let (working, test) = self.ratings(ambient)?;
+        // A fill above the rating is not refused here: the rating check stops it, with the
+        // numbers, in `plan` and `check` alike.
         let (working, test) = (working.unwrap_or(MAX_PRESSURE_PA), test.unwrap_or(MAX_PRESSURE_PA));
-        if pressure > test {
-            return Err(Refused(format!(
-                "--pressure {:.2} bar is above --test-pressure {:.2} bar; this fill must not be made",
-                bar(pressure),
-                bar(test)
-            )));
-        }
         Ok(build_order(parts, volume, pressure, t_ref, working, test, ambient, catalogue))
     }
 }

@@ -223,6 +223,18 @@ impl Plan {
     pub fn corrected_target_pa(&self, index: usize, t_measured_k: f64) -> Result<f64, ThermoError> {
         corrected_target_pa(&self.fluid, self.volume_m3, &self.steps[index].amounts_after_mol, t_measured_k)
     }
+
+    /// What a reading `reading_pa` taken at cylinder temperature `t_k` after step `index`
+    /// comes to at 15 °C: the amount in the cylinder from the reading (with the step's
+    /// composition), then its pressure at the reference temperature of the rating.
+    pub fn settled_from_reading_pa(&self, index: usize, reading_pa: f64, t_k: f64) -> Result<f64, ThermoError> {
+        let after = &self.steps[index].amounts_after_mol;
+        let total: f64 = after.iter().sum();
+        let x: Vec<f64> = after.iter().map(|n| n / total).collect();
+        let n = self.fluid.amount(t_k, reading_pa, self.volume_m3, &x)?;
+        let amounts: Vec<f64> = x.iter().map(|xi| xi * n).collect();
+        self.fluid.pressure(crate::units::REFERENCE_TEMPERATURE_K, self.volume_m3, &amounts)
+    }
 }
 
 /// The target reading after a step for the cylinder temperature measured now: the

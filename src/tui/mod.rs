@@ -8,7 +8,7 @@
 pub mod model;
 pub mod picker;
 pub mod scenes;
-mod sheet;
+pub mod sheet;
 pub mod svg;
 pub mod update;
 pub mod view;

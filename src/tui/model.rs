@@ -46,6 +46,8 @@ pub enum Overlay {
     ConfirmDelete(String),
     /// The file changed on disk since it was opened.
     Conflict,
+    /// The plan is at stop: tick its steps anyway? (the finding)
+    ConfirmStop(String),
     /// A line of text for `purpose`.
     Prompt {
         purpose: Prompt,
@@ -242,6 +244,9 @@ pub struct Bench {
     pub actual_pa: Vec<Option<f64>>,
     /// Stop readings corrected to `measured_k`, Pa, per step (computed in `update`).
     pub corrected_pa: Vec<Option<f64>>,
+    /// The stop finding the user chose to fill past (steps of a plan at stop are locked
+    /// until the user confirms; a different stop asks again).
+    pub stop_accepted: Option<String>,
 }
 
 impl Bench {
@@ -326,7 +331,37 @@ pub struct Model {
     pub color: bool,
     /// Units of the figures shown (from the settings).
     pub shown: crate::units::Shown,
+    /// The service range and gauge resolution the bench readings are judged by (from the
+    /// settings).
+    pub limits: BenchLimits,
     pub quit: bool,
+}
+
+/// What the Fill sheet judges typed readings against.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct BenchLimits {
+    /// Lowest storage and highest service temperature, K.
+    pub min_k: f64,
+    pub max_k: f64,
+    /// Gauge resolution, Pa.
+    pub gauge_pa: f64,
+}
+
+impl Default for BenchLimits {
+    fn default() -> BenchLimits {
+        let s = crate::settings::Settings::default().resolve("", "defaults");
+        s.map_or(BenchLimits { min_k: 273.15, max_k: 338.15, gauge_pa: 0.1e5 }, |s| BenchLimits::of(&s))
+    }
+}
+
+impl BenchLimits {
+    pub fn of(s: &crate::settings::Resolved) -> BenchLimits {
+        BenchLimits {
+            min_k: s.min_storage_temperature_k,
+            max_k: s.max_service_temperature_k,
+            gauge_pa: s.gauge_resolution_pa,
+        }
+    }
 }
 
 impl Model {
@@ -340,6 +375,7 @@ impl Model {
             status: String::new(),
             color,
             shown: crate::units::Shown::default(),
+            limits: BenchLimits::default(),
             quit: false,
         }
     }

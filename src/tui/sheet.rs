@@ -4,13 +4,15 @@
 //! lost when the session ends; opening the recipe again continues the fill. After each
 //! weighing the composition so far is compared with the plan and the rest re-planned.
 
-use super::model::{Document, Model, Overlay, Progress, Prompt};
+use super::model::{BenchLimits, Document, Model, Overlay, Progress, Prompt};
 use super::update::{input, Context, Key};
+use crate::checks::Severity;
 use crate::library::records::Lookup;
 use crate::recipe::canonical;
 use crate::record::composition::Measurand;
 use crate::record::Record;
 use crate::units::{self, AmountInput};
+use crate::units::{Shown, REFERENCE_TEMPERATURE_K};
 
 /// Keys of the Fill sheet.
 pub fn on_key(model: &mut Model, key: Key) {
@@ -19,6 +21,9 @@ pub fn on_key(model: &mut Model, key: Key) {
     match key {
         Key::Up | Key::Char('k') => doc.bench.selected = doc.bench.selected.saturating_sub(1),
         Key::Down | Key::Char('j') => doc.bench.selected = (doc.bench.selected + 1).min(steps.saturating_sub(1)),
+        Key::Char(' ') | Key::Enter | Key::Char('w') if locked(doc) => {
+            model.overlay = Overlay::ConfirmStop(first_stop(doc).unwrap_or_default());
+        }
         Key::Char(' ') | Key::Enter => {
             if let Some(d) = doc.bench.done.get_mut(doc.bench.selected) {
                 *d = !*d;
@@ -61,6 +66,118 @@ pub fn on_key(model: &mut Model, key: Key) {
         }
         _ => {}
     }
+}
+
+/// The first finding at stop of the recipe's screening (the rating first), if any.
+pub fn first_stop(doc: &Document) -> Option<String> {
+    let checks = doc.computed.checks.as_ref()?;
+    let mut stops: Vec<&crate::checks::Check> = checks.iter().filter(|c| c.severity == Severity::Stop).collect();
+    stops.sort_by_key(|c| c.id != "pressure-rating");
+    stops.first().map(|c| format!("{} ({})", c.message, c.id))
+}
+
+/// Whether the steps are locked: the plan is at stop and the user has not chosen to fill
+/// past this finding.
+fn locked(doc: &Document) -> bool {
+    first_stop(doc).is_some_and(|stop| doc.bench.stop_accepted.as_deref() != Some(stop.as_str()))
+}
+
+/// What a typed temperature means: outside the service range, the cylinder must not be
+/// filled on (too cold: brittle steel and condensation; too hot: above what the rating
+/// assumes).
+pub fn temperature_note(t_k: f64, limits: &BenchLimits, d: &Shown) -> Option<(Severity, String)> {
+    if t_k > limits.max_k {
+        Some((
+            Severity::Stop,
+            format!(
+                "cylinder at {} is above the highest service temperature {}: stop filling and let it cool; \
+                 check the thermometer",
+                d.tf(t_k),
+                d.tf(limits.max_k)
+            ),
+        ))
+    } else if t_k < limits.min_k {
+        Some((
+            Severity::Caution,
+            format!(
+                "cylinder at {} is below the lowest storage temperature {}: check the thermometer; fill only in the \
+                 cylinder's rated range",
+                d.tf(t_k),
+                d.tf(limits.min_k)
+            ),
+        ))
+    } else {
+        None
+    }
+}
+
+/// What the sheet says about the reading typed for `step`, worst first: its settled
+/// pressure (brought to 15 °C from the cylinder temperature measured) against the working
+/// pressure, and how far it is from the plan.
+pub fn reading_notes(doc: &Document, limits: &BenchLimits, d: &Shown, step: usize) -> Vec<(Severity, String)> {
+    let mut notes = Vec::new();
+    let b = &doc.bench;
+    let (Ok(plan), Some(Some(actual)), Some(s)) = (&doc.computed.plan, b.actual_pa.get(step), plan_step(doc, step))
+    else {
+        return notes;
+    };
+    let u = d.pu();
+    let t = b.measured_k.unwrap_or(s.temperature_k);
+    let target = b.corrected_pa.get(step).copied().flatten().unwrap_or(s.pressure_after_pa);
+    let off = actual - target;
+    // Far from the plan: more than 5 % of the target or ten gauge divisions (common practice).
+    let far = off.abs() > (0.05 * target).max(10.0 * limits.gauge_pa);
+    let working =
+        doc.computed.order.as_ref().ok().map(|o| o.working_pressure_pa).filter(|w| *w < crate::thermo::MAX_PRESSURE_PA);
+    let settled = plan.settled_from_reading_pa(step, *actual, t).ok();
+    if let (Some(w), Some(settled)) = (working, settled) {
+        if settled > w {
+            notes.push((
+                Severity::Stop,
+                format!(
+                    "STOP: {} {u} at {} settles to {} {u} at 15 °C, above the working pressure {} {u}: add nothing \
+                     more; bring it down to the plan by licensed practice",
+                    d.pf(*actual),
+                    d.tf(t),
+                    d.pf(settled),
+                    d.pf(w)
+                ),
+            ));
+        } else if *actual > w && t > REFERENCE_TEMPERATURE_K {
+            notes.push((
+                Severity::Ok,
+                format!(
+                    "{} {u} is above the working pressure only because the gas is warm ({}): it settles to {} {u} \
+                     at 15 °C, within the rating. Normal.",
+                    d.pf(*actual),
+                    d.tf(t),
+                    d.pf(settled)
+                ),
+            ));
+        }
+    }
+    let line = format!(
+        "step {}: reached {} {u}, target {} {u}, {:+.*} {u} off",
+        step + 1,
+        d.pf(*actual),
+        d.pf(target),
+        d.pd(),
+        d.p(off),
+    );
+    if far {
+        notes.push((
+            Severity::Caution,
+            format!("{line}: far from the plan; check the gauge, the source and the temperature before going on"),
+        ));
+    } else {
+        notes.push((Severity::Ok, line));
+    }
+    notes.sort_by_key(|(s, _)| std::cmp::Reverse(*s));
+    notes
+}
+
+fn plan_step(doc: &Document, step: usize) -> Option<&crate::plan::Step> {
+    doc.computed.plan.as_ref().ok()?.steps.get(step)
 }
 
 fn chosen_source_hint(doc: &Document) -> String {
@@ -271,7 +388,11 @@ pub fn on_pressure(model: &mut Model, ctx: &Context, step: usize, text: &str) {
     if let Some(slot) = doc.bench.actual_pa.get_mut(step) {
         *slot = Some(p);
     }
-    model.status = format!("step {} reached {:.3} bar", step + 1, p / 1e5);
+    doc.bench.selected = step;
+    model.status = match reading_notes(doc, &model.limits, &model.shown, step).into_iter().next() {
+        Some((severity, note)) if severity != Severity::Ok => note,
+        _ => format!("step {} reached {} {}", step + 1, model.shown.pf(p), model.shown.pu()),
+    };
     if doc.bench.record.is_some() && step == step_in_progress(doc) {
         let source = step_source(doc, step);
         let typed = text.trim().to_string();
@@ -298,7 +419,10 @@ pub fn on_temperature(model: &mut Model, ctx: &Context, text: &str) {
     };
     doc.bench.measured_k = Some(t);
     doc.bench.correct(doc.computed.plan.as_ref().ok());
-    model.status = format!("targets corrected for {:.1} °C", units::celsius(t));
+    model.status = match temperature_note(t, &model.limits, &model.shown) {
+        Some((_, note)) => note,
+        None => format!("targets corrected for {}", model.shown.tf(t)),
+    };
     if doc.bench.record.is_some() && step_in_progress(doc) < doc.bench.done.len() {
         let step = step_in_progress(doc);
         let source = step_source(doc, step);

@@ -103,6 +103,7 @@ pub fn start(model: &mut Model, ctx: &mut Context) {
 /// As [`start`]; `seed` false leaves an empty folder empty (a recipe file opened in a folder
 /// that is not the library).
 pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
+    model.limits = super::model::BenchLimits::of(&ctx.settings);
     if seed {
         match ctx.library.seed_demos_if_empty() {
             Ok(n) if n > 0 => model.status = format!("new library: copied {n} demo recipes in"),
@@ -117,7 +118,7 @@ pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
     }
 }
 
-fn refresh(model: &mut Model, ctx: &Context) {
+pub fn refresh(model: &mut Model, ctx: &Context) {
     match ctx.library.list() {
         Ok(entries) => model.library.entries = entries,
         Err(e) => model.status = format!("cannot list the library: {e}"),
@@ -650,6 +651,16 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 refresh(model, ctx);
             } else {
                 model.status = "nothing deleted".into();
+            }
+        }
+        Overlay::ConfirmStop(finding) => {
+            if key == Key::Char('y') {
+                if let Some(doc) = model.doc.as_mut() {
+                    doc.bench.stop_accepted = Some(finding);
+                }
+                model.status = "steps unlocked on your own judgement: Space ticks, w weighs".into();
+            } else {
+                model.status = "steps stay locked: change the recipe so that nothing is at stop".into();
             }
         }
         Overlay::Conflict => match key {

@@ -327,10 +327,26 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let b = &doc.bench;
     let d = &model.shown;
     let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
-    let mut lines = vec![Line::raw(match b.measured_k {
+    let mut lines = Vec::new();
+    if let Some(stop) = super::sheet::first_stop(doc) {
+        let style = theme.severity(Severity::Stop).add_modifier(Modifier::BOLD);
+        lines.push(Line::styled(format!("STOP - do not fill as planned: {stop}"), style));
+        lines.push(Line::styled(
+            if b.stop_accepted.as_deref() == Some(stop.as_str()) {
+                "steps unlocked on your own judgement".to_string()
+            } else {
+                "steps are locked; Space asks to unlock them".to_string()
+            },
+            theme.severity(Severity::Stop),
+        ));
+    }
+    lines.push(Line::raw(match b.measured_k {
         Some(t) => format!("planned for {}; cylinder now {}: stop at 'now'", d.tf(p.fill_temperature_k), d.tf(t)),
         None => format!("readings for {}; t: type the cylinder temperature now", d.tf(p.fill_temperature_k)),
-    })];
+    }));
+    if let Some((severity, note)) = b.measured_k.and_then(|t| super::sheet::temperature_note(t, &model.limits, d)) {
+        lines.push(Line::styled(note, theme.severity(severity)));
+    }
     lines.push(Line::styled(
         format!(
             " {:<4}{:<3}{:<11}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
@@ -367,17 +383,12 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         );
         lines.push(Line::styled(text, if selected { theme.selected() } else { Style::default() }));
     }
-    if let (Some(Some(actual)), Some(s)) = (b.actual_pa.get(b.selected), p.steps.get(b.selected)) {
-        let target = b.corrected_pa.get(b.selected).copied().flatten().unwrap_or(s.pressure_after_pa);
-        lines.push(Line::raw(format!(
-            "step {}: reached {} {u}, target {} {u}, {:+.*} {u} off",
-            b.selected + 1,
-            d.pf(*actual),
-            d.pf(target),
-            d.pd(),
-            d.p(actual - target),
-            u = d.pu()
-        )));
+    for (severity, note) in super::sheet::reading_notes(doc, &model.limits, d, b.selected) {
+        let style = match severity {
+            Severity::Ok => Style::default(),
+            s => theme.severity(s),
+        };
+        lines.push(Line::styled(note, style));
     }
     if p.steps.iter().any(|s| !s.flags.is_empty()) {
         lines.push(Line::styled(
@@ -620,6 +631,25 @@ fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     frame.render_widget(Paragraph::new(lines).wrap(Wrap { trim: false }), inner);
 }
 
+/// `text` in lines of at most `width` characters, broken at spaces.
+fn wrap_words(text: &str, width: usize) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
+            lines.push(std::mem::take(&mut line));
+        }
+        if !line.is_empty() {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    if !line.is_empty() {
+        lines.push(line);
+    }
+    lines
+}
+
 fn centered(area: Rect, width: u16, height: u16) -> Rect {
     let w = width.min(area.width);
     let h = height.min(area.height);
@@ -707,6 +737,15 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Line::raw("y  delete (recoverable)     any other key: keep"),
             ];
             boxed(frame, centered(area, 56, 4), "Delete", lines);
+        }
+        Overlay::ConfirmStop(finding) => {
+            let mut lines = vec![Line::styled("This plan is at STOP:", theme.severity(Severity::Stop))];
+            lines.extend(wrap_words(finding, 58).into_iter().map(Line::raw));
+            lines.push(Line::raw("Filling it goes against the screening. Follow the"));
+            lines.push(Line::raw("cylinder's markings, local codes and licensed practice."));
+            lines.push(Line::raw("y  unlock the steps anyway     any other key: keep locked"));
+            let h = lines.len() as u16 + 2;
+            boxed(frame, centered(area, 62, h), "Fill a plan at stop?", lines);
         }
         Overlay::Conflict => {
             let lines = vec![
