@@ -118,13 +118,23 @@ fn open_change_save_quit_then_recover_after_a_dropped_session() {
     t.keys(&["Enter"]);
     t.wait_for("unsaved changes");
     t.kill_session();
-    let draft = config.join("drafts/flue-gas-span.ron");
+    // The draft is this session's, of this file: drafts/flue-gas-span.HASH.PID.ron.
     let start = Instant::now();
-    while !draft.is_file() {
+    let draft = loop {
+        let found =
+            std::fs::read_dir(config.join("drafts")).into_iter().flatten().flatten().map(|e| e.path()).find(|p| {
+                p.file_name()
+                    .and_then(|n| n.to_str())
+                    .is_some_and(|n| n.starts_with("flue-gas-span.") && n.ends_with(".ron"))
+            });
+        if let Some(p) = found {
+            break p;
+        }
         assert!(start.elapsed() < Duration::from_secs(10), "no draft was written on SIGHUP");
         std::thread::sleep(Duration::from_millis(100));
-    }
-    assert!(std::fs::read_to_string(&draft).unwrap().contains("amount: \"13%\""));
+    };
+    let text = std::fs::read_to_string(&draft).unwrap();
+    assert!(text.contains("13%") && text.contains("library/flue-gas-span.ron"), "{text}");
     // The next start offers it.
     t.start(&config, "");
     t.wait_for("Recover unsaved edits?");
@@ -133,4 +143,36 @@ fn open_change_save_quit_then_recover_after_a_dropped_session() {
     assert!(s.contains("13%"), "{s}");
     t.keys(&["q", "y"]);
     t.wait_exit();
+}
+
+/// The flags tmux keeps for the pane: cursor shown, alternate screen on.
+fn terminal_state(t: &Tmux) -> String {
+    t.run(&["display-message", "-p", "-t", "bench", "#{cursor_flag} #{alternate_on}"]).trim().to_string()
+}
+
+#[test]
+fn the_terminal_is_given_back_whole_after_a_signal() {
+    let config = fresh_config("restore");
+    let t = Tmux::new("restore");
+    let bin = env!("CARGO_BIN_EXE_fillwright");
+    // The program runs under a shell that stays, so the pane (and what the program last
+    // wrote to it) outlives the program.
+    let cmd = format!("sh -c 'FILLWRIGHT_CONFIG={} {bin}; echo exited $?; sleep 60'", config.display());
+    for (signal, status) in [("TERM", 143), ("INT", 130), ("HUP", 129), ("quit", 0)] {
+        t.run(&["new-session", "-d", "-s", "bench", "-x", "80", "-y", "24", &cmd]);
+        t.wait_for("Recipes in");
+        assert_eq!(terminal_state(&t), "0 1", "the screen hides the cursor and uses the alternate screen");
+        if signal == "quit" {
+            t.keys(&["q"]);
+        } else {
+            let shell = t.run(&["display-message", "-p", "-t", "bench", "#{pane_pid}"]);
+            let child = Command::new("pgrep").args(["-P", shell.trim()]).output().unwrap();
+            let pid = String::from_utf8_lossy(&child.stdout).trim().to_string();
+            assert!(!pid.is_empty(), "no program under the shell");
+            assert!(Command::new("kill").arg(format!("-{signal}")).arg(&pid).status().unwrap().success());
+        }
+        t.wait_for(&format!("exited {status}"));
+        assert_eq!(terminal_state(&t), "1 0", "after {signal}: cursor shown, alternate screen left");
+        t.kill_session();
+    }
 }

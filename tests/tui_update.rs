@@ -23,6 +23,7 @@ fn setup(tag: &str) -> (Model, Context, PathBuf) {
         drafts: Some(dir.join("drafts")),
         sources: Some(dir.join("sources")),
         now: stamp,
+        session: "test".into(),
     };
     let mut model = Model::new("test library".into(), false);
     update::start(&mut model, &mut ctx);
@@ -468,4 +469,69 @@ fn typed_readings_and_temperatures_are_judged_against_the_rating_and_the_plan() 
     text(&mut model, &mut ctx, &typed);
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert!(model.status.contains("far from the plan"), "{}: {}", typed, model.status);
+}
+
+/// A screen on the library at `dir` for session `session`, drafts kept in `drafts`.
+fn session_at(dir: &std::path::Path, drafts: &std::path::Path, session: &str) -> (Model, Context) {
+    let mut ctx = Context {
+        library: Library::at(dir).unwrap(),
+        catalogue: Catalogue::built_in(),
+        settings: Settings::default().resolve("", "defaults").unwrap(),
+        drafts: Some(drafts.to_path_buf()),
+        sources: None,
+        now: stamp,
+        session: session.into(),
+    };
+    let mut model = Model::new("test library".into(), false);
+    update::start(&mut model, &mut ctx);
+    (model, ctx)
+}
+
+#[test]
+fn drafts_belong_to_a_file_and_a_session() {
+    let root = std::env::temp_dir().join(format!("fillwright-tui-draft-id-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&root);
+    let drafts = root.join("drafts");
+    let (d1, d2) = (root.join("d1"), root.join("d2"));
+    // Two folders, each with its own x.ron.
+    for (dir, amount) in [(&d1, "11%"), (&d2, "22%")] {
+        let lib = Library::at(dir).unwrap();
+        let mut r =
+            fillwright::recipe::Recipe::parse(fillwright::recipe::demo::find("laser-co2-he-n2").unwrap(), "demo")
+                .unwrap();
+        r.components[0].amount = amount.into();
+        lib.save_as("x", &r, &stamp()).unwrap();
+    }
+    // Two sessions of d1/x.ron each end with edits of their own; one of d2/x.ron too.
+    let (_, a) = session_at(&d1, &drafts, "101");
+    let (_, b) = session_at(&d1, &drafts, "102");
+    let (_, c) = session_at(&d2, &drafts, "103");
+    let edited = |ctx: &Context, amount: &str| {
+        let mut r = ctx.library.open("x").unwrap().recipe;
+        r.components[0].amount = amount.into();
+        ctx.write_draft("x", &r).unwrap();
+    };
+    edited(&a, "12%");
+    edited(&b, "13%");
+    edited(&c, "23%");
+    assert_eq!(std::fs::read_dir(&drafts).unwrap().count(), 3, "one draft per session and file");
+    // A screen on d1 is offered d1's two drafts, not d2's.
+    let (mut m1, mut ctx1) = session_at(&d1, &drafts, "104");
+    let Overlay::Drafts { drafts: offered, .. } = &m1.overlay else { panic!("{:?}", m1.overlay) };
+    assert_eq!(offered.len(), 2);
+    assert!(offered.iter().all(|d| d.file.ends_with("d1/x.ron")), "{offered:?}");
+    // Recovering the second and saving writes it into d1/x.ron and clears only that draft.
+    keys(&mut m1, &mut ctx1, &[Key::Down, Key::Enter]);
+    let recovered = m1.doc.as_ref().unwrap().recipe.components[0].amount.clone();
+    assert!(recovered == "12%" || recovered == "13%", "{recovered}");
+    keys(&mut m1, &mut ctx1, &[Key::Char('s')]);
+    assert_eq!(Library::at(&d1).unwrap().open("x").unwrap().recipe.components[0].amount, recovered);
+    assert_eq!(Library::at(&d2).unwrap().open("x").unwrap().recipe.components[0].amount, "22%");
+    assert_eq!(ctx1.drafts().len(), 1, "the other session's draft is still there");
+    // d2's draft is offered for d2/x.ron, with d2's edit.
+    let (m2, _) = session_at(&d2, &drafts, "105");
+    let Overlay::Drafts { drafts: offered, .. } = &m2.overlay else { panic!("{:?}", m2.overlay) };
+    assert_eq!(offered.len(), 1);
+    assert!(offered[0].file.ends_with("d2/x.ron"));
+    assert_eq!(fillwright::tui::drafts::read(&offered[0].path).unwrap().components[0].amount, "23%");
 }

@@ -123,6 +123,11 @@ impl Fingerprint {
         }
         Fingerprint { len: bytes.len(), hash }
     }
+
+    /// The hash as 16 hex digits, for file names.
+    pub fn short_hex(&self) -> String {
+        format!("{:016x}", self.hash)
+    }
 }
 
 /// A recipe read from the library.

@@ -5,6 +5,7 @@
 //! SIGHUP, and on a panic or a signal it first writes any unsaved edits as a draft in the
 //! config folder's `drafts/`, which the next start offers to recover.
 
+pub mod drafts;
 pub mod model;
 pub mod picker;
 pub mod scenes;
@@ -21,12 +22,15 @@ use ratatui::crossterm::event::{self, Event, KeyCode, KeyEventKind, KeyModifiers
 
 use crate::config;
 use crate::library::{clock, Library};
-use crate::recipe::canonical;
 use model::Model;
 use update::{Context, Key, Msg};
 
 /// The draft to write if the session ends suddenly: (path, canonical recipe text).
 static PENDING_DRAFT: Mutex<Option<(PathBuf, String)>> = Mutex::new(None);
+
+/// Held while a frame is drawn, and by a signal's way out: the screen is never drawn
+/// again once the terminal has been given back.
+static SCREEN: Mutex<()> = Mutex::new(());
 
 fn write_pending_draft() {
     if let Ok(guard) = PENDING_DRAFT.lock() {
@@ -41,11 +45,7 @@ fn write_pending_draft() {
 
 /// Keep the pending draft in step with the model after every update.
 fn remember_draft(model: &Model, ctx: &Context) {
-    let pending = model
-        .doc
-        .as_ref()
-        .filter(|doc| doc.dirty())
-        .and_then(|doc| Some((ctx.draft_path(&doc.name)?, canonical::to_text(&doc.recipe))));
+    let pending = model.doc.as_ref().filter(|doc| doc.dirty()).and_then(|doc| ctx.draft_of(&doc.name, &doc.recipe));
     if let Ok(mut guard) = PENDING_DRAFT.lock() {
         *guard = pending;
     }
@@ -103,7 +103,8 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let drafts = config::config_dir().map(|d| d.join("drafts"));
     let color = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
     let sources = config::config_dir().map(|d| d.join("sources"));
-    let mut ctx = Context { library, catalogue, settings, drafts, sources, now: clock::now_utc };
+    let session = std::process::id().to_string();
+    let mut ctx = Context { library, catalogue, settings, drafts, sources, now: clock::now_utc, session };
     let mut model = Model::new(dir.display().to_string(), color);
     model.shown = ctx.settings.shown;
     update::start_with(&mut model, &mut ctx, seed);
@@ -125,8 +126,9 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
         let mut signals = signal_hook::iterator::Signals::new([SIGHUP, SIGTERM, SIGINT]).map_err(|e| e.to_string())?;
         std::thread::spawn(move || {
             if let Some(signal) = signals.forever().next() {
+                let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
                 write_pending_draft();
-                ratatui::restore();
+                restore_terminal();
                 std::process::exit(128 + signal);
             }
         });
@@ -137,11 +139,15 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let restore_hook = std::panic::take_hook();
     std::panic::set_hook(Box::new(move |info| {
         write_pending_draft();
+        restore_terminal();
         restore_hook(info);
     }));
     let result = (|| -> Result<(), String> {
         loop {
-            terminal.draw(|f| view::view(&model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
+            {
+                let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+                terminal.draw(|f| view::view(&model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
+            }
             if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
                 let msg = match event::read().map_err(|e| e.to_string())? {
                     Event::Key(k) => key_of(&k).map(Msg::Key),
@@ -162,6 +168,23 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     if result.is_err() {
         write_pending_draft();
     }
-    ratatui::restore();
+    drop(terminal);
+    restore_terminal();
     result
+}
+
+/// Give the terminal back as it was, on every way out (quit, signal, panic, lost
+/// terminal): the alternate screen left, raw mode off and the cursor shown again.
+fn restore_terminal() {
+    use ratatui::crossterm::{cursor::Show, execute, terminal::LeaveAlternateScreen};
+    let mut out = std::io::stdout();
+    let _ = execute!(out, LeaveAlternateScreen, Show);
+    let _ = ratatui::crossterm::terminal::disable_raw_mode();
+    // Wait until the terminal has taken every byte: a process that exits right after
+    // (on a signal) must not leave the last sequences unread.
+    #[cfg(unix)]
+    // SAFETY: tcdrain only waits on our own standard output descriptor.
+    unsafe {
+        libc::tcdrain(libc::STDOUT_FILENO);
+    }
 }

@@ -70,7 +70,7 @@ pub enum Overlay {
     },
     /// Drafts left by a session that ended with unsaved edits.
     Drafts {
-        names: Vec<String>,
+        drafts: Vec<super::drafts::DraftEntry>,
         selected: usize,
     },
 }
@@ -277,6 +277,8 @@ pub struct Document {
     pub editing: Option<Input>,
     pub computed: Computed,
     pub bench: Bench,
+    /// The draft these edits were recovered from (removed once they are saved or dropped).
+    pub recovered_draft: Option<std::path::PathBuf>,
 }
 
 impl Document {

@@ -27,6 +27,7 @@ pub fn demo_context(dir: &Path) -> Context {
         drafts: None,
         sources: None,
         now: stamp,
+        session: "demo".into(),
     }
 }
 

@@ -8,7 +8,7 @@ use tui_input::{Input, InputRequest};
 use super::model::{fields, Bench, Computed, Document, Field, Model, Overlay, PickFor, Prompt, View};
 use crate::gas::Catalogue;
 use crate::library::{Library, LibraryError, OnConflict, Saved};
-use crate::recipe::{canonical, ComponentLine, FillTarget, Recipe, SourceLine};
+use crate::recipe::{ComponentLine, FillTarget, Recipe, SourceLine};
 use crate::settings::Resolved;
 use crate::thermo::Model as Eos;
 
@@ -51,46 +51,52 @@ pub struct Context {
     pub sources: Option<PathBuf>,
     /// The time stamp for saves.
     pub now: fn() -> String,
+    /// This session, to keep its drafts apart from another's (the process id).
+    pub session: String,
 }
 
 impl Context {
-    /// Where the draft of recipe `name` is kept.
-    pub(crate) fn draft_path(&self, name: &str) -> Option<PathBuf> {
-        self.drafts.as_ref().map(|d| d.join(format!("{name}.ron")))
+    /// The file a recipe of this library is: what its drafts belong to.
+    fn identity(&self, name: &str) -> PathBuf {
+        super::drafts::identity(self.library.dir(), name)
     }
 
-    /// Write the draft of a recipe with unsaved edits.
+    /// Where this session keeps the draft of recipe `name`.
+    pub(crate) fn draft_path(&self, name: &str) -> Option<PathBuf> {
+        let dir = self.drafts.as_ref()?;
+        Some(super::drafts::path_for(dir, &self.identity(name), name, &self.session))
+    }
+
+    /// This session's draft of `recipe` (named `name`): where it goes and its text.
+    pub(crate) fn draft_of(&self, name: &str, recipe: &Recipe) -> Option<(PathBuf, String)> {
+        let path = self.draft_path(name)?;
+        Some((path, super::drafts::text_for(&self.identity(name), name, recipe, &(self.now)())))
+    }
+
+    /// Write this session's draft of a recipe with unsaved edits.
     pub fn write_draft(&self, name: &str, recipe: &Recipe) -> std::io::Result<()> {
-        let Some(path) = self.draft_path(name) else { return Ok(()) };
+        let Some((path, text)) = self.draft_of(name, recipe) else { return Ok(()) };
         if let Some(dir) = path.parent() {
             std::fs::create_dir_all(dir)?;
         }
-        crate::library::atomic::write(&path, canonical::to_text(recipe).as_bytes())
+        crate::library::atomic::write(&path, text.as_bytes())
     }
 
-    fn remove_draft(&self, name: &str) {
-        if let Some(p) = self.draft_path(name) {
+    /// Remove this session's draft of `name`, and the draft its edits were recovered from.
+    fn remove_draft(&self, name: &str, recovered: Option<&std::path::Path>) {
+        for p in self.draft_path(name).iter().map(PathBuf::as_path).chain(recovered) {
             let _ = std::fs::remove_file(p);
         }
     }
 
+    /// The drafts of this library's recipes waiting to be recovered.
+    pub fn drafts(&self) -> Vec<super::drafts::DraftEntry> {
+        self.drafts.as_ref().map(|d| super::drafts::list(d, self.library.dir())).unwrap_or_default()
+    }
+
     /// Names of the drafts waiting to be recovered.
     pub fn draft_names(&self) -> Vec<String> {
-        let Some(dir) = &self.drafts else { return Vec::new() };
-        let mut names: Vec<String> = std::fs::read_dir(dir)
-            .map(|rd| {
-                rd.flatten()
-                    .filter_map(|e| {
-                        let p = e.path();
-                        (p.extension().and_then(|x| x.to_str()) == Some("ron"))
-                            .then(|| p.file_stem().and_then(|s| s.to_str()).map(str::to_string))
-                            .flatten()
-                    })
-                    .collect()
-            })
-            .unwrap_or_default();
-        names.sort();
-        names
+        self.drafts().into_iter().map(|d| d.name).collect()
     }
 }
 
@@ -112,9 +118,9 @@ pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
         }
     }
     refresh(model, ctx);
-    let names = ctx.draft_names();
-    if !names.is_empty() {
-        model.overlay = Overlay::Drafts { names, selected: 0 };
+    let drafts = ctx.drafts();
+    if !drafts.is_empty() {
+        model.overlay = Overlay::Drafts { drafts, selected: 0 };
     }
 }
 
@@ -160,6 +166,7 @@ fn open_document(name: &str, recipe: Recipe, opened: Option<crate::library::Open
         editing: None,
         computed,
         bench: Bench::default(),
+        recovered_draft: None,
     };
     fit_bench(&mut doc);
     super::sheet::attach_record(&mut doc, ctx);
@@ -627,7 +634,7 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
             Key::Char('y') => {
                 // The user chose to drop the edits: no draft of them should linger.
                 if let Some(doc) = &model.doc {
-                    ctx.remove_draft(&doc.name);
+                    ctx.remove_draft(&doc.name, doc.recovered_draft.as_deref());
                 }
                 model.quit = true;
             }
@@ -761,26 +768,27 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
             Key::Esc | Key::Char('q') => {}
             _ => model.overlay = Overlay::History { name, revisions, selected, changes, base },
         },
-        Overlay::Drafts { names, mut selected } => match key {
+        Overlay::Drafts { drafts, mut selected } => match key {
             Key::Up => {
                 selected = selected.saturating_sub(1);
-                model.overlay = Overlay::Drafts { names, selected };
+                model.overlay = Overlay::Drafts { drafts, selected };
             }
             Key::Down => {
-                selected = (selected + 1).min(names.len().saturating_sub(1));
-                model.overlay = Overlay::Drafts { names, selected };
+                selected = (selected + 1).min(drafts.len().saturating_sub(1));
+                model.overlay = Overlay::Drafts { drafts, selected };
             }
             Key::Enter | Key::Char('y') => {
-                let name = names[selected].clone();
-                recover_draft(model, ctx, &name);
+                if let Some(d) = drafts.get(selected) {
+                    recover_draft(model, ctx, d);
+                }
             }
             Key::Char('d') => {
-                let name = names[selected].clone();
-                ctx.remove_draft(&name);
-                model.status = format!("draft of {name} discarded");
-                let rest: Vec<String> = names.into_iter().filter(|n| *n != name).collect();
+                let Some(gone) = drafts.get(selected).cloned() else { return };
+                let _ = std::fs::remove_file(&gone.path);
+                model.status = format!("draft of {} discarded", gone.name);
+                let rest: Vec<_> = drafts.into_iter().filter(|d| d.path != gone.path).collect();
                 if !rest.is_empty() {
-                    model.overlay = Overlay::Drafts { names: rest, selected: 0 };
+                    model.overlay = Overlay::Drafts { drafts: rest, selected: 0 };
                 }
             }
             _ => model.status = "drafts kept for later".into(),
@@ -788,25 +796,19 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
     }
 }
 
-fn recover_draft(model: &mut Model, ctx: &Context, name: &str) {
-    let Some(path) = ctx.draft_path(name) else { return };
-    let text = match crate::library::read_limited(&path) {
-        Ok(t) => t,
-        Err(e) => {
-            model.status = e.to_string();
-            return;
-        }
-    };
-    match Recipe::parse(&text, &path.display().to_string()) {
+fn recover_draft(model: &mut Model, ctx: &Context, draft: &super::drafts::DraftEntry) {
+    match super::drafts::read(&draft.path) {
         Ok(recipe) => {
+            let name = draft.name.as_str();
             let opened = ctx.library.open(name).ok();
             let mut doc = open_document(name, recipe, opened, ctx);
             if doc.opened.is_none() {
                 doc.saved = Recipe::blank();
             }
+            doc.recovered_draft = Some(draft.path.clone());
             model.doc = Some(doc);
             model.view = View::Editor;
-            model.status = format!("recovered the unsaved edits of {name}: s saves them");
+            model.status = format!("recovered the unsaved edits of {}: s saves them", draft.file.display());
         }
         Err(e) => model.status = format!("the draft cannot be read: {e}"),
     }
@@ -838,7 +840,7 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
             if let Some(doc) = model.doc.as_mut() {
                 match ctx.library.save_as(&text, &doc.recipe, &now) {
                     Ok(Saved::Written { revision, .. }) | Ok(Saved::Unchanged { revision }) => {
-                        ctx.remove_draft(&doc.name);
+                        ctx.remove_draft(&doc.name, doc.recovered_draft.take().as_deref());
                         doc.name = text.clone();
                         doc.opened = ctx.library.open(&text).ok();
                         if let Some(o) = &doc.opened {
@@ -874,7 +876,7 @@ fn save(model: &mut Model, ctx: &mut Context, note: Option<String>, overwrite: b
     let on_conflict = if overwrite { OnConflict::Overwrite } else { OnConflict::Refuse };
     match ctx.library.save(&doc.name, &doc.recipe, doc.opened.as_ref(), note.as_deref(), &now, on_conflict) {
         Ok(saved) => {
-            ctx.remove_draft(&doc.name);
+            ctx.remove_draft(&doc.name, doc.recovered_draft.take().as_deref());
             doc.opened = ctx.library.open(&doc.name).ok();
             if let Some(o) = &doc.opened {
                 doc.recipe = o.recipe.clone();

@@ -833,11 +833,12 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             let h = (lines.len() as u16 + 2).min(area.height);
             boxed(frame, centered(area, 76, h), &format!("History of {name}"), lines);
         }
-        Overlay::Drafts { names, selected } => {
+        Overlay::Drafts { drafts, selected } => {
             let mut lines = vec![Line::raw("A session ended with unsaved edits; they were kept:")];
-            for (k, n) in names.iter().enumerate() {
+            for (k, d) in drafts.iter().enumerate() {
+                let when = d.written.get(..16).unwrap_or(&d.written).replace('T', " ");
                 lines.push(Line::styled(
-                    format!("{} {n}", if k == *selected { "▶" } else { " " }),
+                    format!("{} {}  {when}", if k == *selected { "▶" } else { " " }, clip(&d.name, 38)),
                     if k == *selected { theme.selected() } else { Style::default() },
                 ));
             }
