@@ -33,7 +33,7 @@ pub fn load_catalogue() -> Result<Catalogue, String> {
             meta.len()
         ));
     }
-    let text = std::fs::read_to_string(&path).map_err(|e| format!("{}: {e}", path.display()))?;
+    let text = crate::library::read_regular(&path, MAX_CATALOGUE_BYTES as usize).map_err(|e| e.to_string())?;
     let user = Catalogue::parse(&text, &path.display().to_string()).map_err(|e| e.to_string())?;
     Ok(built_in.with_overrides(user))
 }
@@ -99,7 +99,7 @@ pub fn load_settings() -> Result<crate::settings::Resolved, String> {
         return Err(format!("{}: {} bytes is too large for a settings file; not read", path.display(), meta.len()));
     }
     let origin = path.display().to_string();
-    let text = std::fs::read_to_string(&path).map_err(|e| format!("{origin}: {e}"))?;
+    let text = crate::library::read_regular(&path, MAX_SETTINGS_BYTES as usize).map_err(|e| e.to_string())?;
     let settings = Settings::parse(&text, &origin).map_err(|e| e.to_string())?;
     settings.resolve(&text, &origin).map_err(|e| e.to_string())
 }

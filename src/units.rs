@@ -89,6 +89,23 @@ fn error(what: &'static str, text: &str, problem: impl Into<String>, accepted: &
     QuantityError { what, text: text.to_string(), problem: problem.into(), accepted }
 }
 
+/// Refuse a value outside the range the program computes in (a mistyped exponent, most
+/// likely), naming the range.
+fn within(
+    what: &'static str,
+    text: &str,
+    value: f64,
+    (low, high): (f64, f64),
+    range: &str,
+    accepted: &'static str,
+) -> Result<(), QuantityError> {
+    if (low..=high).contains(&value) {
+        Ok(())
+    } else {
+        Err(error(what, text, format!("is outside the range this program works in ({range})"), accepted))
+    }
+}
+
 fn number_and_unit<'a>(
     what: &'static str,
     text: &'a str,
@@ -127,6 +144,7 @@ pub fn parse_pressure(text: &str, ambient_pa: f64) -> Result<f64, QuantityError>
     if pa <= 0.0 {
         return Err(error(what, text, "the absolute pressure must be above zero", PRESSURE_UNITS));
     }
+    within(what, text, pa, (1.0, 1.0e9), "1 Pa to 10000 bar", PRESSURE_UNITS)?;
     Ok(pa)
 }
 
@@ -143,6 +161,7 @@ pub fn parse_temperature(text: &str) -> Result<f64, QuantityError> {
     if kelvin <= 0.0 {
         return Err(error(what, text, "is at or below absolute zero", TEMPERATURE_UNITS));
     }
+    within(what, text, kelvin, (1.0, 2000.0), "1 K to 2000 K", TEMPERATURE_UNITS)?;
     Ok(kelvin)
 }
 
@@ -159,6 +178,7 @@ pub fn parse_volume(text: &str) -> Result<f64, QuantityError> {
     if value <= 0.0 {
         return Err(error(what, text, "must be above zero", VOLUME_UNITS));
     }
+    within(what, text, value * factor, (1.0e-9, 1.0e3), "0.001 mL to 1000 m3", VOLUME_UNITS)?;
     Ok(value * factor)
 }
 
@@ -187,6 +207,10 @@ pub fn parse_amount(text: &str) -> Result<AmountInput, QuantityError> {
     };
     if value <= 0.0 {
         return Err(error(what, text, "must be above zero", AMOUNT_UNITS));
+    }
+    match amount {
+        AmountInput::Moles(n) => within(what, text, n, (1.0e-12, 1.0e9), "1e-12 mol to 1e9 mol", AMOUNT_UNITS)?,
+        AmountInput::Grams(g) => within(what, text, g, (1.0e-9, 1.0e12), "1e-9 g to 1e12 g", AMOUNT_UNITS)?,
     }
     Ok(amount)
 }
@@ -354,6 +378,24 @@ mod tests {
         assert_eq!(parse_amount("1mol").unwrap(), AmountInput::Moles(1.0));
         assert_eq!(parse_amount("32g").unwrap(), AmountInput::Grams(32.0));
         assert_eq!(parse_amount("0.5kg").unwrap(), AmountInput::Grams(500.0));
+    }
+
+    #[test]
+    fn values_outside_the_working_range_are_refused_naming_it() {
+        for (text, e) in [
+            ("1e-300bar", parse_pressure("1e-300bar", 1e5).unwrap_err()),
+            ("1e300bar", parse_pressure("1e300bar", 1e5).unwrap_err()),
+            ("1e300K", parse_temperature("1e300K").unwrap_err()),
+            ("1e308L", parse_volume("1e308L").unwrap_err()),
+            ("1e-320L", parse_volume("1e-320L").unwrap_err()),
+            ("1e300g", parse_amount("1e300g").map(|_| ()).unwrap_err()),
+        ] {
+            assert!(e.problem.contains("outside the range"), "{text}: {}", e.problem);
+            assert_eq!(e.text, text);
+        }
+        // The ends of the range are inside it.
+        assert_eq!(parse_pressure("10000bar", 1e5).unwrap(), 1.0e9);
+        assert!(parse_volume("0.44L").is_ok() && parse_temperature("-40C").is_ok());
     }
 
     #[test]

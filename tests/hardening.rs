@@ -226,6 +226,13 @@ fn a_fifo_is_refused_at_once_by_every_reader_and_named_by_list() {
     let o = run_in(&config, &["list"]);
     let line = out(&o).lines().find(|l| l.starts_with("pipe")).map(str::to_string).unwrap_or_default();
     assert!(line.contains("skipped") && line.contains("FIFO"), "{}", out(&o));
+    // A settings file that is a FIFO does not hang the program either.
+    let settings = config.join("settings.ron");
+    assert!(Command::new("mkfifo").arg(&settings).status().unwrap().success());
+    let o = finish(spawn(&config, &["plan", "flue-gas-span"]), Duration::from_secs(30));
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("settings.ron") && err(&o).contains("FIFO"), "{}", err(&o));
+    std::fs::remove_file(&settings).unwrap();
     // A folder named like a recipe is named too.
     std::fs::create_dir(dir.join("folder.ron")).unwrap();
     let o = run_in(&config, &["list"]);
@@ -491,4 +498,47 @@ fn a_warm_fill_reading_above_the_working_pressure_that_settles_within_it_is_expl
     assert_ne!(r["severity"], "stop", "{r}");
     let details = r["details"].to_string();
     assert!(details.contains("normal while the gas is warm"), "{details}");
+}
+
+#[test]
+fn negative_and_extreme_values_are_refused_naming_the_option_or_the_place() {
+    let base = ["plan", "--mix", "N2", "--volume", "10L"];
+    for (option, value) in [
+        ("--ambient", "-5bar"),
+        ("--working-pressure", "-5bar"),
+        ("--test-pressure", "-1MPa"),
+        ("--gauge-resolution", "-0.1bar"),
+        ("--scale-resolution", "-1g"),
+        ("--fill-temp", "-300C"),
+        ("--temp", "1e300K"),
+        ("--pressure", "1e-300bar"),
+    ] {
+        let mut args: Vec<&str> = base.to_vec();
+        if option != "--pressure" {
+            args.extend(["--pressure", "150bar"]);
+        }
+        args.extend([option, value]);
+        let o = common::run_fillwright("negative", &args);
+        assert_eq!(o.status.code(), Some(1), "{option} {value}: {}", err(&o));
+        assert!(err(&o).contains(option) && err(&o).contains(value), "{option} {value}: {}", err(&o));
+    }
+    // A state the model cannot reach names the inputs.
+    let o = common::run_fillwright(
+        "negative",
+        &["state", "--mix", "N2", "--temp", "2K", "--volume", "10L", "--pressure", "100bar"],
+    );
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("--temp 2K") && err(&o).contains("--pressure 100bar"), "{}", err(&o));
+    // Recipe values out of range are placed in the file.
+    let config = config("extreme");
+    let text = std::fs::read_to_string(config.join("library/flue-gas-span.ron")).unwrap();
+    let (line, _) = text.lines().enumerate().find(|(_, l)| l.contains("\"10L\"")).unwrap();
+    for value in ["1e308L", "1e-320L"] {
+        let file = config.join("extreme.ron");
+        std::fs::write(&file, text.replace("\"10L\"", &format!("\"{value}\""))).unwrap();
+        let o = run_in(&config, &["plan", file.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(1));
+        assert!(err(&o).contains(&format!("extreme.ron:{}:", line + 1)), "{value}: {}", err(&o));
+        assert!(err(&o).contains("outside the range"), "{}", err(&o));
+    }
 }

@@ -176,3 +176,68 @@ fn the_terminal_is_given_back_whole_after_a_signal() {
         t.kill_session();
     }
 }
+
+#[test]
+fn two_screens_saving_one_recipe_at_once_never_lose_an_edit() {
+    let config = fresh_config("two-screens");
+    let t = Tmux::new("two-screens");
+    let bin = env!("CARGO_BIN_EXE_fillwright");
+    let start = |session: &str| {
+        let cmd = format!("env FILLWRIGHT_CONFIG={} {bin} edit flue-gas-span", config.display());
+        t.run(&["new-session", "-d", "-s", session, "-x", "100", "-y", "30", &cmd]);
+    };
+    let screen = |session: &str| t.run(&["capture-pane", "-p", "-t", session]);
+    let wait = |session: &str, needles: &[&str]| -> String {
+        let begun = Instant::now();
+        loop {
+            let s = screen(session);
+            if needles.iter().any(|n| s.contains(n)) {
+                return s;
+            }
+            assert!(begun.elapsed() < Duration::from_secs(20), "{session} waited for {needles:?}:\n{s}");
+            std::thread::sleep(Duration::from_millis(50));
+        }
+    };
+    // The first start copies the demo library in; then two screens open the same recipe.
+    start("a");
+    wait("a", &["flue-gas-span rev 1"]);
+    start("b");
+    wait("b", &["flue-gas-span rev 1"]);
+    let edit = |session: &str, value: &str| {
+        for k in ["Home", "Down", "Down", "Down", "Down", "Down", "Down", "Down", "Enter", "C-u"] {
+            t.run(&["send-keys", "-t", session, k]);
+        }
+        t.run(&["send-keys", "-t", session, "-l", value]);
+        t.run(&["send-keys", "-t", session, "Enter"]);
+        wait(session, &["unsaved changes"]);
+    };
+    let mut kept = Vec::new();
+    for round in 0..3 {
+        let (va, vb) = (format!("1{round}%"), format!("2{round}%"));
+        edit("a", &va);
+        edit("b", &vb);
+        // Both save at the same moment (one tmux command sends both keys).
+        t.run(&["send-keys", "-t", "a", "s", ";", "send-keys", "-t", "b", "s"]);
+        let landed = format!("saved rev {}", round + 2);
+        let sa = wait("a", &[&landed, "Changed on disk"]);
+        let sb = wait("b", &[&landed, "Changed on disk"]);
+        let (a_saved, b_saved) = (sa.contains(&landed), sb.contains(&landed));
+        assert!(a_saved != b_saved, "round {round}: exactly one save may land\nA:\n{sa}\nB:\n{sb}");
+        let (loser, value) = if a_saved { ("b", va) } else { ("a", vb) };
+        kept.push(value.clone());
+        let file = std::fs::read_to_string(config.join("library/flue-gas-span.ron")).unwrap();
+        assert!(file.contains(&format!("amount: \"{value}\"")), "round {round}: the landed save is in the file");
+        // The refused screen still holds its edit; it reloads, and both go on from the file.
+        t.run(&["send-keys", "-t", loser, "r"]);
+        wait(loser, &["reloaded"]);
+    }
+    // Every landed save is a revision in the history.
+    let o = Command::new(bin)
+        .args(["history", "flue-gas-span", "--format", "json"])
+        .env("FILLWRIGHT_CONFIG", &config)
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["revisions"].as_array().unwrap().len(), 1 + kept.len());
+    t.run(&["kill-server"]);
+}

@@ -105,7 +105,7 @@ pub struct Common {
     pub format: Format,
     /// Ambient pressure for gauge readings and gauge input (barg, psig, kPag).
     /// Default: the settings file's, else 1.01325bar.
-    #[arg(long, value_name = "P")]
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
     pub ambient: Option<String>,
 }
 

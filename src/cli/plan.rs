@@ -35,11 +35,11 @@ pub struct PlanArgs {
     pub order: Option<Vec<String>>,
     /// Smallest pressure step the fill gauge resolves; smaller steps are flagged.
     /// Default: the settings file's, else 0.1bar.
-    #[arg(long, value_name = "P")]
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
     pub gauge_resolution: Option<String>,
     /// Smallest mass step the scale resolves; smaller additions are flagged.
     /// Default: the settings file's, else 0.1g.
-    #[arg(long, value_name = "M")]
+    #[arg(long, value_name = "M", allow_hyphen_values = true)]
     pub scale_resolution: Option<String>,
     /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else the config folder's library/).
     #[arg(long, value_name = "DIR")]
@@ -172,10 +172,10 @@ pub struct OrderArgs {
     #[arg(long, value_name = "T", allow_hyphen_values = true)]
     pub temp: Option<String>,
     /// Cylinder working pressure at 15 °C (with --mix), for the rating check.
-    #[arg(long, value_name = "P")]
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
     pub working_pressure: Option<String>,
     /// Cylinder test pressure (with --mix): a fill above it is refused.
-    #[arg(long, value_name = "P")]
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
     pub test_pressure: Option<String>,
 }
 

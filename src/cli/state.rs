@@ -167,7 +167,17 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
     let model = choose_model(args.common.model, &composition, &catalogue, &settings);
     let x = &composition.fractions;
     let fluid_of = |m: Model| Fluid::new(&catalogue, &composition.gases, m);
-    let chosen = solve(&fluid_of(model)?, x, &given, unknown)?;
+    let chosen = solve(&fluid_of(model)?, x, &given, unknown).map_err(|e| {
+        // Name what was given: the state the model could not reach.
+        let mut at = vec![format!("--temp {}", args.temp.trim())];
+        for (option, value) in [("--pressure", &args.pressure), ("--volume", &args.volume), ("--amount", &args.amount)]
+        {
+            if let Some(v) = value {
+                at.push(format!("{option} {}", v.trim()));
+            }
+        }
+        Refused(format!("no {} from {}: {e}", unknown.name(), at.join(", ")))
+    })?;
     let others: Vec<(Model, Result<Solved, ThermoError>)> = Model::ALL
         .iter()
         .filter(|&&m| m != model)

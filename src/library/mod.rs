@@ -634,30 +634,35 @@ fn kind_allowed(meta: &std::fs::Metadata) -> Result<(), String> {
     } else {
         "not a regular file"
     };
-    Err(format!("{what}, not a regular file; only regular files are read as recipes"))
+    Err(format!("{what}, not a regular file; only regular files are read"))
 }
 
 /// Read a file, refusing anything larger than a recipe can be before reading it, and
 /// anything that is not a regular file (without blocking on a FIFO: it is opened
 /// non-blocking and looked at before a byte is read).
 pub fn read_limited(path: &Path) -> Result<String, LibraryError> {
+    read_regular(path, MAX_RECIPE_BYTES)
+}
+
+/// As [`read_limited`], for files of at most `limit` bytes (settings, catalogues).
+pub fn read_regular(path: &Path, limit: usize) -> Result<String, LibraryError> {
     use std::io::Read;
     use std::os::unix::fs::OpenOptionsExt;
     let mut file =
         std::fs::OpenOptions::new().read(true).custom_flags(libc::O_NONBLOCK).open(path).map_err(io(path))?;
     let meta = file.metadata().map_err(io(path))?;
     kind_allowed(&meta).map_err(|why| LibraryError::Unsafe { path: path.to_path_buf(), why })?;
-    if meta.len() > MAX_RECIPE_BYTES as u64 {
+    if meta.len() > limit as u64 {
         return Err(LibraryError::TooLarge { path: path.to_path_buf(), size: meta.len() });
     }
     let mut bytes = Vec::with_capacity(meta.len() as usize);
-    file.by_ref().take(MAX_RECIPE_BYTES as u64 + 1).read_to_end(&mut bytes).map_err(io(path))?;
-    if bytes.len() > MAX_RECIPE_BYTES {
+    file.by_ref().take(limit as u64 + 1).read_to_end(&mut bytes).map_err(io(path))?;
+    if bytes.len() > limit {
         return Err(LibraryError::TooLarge { path: path.to_path_buf(), size: bytes.len() as u64 });
     }
     String::from_utf8(bytes).map_err(|_| LibraryError::Unsafe {
         path: path.to_path_buf(),
-        why: "is not UTF-8 text; a recipe is a RON text file".into(),
+        why: "is not UTF-8 text; it must be a RON text file".into(),
     })
 }
 
