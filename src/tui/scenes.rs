@@ -66,6 +66,27 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
             }),
         ),
         (
+            "fill-sheet-stop",
+            Box::new(|m: &mut Model, c: &mut Context| {
+                // The flue-gas order filled above its cylinder's working pressure.
+                if let Ok(opened) = c.library.open("flue-gas-span") {
+                    let r = crate::recipe::Recipe {
+                        fill: crate::recipe::FillTarget::Pressure("230bar".into()),
+                        ..opened.recipe
+                    };
+                    let _ = c.library.save_as("flue-gas-overfilled", &r, &stamp());
+                }
+                super::update::refresh(m, c);
+                press(m, c, &[Key::Char('/')]);
+                type_text(m, c, "overfilled");
+                press(m, c, &[Key::Enter, Key::Char('3'), Key::Char('t')]);
+                type_text(m, c, "30C");
+                press(m, c, &[Key::Enter, Key::Char(' '), Key::Char('y'), Key::Char(' '), Key::Char('r')]);
+                type_text(m, c, "250bar");
+                press(m, c, &[Key::Enter]);
+            }),
+        ),
+        (
             "models",
             Box::new(move |m: &mut Model, c: &mut Context| {
                 open_flue(m, c);

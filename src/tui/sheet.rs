@@ -144,11 +144,16 @@ pub fn reading_notes(doc: &Document, limits: &BenchLimits, d: &Shown, step: usiz
                 ),
             ));
         } else if *actual > w && t > REFERENCE_TEMPERATURE_K {
+            let (severity, verdict) = if t > limits.max_k {
+                (Severity::Caution, "but the cylinder is hotter than its service range")
+            } else {
+                (Severity::Ok, "Normal")
+            };
             notes.push((
-                Severity::Ok,
+                severity,
                 format!(
                     "{} {u} is above the working pressure only because the gas is warm ({}): it settles to {} {u} \
-                     at 15 °C, within the rating. Normal.",
+                     at 15 °C, within the rating. {verdict}.",
                     d.pf(*actual),
                     d.tf(t),
                     d.pf(settled)

@@ -330,7 +330,9 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let mut lines = Vec::new();
     if let Some(stop) = super::sheet::first_stop(doc) {
         let style = theme.severity(Severity::Stop).add_modifier(Modifier::BOLD);
-        lines.push(Line::styled(format!("STOP - do not fill as planned: {stop}"), style));
+        for l in wrap_words(&format!("STOP - do not fill as planned: {stop}"), usize::from(inner.width.max(20))) {
+            lines.push(Line::styled(l, style));
+        }
         lines.push(Line::styled(
             if b.stop_accepted.as_deref() == Some(stop.as_str()) {
                 "steps unlocked on your own judgement".to_string()
@@ -344,8 +346,9 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         Some(t) => format!("planned for {}; cylinder now {}: stop at 'now'", d.tf(p.fill_temperature_k), d.tf(t)),
         None => format!("readings for {}; t: type the cylinder temperature now", d.tf(p.fill_temperature_k)),
     }));
+    let width = usize::from(inner.width.max(20));
     if let Some((severity, note)) = b.measured_k.and_then(|t| super::sheet::temperature_note(t, &model.limits, d)) {
-        lines.push(Line::styled(note, theme.severity(severity)));
+        lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, theme.severity(severity))));
     }
     lines.push(Line::styled(
         format!(
@@ -388,7 +391,7 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
             Severity::Ok => Style::default(),
             s => theme.severity(s),
         };
-        lines.push(Line::styled(note, style));
+        lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, style)));
     }
     if p.steps.iter().any(|s| !s.flags.is_empty()) {
         lines.push(Line::styled(
