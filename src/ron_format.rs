@@ -39,6 +39,25 @@ pub fn clip(text: &str, width: usize) -> String {
     }
 }
 
+/// `text` in lines of at most `width` characters, broken at spaces.
+pub fn wrap_words(text: &str, width: usize) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
+            lines.push(std::mem::take(&mut line));
+        }
+        if !line.is_empty() {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    if !line.is_empty() {
+        lines.push(line);
+    }
+    lines
+}
+
 /// A message with every overlong word in it (a pasted value, a runaway number) shortened:
 /// its beginning and end stay, the middle is replaced by how many characters were left
 /// out. Messages then stay readable when a file or an option holds a huge value.
@@ -83,5 +102,7 @@ mod tests {
         assert_eq!(clip("abcdef", 4), "abc…");
         assert_eq!(clip("abc", 4), "abc");
         assert_eq!(clip("abc", 0), "");
+        assert_eq!(wrap_words("settled pressure 230 bar", 12), ["settled", "pressure 230", "bar"]);
+        assert_eq!(wrap_words("", 12), Vec::<String>::new());
     }
 }

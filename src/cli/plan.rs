@@ -129,31 +129,12 @@ pub fn stop_banner(message: &str) -> String {
     let mut o = String::new();
     o.push_str(&format!("{}\n", "!".repeat(78)));
     o.push_str("!! STOP - DO NOT FILL AS PLANNED\n");
-    for line in wrap(message, 72) {
+    for line in crate::ron_format::wrap_words(message, 72) {
         o.push_str(&format!("!! {line}\n"));
     }
     o.push_str("!! Lower the fill, or use a cylinder rated for it (see its markings).\n");
     o.push_str(&format!("{}\n\n", "!".repeat(78)));
     o
-}
-
-/// `text` in lines of at most `width` characters, broken at spaces.
-fn wrap(text: &str, width: usize) -> Vec<String> {
-    let mut lines: Vec<String> = Vec::new();
-    let mut line = String::new();
-    for word in text.split_whitespace() {
-        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
-            lines.push(std::mem::take(&mut line));
-        }
-        if !line.is_empty() {
-            line.push(' ');
-        }
-        line.push_str(word);
-    }
-    if !line.is_empty() {
-        lines.push(line);
-    }
-    lines
 }
 
 /// An order given on the command line instead of a recipe.

@@ -2,7 +2,7 @@
 //! Meaning is never carried by colour alone: selection has a marker, severities and flags
 //! have words and signs, and with `NO_COLOR` no colour is used at all.
 
-use crate::ron_format::clip;
+use crate::ron_format::{clip, wrap_words};
 use ratatui::layout::{Constraint, Layout, Rect};
 use ratatui::style::{Color, Modifier, Style};
 use ratatui::symbols::Marker;
@@ -632,25 +632,6 @@ fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         lines.push(Line::styled(format!("- {c}"), theme.dim()));
     }
     frame.render_widget(Paragraph::new(lines).wrap(Wrap { trim: false }), inner);
-}
-
-/// `text` in lines of at most `width` characters, broken at spaces.
-fn wrap_words(text: &str, width: usize) -> Vec<String> {
-    let mut lines: Vec<String> = Vec::new();
-    let mut line = String::new();
-    for word in text.split_whitespace() {
-        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
-            lines.push(std::mem::take(&mut line));
-        }
-        if !line.is_empty() {
-            line.push(' ');
-        }
-        line.push_str(word);
-    }
-    if !line.is_empty() {
-        lines.push(line);
-    }
-    lines
 }
 
 fn centered(area: Rect, width: u16, height: u16) -> Rect {
