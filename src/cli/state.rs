@@ -6,6 +6,7 @@ use serde_json::json;
 use super::{choose_model, print_json, Common, Failure, Format, Refused};
 use crate::config;
 use crate::mixture::Composition;
+use crate::thermo::phases::Phase;
 use crate::thermo::{Fluid, Model, ThermoError};
 use crate::units::{self, bar, litres, AmountInput, Shown, Sig, R};
 
@@ -69,8 +70,11 @@ struct Solved {
     amount_mol: f64,
     z: f64,
     mass_g: f64,
-    near_condensation: bool,
-    liquid_like: bool,
+    phase: Phase,
+    /// Fraction of the amount that is liquid.
+    liquid_fraction: f64,
+    /// The model that judged the phase (the fluid's own, or the Peng–Robinson screen).
+    judged_by: Model,
 }
 
 impl Solved {
@@ -90,25 +94,36 @@ fn solve(fluid: &Fluid, x: &[f64], given: &Given, unknown: Unknown) -> Result<So
         AmountInput::Grams(m) => m / molar_mass,
     };
     let t = given.t_k;
-    let (p, v, n) = match unknown {
+    // The equilibrium state: where gas and liquid coexist, the pressure is their common
+    // one and the volume holds both.
+    let (e, v, n) = match unknown {
         Unknown::Pressure => {
             let v = given.volume_m3.unwrap_or_default();
             let n = given.amount.map(moles).unwrap_or_default();
             let amounts: Vec<f64> = x.iter().map(|xi| xi * n).collect();
-            (fluid.pressure(t, v, &amounts)?, v, n)
+            (fluid.equilibrium_tv(t, v, &amounts)?, v, n)
         }
         Unknown::Volume => {
             let p = given.p_pa.unwrap_or_default();
             let n = given.amount.map(moles).unwrap_or_default();
-            (p, fluid.volume(t, p, n, x)?, n)
+            let e = fluid.equilibrium_tp(t, p, x)?;
+            let v = n * e.molar_volume_m3;
+            if !(v.is_finite() && v > 0.0) {
+                return Err(ThermoError::Amount(n));
+            }
+            (e, v, n)
         }
         Unknown::Amount => {
             let p = given.p_pa.unwrap_or_default();
             let v = given.volume_m3.unwrap_or_default();
-            (p, v, fluid.amount(t, p, v, x)?)
+            if !(v.is_finite() && v > 0.0) {
+                return Err(ThermoError::Volume(v * 1e3));
+            }
+            let e = fluid.equilibrium_tp(t, p, x)?;
+            (e.clone(), v, v / e.molar_volume_m3)
         }
     };
-    let tp = fluid.state_tp(t, p, x)?;
+    let p = e.pressure_pa;
     Ok(Solved {
         model: fluid.model(),
         p_pa: p,
@@ -116,8 +131,9 @@ fn solve(fluid: &Fluid, x: &[f64], given: &Given, unknown: Unknown) -> Result<So
         amount_mol: n,
         z: p * v / (n * R * t),
         mass_g: n * molar_mass,
-        near_condensation: tp.near_condensation,
-        liquid_like: tp.liquid_like,
+        phase: e.phase,
+        liquid_fraction: e.liquid_fraction,
+        judged_by: e.judged_by,
     })
 }
 
@@ -208,8 +224,11 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
                 "z": chosen.z,
                 "mass_g": chosen.mass_g,
                 "solved": unknown.name(),
-                "near_condensation": chosen.near_condensation,
-                "liquid_like": chosen.liquid_like,
+                "phase": chosen.phase.key(),
+                "liquid_fraction": chosen.liquid_fraction,
+                "phase_judged_by": chosen.judged_by.key(),
+                "near_condensation": chosen.phase != Phase::Supercritical && chosen.phase != Phase::Gas,
+                "liquid_like": chosen.phase == Phase::Liquid,
                 "components": ids.iter().zip(x).map(|(id, xi)| json!({"id": id, "mole_fraction": xi})).collect::<Vec<_>>(),
                 "comparison": comparison,
             }));
@@ -260,12 +279,25 @@ fn print_text(
     println!("  mass         {:>12} g", Sig(s.mass_g, 6));
     println!("  Z            {:>12.5}", s.z);
     println!("  density      {:>12} g/L", Sig(s.mass_g / litres(s.volume_m3), 5));
-    if s.liquid_like {
-        println!();
-        println!("  ! The stable root is liquid-like: at this state the mixture may be liquid or two-phase.");
-    } else if s.near_condensation {
-        println!();
-        println!("  ! The equation has a liquid-like root too: the state is near condensation.");
+    println!(
+        "  phase        {:>12}{}",
+        s.phase.key(),
+        if s.judged_by != s.model { format!("  (judged by {})", s.judged_by.key()) } else { String::new() }
+    );
+    match s.phase {
+        Phase::TwoPhase => {
+            println!();
+            println!(
+                "  ! Gas and liquid together: {:.1} % of the amount is liquid. The pressure is the vapour",
+                s.liquid_fraction * 100.0
+            );
+            println!("    pressure of the contents; adding gas makes more liquid, not more pressure.");
+        }
+        Phase::Liquid => {
+            println!();
+            println!("  ! Liquid: the contents are a liquid at this state, not a gas.");
+        }
+        Phase::Gas | Phase::Supercritical => {}
     }
     println!();
     let unit = match unknown {

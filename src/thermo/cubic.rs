@@ -180,13 +180,7 @@ pub fn solve_z(kind: CubicKind, m: &Mix, t_k: f64, p_pa: f64) -> Option<ZSolutio
     let rt = R * t_k;
     let big_a = m.a * p_pa / (rt * rt);
     let big_b = m.b * p_pa / rt;
-    let (eps, sig) = kind.epsilon_sigma();
-    let c2 = -(1.0 + big_b - (eps + sig) * big_b);
-    let c1 = big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b);
-    let c0 = -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b));
-    let mut roots: Vec<f64> = real_cubic_roots(c2, c1, c0).into_iter().filter(|&z| z > big_b).collect();
-    roots.sort_by(f64::total_cmp);
-    roots.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs());
+    let roots = z_roots(kind, m, t_k, p_pa);
     let (z, root) = match roots.as_slice() {
         [] => return None,
         [z] => (*z, Root::Single),
@@ -201,6 +195,22 @@ pub fn solve_z(kind: CubicKind, m: &Mix, t_k: f64, p_pa: f64) -> Option<ZSolutio
         }
     };
     Some(ZSolution { z, root, big_a, big_b })
+}
+
+/// Every root of the cubic in Z above the co-volume B at (T, P), smallest first: one, or
+/// the liquid-like, the unstable middle and the vapour-like ones.
+pub fn z_roots(kind: CubicKind, m: &Mix, t_k: f64, p_pa: f64) -> Vec<f64> {
+    let rt = R * t_k;
+    let big_a = m.a * p_pa / (rt * rt);
+    let big_b = m.b * p_pa / rt;
+    let (eps, sig) = kind.epsilon_sigma();
+    let c2 = -(1.0 + big_b - (eps + sig) * big_b);
+    let c1 = big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b);
+    let c0 = -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b));
+    let mut roots: Vec<f64> = real_cubic_roots(c2, c1, c0).into_iter().filter(|&z| z > big_b).collect();
+    roots.sort_by(f64::total_cmp);
+    roots.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs());
+    roots
 }
 
 /// ln φ_i of each component at a solved Z.

@@ -81,6 +81,67 @@ impl Gerg {
         p_kpa.is_finite().then_some(p_kpa * 1e3)
     }
 
+    /// Molar density, mol/m³, at (T, P) on the branch that Newton's method reaches from
+    /// `rho0` (mol/m³): a liquid start finds the liquid root. None where the iteration
+    /// leaves the branch (∂P/∂ρ ≤ 0) or does not converge.
+    pub fn density_from(&self, x: &[f64], t_k: f64, p_pa: f64, rho0: f64) -> Option<f64> {
+        let mut g = self.model(x, t_k)?;
+        let target = p_pa * 1e-3;
+        let mut d = rho0 * 1e-3;
+        for _ in 0..100 {
+            g.d = d;
+            let p = g.properties();
+            let f = p - target;
+            if !(g.dp_dd > 0.0 && p.is_finite()) {
+                return None;
+            }
+            let next = d - f / g.dp_dd;
+            let next = next.clamp(0.5 * d, 2.0 * d);
+            if (next - d).abs() <= 1e-13 * d {
+                return Some(next * 1e3);
+            }
+            d = next;
+        }
+        None
+    }
+
+    /// Molar Gibbs energy, J/mol, at (T, ρ in mol/m³).
+    fn gibbs(&self, x: &[f64], t_k: f64, rho_mol_m3: f64) -> Option<f64> {
+        let mut g = self.model(x, t_k)?;
+        g.d = rho_mol_m3 * 1e-3;
+        g.properties();
+        g.g.is_finite().then_some(g.g)
+    }
+
+    /// The saturation state of a pure fluid from GERG-2008's own equation: the pressure
+    /// where liquid and vapour have equal Gibbs energy, by Newton's method on P
+    /// (d(g_V − g_L)/dP = v_V − v_L), started from `p0` and a liquid density `rho_l0`.
+    /// Returns (P in Pa, ρ_liquid, ρ_vapour in mol/m³).
+    pub fn saturation(&self, x: &[f64], t_k: f64, p0: f64, rho_l0: f64) -> Option<(f64, f64, f64)> {
+        let mut p = p0;
+        // Newton on P(ρ) converges from above on the liquid branch and from below on the
+        // vapour branch (P is convex in ρ on the first, concave on the second).
+        let mut rho_l = 1.3 * rho_l0;
+        let mut rho_v = 0.5 * p0 / (crate::thermo::R * t_k);
+        for _ in 0..100 {
+            rho_v = self
+                .density_from(x, t_k, p, 0.5 * p / (crate::thermo::R * t_k))
+                .or_else(|| self.density_from(x, t_k, p, rho_v))?;
+            rho_l = self.density_from(x, t_k, p, 1.3 * rho_l).or_else(|| self.density_from(x, t_k, p, rho_l))?;
+            if (rho_l - rho_v).abs() <= 1e-6 * rho_l {
+                return None; // both searches found one root: too close to the critical point
+            }
+            let dg = self.gibbs(x, t_k, rho_v)? - self.gibbs(x, t_k, rho_l)?;
+            let next = p - dg / (1.0 / rho_v - 1.0 / rho_l);
+            let next = next.clamp(0.8 * p, 1.25 * p);
+            if (next - p).abs() <= 1e-12 * p {
+                return Some((next, rho_l, rho_v));
+            }
+            p = next;
+        }
+        None
+    }
+
     /// Molar density, mol/m³, at (T, P).
     pub fn density(&self, x: &[f64], t_k: f64, p_pa: f64) -> Option<f64> {
         let mut g = self.model(x, t_k)?;

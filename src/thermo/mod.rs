@@ -7,6 +7,7 @@
 pub mod cubic;
 pub mod gerg;
 pub mod kij;
+pub mod phases;
 pub mod survey;
 
 use std::fmt;

@@ -1,0 +1,508 @@
+//! Which phase a state is in, and the real answer where gas and liquid coexist.
+//!
+//! - A **pure gas** below its critical temperature has a saturation state: equal pressure
+//!   and equal Gibbs energy of liquid and vapour. Under GERG-2008 it comes from GERG's own
+//!   pure-fluid equation (the Gibbs energy of the `aga8` crate), under a cubic from the
+//!   cubic's fugacities; both by Newton's method on the pressure, since
+//!   d(g_V − g_L)/dP = v_V − v_L at fixed temperature.
+//! - A **mixture** is judged by Michelsen's tangent-plane stability test (Fluid Phase
+//!   Equilib. 9 (1982) 1) with the model itself where it gives fugacities (the cubics),
+//!   else with Peng–Robinson on the same gases as the screen. A split feed is flashed:
+//!   successive substitution on the K-values with the Rachford–Rice equation (J. Pet.
+//!   Technol. 4 (1952) 19). In a cylinder (fixed T, V, n) the pressure is found where the
+//!   equilibrium molar volume equals V/n: that volume falls monotonically with pressure
+//!   at fixed temperature, so a bisection on ln P brackets it.
+//!
+//! The ideal-gas model has no liquid of its own; its phases are judged by the screen.
+
+use super::cubic::{self, Root};
+use super::{Fluid, Model, ThermoError, MAX_PRESSURE_PA, R};
+
+/// Smallest mole fraction treated as present.
+pub const TRACE: f64 = 1e-12;
+
+/// The phase of a state.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Phase {
+    Gas,
+    Liquid,
+    /// Above the critical temperature and pressure (pseudo-critical for a mixture).
+    Supercritical,
+    /// Gas and liquid together.
+    TwoPhase,
+}
+
+impl Phase {
+    /// The key in JSON and text.
+    pub fn key(self) -> &'static str {
+        match self {
+            Phase::Gas => "gas",
+            Phase::Liquid => "liquid",
+            Phase::Supercritical => "supercritical",
+            Phase::TwoPhase => "two-phase",
+        }
+    }
+}
+
+/// An equilibrium state: single-phase, or split into liquid and vapour.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Equilibrium {
+    pub phase: Phase,
+    pub pressure_pa: f64,
+    /// Overall molar volume, m³/mol.
+    pub molar_volume_m3: f64,
+    /// Fraction of the amount that is liquid (0 for gas, 1 for liquid).
+    pub liquid_fraction: f64,
+    /// Compositions of the liquid and the vapour where two-phase.
+    pub liquid: Option<Vec<f64>>,
+    pub vapour: Option<Vec<f64>>,
+    /// Molar volumes of the liquid and the vapour where two-phase, m³/mol.
+    pub phase_volumes_m3: Option<(f64, f64)>,
+    /// The model that judged the phase (the fluid's own, or the Peng–Robinson screen).
+    pub judged_by: Model,
+}
+
+/// A pure fluid's saturation state at one temperature.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Saturation {
+    pub pressure_pa: f64,
+    /// Molar volumes of the saturated liquid and vapour, m³/mol.
+    pub v_liquid_m3: f64,
+    pub v_vapour_m3: f64,
+    /// The model whose equation gave it.
+    pub model: Model,
+}
+
+/// Wilson's K-value estimate, K_i = (Pc_i/P) exp(5.373 (1 + ω_i)(1 − Tc_i/T)).
+pub fn wilson(fluid: &Fluid, t_k: f64, p_pa: f64) -> Vec<f64> {
+    fluid.cubic.iter().map(|c| c.pc_pa / p_pa * (5.373 * (1.0 + c.omega) * (1.0 - c.tc_k / t_k)).exp()).collect()
+}
+
+/// The index of the only component present, if there is one.
+pub fn single_component(x: &[f64]) -> Option<usize> {
+    let mut present = x.iter().enumerate().filter(|(_, v)| **v > TRACE);
+    let first = present.next()?.0;
+    present.next().is_none().then_some(first)
+}
+
+impl Fluid {
+    /// The fluid that judges phases: itself for a cubic model, else Peng–Robinson on the
+    /// same gases (with its own k_ij).
+    pub fn phase_screen(&self) -> Fluid {
+        if self.model.cubic_kind().is_some() {
+            return self.clone();
+        }
+        let ids: Vec<&str> = self.ids.iter().map(String::as_str).collect();
+        Fluid { model: Model::Pr, kij: super::kij::matrix(Model::Pr, &ids), gerg: None, ..self.clone() }
+    }
+
+    /// ln φ_i and the molar volume on one root of the cubic: the liquid-like (smallest) or
+    /// the vapour-like (largest) one. Cubic models only.
+    pub fn ln_phi_on(&self, t_k: f64, p_pa: f64, x: &[f64], liquid: bool) -> Result<(Vec<f64>, f64), ThermoError> {
+        let kind = self.model.cubic_kind().ok_or(ThermoError::NoFugacity(self.model))?;
+        let m = self.mix(kind, t_k, x);
+        let roots = cubic::z_roots(kind, &m, t_k, p_pa);
+        let z = if liquid { roots.first() } else { roots.last() };
+        let z = *z.ok_or_else(|| ThermoError::NoState { model: self.model, why: "no root".into() })?;
+        let s = cubic::ZSolution {
+            z,
+            root: Root::Single,
+            big_a: m.a * p_pa / (R * t_k).powi(2),
+            big_b: m.b * p_pa / (R * t_k),
+        };
+        Ok((cubic::ln_phi(kind, &m, &s), z * R * t_k / p_pa))
+    }
+
+    /// Michelsen's tangent-plane test on the screen fluid: whether the feed `z` splits at
+    /// (T, P); when it does, the trial phase's composition (a K-value start for the
+    /// flash). Cubic models only (call it on [`Fluid::phase_screen`]).
+    pub fn stability(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
+        let ln_phi_z = self.ln_phi(t_k, p_pa, z)?;
+        let d: Vec<f64> = z
+            .iter()
+            .zip(&ln_phi_z)
+            .map(|(zi, lp)| if *zi > TRACE { zi.ln() + lp } else { f64::NEG_INFINITY })
+            .collect();
+        let k = wilson(self, t_k, p_pa);
+        for vapour_like in [true, false] {
+            let mut w: Vec<f64> =
+                z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
+            for _ in 0..400 {
+                let sum: f64 = w.iter().sum();
+                if !(sum.is_finite() && sum > 0.0) {
+                    break;
+                }
+                let x: Vec<f64> = w.iter().map(|wi| wi / sum).collect();
+                let ln_phi_x = self.ln_phi(t_k, p_pa, &x)?;
+                let mut change: f64 = 0.0;
+                let mut distance: f64 = 0.0;
+                for i in 0..w.len() {
+                    if z[i] <= TRACE {
+                        w[i] = 0.0;
+                        continue;
+                    }
+                    let ln_w = d[i] - ln_phi_x[i];
+                    change = change.max((ln_w - w[i].ln()).abs());
+                    distance += (ln_w - z[i].ln()).powi(2);
+                    w[i] = ln_w.exp();
+                }
+                if distance < 1e-8 {
+                    break; // converged to the feed itself: no new phase this way
+                }
+                if change < 1e-10 {
+                    let sum: f64 = w.iter().sum();
+                    if sum > 1.0 + 1e-8 {
+                        return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
+                    }
+                    break;
+                }
+            }
+        }
+        Ok(None)
+    }
+
+    /// The saturation state of a pure fluid (`x` holds one component) at `t_k`, from the
+    /// fluid's own equation (GERG-2008's pure-fluid equation, or the cubic; the ideal gas
+    /// has none and uses the Peng–Robinson screen). None at or above the critical
+    /// temperature.
+    pub fn saturation(&self, t_k: f64, x: &[f64]) -> Result<Option<Saturation>, ThermoError> {
+        let Some(i) = single_component(x) else {
+            return Err(ThermoError::Composition("a saturation state needs a pure fluid".into()));
+        };
+        let c = &self.cubic[i];
+        if t_k >= c.tc_k {
+            return Ok(None);
+        }
+        let screen = self.phase_screen();
+        let cubic_sat = screen.cubic_saturation(t_k, x)?;
+        match self.model {
+            Model::Gerg => {
+                let Some(start) = cubic_sat else { return Ok(None) };
+                match self.gerg.as_ref().and_then(|g| g.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3))
+                {
+                    Some((p, rho_l, rho_v)) => Ok(Some(Saturation {
+                        pressure_pa: p,
+                        v_liquid_m3: 1.0 / rho_l,
+                        v_vapour_m3: 1.0 / rho_v,
+                        model: Model::Gerg,
+                    })),
+                    // Close to the critical point GERG's two roots can merge in the search;
+                    // the cubic's saturation is used and says so through `model`.
+                    None => Ok(Some(start)),
+                }
+            }
+            _ => Ok(cubic_sat),
+        }
+    }
+
+    /// Saturation from a cubic's fugacities (this fluid must be cubic).
+    fn cubic_saturation(&self, t_k: f64, x: &[f64]) -> Result<Option<Saturation>, ThermoError> {
+        let Some(i) = single_component(x) else { return Ok(None) };
+        let c = &self.cubic[i];
+        // Start from the Lee–Kesler estimate, then Newton on P.
+        let tr = t_k / c.tc_k;
+        let f0 = 5.92714 - 6.09648 / tr - 1.28862 * tr.ln() + 0.169347 * tr.powi(6);
+        let f1 = 15.2518 - 15.6875 / tr - 13.4721 * tr.ln() + 0.43577 * tr.powi(6);
+        let mut p = (c.pc_pa * (f0 + c.omega * f1).exp()).clamp(1e-3, 0.999 * c.pc_pa);
+        let kind = self.model.cubic_kind().ok_or(ThermoError::NoFugacity(self.model))?;
+        for _ in 0..200 {
+            let m = self.mix(kind, t_k, x);
+            let roots = cubic::z_roots(kind, &m, t_k, p);
+            if roots.len() < 2 {
+                // Outside the spinodals: only one branch exists. Step towards the other.
+                let z = roots.first().copied().unwrap_or(1.0);
+                let vapour_only = z > 0.3;
+                p *= if vapour_only { 1.05 } else { 0.95 };
+                continue;
+            }
+            let (lv, vv) = (self.ln_phi_on(t_k, p, x, false)?, self.ln_phi_on(t_k, p, x, true)?);
+            let (ln_phi_v, v_v) = (lv.0[i], lv.1);
+            let (ln_phi_l, v_l) = (vv.0[i], vv.1);
+            if (v_v - v_l).abs() <= 1e-12 * v_v {
+                return Ok(None);
+            }
+            let delta = ln_phi_v - ln_phi_l;
+            let step = delta * R * t_k / (v_v - v_l);
+            let next = (p - step).clamp(0.5 * p, 2.0 * p);
+            if (next - p).abs() <= 1e-12 * p {
+                return Ok(Some(Saturation {
+                    pressure_pa: next,
+                    v_liquid_m3: v_l,
+                    v_vapour_m3: v_v,
+                    model: self.model,
+                }));
+            }
+            p = next;
+        }
+        Ok(None)
+    }
+
+    /// The equilibrium state at (T, P) of feed `z`: single-phase, or flashed into liquid
+    /// and vapour.
+    pub fn equilibrium_tp(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<Equilibrium, ThermoError> {
+        let screen = self.phase_screen();
+        if let Some(i) = single_component(z) {
+            let sat = self.saturation(t_k, z)?;
+            let c = &self.cubic[i];
+            let phase = match sat {
+                None if p_pa >= c.pc_pa => Phase::Supercritical,
+                None => Phase::Gas,
+                Some(s) if p_pa > s.pressure_pa => Phase::Liquid,
+                Some(_) => Phase::Gas,
+            };
+            let v = self.branch_volume(t_k, p_pa, z, phase == Phase::Liquid, sat.as_ref())?;
+            return Ok(single(phase, p_pa, v, self.model));
+        }
+        match screen.stability(t_k, p_pa, z)? {
+            None => {
+                let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
+                Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.model))
+            }
+            Some(trial) => match screen.flash(t_k, p_pa, z, &trial)? {
+                Some(e) => Ok(e),
+                None => {
+                    let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
+                    Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.model))
+                }
+            },
+        }
+    }
+
+    /// The equilibrium state of `amounts_mol` in `volume_m3` at T: where gas and liquid
+    /// coexist, the pressure is their common (vapour) pressure.
+    pub fn equilibrium_tv(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<Equilibrium, ThermoError> {
+        let total: f64 = amounts_mol.iter().sum();
+        if !(total > 0.0 && total.is_finite()) {
+            return Err(ThermoError::Amount(total));
+        }
+        let z: Vec<f64> = amounts_mol.iter().map(|n| n / total).collect();
+        let v = volume_m3 / total;
+        if let Some(i) = single_component(&z) {
+            let c = &self.cubic[i];
+            return match self.saturation(t_k, &z)? {
+                Some(s) if v < s.v_vapour_m3 && v > s.v_liquid_m3 => {
+                    // n_L v_L + n_V v_V = V: the lever rule on the molar volumes.
+                    let liquid_fraction = (s.v_vapour_m3 - v) / (s.v_vapour_m3 - s.v_liquid_m3);
+                    Ok(Equilibrium {
+                        phase: Phase::TwoPhase,
+                        pressure_pa: s.pressure_pa,
+                        molar_volume_m3: v,
+                        liquid_fraction,
+                        liquid: Some(z.clone()),
+                        vapour: Some(z),
+                        phase_volumes_m3: Some((s.v_liquid_m3, s.v_vapour_m3)),
+                        judged_by: s.model,
+                    })
+                }
+                Some(s) => {
+                    let p = self.pressure_tv(t_k, v, &z)?;
+                    let phase = if v <= s.v_liquid_m3 { Phase::Liquid } else { Phase::Gas };
+                    Ok(single(phase, p, v, self.model))
+                }
+                None => {
+                    let p = self.pressure_tv(t_k, v, &z)?;
+                    Ok(single(if p >= c.pc_pa { Phase::Supercritical } else { Phase::Gas }, p, v, self.model))
+                }
+            };
+        }
+        let screen = self.phase_screen();
+        // One phase at V/n when the screen's state at that volume is its stable state at
+        // its pressure: the stable root there has this volume, and the feed does not split.
+        if let Ok(p_screen) = screen.pressure_tv(t_k, v, &z) {
+            let on_stable_root =
+                screen.state_tp(t_k, p_screen, &z).is_ok_and(|s| (s.molar_volume_m3 - v).abs() <= 1e-6 * v);
+            if on_stable_root && screen.stability(t_k, p_screen, &z)?.is_none() {
+                let p = if self.model == screen.model { p_screen } else { self.pressure_tv(t_k, v, &z)? };
+                return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
+            }
+        }
+        // Split: find the pressure whose equilibrium volume is V/n.
+        let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
+        let volume_at = |lp: f64| -> Result<Equilibrium, ThermoError> {
+            let p = lp.exp();
+            match screen.stability(t_k, p, &z)? {
+                Some(trial) => {
+                    if let Some(e) = screen.flash(t_k, p, &z, &trial)? {
+                        return Ok(e);
+                    }
+                    let v = screen.state_tp(t_k, p, &z)?.molar_volume_m3;
+                    Ok(single(Phase::Gas, p, v, Model::Pr))
+                }
+                None => {
+                    let v = screen.state_tp(t_k, p, &z)?.molar_volume_m3;
+                    Ok(single(screen.label(t_k, p, &z, v), p, v, Model::Pr))
+                }
+            }
+        };
+        let mut best = volume_at(0.5 * (lo + hi))?;
+        for _ in 0..60 {
+            let mid = 0.5 * (lo + hi);
+            best = volume_at(mid)?;
+            if best.molar_volume_m3 > v {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+            if hi - lo < 1e-9 {
+                break;
+            }
+        }
+        // At the pressure found, the amounts of the two phases follow from the volume (the
+        // lever rule), which stays exact where the split is steep in pressure (a nearly
+        // pure condensing component).
+        if let Some((v_l, v_v)) = best.phase_volumes_m3 {
+            if v_v > v_l {
+                best.liquid_fraction = ((v_v - v) / (v_v - v_l)).clamp(0.0, 1.0);
+            }
+        }
+        best.molar_volume_m3 = v;
+        best.judged_by = screen.model;
+        Ok(best)
+    }
+
+    /// Flash a feed known to split, starting from the stability test's trial phase.
+    /// None when the iteration falls back to one phase.
+    fn flash(&self, t_k: f64, p_pa: f64, z: &[f64], trial: &[f64]) -> Result<Option<Equilibrium>, ThermoError> {
+        // The trial phase is the incipient one: lighter (vapour-like) or heavier.
+        let wilson_k = wilson(self, t_k, p_pa);
+        let trial_is_vapour =
+            trial.iter().zip(&wilson_k).zip(z).map(|((w, k), zi)| w * k.ln() - zi * k.ln()).sum::<f64>() > 0.0;
+        let mut k: Vec<f64> = z
+            .iter()
+            .zip(trial)
+            .zip(&wilson_k)
+            .map(|((zi, wi), kw)| {
+                if *zi <= TRACE {
+                    *kw
+                } else if trial_is_vapour {
+                    (wi / zi).max(1e-300)
+                } else {
+                    (zi / wi.max(1e-300)).max(1e-300)
+                }
+            })
+            .collect();
+        for _ in 0..1000 {
+            let Some(beta) = rachford_rice(z, &k) else { return Ok(None) };
+            let x: Vec<f64> = z.iter().zip(&k).map(|(zi, ki)| zi / (1.0 + beta * (ki - 1.0))).collect();
+            let y: Vec<f64> = x.iter().zip(&k).map(|(xi, ki)| xi * ki).collect();
+            let (sx, sy): (f64, f64) = (x.iter().sum(), y.iter().sum());
+            let x: Vec<f64> = x.iter().map(|v| v / sx).collect();
+            let y: Vec<f64> = y.iter().map(|v| v / sy).collect();
+            let (ln_l, v_l) = self.ln_phi_on(t_k, p_pa, &x, true)?;
+            let (ln_v, v_v) = self.ln_phi_on(t_k, p_pa, &y, false)?;
+            let mut change: f64 = 0.0;
+            for i in 0..k.len() {
+                let new = (ln_l[i] - ln_v[i]).exp();
+                change = change.max((new.ln() - k[i].ln()).abs());
+                k[i] = new;
+            }
+            if k.iter().all(|ki| (ki - 1.0).abs() < 1e-6) {
+                return Ok(None); // collapsed to the trivial solution
+            }
+            if change < 1e-10 {
+                return Ok(Some(Equilibrium {
+                    phase: Phase::TwoPhase,
+                    pressure_pa: p_pa,
+                    molar_volume_m3: beta * v_v + (1.0 - beta) * v_l,
+                    liquid_fraction: 1.0 - beta,
+                    liquid: Some(x),
+                    vapour: Some(y),
+                    phase_volumes_m3: Some((v_l, v_v)),
+                    judged_by: self.model,
+                }));
+            }
+        }
+        Ok(None)
+    }
+
+    /// The single-phase molar volume on the liquid or vapour branch.
+    fn branch_volume(
+        &self,
+        t_k: f64,
+        p_pa: f64,
+        x: &[f64],
+        liquid: bool,
+        sat: Option<&Saturation>,
+    ) -> Result<f64, ThermoError> {
+        match self.model {
+            Model::Gerg => {
+                let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+                let start = match sat {
+                    Some(s) if liquid => Some(1.0 / s.v_liquid_m3),
+                    _ => None,
+                };
+                let rho = match start {
+                    Some(rho0) => g.density_from(x, t_k, p_pa, rho0),
+                    None => g.density(x, t_k, p_pa),
+                };
+                rho.map(|r| 1.0 / r).ok_or_else(|| ThermoError::NoState {
+                    model: self.model,
+                    why: "the GERG-2008 density iteration found no root".into(),
+                })
+            }
+            Model::Ideal => Ok(R * t_k / p_pa),
+            _ => Ok(self.ln_phi_on(t_k, p_pa, x, liquid)?.1),
+        }
+    }
+
+    /// Gas, liquid or supercritical for a stable mixture state, by Kay's pseudo-critical
+    /// point (Σ z Tc, Σ z Pc) and a pseudo-critical volume Z_c R T_pc / P_pc with Z_c = 0.29.
+    fn label(&self, t_k: f64, p_pa: f64, z: &[f64], v: f64) -> Phase {
+        let tpc: f64 = z.iter().zip(&self.cubic).map(|(zi, c)| zi * c.tc_k).sum();
+        let ppc: f64 = z.iter().zip(&self.cubic).map(|(zi, c)| zi * c.pc_pa).sum();
+        if t_k >= tpc {
+            if p_pa >= ppc {
+                Phase::Supercritical
+            } else {
+                Phase::Gas
+            }
+        } else if v < 0.29 * R * tpc / ppc {
+            Phase::Liquid
+        } else {
+            Phase::Gas
+        }
+    }
+}
+
+fn single(phase: Phase, p_pa: f64, v: f64, model: Model) -> Equilibrium {
+    Equilibrium {
+        phase,
+        pressure_pa: p_pa,
+        molar_volume_m3: v,
+        liquid_fraction: if phase == Phase::Liquid { 1.0 } else { 0.0 },
+        liquid: None,
+        vapour: None,
+        phase_volumes_m3: None,
+        judged_by: model,
+    }
+}
+
+/// The vapour fraction β solving Σ z_i (K_i − 1)/(1 + β(K_i − 1)) = 0 in (0, 1), by
+/// bisection safeguarded Newton; None when the root lies outside (one phase).
+pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
+    let f = |b: f64| -> (f64, f64) {
+        z.iter().zip(k).fold((0.0, 0.0), |(s, d), (zi, ki)| {
+            let den = 1.0 + b * (ki - 1.0);
+            (s + zi * (ki - 1.0) / den, d - zi * (ki - 1.0).powi(2) / (den * den))
+        })
+    };
+    if f(0.0).0 <= 0.0 || f(1.0).0 >= 0.0 {
+        return None;
+    }
+    let (mut lo, mut hi) = (0.0f64, 1.0f64);
+    let mut b = 0.5;
+    for _ in 0..200 {
+        let (v, d) = f(b);
+        if v > 0.0 {
+            lo = b;
+        } else {
+            hi = b;
+        }
+        let newton = b - v / d;
+        b = if newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
+        if hi - lo < 1e-15 || v.abs() < 1e-15 {
+            break;
+        }
+    }
+    Some(b)
+}
