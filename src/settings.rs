@@ -29,6 +29,9 @@ pub struct Settings {
     pub min_storage_temperature: String,
     /// Highest service temperature (screening of the pressure rating).
     pub max_service_temperature: String,
+    /// Safety margin on the condensation judgement, in kelvin ("6K"): liquid is assumed
+    /// wherever the Peng–Robinson dew point plus this margin reaches the temperature.
+    pub condensation_margin: String,
     /// Commit each library save when the library folder is a git work tree.
     pub git_commit_on_save: bool,
 }
@@ -47,9 +50,26 @@ impl Default for Settings {
             min_storage_temperature: "0C".into(),
             // The temperature transport rules use for the rating check (from memory).
             max_service_temperature: "65C".into(),
+            // Peng–Robinson's cricondentherm lies up to 5.4 K below CoolProp's multi-fluid one
+            // for the mixtures of tests/fixtures/phase_reference.json; rounded up.
+            condensation_margin: DEFAULT_CONDENSATION_MARGIN.into(),
             git_commit_on_save: false,
         }
     }
+}
+
+/// The condensation margin when the settings give none.
+pub const DEFAULT_CONDENSATION_MARGIN: &str = "6K";
+
+/// A temperature difference in kelvin, "6K" (0 to 30 K).
+pub fn parse_margin(text: &str) -> Result<f64, String> {
+    let t = text.trim();
+    let number = t.strip_suffix('K').ok_or("a margin is a temperature difference in kelvin, e.g. 6K")?;
+    let k: f64 = number.trim().parse().map_err(|_| "not a number of kelvin, e.g. 6K".to_string())?;
+    if !(0.0..=30.0).contains(&k) {
+        return Err("the margin must be from 0K to 30K".into());
+    }
+    Ok(k)
 }
 
 /// A settings file that could not be used.
@@ -72,7 +92,20 @@ pub struct Resolved {
     pub scale_resolution_g: f64,
     pub min_storage_temperature_k: f64,
     pub max_service_temperature_k: f64,
+    /// K.
+    pub condensation_margin_k: f64,
     pub git_commit_on_save: bool,
+}
+
+impl Resolved {
+    /// The screening conditions these settings give.
+    pub fn conditions(&self) -> crate::checks::Conditions {
+        crate::checks::Conditions {
+            min_temperature_k: self.min_storage_temperature_k,
+            max_temperature_k: self.max_service_temperature_k,
+            margin_k: self.condensation_margin_k,
+        }
+    }
 }
 
 impl Settings {
@@ -114,6 +147,8 @@ impl Settings {
                 ),
             ));
         }
+        let condensation_margin_k = parse_margin(&self.condensation_margin)
+            .map_err(|why| err("condensation_margin", format!("{:?}: {why}", self.condensation_margin)))?;
         Ok(Resolved {
             shown: crate::units::Shown { pressure: self.pressure_unit, temperature: self.temperature_unit },
             default_model: self.default_model,
@@ -122,6 +157,7 @@ impl Settings {
             scale_resolution_g,
             min_storage_temperature_k,
             max_service_temperature_k,
+            condensation_margin_k,
             git_commit_on_save: self.git_commit_on_save,
         })
     }

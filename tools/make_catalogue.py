@@ -97,6 +97,20 @@ def pick(methods, prefer):
     raise SystemExit(f"no preferred method among {methods}")
 
 
+# ChemSep values replaced by a documented choice. N2/n-octane is listed as -0.4, far outside
+# its neighbours (N2/n-heptane +0.1441, N2/n-decane +0.1122, both ChemSep): it put the PR
+# cricondentherm of n-octane traces in N2 14-20 K below the multi-fluid reference. The value
+# used is the linear interpolation in carbon number between those two neighbours.
+KIJ_REPLACED = {
+    ("N2", "n-C8H18"): (0.1335, "interpolated in carbon number between ChemSep N2/n-C7H16 and N2/n-C10H22"),
+}
+
+
+def replaced_kij(id_a, id_b):
+    """The replacement for a pair, if any: (k_ij, why)."""
+    return KIJ_REPLACED.get((id_a, id_b)) or KIJ_REPLACED.get((id_b, id_a))
+
+
 def kij_matrix(cas):
     """The ChemSep PR k_ij matrix for a list of CAS numbers, 0 where none is listed."""
     n = len(cas)
@@ -108,6 +122,10 @@ def kij_matrix(cas):
                     k[a][b] = float(IPDB.get_ip_specific("ChemSep PR", [cas[a], cas[b]], "kij") or 0.0)
                 except Exception:
                     pass
+                ids = {c: gid for gid, c, *_ in GASES}
+                swap = replaced_kij(ids.get(cas[a]), ids.get(cas[b]))
+                if swap:
+                    k[a][b] = swap[0]
     return k
 
 
@@ -189,6 +207,10 @@ def main():
                 k = IPDB.get_ip_specific("ChemSep PR", [a, b], "kij")
             except Exception:
                 continue
+            swap = replaced_kij(cas_to_id[a], cas_to_id[b])
+            if swap:
+                lines.append(f"    // {swap[1]} (ChemSep lists {num(k)}, an outlier)")
+                k = swap[0]
             if k and not math.isclose(k, 0.0):
                 lines.append(f"    ({q(cas_to_id[a])}, {q(cas_to_id[b])}, {num(k)}),")
     lines.append("]")

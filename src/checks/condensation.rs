@@ -10,11 +10,34 @@ use serde_json::{json, Map, Value};
 
 use super::phase::PhaseFluid;
 use super::{phase_model, Check, Conditions, Severity};
+use crate::gas::vapour_pressure::ice_sublimation_pa;
 use crate::gas::Catalogue;
-use crate::plan::Plan;
+use crate::plan::{Plan, StepFlag};
 use crate::recipe::Order;
-use crate::thermo::{Fluid, MAX_PRESSURE_PA};
+use crate::thermo::{Fluid, Model, MAX_PRESSURE_PA};
 use crate::units::{bar, celsius};
+
+/// The vapour pressure of gas `g` at `t_k` and where it comes from: the catalogue's
+/// correlation in its range; below it, for water, the sublimation pressure of ice (IAPWS
+/// R14-08); for any other gas, the Peng–Robinson saturation pressure. None above the
+/// critical temperature.
+pub fn vapour_pressure(catalogue: &Catalogue, g: usize, t_k: f64) -> Option<(f64, &'static str)> {
+    let gas = catalogue.gas(g);
+    if t_k >= gas.tc_k() {
+        return None;
+    }
+    if let Some(p) = gas.vapour_pressure_pa(t_k) {
+        return Some((p, "catalogue correlation"));
+    }
+    if gas.id() == "H2O" {
+        if let Some(p) = ice_sublimation_pa(t_k) {
+            return Some((p, "over ice, IAPWS R14-08 sublimation pressure"));
+        }
+    }
+    let pr = Fluid::new(catalogue, &[g], Model::Pr).ok()?;
+    let s = pr.saturation(t_k, &[1.0]).ok()??;
+    Some((s.pressure_pa, "below the correlation's range: Peng–Robinson saturation pressure"))
+}
 
 pub fn check(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Check {
     match run(plan, order, catalogue, c) {
@@ -49,27 +72,32 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
     let mut any_condensable = false;
     for (k, &g) in gases.iter().enumerate() {
         let gas = catalogue.gas(g);
-        if gas.tc_k() <= t_min {
+        if gas.tc_k() <= c.judged_down_to_k() {
             continue;
         }
         any_condensable = true;
         let p_i = z[k] * p_at_min;
-        match gas.vapour_pressure_pa(t_min) {
-            Some(p_sat) => {
+        match vapour_pressure(catalogue, g, t_min) {
+            Some((p_sat, how)) => {
                 let ratio = p_i / p_sat;
                 rule_exceeded |= ratio > 1.0;
                 details.push(format!(
-                    "{}: partial pressure {:.3} bar at {:.1} °C against vapour pressure {:.3} bar ({:.0} % of it)",
+                    "{}: partial pressure {:.3} bar at {:.1} °C against vapour pressure {:.4} bar ({:.0} % of it; {how})",
                     gas.id(),
                     bar(p_i),
                     celsius(t_min),
                     bar(p_sat),
                     ratio * 100.0
                 ));
-                rule.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": bar(p_sat), "ratio": ratio}));
+                rule.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": bar(p_sat), "ratio": ratio, "vapour_pressure_from": how}));
             }
             None => {
-                details.push(format!("{}: no vapour pressure at {:.1} °C in the catalogue", gas.id(), celsius(t_min)));
+                details.push(format!(
+                    "{}: no vapour pressure at {:.1} °C (neither the correlation nor the equation of state gives \
+                     one); judged by the equation of state alone",
+                    gas.id(),
+                    celsius(t_min)
+                ));
                 rule.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": null}));
             }
         }
@@ -95,71 +123,152 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
         pc: gases.iter().map(|&g| catalogue.gas(g).pc_pa()).collect(),
         omega: gases.iter().map(|&g| catalogue.gas(g).omega()).collect(),
     };
-    let t_floor = 0.5 * t_min.min(phase.tc.iter().copied().fold(f64::INFINITY, f64::min));
-    let p_search = (3.0 * plan.totals.pressure_pa).clamp(100e5, MAX_PRESSURE_PA);
+    // The equation of state is asked down to the lowest storage temperature less the
+    // margin: liquid is assumed wherever the model's dew point plus the margin reaches it.
+    let t_low = c.judged_down_to_k();
+    let t_floor = 0.5 * t_low.min(phase.tc.iter().copied().fold(f64::INFINITY, f64::min));
+    // The whole envelope, up to its cricondenbar or 1000 bar: nothing here depends on the
+    // fill pressure.
+    let p_search = MAX_PRESSURE_PA;
     let ct = phase.cricondentherm(&z, t_floor, p_search).map_err(|e| e.to_string())?;
     data.insert("cricondentherm_k".into(), ct.map_or(Value::Null, |(t, _)| json!(t)));
     data.insert("cricondentherm_pressure_bar".into(), ct.map_or(Value::Null, |(_, p)| json!(bar(p))));
+    data.insert("margin_k".into(), json!(c.margin_k));
 
-    // Along the isochore from the lowest storage temperature up to the reference.
+    // Along the isochore from the judged temperature up to the reference.
     let mut splits_at = None;
     for k in 0..=6 {
-        let t = t_min + (t_ref.max(t_min) - t_min) * k as f64 / 6.0;
-        let p = fluid.pressure(t, order.volume_m3, &amounts).map_err(|e| e.to_string())?;
-        if phase.unstable(t, p, &z).map_err(|e| e.to_string())? {
+        let t = t_low + (t_ref.max(t_low) - t_low) * k as f64 / 6.0;
+        if fluid.condensed_tv(t, order.volume_m3, &amounts).map_err(|e| e.to_string())? {
+            let p = fluid.equilibrium_tv(t, order.volume_m3, &amounts).map_or(f64::NAN, |e| e.pressure_pa);
             splits_at = Some((t, p));
             break;
         }
     }
-    let range = if ct.is_some_and(|(t, _)| t > t_min) {
-        phase.unstable_pressures(t_min, &z, ct.map(|(_, p)| p), p_search).map_err(|e| e.to_string())?
+    let range = if ct.is_some_and(|(t, _)| t > t_low) {
+        phase.unstable_pressures(t_low, &z, ct.map(|(_, p)| p), p_search).map_err(|e| e.to_string())?
     } else {
         None
     };
+    let capped = range.is_some_and(|(_, hi)| hi >= 0.999 * p_search);
     data.insert("liquid_pressure_range_bar".into(), range.map_or(Value::Null, |(a, b)| json!([bar(a), bar(b)])));
-    // Highest settled fill at the reference temperature whose isochore stays below the lower
-    // dew pressure at the lowest storage temperature.
-    let max_fill = match range {
-        Some((p_lo, _)) => {
-            let v = fluid.state_tp(t_min, p_lo, &z).map_err(|e| e.to_string())?.molar_volume_m3;
-            Some(fluid.pressure_tv(t_ref, v, &z).map_err(|e| e.to_string())?)
-        }
+    // The fills (settled at the reference temperature) whose isochores cross that range:
+    // below the first the blend stays gas; above the second it is dense enough to stay one
+    // phase (retrograde), which is no safe fill to aim for.
+    let fill_of = |p: f64| -> Result<f64, String> {
+        let v = fluid.state_tp(t_low, p, &z).map_err(|e| e.to_string())?.molar_volume_m3;
+        fluid.pressure_tv(t_ref, v, &z).map_err(|e| e.to_string())
+    };
+    let fill_range = match range {
+        Some((lo, hi)) => Some((fill_of(lo)?, if capped { None } else { fill_of(hi).ok() })),
         None => None,
     };
+    let max_fill = fill_range.map(|(lo, _)| lo);
     data.insert("max_single_phase_fill_bar".into(), max_fill.map_or(Value::Null, |p| json!(bar(p))));
+    data.insert(
+        "condensing_fill_range_bar".into(),
+        fill_range.map_or(Value::Null, |(lo, hi)| json!([bar(lo), hi.map(bar)])),
+    );
 
     if let Some((t, _)) = ct {
         details.push(format!("cricondentherm {:.1} °C ({:.2} K), {model}", celsius(t), t));
     }
+    details.push(format!(
+        "judged down to {:.1} °C: the lowest storage temperature less a margin of {:.1} K (the model's dew points \
+         lie up to 5.4 K below the multi-fluid reference; a setting)",
+        celsius(t_low),
+        c.margin_k
+    ));
     if let Some((lo, hi)) = range {
-        details.push(format!("at {:.1} °C liquid forms between {:.2} and {:.2} bar", celsius(t_min), bar(lo), bar(hi)));
+        details.push(if capped {
+            format!(
+                "at {:.1} °C liquid forms from {:.2} bar up to at least {:.0} bar",
+                celsius(t_low),
+                bar(lo),
+                bar(hi)
+            )
+        } else {
+            format!("at {:.1} °C liquid forms between {:.2} and {:.2} bar", celsius(t_low), bar(lo), bar(hi))
+        });
     }
-    if let Some(p) = max_fill {
+    if let Some((lo, hi)) = fill_range {
+        details.push(match hi {
+            Some(hi) => format!(
+                "fills from {:.1} to {:.1} bar at {:.1} °C condense on cooling; the highest fill that stays single-phase \
+                 is {:.1} bar",
+                bar(lo),
+                bar(hi),
+                celsius(t_ref),
+                bar(lo)
+            ),
+            None => format!(
+                "fills above {:.1} bar at {:.1} °C condense on cooling: the highest fill that stays single-phase",
+                bar(lo),
+                celsius(t_ref)
+            ),
+        });
+    }
+    // Every step of the plan: liquid from what is in the cylinder after it.
+    let flagged: Vec<String> = plan
+        .steps
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| s.flags.contains(&StepFlag::AboveDewPoint))
+        .map(|(i, s)| format!("step {} ({})", i + 1, s.source))
+        .collect();
+    for f in &flagged {
         details.push(format!(
-            "highest fill that stays single-phase down to {:.1} °C: {:.1} bar at {:.1} °C",
-            celsius(t_min),
-            bar(p),
-            celsius(t_ref)
+            "{f}: liquid forms from what is in the cylinder after it, at the fill temperature or on cooling: its reading \
+             lies above the dew pressure"
         ));
     }
+    data.insert("steps_above_dew_point".into(), json!(flagged));
+    let cooled: Vec<String> = plan
+        .steps
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| s.flags.contains(&StepFlag::CondensesIfCooled))
+        .map(|(i, _)| (i + 1).to_string())
+        .collect();
+    data.insert("steps_condensing_if_cooled".into(), json!(cooled));
     let (severity, message) = match (splits_at, rule_exceeded, ct) {
         (Some((t, p)), _, _) => (
             Severity::Stop,
             format!(
-                "liquid is predicted in the cylinder at {:.1} °C and {:.2} bar, within the storage range: lower the fill pressure{}",
+                "liquid is predicted in the cylinder at {:.1} °C{}, within the storage range and margin: lower the \
+                 fill pressure{}",
                 celsius(t),
-                bar(p),
+                if p.is_finite() { format!(" ({:.2} bar)", bar(p)) } else { String::new() },
                 max_fill.map_or(String::new(), |m| format!(" to at most {:.1} bar", bar(m)))
+            ),
+        ),
+        _ if !flagged.is_empty() => (
+            Severity::Stop,
+            format!(
+                "liquid forms during the fill at {}: use a smaller share, a warmer fill, another fill order, or fill by \
+                 mass",
+                flagged.join(", ")
+            ),
+        ),
+        _ if !cooled.is_empty() => (
+            Severity::Caution,
+            format!(
+                "gas at the fill temperature at every step, but after step{} {} liquid forms if the cylinder cools to \
+                 {:.1} °C before the fill is finished: fill in one session",
+                if cooled.len() > 1 { "s" } else { "" },
+                cooled.join(", "),
+                celsius(t_low)
             ),
         ),
         (None, true, _) => (
             Severity::Caution,
             "the conservative rule is exceeded (a partial pressure above a vapour pressure), but the equation of state keeps the blend single-phase".into(),
         ),
-        (None, false, Some((t, _))) if t > t_min => (
+        (None, false, Some((t, _))) if t > t_low => (
             Severity::Caution,
             format!(
-                "single-phase down to {:.1} °C at this fill, but the cricondentherm ({:.1} °C) is above it: a higher fill could condense",
+                "single-phase down to {:.1} °C at this fill, but the cricondentherm ({:.1} °C) is within the margin of \
+                 it or above it: a higher fill could condense",
                 celsius(t_min),
                 celsius(t)
             ),

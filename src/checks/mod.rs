@@ -57,6 +57,17 @@ pub struct Conditions {
     pub min_temperature_k: f64,
     /// Highest service temperature, K.
     pub max_temperature_k: f64,
+    /// Margin on the condensation judgement, K: liquid is assumed where the model's dew
+    /// point comes within this of the temperature (the model's measured error).
+    pub margin_k: f64,
+}
+
+impl Conditions {
+    /// The temperature down to which the equation of state is asked: the lowest storage
+    /// temperature less the margin.
+    pub fn judged_down_to_k(&self) -> f64 {
+        self.min_temperature_k - self.margin_k
+    }
 }
 
 /// The usual cautions, shown after every screening.

@@ -2,7 +2,7 @@
 //!
 //! The stability test is Michelsen's tangent-plane test (Fluid Phase Equilib. 9 (1982) 1),
 //! solved by successive substitution from Wilson's K-values (Wilson, 1968) with a
-//! vapour-like and a liquid-like trial phase. Dew points are the edges of the region
+//! vapour-like and a liquid-like trial phase ([`Fluid::stability`]). Dew points are the edges of the region
 //! where the feed is unstable: at fixed pressure the dew temperature is the highest
 //! temperature with an unstable feed (found by bracketing and bisection); the
 //! cricondentherm is the largest dew temperature over pressure (golden-section search).
@@ -10,14 +10,9 @@
 use crate::thermo::{Fluid, ThermoError};
 
 /// Smallest mole fraction treated as present.
-const TRACE: f64 = 1e-12;
+const TRACE: f64 = crate::thermo::phases::TRACE;
 
-/// Wilson's K-value estimate, K_i = (Pc_i/P) exp(5.373 (1 + ω_i)(1 − Tc_i/T)).
-fn wilson(tc: &[f64], pc: &[f64], omega: &[f64], t_k: f64, p_pa: f64) -> Vec<f64> {
-    (0..tc.len()).map(|i| pc[i] / p_pa * (5.373 * (1.0 + omega[i]) * (1.0 - tc[i] / t_k)).exp()).collect()
-}
-
-/// A fluid prepared for phase calculations: its critical constants for Wilson's estimate.
+/// A fluid prepared for phase calculations: its critical constants bound the searches.
 pub struct PhaseFluid<'a> {
     pub fluid: &'a Fluid,
     pub tc: Vec<f64>,
@@ -26,49 +21,45 @@ pub struct PhaseFluid<'a> {
 }
 
 impl<'a> PhaseFluid<'a> {
-    /// Whether the feed `z` splits into two phases at (T, P).
+    /// Whether the feed `z` splits into two phases at (T, P): Michelsen's tangent-plane
+    /// test ([`Fluid::stability`]).
     pub fn unstable(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<bool, ThermoError> {
-        let ln_phi_z = self.fluid.ln_phi(t_k, p_pa, z)?;
-        let d: Vec<f64> = z
-            .iter()
-            .zip(&ln_phi_z)
-            .map(|(zi, lp)| if *zi > TRACE { zi.ln() + lp } else { f64::NEG_INFINITY })
-            .collect();
-        let k = wilson(&self.tc, &self.pc, &self.omega, t_k, p_pa);
-        for vapour_like in [true, false] {
-            let mut w: Vec<f64> =
-                z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
-            for _ in 0..400 {
-                let sum: f64 = w.iter().sum();
-                if !(sum.is_finite() && sum > 0.0) {
-                    break;
-                }
-                let x: Vec<f64> = w.iter().map(|wi| wi / sum).collect();
-                let ln_phi_x = self.fluid.ln_phi(t_k, p_pa, &x)?;
-                let mut change: f64 = 0.0;
-                let mut distance: f64 = 0.0;
-                for i in 0..w.len() {
-                    if z[i] <= TRACE {
-                        w[i] = 0.0;
-                        continue;
-                    }
-                    let ln_w = d[i] - ln_phi_x[i];
-                    change = change.max((ln_w - w[i].ln()).abs());
-                    distance += (ln_w - z[i].ln()).powi(2);
-                    w[i] = ln_w.exp();
-                }
-                if distance < 1e-8 {
-                    break; // converged to the feed itself: no new phase this way
-                }
-                if change < 1e-10 {
-                    if w.iter().sum::<f64>() > 1.0 + 1e-8 {
-                        return Ok(true);
-                    }
-                    break;
-                }
+        Ok(self.fluid.stability(t_k, p_pa, z)?.is_some())
+    }
+
+    /// Bubble temperature at `p_pa`: the lowest temperature at which the feed splits, K,
+    /// searched up from `t_floor_k`. None where it does not split below the dew point.
+    pub fn bubble_temperature(&self, p_pa: f64, z: &[f64], t_floor_k: f64) -> Result<Option<f64>, ThermoError> {
+        let Some(dew) = self.dew_temperature(p_pa, z, t_floor_k)? else { return Ok(None) };
+        let mut lo = t_floor_k;
+        if self.unstable(lo, p_pa, z)? {
+            return Ok(Some(lo));
+        }
+        // Walk up in 1.5 % steps to the first split, then bisect.
+        let mut hi = lo;
+        loop {
+            hi *= 1.015;
+            if hi >= dew {
+                hi = dew;
+                break;
+            }
+            if self.unstable(hi, p_pa, z)? {
+                break;
+            }
+            lo = hi;
+        }
+        for _ in 0..60 {
+            let mid = 0.5 * (lo + hi);
+            if self.unstable(mid, p_pa, z)? {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+            if hi - lo < 1e-6 {
+                break;
             }
         }
-        Ok(false)
+        Ok(Some(0.5 * (lo + hi)))
     }
 
     /// Dew temperature at `p_pa`: the highest temperature at which the feed is unstable,
@@ -99,7 +90,7 @@ impl<'a> PhaseFluid<'a> {
             } else {
                 hi = mid;
             }
-            if hi - lo < 1e-5 {
+            if hi - lo < 1e-6 {
                 break;
             }
         }
@@ -109,15 +100,17 @@ impl<'a> PhaseFluid<'a> {
     /// The cricondentherm and the pressure at which it lies, searched from 0.5 to
     /// `p_max_pa`. None when no dew point exists above `t_floor_k`.
     pub fn cricondentherm(&self, z: &[f64], t_floor_k: f64, p_max_pa: f64) -> Result<Option<(f64, f64)>, ThermoError> {
-        let (lo_ln, hi_ln) = (0.5e5f64.ln(), p_max_pa.ln());
+        let (lo_ln, hi_ln) = (0.5e5f64.ln(), (p_max_pa * 0.999_999).ln());
         let n = 24;
         let mut best: Option<(f64, f64, usize)> = None;
         let grid: Vec<f64> = (0..n).map(|i| lo_ln + (hi_ln - lo_ln) * i as f64 / (n - 1) as f64).collect();
         for (i, &lp) in grid.iter().enumerate() {
-            if let Some(t) = self.dew_temperature(lp.exp(), z, t_floor_k)? {
-                if best.is_none_or(|b| t > b.0) {
-                    best = Some((t, lp, i));
-                }
+            match self.dew_temperature(lp.exp(), z, t_floor_k)? {
+                Some(t) if best.is_none_or(|b| t > b.0) => best = Some((t, lp, i)),
+                Some(_) => {}
+                // Above the cricondenbar: no dew point at any higher pressure either.
+                None if best.is_some() => break,
+                None => {}
             }
         }
         let Some((_, _, i)) = best else { return Ok(None) };
@@ -162,7 +155,7 @@ impl<'a> PhaseFluid<'a> {
         seed_pa: Option<f64>,
         p_max_pa: f64,
     ) -> Result<Option<(f64, f64)>, ThermoError> {
-        let (lo_ln, hi_ln) = (0.01e5f64.ln(), p_max_pa.ln());
+        let (lo_ln, hi_ln) = (0.01e5f64.ln(), (p_max_pa * 0.999_999).ln());
         let n = 60;
         let mut points: Vec<f64> = (0..n).map(|i| lo_ln + (hi_ln - lo_ln) * i as f64 / (n - 1) as f64).collect();
         if let Some(s) = seed_pa {

@@ -49,6 +49,7 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
     let conditions = Conditions {
         min_temperature_k: temp(&args.min_temp, "min-temp", settings.min_storage_temperature_k)?,
         max_temperature_k: temp(&args.max_temp, "max-temp", settings.max_service_temperature_k)?,
+        margin_k: settings.condensation_margin_k,
     };
     if conditions.min_temperature_k >= conditions.max_temperature_k {
         return Err(Refused(format!(
@@ -114,6 +115,7 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         model: args.common.model,
         default_model: settings.default_model,
         resolutions: plan::Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
+        min_temperature_k: Some(conditions.judged_down_to_k()),
         ..PlanOptions::default()
     };
     let results: Vec<Screened> = orders

@@ -5,7 +5,7 @@ use clap::Args;
 use serde_json::{json, Value};
 
 use super::{print_json, Common, Failure, Format, Refused};
-use crate::checks::{self, Conditions, Severity};
+use crate::checks::{self, Severity};
 use crate::config;
 use crate::gas::Catalogue;
 use crate::mixture::{self, Composition};
@@ -82,6 +82,7 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     let options = PlanOptions {
         default_model: settings.default_model,
         model: args.common.model,
+        min_temperature_k: Some(settings.conditions().judged_down_to_k()),
         fill_temperature_k,
         order: args.order.clone(),
         resolutions: Resolutions { gauge_pa, scale_g },
@@ -92,10 +93,7 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     })?;
     // The cylinder's rating is judged here as in `check`: a fill above it is a stop, with
     // a banner at the top of the sheet and exit status 3.
-    let conditions = Conditions {
-        min_temperature_k: settings.min_storage_temperature_k,
-        max_temperature_k: settings.max_service_temperature_k,
-    };
+    let conditions = settings.conditions();
     let rating = checks::rating::check(&plan, &order, &conditions);
     match args.common.format {
         Format::Json => {
@@ -288,6 +286,7 @@ pub fn plan_json(plan: &Plan, order: &Order, catalogue: &Catalogue) -> Value {
             "temperature_k": s.temperature_k,
             "flags": s.flags.iter().map(|f| f.key()).collect::<Vec<_>>(),
         })).collect::<Vec<_>>(),
+        "fill_by": if plan.by_mass { "mass" } else { "pressure" },
         "models": plan.models.iter().map(|m| match &m.result {
             Ok(f) => json!({
                 "model": m.model.key(),
@@ -413,7 +412,17 @@ pub fn fill_sheet(
         Some(g) => format!("scale from tare {:.1} g", g),
         None => "scale net of the cylinder".into(),
     };
-    line(format!("STEPS  stop each addition at the pressure reading; {scale_from}"));
+    if plan.by_mass {
+        line("LIQUEFIED-GAS FILL  the blend is liquid or two-phase at the reference".into());
+        line("  temperature: fill by mass, stopping each addition at its scale reading. The".into());
+        line("  gauge shows the vapour pressure and cannot be used to stop. Leave vapour".into());
+        line("  space: a cylinder full of liquid bursts when it warms. Follow the fill ratio".into());
+        line("  on the cylinder's markings and local codes.".into());
+        line(String::new());
+        line(format!("STEPS  stop each addition at the scale reading; {scale_from}"));
+    } else {
+        line(format!("STEPS  stop each addition at the pressure reading; {scale_from}"));
+    }
     line(format!(
         "{:>2}  {:<14}{:>9}{:>9}{:>11}{:>10}{:>10}{:>8}",
         "#",
@@ -432,6 +441,8 @@ pub fn fill_sheet(
             .map(|f| match f {
                 StepFlag::BelowGaugeResolution => '!',
                 StepFlag::BelowScaleResolution => '*',
+                StepFlag::AboveDewPoint => 'L',
+                StepFlag::CondensesIfCooled => 'c',
             })
             .collect();
         line(format!(
@@ -452,6 +463,22 @@ pub fn fill_sheet(
     }
     if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::BelowScaleResolution)) {
         line(format!("    * mass below the scale resolution ({} g)", Sig(res.scale_g, 3)));
+    }
+    if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::AboveDewPoint)) {
+        for text in [
+            "    L liquid forms from what is in the cylinder after this step (at the fill",
+            "      temperature, or on cooling to the lowest storage temperature): the gauge",
+            "      shows the vapour pressure and cannot be used to stop. Instead: a smaller",
+            "      share of that gas, a warmer fill, another fill order (the condensable gas",
+            "      into the balance gas), or fill by mass (the scale column).",
+        ] {
+            line(text.into());
+        }
+    }
+    if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::CondensesIfCooled)) {
+        line("    c gas at the fill temperature, but liquid forms if the cylinder cools to the".into());
+        line("      lowest storage temperature before the fill is finished: fill in one".into());
+        line("      session and keep the cylinder at the fill temperature until it is done.".into());
     }
     line(String::new());
 
@@ -588,7 +615,7 @@ pub fn fill_sheet(
                         Sig(s.add_mass_g, 4),
                         d.pf(s.pressure_after_pa),
                         d.pu(),
-                        if s.flags.is_empty() { "" } else { "  (needs a premix itself)" }
+                        if s.flags.iter().any(|f| f.too_small()) { "  (needs a premix itself)" } else { "" }
                     ));
                 }
                 for q in &inner.premixes {

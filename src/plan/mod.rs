@@ -46,7 +46,14 @@ pub struct PlanOptions {
     /// Source names in fill order; every source exactly once.
     pub order: Option<Vec<String>>,
     pub resolutions: Resolutions,
+    /// Lowest storage temperature, K, down to which each step is judged for liquid
+    /// (default 0 °C, the settings' default).
+    pub min_temperature_k: Option<f64>,
 }
+
+/// The lowest storage temperature when none is given: 0 °C (common practice for cylinders
+/// stored indoors; the settings carry the lab's own).
+pub const DEFAULT_MIN_TEMPERATURE_K: f64 = 273.15;
 
 /// Why there is no plan.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -99,13 +106,28 @@ pub enum StepFlag {
     BelowGaugeResolution,
     /// The mass added is below the scale resolution.
     BelowScaleResolution,
+    /// Liquid forms from what is in the cylinder after this step at the fill temperature
+    /// (or, after the last step, on cooling to the lowest storage temperature): the stop
+    /// reading lies above the dew pressure.
+    AboveDewPoint,
+    /// What is in the cylinder after this (not the last) step is gas at the fill
+    /// temperature but condenses if the cylinder cools to the lowest storage temperature
+    /// before the fill is finished.
+    CondensesIfCooled,
 }
 
 impl StepFlag {
+    /// Whether the flag is about dosing too little (a premix helps).
+    pub fn too_small(self) -> bool {
+        matches!(self, StepFlag::BelowGaugeResolution | StepFlag::BelowScaleResolution)
+    }
+
     pub fn key(self) -> &'static str {
         match self {
             StepFlag::BelowGaugeResolution => "below-gauge-resolution",
             StepFlag::BelowScaleResolution => "below-scale-resolution",
+            StepFlag::AboveDewPoint => "above-dew-point",
+            StepFlag::CondensesIfCooled => "condenses-if-cooled",
         }
     }
 }
@@ -213,6 +235,9 @@ pub struct Plan {
     pub models: Vec<ModelPlan>,
     pub following: Vec<Following>,
     pub premixes: Vec<premix::Proposal>,
+    /// A liquefied-gas fill: the finished blend is liquid or two-phase at the reference
+    /// temperature, so the additions are stopped by the scale, not the gauge.
+    pub by_mass: bool,
     /// Things the blender should know (sources not used, pressure above working pressure).
     pub notes: Vec<String>,
 }
@@ -394,6 +419,31 @@ fn step_pressures(
     Ok(out)
 }
 
+/// What a step's contents do between the fill temperature and the lowest storage
+/// temperature.
+enum Judged {
+    Gas,
+    /// Liquid forms on cooling to the lowest storage temperature.
+    OnCooling,
+    /// Liquid already at the fill temperature; the equilibrium pressure, Pa.
+    AtFill(f64),
+}
+
+/// Judge a step's contents at the fill temperature and at three more temperatures down to
+/// `t_min_k` (the isochore of the cylinder).
+fn judge_step(fluid: &Fluid, t_fill: f64, t_min_k: f64, volume_m3: f64, n: &[f64]) -> Result<Judged, ThermoError> {
+    if fluid.condensed_tv(t_fill, volume_m3, n)? {
+        return Ok(Judged::AtFill(fluid.equilibrium_tv(t_fill, volume_m3, n)?.pressure_pa));
+    }
+    for k in 1..=3 {
+        let t = t_fill - (t_fill - t_min_k) * k as f64 / 3.0;
+        if t < t_fill && fluid.condensed_tv(t, volume_m3, n)? {
+            return Ok(Judged::OnCooling);
+        }
+    }
+    Ok(Judged::Gas)
+}
+
 /// Make the plan for an order.
 pub fn plan(order: &Order, catalogue: &Catalogue, options: &PlanOptions) -> Result<Plan, PlanError> {
     plan_at_depth(order, catalogue, options, 0)
@@ -418,13 +468,32 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         let source = &order.sources[k];
         let add_mass_g = d.source_mol[k] * source.composition.molar_mass(catalogue);
         scale += add_mass_g;
-        let increment_pa = p_after - previous_pa;
         let mut flags = Vec::new();
-        if increment_pa < options.resolutions.gauge_pa {
-            flags.push(StepFlag::BelowGaugeResolution);
-        }
         if add_mass_g < options.resolutions.scale_g {
             flags.push(StepFlag::BelowScaleResolution);
+        }
+        // Liquid from this step's contents: at the fill temperature the reading is then the
+        // vapour pressure of the contents, not the single-phase number.
+        let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
+        let last = steps.len() + 1 == d.sequence.len();
+        let p_after = match judge_step(&fluid, t_fill, t_min, order.volume_m3, &n_after)? {
+            Judged::Gas => p_after,
+            Judged::OnCooling if last => {
+                flags.push(StepFlag::AboveDewPoint);
+                p_after
+            }
+            Judged::OnCooling => {
+                flags.push(StepFlag::CondensesIfCooled);
+                p_after
+            }
+            Judged::AtFill(p) => {
+                flags.push(StepFlag::AboveDewPoint);
+                p
+            }
+        };
+        let increment_pa = p_after - previous_pa;
+        if increment_pa < options.resolutions.gauge_pa {
+            flags.insert(0, StepFlag::BelowGaugeResolution);
         }
         steps.push(Step {
             source: source.name.clone(),
@@ -563,7 +632,16 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         ));
     }
 
+    let by_mass = fluid.condensed_tv(t_ref, order.volume_m3, &n_final)?;
+    if by_mass {
+        notes.push(
+            "liquefied-gas fill: the blend is liquid or two-phase at the reference temperature; fill by mass (the \
+             gauge shows the vapour pressure)"
+                .into(),
+        );
+    }
     let mut plan = Plan {
+        by_mass,
         model,
         fluid,
         gases: setup.gases.clone(),

@@ -89,7 +89,7 @@ pub fn propose(
     let balance_id = catalogue.gas(balance_gas).id().to_string();
     let mut out = Vec::new();
     for (index, step) in plan.steps.iter().enumerate() {
-        if step.flags.is_empty() {
+        if !step.flags.iter().any(|f| f.too_small()) {
             continue;
         }
         let Some(source) = order.sources.iter().find(|s| s.name == step.source) else {

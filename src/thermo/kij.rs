@@ -1,7 +1,9 @@
 //! Binary interaction parameters k_ij, one table per model.
 //!
 //! Peng–Robinson: the ChemSep table (Kooijman & Taylor), generated into `kij_pr.ron` by
-//! `tools/make_catalogue.py`. No comparable published set covering these gases was found
+//! `tools/make_catalogue.py`, with outliers replaced by a documented choice (N2/n-octane:
+//! ChemSep's −0.4 becomes 0.1335, interpolated between N2/n-heptane and N2/n-decane; the
+//! reason is beside the value in the file). No comparable published set covering these gases was found
 //! for van der Waals, RK or SRK, so they use k_ij = 0, the classical default.
 
 use std::sync::OnceLock;
@@ -44,5 +46,8 @@ mod tests {
         assert_eq!(value(Model::Pr, "CH4", "N2"), 0.0289);
         assert_eq!(value(Model::Pr, "N2", "CH4"), 0.0289);
         assert_eq!(value(Model::Srk, "N2", "CH4"), 0.0);
+        // The outlier replaced: between ChemSep N2/n-C7H16 (0.1441) and N2/n-C10H22 (0.1122).
+        let k8 = value(Model::Pr, "N2", "n-C8H18");
+        assert!(k8 < value(Model::Pr, "N2", "n-C7H16") && k8 > value(Model::Pr, "N2", "n-C10H22"), "{k8}");
     }
 }

@@ -240,6 +240,9 @@ impl Fluid {
     /// The equilibrium state at (T, P) of feed `z`: single-phase, or flashed into liquid
     /// and vapour.
     pub fn equilibrium_tp(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<Equilibrium, ThermoError> {
+        Self::check_t(t_k)?;
+        Self::check_p(p_pa)?;
+        self.check_x(z)?;
         let screen = self.phase_screen();
         if let Some(i) = single_component(z) {
             let sat = self.saturation(t_k, z)?;
@@ -277,6 +280,11 @@ impl Fluid {
         }
         let z: Vec<f64> = amounts_mol.iter().map(|n| n / total).collect();
         let v = volume_m3 / total;
+        Self::check_t(t_k)?;
+        self.check_x(&z)?;
+        if !(v.is_finite() && v > 0.0) {
+            return Err(ThermoError::Volume(volume_m3 * 1e3));
+        }
         if let Some(i) = single_component(&z) {
             let c = &self.cubic[i];
             return match self.saturation(t_k, &z)? {
@@ -358,6 +366,29 @@ impl Fluid {
         best.molar_volume_m3 = v;
         best.judged_by = screen.model;
         Ok(best)
+    }
+
+    /// Whether `amounts_mol` in `volume_m3` at T is not a gas: liquid, or gas and liquid
+    /// together (the cheap yes/no of [`Fluid::equilibrium_tv`], without the flash).
+    pub fn condensed_tv(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<bool, ThermoError> {
+        let total: f64 = amounts_mol.iter().sum();
+        if !(total > 0.0 && total.is_finite()) {
+            return Err(ThermoError::Amount(total));
+        }
+        let z: Vec<f64> = amounts_mol.iter().map(|n| n / total).collect();
+        let v = volume_m3 / total;
+        if single_component(&z).is_some() {
+            return Ok(self.saturation(t_k, &z)?.is_some_and(|s| v < s.v_vapour_m3));
+        }
+        let screen = self.phase_screen();
+        if let Ok(p_screen) = screen.pressure_tv(t_k, v, &z) {
+            let on_stable_root =
+                screen.state_tp(t_k, p_screen, &z).is_ok_and(|s| (s.molar_volume_m3 - v).abs() <= 1e-6 * v);
+            if on_stable_root && screen.stability(t_k, p_screen, &z)?.is_none() {
+                return Ok(self.label(t_k, p_screen, &z, v) == Phase::Liquid);
+            }
+        }
+        Ok(true)
     }
 
     /// Flash a feed known to split, starting from the stability test's trial phase.

@@ -3,7 +3,7 @@
 
 use tui_input::Input;
 
-use crate::checks::{self, Check, Conditions};
+use crate::checks::{self, Check};
 use crate::gas::Catalogue;
 use crate::library::{Entry, Opened, Revision};
 use crate::plan::{self, Plan, PlanOptions};
@@ -174,16 +174,14 @@ impl Computed {
                 gauge_pa: settings.gauge_resolution_pa,
                 scale_g: settings.scale_resolution_g,
             },
+            min_temperature_k: Some(settings.conditions().judged_down_to_k()),
             ..PlanOptions::default()
         };
         let plan = match &order {
             Ok(o) => plan::plan(o, catalogue, &options).map_err(|e| e.to_string()),
             Err(e) => Err(e.clone()),
         };
-        let conditions = Conditions {
-            min_temperature_k: settings.min_storage_temperature_k,
-            max_temperature_k: settings.max_service_temperature_k,
-        };
+        let conditions = settings.conditions();
         let checks = match (&plan, &order) {
             (Ok(p), Ok(o)) => Some(checks::screen(p, o, catalogue, &conditions)),
             _ => None,

@@ -14,6 +14,7 @@ use super::model::{fields, Document, Field, Model, Overlay, PickFor, Prompt, Vie
 use super::update::field_text;
 use crate::checks::{Severity, CAUTIONS};
 use crate::gas::Catalogue;
+use crate::plan::StepFlag;
 use crate::recipe::FillTarget;
 use crate::units::{Shown, Sig};
 
@@ -292,7 +293,13 @@ fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area
                 theme.bold(),
             ));
             for s in &p.steps {
-                let flag = if s.flags.is_empty() { " " } else { "!" };
+                let flag = if s.flags.contains(&StepFlag::AboveDewPoint) {
+                    "L"
+                } else if s.flags.is_empty() {
+                    " "
+                } else {
+                    "!"
+                };
                 lines.push(Line::raw(format!(
                     "{:<12}{:>10}{:>11.1}{flag}",
                     clip(&s.source, 11),
@@ -370,7 +377,13 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
         let now = b.corrected_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
         let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
-        let flag = if s.flags.is_empty() { "" } else { " !" };
+        let flag = if s.flags.contains(&StepFlag::AboveDewPoint) {
+            " L"
+        } else if s.flags.is_empty() {
+            ""
+        } else {
+            " !"
+        };
         let text = format!(
             "{}{:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}{:>9}{:>9}{flag}",
             if selected { "▶" } else { " " },
@@ -393,7 +406,31 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         };
         lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, style)));
     }
-    if p.steps.iter().any(|s| !s.flags.is_empty()) {
+    if p.by_mass {
+        lines.extend(
+            wrap_words(
+                "LIQUEFIED-GAS FILL: the blend is liquid or two-phase at the reference temperature. Stop each \
+                 addition at its scale reading; the gauge shows the vapour pressure. Leave vapour space (the fill \
+                 ratio on the cylinder's markings).",
+                usize::from(inner.width.max(20)),
+            )
+            .into_iter()
+            .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
+        );
+    }
+    if p.steps.iter().any(|s| s.flags.contains(&StepFlag::AboveDewPoint)) {
+        lines.extend(
+            wrap_words(
+                "L liquid forms after this step (at the fill temperature or on cooling to the lowest storage \
+                 temperature): the gauge shows the vapour pressure, not a stop. Use a smaller share, a warmer fill, \
+                 another fill order, or fill by mass.",
+                usize::from(inner.width.max(20)),
+            )
+            .into_iter()
+            .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
+        );
+    }
+    if p.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())) {
         lines.push(Line::styled(
             "! below the gauge or scale resolution: a premix is proposed on the sheet",
             theme.fg(Color::Yellow),
