@@ -6,6 +6,8 @@
   <!-- generated: fill-sheet -->      cargo run -- plan flue-gas-span
   <!-- generated: check-lpg -->       cargo run -- check lpg-in-methane
   <!-- generated: certificate -->     cargo run -- certify tests/records/flue-gas-made.ron
+  <!-- generated: plan-liquid -->     cargo run -- plan --mix "CO2=60%,N2=balance" --volume 10L --pressure 150bar
+  <!-- generated: state-two-phase --> cargo run -- state --mix CO2 --temp 15C --volume 10L --amount 100mol
 
 Run from anywhere: python3 tools/update_readme.py
 """
@@ -22,6 +24,12 @@ PARTS = {
     "check-lpg": (["cargo", "run", "-q", "--", "check", "lpg-in-methane"], "check lpg-in-methane"),
     "certificate": (["cargo", "run", "-q", "--", "certify", "tests/records/flue-gas-made.ron"],
                     "certify tests/records/flue-gas-made.ron"),
+    "plan-liquid": (["cargo", "run", "-q", "--", "plan", "--mix", "CO2=60%,N2=balance", "--volume", "10L",
+                     "--pressure", "150bar"],
+                    'plan --mix "CO2=60%,N2=balance" --volume 10L --pressure 150bar'),
+    "state-two-phase": (["cargo", "run", "-q", "--", "state", "--mix", "CO2", "--temp", "15C", "--volume", "10L",
+                         "--amount", "100mol"],
+                        "state --mix CO2 --temp 15C --volume 10L --amount 100mol"),
 }
 
 

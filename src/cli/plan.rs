@@ -441,8 +441,8 @@ pub fn fill_sheet(
             .map(|f| match f {
                 StepFlag::BelowGaugeResolution => '!',
                 StepFlag::BelowScaleResolution => '*',
-                StepFlag::AboveDewPoint => 'L',
-                StepFlag::CondensesIfCooled => 'c',
+                StepFlag::AboveDewPoint if s.liquid_at_fill => 'L',
+                StepFlag::AboveDewPoint | StepFlag::CondensesIfCooled => 'c',
             })
             .collect();
         line(format!(
@@ -464,21 +464,27 @@ pub fn fill_sheet(
     if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::BelowScaleResolution)) {
         line(format!("    * mass below the scale resolution ({} g)", Sig(res.scale_g, 3)));
     }
-    if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::AboveDewPoint)) {
+    if plan.steps.iter().any(|s| s.liquid_at_fill) {
         for text in [
-            "    L liquid forms from what is in the cylinder after this step (at the fill",
-            "      temperature, or on cooling to the lowest storage temperature): the gauge",
-            "      shows the vapour pressure and cannot be used to stop. Instead: a smaller",
-            "      share of that gas, a warmer fill, another fill order (the condensable gas",
-            "      into the balance gas), or fill by mass (the scale column).",
+            "    L liquid forms from what is in the cylinder after this step at the fill",
+            "      temperature: the gauge shows the vapour pressure and cannot be used to",
+            "      stop. Instead: a smaller share of that gas, a warmer fill, another fill",
+            "      order (the condensable gas into the balance gas), or fill by mass.",
         ] {
             line(text.into());
         }
     }
-    if plan.steps.iter().any(|s| s.flags.contains(&StepFlag::CondensesIfCooled)) {
-        line("    c gas at the fill temperature, but liquid forms if the cylinder cools to the".into());
-        line("      lowest storage temperature before the fill is finished: fill in one".into());
-        line("      session and keep the cylinder at the fill temperature until it is done.".into());
+    let last = plan.steps.len().saturating_sub(1);
+    let cooled = |i: usize, s: &plan::Step| {
+        !s.liquid_at_fill
+            && (s.flags.contains(&StepFlag::CondensesIfCooled)
+                || (i == last && s.flags.contains(&StepFlag::AboveDewPoint)))
+    };
+    if plan.steps.iter().enumerate().any(|(i, s)| cooled(i, s)) {
+        line("    c gas at the fill temperature, but liquid forms on cooling to the lowest".into());
+        line("      storage temperature (less the condensation margin). After the last step".into());
+        line("      that is the finished blend: lower the fill (`fillwright check` gives the".into());
+        line("      highest fill). After an earlier one: fill in one session, warm.".into());
     }
     line(String::new());
 

@@ -150,6 +150,9 @@ pub struct Step {
     /// Amount of each plan gas in the cylinder after the step, mol.
     pub amounts_after_mol: Vec<f64>,
     pub flags: Vec<StepFlag>,
+    /// The contents after this step are liquid or two-phase at the fill temperature (the
+    /// reading is then their equilibrium pressure).
+    pub liquid_at_fill: bool,
 }
 
 /// One component of the blend.
@@ -476,7 +479,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         // vapour pressure of the contents, not the single-phase number.
         let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
         let last = steps.len() + 1 == d.sequence.len();
-        let p_after = match judge_step(&fluid, t_fill, t_min, order.volume_m3, &n_after)? {
+        let judged = judge_step(&fluid, t_fill, t_min, order.volume_m3, &n_after)?;
+        let liquid_at_fill = matches!(judged, Judged::AtFill(_));
+        let p_after = match judged {
             Judged::Gas => p_after,
             Judged::OnCooling if last => {
                 flags.push(StepFlag::AboveDewPoint);
@@ -505,6 +510,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
             temperature_k: t_fill,
             amounts_after_mol: n_after,
             flags,
+            liquid_at_fill,
         });
         previous_pa = p_after;
     }

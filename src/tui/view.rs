@@ -293,13 +293,7 @@ fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area
                 theme.bold(),
             ));
             for s in &p.steps {
-                let flag = if s.flags.contains(&StepFlag::AboveDewPoint) {
-                    "L"
-                } else if s.flags.is_empty() {
-                    " "
-                } else {
-                    "!"
-                };
+                let flag = step_mark(s).unwrap_or(" ");
                 lines.push(Line::raw(format!(
                     "{:<12}{:>10}{:>11.1}{flag}",
                     clip(&s.source, 11),
@@ -377,13 +371,7 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
         let now = b.corrected_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
         let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
-        let flag = if s.flags.contains(&StepFlag::AboveDewPoint) {
-            " L"
-        } else if s.flags.is_empty() {
-            ""
-        } else {
-            " !"
-        };
+        let flag = step_mark(s).map_or(String::new(), |m| format!(" {m}"));
         let text = format!(
             "{}{:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}{:>9}{:>9}{flag}",
             if selected { "▶" } else { " " },
@@ -418,17 +406,26 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
             .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
         );
     }
-    if p.steps.iter().any(|s| s.flags.contains(&StepFlag::AboveDewPoint)) {
-        lines.extend(
-            wrap_words(
-                "L liquid forms after this step (at the fill temperature or on cooling to the lowest storage \
-                 temperature): the gauge shows the vapour pressure, not a stop. Use a smaller share, a warmer fill, \
-                 another fill order, or fill by mass.",
-                usize::from(inner.width.max(20)),
-            )
-            .into_iter()
-            .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
-        );
+    let legends = [
+        (
+            "L",
+            "L liquid forms after this step at the fill temperature: the gauge shows the vapour pressure, not a \
+             stop. Use a smaller share, a warmer fill, another fill order, or fill by mass.",
+        ),
+        (
+            "c",
+            "c liquid forms if the cylinder cools to the lowest storage temperature (less the margin): after the \
+             last step lower the fill; after an earlier one fill in one session, warm.",
+        ),
+    ];
+    for (mark, text) in legends {
+        if p.steps.iter().any(|s| step_mark(s) == Some(mark)) {
+            lines.extend(
+                wrap_words(text, usize::from(inner.width.max(20)))
+                    .into_iter()
+                    .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
+            );
+        }
     }
     if p.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())) {
         lines.push(Line::styled(
@@ -669,6 +666,20 @@ fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         lines.push(Line::styled(format!("- {c}"), theme.dim()));
     }
     frame.render_widget(Paragraph::new(lines).wrap(Wrap { trim: false }), inner);
+}
+
+/// The mark of a step on the sheet: `L` liquid at the fill temperature, `c` liquid on
+/// cooling, `!` too small to dose; None for a plain step.
+fn step_mark(s: &crate::plan::Step) -> Option<&'static str> {
+    if s.liquid_at_fill {
+        Some("L")
+    } else if s.flags.iter().any(|f| matches!(f, StepFlag::AboveDewPoint | StepFlag::CondensesIfCooled)) {
+        Some("c")
+    } else if s.flags.iter().any(|f| f.too_small()) {
+        Some("!")
+    } else {
+        None
+    }
 }
 
 fn centered(area: Rect, width: u16, height: u16) -> Rect {
