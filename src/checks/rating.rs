@@ -16,7 +16,8 @@ const TEST_MARGIN: f64 = 0.9;
 pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
     let mut data = Map::new();
     let last = plan.steps.last().map(|s| s.amounts_after_mol.clone()).unwrap_or_default();
-    let at = |t: f64, amounts: &[f64]| plan.fluid.pressure(t, order.volume_m3, amounts);
+    // Where liquid is present, the equilibrium pressure, not a single-phase number.
+    let at = |t: f64, amounts: &[f64]| plan.fluid.pressure_in_cylinder(t, order.volume_m3, amounts);
     let settled = match at(REFERENCE_TEMPERATURE_K, &last) {
         Ok(p) => p,
         Err(e) => {

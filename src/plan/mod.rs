@@ -273,7 +273,7 @@ pub fn corrected_target_pa(
     amounts_after_mol: &[f64],
     t_measured_k: f64,
 ) -> Result<f64, ThermoError> {
-    fluid.pressure(t_measured_k, volume_m3, amounts_after_mol)
+    fluid.pressure_in_cylinder(t_measured_k, volume_m3, amounts_after_mol)
 }
 
 /// The plan's gases, target vector and source matrix.
@@ -519,7 +519,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let n_final: Vec<f64> = setup.x_target.iter().map(|x| x * d.total_mol).collect();
     let p_final = match order.fill {
         Fill::PressurePa(p) => p,
-        _ => fluid.pressure(t_ref, order.volume_m3, &n_final)?,
+        _ => fluid.pressure_in_cylinder(t_ref, order.volume_m3, &n_final)?,
     };
     if p_final > order.test_pressure_pa {
         return Err(PlanError::AboveTestPressure { final_bar: bar(p_final), test_bar: bar(order.test_pressure_pa) });

@@ -368,6 +368,16 @@ impl Fluid {
         Ok(best)
     }
 
+    /// The pressure of `amounts_mol` in `volume_m3` at T as it is: the single-phase
+    /// pressure of a gas, the equilibrium (vapour) pressure where liquid is present.
+    pub fn pressure_in_cylinder(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<f64, ThermoError> {
+        if self.condensed_tv(t_k, volume_m3, amounts_mol)? {
+            Ok(self.equilibrium_tv(t_k, volume_m3, amounts_mol)?.pressure_pa)
+        } else {
+            self.pressure(t_k, volume_m3, amounts_mol)
+        }
+    }
+
     /// Whether `amounts_mol` in `volume_m3` at T is not a gas: liquid, or gas and liquid
     /// together (the cheap yes/no of [`Fluid::equilibrium_tv`], without the flash).
     pub fn condensed_tv(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<bool, ThermoError> {
