@@ -330,3 +330,29 @@ fn state_says_the_phase_under_every_model() {
     assert!((v["pressure_bar"].as_f64().unwrap() / 50.8715 - 1.0).abs() < 1e-3, "{}", v["pressure_bar"]);
     assert!((v["liquid_fraction"].as_f64().unwrap() - (1.0 - 0.2107)).abs() < 0.01);
 }
+
+#[test]
+fn vapour_pressures_reach_below_the_correlations_and_say_how() {
+    use fillwright::checks::condensation::vapour_pressure;
+    let c = Catalogue::built_in();
+    let water = c.index_of("H2O").unwrap();
+    // Water at -20 °C: over ice. IAPWS R14-08 gives 103.24 Pa at 253.15 K (the formula
+    // checked at 230 K in the unit tests; this value from memory).
+    let (p, how) = vapour_pressure(&c, water, 253.15).unwrap();
+    assert!(how.contains("IAPWS"), "{how}");
+    assert!((p / 103.24 - 1.0).abs() < 2e-3, "{p}");
+    // Benzene below its correlation's range (it ends at the triple point, 278.7 K): the
+    // Peng–Robinson saturation pressure, said so. It meets CoolProp's reference equation at
+    // the triple point (4.79 kPa at 278.674 K, CoolProp 8.0.0) within 15 % (measured: +10 %,
+    // high, so the partial-pressure rule is less strict there than it should be; the
+    // equation-of-state judgement does not use it), and falls below it.
+    let benzene = c.index_of("C6H6").unwrap();
+    let (p, how) = vapour_pressure(&c, benzene, 273.15).unwrap();
+    assert!(how.contains("Peng–Robinson"), "{how}");
+    let pr = Fluid::new(&c, &[benzene], Model::Pr).unwrap();
+    let at_triple = pr.saturation(278.674, &[1.0]).unwrap().unwrap().pressure_pa;
+    assert!((at_triple / 4790.5 - 1.0).abs() < 0.15, "{at_triple}");
+    assert!(p < at_triple && p > 0.5 * at_triple, "{p}");
+    // Above the critical temperature there is none.
+    assert!(vapour_pressure(&c, c.index_of("N2").unwrap(), 273.15).is_none());
+}

@@ -417,7 +417,8 @@ fn step_pressures(
         for (ni, xi) in n.iter_mut().zip(&x_src) {
             *ni += d.source_mol[k] * xi;
         }
-        out.push((fluid.pressure(t_k, order.volume_m3, &n)?, n.clone()));
+        // Where the contents are partly liquid, the reading is their equilibrium pressure.
+        out.push((fluid.pressure_in_cylinder(t_k, order.volume_m3, &n)?, n.clone()));
     }
     Ok(out)
 }
