@@ -164,7 +164,10 @@ fn dew_and_bubble_points_agree_with_thermos_pr_flash_to_a_tenth_of_a_kelvin() {
             );
         }
         for b in &m.bubble_points {
-            let t = phase.bubble_temperature(b.pressure_pa, &m.x, 80.0).unwrap().unwrap();
+            let t = phase
+                .bubble_temperature(b.pressure_pa, &m.x, 80.0)
+                .unwrap()
+                .unwrap_or_else(|| panic!("{} at {} bar: no bubble point", m.label, b.pressure_pa / 1e5));
             assert!(
                 (t - b.bubble_temperature_k).abs() < 0.1,
                 "{} bubble at {} bar: {t} vs {}",
@@ -175,7 +178,7 @@ fn dew_and_bubble_points_agree_with_thermos_pr_flash_to_a_tenth_of_a_kelvin() {
             bubbles += 1;
         }
     }
-    assert!(bubbles >= 9);
+    assert!(bubbles >= 18, "{bubbles} bubble points");
 }
 
 #[test]

@@ -27,35 +27,72 @@ impl<'a> PhaseFluid<'a> {
         Ok(self.fluid.stability(t_k, p_pa, z)?.is_some())
     }
 
-    /// Bubble temperature at `p_pa`: the lowest temperature at which the feed splits, K,
-    /// searched up from `t_floor_k`. None where it does not split below the dew point.
+    /// Bubble temperature at `p_pa`, K: where the feed as a liquid is in equilibrium with an
+    /// incipient vapour, Σ z_i K_i = 1 with K_i = φ_i(liquid z) / φ_i(vapour y) and
+    /// y = z K / Σ z K (successive substitution from Wilson's K at each temperature),
+    /// bracketed by walking up from `t_floor_k` and bisected. None where there is no dew point.
     pub fn bubble_temperature(&self, p_pa: f64, z: &[f64], t_floor_k: f64) -> Result<Option<f64>, ThermoError> {
         let Some(dew) = self.dew_temperature(p_pa, z, t_floor_k)? else { return Ok(None) };
-        let mut lo = t_floor_k;
-        if self.unstable(lo, p_pa, z)? {
-            return Ok(Some(lo));
+        // ln Σ z K at T after the inner iteration; None when it collapses to K = 1.
+        let excess = |t: f64| -> Result<Option<f64>, ThermoError> {
+            let (ln_phi_l, _) = self.fluid.ln_phi_on(t, p_pa, z, true)?;
+            let mut k: Vec<f64> = crate::thermo::phases::wilson(self.fluid, t, p_pa);
+            for _ in 0..500 {
+                let sum: f64 = z.iter().zip(&k).map(|(zi, ki)| zi * ki).sum();
+                let y: Vec<f64> = z.iter().zip(&k).map(|(zi, ki)| zi * ki / sum).collect();
+                let (ln_phi_v, _) = self.fluid.ln_phi_on(t, p_pa, &y, false)?;
+                let mut change: f64 = 0.0;
+                for i in 0..k.len() {
+                    let new = (ln_phi_l[i] - ln_phi_v[i]).exp();
+                    change = change.max((new.ln() - k[i].ln()).abs());
+                    k[i] = new;
+                }
+                if k.iter().all(|ki| (ki - 1.0).abs() < 1e-7) {
+                    return Ok(None);
+                }
+                if change < 1e-12 {
+                    break;
+                }
+            }
+            Ok(Some(z.iter().zip(&k).map(|(zi, ki)| zi * ki).sum::<f64>().ln()))
+        };
+        // Bracket from below: far below the bubble point Σ z K < 1 (the vapour pressures are
+        // tiny); walk up in 3 % steps to the first temperature where it is not.
+        // Start below Wilson's estimate (Σ z K_Wilson = 1, monotonic in T), clear of the
+        // liquid–liquid splits that cubics show far below the bubble point.
+        let wilson_sum = |t: f64| -> f64 {
+            crate::thermo::phases::wilson(self.fluid, t, p_pa).iter().zip(z).map(|(k, zi)| k * zi).sum()
+        };
+        let (mut a, mut b) = (t_floor_k, dew);
+        for _ in 0..60 {
+            let mid = 0.5 * (a + b);
+            if wilson_sum(mid) < 1.0 {
+                a = mid;
+            } else {
+                b = mid;
+            }
         }
-        // Walk up in 1.5 % steps to the first split, then bisect.
+        let mut lo = (0.85 * a).max(t_floor_k);
         let mut hi = lo;
         loop {
-            hi *= 1.015;
+            hi *= 1.03;
             if hi >= dew {
                 hi = dew;
                 break;
             }
-            if self.unstable(hi, p_pa, z)? {
-                break;
+            // No distinct vapour root (None) is as far from boiling as Σ z K < 1.
+            match excess(hi)? {
+                Some(e) if e >= 0.0 => break,
+                _ => lo = hi,
             }
-            lo = hi;
         }
-        for _ in 0..60 {
+        for _ in 0..80 {
             let mid = 0.5 * (lo + hi);
-            if self.unstable(mid, p_pa, z)? {
-                hi = mid;
-            } else {
-                lo = mid;
+            match excess(mid)? {
+                Some(e) if e >= 0.0 => hi = mid,
+                _ => lo = mid,
             }
-            if hi - lo < 1e-6 {
+            if hi - lo < 1e-7 {
                 break;
             }
         }

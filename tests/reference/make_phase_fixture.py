@@ -44,6 +44,9 @@ MIXTURES = [
     ("lpg-in-methane", [("C3H8", 0.08), ("n-C4H10", 0.03), ("CH4", 0.89)]),
     ("propane-20-in-N2", [("C3H8", 0.20), ("N2", 0.80)]),
     ("pentane-in-methane", [("n-C5H12", 0.01), ("CH4", 0.99)]),
+    ("co2-in-methane", [("CO2", 0.10), ("CH4", 0.90)]),
+    ("ethane-propane-in-methane", [("C2H6", 0.10), ("C3H8", 0.05), ("CH4", 0.85)]),
+    ("butane-in-methane", [("n-C4H10", 0.03), ("CH4", 0.97)]),
 ]
 
 # Saturation states of pure gases at 0, 15 and 25 °C (CoolProp's reference equations).
