@@ -332,6 +332,8 @@ fn state_says_the_phase_under_every_model() {
     assert_eq!(v["phase"], "two-phase");
     assert!((v["pressure_bar"].as_f64().unwrap() / 50.8715 - 1.0).abs() < 1e-3, "{}", v["pressure_bar"]);
     assert!((v["liquid_fraction"].as_f64().unwrap() - (1.0 - 0.2107)).abs() < 0.01);
+    let (l, g) = (v["liquid_amount_mol"].as_f64().unwrap(), v["vapour_amount_mol"].as_f64().unwrap());
+    assert!((l + g - 100.0).abs() < 1e-9 && (g - 21.07).abs() < 1.0, "{l} {g}");
 }
 
 #[test]

@@ -226,6 +226,8 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
                 "solved": unknown.name(),
                 "phase": chosen.phase.key(),
                 "liquid_fraction": chosen.liquid_fraction,
+                "liquid_amount_mol": chosen.liquid_fraction * chosen.amount_mol,
+                "vapour_amount_mol": (1.0 - chosen.liquid_fraction) * chosen.amount_mol,
                 "phase_judged_by": chosen.judged_by.key(),
                 "near_condensation": chosen.phase != Phase::Supercritical && chosen.phase != Phase::Gas,
                 "liquid_like": chosen.phase == Phase::Liquid,
@@ -263,7 +265,7 @@ fn print_text(
     d: &Shown,
 ) {
     let mark = |u: Unknown| if u == unknown { "  <- solved" } else { "" };
-    println!("Gas state of {mix}");
+    println!("State of {mix}");
     println!("model: {} ({})", s.model.title(), s.model.key());
     println!();
     println!("  temperature  {:>12} {:<4} {:>10} K", Sig(d.t(given.t_k), 5), d.tu(), Sig(given.t_k, 6));
@@ -288,10 +290,13 @@ fn print_text(
         Phase::TwoPhase => {
             println!();
             println!(
-                "  ! Gas and liquid together: {:.1} % of the amount is liquid. The pressure is the vapour",
+                "  ! Gas and liquid together: {} mol liquid and {} mol vapour ({:.1} % liquid).",
+                Sig(s.liquid_fraction * s.amount_mol, 4),
+                Sig((1.0 - s.liquid_fraction) * s.amount_mol, 4),
                 s.liquid_fraction * 100.0
             );
-            println!("    pressure of the contents; adding gas makes more liquid, not more pressure.");
+            println!("    The pressure is the vapour pressure of the contents: adding gas makes more");
+            println!("    liquid, not more pressure.");
         }
         Phase::Liquid => {
             println!();
