@@ -95,3 +95,24 @@ fn tidy_check_names_untidy_files_and_tidy_fixes_them() {
     let text = std::fs::read_to_string(&messy).unwrap();
     assert!(text.starts_with("Recipe(\n    format: 1,\n    revision: 0,\n"), "{text}");
 }
+
+#[test]
+fn a_deleted_recipe_comes_back_from_the_trash() {
+    let config = fresh("undelete");
+    run(&config, &["list"]);
+    let o = run(&config, &["delete", "flue-gas-span"]);
+    assert!(o.status.success(), "{}", err(&o));
+    assert!(out(&run(&config, &["undelete"])).contains("flue-gas-span"));
+    // Taken again meanwhile: refused, or brought back under another name.
+    run(&config, &["copy", "lpg-in-methane", "flue-gas-span"]);
+    let o = run(&config, &["undelete", "flue-gas-span"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("already exists"), "{}", err(&o));
+    let o = run(&config, &["undelete", "flue-gas-span", "--as", "flue-gas-span-old"]);
+    assert!(o.status.success(), "{}", err(&o));
+    let text = std::fs::read_to_string(config.join("library/flue-gas-span-old.ron")).unwrap();
+    assert!(text.contains("CO2"), "the deleted recipe came back");
+    let o = run(&config, &["undelete", "nothing-like-it"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("trash"), "{}", err(&o));
+}

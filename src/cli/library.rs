@@ -266,3 +266,31 @@ pub fn delete(args: &DeleteArgs) -> Result<(), Failure> {
     println!("moved {} to {} (recoverable)", args.name, to.display());
     Ok(())
 }
+
+#[derive(Debug, Args)]
+pub struct UndeleteArgs {
+    /// The name the recipe had; without it, the trash is listed.
+    pub name: Option<String>,
+    /// Bring it back under another name (when the old one is taken again).
+    #[arg(long = "as", value_name = "NAME")]
+    pub to: Option<String>,
+    #[command(flatten)]
+    pub place: Place,
+}
+
+pub fn undelete(args: &UndeleteArgs) -> Result<(), Failure> {
+    let lib = args.place.open()?;
+    let Some(name) = &args.name else {
+        let trash = lib.trash();
+        if trash.is_empty() {
+            println!("the trash is empty");
+        }
+        for (name, stamp, _) in trash {
+            println!("{:<40} deleted {stamp}", clip(&name, 40));
+        }
+        return Ok(());
+    };
+    let back = lib.undelete(name, args.to.as_deref())?;
+    println!("{name} is back in the library as {back}");
+    Ok(())
+}

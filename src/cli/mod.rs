@@ -66,6 +66,8 @@ enum Command {
     Rename(library::TwoNames),
     /// Move a library recipe to the trash folder (recoverable).
     Delete(library::DeleteArgs),
+    /// Bring a deleted recipe back from the trash (the most recently deleted of that name).
+    Undelete(library::UndeleteArgs),
     /// List the gas catalogue with its constants and their sources.
     Gases(gases::GasesArgs),
     /// The certificate of a fill record: the composition made with its expanded
@@ -188,6 +190,7 @@ pub fn main() -> ExitCode {
         Some(Command::Copy(args)) => library::copy(&args),
         Some(Command::Rename(args)) => library::rename(&args),
         Some(Command::Delete(args)) => library::delete(&args),
+        Some(Command::Undelete(args)) => library::undelete(&args),
         Some(Command::Certify(args)) => record::certify(&args),
         Some(Command::Records(args)) => record::records(&args),
     };

@@ -542,6 +542,55 @@ impl Library {
         Ok(dst)
     }
 
+    /// The deleted recipes in the trash: (name, when it was deleted as stamped, path),
+    /// newest first.
+    pub fn trash(&self) -> Vec<(String, String, PathBuf)> {
+        let dir = self.dir.join(".trash");
+        if !std::fs::symlink_metadata(&dir).is_ok_and(|m| m.is_dir()) {
+            return Vec::new();
+        }
+        let mut out: Vec<(String, String, PathBuf)> = std::fs::read_dir(&dir)
+            .map(|rd| {
+                rd.flatten()
+                    .filter(|e| e.file_type().is_ok_and(|t| t.is_file()))
+                    .filter_map(|e| {
+                        let file = e.file_name().to_str()?.to_string();
+                        let (name, stamp) = file.strip_suffix(".ron")?.rsplit_once('.')?;
+                        Some((name.to_string(), stamp.to_string(), e.path()))
+                    })
+                    .collect()
+            })
+            .unwrap_or_default();
+        out.sort_by(|a, b| b.1.cmp(&a.1).then(a.0.cmp(&b.0)));
+        out
+    }
+
+    /// Bring the most recently deleted recipe `name` back from the trash, as `to` (its own
+    /// name when None). Its history stays with it.
+    pub fn undelete(&self, name: &str, to: Option<&str>) -> Result<String, LibraryError> {
+        let to = to.unwrap_or(name);
+        let dst = self.path_of(to)?;
+        let _lock = self.lock(to)?;
+        let trash = self.trash();
+        let Some((_, _, src)) = trash.iter().find(|(n, _, _)| n == name) else {
+            let mut names: Vec<&str> = trash.iter().map(|(n, _, _)| n.as_str()).collect();
+            names.dedup();
+            return Err(LibraryError::NotFound(if names.is_empty() {
+                format!("{name} in the trash (the trash is empty)")
+            } else {
+                format!("{name} in the trash; it holds {}", names.join(", "))
+            }));
+        };
+        if std::fs::symlink_metadata(&dst).is_ok() {
+            return Err(LibraryError::Exists(to.to_string()));
+        }
+        if to != name {
+            self.check_new_name(to)?;
+        }
+        std::fs::rename(src, &dst).map_err(io(src))?;
+        Ok(to.to_string())
+    }
+
     /// Bring a recipe file into the library under `name`.
     pub fn import(&self, file: &Path, name: &str, now: &str) -> Result<Saved, LibraryError> {
         let text = read_limited(file)?;
