@@ -236,7 +236,7 @@ impl Composition {
         self.gases
             .iter()
             .zip(&self.fractions)
-            .map(|(&g, x)| format!("{}={}", catalogue.gas(g).id(), x))
+            .map(|(&g, x)| format!("{}={}", catalogue.gas(g).id(), crate::units::fraction_text(*x)))
             .collect::<Vec<_>>()
             .join(",")
     }

@@ -249,6 +249,38 @@ impl fmt::Display for Sig {
     }
 }
 
+/// A table cell of at most `width` characters with a space before it: `digits` significant
+/// digits where they fit, else scientific notation, so that columns never run together.
+pub fn cell(x: f64, digits: usize, width: usize) -> String {
+    let plain = Sig(x, digits).to_string();
+    let text = if plain.chars().count() < width || !x.is_finite() || x == 0.0 {
+        plain
+    } else {
+        format!("{:.*e}", digits.saturating_sub(3).max(1), x)
+    };
+    format!(" {text:>w$}", w = width - 1)
+}
+
+/// A mole fraction as a person writes it: ppm below 0.1 %, % above, six significant digits
+/// at most, no floating-point noise (1e-5 is `10ppm`, not `0.000009999999999999999`).
+pub fn fraction_text(x: f64) -> String {
+    let trimmed = |v: f64| {
+        let s = format!("{}", Sig(v, 6));
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s
+        }
+    };
+    if x == 1.0 {
+        "100%".into()
+    } else if x < 1e-3 {
+        format!("{}ppm", trimmed(x * 1e6))
+    } else {
+        format!("{}%", trimmed(x * 100.0))
+    }
+}
+
 /// The pressure unit of the text outputs and the screen (JSON stays in bar, INTERFACE.md).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum PressureUnit {
@@ -378,6 +410,20 @@ mod tests {
         assert_eq!(parse_amount("1mol").unwrap(), AmountInput::Moles(1.0));
         assert_eq!(parse_amount("32g").unwrap(), AmountInput::Grams(32.0));
         assert_eq!(parse_amount("0.5kg").unwrap(), AmountInput::Grams(500.0));
+    }
+
+    #[test]
+    fn cells_keep_a_space_and_fractions_read_as_typed() {
+        for x in [0.0015, 0.0014809, 150.0, 3.6845, 12345.678, 1e-7] {
+            let c = cell(x, 5, 9);
+            assert_eq!(c.chars().count(), 9, "{c:?}");
+            assert!(c.starts_with(' '), "{c:?}");
+        }
+        assert_eq!(fraction_text(0.000009999999999999999), "10ppm");
+        assert_eq!(fraction_text(0.000049999999999999996), "50ppm");
+        assert_eq!(fraction_text(0.025), "2.5%");
+        assert_eq!(fraction_text(0.97494), "97.494%");
+        assert_eq!(fraction_text(1.0), "100%");
     }
 
     #[test]

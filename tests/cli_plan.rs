@@ -197,3 +197,19 @@ fn a_reader_that_stops_early_is_not_a_crash() {
     let out = child.wait_with_output().unwrap();
     assert!(!String::from_utf8_lossy(&out.stderr).contains("panicked"));
 }
+
+#[test]
+fn ppm_levels_keep_their_columns_apart_and_read_as_typed() {
+    let o =
+        run(&["plan", "--mix", "H2S=10ppm,CO=50ppm,CH4=2.5%,N2=balance", "--volume", "10L", "--pressure", "150bar"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = String::from_utf8_lossy(&o.stdout).into_owned();
+    assert!(text.starts_with("FILL SHEET  H2S=10ppm,CO=50ppm,CH4=2.5%,N2=97.494%"), "{text}");
+    // Every cell of the every-model table is separated by at least one space.
+    let table: Vec<&str> = text.lines().skip_while(|l| !l.starts_with("EVERY MODEL")).skip(2).take(4).collect();
+    for row in table {
+        let cells: Vec<&str> = row[18..].split_whitespace().collect();
+        assert_eq!(cells.len(), 6, "{row}");
+        assert!(cells.iter().all(|c| c.parse::<f64>().is_ok()), "{row}");
+    }
+}

@@ -551,13 +551,13 @@ pub fn fill_sheet(
         let mut row = format!("{:<18}", clip(&format!("{} {}", i + 1, s.source), 18));
         for m in &models {
             let p = m.result.as_ref().ok().and_then(|f| f.step_pressures_pa.get(i)).copied().unwrap_or(f64::NAN);
-            row.push_str(&format!("{:>9}", Sig(d.p(p), 5).to_string()));
+            row.push_str(&units::cell(d.p(p), 5, 9));
         }
         line(row);
     }
     let mut row = format!("{:<18}", "amount mol");
     for m in &models {
-        row.push_str(&format!("{:>9}", Sig(m.result.as_ref().map_or(f64::NAN, |f| f.amount_mol), 5).to_string()));
+        row.push_str(&units::cell(m.result.as_ref().map_or(f64::NAN, |f| f.amount_mol), 5, 9));
     }
     line(row);
     let mut row = format!("{:<18}", "Z");

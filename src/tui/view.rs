@@ -16,7 +16,7 @@ use crate::checks::{Severity, CAUTIONS};
 use crate::gas::Catalogue;
 use crate::plan::StepFlag;
 use crate::recipe::FillTarget;
-use crate::units::{Shown, Sig};
+use crate::units::Shown;
 
 /// Smallest terminal the screen draws in.
 pub const MIN_WIDTH: u16 = 60;
@@ -518,10 +518,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     for (i, s) in p.steps.iter().enumerate().take(shown) {
         let mut row = format!("{:<14}", clip(&format!("{} {}", i + 1, s.source), 13));
         for (_, f) in &ok {
-            row.push_str(&format!(
-                "{:>9}",
-                Sig(f.step_pressures_pa.get(i).map_or(f64::NAN, |v| model.shown.p(*v)), 5).to_string()
-            ));
+            row.push_str(&crate::units::cell(f.step_pressures_pa.get(i).map_or(f64::NAN, |v| model.shown.p(*v)), 5, 9));
         }
         lines.push(Line::raw(row));
     }
@@ -532,7 +529,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let mut diff = format!("{:<14}", "vs reference");
     let mut z = format!("{:<14}", "Z");
     for (_, f) in &ok {
-        amount.push_str(&format!("{:>9}", Sig(f.amount_mol, 5).to_string()));
+        amount.push_str(&crate::units::cell(f.amount_mol, 5, 9));
         diff.push_str(&format!(
             "{:>9}",
             format!("{:+.2}%", ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0))
