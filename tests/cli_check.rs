@@ -92,3 +92,44 @@ fn a_recipe_can_be_checked_against_another_cylinder_rating() {
     assert_eq!(rating["severity"], "stop");
     assert_eq!(rating["working_pressure_bar"], 140.0);
 }
+
+#[test]
+fn csv_is_a_table_for_check_and_gases() {
+    let o = run(&["check", "flue-gas-span", "--format", "csv"]);
+    assert!(o.status.success());
+    let text = String::from_utf8_lossy(&o.stdout).into_owned();
+    let mut lines = text.lines();
+    assert_eq!(lines.next(), Some("recipe,model,id,severity,message"));
+    let rows: Vec<&str> = lines.collect();
+    assert_eq!(rows.len(), 6, "{text}");
+    assert!(rows.iter().any(|r| r.contains(",pressure-rating,ok,\"")), "a message with a comma is quoted: {text}");
+    let o = run(&["gases", "--format", "csv"]);
+    let text = String::from_utf8_lossy(&o.stdout).into_owned();
+    assert!(text.starts_with("id,name,cas,molar_mass_g_per_mol,"), "{text}");
+    assert!(text.lines().any(|l| l.starts_with("CO2,carbon dioxide,124-38-9,44.0")), "{text}");
+}
+
+#[test]
+fn trace_toxics_read_as_not_toxic_and_reactive_traces_get_their_caution() {
+    let o = run(&[
+        "check",
+        "--mix",
+        "H2S=10ppm,CO=50ppm,CH4=2.5%,N2=balance",
+        "--volume",
+        "10L",
+        "--pressure",
+        "150bar",
+        "--format",
+        "json",
+    ]);
+    let v = json(&o);
+    let tox = v["checks"].as_array().unwrap().iter().find(|c| c["id"] == "toxicity").unwrap().clone();
+    assert_eq!(tox["severity"], "ok");
+    assert!(tox["message"].as_str().unwrap().contains("above 10⁶ ppm"), "{tox}");
+    let details = tox["details"].to_string();
+    assert!(details.contains("H2S: 10ppm") && details.contains("passivated"), "{details}");
+    assert!(!details.contains("0.00000999"), "{details}");
+    // A blend without reactive traces carries no such caution.
+    let o = run(&["check", "flue-gas-span", "--format", "json"]);
+    assert!(!json(&o).to_string().contains("passivated"));
+}

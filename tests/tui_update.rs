@@ -535,3 +535,24 @@ fn drafts_belong_to_a_file_and_a_session() {
     assert!(offered[0].file.ends_with("d2/x.ron"));
     assert_eq!(fillwright::tui::drafts::read(&offered[0].path).unwrap().components[0].amount, "23%");
 }
+
+#[test]
+fn a_gas_already_in_the_recipe_is_not_added_twice() {
+    let (mut model, mut ctx, _dir) = setup("picker-twice");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let before = model.doc.as_ref().unwrap().recipe.components.clone();
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    text(&mut model, &mut ctx, "carbon monoxide");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components, before, "nothing was added or changed");
+    assert!(model.status.contains("already in the recipe"), "{}", model.status);
+    let i = doc.recipe.components.iter().position(|c| c.gas == "CO").unwrap();
+    assert_eq!(doc.current_field(), fillwright::tui::model::Field::Component(i), "the cursor is on the CO row");
+    // Typing now edits that row, and no second CO appears.
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "77ppm");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components.iter().filter(|c| c.gas == "CO").count(), 1);
+}

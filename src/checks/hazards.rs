@@ -140,10 +140,29 @@ pub fn toxicity(plan: &Plan, catalogue: &Catalogue) -> Check {
     let corrosive: Vec<&str> = parts.iter().filter(|p| p.2.corrosive).map(|p| p.0.as_str()).collect();
     let mut details: Vec<String> = parts
         .iter()
-        .filter_map(|(id, x, h)| Some(format!("{id}: {} ppm, LC50 {} ppm", x * 1e6, h.lc50_ppm?)))
+        .filter_map(|(id, x, h)| Some(format!("{id}: {}, LC50 {} ppm", crate::units::fraction_text(*x), h.lc50_ppm?)))
         .collect();
-    if let Some(l) = lc50 {
-        details.push(format!("mixture LC50 by additivity: {l:.0} ppm (toxic at {TOXIC_LC50_PPM} ppm or below)"));
+    match lc50 {
+        // Above a million ppm the additivity rule says the mixture cannot reach a lethal
+        // concentration at all, whatever the figure.
+        Some(l) if l > 1e6 => details.push(format!(
+            "mixture LC50 by additivity above 1,000,000 ppm ({l:.3e} ppm): not toxic by this rule (toxic at \
+             {TOXIC_LC50_PPM} ppm or below)"
+        )),
+        Some(l) => {
+            details.push(format!("mixture LC50 by additivity: {l:.0} ppm (toxic at {TOXIC_LC50_PPM} ppm or below)"))
+        }
+        None => {}
+    }
+    // Reactive components at trace levels drift in the cylinder (common practice, no source).
+    for (id, x, _) in &parts {
+        if REACTIVE_TRACES.contains(&id.as_str()) && *x < 0.01 {
+            details.push(format!(
+                "{id} at {}: reactive at this level; use a passivated (treated) cylinder and valve, fill and analyse \
+                 soon after, and give the blend a limited shelf life (common practice)",
+                crate::units::fraction_text(*x)
+            ));
+        }
     }
     let mut data = Map::new();
     data.insert("toxic".into(), json!(toxic));
@@ -154,11 +173,22 @@ pub fn toxicity(plan: &Plan, catalogue: &Catalogue) -> Check {
         None if corrosive.is_empty() => (Severity::Ok, "no toxic component".to_string()),
         None => (Severity::Caution, format!("no toxic component{corr}")),
         Some(l) if toxic => (Severity::Caution, format!("toxic by inhalation: mixture LC50 {l:.0} ppm{corr}")),
+        Some(l) if l > 1e6 && !corrosive.is_empty() => {
+            (Severity::Caution, format!("not toxic by the additivity rule (mixture LC50 above 10⁶ ppm){corr}"))
+        }
+        Some(l) if l > 1e6 => (
+            Severity::Ok,
+            "not toxic by inhalation (mixture LC50 above 10⁶ ppm: the rule finds no lethal level)".into(),
+        ),
         Some(l) if !corrosive.is_empty() => (Severity::Caution, format!("not toxic (mixture LC50 {l:.0} ppm){corr}")),
         Some(l) => (Severity::Ok, format!("not toxic by inhalation (mixture LC50 {l:.0} ppm)")),
     };
     Check { id: "toxicity", severity, message, details, data }
 }
+
+/// Gases that react with cylinder walls and valves at ppm levels, so that their content
+/// drifts (common practice, no source).
+pub const REACTIVE_TRACES: &[&str] = &["H2S", "NO", "NO2", "SO2", "HCl", "NH3", "Cl2", "COS"];
 
 /// Pairs that react in a cylinder, with the reason (common practice, no source).
 pub const INCOMPATIBLE: &[(&str, &str, &str)] = &[

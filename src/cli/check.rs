@@ -142,7 +142,29 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
                 .collect::<Vec<_>>(),
             "cautions": CAUTIONS,
         })),
-        Format::Text | Format::Csv => print_text(&results, &conditions, &settings.shown),
+        Format::Csv => {
+            println!("recipe,model,id,severity,message");
+            for (origin, r) in &results {
+                match r {
+                    Ok((model, list)) => {
+                        for c in list {
+                            println!(
+                                "{},{},{},{},{}",
+                                super::gases::csv_field(origin),
+                                model.key(),
+                                c.id,
+                                c.severity.key(),
+                                super::gases::csv_field(&c.message)
+                            );
+                        }
+                    }
+                    Err(e) => {
+                        println!("{},,,unreadable,{}", super::gases::csv_field(origin), super::gases::csv_field(e))
+                    }
+                }
+            }
+        }
+        Format::Text => print_text(&results, &conditions, &settings.shown),
     }
     let worst = results
         .iter()

@@ -15,6 +15,15 @@ pub struct GasesArgs {
     pub format: Format,
 }
 
+/// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
+pub fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
 pub fn run(args: &GasesArgs) -> Result<(), Failure> {
     let catalogue = config::load_catalogue().map_err(Refused)?;
     match args.format {
@@ -46,7 +55,25 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
                 .collect();
             print_json(&json!({ "gases": gases }));
         }
-        Format::Text | Format::Csv => {
+        Format::Csv => {
+            println!("id,name,cas,molar_mass_g_per_mol,critical_temperature_k,critical_pressure_bar,acentric_factor,normal_boiling_point_k,gerg");
+            for g in catalogue.gases() {
+                let r = &g.record;
+                println!(
+                    "{},{},{},{},{},{},{},{},{}",
+                    csv_field(&r.id),
+                    csv_field(&r.name),
+                    csv_field(&r.cas),
+                    g.molar_mass_g_per_mol,
+                    r.critical_temperature_k,
+                    bar(r.critical_pressure_pa),
+                    r.acentric_factor,
+                    r.normal_boiling_point_k,
+                    gerg::covers(&r.id)
+                );
+            }
+        }
+        Format::Text => {
             println!(
                 "{:<9} {:<22} {:<11} {:>8} {:>8} {:>8} {:>7} {:>7}  models",
                 "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"

@@ -706,8 +706,21 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 Key::Enter => {
                     if let (Some(&g), Some(doc)) = (hits.get(selected), model.doc.as_mut()) {
                         let id = ctx.catalogue.gas(g).id().to_string();
-                        match purpose {
-                            PickFor::AddComponent => {
+                        // A gas already in the recipe (however it was written there) is not
+                        // added twice: the cursor goes to its row instead.
+                        let existing = doc
+                            .recipe
+                            .components
+                            .iter()
+                            .position(|c| ctx.catalogue.index_of(&c.gas) == Some(g))
+                            .filter(|&i| purpose != PickFor::ReplaceComponent(i));
+                        match (purpose, existing) {
+                            (_, Some(i)) => {
+                                doc.field =
+                                    fields(&doc.recipe).iter().position(|f| *f == Field::Component(i)).unwrap_or(0);
+                                model.status = format!("{id} is already in the recipe: the cursor is on its row");
+                            }
+                            (PickFor::AddComponent, None) => {
                                 edit(doc, ctx, |r| {
                                     let at = r.components.len().saturating_sub(1);
                                     let line = ComponentLine { gas: id.clone(), amount: "1%".into(), tolerance: None };
@@ -724,7 +737,7 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                                 doc.editing = Some(Input::new("1%".into()));
                                 model.status = format!("{id} added: type its amount");
                             }
-                            PickFor::ReplaceComponent(i) => {
+                            (PickFor::ReplaceComponent(i), None) => {
                                 edit(doc, ctx, |r| r.components[i].gas = id.clone());
                                 model.status = format!("component is now {id}");
                             }
