@@ -295,6 +295,28 @@ fn history_shows_what_changed_between_two_revisions() {
     // Restore revision 2 as revision 4.
     keys(&mut model, &mut ctx, &[Key::Char('r')]);
     assert!(model.status.contains("as revision 4"), "{}", model.status);
+    // The open editor now holds revision 4, and the next save builds on it (no claim that
+    // another bench changed the file).
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.revision, 4);
+    assert!(doc.recipe.components.iter().any(|c| c.gas == "CO2" && c.amount == "14%"));
+    keys(&mut model, &mut ctx, &[Key::Char('2')]);
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "12%");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('s')]);
+    assert_eq!(model.status, "saved rev 5");
+    // With unsaved edits, a restore is refused and the edits stay.
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "11%");
+    keys(
+        &mut model,
+        &mut ctx,
+        &[Key::Enter, Key::Char('1'), Key::Home, Key::Down, Key::Char('h'), Key::Up, Key::Char('r')],
+    );
+    assert!(model.status.contains("unsaved edits"), "{}", model.status);
+    assert!(model.doc.as_ref().unwrap().recipe.components.iter().any(|c| c.amount == "11%"));
 }
 
 #[test]

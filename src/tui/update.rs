@@ -769,8 +769,22 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
             }
             Key::Char('r') => {
                 let rev = revisions.get(selected).map_or(0, |r| r.revision);
+                let open_here = model.doc.as_ref().filter(|d| d.name == name);
+                if open_here.is_some_and(Document::dirty) {
+                    model.status = format!("{name} has unsaved edits: save them (s) or undo them before restoring");
+                    model.overlay = Overlay::History { name, revisions, selected, changes, base };
+                    return;
+                }
+                let reload = open_here.is_some();
                 match ctx.library.restore(&name, rev, &(ctx.now)()) {
                     Ok(Saved::Written { revision, .. }) => {
+                        // The open editor shows what is now on disk, so that the next save
+                        // builds on the restored revision.
+                        if reload {
+                            let view = model.view;
+                            open(model, ctx, &name);
+                            model.view = view;
+                        }
                         model.status = format!("restored revision {rev} of {name} as revision {revision}")
                     }
                     Ok(Saved::Unchanged { .. }) => model.status = "that revision is the current content".into(),
