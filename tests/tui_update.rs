@@ -578,3 +578,24 @@ fn a_gas_already_in_the_recipe_is_not_added_twice() {
     let doc = model.doc.as_ref().unwrap();
     assert_eq!(doc.recipe.components.iter().filter(|c| c.gas == "CO").count(), 1);
 }
+
+#[test]
+fn help_stays_visible_at_80_columns_whatever_the_message() {
+    let (mut model, mut ctx, _dir) = setup("hints");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    model.status = "a very long message about what just happened at the bench, longer than the line itself".into();
+    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(80, 24)).unwrap();
+    terminal.draw(|f| fillwright::tui::view::view(&model, &ctx.catalogue, f)).unwrap();
+    let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
+    let last = screen.lines().last().unwrap().to_string();
+    assert!(last.contains("? help"), "{last}");
+    assert!(last.contains("a very long message"), "{last}");
+    // Without a message, the most important keys come first and the rest fit the width.
+    model.status.clear();
+    terminal.draw(|f| fillwright::tui::view::view(&model, &ctx.catalogue, f)).unwrap();
+    let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
+    let last = screen.lines().last().unwrap().trim_end().to_string();
+    assert!(last.starts_with("? help · Enter edit · s save · q quit"), "{last}");
+    assert!(last.chars().count() <= 80);
+    let _ = &mut ctx;
+}

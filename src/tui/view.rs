@@ -101,34 +101,51 @@ fn header(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
 }
 
 /// The keys that matter in the current context.
+/// The keys that matter now, most important first; `? help` always leads.
 fn keys_hint(model: &Model) -> &'static str {
     match (&model.overlay, model.view) {
-        (Overlay::None, View::Library) if model.library.filter.is_some() => "type to search · Enter open · Esc clear",
+        (Overlay::None, View::Library) if model.library.filter.is_some() => "? help · Enter open · Esc clear · type to search",
         (Overlay::None, View::Library) => {
-            "Enter open · / search · n new · c copy · r rename · d delete · h history · ? help · q quit"
+            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete"
         }
         (Overlay::None, View::Editor) if model.doc.as_ref().is_some_and(|d| d.editing.is_some()) => {
-            "type · Enter keep · Esc cancel"
+            "Enter keep · Esc cancel · type"
         }
         (Overlay::None, View::Editor) => {
-            "↑↓ move · Enter edit · a add gas · x remove · u undo · s save · Tab next view · ? help"
+            "? help · Enter edit · s save · q quit · a add gas · b balance · g change gas · x remove · u undo · Tab view"
         }
-        (Overlay::None, View::Sheet) => "? help · w weigh · r reading · t temp · l source · ↑↓ step · Space done",
-        (Overlay::None, View::Checks) => "↑↓ choose a check · Tab next view · Esc library · ? help",
-        (Overlay::None, _) => "Tab next view · Esc library · s save · ? help · q quit",
+        (Overlay::None, View::Sheet) => "? help · Space done · r reading · t temp · w weigh · l source · ↑↓ step",
+        (Overlay::None, View::Checks) => "? help · ↑↓ choose a check · Tab next view · Esc library",
+        (Overlay::None, _) => "? help · Tab next view · s save · Esc library · q quit",
         _ => "Esc closes",
     }
 }
 
+/// The status line: what just happened, then as many key hints as fit, most important
+/// first; the first hint (`? help`) is always shown, the message is cut to make room.
 fn status_line(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
-    let line = if model.status.is_empty() {
-        Line::from(Span::styled(keys_hint(model), theme.dim()))
+    let width = usize::from(area.width);
+    let hints: Vec<&str> = keys_hint(model).split(" · ").collect();
+    let first = hints.first().copied().unwrap_or("");
+    let status = if model.status.is_empty() {
+        String::new()
     } else {
-        Line::from(vec![
-            Span::styled(model.status.clone(), theme.bold()),
-            Span::raw(" │ "),
-            Span::styled(keys_hint(model), theme.dim()),
-        ])
+        // Room for the first hint and the separator.
+        clip(&model.status, width.saturating_sub(first.chars().count() + 3).max(1))
+    };
+    let used = if status.is_empty() { 0 } else { status.chars().count() + 3 };
+    let mut shown = String::from(first);
+    for h in hints.iter().skip(1) {
+        if used + shown.chars().count() + 3 + h.chars().count() > width {
+            break;
+        }
+        shown.push_str(" · ");
+        shown.push_str(h);
+    }
+    let line = if status.is_empty() {
+        Line::from(Span::styled(shown, theme.dim()))
+    } else {
+        Line::from(vec![Span::styled(status, theme.bold()), Span::raw(" │ "), Span::styled(shown, theme.dim())])
     };
     frame.render_widget(Paragraph::new(line), area);
 }
