@@ -123,6 +123,20 @@ fn bad_input_is_shown_and_nothing_is_lost() {
     assert_eq!(doc.recipe.components[2].amount, "115%", "what was typed is kept");
     assert!(doc.computed.plan.as_ref().unwrap_err().contains("above 100 %"));
     assert!(model.status.contains("not plannable yet"));
+    // Saving it asks first and says what is wrong; declining writes nothing.
+    let on_disk = ctx.library.open("flue-gas-span").unwrap().text;
+    keys(&mut model, &mut ctx, &[Key::Char('s')]);
+    match &model.overlay {
+        Overlay::ConfirmSaveInvalid { why, .. } => assert!(why.contains("above 100 %"), "{why}"),
+        other => panic!("{other:?}"),
+    }
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    assert_eq!(ctx.library.open("flue-gas-span").unwrap().text, on_disk);
+    assert!(model.status.contains("not saved"), "{}", model.status);
+    // Confirming saves it as typed.
+    keys(&mut model, &mut ctx, &[Key::Char('s'), Key::Char('y')]);
+    assert_eq!(model.status, "saved rev 2");
+    assert_eq!(ctx.library.open("flue-gas-span").unwrap().recipe.components[2].amount, "115%");
 }
 
 #[test]

@@ -48,6 +48,11 @@ pub enum Overlay {
     Conflict,
     /// The plan is at stop: tick its steps anyway? (the finding)
     ConfirmStop(String),
+    /// The recipe does not validate: save it anyway? (what is wrong, the revision note)
+    ConfirmSaveInvalid {
+        why: String,
+        note: Option<String>,
+    },
     /// A line of text for `purpose`.
     Prompt {
         purpose: Prompt,

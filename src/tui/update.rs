@@ -284,7 +284,7 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
             go_to(model, v);
         }
         Key::Char('s') | Key::F(2) if model.doc.is_some() && model.view != View::Library => {
-            save(model, ctx, None, false)
+            save_checked(model, ctx, None)
         }
         Key::Char('S') if model.doc.is_some() && model.view != View::Library => {
             model.overlay = Overlay::Prompt { purpose: Prompt::SaveNote, input: input("") }
@@ -639,7 +639,7 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 model.quit = true;
             }
             Key::Char('s') => {
-                save(model, ctx, None, false);
+                save_checked(model, ctx, None);
                 if !model.doc.as_ref().is_some_and(Document::dirty) {
                     model.quit = true;
                 }
@@ -658,6 +658,13 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 refresh(model, ctx);
             } else {
                 model.status = "nothing deleted".into();
+            }
+        }
+        Overlay::ConfirmSaveInvalid { note, .. } => {
+            if key == Key::Char('y') {
+                save(model, ctx, note, false);
+            } else {
+                model.status = "not saved: mend the recipe first (the Recipe view shows what is wrong)".into();
             }
         }
         Overlay::ConfirmStop(finding) => {
@@ -881,7 +888,7 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
                 }
             }
         }
-        Prompt::SaveNote => save(model, ctx, Some(text), false),
+        Prompt::SaveNote => save_checked(model, ctx, Some(text)),
         Prompt::MeasuredTemperature => super::sheet::on_temperature(model, ctx, &text),
         Prompt::ActualReading(step) => super::sheet::on_pressure(model, ctx, step, &text),
         Prompt::Weighing => super::sheet::on_weighing(model, ctx, &text),
@@ -893,6 +900,15 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
                 }
             }
         }
+    }
+}
+
+/// Save the open recipe, asking first when it does not validate (it would not plan).
+fn save_checked(model: &mut Model, ctx: &mut Context, note: Option<String>) {
+    let problem = model.doc.as_ref().and_then(|d| d.computed.order.as_ref().err().cloned());
+    match problem {
+        Some(why) => model.overlay = Overlay::ConfirmSaveInvalid { why, note },
+        None => save(model, ctx, note, false),
     }
 }
 

@@ -784,6 +784,14 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             ];
             boxed(frame, centered(area, 56, 4), "Delete", lines);
         }
+        Overlay::ConfirmSaveInvalid { why, .. } => {
+            let mut lines = vec![Line::styled("This recipe does not validate:", theme.severity(Severity::Stop))];
+            lines.extend(wrap_words(why, 58).into_iter().take(4).map(Line::raw));
+            lines.push(Line::raw("It will not plan until that is mended."));
+            lines.push(Line::raw("y  save it anyway     any other key: do not save"));
+            let h = lines.len() as u16 + 2;
+            boxed(frame, centered(area, 62, h), "Save an invalid recipe?", lines);
+        }
         Overlay::ConfirmStop(finding) => {
             let mut lines = vec![Line::styled("This plan is at STOP:", theme.severity(Severity::Stop))];
             lines.extend(wrap_words(finding, 58).into_iter().map(Line::raw));
