@@ -341,7 +341,15 @@ fn a_new_recipe_is_saved_as_revision_1_and_bad_names_are_refused() {
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert!(model.status.contains("path separator"), "{}", model.status);
     assert!(model.doc.is_none());
-    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    // The refused name keeps the dialog open: what is typed next goes to it, not to the
+    // library's one-key commands.
+    assert!(matches!(model.overlay, Overlay::Prompt { .. }), "{:?}", model.overlay);
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("already exists"), "{}", model.status);
+    assert!(model.doc.is_none() && matches!(model.overlay, Overlay::Prompt { .. }));
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
     text(&mut model, &mut ctx, "zero-gas");
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert_eq!(model.view, View::Editor);

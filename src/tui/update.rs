@@ -856,7 +856,7 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
                 model.status = format!("{from} copied to {text}");
                 refresh(model, ctx);
             }
-            Err(e) => model.status = e.to_string(),
+            Err(e) => reopen_prompt(model, Prompt::Duplicate(from), &text, &e.to_string()),
         },
         Prompt::Rename(from) => match ctx.library.rename(&from, &text) {
             Ok(()) => {
@@ -867,9 +867,18 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
                 model.status = format!("{from} renamed to {text}");
                 refresh(model, ctx);
             }
-            Err(e) => model.status = e.to_string(),
+            Err(e) => reopen_prompt(model, Prompt::Rename(from), &text, &e.to_string()),
         },
-        Prompt::NewRecipe => new_recipe(model, ctx, &text),
+        Prompt::NewRecipe => match crate::library::check_name(&text) {
+            Ok(()) if ctx.library.open(&text).is_ok() => reopen_prompt(
+                model,
+                Prompt::NewRecipe,
+                &text,
+                &format!("a recipe {text:?} already exists; choose another name"),
+            ),
+            Ok(()) => new_recipe(model, ctx, &text),
+            Err(e) => reopen_prompt(model, Prompt::NewRecipe, &text, &e.to_string()),
+        },
         Prompt::SaveAs => {
             if let Some(doc) = model.doc.as_mut() {
                 match ctx.library.save_as(&text, &doc.recipe, &now) {
@@ -884,7 +893,7 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
                         model.status = format!("saved as {text}, rev {revision}");
                         refresh(model, ctx);
                     }
-                    Err(e) => model.status = e.to_string(),
+                    Err(e) => reopen_prompt(model, Prompt::SaveAs, &text, &e.to_string()),
                 }
             }
         }
@@ -901,6 +910,13 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
             }
         }
     }
+}
+
+/// A refused name keeps its dialog open with the text typed and says why, so that the
+/// next keystrokes go to the dialog, not to the library's commands.
+fn reopen_prompt(model: &mut Model, purpose: Prompt, text: &str, why: &str) {
+    model.overlay = Overlay::Prompt { purpose, input: input(text) };
+    model.status = format!("{why} (Esc cancels)");
 }
 
 /// Save the open recipe, asking first when it does not validate (it would not plan).
