@@ -621,3 +621,22 @@ fn help_stays_visible_at_80_columns_whatever_the_message() {
     assert!(last.chars().count() <= 80);
     let _ = &mut ctx;
 }
+
+#[test]
+fn changing_fill_by_converts_the_value_with_the_plan() {
+    use fillwright::recipe::FillTarget;
+    use fillwright::tui::model::{fields, Field};
+    let (mut model, mut ctx, _dir) = setup("fill-by");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let before = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().totals.clone();
+    let doc = model.doc.as_mut().unwrap();
+    doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::FillKind).unwrap();
+    for _ in 0..3 {
+        keys(&mut model, &mut ctx, &[Key::Enter]);
+        let doc = model.doc.as_ref().unwrap();
+        let t = &doc.computed.plan.as_ref().unwrap_or_else(|e| panic!("{e}: {:?}", doc.recipe.fill)).totals;
+        // The same fill, whichever way it is stated (six significant digits).
+        assert!((t.amount_mol / before.amount_mol - 1.0).abs() < 1e-5, "{:?}", doc.recipe.fill);
+    }
+    assert!(matches!(model.doc.as_ref().unwrap().recipe.fill, FillTarget::Pressure(ref p) if p == "150bar"));
+}

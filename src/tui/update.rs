@@ -492,13 +492,30 @@ fn on_editor_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 model.overlay = Overlay::Prompt { purpose: Prompt::AddSource, input: input("") };
             }
             Field::FillKind => {
-                edit(doc, ctx, |r| {
-                    r.fill = match &r.fill {
-                        FillTarget::Pressure(v) => FillTarget::Mass(v.clone()),
-                        FillTarget::Mass(v) => FillTarget::Amount(v.clone()),
-                        FillTarget::Amount(v) => FillTarget::Pressure(v.clone()),
-                    }
-                });
+                // The same fill in the next kind of target, converted with the plan (the
+                // mass, the amount or the pressure it comes to); without a plan the value is
+                // left empty for the user to type.
+                let totals = doc.computed.plan.as_ref().ok().map(|p| p.totals.clone());
+                let trimmed = |v: f64, unit: &str| {
+                    let s = crate::units::Sig(v, 6).to_string();
+                    let s = if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s };
+                    format!("{s}{unit}")
+                };
+                let next = match (&doc.recipe.fill, &totals) {
+                    (FillTarget::Pressure(_), Some(t)) => FillTarget::Mass(trimmed(t.mass_g, "g")),
+                    (FillTarget::Mass(_), Some(t)) => FillTarget::Amount(trimmed(t.amount_mol, "mol")),
+                    (FillTarget::Amount(_), Some(t)) => FillTarget::Pressure(trimmed(t.pressure_pa / 1e5, "bar")),
+                    (FillTarget::Pressure(_), None) => FillTarget::Mass(String::new()),
+                    (FillTarget::Mass(_), None) => FillTarget::Amount(String::new()),
+                    (FillTarget::Amount(_), None) => FillTarget::Pressure(String::new()),
+                };
+                let converted = totals.is_some();
+                edit(doc, ctx, |r| r.fill = next);
+                model.status = if converted {
+                    "fill target converted with the plan: the same fill".into()
+                } else {
+                    "the recipe does not plan yet: type the fill value on the next line".into()
+                };
             }
             Field::Model => {
                 edit(doc, ctx, |r| {
