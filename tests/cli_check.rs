@@ -50,9 +50,10 @@ fn a_stop_finding_exits_3() {
     let text = String::from_utf8_lossy(&o.stdout);
     let first = text.lines().next().unwrap();
     assert!(first.contains("STOP"), "leads with what matters: {first}");
-    let second = text.lines().nth(1).unwrap();
-    assert!(second.contains("[stop") && second.contains("incompatibility"), "{second}");
-    assert!(text.trim_end().lines().last().unwrap().contains("oxygen"), "ends with the cautions");
+    // Then the conditions, then the worst finding.
+    let third = text.lines().nth(2).unwrap();
+    assert!(third.contains("[stop") && third.contains("incompatibility"), "{third}");
+    assert!(text.contains("Cautions:"), "ends with the cautions");
     // Too cold for the propane-butane blend: liquid at -20 °C.
     let o = run(&["check", "lpg-in-methane", "--min-temp", "-20C"]);
     assert_eq!(o.status.code(), Some(3), "{}", String::from_utf8_lossy(&o.stdout));
@@ -132,4 +133,19 @@ fn trace_toxics_read_as_not_toxic_and_reactive_traces_get_their_caution() {
     // A blend without reactive traces carries no such caution.
     let o = run(&["check", "flue-gas-span", "--format", "json"]);
     assert!(!json(&o).to_string().contains("passivated"));
+}
+
+#[test]
+fn text_outputs_fit_80_columns() {
+    let mut outputs = vec![run(&["gases"])];
+    for (name, _) in fillwright::recipe::demo::RECIPES {
+        outputs.push(run(&["check", name]));
+    }
+    outputs.push(run(&["plan", "--mix", "H2S=1ppm,N2=balance", "--volume", "10L", "--pressure", "150bar"]));
+    for o in outputs {
+        let text = String::from_utf8_lossy(&o.stdout).into_owned();
+        for line in text.lines() {
+            assert!(line.chars().count() <= 80, "{} columns: {line}", line.chars().count());
+        }
+    }
 }

@@ -11,6 +11,7 @@ use crate::checks::{self, Check, Conditions, Severity, CAUTIONS};
 use crate::config;
 use crate::plan::{self, PlanOptions};
 use crate::recipe::{Order, Recipe};
+use crate::ron_format::wrap_words;
 use crate::thermo::Model;
 use crate::units::{self, Shown};
 
@@ -221,13 +222,16 @@ fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
         };
         let worst = checks::worst(list);
         println!(
-            "{}: {}  (plan {}; storage down to {}, service up to {})",
+            "{}: {}",
             origin,
             match worst {
                 Severity::Stop => "STOP - do not fill as planned",
                 Severity::Caution => "CAUTION",
                 Severity::Ok => "OK",
-            },
+            }
+        );
+        println!(
+            "  plan {}; storage down to {}, service up to {}",
             model.key(),
             d.tf(conditions.min_temperature_k),
             d.tf(conditions.max_temperature_k)
@@ -235,16 +239,28 @@ fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
         // What matters first: stop, then caution, then ok.
         let mut sorted: Vec<&Check> = list.iter().collect();
         sorted.sort_by_key(|c| std::cmp::Reverse(c.severity));
+        // 80 columns: messages and details wrapped with a hanging indent (JSON has them whole).
         for c in sorted {
-            println!("  [{:<7}] {:<16} {}", c.severity.key(), c.id, c.message);
+            let lines = wrap_words(&c.message, 80 - 29);
+            for (k, l) in lines.iter().enumerate() {
+                if k == 0 {
+                    println!("  [{:<7}] {:<16} {l}", c.severity.key(), c.id);
+                } else {
+                    println!("{:29}{l}", "");
+                }
+            }
             for d in &c.details {
-                println!("              {d}");
+                for (k, l) in wrap_words(d, 80 - 16).iter().enumerate() {
+                    println!("{}{l}", if k == 0 { "              " } else { "                " });
+                }
             }
         }
         println!();
     }
     println!("Cautions:");
     for c in CAUTIONS {
-        println!("  - {c}");
+        for (k, l) in wrap_words(c, 80 - 4).iter().enumerate() {
+            println!("{}{l}", if k == 0 { "  - " } else { "    " });
+        }
     }
 }

@@ -74,34 +74,35 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
             }
         }
         Format::Text => {
+            // 80 columns: long names are cut (the JSON and CSV have them whole).
             println!(
-                "{:<9} {:<22} {:<11} {:>8} {:>8} {:>8} {:>7} {:>7}  models",
-                "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"
+                "{:<9} {:<14} {:<11} {:>7} {:>7} {:>6} {:>6} {:>6} {}",
+                "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K", "also"
             );
             for g in catalogue.gases() {
                 let r = &g.record;
-                let mut models = String::from("cubic");
-                if r.van_der_waals.is_some() {
-                    models.push_str(", vdw table");
-                }
-                if gerg::covers(&r.id) {
-                    models.push_str(", gerg");
-                }
+                let also = format!(
+                    "{}{}",
+                    if r.van_der_waals.is_some() { "v" } else { " " },
+                    if gerg::covers(&r.id) { " g" } else { "" }
+                );
                 println!(
-                    "{:<9} {:<22} {:<11} {:>8.3} {:>8.2} {:>8.3} {:>7.4} {:>7.2}  {}",
+                    "{:<9} {:<14} {:<11} {:>7.3} {:>7.2} {:>6.2} {:>6.3} {:>6.1} {}",
                     r.id,
-                    r.name,
+                    crate::ron_format::clip(&r.name, 14),
                     r.cas,
                     g.molar_mass_g_per_mol,
                     r.critical_temperature_k,
                     bar(r.critical_pressure_pa),
                     r.acentric_factor,
                     r.normal_boiling_point_k,
-                    models
+                    also.trim_end()
                 );
             }
             println!();
-            println!("Sources of the constants: `fillwright gases --format json` names each value's source.");
+            println!("{} gases. Every one works with the cubic models; also: v a tabulated", catalogue.gases().len());
+            println!("van der Waals a and b, g covered by GERG-2008. The source of every value:");
+            println!("`fillwright gases --format json`.");
         }
     }
     Ok(())

@@ -614,15 +614,18 @@ pub fn fill_sheet(
             Ok(inner) => {
                 for (i, s) in inner.steps.iter().enumerate() {
                     line(format!(
-                        "    {}  {:<14} add {} mol ({} g), stop at {} {}{}",
+                        "    {}  {:<14} add {} mol ({} g), stop at {} {}",
                         i + 1,
                         clip(&s.source, 14),
                         Sig(s.add_amount_mol, 4),
                         Sig(s.add_mass_g, 4),
                         d.pf(s.pressure_after_pa),
                         d.pu(),
-                        if s.flags.iter().any(|f| f.too_small()) { "  (needs a premix itself)" } else { "" }
                     ));
+                    // On its own line, to stay within 80 columns.
+                    if s.flags.iter().any(|f| f.too_small()) {
+                        line("       too small to dose directly: it needs a premix itself".into());
+                    }
                 }
                 for q in &inner.premixes {
                     line(format!("    second stage: {} ({})", q.name, q.spec));
