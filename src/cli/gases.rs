@@ -76,8 +76,8 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
         Format::Text => {
             // 80 columns: long names are cut (the JSON and CSV have them whole).
             println!(
-                "{:<9} {:<14} {:<11} {:>7} {:>7} {:>6} {:>6} {:>6} {}",
-                "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K", "also"
+                "{:<9} {:<14} {:<11} {:>7} {:>7} {:>6} {:>6} {:>6} also",
+                "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"
             );
             for g in catalogue.gases() {
                 let r = &g.record;
