@@ -116,3 +116,21 @@ fn a_deleted_recipe_comes_back_from_the_trash() {
     assert_eq!(o.status.code(), Some(1));
     assert!(err(&o).contains("trash"), "{}", err(&o));
 }
+
+#[test]
+fn completions_and_the_manual_come_from_the_command_definitions() {
+    let config = fresh("completions");
+    let o = run(&config, &["completions", "bash"]);
+    assert!(o.status.success());
+    let script = out(&o);
+    // Every subcommand is completed, including the ones added last.
+    for sub in ["plan", "check", "state", "undelete", "certify", "manual"] {
+        assert!(script.contains(sub), "{sub} missing from the bash completions");
+    }
+    assert!(out(&run(&config, &["completions", "zsh"])).contains("#compdef fillwright"));
+    let o = run(&config, &["manual"]);
+    let page = out(&o);
+    assert!(page.contains(".TH fillwright 1") && page.contains("undelete"), "{page}");
+    let o = run(&config, &["completions", "tcsh"]);
+    assert_eq!(o.status.code(), Some(2), "an unknown shell is wrong usage");
+}

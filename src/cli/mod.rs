@@ -10,7 +10,7 @@ mod state;
 
 use std::process::ExitCode;
 
-use clap::{Args, Parser, Subcommand, ValueEnum};
+use clap::{Args, CommandFactory, Parser, Subcommand, ValueEnum};
 
 use crate::config;
 use crate::gas::Catalogue;
@@ -75,6 +75,16 @@ enum Command {
     Certify(record::CertifyArgs),
     /// List the fill records of the library, or of one recipe.
     Records(record::RecordsArgs),
+    /// Print the shell completion script (bash, zsh, fish, elvish or powershell).
+    Completions(CompletionsArgs),
+    /// Print the manual page (roff, for man).
+    Manual,
+}
+
+#[derive(Debug, Args)]
+struct CompletionsArgs {
+    /// The shell to complete in.
+    shell: clap_complete::Shell,
 }
 
 #[derive(Debug, Args)]
@@ -193,6 +203,14 @@ pub fn main() -> ExitCode {
         Some(Command::Undelete(args)) => library::undelete(&args),
         Some(Command::Certify(args)) => record::certify(&args),
         Some(Command::Records(args)) => record::records(&args),
+        // Generated from the command definitions, so they never drift from them.
+        Some(Command::Completions(args)) => {
+            clap_complete::generate(args.shell, &mut Cli::command(), "fillwright", &mut std::io::stdout());
+            Ok(())
+        }
+        Some(Command::Manual) => clap_mangen::Man::new(Cli::command())
+            .render(&mut std::io::stdout())
+            .map_err(|e| Refused(format!("the manual page could not be written: {e}")).into()),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
