@@ -197,6 +197,16 @@ fn saves_are_committed_when_the_library_is_a_git_work_tree() {
     assert_eq!(result, Ok(()));
     let log = git(&dir, &["log", "-1", "--format=%s"]);
     assert_eq!(log.trim(), "detector-test-ch4-air rev 2: new LEL reference");
+    // The revision records who saved it: the git identity of the library.
+    let history = lib.history("detector-test-ch4-air").unwrap();
+    assert_eq!(history.last().unwrap().saved_by.as_deref(), Some("Bench One"));
+    // A user set for the session wins (the screen and commands leave it to git or $USER).
+    lib.user = Some("Bench Two".into());
+    let opened = lib.open("detector-test-ch4-air").unwrap();
+    let mut r = opened.recipe.clone();
+    r.notes = "second bench".into();
+    lib.save("detector-test-ch4-air", &r, Some(&opened), None, T2, OnConflict::Refuse).unwrap();
+    assert_eq!(lib.open("detector-test-ch4-air").unwrap().recipe.saved_by.as_deref(), Some("Bench Two"));
     assert!(git(&dir, &["status", "--porcelain", "--", "detector-test-ch4-air.ron"]).is_empty());
 }
 
@@ -238,6 +248,7 @@ fn recipe_strategy() -> impl Strategy<Value = Recipe> {
             format: 1,
             revision: stamp.0,
             saved: stamp.1,
+            saved_by: None,
             change_note: stamp.2,
             name: names.0,
             description: names.1,

@@ -121,7 +121,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         all.iter().filter(|(_, r)| r.as_ref().is_ok_and(|r| r.recipe == args.name)).collect();
     if args.format == Format::Json {
         print_json(&json!({"name": args.name, "revisions": revs.iter().map(|r| json!({
-            "revision": r.revision, "saved": r.saved, "note": r.note,
+            "revision": r.revision, "saved": r.saved, "saved_by": r.saved_by, "note": r.note,
         })).collect::<Vec<_>>(),
         "records": records.iter().filter_map(|(id, r)| r.as_ref().ok().map(|r| json!({
             "id": id, "recipe_revision": r.recipe_revision, "cylinder": r.cylinder,
@@ -129,7 +129,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         }))).collect::<Vec<_>>()}));
         return Ok(());
     }
-    println!("{:>4}  {:<21} note", "rev", "saved (UTC)");
+    println!("{:>4}  {:<21} {:<12} note", "rev", "saved (UTC)", "by");
     for r in &revs {
         let filled: Vec<&str> = records
             .iter()
@@ -137,9 +137,15 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
             .map(|(id, _)| id.as_str())
             .collect();
         let note = r.note.as_deref().unwrap_or("");
-        println!("{:>4}  {:<21} {}", r.revision, r.saved.as_deref().unwrap_or("-"), clip(note, 52));
+        println!(
+            "{:>4}  {:<21} {:<12} {}",
+            r.revision,
+            r.saved.as_deref().unwrap_or("-"),
+            clip(r.saved_by.as_deref().unwrap_or("-"), 12),
+            clip(note, 39)
+        );
         for id in filled {
-            println!("{:>4}  {:<21} filled: record {id}", "", "");
+            println!("{:>4}  {:<21} {:<12} filled: record {id}", "", "", "");
         }
     }
     if !records.is_empty() {

@@ -181,6 +181,8 @@ impl Summary {
 pub struct Revision {
     pub revision: u32,
     pub saved: Option<String>,
+    /// Who saved it, where recorded.
+    pub saved_by: Option<String>,
     pub note: Option<String>,
     pub path: PathBuf,
 }
@@ -212,18 +214,39 @@ pub struct Library {
     dir: PathBuf,
     /// Commit each save when the folder is a git work tree.
     pub git_commit: bool,
+    /// Who saves (recorded with each revision); None: the git identity's name in the
+    /// library folder, else the login name.
+    pub user: Option<String>,
+}
+
+/// The name to record with a save: `git config user.name` in the library folder where
+/// git answers, else `$USER` / `$LOGNAME`, else "unknown".
+pub fn who_saves(dir: &Path) -> String {
+    let git = std::process::Command::new("git")
+        .arg("-C")
+        .arg(dir)
+        .args(["config", "user.name"])
+        .output()
+        .ok()
+        .filter(|o| o.status.success())
+        .map(|o| String::from_utf8_lossy(&o.stdout).trim().to_string())
+        .filter(|n| !n.is_empty());
+    git.or_else(|| std::env::var("USER").ok())
+        .or_else(|| std::env::var("LOGNAME").ok())
+        .filter(|n| !n.trim().is_empty())
+        .unwrap_or_else(|| "unknown".into())
 }
 
 impl Library {
     /// The library at `dir` (created when missing).
     pub fn at(dir: &Path) -> Result<Library, LibraryError> {
         std::fs::create_dir_all(dir).map_err(io(dir))?;
-        Ok(Library { dir: dir.to_path_buf(), git_commit: false })
+        Ok(Library { dir: dir.to_path_buf(), git_commit: false, user: None })
     }
 
     /// The library at `dir` as it is, creating nothing (for reading).
     pub fn existing(dir: &Path) -> Library {
-        Library { dir: dir.to_path_buf(), git_commit: false }
+        Library { dir: dir.to_path_buf(), git_commit: false, user: None }
     }
 
     pub fn dir(&self) -> &Path {
@@ -480,6 +503,7 @@ impl Library {
         let new = Recipe {
             revision: base_revision + 1,
             saved: Some(now.to_string()),
+            saved_by: Some(self.user.clone().unwrap_or_else(|| who_saves(&self.dir))),
             change_note: note.map(str::to_string).or_else(|| Some(change_list.join("; "))),
             ..recipe.clone()
         };
@@ -494,7 +518,7 @@ impl Library {
 
     /// Save under a new name that must not exist yet.
     pub fn save_as(&self, name: &str, recipe: &Recipe, now: &str) -> Result<Saved, LibraryError> {
-        let fresh = Recipe { revision: 0, saved: None, change_note: None, ..recipe.clone() };
+        let fresh = Recipe { revision: 0, saved: None, saved_by: None, change_note: None, ..recipe.clone() };
         self.save(name, &fresh, None, None, now, OnConflict::Refuse)
     }
 
@@ -624,7 +648,13 @@ impl Library {
                     continue;
                 };
                 if let Ok(r) = Recipe::parse(&text, &path.display().to_string()) {
-                    out.push(Revision { revision: r.revision, saved: r.saved, note: r.change_note, path });
+                    out.push(Revision {
+                        revision: r.revision,
+                        saved: r.saved,
+                        saved_by: r.saved_by,
+                        note: r.change_note,
+                        path,
+                    });
                 }
             }
         }
@@ -634,6 +664,7 @@ impl Library {
         out.push(Revision {
             revision: current.recipe.revision,
             saved: current.recipe.saved.clone(),
+            saved_by: current.recipe.saved_by.clone(),
             note: current.recipe.change_note.clone(),
             path: current.path.clone(),
         });

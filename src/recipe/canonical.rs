@@ -34,6 +34,9 @@ pub fn to_text(r: &Recipe) -> String {
     if let Some(saved) = &r.saved {
         field("saved", q(saved));
     }
+    if let Some(who) = &r.saved_by {
+        field("saved_by", q(who));
+    }
     if let Some(note) = &r.change_note {
         field("change_note", q(note));
     }

@@ -170,7 +170,7 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
 
 /// The two recipes are the same order (revision stamps aside).
 pub fn same_content(a: &Recipe, b: &Recipe) -> bool {
-    let strip = |r: &Recipe| Recipe { revision: 0, saved: None, change_note: None, ..r.clone() };
+    let strip = |r: &Recipe| Recipe { revision: 0, saved: None, saved_by: None, change_note: None, ..r.clone() };
     strip(a) == strip(b)
 }
 

@@ -83,6 +83,9 @@ pub struct Recipe {
     /// When this revision was saved (UTC, RFC 3339).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub saved: Option<String>,
+    /// Who saved this revision (the git identity's name, else the login name).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub saved_by: Option<String>,
     /// The note given with this revision.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub change_note: Option<String>,
@@ -445,6 +448,7 @@ impl Recipe {
             format: FORMAT,
             revision: 0,
             saved: None,
+            saved_by: None,
             change_note: None,
             name: String::new(),
             description: String::new(),

@@ -861,16 +861,21 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             frame.set_cursor_position((inner.x + 8 + input.visual_cursor() as u16, inner.y));
         }
         Overlay::History { name, revisions, selected, changes, base } => {
+            // As wide as the screen allows; the note gets what the fixed columns leave.
+            let width = area.width.saturating_sub(4).clamp(40, 120);
+            let note_room = usize::from(width).saturating_sub(2 + 8 + 22 + 12 + 2);
             let mut lines: Vec<Line> = revisions
                 .iter()
                 .enumerate()
                 .map(|(k, r)| {
+                    let when = r.saved.as_deref().map_or("-".to_string(), |s| s.replace('T', " "));
                     let text = format!(
-                        "{} rev {:>3}  {:<20}  {}",
+                        "{} rev {:>3}  {:<20}  {:<10}  {}",
                         if k == *selected { "▶" } else { " " },
                         r.revision,
-                        r.saved.as_deref().unwrap_or("-"),
-                        clip(r.note.as_deref().unwrap_or(""), 30)
+                        clip(&when, 20),
+                        clip(r.saved_by.as_deref().unwrap_or("-"), 10),
+                        clip(r.note.as_deref().unwrap_or(""), note_room)
                     );
                     Line::styled(text, if k == *selected { theme.selected() } else { Style::default() })
                 })
@@ -885,7 +890,7 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             lines.extend(changes.iter().map(|c| Line::raw(format!("  {c}"))));
             lines.push(Line::styled("↑↓ choose · Space compare from here · r restore · Esc close", theme.dim()));
             let h = (lines.len() as u16 + 2).min(area.height);
-            boxed(frame, centered(area, 76, h), &format!("History of {name}"), lines);
+            boxed(frame, centered(area, width, h), &format!("History of {name}"), lines);
         }
         Overlay::Drafts { drafts, selected } => {
             let mut lines = vec![Line::raw("A session ended with unsaved edits; they were kept:")];
