@@ -640,3 +640,21 @@ fn changing_fill_by_converts_the_value_with_the_plan() {
     }
     assert!(matches!(model.doc.as_ref().unwrap().recipe.fill, FillTarget::Pressure(ref p) if p == "150bar"));
 }
+
+#[test]
+fn library_search_finds_order_serial_and_gases() {
+    let (mut model, mut ctx, _dir) = setup("search-more");
+    let names =
+        |m: &Model| -> Vec<String> { m.library.visible().iter().map(|&i| m.library.entries[i].name.clone()).collect() };
+    keys(&mut model, &mut ctx, &[Key::Char('/')]);
+    text(&mut model, &mut ctx, "brw-2026-0117");
+    assert_eq!(names(&model), ["flue-gas-span"], "by order reference");
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "FC-10-1555");
+    assert_eq!(names(&model), ["pipeline-ng-9"], "by cylinder serial");
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "n-c4h10 c3h8");
+    let found = names(&model);
+    assert!(found.contains(&"lpg-in-methane".to_string()) && found.contains(&"pipeline-ng-9".to_string()), "{found:?}");
+    assert!(!found.contains(&"flue-gas-span".to_string()), "every word must match: {found:?}");
+}

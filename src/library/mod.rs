@@ -159,6 +159,9 @@ pub struct Summary {
     /// Water capacity and working pressure, e.g. `10L, 200bar`.
     pub cylinder: String,
     pub revision: u32,
+    /// What a search looks in besides the name and title: the order reference, the
+    /// cylinder serial and the gases, lower case.
+    pub search_text: String,
 }
 
 impl Summary {
@@ -172,6 +175,12 @@ impl Summary {
             },
             cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
             revision: r.revision,
+            search_text: [r.order.as_str(), r.cylinder.serial.as_deref().unwrap_or("")]
+                .into_iter()
+                .chain(r.components.iter().map(|c| c.gas.as_str()))
+                .collect::<Vec<_>>()
+                .join(" ")
+                .to_lowercase(),
         }
     }
 }

@@ -307,15 +307,21 @@ pub struct LibraryState {
 }
 
 impl LibraryState {
-    /// Indices into `entries` that match the search.
+    /// Indices into `entries` that match the search: every word typed is found in the
+    /// name, the title, the order reference, the cylinder serial or the gases.
     pub fn visible(&self) -> Vec<usize> {
         let text = self.filter.as_ref().map(|i| i.value().to_lowercase()).unwrap_or_default();
         (0..self.entries.len())
             .filter(|&i| {
                 let e = &self.entries[i];
-                text.is_empty()
-                    || e.name.to_lowercase().contains(&text)
-                    || e.summary.as_ref().is_ok_and(|s| s.title.to_lowercase().contains(&text))
+                let mut haystack = e.name.to_lowercase();
+                if let Ok(s) = &e.summary {
+                    haystack.push(' ');
+                    haystack.push_str(&s.title.to_lowercase());
+                    haystack.push(' ');
+                    haystack.push_str(&s.search_text);
+                }
+                text.split_whitespace().all(|word| haystack.contains(word))
             })
             .collect()
     }
