@@ -658,3 +658,18 @@ fn library_search_finds_order_serial_and_gases() {
     assert!(found.contains(&"lpg-in-methane".to_string()) && found.contains(&"pipeline-ng-9".to_string()), "{found:?}");
     assert!(!found.contains(&"flue-gas-span".to_string()), "every word must match: {found:?}");
 }
+
+#[test]
+fn the_fill_sheet_is_written_for_the_bench_folder() {
+    let (mut model, mut ctx, dir) = setup("print");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('p')]);
+    let path = dir.join("library/sheets/flue-gas-span-rev1.txt");
+    assert!(model.status.contains("sheets"), "{}", model.status);
+    let text = std::fs::read_to_string(&path).unwrap();
+    assert!(text.starts_with("FILL SHEET  Flue-gas span"), "{text}");
+    assert!(text.contains("STEPS") && text.contains("CAUTION"), "{text}");
+    // The sheets folder is not mistaken for recipes.
+    update::refresh(&mut model, &ctx);
+    assert!(model.library.entries.iter().all(|e| e.summary.is_ok()));
+}

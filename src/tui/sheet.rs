@@ -68,6 +68,36 @@ pub fn on_key(model: &mut Model, key: Key) {
     }
 }
 
+/// Write the fill sheet as text (what `fillwright plan` prints, with the stop banner when
+/// the plan is at stop) to `sheets/NAME-revN.txt` in the library, for the bench folder.
+pub fn export(model: &mut Model, ctx: &Context) {
+    let Some(doc) = model.doc.as_ref() else { return };
+    let (Ok(plan), Ok(order)) = (&doc.computed.plan, &doc.computed.order) else {
+        model.status = "no fill sheet to write: the recipe does not plan yet".into();
+        return;
+    };
+    let res = crate::plan::Resolutions {
+        gauge_pa: ctx.settings.gauge_resolution_pa,
+        scale_g: ctx.settings.scale_resolution_g,
+    };
+    let mut text = String::new();
+    if let Some(stop) = first_stop(doc) {
+        text.push_str(&crate::cli::plan::stop_banner(&stop));
+    }
+    if doc.dirty() {
+        text.push_str("UNSAVED EDITS: this sheet is of the recipe as edited, not of a saved revision.\n\n");
+    }
+    text.push_str(&crate::cli::plan::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));
+    let written = ctx.library.own_dir(&["sheets"]).map_err(|e| e.to_string()).and_then(|dir| {
+        let path = dir.join(format!("{}-rev{}.txt", doc.name, doc.recipe.revision));
+        crate::library::atomic::write(&path, text.as_bytes()).map(|()| path).map_err(|e| e.to_string())
+    });
+    model.status = match written {
+        Ok(path) => format!("fill sheet written to {}", path.display()),
+        Err(e) => format!("the fill sheet was not written: {e}"),
+    };
+}
+
 /// The first finding at stop of the recipe's screening (the rating first), if any.
 pub fn first_stop(doc: &Document) -> Option<String> {
     let checks = doc.computed.checks.as_ref()?;

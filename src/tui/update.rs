@@ -293,6 +293,7 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
         _ => match model.view {
             View::Library => on_library_key(model, key, ctx),
             View::Editor => on_editor_key(model, key, ctx),
+            View::Sheet if key == Key::Char('p') => super::sheet::export(model, ctx),
             View::Sheet => super::sheet::on_key(model, key),
             View::Checks => match key {
                 Key::Up | Key::Char('k') => model.check_selected = model.check_selected.saturating_sub(1),

@@ -114,7 +114,9 @@ fn keys_hint(model: &Model) -> &'static str {
         (Overlay::None, View::Editor) => {
             "? help · Enter edit · s save · q quit · a add gas · b balance · g change gas · x remove · u undo · Tab view"
         }
-        (Overlay::None, View::Sheet) => "? help · Space done · r reading · t temp · w weigh · l source · ↑↓ step",
+        (Overlay::None, View::Sheet) => {
+            "? help · Space done · r reading · t temp · w weigh · l source · p print · ↑↓ step"
+        }
         (Overlay::None, View::Checks) => "? help · ↑↓ choose a check · Tab next view · Esc library",
         (Overlay::None, _) => "? help · Tab next view · s save · Esc library · q quit",
         _ => "Esc closes",
@@ -741,6 +743,7 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "w           type the scale reading: before the fill, then",
             "            after each step (starts and writes the fill record)",
             "l           the source of the next addition: @NAME or analysis",
+            "p           write the sheet as text to sheets/ in the library",
             "every entry is saved in records/ at once; reopening the",
             "recipe continues the fill; fillwright certify ID prints",
             "the certificate",
