@@ -148,7 +148,16 @@ pub fn parse_share(text: &str) -> Result<Share, String> {
     } else {
         (t, FractionUnit::Fraction)
     };
-    let value: f64 = number.trim().parse().map_err(|_| "is not a number".to_string())?;
+    let value: f64 = number.trim().parse().map_err(|_| {
+        // A number followed by something else: the unit is the problem, not the number.
+        let lead: String =
+            t.chars().take_while(|c| c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | 'e' | 'E')).collect();
+        if !lead.is_empty() && lead.parse::<f64>().is_ok() {
+            format!("has the unit {:?}, which is not one of ppb, ppm or %", t[lead.len()..].trim())
+        } else {
+            "is not a number".to_string()
+        }
+    })?;
     if !value.is_finite() {
         return Err("is not a finite number".into());
     }
@@ -245,6 +254,13 @@ impl Composition {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_wrong_unit_is_named_as_the_problem() {
+        let e = parse_share("2.5 % mol").unwrap_err();
+        assert!(e.contains("unit \"% mol\""), "{e}");
+        assert_eq!(parse_share("abc").unwrap_err(), "is not a number");
+    }
 
     fn cat() -> Catalogue {
         Catalogue::built_in()

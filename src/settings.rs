@@ -129,11 +129,8 @@ impl Settings {
             units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA).map_err(|e| err("ambient", e.to_string()))?;
         let gauge_resolution_pa =
             units::parse_pressure(&self.gauge_resolution, 0.0).map_err(|e| err("gauge_resolution", e.to_string()))?;
-        let scale_resolution_g = match units::parse_amount(&self.scale_resolution) {
-            Ok(units::AmountInput::Grams(g)) => g,
-            Ok(_) => return Err(err("scale_resolution", "must be a mass such as 0.1g".into())),
-            Err(e) => return Err(err("scale_resolution", e.to_string())),
-        };
+        let scale_resolution_g =
+            units::parse_mass(&self.scale_resolution).map_err(|e| err("scale_resolution", e.to_string()))?;
         let min_storage_temperature_k = units::parse_temperature(&self.min_storage_temperature)
             .map_err(|e| err("min_storage_temperature", e.to_string()))?;
         let max_service_temperature_k = units::parse_temperature(&self.max_service_temperature)

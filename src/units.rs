@@ -43,6 +43,17 @@ pub const PRESSURE_UNITS: &str =
 pub const TEMPERATURE_UNITS: &str = "a number with C, K or F, e.g. 15C, 288.15K, 59F";
 pub const VOLUME_UNITS: &str = "a number with L, mL, m3 or dm3, e.g. 10L, 0.05m3";
 pub const AMOUNT_UNITS: &str = "a number with mol, mmol or kmol (amount) or g, kg (mass), e.g. 12mol, 500g";
+/// Units accepted where only a mass makes sense (a tare, a scale reading or resolution).
+pub const MASS_UNITS: &str = "a number with g, kg or mg, e.g. 13412.5g or 13.4kg";
+
+/// Parse a mass; returns g. An amount in mol is refused: a scale reads mass.
+pub fn parse_mass(text: &str) -> Result<f64, QuantityError> {
+    match parse_amount(text) {
+        Ok(AmountInput::Grams(g)) => Ok(g),
+        Ok(AmountInput::Moles(_)) => Err(error("mass", text, "is an amount, not a mass", MASS_UNITS)),
+        Err(e) => Err(QuantityError { what: "mass", accepted: MASS_UNITS, ..e }),
+    }
+}
 
 /// Split "150 bar" / "150bar" / "-5.5e1C" into the number and the unit text.
 fn split_number(text: &str) -> Option<(f64, &str)> {
@@ -410,6 +421,16 @@ mod tests {
         assert_eq!(parse_amount("1mol").unwrap(), AmountInput::Moles(1.0));
         assert_eq!(parse_amount("32g").unwrap(), AmountInput::Grams(32.0));
         assert_eq!(parse_amount("0.5kg").unwrap(), AmountInput::Grams(500.0));
+    }
+
+    #[test]
+    fn masses_offer_mass_units_only() {
+        assert_eq!(parse_mass("13.4kg").unwrap(), 13400.0);
+        let e = parse_mass("12mol").unwrap_err();
+        assert!(e.to_string().contains("not a mass") && !e.accepted.contains("mol"), "{e}");
+        let e = parse_mass("12 stone").unwrap_err();
+        assert_eq!(e.accepted, MASS_UNITS);
+        assert!(!e.to_string().contains("mol"), "{e}");
     }
 
     #[test]

@@ -673,3 +673,14 @@ fn the_fill_sheet_is_written_for_the_bench_folder() {
     update::refresh(&mut model, &ctx);
     assert!(model.library.entries.iter().all(|e| e.summary.is_ok()));
 }
+
+#[test]
+fn enter_in_the_gas_picker_with_no_match_says_so_and_stays() {
+    let (mut model, mut ctx, _dir) = setup("picker-none");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    text(&mut model, &mut ctx, "unobtainium");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(matches!(model.overlay, Overlay::Picker { .. }));
+    assert!(model.status.contains("no gas matches"), "{}", model.status);
+}

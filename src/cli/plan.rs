@@ -73,10 +73,9 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         Some(text) => units::parse_pressure(text, 0.0).map_err(|e| Refused(format!("--gauge-resolution: {e}")))?,
         None => settings.gauge_resolution_pa,
     };
-    let scale_g = match args.scale_resolution.as_deref().map(units::parse_amount) {
+    let scale_g = match args.scale_resolution.as_deref().map(units::parse_mass) {
         None => settings.scale_resolution_g,
-        Some(Ok(units::AmountInput::Grams(g))) => g,
-        Some(Ok(_)) => return Err(Refused("--scale-resolution must be a mass such as 0.1g".into()).into()),
+        Some(Ok(g)) => g,
         Some(Err(e)) => return Err(Refused(format!("--scale-resolution: {e}")).into()),
     };
     let options = PlanOptions {

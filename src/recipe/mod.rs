@@ -293,11 +293,8 @@ impl Recipe {
         }
         let tare_g = match &c.tare {
             None => None,
-            Some(t) => match units::parse_amount(t) {
-                Ok(AmountInput::Grams(g)) => Some(g),
-                Ok(AmountInput::Moles(_)) => {
-                    return Err(err(&quoted(t), format!("tare {t:?} must be a mass (g or kg), not an amount")))
-                }
+            Some(t) => match units::parse_mass(t) {
+                Ok(g) => Some(g),
                 Err(e) => return Err(err(&quoted(t), format!("tare: {e}"))),
             },
         };

@@ -356,11 +356,8 @@ fn addition_for(record: &mut Record, k: usize, source: &str) -> Option<usize> {
 pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
     let Some(doc) = model.doc.as_mut() else { return };
     let steps = doc.bench.done.len();
-    let grams = match units::parse_amount(text) {
-        Ok(AmountInput::Grams(g)) => g,
-        Ok(AmountInput::Moles(_)) => {
-            return keep_prompt(model, Prompt::Weighing, text, "a scale reading is a mass (g or kg)")
-        }
+    let grams = match units::parse_mass(text) {
+        Ok(g) => g,
         Err(e) => return keep_prompt(model, Prompt::Weighing, text, &e.to_string()),
     };
     let previous = doc.bench.record.as_ref().and_then(|o| o.record.weighings.last().cloned());

@@ -728,6 +728,14 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                     selected = (selected + 1).min(hits.len().saturating_sub(1));
                     model.overlay = Overlay::Picker { input, selected, purpose };
                 }
+                Key::Enter if hits.is_empty() => {
+                    // Nothing matches: say so and keep the picker open.
+                    model.status = format!(
+                        "no gas matches {:?}: type a formula (CO2), a name (propane) or a CAS number (Esc cancels)",
+                        input.value()
+                    );
+                    model.overlay = Overlay::Picker { input, selected, purpose };
+                }
                 Key::Enter => {
                     if let (Some(&g), Some(doc)) = (hits.get(selected), model.doc.as_mut()) {
                         let id = ctx.catalogue.gas(g).id().to_string();
