@@ -67,3 +67,9 @@ fn fill_sheet_and_screening_examples_are_current() {
         );
     }
 }
+
+#[test]
+fn the_readme_gives_the_catalogue_size_that_gases_lists() {
+    let n = fillwright::gas::Catalogue::built_in().gases().len();
+    assert!(readme().contains(&format!("The catalogue: {n} gases")), "README.md should say {n} gases");
+}

@@ -684,3 +684,18 @@ fn enter_in_the_gas_picker_with_no_match_says_so_and_stays() {
     assert!(matches!(model.overlay, Overlay::Picker { .. }));
     assert!(model.status.contains("no gas matches"), "{}", model.status);
 }
+
+#[test]
+fn the_title_shows_the_revision_on_disk_after_undoing_past_a_save() {
+    let (mut model, mut ctx, _dir) = setup("undo-title");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "14%");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('s')]);
+    assert_eq!(model.status, "saved rev 2");
+    keys(&mut model, &mut ctx, &[Key::Char('u')]);
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("flue-gas-span rev 2"), "{screen}");
+    assert!(!screen.contains("rev 1"), "{screen}");
+}

@@ -243,7 +243,12 @@ fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let [left, right] = Layout::horizontal([Constraint::Min(30), Constraint::Length(right_w)]).areas(area);
     let state = if doc.dirty() { ", unsaved changes" } else { "" };
     let block =
-        Block::default().borders(Borders::ALL).title(format!(" {} rev {}{state} ", doc.name, doc.recipe.revision));
+        // The revision on disk: undoing edits past a save does not take the file back.
+        Block::default().borders(Borders::ALL).title(format!(
+            " {} rev {}{state} ",
+            doc.name,
+            doc.opened.as_ref().map_or(doc.recipe.revision, |o| o.recipe.revision)
+        ));
     let inner = block.inner(left);
     frame.render_widget(block, left);
     let list = fields(&doc.recipe);
@@ -323,7 +328,10 @@ fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area
             lines.push(Line::styled(format!("readings for {}", d.tf(p.fill_temperature_k)), theme.dim()));
             if let Some(checks) = &doc.computed.checks {
                 lines.push(Line::raw(String::new()));
-                for c in checks {
+                // Worst first, as on the Screening view.
+                let mut sorted: Vec<&crate::checks::Check> = checks.iter().collect();
+                sorted.sort_by_key(|c| std::cmp::Reverse(c.severity));
+                for c in sorted {
                     lines.push(Line::from(vec![
                         Span::styled(format!("{:<8}", c.severity.key()), theme.severity(c.severity)),
                         Span::raw(clip(c.id, w.saturating_sub(8))),
