@@ -24,6 +24,7 @@ fn setup(tag: &str) -> (Model, Context, PathBuf) {
         sources: Some(dir.join("sources")),
         now: stamp,
         session: "test".into(),
+        settings_file: Some(dir.join("settings.ron")),
     };
     let mut model = Model::new("test library".into(), false);
     update::start(&mut model, &mut ctx);
@@ -525,6 +526,7 @@ fn session_at(dir: &std::path::Path, drafts: &std::path::Path, session: &str) ->
         sources: None,
         now: stamp,
         session: session.into(),
+        settings_file: None,
     };
     let mut model = Model::new("test library".into(), false);
     update::start(&mut model, &mut ctx);
@@ -698,4 +700,40 @@ fn the_title_shows_the_revision_on_disk_after_undoing_past_a_save() {
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
     assert!(screen.contains("flue-gas-span rev 2"), "{screen}");
     assert!(!screen.contains("rev 1"), "{screen}");
+}
+
+#[test]
+fn the_settings_editor_writes_settings_ron_and_the_screen_follows() {
+    use fillwright::settings::Settings;
+    let (mut model, mut ctx, dir) = setup("settings-editor");
+    let file = dir.join("settings.ron");
+    keys(&mut model, &mut ctx, &[Key::Char('o')]);
+    assert!(matches!(model.overlay, Overlay::Settings { .. }));
+    // The pressure unit cycles bar -> psi, written at once, and the screen shows psi.
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let written = Settings::parse(&std::fs::read_to_string(&file).unwrap(), "settings.ron").unwrap();
+    assert_eq!(written.pressure_unit, fillwright::units::PressureUnit::Psi);
+    assert_eq!(model.shown.pressure, fillwright::units::PressureUnit::Psi);
+    // A typed value: the condensation margin (the 9th field).
+    for _ in 0..8 {
+        keys(&mut model, &mut ctx, &[Key::Down]);
+    }
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "8K");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(ctx.settings.condensation_margin_k, 8.0, "{}", model.status);
+    // A refused value keeps the prompt and writes nothing: storage above service.
+    let before = std::fs::read_to_string(&file).unwrap();
+    for _ in 0..2 {
+        keys(&mut model, &mut ctx, &[Key::Up]);
+    }
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "80C");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(matches!(model.overlay, Overlay::Prompt { .. }), "{:?}", model.overlay);
+    assert!(model.status.contains("not below"), "{}", model.status);
+    assert_eq!(std::fs::read_to_string(&file).unwrap(), before);
+    // The file still reads with every field the editor wrote.
+    let r = Settings::parse(&before, "settings.ron").unwrap().resolve(&before, "settings.ron").unwrap();
+    assert_eq!(r.condensation_margin_k, 8.0);
 }

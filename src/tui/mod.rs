@@ -9,6 +9,7 @@ pub mod drafts;
 pub mod model;
 pub mod picker;
 pub mod scenes;
+pub mod settings_editor;
 pub mod sheet;
 pub mod svg;
 pub mod update;
@@ -104,7 +105,9 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let color = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
     let sources = config::config_dir().map(|d| d.join("sources"));
     let session = std::process::id().to_string();
-    let mut ctx = Context { library, catalogue, settings, drafts, sources, now: clock::now_utc, session };
+    let settings_file = config::config_dir().map(|d| d.join("settings.ron"));
+    let mut ctx =
+        Context { library, catalogue, settings, drafts, sources, now: clock::now_utc, session, settings_file };
     let mut model = Model::new(dir.display().to_string(), color);
     model.shown = ctx.settings.shown;
     update::start_with(&mut model, &mut ctx, seed);

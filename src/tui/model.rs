@@ -48,6 +48,11 @@ pub enum Overlay {
     Conflict,
     /// The plan is at stop: tick its steps anyway? (the finding)
     ConfirmStop(String),
+    /// The settings editor: the selected field and the settings as written.
+    Settings {
+        selected: usize,
+        values: Box<crate::settings::Settings>,
+    },
     /// The recipe does not validate: save it anyway? (what is wrong, the revision note)
     ConfirmSaveInvalid {
         why: String,
@@ -95,6 +100,8 @@ pub enum Prompt {
     Weighing,
     /// The source (analysis or @name) of the step in progress.
     StepSource,
+    /// A value of the settings editor (the field's index).
+    Setting(usize),
 }
 
 /// What a gas pick does.

@@ -28,6 +28,7 @@ pub fn demo_context(dir: &Path) -> Context {
         sources: None,
         now: stamp,
         session: "demo".into(),
+        settings_file: None,
     }
 }
 

@@ -53,6 +53,8 @@ pub struct Context {
     pub now: fn() -> String,
     /// This session, to keep its drafts apart from another's (the process id).
     pub session: String,
+    /// The settings file the settings editor writes (None: no config folder).
+    pub settings_file: Option<PathBuf>,
 }
 
 impl Context {
@@ -135,6 +137,11 @@ pub fn refresh(model: &mut Model, ctx: &Context) {
 
 pub(super) fn input(text: &str) -> Input {
     Input::new(text.to_string())
+}
+
+/// Recompute an open recipe after the settings changed.
+pub(crate) fn recompute_doc(doc: &mut Document, ctx: &Context) {
+    recompute(doc, ctx);
 }
 
 fn recompute(doc: &mut Document, ctx: &Context) {
@@ -345,6 +352,10 @@ fn on_library_key(model: &mut Model, key: Key, ctx: &mut Context) {
         Key::End => model.library.selected = n.saturating_sub(1),
         Key::Enter => open_selected(model, ctx),
         Key::Char('/') => model.library.filter = Some(input("")),
+        Key::Char('o') => {
+            model.overlay = Overlay::Settings { selected: 0, values: Box::new(super::settings_editor::current(ctx)) };
+            model.status = "settings: Enter changes the chosen one; they are written to settings.ron at once".into();
+        }
         Key::Char('n') => model.overlay = Overlay::Prompt { purpose: Prompt::NewRecipe, input: input("") },
         Key::Char('c') => {
             if let Some(name) = selected_name(model) {
@@ -678,6 +689,18 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 model.status = "nothing deleted".into();
             }
         }
+        Overlay::Settings { mut selected, values } => match key {
+            Key::Up | Key::Char('k') => {
+                selected = selected.saturating_sub(1);
+                model.overlay = Overlay::Settings { selected, values };
+            }
+            Key::Down | Key::Char('j') => {
+                selected = (selected + 1).min(super::settings_editor::FIELDS.len() - 1);
+                model.overlay = Overlay::Settings { selected, values };
+            }
+            Key::Enter | Key::Char(' ') => super::settings_editor::on_enter(model, ctx, selected),
+            _ => model.status = "settings closed".into(),
+        },
         Overlay::ConfirmSaveInvalid { note, .. } => {
             if key == Key::Char('y') {
                 save(model, ctx, note, false);
@@ -924,6 +947,7 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
             }
         }
         Prompt::SaveNote => save_checked(model, ctx, Some(text)),
+        Prompt::Setting(field) => super::settings_editor::on_value(model, ctx, field, &text),
         Prompt::MeasuredTemperature => super::sheet::on_temperature(model, ctx, &text),
         Prompt::ActualReading(step) => super::sheet::on_pressure(model, ctx, step, &text),
         Prompt::Weighing => super::sheet::on_weighing(model, ctx, &text),

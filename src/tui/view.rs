@@ -106,7 +106,7 @@ fn keys_hint(model: &Model) -> &'static str {
     match (&model.overlay, model.view) {
         (Overlay::None, View::Library) if model.library.filter.is_some() => "? help · Enter open · Esc clear · type to search",
         (Overlay::None, View::Library) => {
-            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete"
+            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · o settings"
         }
         (Overlay::None, View::Editor) if model.doc.as_ref().is_some_and(|d| d.editing.is_some()) => {
             "Enter keep · Esc cancel · type"
@@ -725,13 +725,15 @@ fn help_lines(view: View) -> Vec<&'static str> {
         View::Library => vec![
             "↑↓ or j k   choose a recipe",
             "Enter       open it in the editor",
-            "/           search as you type (Esc clears)",
+            "/           search names, orders, serials, gases (Esc clears)",
             "n           new recipe",
             "c           copy the recipe under a new name",
             "r           rename it",
             "d or Del    delete it (kept in the library's .trash)",
             "h           history: revisions and what changed; r restores",
             "g           read the library folder again",
+            "o           settings: units, default model, resolutions,",
+            "            storage temperatures, margin (settings.ron)",
         ],
         View::Editor => vec![
             "↑↓ or j k   move between lines",
@@ -795,6 +797,25 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             ];
             boxed(frame, centered(area, 56, 4), "Delete", lines);
         }
+        Overlay::Settings { selected, values } => {
+            let s = values.as_ref();
+            let mut lines: Vec<Line> = super::settings_editor::FIELDS
+                .iter()
+                .enumerate()
+                .map(|(k, f)| {
+                    let text = format!(
+                        "{} {:<28} {}",
+                        if k == *selected { "▶" } else { " " },
+                        super::settings_editor::label(f),
+                        super::settings_editor::value(s, f)
+                    );
+                    Line::styled(text, if k == *selected { theme.selected() } else { Style::default() })
+                })
+                .collect();
+            lines.push(Line::styled("↑↓ choose · Enter change · Esc close", theme.dim()));
+            let h = lines.len() as u16 + 2;
+            boxed(frame, centered(area, 60, h), "Settings (settings.ron)", lines);
+        }
         Overlay::ConfirmSaveInvalid { why, .. } => {
             let mut lines = vec![Line::styled("This recipe does not validate:", theme.severity(Severity::Stop))];
             lines.extend(wrap_words(why, 58).into_iter().take(4).map(Line::raw));
@@ -834,6 +855,10 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Prompt::AddSource => "Source: a gas id, or NAME = SPEC for a premix".into(),
                 Prompt::Weighing => "Scale reading (e.g. 13504.85g) for the fill record".into(),
                 Prompt::StepSource => "Source: @NAME, or an analysis (N2=balance,O2=<2ppm)".into(),
+                Prompt::Setting(k) => {
+                    let field = super::settings_editor::FIELDS[(*k).min(super::settings_editor::FIELDS.len() - 1)];
+                    format!("Setting: {}", super::settings_editor::label(field))
+                }
             };
             let r = centered(area, 60, 4);
             let inner = boxed(
