@@ -737,3 +737,30 @@ fn the_settings_editor_writes_settings_ron_and_the_screen_follows() {
     let r = Settings::parse(&before, "settings.ron").unwrap().resolve(&before, "settings.ron").unwrap();
     assert_eq!(r.condensation_margin_k, 8.0);
 }
+
+#[test]
+fn the_screening_cursor_stays_on_its_check_when_the_list_resorts() {
+    use fillwright::tui::model::{fields, Field};
+    let (mut model, mut ctx, _dir) = setup("screen-cursor");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('5'), Key::Down, Key::Down, Key::Down]);
+    let chosen = |m: &Model| {
+        let checks = m.doc.as_ref().unwrap().computed.checks.as_ref().unwrap();
+        checks[m.check_selected].id
+    };
+    let before = chosen(&model);
+    // Fill above the working pressure: the rating moves to the top of the list.
+    keys(&mut model, &mut ctx, &[Key::Char('2')]);
+    let doc = model.doc.as_mut().unwrap();
+    doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::FillValue).unwrap();
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "230bar");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('5')]);
+    let checks = model.doc.as_ref().unwrap().computed.checks.clone().unwrap();
+    let top = fillwright::tui::model::checks_worst_first(&checks)[0];
+    assert_eq!(checks[top].id, "pressure-rating", "the list re-sorted");
+    assert_eq!(chosen(&model), before, "the cursor stayed on its check");
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    let marked = screen.lines().find(|l| l.contains('▶')).unwrap_or_default().to_string();
+    assert!(marked.contains(before), "{marked}");
+}

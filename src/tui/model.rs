@@ -291,6 +291,13 @@ pub struct Document {
     pub recovered_draft: Option<std::path::PathBuf>,
 }
 
+/// The checks' indices worst first (stable within a severity): the Screening view's order.
+pub fn checks_worst_first(checks: &[Check]) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..checks.len()).collect();
+    order.sort_by_key(|&i| std::cmp::Reverse(checks[i].severity));
+    order
+}
+
 impl Document {
     pub fn dirty(&self) -> bool {
         !crate::recipe::changes::same_content(&self.recipe, &self.saved)
@@ -342,6 +349,8 @@ pub struct Model {
     pub library: LibraryState,
     pub doc: Option<Document>,
     /// Selected line of the screening view.
+    /// The chosen check of the Screening view, as its index in the screening's own order
+    /// (so that the cursor stays on the same check when the list re-sorts).
     pub check_selected: usize,
     /// What just happened, for the status line.
     pub status: String,

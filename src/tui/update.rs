@@ -302,11 +302,24 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
             View::Editor => on_editor_key(model, key, ctx),
             View::Sheet if key == Key::Char('p') => super::sheet::export(model, ctx),
             View::Sheet => super::sheet::on_key(model, key),
-            View::Checks => match key {
-                Key::Up | Key::Char('k') => model.check_selected = model.check_selected.saturating_sub(1),
-                Key::Down | Key::Char('j') => model.check_selected = (model.check_selected + 1).min(5),
-                _ => {}
-            },
+            View::Checks => {
+                // Move in the order shown (worst first), remember the check itself.
+                let order = model
+                    .doc
+                    .as_ref()
+                    .and_then(|d| d.computed.checks.as_deref())
+                    .map(super::model::checks_worst_first)
+                    .unwrap_or_default();
+                let at = order.iter().position(|&i| i == model.check_selected).unwrap_or(0);
+                let to = match key {
+                    Key::Up | Key::Char('k') => at.saturating_sub(1),
+                    Key::Down | Key::Char('j') => (at + 1).min(order.len().saturating_sub(1)),
+                    _ => at,
+                };
+                if let Some(&i) = order.get(to) {
+                    model.check_selected = i;
+                }
+            }
             View::Models => {}
         },
     }

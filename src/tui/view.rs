@@ -662,10 +662,10 @@ fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         return;
     };
     let mut lines = Vec::new();
-    let mut sorted: Vec<_> = checks.iter().collect();
-    sorted.sort_by_key(|c| std::cmp::Reverse(c.severity));
+    let order = super::model::checks_worst_first(checks);
+    let sorted: Vec<_> = order.iter().map(|&i| &checks[i]).collect();
     let w = inner.width as usize;
-    let chosen = model.check_selected.min(sorted.len().saturating_sub(1));
+    let chosen = order.iter().position(|&i| i == model.check_selected).unwrap_or(0);
     for (k, c) in sorted.iter().enumerate() {
         let marker = if k == chosen { "▶" } else { " " };
         lines.push(Line::from(vec![
