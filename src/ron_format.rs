@@ -58,6 +58,22 @@ pub fn wrap_words(text: &str, width: usize) -> Vec<String> {
     lines
 }
 
+/// `text` cut to `width` characters in the middle, keeping its beginning and its end: names
+/// that differ only at the end (`…-winter`, `…-summer`) stay apart.
+pub fn clip_middle(text: &str, width: usize) -> String {
+    let n = text.chars().count();
+    if n <= width {
+        return text.to_string();
+    }
+    if width < 3 {
+        return clip(text, width);
+    }
+    let tail = (width - 1) / 2;
+    let head = width - 1 - tail;
+    let chars: Vec<char> = text.chars().collect();
+    chars[..head].iter().chain(std::iter::once(&'…')).chain(&chars[n - tail..]).collect()
+}
+
 /// A message with every overlong word in it (a pasted value, a runaway number) shortened:
 /// its beginning and end stay, the middle is replaced by how many characters were left
 /// out. Messages then stay readable when a file or an option holds a huge value.
@@ -104,5 +120,10 @@ mod tests {
         assert_eq!(clip("abc", 0), "");
         assert_eq!(wrap_words("settled pressure 230 bar", 12), ["settled", "pressure 230", "bar"]);
         assert_eq!(wrap_words("", 12), Vec::<String>::new());
+        let a = clip_middle("lpg-in-methane-2026-winter-batch", 21);
+        let b = clip_middle("lpg-in-methane-2026-summer-batch", 21);
+        assert_eq!(a.chars().count(), 21);
+        assert_ne!(a, b, "names that differ near the end stay apart");
+        assert_eq!(clip_middle("short", 21), "short");
     }
 }

@@ -213,3 +213,21 @@ fn ppm_levels_keep_their_columns_apart_and_read_as_typed() {
         assert!(cells.iter().all(|c| c.parse::<f64>().is_ok()), "{row}");
     }
 }
+
+#[test]
+fn file_errors_speak_of_fields_not_of_program_types() {
+    let dir = std::env::temp_dir().join(format!("fillwright-types-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("missing.ron");
+    std::fs::write(
+        &file,
+        "Recipe(format: 1, name: \"x\", components: [(gas: \"N2\", amount: \"balance\")], \
+         cylinder: (water_capacity: \"10L\", working_pressure: \"200bar\"), fill: Pressure(\"150bar\"))",
+    )
+    .unwrap();
+    let o = run(&["plan", file.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(e.contains("test_pressure") && e.contains("missing.ron:1:"), "{e}");
+    assert!(!e.contains("CylinderLine"), "{e}");
+}

@@ -62,14 +62,16 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
         match &e.summary {
             Ok(s) => println!(
                 "{:<22} {:>8} {:>13} {:>3}  {}",
-                clip(&e.name, 22),
+                crate::ron_format::clip_middle(&e.name, 22),
                 clip(&s.fill, 8),
                 clip(&s.cylinder, 13),
                 s.revision,
                 clip(&s.title, 29)
             ),
-            Err(err) if err.starts_with("skipped:") => println!("{:<22} {err}", clip(&e.name, 22)),
-            Err(err) => println!("{:<22} cannot be read: {err}", clip(&e.name, 22)),
+            Err(err) if err.starts_with("skipped:") => {
+                println!("{:<22} {err}", crate::ron_format::clip_middle(&e.name, 22))
+            }
+            Err(err) => println!("{:<22} cannot be read: {err}", crate::ron_format::clip_middle(&e.name, 22)),
         }
     }
     if entries.is_empty() {

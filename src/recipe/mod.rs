@@ -221,7 +221,7 @@ impl Recipe {
                 ron::Error::ExpectedDifferentStructName { .. } | ron::Error::ExpectedNamedStructLike(_) => {
                     "this is not a recipe: a recipe file begins with `Recipe(`".to_string()
                 }
-                code => crate::ron_format::shorten(&code.to_string()),
+                code => crate::ron_format::shorten(&crate::ron_format::plain_ron_message(&code.to_string())),
             },
         })?;
         if recipe.format != FORMAT {

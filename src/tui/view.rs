@@ -172,14 +172,18 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         let text = match &e.summary {
             Ok(s) => format!(
                 "{marker}{:<22}{:>9}{:>14}{:>4}  {}",
-                clip(&e.name, 21),
+                crate::ron_format::clip_middle(&e.name, 21),
                 clip(&s.fill, 8),
                 clip(&s.cylinder, 13),
                 s.revision,
                 clip(&s.title, title_w)
             ),
             Err(err) => {
-                format!("{marker}{:<22} cannot be read: {}", clip(&e.name, 21), clip(err, w.saturating_sub(40)))
+                format!(
+                    "{marker}{:<22} cannot be read: {}",
+                    crate::ron_format::clip_middle(&e.name, 21),
+                    clip(err, w.saturating_sub(40))
+                )
             }
         };
         let style = if selected {
