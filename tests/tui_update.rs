@@ -764,3 +764,18 @@ fn the_screening_cursor_stays_on_its_check_when_the_list_resorts() {
     let marked = screen.lines().find(|l| l.contains('▶')).unwrap_or_default().to_string();
     assert!(marked.contains(before), "{marked}");
 }
+
+#[test]
+fn screen_messages_use_the_editors_labels_not_the_files_keys() {
+    use fillwright::tui::model::{fields, Field};
+    let (mut model, mut ctx, _dir) = setup("labels");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let doc = model.doc.as_mut().unwrap();
+    doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::WaterCapacity).unwrap();
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "-10L");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let e = model.doc.as_ref().unwrap().computed.order.as_ref().unwrap_err().clone();
+    assert!(e.contains("water capacity") && !e.contains("water_capacity"), "{e}");
+    assert!(model.status.contains("water capacity"), "{}", model.status);
+}

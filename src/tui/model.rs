@@ -179,7 +179,7 @@ pub struct Computed {
 
 impl Computed {
     pub fn of(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
-        let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| e.message);
+        let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| in_screen_words(&e.message));
         let options = PlanOptions {
             default_model: settings.default_model,
             resolutions: plan::Resolutions {
@@ -289,6 +289,23 @@ pub struct Document {
     pub bench: Bench,
     /// The draft these edits were recovered from (removed once they are saved or dropped).
     pub recovered_draft: Option<std::path::PathBuf>,
+}
+
+/// A recipe message in the words of the screen: the file's keys become the editor's labels
+/// (`water_capacity` is "water capacity").
+pub fn in_screen_words(message: &str) -> String {
+    const KEYS: [(&str, &str); 9] = [
+        ("water_capacity", "water capacity"),
+        ("working_pressure", "working pressure"),
+        ("test_pressure", "test pressure"),
+        ("reference_temperature", "reference temperature"),
+        ("fill_temperature", "fill temperature"),
+        ("fill_order", "fill order"),
+        ("change_note", "revision note"),
+        ("saved_by", "saved by"),
+        ("tolerance", "tolerance"),
+    ];
+    KEYS.iter().fold(message.to_string(), |m, (key, label)| m.replace(key, label))
 }
 
 /// The checks' indices worst first (stable within a severity): the Screening view's order.
