@@ -231,3 +231,20 @@ fn file_errors_speak_of_fields_not_of_program_types() {
     assert!(e.contains("test_pressure") && e.contains("missing.ron:1:"), "{e}");
     assert!(!e.contains("CylinderLine"), "{e}");
 }
+
+#[test]
+fn two_balance_gases_are_named_before_a_tolerance_on_one_of_them() {
+    let dir = std::env::temp_dir().join(format!("fillwright-twobal-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("twobal.ron");
+    std::fs::write(
+        &file,
+        "Recipe(format: 1, name: \"x\", components: [(gas: \"CO2\", amount: \"15%\"), (gas: \"Ar\", amount: \
+         \"balance\", tolerance: \"2%rel\"), (gas: \"N2\", amount: \"balance\")], cylinder: (water_capacity: \
+         \"10L\", working_pressure: \"200bar\", test_pressure: \"300bar\"), fill: Pressure(\"150bar\"))",
+    )
+    .unwrap();
+    let o = run(&["plan", file.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("two balance gases (Ar and N2)"), "{}", stderr(&o));
+}

@@ -261,17 +261,22 @@ impl Recipe {
             }
             let share = mixture::parse_share(&line.amount)
                 .map_err(|problem| err(&quoted(&line.amount), format!("{id:?} amount {:?} {problem}", line.amount)))?;
+            parts.push(Part { gas, share });
+        }
+        // The amounts as a whole first (one balance gas, a sum of 100 %): a tolerance is
+        // only judged against a valid composition, so its error cannot hide theirs.
+        mixture::check_parts(&parts, catalogue).map_err(|e| err("components", e.to_string()))?;
+        for (line, part) in self.components.iter().zip(&parts) {
+            let id = catalogue.gas(part.gas).id();
             let tolerance = match &line.tolerance {
                 None => None,
                 Some(t) => Some(
-                    parse_tolerance(t, share.fraction())
+                    parse_tolerance(t, part.share.fraction())
                         .map_err(|p| err(&quoted(t), format!("{id:?} tolerance {t:?}: {p}")))?,
                 ),
             };
-            parts.push(Part { gas, share });
-            targets.push(Target { gas, share, tolerance });
+            targets.push(Target { gas: part.gas, share: part.share, tolerance });
         }
-        mixture::check_parts(&parts, catalogue).map_err(|e| err("components", e.to_string()))?;
         let composition = Composition::from_parts(&parts);
         let balance = targets.iter().position(|t| t.share == Share::Balance);
 
