@@ -779,3 +779,18 @@ fn screen_messages_use_the_editors_labels_not_the_files_keys() {
     assert!(e.contains("water capacity") && !e.contains("water_capacity"), "{e}");
     assert!(model.status.contains("water capacity"), "{}", model.status);
 }
+
+#[test]
+fn a_premix_name_cut_in_the_sheet_is_given_whole_for_the_chosen_step() {
+    let (mut model, mut ctx, _dir) = setup("premix-name");
+    open(&mut model, &mut ctx, "nox-span-premix");
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    let steps: Vec<String> =
+        model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().steps.iter().map(|s| s.source.clone()).collect();
+    let k = steps.iter().position(|s| s == "NO 1% in N2").unwrap();
+    for _ in 0..k {
+        keys(&mut model, &mut ctx, &[Key::Down]);
+    }
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains(&format!("step {} source: NO 1% in N2", k + 1)), "{screen}");
+}

@@ -418,6 +418,10 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         );
         lines.push(Line::styled(text, if selected { theme.selected() } else { Style::default() }));
     }
+    // A source name cut in the table (a premix) is given whole for the chosen step.
+    if let Some(s) = p.steps.get(b.selected).filter(|s| s.source.chars().count() > 10) {
+        lines.push(Line::raw(format!("step {} source: {}", b.selected + 1, s.source)));
+    }
     for (severity, note) in super::sheet::reading_notes(doc, &model.limits, d, b.selected) {
         let style = match severity {
             Severity::Ok => Style::default(),
