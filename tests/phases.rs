@@ -49,6 +49,7 @@ struct Mixture {
     x: Vec<f64>,
     dew_points: Vec<DewPoint>,
     bubble_points: Vec<BubblePoint>,
+    cricondentherm_k: f64,
 }
 
 #[derive(Deserialize)]
@@ -163,6 +164,9 @@ fn dew_and_bubble_points_agree_with_thermos_pr_flash_to_a_tenth_of_a_kelvin() {
                 d.dew_temperature_k
             );
         }
+        // The cricondentherm, over the whole envelope (to 1000 bar).
+        let (ct, _) = phase.cricondentherm(&m.x, 80.0, 1000e5).unwrap().unwrap();
+        assert!((ct - m.cricondentherm_k).abs() < 0.1, "{} cricondentherm {ct} vs {}", m.label, m.cricondentherm_k);
         for b in &m.bubble_points {
             let t = phase
                 .bubble_temperature(b.pressure_pa, &m.x, 80.0)

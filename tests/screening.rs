@@ -1,12 +1,11 @@
 //! Screening before the fill, against outside references and on either side of each limit.
 
 use fillwright::checks::hazards::{iso_10156_index, le_chatelier};
-use fillwright::checks::phase::PhaseFluid;
 use fillwright::checks::{self, Conditions, Severity};
 use fillwright::gas::Catalogue;
 use fillwright::plan::{self, PlanOptions};
 use fillwright::recipe::{demo, Recipe};
-use fillwright::thermo::{Fluid, Model};
+use fillwright::thermo::Model;
 use serde::Deserialize;
 
 /// 0 °C storage, 65 °C service, no condensation margin: the model's own verdict.
@@ -16,7 +15,6 @@ const CONDITIONS: Conditions = Conditions { min_temperature_k: 273.15, max_tempe
 struct Fixture {
     library: String,
     vapour_pressures: Vec<Vapour>,
-    mixtures: Vec<Mixture>,
 }
 
 #[derive(Deserialize)]
@@ -24,21 +22,6 @@ struct Vapour {
     id: String,
     temperature_k: f64,
     pressure_pa: f64,
-}
-
-#[derive(Deserialize)]
-struct Mixture {
-    label: String,
-    ids: Vec<String>,
-    x: Vec<f64>,
-    dew_points: Vec<DewPoint>,
-    cricondentherm_k: f64,
-}
-
-#[derive(Deserialize)]
-struct DewPoint {
-    pressure_pa: f64,
-    dew_temperature_k: f64,
 }
 
 fn fixture() -> Fixture {
@@ -78,40 +61,6 @@ fn vapour_pressures_agree_with_coolprop() {
         compared.insert(v.id.clone());
     }
     assert!(compared.len() >= 10);
-}
-
-fn phase_fluid<'a>(c: &Catalogue, fluid: &'a Fluid, ids: &[String]) -> PhaseFluid<'a> {
-    let g: Vec<_> = ids.iter().map(|id| c.gas(c.index_of(id).unwrap())).collect();
-    PhaseFluid {
-        fluid,
-        tc: g.iter().map(|g| g.tc_k()).collect(),
-        pc: g.iter().map(|g| g.pc_pa()).collect(),
-        omega: g.iter().map(|g| g.omega()).collect(),
-    }
-}
-
-#[test]
-fn dew_points_and_cricondentherms_agree_with_thermo_within_half_a_kelvin() {
-    let c = Catalogue::built_in();
-    let f = fixture();
-    assert!(f.mixtures.len() >= 4);
-    for m in &f.mixtures {
-        let idx: Vec<usize> = m.ids.iter().map(|id| c.index_of(id).unwrap()).collect();
-        let fluid = Fluid::new(&c, &idx, Model::Pr).unwrap();
-        let phase = phase_fluid(&c, &fluid, &m.ids);
-        for d in &m.dew_points {
-            let t = phase.dew_temperature(d.pressure_pa, &m.x, 80.0).unwrap().unwrap();
-            assert!(
-                (t - d.dew_temperature_k).abs() < 0.5,
-                "{} at {} bar: {t} vs {}",
-                m.label,
-                d.pressure_pa / 1e5,
-                d.dew_temperature_k
-            );
-        }
-        let (ct, _) = phase.cricondentherm(&m.x, 80.0, 300e5).unwrap().unwrap();
-        assert!((ct - m.cricondentherm_k).abs() < 0.5, "{} cricondentherm {ct} vs {}", m.label, m.cricondentherm_k);
-    }
 }
 
 fn screen(name: &str) -> Vec<checks::Check> {
