@@ -794,3 +794,21 @@ fn a_premix_name_cut_in_the_sheet_is_given_whole_for_the_chosen_step() {
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
     assert!(screen.contains(&format!("step {} source: NO 1% in N2", k + 1)), "{screen}");
 }
+
+#[test]
+fn a_deleted_recipe_comes_back_from_the_trash_on_the_screen() {
+    let (mut model, mut ctx, dir) = setup("trash");
+    keys(&mut model, &mut ctx, &[Key::Char('t')]);
+    assert_eq!(model.status, "the trash is empty");
+    ctx.library.delete("laser-co2-he-n2", &stamp()).unwrap();
+    update::refresh(&mut model, &ctx);
+    keys(&mut model, &mut ctx, &[Key::Char('t')]);
+    match &model.overlay {
+        Overlay::Trash { entries, .. } => assert_eq!(entries[0].0, "laser-co2-he-n2"),
+        other => panic!("{other:?}"),
+    }
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("is back"), "{}", model.status);
+    assert!(dir.join("library/laser-co2-he-n2.ron").is_file());
+    assert!(model.library.entries.iter().any(|e| e.name == "laser-co2-he-n2"));
+}

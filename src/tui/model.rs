@@ -48,6 +48,11 @@ pub enum Overlay {
     Conflict,
     /// The plan is at stop: tick its steps anyway? (the finding)
     ConfirmStop(String),
+    /// The trash: deleted recipes (name, when deleted) and the selected one.
+    Trash {
+        entries: Vec<(String, String)>,
+        selected: usize,
+    },
     /// The settings editor: the selected field and the settings as written.
     Settings {
         selected: usize,

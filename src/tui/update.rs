@@ -365,6 +365,14 @@ fn on_library_key(model: &mut Model, key: Key, ctx: &mut Context) {
         Key::End => model.library.selected = n.saturating_sub(1),
         Key::Enter => open_selected(model, ctx),
         Key::Char('/') => model.library.filter = Some(input("")),
+        Key::Char('t') => {
+            let entries: Vec<(String, String)> = ctx.library.trash().into_iter().map(|(n, s, _)| (n, s)).collect();
+            if entries.is_empty() {
+                model.status = "the trash is empty".into();
+            } else {
+                model.overlay = Overlay::Trash { entries, selected: 0 };
+            }
+        }
         Key::Char('o') => {
             model.overlay = Overlay::Settings { selected: 0, values: Box::new(super::settings_editor::current(ctx)) };
             model.status = "settings: Enter changes the chosen one; they are written to settings.ron at once".into();
@@ -702,6 +710,30 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 model.status = "nothing deleted".into();
             }
         }
+        Overlay::Trash { entries, mut selected } => match key {
+            Key::Up | Key::Char('k') => {
+                selected = selected.saturating_sub(1);
+                model.overlay = Overlay::Trash { entries, selected };
+            }
+            Key::Down | Key::Char('j') => {
+                selected = (selected + 1).min(entries.len().saturating_sub(1));
+                model.overlay = Overlay::Trash { entries, selected };
+            }
+            Key::Enter | Key::Char('y') => {
+                let Some((name, _)) = entries.get(selected).cloned() else { return };
+                match ctx.library.undelete(&name, None) {
+                    Ok(back) => {
+                        model.status = format!("{back} is back in the library");
+                        refresh(model, ctx);
+                    }
+                    Err(e) => {
+                        model.status =
+                            format!("{e} (fillwright undelete {name} --as NEW brings it back under another name)")
+                    }
+                }
+            }
+            _ => {}
+        },
         Overlay::Settings { mut selected, values } => match key {
             Key::Up | Key::Char('k') => {
                 selected = selected.saturating_sub(1);

@@ -2,7 +2,7 @@
 //! Meaning is never carried by colour alone: selection has a marker, severities and flags
 //! have words and signs, and with `NO_COLOR` no colour is used at all.
 
-use crate::ron_format::{clip, wrap_words};
+use crate::ron_format::{clip, clip_middle, wrap_words};
 use ratatui::layout::{Constraint, Layout, Rect};
 use ratatui::style::{Color, Modifier, Style};
 use ratatui::symbols::Marker;
@@ -106,7 +106,7 @@ fn keys_hint(model: &Model) -> &'static str {
     match (&model.overlay, model.view) {
         (Overlay::None, View::Library) if model.library.filter.is_some() => "? help · Enter open · Esc clear · type to search",
         (Overlay::None, View::Library) => {
-            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · o settings"
+            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · t trash · o settings"
         }
         (Overlay::None, View::Editor) if model.doc.as_ref().is_some_and(|d| d.editing.is_some()) => {
             "Enter keep · Esc cancel · type"
@@ -172,18 +172,14 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         let text = match &e.summary {
             Ok(s) => format!(
                 "{marker}{:<22}{:>9}{:>14}{:>4}  {}",
-                crate::ron_format::clip_middle(&e.name, 21),
+                clip_middle(&e.name, 21),
                 clip(&s.fill, 8),
                 clip(&s.cylinder, 13),
                 s.revision,
                 clip(&s.title, title_w)
             ),
             Err(err) => {
-                format!(
-                    "{marker}{:<22} cannot be read: {}",
-                    crate::ron_format::clip_middle(&e.name, 21),
-                    clip(err, w.saturating_sub(40))
-                )
+                format!("{marker}{:<22} cannot be read: {}", clip_middle(&e.name, 21), clip(err, w.saturating_sub(40)))
             }
         };
         let style = if selected {
@@ -740,6 +736,7 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "d or Del    delete it (kept in the library's .trash)",
             "h           history: revisions and what changed; r restores",
             "g           read the library folder again",
+            "t           the trash: bring a deleted recipe back",
             "o           settings: units, default model, resolutions,",
             "            storage temperatures, margin (settings.ron)",
         ],
@@ -804,6 +801,25 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Line::raw("y  delete (recoverable)     any other key: keep"),
             ];
             boxed(frame, centered(area, 56, 4), "Delete", lines);
+        }
+        Overlay::Trash { entries, selected } => {
+            let mut lines: Vec<Line> = entries
+                .iter()
+                .enumerate()
+                .map(|(k, (name, when))| {
+                    Line::styled(
+                        format!(
+                            "{} {:<40} deleted {when}",
+                            if k == *selected { "▶" } else { " " },
+                            clip_middle(name, 40)
+                        ),
+                        if k == *selected { theme.selected() } else { Style::default() },
+                    )
+                })
+                .collect();
+            lines.push(Line::styled("↑↓ choose · Enter bring it back · Esc close", theme.dim()));
+            let h = (lines.len() as u16 + 2).min(area.height);
+            boxed(frame, centered(area, 70, h), "Trash", lines);
         }
         Overlay::Settings { selected, values } => {
             let s = values.as_ref();
