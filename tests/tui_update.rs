@@ -812,3 +812,29 @@ fn a_deleted_recipe_comes_back_from_the_trash_on_the_screen() {
     assert!(dir.join("library/laser-co2-he-n2.ron").is_file());
     assert!(model.library.entries.iter().any(|e| e.name == "laser-co2-he-n2"));
 }
+
+#[test]
+fn the_result_pane_at_60_by_20_keeps_its_columns_whole() {
+    let dir = std::env::temp_dir().join(format!("fillwright-tui-r60-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    let scenes = fillwright::tui::scenes::scenes();
+    let (_, editor) = scenes.iter().find(|(n, _)| *n == "editor").unwrap();
+    let screen = fillwright::tui::scenes::text(&fillwright::tui::scenes::render(&dir, editor.as_ref(), 60, 20, false));
+    // Each step's row holds its source and its stop reading on one line.
+    for gas in ["CO ", "CH4", "CO2", "N2 "] {
+        let row = screen.lines().find(|l| l.contains(&format!("││{gas}"))).unwrap_or_else(|| panic!("{gas}: {screen}"));
+        let right = row.split("││").nth(1).unwrap();
+        assert!(
+            right.split_whitespace().nth(1).is_some_and(|v| v.trim_end_matches(['!', '│']).parse::<f64>().is_ok()),
+            "{row}"
+        );
+    }
+    // And no column of the steps spills onto a line of its own (a wrapped scale reading).
+    let right: Vec<&str> = screen.lines().filter_map(|l| l.split("││").nth(1)).collect();
+    let start = right.iter().position(|l| l.starts_with("add")).unwrap();
+    let end = right.iter().position(|l| l.starts_with("readings for")).unwrap();
+    for line in &right[start + 1..end] {
+        let first = line.split_whitespace().next().unwrap_or("");
+        assert!(first.trim_end_matches(['!', '│']).parse::<f64>().is_err(), "a wrapped number: {line}");
+    }
+}

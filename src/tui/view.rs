@@ -312,18 +312,19 @@ fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area
             lines.push(Line::raw(format!("{} {} at {}", d.pf(t.pressure_pa), d.pu(), d.tf(t.temperature_k))));
             lines.push(Line::raw(format!("{:.4} mol  {:.1} g  Z {:.4}", t.amount_mol, t.mass_g, t.z)));
             lines.push(Line::raw(String::new()));
-            lines.push(Line::styled(
-                format!("{:<12}{:>10}{:>11}", "add", format!("stop {}", d.pu()), "scale g"),
-                theme.bold(),
-            ));
+            // The scale column only where the pane is wide enough; a narrow pane keeps its
+            // columns whole rather than wrapping them (the Fill sheet has everything).
+            let with_scale = w >= 34;
+            let head = format!("{:<12}{:>10}", "add", format!("stop {}", d.pu()));
+            lines.push(Line::styled(if with_scale { format!("{head}{:>11}", "scale g") } else { head }, theme.bold()));
             for s in &p.steps {
                 let flag = step_mark(s).unwrap_or(" ");
-                lines.push(Line::raw(format!(
-                    "{:<12}{:>10}{:>11.1}{flag}",
-                    clip(&s.source, 11),
-                    d.pf(s.pressure_after_pa),
-                    s.scale_reading_g
-                )));
+                let row = format!("{:<12}{:>10}", clip(&s.source, 11), d.pf(s.pressure_after_pa));
+                lines.push(Line::raw(if with_scale {
+                    format!("{row}{:>11.1}{flag}", s.scale_reading_g)
+                } else {
+                    format!("{row}{flag}")
+                }));
             }
             lines.push(Line::styled(format!("readings for {}", d.tf(p.fill_temperature_k)), theme.dim()));
             if let Some(checks) = &doc.computed.checks {
