@@ -151,16 +151,16 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
                         for c in list {
                             println!(
                                 "{},{},{},{},{}",
-                                super::gases::csv_field(origin),
+                                super::csv_field(origin),
                                 model.key(),
                                 c.id,
                                 c.severity.key(),
-                                super::gases::csv_field(&c.message)
+                                super::csv_field(&c.message)
                             );
                         }
                     }
                     Err(e) => {
-                        println!("{},,,unreadable,{}", super::gases::csv_field(origin), super::gases::csv_field(e))
+                        println!("{},,,unreadable,{}", super::csv_field(origin), super::csv_field(e))
                     }
                 }
             }

@@ -3,7 +3,7 @@
 use clap::Args;
 use serde_json::json;
 
-use super::{print_json, Failure, Format, Refused};
+use super::{csv_field, print_json, Failure, Format, Refused};
 use crate::config;
 use crate::thermo::gerg;
 use crate::units::bar;
@@ -13,15 +13,6 @@ pub struct GasesArgs {
     /// Output format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
-}
-
-/// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
-pub fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
 }
 
 pub fn run(args: &GasesArgs) -> Result<(), Failure> {

@@ -230,6 +230,15 @@ pub fn main() -> ExitCode {
     }
 }
 
+/// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
+pub fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
 /// Print a JSON value (numbers at full precision).
 pub fn print_json(value: &serde_json::Value) {
     println!("{}", serde_json::to_string_pretty(value).unwrap_or_default());

@@ -331,11 +331,7 @@ pub fn steps_csv(plan: &Plan) -> String {
         "step,source,add_amount_mol,add_mass_g,scale_reading_g,pressure_after_bar,gauge_after_bar,increment_bar,temperature_k,flags\n",
     );
     for (i, st) in plan.steps.iter().enumerate() {
-        let source = if st.source.contains([',', '"']) {
-            format!("\"{}\"", st.source.replace('"', "\"\""))
-        } else {
-            st.source.clone()
-        };
+        let source = super::csv_field(&st.source);
         s.push_str(&format!(
             "{},{},{},{},{},{},{},{},{},{}\n",
             i + 1,

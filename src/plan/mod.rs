@@ -429,15 +429,16 @@ enum Judged {
     Gas,
     /// Liquid forms on cooling to the lowest storage temperature.
     OnCooling,
-    /// Liquid already at the fill temperature; the equilibrium pressure, Pa.
-    AtFill(f64),
+    /// Liquid already at the fill temperature (the step's reading, from
+    /// [`Fluid::pressure_in_cylinder`], is then the equilibrium pressure).
+    AtFill,
 }
 
 /// Judge a step's contents at the fill temperature and at three more temperatures down to
 /// `t_min_k` (the isochore of the cylinder).
 fn judge_step(fluid: &Fluid, t_fill: f64, t_min_k: f64, volume_m3: f64, n: &[f64]) -> Result<Judged, ThermoError> {
     if fluid.condensed_tv(t_fill, volume_m3, n)? {
-        return Ok(Judged::AtFill(fluid.equilibrium_tv(t_fill, volume_m3, n)?.pressure_pa));
+        return Ok(Judged::AtFill);
     }
     for k in 1..=3 {
         let t = t_fill - (t_fill - t_min_k) * k as f64 / 3.0;
@@ -476,27 +477,16 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         if add_mass_g < options.resolutions.scale_g {
             flags.push(StepFlag::BelowScaleResolution);
         }
-        // Liquid from this step's contents: at the fill temperature the reading is then the
-        // vapour pressure of the contents, not the single-phase number.
+        // Liquid from this step's contents, at the fill temperature or on cooling.
         let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
         let last = steps.len() + 1 == d.sequence.len();
         let judged = judge_step(&fluid, t_fill, t_min, order.volume_m3, &n_after)?;
-        let liquid_at_fill = matches!(judged, Judged::AtFill(_));
-        let p_after = match judged {
-            Judged::Gas => p_after,
-            Judged::OnCooling if last => {
-                flags.push(StepFlag::AboveDewPoint);
-                p_after
-            }
-            Judged::OnCooling => {
-                flags.push(StepFlag::CondensesIfCooled);
-                p_after
-            }
-            Judged::AtFill(p) => {
-                flags.push(StepFlag::AboveDewPoint);
-                p
-            }
-        };
+        let liquid_at_fill = matches!(judged, Judged::AtFill);
+        match judged {
+            Judged::Gas => {}
+            Judged::OnCooling if !last => flags.push(StepFlag::CondensesIfCooled),
+            Judged::OnCooling | Judged::AtFill => flags.push(StepFlag::AboveDewPoint),
+        }
         let increment_pa = p_after - previous_pa;
         if increment_pa < options.resolutions.gauge_pa {
             flags.insert(0, StepFlag::BelowGaugeResolution);

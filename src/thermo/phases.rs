@@ -314,39 +314,19 @@ impl Fluid {
             };
         }
         let screen = self.phase_screen();
-        // One phase at V/n when the screen's state at that volume is its stable state at
-        // its pressure: the stable root there has this volume, and the feed does not split.
-        if let Ok(p_screen) = screen.pressure_tv(t_k, v, &z) {
-            let on_stable_root =
-                screen.state_tp(t_k, p_screen, &z).is_ok_and(|s| (s.molar_volume_m3 - v).abs() <= 1e-6 * v);
-            if on_stable_root && screen.stability(t_k, p_screen, &z)?.is_none() {
-                let p = if self.model == screen.model { p_screen } else { self.pressure_tv(t_k, v, &z)? };
-                return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
-            }
+        if let Some(p_screen) = screen.single_phase_at(t_k, v, &z)? {
+            let p = if self.model == screen.model { p_screen } else { self.pressure_tv(t_k, v, &z)? };
+            return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
         }
-        // Split: find the pressure whose equilibrium volume is V/n.
+        // Split: find the pressure whose equilibrium volume (on the screen) is V/n.
         let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
-        let volume_at = |lp: f64| -> Result<Equilibrium, ThermoError> {
-            let p = lp.exp();
-            match screen.stability(t_k, p, &z)? {
-                Some(trial) => {
-                    if let Some(e) = screen.flash(t_k, p, &z, &trial)? {
-                        return Ok(e);
-                    }
-                    let v = screen.state_tp(t_k, p, &z)?.molar_volume_m3;
-                    Ok(single(Phase::Gas, p, v, Model::Pr))
-                }
-                None => {
-                    let v = screen.state_tp(t_k, p, &z)?.molar_volume_m3;
-                    Ok(single(screen.label(t_k, p, &z, v), p, v, Model::Pr))
-                }
-            }
-        };
-        let mut best = volume_at(0.5 * (lo + hi))?;
+        let mut best = None;
         for _ in 0..60 {
             let mid = 0.5 * (lo + hi);
-            best = volume_at(mid)?;
-            if best.molar_volume_m3 > v {
+            let e = screen.equilibrium_tp(t_k, mid.exp(), &z)?;
+            let above = e.molar_volume_m3 > v;
+            best = Some(e);
+            if above {
                 lo = mid;
             } else {
                 hi = mid;
@@ -355,6 +335,7 @@ impl Fluid {
                 break;
             }
         }
+        let Some(mut best) = best else { return Err(ThermoError::Volume(volume_m3 * 1e3)) };
         // At the pressure found, the amounts of the two phases follow from the volume (the
         // lever rule), which stays exact where the split is steep in pressure (a nearly
         // pure condensing component).
@@ -371,11 +352,7 @@ impl Fluid {
     /// The pressure of `amounts_mol` in `volume_m3` at T as it is: the single-phase
     /// pressure of a gas, the equilibrium (vapour) pressure where liquid is present.
     pub fn pressure_in_cylinder(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<f64, ThermoError> {
-        if self.condensed_tv(t_k, volume_m3, amounts_mol)? {
-            Ok(self.equilibrium_tv(t_k, volume_m3, amounts_mol)?.pressure_pa)
-        } else {
-            self.pressure(t_k, volume_m3, amounts_mol)
-        }
+        Ok(self.equilibrium_tv(t_k, volume_m3, amounts_mol)?.pressure_pa)
     }
 
     /// Whether `amounts_mol` in `volume_m3` at T is not a gas: liquid, or gas and liquid
@@ -390,15 +367,19 @@ impl Fluid {
         if single_component(&z).is_some() {
             return Ok(self.saturation(t_k, &z)?.is_some_and(|s| v < s.v_vapour_m3));
         }
-        let screen = self.phase_screen();
-        if let Ok(p_screen) = screen.pressure_tv(t_k, v, &z) {
-            let on_stable_root =
-                screen.state_tp(t_k, p_screen, &z).is_ok_and(|s| (s.molar_volume_m3 - v).abs() <= 1e-6 * v);
-            if on_stable_root && screen.stability(t_k, p_screen, &z)?.is_none() {
-                return Ok(self.label(t_k, p_screen, &z, v) == Phase::Liquid);
-            }
+        match self.phase_screen().single_phase_at(t_k, v, &z)? {
+            Some(p_screen) => Ok(self.label(t_k, p_screen, &z, v) == Phase::Liquid),
+            None => Ok(true),
         }
-        Ok(true)
+    }
+
+    /// The pressure of a single-phase state of molar volume `v` on this (screen) fluid, or
+    /// None where the contents split: one phase at `v` when the stable root at its pressure
+    /// has this volume and the feed does not split there.
+    fn single_phase_at(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
+        let Ok(p) = self.pressure_tv(t_k, v, z) else { return Ok(None) };
+        let on_stable_root = self.state_tp(t_k, p, z).is_ok_and(|s| (s.molar_volume_m3 - v).abs() <= 1e-6 * v);
+        Ok((on_stable_root && self.stability(t_k, p, z)?.is_none()).then_some(p))
     }
 
     /// Flash a feed known to split, starting from the stability test's trial phase.
