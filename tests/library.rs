@@ -4,7 +4,7 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 
 use fillwright::library::{atomic, check_name, Library, LibraryError, OnConflict, Saved};
-use fillwright::recipe::{canonical, demo, ComponentLine, CylinderLine, FillTarget, Recipe, SourceLine};
+use fillwright::recipe::{canonical, demo, BeforeFill, ComponentLine, CylinderLine, FillTarget, Recipe, SourceLine};
 use proptest::prelude::*;
 
 fn temp_dir(tag: &str) -> PathBuf {
@@ -219,8 +219,14 @@ fn recipe_strategy() -> impl Strategy<Value = Recipe> {
         .prop_map(|(gas, amount, tolerance)| ComponentLine { gas, amount, tolerance });
     let source = prop_oneof![
         text_strategy().prop_map(SourceLine::Pure),
-        (text_strategy(), text_strategy()).prop_map(|(name, mix)| SourceLine::Premix { name, mix }),
+        (text_strategy(), text_strategy(), proptest::option::of(text_strategy()))
+            .prop_map(|(name, mix, recipe)| SourceLine::Premix { name, mix, recipe }),
     ];
+    let before = proptest::option::of(prop_oneof![
+        text_strategy().prop_map(BeforeFill::Evacuated),
+        (text_strategy(), text_strategy(), proptest::option::of(text_strategy()))
+            .prop_map(|(mix, pressure, temperature)| BeforeFill::Heel { mix, pressure, temperature }),
+    ]);
     let fill = prop_oneof![
         text_strategy().prop_map(FillTarget::Pressure),
         text_strategy().prop_map(FillTarget::Mass),
@@ -243,33 +249,37 @@ fn recipe_strategy() -> impl Strategy<Value = Recipe> {
         proptest::collection::vec(source, 0..3),
         proptest::collection::vec(text_strategy(), 0..3),
         text_strategy(),
+        before,
     )
-        .prop_map(|(stamp, names, components, cyl, fill, temps, model, sources, fill_order, notes)| Recipe {
-            format: 1,
-            revision: stamp.0,
-            saved: stamp.1,
-            saved_by: None,
-            change_note: stamp.2,
-            name: names.0,
-            description: names.1,
-            order: names.2,
-            components,
-            cylinder: CylinderLine {
-                water_capacity: cyl.0,
-                working_pressure: cyl.1,
-                test_pressure: cyl.2,
-                tare: cyl.3,
-                serial: cyl.4,
+        .prop_map(
+            |(stamp, names, components, cyl, fill, temps, model, sources, fill_order, notes, before_fill)| Recipe {
+                format: 1,
+                revision: stamp.0,
+                saved: stamp.1,
+                saved_by: None,
+                change_note: stamp.2,
+                name: names.0,
+                description: names.1,
+                order: names.2,
+                components,
+                cylinder: CylinderLine {
+                    water_capacity: cyl.0,
+                    working_pressure: cyl.1,
+                    test_pressure: cyl.2,
+                    tare: cyl.3,
+                    serial: cyl.4,
+                },
+                fill,
+                reference_temperature: temps.0,
+                fill_temperature: temps.1,
+                ambient: temps.2,
+                before_fill,
+                model,
+                sources,
+                fill_order,
+                notes,
             },
-            fill,
-            reference_temperature: temps.0,
-            fill_temperature: temps.1,
-            ambient: temps.2,
-            model,
-            sources,
-            fill_order,
-            notes,
-        })
+        )
 }
 
 proptest! {

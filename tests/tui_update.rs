@@ -838,3 +838,39 @@ fn the_result_pane_at_60_by_20_keeps_its_columns_whole() {
         assert!(first.trim_end_matches(['!', '│']).parse::<f64>().is_err(), "a wrapped number: {line}");
     }
 }
+
+#[test]
+fn the_cylinder_before_the_fill_is_edited_on_one_line_and_the_sheet_starts_from_it() {
+    use fillwright::recipe::BeforeFill;
+    use fillwright::tui::model::{fields, Field};
+    let (mut model, mut ctx, _dir) = setup("heel");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let doc = model.doc.as_mut().unwrap();
+    doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::BeforeFill).unwrap();
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "some nitrogen");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    // Not read: the entry stays open with what was typed, and the message says what reads.
+    let doc = model.doc.as_ref().unwrap();
+    assert!(doc.editing.as_ref().is_some_and(|i| i.value() == "some nitrogen"));
+    assert!(model.status.contains("accepted"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "N2 at 10bar");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(
+        doc.recipe.before_fill,
+        Some(BeforeFill::Heel { mix: "N2".into(), pressure: "10bar".into(), temperature: None })
+    );
+    let plan = doc.computed.plan.as_ref().unwrap();
+    assert!(plan.heel.is_some());
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.lines().any(|l| l.contains(" 0  heel") && l.contains("10.000")), "{screen}");
+    // A fill record would leave the heel out of the certificate: it is refused, saying why.
+    keys(&mut model, &mut ctx, &[Key::Char('s'), Key::Char('w')]);
+    text(&mut model, &mut ctx, "13500g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("heel"), "{}", model.status);
+    assert!(model.doc.as_ref().unwrap().bench.record.is_none());
+}

@@ -155,6 +155,10 @@ pub struct OrderArgs {
     /// Cylinder test pressure (with --mix): a fill above it is refused.
     #[arg(long, value_name = "P", allow_hyphen_values = true)]
     pub test_pressure: Option<String>,
+    /// What is in the cylinder before the fill (with --mix): "evacuated to 0.5mbar", or a
+    /// heel "N2 at 5bar" / "CO=50ppm,N2=balance at 3barg, 20C". Default: evacuated.
+    #[arg(long, value_name = "WHAT", allow_hyphen_values = true)]
+    pub before_fill: Option<String>,
 }
 
 impl OrderArgs {
@@ -195,7 +199,14 @@ impl OrderArgs {
         // A fill above the rating is not refused here: the rating check stops it, with the
         // numbers, in `plan` and `check` alike.
         let (working, test) = (working.unwrap_or(MAX_PRESSURE_PA), test.unwrap_or(MAX_PRESSURE_PA));
-        Ok(build_order(parts, volume, pressure, t_ref, working, test, ambient, catalogue))
+        let mut order = build_order(parts, volume, pressure, t_ref, working, test, ambient, catalogue);
+        if let Some(text) = &self.before_fill {
+            let before =
+                crate::recipe::BeforeFill::parse_text(text).map_err(|e| Refused(format!("--before-fill: {e}")))?;
+            order.before = crate::recipe::resolve_before(&before, catalogue, ambient, test, t_ref)
+                .map_err(|(_, e)| Refused(format!("--before-fill: {}", e.trim_start_matches("before_fill: "))))?;
+        }
+        Ok(order)
     }
 }
 
@@ -239,6 +250,7 @@ fn build_order(
         reference_temperature_k: t_ref,
         fill_temperature_k: t_ref,
         ambient_pa: ambient,
+        before: crate::recipe::Before::Evacuated { residual_pa: 0.0 },
         model: None,
         sources,
         fill_order: Vec::new(),
@@ -321,6 +333,15 @@ pub fn plan_json(plan: &Plan, order: &Order, catalogue: &Catalogue) -> Value {
                 Err(e) => json!({"error": e}),
             },
         })).collect::<Vec<_>>(),
+        "heel": plan.heel.as_ref().map(|h| json!({
+            "amount_mol": h.amounts_mol.iter().sum::<f64>(),
+            "mass_g": h.mass_g,
+            "pressure_at_fill_bar": bar(h.pressure_at_fill_pa),
+            "components": plan.gases.iter().zip(&h.amounts_mol).filter(|(_, n)| **n > 0.0).map(|(&g, n)| json!({
+                "id": id(catalogue, g),
+                "amount_mol": n,
+            })).collect::<Vec<_>>(),
+        })),
         "notes": plan.notes,
     })
 }
@@ -429,6 +450,20 @@ pub fn fill_sheet(
         "gauge",
         format!("+{}", d.pu())
     ));
+    if let Some(h) = &plan.heel {
+        // Row 0: what the cylinder holds before the first addition, as the gauge and scale show it.
+        line(format!(
+            "{:>2}  {:<14}{:>9}{:>9}{:>11.1}{:>10}{:>10}{:>8}",
+            0,
+            "heel (start)",
+            Sig(h.amounts_mol.iter().sum(), 4).to_string(),
+            Sig(h.mass_g, 4).to_string(),
+            order.tare_g.unwrap_or(0.0) + h.mass_g,
+            d.pf(h.pressure_at_fill_pa),
+            d.pf(h.pressure_at_fill_pa - ambient_pa),
+            ""
+        ));
+    }
     for (i, s) in plan.steps.iter().enumerate() {
         let marks: String = s
             .flags
@@ -632,7 +667,9 @@ pub fn fill_sheet(
     }
 
     for n in &plan.notes {
-        line(format!("NOTE  {n}"));
+        for (k, part) in crate::ron_format::wrap_words(n, 74).into_iter().enumerate() {
+            line(format!("{}{part}", if k == 0 { "NOTE  " } else { "      " }));
+        }
     }
     for text in [
         "CAUTION  A computation aid only. Compressed gases are hazardous: check the",

@@ -14,7 +14,7 @@ pub mod sources;
 use nalgebra::{DMatrix, DVector};
 
 use crate::gas::Catalogue;
-use crate::recipe::{Fill, Order};
+use crate::recipe::{Before, Fill, Order};
 use crate::thermo::{gerg, Fluid, Model, ThermoError};
 use crate::units::{bar, R, STANDARD_AMBIENT_PA};
 
@@ -69,6 +69,11 @@ pub enum PlanError {
          {test_bar:.2} bar; this fill must not be made"
     )]
     AboveTestPressure { final_bar: f64, test_bar: f64 },
+    #[error(
+        "the heel already holds {heel_mol:.6} mol of {id}, more than the {needed_mol:.6} mol the finished blend \
+         may hold; vent the cylinder lower (or evacuate it) before the fill"
+    )]
+    HeelTooRich { id: String, heel_mol: f64, needed_mol: f64 },
 }
 
 /// One component that the sources cannot deliver.
@@ -171,6 +176,16 @@ pub struct ComponentRow {
     pub tolerance: Option<f64>,
 }
 
+/// What was in the cylinder before the first addition (a heel).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Heel {
+    /// Amount of each plan gas, mol.
+    pub amounts_mol: Vec<f64>,
+    pub mass_g: f64,
+    /// Its pressure at the fill temperature: the gauge's reading before the first addition, Pa.
+    pub pressure_at_fill_pa: f64,
+}
+
 /// Blend totals at the reference temperature.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Totals {
@@ -238,6 +253,8 @@ pub struct Plan {
     pub models: Vec<ModelPlan>,
     pub following: Vec<Following>,
     pub premixes: Vec<premix::Proposal>,
+    /// The heel the fill starts from, if the cylinder is not evacuated.
+    pub heel: Option<Heel>,
     /// A liquefied-gas fill: the finished blend is liquid or two-phase at the reference
     /// temperature, so the additions are stopped by the scale, not the gauge.
     pub by_mass: bool,
@@ -286,8 +303,12 @@ struct Setup {
 
 fn setup(order: &Order) -> Setup {
     let mut gases: Vec<usize> = order.composition.gases.clone();
-    for s in &order.sources {
-        for &g in &s.composition.gases {
+    let heel = match &order.before {
+        Before::Heel { composition, .. } => Some(composition),
+        Before::Evacuated { .. } => None,
+    };
+    for c in order.sources.iter().map(|s| &s.composition).chain(heel) {
+        for &g in &c.gases {
             if !gases.contains(&g) {
                 gases.push(g);
             }
@@ -320,6 +341,8 @@ pub fn default_model(gases: &[usize], catalogue: &Catalogue) -> Model {
 /// Source amounts and step order, independent of the model but for the total amount.
 struct Dosing {
     total_mol: f64,
+    /// Amount of each plan gas in the heel, mol (zeros for an evacuated cylinder).
+    heel_mol: Vec<f64>,
     /// Amount of each source, mol.
     source_mol: Vec<f64>,
     /// Source indices in fill order, zero-amount sources left out.
@@ -334,6 +357,23 @@ fn total_amount(fluid: &Fluid, order: &Order, x: &[f64]) -> Result<f64, ThermoEr
     }
 }
 
+/// The heel's amount of each plan gas under `fluid`: from its pressure at its temperature.
+fn heel_amounts(fluid: &Fluid, order: &Order, setup: &Setup) -> Result<Vec<f64>, ThermoError> {
+    let mut n = vec![0.0; setup.gases.len()];
+    if let Before::Heel { composition, pressure_pa, temperature_k } = &order.before {
+        let x: Vec<f64> = setup
+            .gases
+            .iter()
+            .map(|g| composition.gases.iter().position(|h| h == g).map_or(0.0, |k| composition.fractions[k]))
+            .collect();
+        let total = fluid.amount(*temperature_k, *pressure_pa, order.volume_m3, &x)?;
+        for (ni, xi) in n.iter_mut().zip(&x) {
+            *ni = xi * total;
+        }
+    }
+    Ok(n)
+}
+
 fn dosing(
     fluid: &Fluid,
     order: &Order,
@@ -342,16 +382,31 @@ fn dosing(
     catalogue: &Catalogue,
 ) -> Result<Dosing, PlanError> {
     let total_mol = total_amount(fluid, order, &setup.x_target)?;
-    let b = DVector::from_iterator(setup.x_target.len(), setup.x_target.iter().map(|x| x * total_mol));
+    let heel_mol = heel_amounts(fluid, order, setup)?;
+    for (i, (&h, &x)) in heel_mol.iter().zip(&setup.x_target).enumerate() {
+        let needed_mol = x * total_mol;
+        if h > needed_mol * (1.0 + 1e-9) + 1e-12 * total_mol {
+            return Err(PlanError::HeelTooRich {
+                id: catalogue.gas(setup.gases[i]).id().to_string(),
+                heel_mol: h,
+                needed_mol,
+            });
+        }
+    }
+    // What the sources must bring: the blend less the heel.
+    let b = DVector::from_iterator(
+        setup.x_target.len(),
+        setup.x_target.iter().zip(&heel_mol).map(|(x, h)| (x * total_mol - h).max(0.0)),
+    );
     let s = sources::nnls(&setup.a, &b);
     let made = &setup.a * &s;
-    let made_total: f64 = made.iter().sum();
+    let made_total: f64 = made.iter().sum::<f64>() + heel_mol.iter().sum::<f64>();
     let unreachable: Vec<Unreachable> = (0..setup.gases.len())
         .filter(|&i| (made[i] - b[i]).abs() > 1e-9 * total_mol)
         .map(|i| Unreachable {
             id: catalogue.gas(setup.gases[i]).id().to_string(),
             target_fraction: setup.x_target[i],
-            closest_fraction: if made_total > 0.0 { made[i] / made_total } else { 0.0 },
+            closest_fraction: if made_total > 0.0 { (made[i] + heel_mol[i]) / made_total } else { 0.0 },
         })
         .collect();
     if !unreachable.is_empty() {
@@ -394,7 +449,7 @@ fn dosing(
         }
     };
     let sequence = sequence.into_iter().filter(|&k| source_mol[k] > 1e-12 * total_mol).collect();
-    Ok(Dosing { total_mol, source_mol, sequence })
+    Ok(Dosing { total_mol, heel_mol, source_mol, sequence })
 }
 
 /// Source composition as a vector over the plan gases.
@@ -410,7 +465,7 @@ fn step_pressures(
     d: &Dosing,
     t_k: f64,
 ) -> Result<Vec<(f64, Vec<f64>)>, ThermoError> {
-    let mut n = vec![0.0; setup.gases.len()];
+    let mut n = d.heel_mol.clone();
     let mut out = Vec::with_capacity(d.sequence.len());
     for &k in &d.sequence {
         let x_src = source_vector(setup, k);
@@ -467,8 +522,18 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     // Steps.
     let pressures = step_pressures(&fluid, order, &setup, &d, t_fill)?;
     let mut steps = Vec::with_capacity(d.sequence.len());
-    let mut scale = order.tare_g.unwrap_or(0.0);
-    let mut previous_pa = 0.0;
+    let heel = if d.heel_mol.iter().any(|n| *n > 0.0) {
+        Some(Heel {
+            mass_g: d.heel_mol.iter().zip(&setup.gases).map(|(n, &g)| n * catalogue.gas(g).molar_mass_g_per_mol).sum(),
+            pressure_at_fill_pa: fluid.pressure_in_cylinder(t_fill, order.volume_m3, &d.heel_mol)?,
+            amounts_mol: d.heel_mol.clone(),
+        })
+    } else {
+        None
+    };
+    // The scale and the gauge start from the heel.
+    let mut scale = order.tare_g.unwrap_or(0.0) + heel.as_ref().map_or(0.0, |h| h.mass_g);
+    let mut previous_pa = heel.as_ref().map_or(0.0, |h| h.pressure_at_fill_pa);
     for (&k, (p_after, n_after)) in d.sequence.iter().zip(pressures) {
         let source = &order.sources[k];
         let add_mass_g = d.source_mol[k] * source.composition.molar_mass(catalogue);
@@ -616,6 +681,29 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         .collect();
 
     let mut notes = Vec::new();
+    if let Before::Evacuated { residual_pa } = order.before {
+        // The residual gas, taken as air (ideal gas at the fill temperature): reported when
+        // it is more than a hundredth of the smallest target share.
+        let residual_share = residual_pa * order.volume_m3 / (R * t_fill) / d.total_mol;
+        let smallest = setup.x_target.iter().copied().filter(|x| *x > 0.0).fold(1.0, f64::min);
+        if residual_share > 0.01 * smallest {
+            notes.push(format!(
+                "the residual gas of the evacuated cylinder ({} mbar, as air) is {} of the fill, more than a \
+                 hundredth of the smallest component: evacuate deeper or count it in the analysis",
+                crate::units::Sig(residual_pa / 100.0, 3),
+                crate::units::fraction_text(residual_share)
+            ));
+        }
+    }
+    if let Some(h) = &heel {
+        notes.push(format!(
+            "the fill starts from a heel of {} mol ({} g) that reads {:.2} bar at the fill temperature: check the \
+             gauge shows it before the first addition",
+            crate::units::Sig(h.amounts_mol.iter().sum(), 4),
+            crate::units::Sig(h.mass_g, 4),
+            bar(h.pressure_at_fill_pa)
+        ));
+    }
     for (k, s) in order.sources.iter().enumerate() {
         if !d.sequence.contains(&k) {
             notes.push(format!("source {} is not needed for this blend", s.name));
@@ -651,6 +739,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         models,
         following,
         premixes: Vec::new(),
+        heel,
         notes,
     };
     if depth < premix::MAX_STAGES {
@@ -669,7 +758,8 @@ fn follow(
     readings_pa: &[f64],
     t_k: f64,
 ) -> Result<Vec<f64>, ThermoError> {
-    let mut n = vec![0.0; setup.gases.len()];
+    // The heel is what the gauge read before the fill, as this model counts it.
+    let mut n = heel_amounts(truth, order, setup)?;
     for (&k, &target) in d.sequence.iter().zip(readings_pa) {
         let x_src = source_vector(setup, k);
         let with = |s: f64| -> Vec<f64> { n.iter().zip(&x_src).map(|(a, x)| a + s * x).collect() };

@@ -131,6 +131,7 @@ pub fn propose(
             sources: vec![pure(gas, catalogue), pure(balance_gas, catalogue)],
             fill_order: Vec::new(),
             notes: String::new(),
+            before: crate::recipe::Before::Evacuated { residual_pa: 0.0 },
             ..order.clone()
         };
         let premix_options = PlanOptions { order: None, ..options.clone() };

@@ -2,7 +2,7 @@
 //! as typed, optional fields left out when empty. Writing the parse of a canonical file
 //! gives the same bytes back, so saving an unchanged recipe changes nothing on disk.
 
-use super::{FillTarget, Recipe, SourceLine};
+use super::{BeforeFill, FillTarget, Recipe, SourceLine};
 
 /// A RON string literal.
 fn q(s: &str) -> String {
@@ -80,6 +80,14 @@ pub fn to_text(r: &Recipe) -> String {
         field("fill_temperature", q(t));
     }
     field("ambient", q(&r.ambient));
+    match &r.before_fill {
+        None => {}
+        Some(BeforeFill::Evacuated(p)) => field("before_fill", format!("Evacuated({})", q(p))),
+        Some(BeforeFill::Heel { mix, pressure, temperature }) => {
+            let t = temperature.as_ref().map(|t| format!(", temperature: {}", q(t))).unwrap_or_default();
+            field("before_fill", format!("Heel(mix: {}, pressure: {}{t})", q(mix), q(pressure)))
+        }
+    }
     if let Some(m) = r.model {
         field("model", m.key().to_string());
     }
@@ -89,8 +97,9 @@ pub fn to_text(r: &Recipe) -> String {
             .iter()
             .map(|s| match s {
                 SourceLine::Pure(id) => format!("        Pure({}),\n", q(id)),
-                SourceLine::Premix { name, mix } => {
-                    format!("        Premix(name: {}, mix: {}),\n", q(name), q(mix))
+                SourceLine::Premix { name, mix, recipe } => {
+                    let link = recipe.as_ref().map(|r| format!(", recipe: {}", q(r))).unwrap_or_default();
+                    format!("        Premix(name: {}, mix: {}{link}),\n", q(name), q(mix))
                 }
             })
             .collect();

@@ -127,6 +127,13 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
             quantity_change("reference temperature", &old.reference_temperature, &new.reference_temperature),
             quantity_change("fill temperature", opt(&old.fill_temperature), opt(&new.fill_temperature)),
             quantity_change("ambient", &old.ambient, &new.ambient),
+            (old.before_fill != new.before_fill).then(|| {
+                format!(
+                    "before the fill: {} → {}",
+                    super::BeforeFill::text(&old.before_fill),
+                    super::BeforeFill::text(&new.before_fill)
+                )
+            }),
         ]
         .into_iter()
         .flatten(),
@@ -140,7 +147,7 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
     }
     let source_name = |s: &SourceLine| match s {
         SourceLine::Pure(id) => id.clone(),
-        SourceLine::Premix { name, mix } => format!("{name} ({mix})"),
+        SourceLine::Premix { name, mix, .. } => format!("{name} ({mix})"),
     };
     for s in &new.sources {
         if !old.sources.contains(s) {

@@ -69,7 +69,73 @@ pub enum SourceLine {
     /// A pure gas, by id.
     Pure(String),
     /// A mixture of known composition (a premix, or a balance gas with its impurities).
-    Premix { name: String, mix: String },
+    /// `recipe` names the library recipe the premix is made by, when it is one of ours.
+    Premix {
+        name: String,
+        mix: String,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        recipe: Option<String>,
+    },
+}
+
+/// What is in the cylinder before the first addition.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum BeforeFill {
+    /// Evacuated to this absolute pressure, e.g. `Evacuated("0.5mbar")`; the residual gas is
+    /// taken as air and only reported, not dosed against.
+    Evacuated(String),
+    /// A heel: gas of a known composition left at a stated absolute (or gauge) pressure,
+    /// read at `temperature` (default: the fill temperature). The plan doses on top of it.
+    Heel {
+        mix: String,
+        pressure: String,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        temperature: Option<String>,
+    },
+}
+
+impl BeforeFill {
+    /// The one-line form the editor shows and reads back: `evacuated`, `evacuated to
+    /// 0.5mbar`, `N2 at 5bar` or `CO=50ppm,N2=balance at 5barg, 20C`.
+    pub fn text(before: &Option<BeforeFill>) -> String {
+        match before {
+            None => "evacuated".into(),
+            Some(BeforeFill::Evacuated(p)) => format!("evacuated to {p}"),
+            Some(BeforeFill::Heel { mix, pressure, temperature: None }) => format!("{mix} at {pressure}"),
+            Some(BeforeFill::Heel { mix, pressure, temperature: Some(t) }) => format!("{mix} at {pressure}, {t}"),
+        }
+    }
+
+    /// Read the one-line form back; the quantities are checked when the recipe resolves.
+    pub fn parse_text(text: &str) -> Result<Option<BeforeFill>, String> {
+        let t = text.trim();
+        let lower = t.to_ascii_lowercase();
+        if t.is_empty() || lower == "evacuated" || lower == "empty" {
+            return Ok(None);
+        }
+        if let Some(rest) = lower.strip_prefix("evacuated") {
+            let rest = rest.trim_start();
+            let p = rest.strip_prefix("to").unwrap_or(rest).trim();
+            let start = t.len() - p.len();
+            return Ok(Some(BeforeFill::Evacuated(t[start..].trim().to_string())));
+        }
+        let Some(at) = lower.rfind(" at ") else {
+            return Err(format!(
+                "{t:?} is not understood; accepted: evacuated, evacuated to 0.5mbar, N2 at 5bar, or \
+                 CO=50ppm,N2=balance at 5barg, 20C"
+            ));
+        };
+        let mix = t[..at].trim().to_string();
+        let rest = t[at + 4..].trim();
+        let (pressure, temperature) = match rest.split_once(',') {
+            Some((p, temp)) => (p.trim().to_string(), Some(temp.trim().to_string()).filter(|s| !s.is_empty())),
+            None => (rest.to_string(), None),
+        };
+        if mix.is_empty() || pressure.is_empty() {
+            return Err("a heel needs a gas and a pressure, e.g. N2 at 5bar".into());
+        }
+        Ok(Some(BeforeFill::Heel { mix, pressure, temperature }))
+    }
 }
 
 /// A recipe file.
@@ -107,6 +173,9 @@ pub struct Recipe {
     /// Ambient pressure for gauge readings; default `1.01325bar`.
     #[serde(default = "default_ambient")]
     pub ambient: String,
+    /// The cylinder before the fill; default: evacuated, nothing left in it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub before_fill: Option<BeforeFill>,
     /// Model; default: gerg where it covers the gases, else pr.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub model: Option<Model>,
@@ -171,6 +240,15 @@ pub enum Fill {
     AmountMol(f64),
 }
 
+/// What is in the cylinder before the first addition, resolved.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Before {
+    /// Evacuated to `residual_pa` (0 when not stated).
+    Evacuated { residual_pa: f64 },
+    /// A heel of `composition` at `pressure_pa` and `temperature_k`.
+    Heel { composition: Composition, pressure_pa: f64, temperature_k: f64 },
+}
+
 /// A recipe read into numbers: everything the plan needs.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Order {
@@ -191,6 +269,7 @@ pub struct Order {
     pub reference_temperature_k: f64,
     pub fill_temperature_k: f64,
     pub ambient_pa: f64,
+    pub before: Before,
     pub model: Option<Model>,
     pub sources: Vec<Source>,
     /// Source names in the fill order given, empty for the default order.
@@ -365,7 +444,7 @@ impl Recipe {
                             pure: true,
                         }
                     }
-                    SourceLine::Premix { name, mix } => {
+                    SourceLine::Premix { name, mix, .. } => {
                         if name.trim().is_empty() {
                             return Err(err(&quoted(mix), "a premix source needs a name".into()));
                         }
@@ -381,6 +460,9 @@ impl Recipe {
             }
             out
         };
+
+        let before = resolve_before(&self.before_fill, catalogue, ambient_pa, test_pressure_pa, fill_temperature_k)
+            .map_err(|(needle, message)| err(&quoted(&needle), message))?;
 
         for name in &self.fill_order {
             if !sources.iter().any(|s| &s.name == name) {
@@ -408,12 +490,59 @@ impl Recipe {
             reference_temperature_k,
             fill_temperature_k,
             ambient_pa,
+            before,
             model: self.model,
             sources,
             fill_order: self.fill_order.clone(),
             notes: self.notes.clone(),
         })
     }
+}
+
+/// Read what is in the cylinder before the fill; an error gives the text to place it at
+/// and the message.
+pub fn resolve_before(
+    before: &Option<BeforeFill>,
+    catalogue: &Catalogue,
+    ambient_pa: f64,
+    test_pressure_pa: f64,
+    fill_temperature_k: f64,
+) -> Result<Before, (String, String)> {
+    Ok(match before {
+        None => Before::Evacuated { residual_pa: 0.0 },
+        Some(BeforeFill::Evacuated(p)) => {
+            let residual_pa = units::parse_pressure(p, ambient_pa)
+                .map_err(|e| (p.clone(), format!("before_fill: evacuated to: {e}")))?;
+            if residual_pa > 0.1 * ambient_pa {
+                return Err((
+                    p.clone(),
+                    format!(
+                        "before_fill: {p:?} is not a vacuum (above 0.1 atm); state what is left as a heel, e.g. \
+                         N2 at 2bar"
+                    ),
+                ));
+            }
+            Before::Evacuated { residual_pa }
+        }
+        Some(BeforeFill::Heel { mix, pressure, temperature }) => {
+            let composition =
+                Composition::from_spec(mix, catalogue).map_err(|e| (mix.clone(), format!("before_fill: heel: {e}")))?;
+            let pressure_pa = units::parse_pressure(pressure, ambient_pa)
+                .map_err(|e| (pressure.clone(), format!("before_fill: heel pressure: {e}")))?;
+            if pressure_pa >= test_pressure_pa {
+                return Err((
+                    pressure.clone(),
+                    format!("before_fill: the heel pressure {pressure:?} is at or above the cylinder's test pressure"),
+                ));
+            }
+            let temperature_k = match temperature {
+                None => fill_temperature_k,
+                Some(t) => units::parse_temperature(t)
+                    .map_err(|e| (t.clone(), format!("before_fill: heel temperature: {e}")))?,
+            };
+            Before::Heel { composition, pressure_pa, temperature_k }
+        }
+    })
 }
 
 /// Tolerance as written: `2%rel` (relative to the amount) or an absolute share (`10ppm`).
@@ -467,6 +596,7 @@ impl Recipe {
             reference_temperature: "15C".into(),
             fill_temperature: None,
             ambient: "1.01325bar".into(),
+            before_fill: None,
             model: None,
             sources: Vec::new(),
             fill_order: Vec::new(),

@@ -135,6 +135,8 @@ pub enum Field {
     ReferenceTemperature,
     FillTemperature,
     Ambient,
+    /// What is in the cylinder before the fill (evacuated, or a heel).
+    BeforeFill,
     Model,
     Source(usize),
     AddSource,
@@ -161,6 +163,7 @@ pub fn fields(r: &Recipe) -> Vec<Field> {
         Field::ReferenceTemperature,
         Field::FillTemperature,
         Field::Ambient,
+        Field::BeforeFill,
         Field::Model,
     ]);
     for i in 0..r.sources.len() {

@@ -245,7 +245,7 @@ fn step_source(doc: &Document, k: usize) -> String {
             .sources
             .iter()
             .find_map(|l| match l {
-                crate::recipe::SourceLine::Premix { name, mix } if *name == s.name => Some(mix.clone()),
+                crate::recipe::SourceLine::Premix { name, mix, .. } if *name == s.name => Some(mix.clone()),
                 _ => None,
             })
             .unwrap_or_else(|| s.name.clone()),
@@ -370,6 +370,14 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
         }
     }
     let k = weighed(doc);
+    if k.is_none() && doc.computed.plan.as_ref().is_ok_and(|p| p.heel.is_some()) {
+        // The record's composition counts what its weighings add; a heel weighed in with the
+        // cylinder would be left out of the certificate.
+        model.status = "no fill record for a cylinder with a heel: the certificate would leave the heel out. \
+                        Evacuate the cylinder and weigh it empty, or fill from the sheet without a record"
+            .into();
+        return;
+    }
     if k.is_some_and(|k| k >= steps) {
         model.status = "every step is weighed already".into();
         return;

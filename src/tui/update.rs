@@ -592,10 +592,12 @@ pub fn field_text(r: &Recipe, f: Field) -> String {
         Field::ReferenceTemperature => r.reference_temperature.clone(),
         Field::FillTemperature => opt(&r.fill_temperature),
         Field::Ambient => r.ambient.clone(),
+        Field::BeforeFill => crate::recipe::BeforeFill::text(&r.before_fill),
         Field::Model => r.model.map_or("default".to_string(), |m| m.key().to_string()),
         Field::Source(i) => match &r.sources[i] {
             SourceLine::Pure(id) => id.clone(),
-            SourceLine::Premix { name, mix } => format!("{name} = {mix}"),
+            SourceLine::Premix { name, mix, recipe: None } => format!("{name} = {mix}"),
+            SourceLine::Premix { name, mix, recipe: Some(r) } => format!("{name} = {mix} @{r}"),
         },
         Field::FillOrder => r.fill_order.join(", "),
         Field::Notes => r.notes.clone(),
@@ -627,6 +629,12 @@ fn set_field(r: &mut Recipe, f: Field, text: &str) {
         Field::ReferenceTemperature => r.reference_temperature = t,
         Field::FillTemperature => r.fill_temperature = opt(&t),
         Field::Ambient => r.ambient = t,
+        // Text that does not read is refused before it gets here (see on_field_typing).
+        Field::BeforeFill => {
+            if let Ok(b) = crate::recipe::BeforeFill::parse_text(&t) {
+                r.before_fill = b
+            }
+        }
         Field::Source(i) => r.sources[i] = parse_source(&t),
         Field::FillOrder => {
             r.fill_order = t.split(',').map(|s| s.trim().to_string()).filter(|s| !s.is_empty()).collect()
@@ -642,7 +650,12 @@ fn parse_source(t: &str) -> SourceLine {
         Some((name, mix))
             if mix.contains('=') || mix.contains(',') || !name.trim().is_empty() && !mix.trim().is_empty() =>
         {
-            SourceLine::Premix { name: name.trim().to_string(), mix: mix.trim().to_string() }
+            // A trailing `@RECIPE` keeps the link to the library recipe that makes the premix.
+            let (mix, recipe) = match mix.rsplit_once('@') {
+                Some((m, r)) if !r.trim().is_empty() => (m, Some(r.trim().to_string())),
+                _ => (mix, None),
+            };
+            SourceLine::Premix { name: name.trim().to_string(), mix: mix.trim().to_string(), recipe }
         }
         _ => SourceLine::Pure(t.trim().to_string()),
     }
@@ -656,7 +669,15 @@ fn on_field_typing(doc: &mut Document, key: Key, ctx: &Context, status: &mut Str
             *status = "edit cancelled".into();
         }
         Key::Enter => {
-            let text = doc.editing.take().map(|i| i.value().to_string()).unwrap_or_default();
+            let text = doc.editing.as_ref().map(|i| i.value().to_string()).unwrap_or_default();
+            if field == Field::BeforeFill {
+                if let Err(why) = crate::recipe::BeforeFill::parse_text(&text) {
+                    // The entry stays open with what was typed, and the message says what reads.
+                    *status = why;
+                    return;
+                }
+            }
+            doc.editing = None;
             edit(doc, ctx, |r| set_field(r, field, &text));
             *status = match &doc.computed.plan {
                 Ok(_) => "recomputed".into(),

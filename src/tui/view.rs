@@ -229,6 +229,7 @@ fn field_label(doc: &Document, f: Field) -> String {
         Field::ReferenceTemperature => "reference temp".into(),
         Field::FillTemperature => "fill temp".into(),
         Field::Ambient => "ambient".into(),
+        Field::BeforeFill => "before the fill".into(),
         Field::Model => "model".into(),
         Field::Source(_) => "  source".into(),
         Field::AddSource => "+ add a source".into(),
@@ -394,6 +395,22 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         ),
         theme.bold(),
     ));
+    if let Some(h) = &p.heel {
+        // What the cylinder holds before the first addition: the readings to see first.
+        lines.push(Line::styled(
+            format!(
+                " {:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}",
+                "",
+                0,
+                "heel",
+                h.mass_g,
+                doc.computed.order.as_ref().ok().and_then(|o| o.tare_g).unwrap_or(0.0) + h.mass_g,
+                d.pf(h.pressure_at_fill_pa),
+                d.pf(h.pressure_at_fill_pa - ambient),
+            ),
+            theme.dim(),
+        ));
+    }
     for (i, s) in p.steps.iter().enumerate() {
         let selected = i == b.selected;
         let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
