@@ -222,7 +222,8 @@ fn small_steps_are_flagged_and_a_premix_is_proposed_with_its_plan() {
     assert!(co.increment_pa < 0.1e5);
     assert_eq!(co.flags, vec![plan::StepFlag::BelowGaugeResolution]);
     assert_eq!(p.premixes.len(), 1);
-    let pm = &p.premixes[0];
+    assert_eq!(p.premixes[0].stages.len(), 1, "1 % CO is made from pure CO in one stage");
+    let pm = p.premixes[0].last();
     assert_eq!(pm.spec, "CO=1%,N2=balance");
     // The premix brings exactly the CO of the step.
     assert!((pm.needed_mol * pm.fraction - co.add_amount_mol).abs() < 1e-15);

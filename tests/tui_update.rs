@@ -671,6 +671,20 @@ fn the_fill_sheet_is_written_for_the_bench_folder() {
     let text = std::fs::read_to_string(&path).unwrap();
     assert!(text.starts_with("FILL SHEET  Flue-gas span"), "{text}");
     assert!(text.contains("STEPS") && text.contains("CAUTION"), "{text}");
+    // And as a PDF for the printer, holding the same stop readings.
+    let pdf = path.with_extension("pdf");
+    let back = std::process::Command::new("pdftotext")
+        .args(["-layout", pdf.to_str().unwrap(), "-"])
+        .output()
+        .expect("pdftotext is needed to read the sheet back (poppler-utils; .ci/run installs it)");
+    let back = String::from_utf8_lossy(&back.stdout);
+    assert!(back.contains("FILL SHEET") && back.contains("Flue-gas span"), "{back}");
+    let stops: Vec<&str> = text.lines().filter(|l| l.trim_start().starts_with("1  CO ")).collect();
+    assert!(!stops.is_empty());
+    for l in stops {
+        let stop = l.split_whitespace().nth(5).unwrap();
+        assert!(back.contains(stop), "{stop} missing from the PDF");
+    }
     // The sheets folder is not mistaken for recipes.
     update::refresh(&mut model, &ctx);
     assert!(model.library.entries.iter().all(|e| e.summary.is_ok()));
@@ -873,4 +887,33 @@ fn the_cylinder_before_the_fill_is_edited_on_one_line_and_the_sheet_starts_from_
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert!(model.status.contains("heel"), "{}", model.status);
     assert!(model.doc.as_ref().unwrap().bench.record.is_none());
+}
+
+#[test]
+fn a_proposed_premix_is_shown_and_accepted_as_library_recipes() {
+    use fillwright::recipe::SourceLine;
+    let (mut model, mut ctx, _dir) = setup("premix-accept");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
+    assert!(matches!(model.overlay, Overlay::Premixes { selected: 0 }));
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("dose it from CO 1 % in N2") && screen.contains("a  accept"), "{screen}");
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    assert!(model.status.contains("accepted") && model.status.contains("saved premix-CO-1%-in-N2"), "{}", model.status);
+    assert!(ctx.library.open("premix-CO-1%-in-N2").is_ok());
+    let doc = model.doc.as_ref().unwrap();
+    assert!(doc.recipe.sources.iter().any(|s| matches!(s,
+        SourceLine::Premix { recipe: Some(r), .. } if r == "premix-CO-1%-in-N2")));
+    assert!(doc.dirty(), "the blend's change waits for s");
+    let plan = doc.computed.plan.as_ref().unwrap();
+    assert!(plan.premixes.is_empty(), "the premix step is dosable now");
+    // Undone and accepted again, the stage already in the library is linked, not copied.
+    keys(&mut model, &mut ctx, &[Key::Char('2'), Key::Char('u'), Key::Char('3'), Key::Char('m'), Key::Char('a')]);
+    assert!(model.status.contains("linked premix-CO-1%-in-N2"), "{}", model.status);
+    // A recipe with nothing too small says so.
+    let (mut model, mut ctx, _dir) = setup("premix-none");
+    open(&mut model, &mut ctx, "laser-co2-he-n2");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
+    assert!(matches!(model.overlay, Overlay::None));
+    assert!(model.status.contains("no step needs a premix"), "{}", model.status);
 }

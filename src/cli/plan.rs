@@ -44,6 +44,9 @@ pub struct PlanArgs {
     /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else the config folder's library/).
     #[arg(long, value_name = "DIR")]
     pub library: Option<std::path::PathBuf>,
+    /// Also write the fill sheet as a printable PDF (A4) to FILE.
+    #[arg(long, value_name = "FILE")]
+    pub pdf: Option<std::path::PathBuf>,
     #[command(flatten)]
     pub common: Common,
 }
@@ -105,11 +108,20 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
             print_json(&v)
         }
         Format::Csv => print!("{}", steps_csv(&plan)),
-        Format::Text => {
-            if rating.severity == Severity::Stop {
-                print!("{}", stop_banner(&rating.message));
-            }
-            print!("{}", fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown))
+        Format::Text => {}
+    }
+    if args.common.format == Format::Text || args.pdf.is_some() {
+        let mut text = String::new();
+        if rating.severity == Severity::Stop {
+            text.push_str(&stop_banner(&rating.message));
+        }
+        text.push_str(&fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown));
+        if let Some(path) = &args.pdf {
+            let bytes = crate::certificate::pdf::render(&text, &format!("Fill sheet {}", order.name));
+            crate::library::atomic::write(path, &bytes).map_err(|e| Refused(format!("{}: {e}", path.display())))?;
+        }
+        if args.common.format == Format::Text {
+            print!("{text}");
         }
     }
     if rating.severity == Severity::Stop {
@@ -322,16 +334,22 @@ pub fn plan_json(plan: &Plan, order: &Order, catalogue: &Catalogue) -> Value {
         "premixes": plan.premixes.iter().map(|p| json!({
             "step": p.step + 1,
             "gas": id(catalogue, p.gas),
-            "mix": p.spec,
-            "name": p.name,
-            "mole_fraction": p.fraction,
-            "needed_mol": p.needed_mol,
-            "needed_g": p.needed_g,
-            "fill_pressure_bar": bar(p.fill_pressure_pa),
-            "plan": match &p.plan {
-                Ok(inner) => plan_json(inner, order, catalogue),
-                Err(e) => json!({"error": e}),
-            },
+            "mix": p.last().spec,
+            "name": p.last().name,
+            "complete": p.complete(),
+            "stages": p.stages.iter().map(|st| json!({
+                "name": st.name,
+                "recipe_name": st.recipe_name,
+                "mix": st.spec,
+                "mole_fraction": st.fraction,
+                "needed_mol": st.needed_mol,
+                "needed_g": st.needed_g,
+                "fill_pressure_bar": bar(st.fill_pressure_pa),
+                "plan": match &st.plan {
+                    Ok(inner) => plan_json(inner, &st.order, catalogue),
+                    Err(e) => json!({"error": e}),
+                },
+            })).collect::<Vec<_>>(),
         })).collect::<Vec<_>>(),
         "heel": plan.heel.as_ref().map(|h| json!({
             "amount_mol": h.amounts_mol.iter().sum::<f64>(),
@@ -476,11 +494,11 @@ pub fn fill_sheet(
             })
             .collect();
         line(format!(
-            "{:>2}  {:<14}{:>9}{:>9}{:>11.1}{:>10}{:>10}{:>8} {}",
+            "{:>2}  {:<14}{}{}{:>11.1}{:>10}{:>10}{:>8} {}",
             i + 1,
             clip(&s.source, 14),
-            Sig(s.add_amount_mol, 4).to_string(),
-            Sig(s.add_mass_g, 4).to_string(),
+            units::cell(s.add_amount_mol, 4, 9),
+            units::cell(s.add_mass_g, 4, 9),
             s.scale_reading_g,
             d.pf(s.pressure_after_pa),
             d.pf(s.pressure_after_pa - ambient_pa),
@@ -630,38 +648,8 @@ pub fn fill_sheet(
     }
 
     for p in &plan.premixes {
-        let step = &plan.steps[p.step];
-        line(format!("PREMIX PROPOSED for step {} ({})", p.step + 1, step.source));
-        line(format!("  Dose {} from a premix {} ({}) instead:", id(catalogue, p.gas), p.name, p.spec));
-        line(format!("  {} mol ({} g) of premix are needed.", Sig(p.needed_mol, 4), Sig(p.needed_g, 4)));
-        line(format!(
-            "  Make it in a {} L cylinder filled to {} {}:",
-            Sig(litres(order.volume_m3), 4),
-            Sig(d.p(p.fill_pressure_pa), 4),
-            d.pu()
-        ));
-        match &p.plan {
-            Ok(inner) => {
-                for (i, s) in inner.steps.iter().enumerate() {
-                    line(format!(
-                        "    {}  {:<14} add {} mol ({} g), stop at {} {}",
-                        i + 1,
-                        clip(&s.source, 14),
-                        Sig(s.add_amount_mol, 4),
-                        Sig(s.add_mass_g, 4),
-                        d.pf(s.pressure_after_pa),
-                        d.pu(),
-                    ));
-                    // On its own line, to stay within 80 columns.
-                    if s.flags.iter().any(|f| f.too_small()) {
-                        line("       too small to dose directly: it needs a premix itself".into());
-                    }
-                }
-                for q in &inner.premixes {
-                    line(format!("    second stage: {} ({})", q.name, q.spec));
-                }
-            }
-            Err(e) => line(format!("    no plan for it: {e}")),
+        for text in crate::plan::premix::describe(p, &plan.steps[p.step].source, order.volume_m3, d) {
+            line(text);
         }
         line(String::new());
     }

@@ -742,8 +742,10 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         heel,
         notes,
     };
-    if depth < premix::MAX_STAGES {
-        plan.premixes = premix::propose(&plan, order, catalogue, options, depth, plan_at_depth);
+    // A premix stage is planned at a depth above 0 and proposes nothing itself: the cascade
+    // of the blend's own proposal holds every stage.
+    if depth == 0 {
+        plan.premixes = premix::propose(&plan, order, catalogue, options, plan_at_depth);
     }
     Ok(plan)
 }

@@ -2,53 +2,98 @@
 //!
 //! A step whose pressure increment or mass is below what the gauge or scale resolves is
 //! dosed instead from a premix of that gas in the balance gas. The premix strength is
-//! chosen so that the premix addition is at least 5 % of the final fill (a step the gauge
-//! and scale read well), rounded down to 1, 2 or 5 × 10^k: common practice, no source.
+//! chosen so that the premix addition is at least 5 % of the fill it goes into (a step the
+//! gauge and scale read well), rounded down to 1, 2 or 5 × 10^k: common practice, no
+//! source. When the pure gas is still too little to dose into that premix, the premix is
+//! made from a stronger one, and so on: a cascade of stages, each planned from the one
+//! before, the first from the pure gas, until every addition can be dosed.
 
 use super::{Plan, PlanError, PlanOptions};
 use crate::gas::Catalogue;
 use crate::mixture::{Composition, FractionUnit, Share};
-use crate::recipe::{Fill, Order, Source, Target};
+use crate::recipe::{Before, Fill, Order, Source, Target};
 
-/// Premix of a premix at most: two dilution stages.
-pub const MAX_STAGES: usize = 2;
+/// At most this many premix stages for one gas (1 ppb from a pure gas needs four).
+pub const MAX_STAGES: usize = 4;
 
-/// Smallest share of the final fill that the premix addition should make up.
+/// Smallest share of the fill that a premix addition should make up.
 const MIN_PREMIX_SHARE: f64 = 0.05;
 
-/// A premix the tool proposes.
+/// One premix of a cascade.
+#[derive(Debug, Clone)]
+pub struct Stage {
+    /// Mole fraction of the gas in this premix.
+    pub fraction: f64,
+    /// The premix as written, e.g. `CO=1%,N2=balance`.
+    pub spec: String,
+    /// A name for it, e.g. `CO 1 % in N2`.
+    pub name: String,
+    /// A library name for its recipe, e.g. `premix-CO-1%-in-N2`.
+    pub recipe_name: String,
+    /// Amount of this premix that the next stage (or the blend) takes, mol and g.
+    pub needed_mol: f64,
+    pub needed_g: f64,
+    /// Fill pressure of the premix cylinder (the blend's cylinder type), Pa at the
+    /// reference temperature.
+    pub fill_pressure_pa: f64,
+    /// The order that makes it: from the stage before, or from the pure gas.
+    pub order: Order,
+    /// Its plan.
+    pub plan: Result<Box<Plan>, String>,
+}
+
+impl Stage {
+    /// Whether every addition of this stage can be dosed at the bench's resolutions.
+    pub fn dosable(&self) -> bool {
+        self.plan.as_ref().is_ok_and(|p| !p.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())))
+    }
+
+    /// Whether one premix cylinder holds what the next stage (or the blend) takes.
+    pub fn enough(&self) -> bool {
+        self.plan.as_ref().is_ok_and(|p| self.needed_mol <= p.totals.amount_mol)
+    }
+}
+
+/// A premix cascade the tool proposes for one step.
 #[derive(Debug, Clone)]
 pub struct Proposal {
     /// Index of the step it replaces.
     pub step: usize,
     /// Catalogue index of the gas it carries.
     pub gas: usize,
-    /// Mole fraction of that gas in the premix.
-    pub fraction: f64,
-    /// The premix as written, e.g. `CO=1%,N2=balance`.
-    pub spec: String,
-    /// A name for it, e.g. `CO 1 % in N2`.
-    pub name: String,
-    /// Premix needed for this blend, mol and g.
-    pub needed_mol: f64,
-    pub needed_g: f64,
-    /// Fill pressure of the premix cylinder (same cylinder type), Pa at the reference temperature.
-    pub fill_pressure_pa: f64,
-    /// The plan to make the premix.
-    pub plan: Result<Box<Plan>, String>,
+    /// The stages, the one made from the pure gas first; the last is dosed into the blend.
+    pub stages: Vec<Stage>,
+}
+
+impl Proposal {
+    /// The premix dosed into the blend.
+    pub fn last(&self) -> &Stage {
+        // A proposal is only made with at least one stage.
+        &self.stages[self.stages.len() - 1]
+    }
+
+    /// Every stage plans and can be dosed, and each cylinder holds what the next takes.
+    pub fn complete(&self) -> bool {
+        self.stages.iter().all(|s| s.dosable() && s.enough())
+    }
 }
 
 /// Largest of 1, 2, 5 × 10^k not above `x`.
 pub fn round_down_125(x: f64) -> f64 {
     let k = x.log10().floor();
     let base = 10f64.powf(k);
-    let m = x / base;
-    let step = if m >= 5.0 {
-        5.0
+    // 2e-5 / 1e-5 is 1.9999999999999998 in floating point: a hair of slack keeps it 2.
+    let m = x / base * (1.0 + 1e-12);
+    let (step, base) = if m >= 10.0 {
+        (1.0, base * 10.0)
+    } else if m >= 5.0 {
+        (5.0, base)
     } else if m >= 2.0 {
-        2.0
+        (2.0, base)
+    } else if m >= 1.0 {
+        (1.0, base)
     } else {
-        1.0
+        (5.0, base / 10.0)
     };
     step * base
 }
@@ -68,13 +113,13 @@ pub fn share_of(fraction: f64) -> Share {
 
 type Planner = fn(&Order, &Catalogue, &PlanOptions, usize) -> Result<Plan, PlanError>;
 
-/// Proposals for every flagged step that doses a pure, non-balance gas.
+/// Proposals for every flagged step that doses a pure, non-balance gas. `planner` plans a
+/// stage without proposing premixes of its own (the cascade is made here).
 pub fn propose(
     plan: &Plan,
     order: &Order,
     catalogue: &Catalogue,
     options: &PlanOptions,
-    depth: usize,
     planner: Planner,
 ) -> Vec<Proposal> {
     let balance_gas = match order.balance {
@@ -86,7 +131,6 @@ pub fn propose(
             order.composition.gases[i]
         }
     };
-    let balance_id = catalogue.gas(balance_gas).id().to_string();
     let mut out = Vec::new();
     for (index, step) in plan.steps.iter().enumerate() {
         if !step.flags.iter().any(|f| f.too_small()) {
@@ -103,43 +147,244 @@ pub fn propose(
         if !(x > 0.0) {
             continue;
         }
-        let fraction = round_down_125(x / MIN_PREMIX_SHARE);
-        if fraction >= 0.5 {
+        let fill_pressure_pa = plan.totals.pressure_pa.min(order.working_pressure_pa);
+        let stage_options = PlanOptions { order: None, ..options.clone() };
+        let stage_order = |fraction: f64, from: Option<&Stage>| -> Order {
+            let share = share_of(fraction);
+            let premix = Composition { gases: vec![gas, balance_gas], fractions: vec![fraction, 1.0 - fraction] };
+            let first = match from {
+                None => pure(gas, catalogue),
+                Some(s) => Source {
+                    name: s.name.clone(),
+                    composition: Composition {
+                        gases: vec![gas, balance_gas],
+                        fractions: vec![s.fraction, 1.0 - s.fraction],
+                    },
+                    pure: false,
+                },
+            };
+            Order {
+                name: stage_name(gas, fraction, balance_gas, catalogue),
+                description: format!("premix for {}", order.name),
+                order: order.order.clone(),
+                targets: vec![
+                    Target { gas, share, tolerance: None },
+                    Target { gas: balance_gas, share: Share::Balance, tolerance: None },
+                ],
+                balance: Some(1),
+                composition: premix,
+                fill: Fill::PressurePa(fill_pressure_pa),
+                tare_g: None,
+                serial: None,
+                sources: vec![first, pure(balance_gas, catalogue)],
+                fill_order: Vec::new(),
+                notes: String::new(),
+                before: Before::Evacuated { residual_pa: 0.0 },
+                ..order.clone()
+            }
+        };
+        // The strengths, weakest first: each next one until the pure gas can be dosed.
+        let mut fractions = Vec::new();
+        let mut need = x;
+        while fractions.len() < MAX_STAGES {
+            let f = round_down_125(need / MIN_PREMIX_SHARE);
+            if f >= 0.5 || fractions.last().is_some_and(|l| f <= *l) {
+                break;
+            }
+            fractions.push(f);
+            let from_pure = planner(&stage_order(f, None), catalogue, &stage_options, MAX_STAGES);
+            let dosable = from_pure.as_ref().is_ok_and(|p| {
+                p.steps.iter().all(|s| s.source != catalogue.gas(gas).id() || !s.flags.iter().any(|f| f.too_small()))
+            });
+            if dosable || from_pure.is_err() {
+                break;
+            }
+            need = f;
+        }
+        if fractions.is_empty() {
             continue;
         }
-        let id = catalogue.gas(gas).id().to_string();
-        let share = share_of(fraction);
-        let spec = format!("{id}={share},{balance_id}=balance");
-        let name = format!("{id} {} in {balance_id}", share_text(&share));
-        let needed_mol = step.add_amount_mol / fraction;
-        let premix = Composition { gases: vec![gas, balance_gas], fractions: vec![fraction, 1.0 - fraction] };
-        let needed_g = needed_mol * premix.molar_mass(catalogue);
-        let fill_pressure_pa = plan.totals.pressure_pa.min(order.working_pressure_pa);
-        let premix_order = Order {
-            name: name.clone(),
-            description: format!("premix for {}", order.name),
-            order: order.order.clone(),
-            targets: vec![
-                Target { gas, share, tolerance: None },
-                Target { gas: balance_gas, share: Share::Balance, tolerance: None },
-            ],
-            balance: Some(1),
-            composition: premix.clone(),
-            fill: Fill::PressurePa(fill_pressure_pa),
-            tare_g: None,
-            serial: None,
-            sources: vec![pure(gas, catalogue), pure(balance_gas, catalogue)],
-            fill_order: Vec::new(),
-            notes: String::new(),
-            before: crate::recipe::Before::Evacuated { residual_pa: 0.0 },
-            ..order.clone()
-        };
-        let premix_options = PlanOptions { order: None, ..options.clone() };
-        let plan =
-            planner(&premix_order, catalogue, &premix_options, depth + 1).map(Box::new).map_err(|e| e.to_string());
-        out.push(Proposal { step: index, gas, fraction, spec, name, needed_mol, needed_g, fill_pressure_pa, plan });
+        // Plan the stages strongest first (from the pure gas), each from the one before.
+        let mut stages: Vec<Stage> = Vec::new();
+        for &f in fractions.iter().rev() {
+            let o = stage_order(f, stages.last());
+            let plan = planner(&o, catalogue, &stage_options, MAX_STAGES).map(Box::new).map_err(|e| e.to_string());
+            stages.push(Stage {
+                fraction: f,
+                spec: format!(
+                    "{}={},{}=balance",
+                    catalogue.gas(gas).id(),
+                    share_of(f),
+                    catalogue.gas(balance_gas).id()
+                ),
+                name: o.name.clone(),
+                recipe_name: recipe_name(gas, f, balance_gas, catalogue),
+                needed_mol: 0.0,
+                needed_g: 0.0,
+                fill_pressure_pa,
+                order: o,
+                plan,
+            });
+        }
+        // What each stage gives the next: the blend's step, then each stage's premix step.
+        let last = stages.len() - 1;
+        let mut needed = step.add_amount_mol / stages[last].fraction;
+        for k in (0..stages.len()).rev() {
+            let f = stages[k].fraction;
+            let molar =
+                Composition { gases: vec![gas, balance_gas], fractions: vec![f, 1.0 - f] }.molar_mass(catalogue);
+            stages[k].needed_mol = needed;
+            stages[k].needed_g = needed * molar;
+            if k > 0 {
+                let from = &stages[k - 1].name;
+                needed = stages[k]
+                    .plan
+                    .as_ref()
+                    .ok()
+                    .and_then(|p| p.steps.iter().find(|s| &s.source == from))
+                    .map_or(0.0, |s| s.add_amount_mol);
+            }
+        }
+        out.push(Proposal { step: index, gas, stages });
     }
     out
+}
+
+/// What accepting a proposal makes: a recipe per stage (the one from the pure gas first),
+/// each taking the stage before as a linked premix source, and the blend's recipe with the
+/// last stage as the source of the gas in place of the pure gas.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Accepted {
+    pub stages: Vec<crate::recipe::Recipe>,
+    pub blend: crate::recipe::Recipe,
+}
+
+/// Turn a proposal into library recipes. `blend` is the recipe the plan was made from.
+pub fn accept(proposal: &Proposal, blend: &crate::recipe::Recipe, catalogue: &Catalogue) -> Accepted {
+    use crate::recipe::{ComponentLine, FillTarget, Recipe, SourceLine};
+    let gas_id = catalogue.gas(proposal.gas).id().to_string();
+    let mut stages: Vec<Recipe> = Vec::new();
+    for (k, st) in proposal.stages.iter().enumerate() {
+        let balance_id = catalogue.gas(st.order.targets[1].gas).id().to_string();
+        let sources = match k {
+            0 => Vec::new(),
+            _ => {
+                let from = &proposal.stages[k - 1];
+                vec![
+                    SourceLine::Premix {
+                        name: from.name.clone(),
+                        mix: from.spec.clone(),
+                        recipe: Some(from.recipe_name.clone()),
+                    },
+                    SourceLine::Pure(balance_id.clone()),
+                ]
+            }
+        };
+        let bar = crate::units::bar(st.fill_pressure_pa);
+        stages.push(Recipe {
+            name: st.recipe_name.clone(),
+            description: format!("{}: premix stage {} of {} for {}", st.name, k + 1, proposal.stages.len(), blend.name),
+            order: blend.order.clone(),
+            components: vec![
+                ComponentLine { gas: gas_id.clone(), amount: share_of(st.fraction).to_string(), tolerance: None },
+                ComponentLine { gas: balance_id, amount: "balance".into(), tolerance: None },
+            ],
+            cylinder: crate::recipe::CylinderLine { tare: None, serial: None, ..blend.cylinder.clone() },
+            fill: FillTarget::Pressure(format!("{}bar", (bar * 1e3).round() / 1e3)),
+            sources,
+            fill_order: Vec::new(),
+            before_fill: None,
+            notes: String::new(),
+            revision: 0,
+            saved: None,
+            saved_by: None,
+            change_note: None,
+            ..blend.clone()
+        });
+    }
+    let last = proposal.last();
+    let mut recipe = blend.clone();
+    if recipe.sources.is_empty() {
+        recipe.sources = recipe.components.iter().map(|c| SourceLine::Pure(c.gas.clone())).collect();
+    }
+    let premix =
+        SourceLine::Premix { name: last.name.clone(), mix: last.spec.clone(), recipe: Some(last.recipe_name.clone()) };
+    let is_gas = |id: &str| catalogue.find(id).is_ok_and(|g| g == proposal.gas);
+    match recipe.sources.iter().position(|s| matches!(s, SourceLine::Pure(id) if is_gas(id))) {
+        Some(i) => recipe.sources[i] = premix,
+        None => recipe.sources.push(premix),
+    }
+    for name in recipe.fill_order.iter_mut() {
+        if is_gas(name) {
+            *name = last.name.clone();
+        }
+    }
+    Accepted { stages, blend: recipe }
+}
+
+/// The proposal as lines of at most 80 columns, for the sheet and the screen: every stage
+/// with its steps and what it gives the next.
+pub fn describe(p: &Proposal, step_source: &str, volume_m3: f64, d: &crate::units::Shown) -> Vec<String> {
+    use crate::ron_format::clip;
+    use crate::units::Sig;
+    let mut out = Vec::new();
+    let last = p.last();
+    out.push(format!("PREMIX PROPOSED for step {} ({}): dose it from {} instead", p.step + 1, step_source, last.name));
+    out.push(match p.stages.len() {
+        1 => "  made from the pure gas:".into(),
+        n => format!("  made in {n} stages, each from the one before, the first from the pure gas:"),
+    });
+    for (k, st) in p.stages.iter().enumerate() {
+        let label = char::from(b'A' + k as u8);
+        out.push(format!("  {label}  {} ({})", st.name, st.spec));
+        out.push(format!(
+            "     {} L to {} {}; recipe name {}",
+            Sig(volume_m3 * 1e3, 4),
+            Sig(d.p(st.fill_pressure_pa), 4),
+            d.pu(),
+            clip(&st.recipe_name, 36)
+        ));
+        match &st.plan {
+            Ok(inner) => {
+                for (i, s) in inner.steps.iter().enumerate() {
+                    let mark = if s.flags.iter().any(|f| f.too_small()) { " !" } else { "" };
+                    out.push(format!(
+                        "     {}  {:<18} add {} mol ({} g), stop at {} {}{mark}",
+                        i + 1,
+                        clip(&s.source, 18),
+                        Sig(s.add_amount_mol, 4),
+                        Sig(s.add_mass_g, 4),
+                        d.pf(s.pressure_after_pa),
+                        d.pu(),
+                    ));
+                }
+            }
+            Err(e) => out.push(format!("     no plan for it: {}", clip(e, 60))),
+        }
+        let into = if k + 1 == p.stages.len() {
+            format!("the blend (step {})", p.step + 1)
+        } else {
+            format!("stage {}", char::from(b'B' + k as u8))
+        };
+        out.push(format!("     {} mol ({} g) of it go into {into}", Sig(st.needed_mol, 4), Sig(st.needed_g, 4)));
+        if !st.enough() && st.plan.is_ok() {
+            out.push("     ! one cylinder of it does not hold that much: fill it larger".into());
+        }
+    }
+    if p.stages.iter().any(|s| !s.dosable()) {
+        out.push(format!("  ! a stage is still below the resolutions after {MAX_STAGES} stages: a finer"));
+        out.push("    gauge or scale, or a bought premix, is needed".into());
+    }
+    out
+}
+
+fn stage_name(gas: usize, fraction: f64, balance: usize, catalogue: &Catalogue) -> String {
+    format!("{} {} in {}", catalogue.gas(gas).id(), share_text(&share_of(fraction)), catalogue.gas(balance).id())
+}
+
+/// The library name of a stage's recipe: `premix-CO-1%-in-N2`.
+fn recipe_name(gas: usize, fraction: f64, balance: usize, catalogue: &Catalogue) -> String {
+    format!("premix-{}-{}-in-{}", catalogue.gas(gas).id(), share_of(fraction), catalogue.gas(balance).id())
 }
 
 fn pure(gas: usize, catalogue: &Catalogue) -> Source {
@@ -165,6 +410,10 @@ mod tests {
     #[test]
     fn rounding_to_1_2_5() {
         assert_eq!(round_down_125(0.01), 0.01);
+        // Exact decades and steps stay themselves despite floating-point quotients.
+        assert!((round_down_125(2e-5) - 2e-5).abs() < 1e-20);
+        assert!((round_down_125(5e-4) - 5e-4).abs() < 1e-19);
+        assert!((round_down_125(1e-3) - 1e-3).abs() < 1e-18);
         assert!((round_down_125(0.0137) - 0.01).abs() < 1e-18);
         assert!((round_down_125(0.037) - 0.02).abs() < 1e-18);
         assert!((round_down_125(0.09) - 0.05).abs() < 1e-18);

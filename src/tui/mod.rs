@@ -8,6 +8,7 @@
 pub mod drafts;
 pub mod model;
 pub mod picker;
+pub mod premixes;
 pub mod scenes;
 pub mod settings_editor;
 pub mod sheet;

@@ -83,6 +83,10 @@ pub enum Overlay {
         changes: Vec<String>,
         base: Option<u32>,
     },
+    /// The premix cascades the plan proposes, and the one shown.
+    Premixes {
+        selected: usize,
+    },
     /// Drafts left by a session that ended with unsaved edits.
     Drafts {
         drafts: Vec<super::drafts::DraftEntry>,

@@ -88,12 +88,18 @@ pub fn export(model: &mut Model, ctx: &Context) {
         text.push_str("UNSAVED EDITS: this sheet is of the recipe as edited, not of a saved revision.\n\n");
     }
     text.push_str(&crate::cli::plan::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));
+    // The text for the bench folder's screen, the PDF for its printer (the certificate's
+    // machinery: Courier on A4, nothing embedded).
+    let title = format!("Fill sheet {} rev {}", doc.name, doc.recipe.revision);
+    let pdf = crate::certificate::pdf::render(&text, &title);
     let written = ctx.library.own_dir(&["sheets"]).map_err(|e| e.to_string()).and_then(|dir| {
         let path = dir.join(format!("{}-rev{}.txt", doc.name, doc.recipe.revision));
-        crate::library::atomic::write(&path, text.as_bytes()).map(|()| path).map_err(|e| e.to_string())
+        crate::library::atomic::write(&path, text.as_bytes()).map_err(|e| e.to_string())?;
+        crate::library::atomic::write(&path.with_extension("pdf"), &pdf).map_err(|e| e.to_string())?;
+        Ok(path)
     });
     model.status = match written {
-        Ok(path) => format!("fill sheet written to {}", path.display()),
+        Ok(path) => format!("fill sheet written to {} and .pdf", path.display()),
         Err(e) => format!("the fill sheet was not written: {e}"),
     };
 }

@@ -209,7 +209,7 @@ pub fn open(model: &mut Model, ctx: &Context, name: &str) {
 }
 
 /// Change the recipe, keeping the previous state for undo, and recompute.
-fn edit(doc: &mut Document, ctx: &Context, change: impl FnOnce(&mut Recipe)) {
+pub(crate) fn edit(doc: &mut Document, ctx: &Context, change: impl FnOnce(&mut Recipe)) {
     let before = doc.recipe.clone();
     change(&mut doc.recipe);
     if doc.recipe != before {
@@ -301,6 +301,7 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
             View::Library => on_library_key(model, key, ctx),
             View::Editor => on_editor_key(model, key, ctx),
             View::Sheet if key == Key::Char('p') => super::sheet::export(model, ctx),
+            View::Sheet if key == Key::Char('m') => super::premixes::open(model),
             View::Sheet => super::sheet::on_key(model, key),
             View::Checks => {
                 // Move in the order shown (worst first), remember the check itself.
@@ -731,6 +732,7 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 model.status = "nothing deleted".into();
             }
         }
+        Overlay::Premixes { selected } => super::premixes::on_key(model, ctx, key, selected),
         Overlay::Trash { entries, mut selected } => match key {
             Key::Up | Key::Char('k') => {
                 selected = selected.saturating_sub(1);

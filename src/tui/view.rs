@@ -115,7 +115,7 @@ fn keys_hint(model: &Model) -> &'static str {
             "? help · Enter edit · s save · q quit · a add gas · b balance · g change gas · x remove · u undo · Tab view"
         }
         (Overlay::None, View::Sheet) => {
-            "? help · Space done · r reading · t temp · w weigh · l source · p print · ↑↓ step"
+            "? help · Space done · r reading · t temp · w weigh · m premix · l source · p print · ↑↓ step"
         }
         (Overlay::None, View::Checks) => "? help · ↑↓ choose a check · Tab next view · Esc library",
         (Overlay::None, _) => "? help · Tab next view · s save · Esc library · q quit",
@@ -478,7 +478,7 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     }
     if p.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())) {
         lines.push(Line::styled(
-            "! below the gauge or scale resolution: a premix is proposed on the sheet",
+            "! below the gauge or scale resolution: m shows the premix proposed",
             theme.fg(Color::Yellow),
         ));
     }
@@ -776,6 +776,8 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "w           type the scale reading: before the fill, then",
             "            after each step (starts and writes the fill record)",
             "l           the source of the next addition: @NAME or analysis",
+            "m           the premixes proposed for steps too small to dose;",
+            "            a accepts one: its stages become library recipes",
             "p           write the sheet as text to sheets/ in the library",
             "every entry is saved in records/ at once; reopening the",
             "recipe continues the fill; fillwright certify ID prints",
@@ -819,6 +821,18 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Line::raw("y  delete (recoverable)     any other key: keep"),
             ];
             boxed(frame, centered(area, 56, 4), "Delete", lines);
+        }
+        Overlay::Premixes { selected } => {
+            let mut lines: Vec<Line> = super::premixes::lines(model, *selected).into_iter().map(Line::raw).collect();
+            for hint in [
+                "a  accept: each stage becomes a library recipe,",
+                "   the blend takes the last as its source · Esc close",
+            ] {
+                lines.push(Line::styled(hint, theme.dim()));
+            }
+            let h = (lines.len() as u16 + 2).min(area.height);
+            let w = area.width.min(84);
+            boxed(frame, centered(area, w, h), "Premixes", lines);
         }
         Overlay::Trash { entries, selected } => {
             let mut lines: Vec<Line> = entries

@@ -1,0 +1,100 @@
+//! The premix cascade on the screen: `m` on the Fill sheet shows what the plan proposes for
+//! additions too small to dose, and `a` accepts it: each stage becomes a recipe of its own
+//! in the library (or links to the one already there), and the open blend takes the last
+//! stage as the source of that gas. The blend's change is an edit like any other: undone
+//! with `u`, written with `s`.
+
+use super::model::{Model, Overlay};
+use super::update::{edit, refresh, Context, Key};
+use crate::library::LibraryError;
+use crate::plan::premix;
+
+/// Open the overlay, or say that nothing needs a premix.
+pub fn open(model: &mut Model) {
+    let Some(doc) = model.doc.as_ref() else { return };
+    match &doc.computed.plan {
+        Ok(p) if !p.premixes.is_empty() => model.overlay = Overlay::Premixes { selected: 0 },
+        Ok(_) => model.status = "no step needs a premix: every addition can be dosed at the bench's resolutions".into(),
+        Err(_) => model.status = "no plan yet, so no premix to propose".into(),
+    }
+}
+
+/// The text of the selected proposal, lines of at most 80 columns.
+pub fn lines(model: &Model, selected: usize) -> Vec<String> {
+    let Some(doc) = model.doc.as_ref() else { return Vec::new() };
+    let Ok(plan) = &doc.computed.plan else { return Vec::new() };
+    let Some(p) = plan.premixes.get(selected) else { return Vec::new() };
+    let mut out = premix::describe(p, &plan.steps[p.step].source, plan.volume_m3, &model.shown);
+    if plan.premixes.len() > 1 {
+        out.insert(0, format!("proposal {} of {} (↑↓ for the others)", selected + 1, plan.premixes.len()));
+    }
+    out
+}
+
+pub fn on_key(model: &mut Model, ctx: &Context, key: Key, selected: usize) {
+    let count = model.doc.as_ref().and_then(|d| d.computed.plan.as_ref().ok()).map_or(0, |p| p.premixes.len());
+    match key {
+        Key::Up | Key::Char('k') => model.overlay = Overlay::Premixes { selected: selected.saturating_sub(1) },
+        Key::Down | Key::Char('j') => {
+            model.overlay = Overlay::Premixes { selected: (selected + 1).min(count.saturating_sub(1)) }
+        }
+        Key::Char('a') => accept(model, ctx, selected),
+        Key::Esc | Key::Char('q') => {}
+        _ => model.overlay = Overlay::Premixes { selected },
+    }
+}
+
+/// Save every stage as a library recipe (or link the one there, if it makes the same
+/// premix) and make the open blend take the last stage as its source.
+fn accept(model: &mut Model, ctx: &Context, selected: usize) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let Some(proposal) = doc.computed.plan.as_ref().ok().and_then(|p| p.premixes.get(selected)).cloned() else {
+        return;
+    };
+    if !proposal.complete() {
+        model.status = "this premix cascade cannot be dosed as it stands (see the marks); nothing was accepted".into();
+        model.overlay = Overlay::Premixes { selected };
+        return;
+    }
+    let accepted = premix::accept(&proposal, &doc.recipe, &ctx.catalogue);
+    let now = (ctx.now)();
+    let mut made = Vec::new();
+    let mut linked = Vec::new();
+    for r in &accepted.stages {
+        match ctx.library.open(&r.name) {
+            Ok(there) if there.recipe.components == r.components && there.recipe.sources == r.sources => {
+                linked.push(r.name.clone())
+            }
+            Ok(_) => {
+                model.status = format!(
+                    "the library has a recipe {} that makes something else; rename it to accept this premix",
+                    r.name
+                );
+                return;
+            }
+            Err(LibraryError::NotFound(_)) => match ctx.library.save_as(&r.name, r, &now) {
+                Ok(_) => made.push(r.name.clone()),
+                Err(e) => {
+                    model.status = format!("premix not accepted: {e}");
+                    return;
+                }
+            },
+            Err(e) => {
+                model.status = format!("premix not accepted: {e}");
+                return;
+            }
+        }
+    }
+    let blend = accepted.blend;
+    edit(doc, ctx, |r| *r = blend);
+    let last = proposal.last().name.clone();
+    let mut what = Vec::new();
+    if !made.is_empty() {
+        what.push(format!("saved {}", made.join(", ")));
+    }
+    if !linked.is_empty() {
+        what.push(format!("linked {} already in the library", linked.join(", ")));
+    }
+    model.status = format!("premix {last} accepted ({}); the blend takes it as a source: s saves", what.join("; "));
+    refresh(model, ctx);
+}

@@ -1,0 +1,207 @@
+//! Premix cascades: every stage planned from the one before and dosable at the bench's
+//! resolutions, and a proposal accepted as library recipes.
+
+mod common;
+
+use fillwright::gas::Catalogue;
+use fillwright::plan::{self, premix, PlanOptions, Resolutions};
+use fillwright::recipe::{Recipe, SourceLine};
+use fillwright::thermo::Model;
+
+fn blend(components: &str) -> String {
+    format!(
+        r#"Recipe(format: 1, name: "trace-blend", order: "LAB-7781", components: [{components}],
+        cylinder: (water_capacity: "10L", working_pressure: "200bar", test_pressure: "300bar", serial: "QX-1"),
+        fill: Pressure("150bar"))"#
+    )
+}
+
+fn options(gauge_bar: f64, scale_g: f64) -> PlanOptions {
+    PlanOptions {
+        model: Some(Model::Gerg),
+        resolutions: Resolutions { gauge_pa: gauge_bar * 1e5, scale_g },
+        ..PlanOptions::default()
+    }
+}
+
+fn too_small(s: &plan::Step) -> bool {
+    s.flags.iter().any(|f| f.too_small())
+}
+
+#[test]
+fn one_ppm_needs_three_stages_each_dosable_and_each_feeding_the_next() {
+    let c = Catalogue::built_in();
+    let order =
+        Recipe::load(&blend(r#"(gas: "H2S", amount: "1ppm"), (gas: "N2", amount: "balance")"#), "t", &c).unwrap();
+    let p = plan::plan(&order, &c, &options(0.1, 0.1)).unwrap();
+    assert_eq!(p.premixes.len(), 1);
+    let pm = &p.premixes[0];
+    // 1 ppm at 5 % of the fill: 20 ppm; 20 ppm from pure H2S is 1.2 mmol (0.003 bar, 0.04 g
+    // by pV = nRT), below both resolutions, so 200 ppm; that is still 0.03 bar, so 0.2 %
+    // (0.3 bar, 4 g), dosable.
+    let strengths: Vec<f64> = pm.stages.iter().map(|s| s.fraction).collect();
+    assert_eq!(strengths.len(), 3, "{strengths:?}");
+    for (got, want) in strengths.iter().zip([2e-3, 2e-4, 2e-5]) {
+        assert!((got / want - 1.0).abs() < 1e-12, "{strengths:?}");
+    }
+    assert!(pm.complete());
+    for (k, st) in pm.stages.iter().enumerate() {
+        let inner = st.plan.as_ref().unwrap();
+        assert!(!inner.steps.iter().any(too_small), "stage {k} has a step below the resolutions");
+        // Each stage is made from the one before (the first from the pure gas).
+        let first = &inner.steps[0].source;
+        match k {
+            0 => assert_eq!(first, "H2S"),
+            _ => assert_eq!(first, &pm.stages[k - 1].name),
+        }
+        // It makes its own strength.
+        assert!((inner.components[0].mole_fraction / st.fraction - 1.0).abs() < 1e-12);
+        // What it gives the next stage is what that stage's plan takes of it.
+        if let Some(next) = pm.stages.get(k + 1) {
+            let taken = next.plan.as_ref().unwrap().steps.iter().find(|s| s.source == st.name).unwrap();
+            assert!((st.needed_mol / taken.add_amount_mol - 1.0).abs() < 1e-12);
+        }
+        assert!(st.enough());
+    }
+    // The last stage brings exactly the H2S of the blend's step.
+    let step = &p.steps[pm.step];
+    assert_eq!(step.source, "H2S");
+    assert!((pm.last().needed_mol * pm.last().fraction / step.add_amount_mol - 1.0).abs() < 1e-12);
+}
+
+#[test]
+fn the_bench_resolutions_decide_the_length_of_the_cascade() {
+    let c = Catalogue::built_in();
+    let order =
+        Recipe::load(&blend(r#"(gas: "H2S", amount: "1ppm"), (gas: "N2", amount: "balance")"#), "t", &c).unwrap();
+    // A gauge and a scale fine enough to dose 1.2 mmol (0.003 bar, 0.04 g): one stage.
+    let fine = plan::plan(&order, &c, &options(0.001, 0.01)).unwrap();
+    assert_eq!(fine.premixes[0].stages.len(), 1);
+    // 2 % CO is 1.2 mol, 3 bar: no premix at all.
+    let order10 =
+        Recipe::load(&blend(r#"(gas: "CO", amount: "2%"), (gas: "N2", amount: "balance")"#), "t", &c).unwrap();
+    assert!(plan::plan(&order10, &c, &options(0.1, 0.1)).unwrap().premixes.is_empty());
+    // Very coarse instruments: four stages are not enough for 1 ppb, and the proposal says so.
+    let ppb = Recipe::load(&blend(r#"(gas: "H2S", amount: "1ppb"), (gas: "N2", amount: "balance")"#), "t", &c).unwrap();
+    let coarse = plan::plan(&ppb, &c, &options(5.0, 50.0)).unwrap();
+    let pm = &coarse.premixes[0];
+    assert_eq!(pm.stages.len(), premix::MAX_STAGES);
+    assert!(!pm.complete());
+    let text = premix::describe(pm, "H2S", 0.01, &fillwright::units::Shown::default()).join("\n");
+    assert!(text.contains("still below the resolutions"), "{text}");
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "{text}");
+}
+
+#[test]
+fn an_accepted_cascade_becomes_recipes_that_plan_as_proposed() {
+    let c = Catalogue::built_in();
+    let text = blend(r#"(gas: "H2S", amount: "1ppm"), (gas: "CH4", amount: "2.5%"), (gas: "N2", amount: "balance")"#);
+    let recipe = Recipe::parse(&text, "t").unwrap();
+    let order = recipe.resolve(&c, &text, "t").unwrap();
+    let opts = options(0.1, 0.1);
+    let p = plan::plan(&order, &c, &opts).unwrap();
+    let pm = &p.premixes[0];
+    let accepted = premix::accept(pm, &recipe, &c);
+    assert_eq!(accepted.stages.len(), pm.stages.len());
+    for (k, (r, st)) in accepted.stages.iter().zip(&pm.stages).enumerate() {
+        assert_eq!(r.name, st.recipe_name);
+        assert_eq!(r.order, "LAB-7781");
+        assert_eq!(r.cylinder.serial, None, "a premix goes into a cylinder of its own");
+        if k > 0 {
+            let from = &pm.stages[k - 1];
+            assert!(r.sources.iter().any(|s| matches!(s,
+                SourceLine::Premix { recipe: Some(link), .. } if *link == from.recipe_name)));
+        }
+        // Planned from its recipe, the stage is what was proposed.
+        let planned = plan::plan(&r.resolve(&c, "", &r.name).unwrap(), &c, &opts).unwrap();
+        let proposed = st.plan.as_ref().unwrap();
+        assert!((planned.totals.amount_mol / proposed.totals.amount_mol - 1.0).abs() < 1e-12);
+        assert_eq!(planned.steps.len(), proposed.steps.len());
+    }
+    // The blend now doses the last stage instead of pure H2S; the other sources stay pure.
+    let b = &accepted.blend;
+    assert!(!b.sources.contains(&SourceLine::Pure("H2S".into())));
+    assert!(b.sources.contains(&SourceLine::Pure("CH4".into())) && b.sources.contains(&SourceLine::Pure("N2".into())));
+    let replanned = plan::plan(&b.resolve(&c, "", &b.name).unwrap(), &c, &opts).unwrap();
+    let step = replanned.steps.iter().find(|s| s.source == pm.last().name).expect("the premix step");
+    assert!(!too_small(step), "the premix addition is dosable");
+    assert!(replanned.premixes.is_empty(), "nothing else needs a premix");
+    // The same blend is made: H2S at 1 ppm.
+    let h2s = replanned.components.iter().find(|r| c.gas(r.gas).id() == "H2S").unwrap();
+    assert!((h2s.mole_fraction - 1e-6).abs() < 1e-18);
+}
+
+#[test]
+fn the_plan_json_carries_every_stage() {
+    let out = common::run_fillwright(
+        "cascade",
+        &["plan", "--mix", "NO=50ppb,N2=balance", "--volume", "10L", "--pressure", "150bar", "--format", "json"],
+    );
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let stages = v["premixes"][0]["stages"].as_array().unwrap();
+    assert!(stages.len() >= 3, "{}", stages.len());
+    assert_eq!(v["premixes"][0]["complete"], true);
+    assert_eq!(v["premixes"][0]["mix"], stages.last().unwrap()["mix"]);
+    // Strengths rise from the blend inwards.
+    let f: Vec<f64> = stages.iter().map(|s| s["mole_fraction"].as_f64().unwrap()).collect();
+    assert!(f.windows(2).all(|w| w[0] > w[1]), "{f:?}");
+    let text = common::run_fillwright(
+        "cascade-text",
+        &["plan", "--mix", "NO=50ppb,N2=balance", "--volume", "10L", "--pressure", "150bar"],
+    );
+    let sheet = String::from_utf8_lossy(&text.stdout);
+    assert!(sheet.contains("made in") && sheet.contains("go into the blend (step 1)"), "{sheet}");
+    assert!(sheet.lines().all(|l| l.chars().count() <= 80), "{sheet}");
+}
+
+#[test]
+fn the_fill_sheet_is_written_as_a_pdf_with_its_premix_stages() {
+    let dir = std::env::temp_dir().join(format!("fillwright-sheet-pdf-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let pdf = dir.join("sheet.pdf");
+    let out = common::run_fillwright(
+        "sheet-pdf",
+        &[
+            "plan",
+            "--mix",
+            "H2S=1ppm,N2=balance",
+            "--volume",
+            "10L",
+            "--pressure",
+            "150bar",
+            "--pdf",
+            pdf.to_str().unwrap(),
+        ],
+    );
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let text = String::from_utf8_lossy(&out.stdout);
+    let back = std::process::Command::new("pdftotext")
+        .args(["-layout", pdf.to_str().unwrap(), "-"])
+        .output()
+        .expect("pdftotext is needed to read the sheet back (poppler-utils; .ci/run installs it)");
+    let back = String::from_utf8_lossy(&back.stdout);
+    for line in text.lines().filter(|l| l.contains("go into") || l.starts_with("PREMIX")) {
+        assert!(back.contains(line.trim()), "{line:?} missing from the PDF:\n{back}");
+    }
+    // JSON output with --pdf still writes the sheet.
+    std::fs::remove_file(&pdf).unwrap();
+    let out = common::run_fillwright(
+        "sheet-pdf-json",
+        &[
+            "plan",
+            "--mix",
+            "N2",
+            "--volume",
+            "10L",
+            "--pressure",
+            "150bar",
+            "--format",
+            "json",
+            "--pdf",
+            pdf.to_str().unwrap(),
+        ],
+    );
+    assert!(out.status.success());
+    assert!(std::fs::read(&pdf).unwrap().starts_with(b"%PDF-"));
+}
