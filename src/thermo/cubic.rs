@@ -229,24 +229,33 @@ pub fn ln_phi(kind: CubicKind, m: &Mix, s: &ZSolution) -> Vec<f64> {
 
 /// Real roots of z³ + c2 z² + c1 z + c0, each polished by Newton's method.
 pub fn real_cubic_roots(c2: f64, c1: f64, c0: f64) -> Vec<f64> {
+    let (roots, n) = real_cubic_roots_fixed(c2, c1, c0);
+    roots[..n].to_vec()
+}
+
+/// [`real_cubic_roots`] without allocation: the roots and how many there are (1 or 3).
+pub fn real_cubic_roots_fixed(c2: f64, c1: f64, c0: f64) -> ([f64; 3], usize) {
     let q = (c2 * c2 - 3.0 * c1) / 9.0;
     let r = (2.0 * c2 * c2 * c2 - 9.0 * c2 * c1 + 27.0 * c0) / 54.0;
     let shift = c2 / 3.0;
-    let mut roots = if r * r < q * q * q {
+    let (mut roots, n) = if r * r < q * q * q {
         let theta = (r / (q * q * q).sqrt()).clamp(-1.0, 1.0).acos();
         let s = -2.0 * q.sqrt();
         let tau = 2.0 * std::f64::consts::PI;
-        vec![
-            s * (theta / 3.0).cos() - shift,
-            s * ((theta + tau) / 3.0).cos() - shift,
-            s * ((theta - tau) / 3.0).cos() - shift,
-        ]
+        (
+            [
+                s * (theta / 3.0).cos() - shift,
+                s * ((theta + tau) / 3.0).cos() - shift,
+                s * ((theta - tau) / 3.0).cos() - shift,
+            ],
+            3,
+        )
     } else {
         let big = -r.signum() * (r.abs() + (r * r - q * q * q).sqrt()).cbrt();
         let small = if big == 0.0 { 0.0 } else { q / big };
-        vec![big + small - shift]
+        ([big + small - shift, 0.0, 0.0], 1)
     };
-    for z in roots.iter_mut() {
+    for z in roots[..n].iter_mut() {
         for _ in 0..8 {
             let f = ((*z + c2) * *z + c1) * *z + c0;
             let df = (3.0 * *z + 2.0 * c2) * *z + c1;
@@ -260,7 +269,7 @@ pub fn real_cubic_roots(c2: f64, c1: f64, c0: f64) -> Vec<f64> {
             }
         }
     }
-    roots
+    (roots, n)
 }
 
 #[cfg(test)]

@@ -6,6 +6,7 @@
 
 pub mod cubic;
 pub mod gerg;
+pub mod kernel;
 pub mod kij;
 pub mod phases;
 pub mod survey;
@@ -178,6 +179,15 @@ impl Fluid {
 
     pub fn model(&self) -> Model {
         self.model
+    }
+
+    /// Critical temperatures (K), critical pressures (Pa) and acentric factors of the gases.
+    pub fn critical_constants(&self) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
+        (
+            self.cubic.iter().map(|c| c.tc_k).collect(),
+            self.cubic.iter().map(|c| c.pc_pa).collect(),
+            self.cubic.iter().map(|c| c.omega).collect(),
+        )
     }
 
     /// Mean molar mass, g/mol.

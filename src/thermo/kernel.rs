@@ -1,0 +1,176 @@
+//! The lean cubic kernel for the inner loops of the phase calculations.
+//!
+//! [`CubicAt`] is a cubic model prepared at one temperature: a_i(T), b_i and the cross
+//! terms √(a_i a_j)(1 − k_ij) are computed once, so that mixing, the roots and ln φ at any
+//! pressure and composition cost O(n²) multiplications and no heap allocation. The
+//! composition is checked once where it enters (the [`super::Fluid`] methods), not here.
+
+use super::cubic::{self, CubicKind};
+use super::Fluid;
+use crate::units::R;
+
+/// Which root of the cubic ln φ is taken on.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum RootChoice {
+    /// The smallest root above B (liquid-like).
+    Liquid,
+    /// The largest root (vapour-like).
+    Vapour,
+    /// The root of lowest Gibbs energy.
+    Stable,
+}
+
+/// A cubic model at one temperature.
+#[derive(Debug, Clone)]
+pub struct CubicAt {
+    kind: CubicKind,
+    t_k: f64,
+    n: usize,
+    b_i: Vec<f64>,
+    /// √(a_i a_j)(1 − k_ij), row-major n × n.
+    a_ij: Vec<f64>,
+    /// Scratch: Σ_j x_j a_ij of the last composition.
+    a_row: Vec<f64>,
+}
+
+impl CubicAt {
+    /// The fluid's cubic at `t_k`; None for a model that is not a cubic.
+    pub fn new(fluid: &Fluid, t_k: f64) -> Option<CubicAt> {
+        let kind = fluid.model.cubic_kind()?;
+        let n = fluid.cubic.len();
+        let (a_i, b_i): (Vec<f64>, Vec<f64>) = fluid.cubic.iter().map(|c| c.a_b(kind, t_k)).unzip();
+        let mut a_ij = vec![0.0; n * n];
+        for i in 0..n {
+            for j in 0..n {
+                a_ij[i * n + j] = (a_i[i] * a_i[j]).sqrt() * (1.0 - fluid.kij[i][j]);
+            }
+        }
+        Some(CubicAt { kind, t_k, n, b_i, a_ij, a_row: vec![0.0; n] })
+    }
+
+    pub fn temperature_k(&self) -> f64 {
+        self.t_k
+    }
+
+    /// Mix `x` into the scratch row; returns (a, b).
+    fn mix(&mut self, x: &[f64]) -> (f64, f64) {
+        let n = self.n;
+        let mut a = 0.0;
+        let mut b = 0.0;
+        for i in 0..n {
+            let row = &self.a_ij[i * n..(i + 1) * n];
+            let mut s = 0.0;
+            for j in 0..n {
+                s += x[j] * row[j];
+            }
+            self.a_row[i] = s;
+            a += x[i] * s;
+            b += x[i] * self.b_i[i];
+        }
+        (a, b)
+    }
+
+    /// ln φ_i of composition `x` (mole fractions summing to 1) at `p_pa` on the chosen root,
+    /// written into `out`; returns Z, or None where the cubic has no root above B.
+    pub fn ln_phi_into(&mut self, p_pa: f64, x: &[f64], root: RootChoice, out: &mut [f64]) -> Option<f64> {
+        let (a, b) = self.mix(x);
+        let rt = R * self.t_k;
+        let big_a = a * p_pa / (rt * rt);
+        let big_b = b * p_pa / rt;
+        let (roots, count) = z_roots(self.kind, big_a, big_b);
+        if count == 0 {
+            return None;
+        }
+        let z = match root {
+            RootChoice::Liquid => roots[0],
+            RootChoice::Vapour => roots[count - 1],
+            RootChoice::Stable if count == 1 => roots[0],
+            RootChoice::Stable => {
+                let (lo, hi) = (roots[0], roots[count - 1]);
+                if g_residual(self.kind, lo, big_a, big_b) < g_residual(self.kind, hi, big_a, big_b) {
+                    lo
+                } else {
+                    hi
+                }
+            }
+        };
+        let i_term = integral_i(self.kind, z, big_b);
+        let ln_z_b = (z - big_b).ln();
+        let a_over = big_a / big_b * i_term;
+        for i in 0..self.n {
+            let bi_b = self.b_i[i] / b;
+            out[i] = bi_b * (z - 1.0) - ln_z_b - a_over * (2.0 * self.a_row[i] / a - bi_b);
+        }
+        Some(z)
+    }
+}
+
+/// G^R/RT at Z (as in [`cubic`]).
+fn g_residual(kind: CubicKind, z: f64, big_a: f64, big_b: f64) -> f64 {
+    z - 1.0 - (z - big_b).ln() - big_a / big_b * integral_i(kind, z, big_b)
+}
+
+fn integral_i(kind: CubicKind, z: f64, big_b: f64) -> f64 {
+    let (eps, sig) = kind.epsilon_sigma();
+    if sig == eps {
+        big_b / z
+    } else {
+        ((z + sig * big_b) / (z + eps * big_b)).ln() / (sig - eps)
+    }
+}
+
+/// The roots of the cubic in Z above B, smallest first, without allocation.
+fn z_roots(kind: CubicKind, big_a: f64, big_b: f64) -> ([f64; 3], usize) {
+    let (eps, sig) = kind.epsilon_sigma();
+    let c2 = -(1.0 + big_b - (eps + sig) * big_b);
+    let c1 = big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b);
+    let c0 = -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b));
+    let (all, m) = cubic::real_cubic_roots_fixed(c2, c1, c0);
+    let mut out = [0.0; 3];
+    let mut count = 0;
+    for &z in &all[..m] {
+        if z > big_b && !out[..count].iter().any(|o: &f64| (o - z).abs() <= 1e-12 * z.abs()) {
+            out[count] = z;
+            count += 1;
+        }
+    }
+    out[..count].sort_by(f64::total_cmp);
+    (out, count)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::gas::Catalogue;
+    use crate::thermo::Model;
+
+    #[test]
+    fn the_kernel_gives_the_fluids_fugacities() {
+        let c = Catalogue::built_in();
+        let ids = ["CH4", "C2H6", "C3H8", "n-C4H10", "N2", "CO2"];
+        let gases: Vec<usize> = ids.iter().map(|id| c.index_of(id).unwrap()).collect();
+        let x = [0.8, 0.08, 0.04, 0.02, 0.03, 0.03];
+        for model in [Model::Pr, Model::Srk, Model::Rk, Model::Vdw] {
+            let f = Fluid::new(&c, &gases, model).unwrap();
+            for (t, p) in [(250.0, 20e5), (300.0, 150e5), (200.0, 5e5)] {
+                let reference = f.ln_phi(t, p, &x).unwrap();
+                let mut k = CubicAt::new(&f, t).unwrap();
+                let mut out = [0.0; 6];
+                k.ln_phi_into(p, &x, RootChoice::Stable, &mut out).unwrap();
+                for (a, b) in out.iter().zip(&reference) {
+                    assert!((a - b).abs() <= 1e-12 * b.abs().max(1.0), "{model:?} {t} {p}: {a} vs {b}");
+                }
+                // The liquid and vapour roots are those of the fluid's own solver.
+                for liquid in [true, false] {
+                    let (reference, _) = f.ln_phi_on(t, p, &x, liquid).unwrap();
+                    let choice = if liquid { RootChoice::Liquid } else { RootChoice::Vapour };
+                    k.ln_phi_into(p, &x, choice, &mut out).unwrap();
+                    for (a, b) in out.iter().zip(&reference) {
+                        assert!((a - b).abs() <= 1e-12 * b.abs().max(1.0));
+                    }
+                }
+            }
+        }
+        assert!(CubicAt::new(&Fluid::new(&c, &gases, Model::Ideal).unwrap(), 300.0).is_none());
+    }
+}
