@@ -5,6 +5,9 @@
 //! pressure and composition cost O(n²) multiplications and no heap allocation. The
 //! composition is checked once where it enters (the [`super::Fluid`] methods), not here.
 
+// Indexed loops over the components read as the formulas do.
+#![allow(clippy::needless_range_loop)]
+
 use super::cubic::{self, CubicKind};
 use super::Fluid;
 use crate::units::R;
@@ -31,6 +34,11 @@ pub struct CubicAt {
     a_ij: Vec<f64>,
     /// Scratch: Σ_j x_j a_ij of the last composition.
     a_row: Vec<f64>,
+    /// √a_i at the temperature.
+    root_a: Vec<f64>,
+    /// 1 − k_ij, row-major.
+    one_minus_k: Vec<f64>,
+    components: Vec<super::cubic::CubicComponent>,
 }
 
 impl CubicAt {
@@ -38,14 +46,39 @@ impl CubicAt {
     pub fn new(fluid: &Fluid, t_k: f64) -> Option<CubicAt> {
         let kind = fluid.model.cubic_kind()?;
         let n = fluid.cubic.len();
-        let (a_i, b_i): (Vec<f64>, Vec<f64>) = fluid.cubic.iter().map(|c| c.a_b(kind, t_k)).unzip();
-        let mut a_ij = vec![0.0; n * n];
+        let one_minus_k = (0..n * n).map(|k| 1.0 - fluid.kij[k / n][k % n]).collect();
+        let mut at = CubicAt {
+            kind,
+            t_k: f64::NAN,
+            n,
+            b_i: vec![0.0; n],
+            a_ij: vec![0.0; n * n],
+            a_row: vec![0.0; n],
+            root_a: vec![0.0; n],
+            one_minus_k,
+            components: fluid.cubic.clone(),
+        };
+        at.set_temperature(t_k);
+        Some(at)
+    }
+
+    /// Move the model to another temperature, in place.
+    pub fn set_temperature(&mut self, t_k: f64) {
+        if t_k == self.t_k {
+            return;
+        }
+        self.t_k = t_k;
+        let n = self.n;
+        for (i, c) in self.components.iter().enumerate() {
+            let (a, b) = c.a_b(self.kind, t_k);
+            self.root_a[i] = a.sqrt();
+            self.b_i[i] = b;
+        }
         for i in 0..n {
             for j in 0..n {
-                a_ij[i * n + j] = (a_i[i] * a_i[j]).sqrt() * (1.0 - fluid.kij[i][j]);
+                self.a_ij[i * n + j] = self.root_a[i] * self.root_a[j] * self.one_minus_k[i * n + j];
             }
         }
-        Some(CubicAt { kind, t_k, n, b_i, a_ij, a_row: vec![0.0; n] })
     }
 
     pub fn temperature_k(&self) -> f64 {
