@@ -45,6 +45,38 @@ fn slot<'a>(c: &'a mut GergComposition, id: &str) -> Option<&'a mut f64> {
     })
 }
 
+/// The composition as the 21 mole fractions, to compare states.
+fn key_of(c: &GergComposition) -> [f64; 21] {
+    [
+        c.methane,
+        c.nitrogen,
+        c.carbon_dioxide,
+        c.ethane,
+        c.propane,
+        c.isobutane,
+        c.n_butane,
+        c.isopentane,
+        c.n_pentane,
+        c.hexane,
+        c.heptane,
+        c.octane,
+        c.nonane,
+        c.decane,
+        c.hydrogen,
+        c.oxygen,
+        c.carbon_monoxide,
+        c.water,
+        c.hydrogen_sulfide,
+        c.helium,
+        c.argon,
+    ]
+}
+
+thread_local! {
+    /// The GERG-2008 state of the last composition used on this thread.
+    static LAST: std::cell::RefCell<Option<([f64; 21], Box<Gerg2008>)>> = const { std::cell::RefCell::new(None) };
+}
+
 /// A GERG-2008 evaluator for a fixed list of gases.
 #[derive(Debug, Clone)]
 pub struct Gerg {
@@ -62,22 +94,35 @@ impl Gerg {
         }
     }
 
-    fn model(&self, x: &[f64], t_k: f64) -> Option<Gerg2008> {
+    /// Run `f` on the GERG-2008 state of composition `x` at `t_k`. The state of the last
+    /// composition is kept per thread: the crate's reducing parameters (per composition)
+    /// and temperature terms (per temperature) are then computed once, not per call.
+    fn with_model<R>(&self, x: &[f64], t_k: f64, f: impl FnOnce(&mut Gerg2008) -> R) -> Option<R> {
         let mut comp = GergComposition::default();
         for (id, &xi) in self.ids.iter().zip(x) {
             *slot(&mut comp, id)? += xi;
         }
-        let mut g = Gerg2008::new();
-        g.set_composition(&comp).ok()?;
-        g.t = t_k;
-        Some(g)
+        let key = key_of(&comp);
+        LAST.with(|cell| {
+            let mut last = cell.borrow_mut();
+            let fresh = !matches!(last.as_ref(), Some((k, _)) if *k == key);
+            if fresh {
+                let mut g = Gerg2008::new();
+                g.set_composition(&comp).ok()?;
+                *last = Some((key, Box::new(g)));
+            }
+            let (_, g) = last.as_mut()?;
+            g.t = t_k;
+            Some(f(g))
+        })
     }
 
     /// Pressure, Pa, at molar density `rho` (mol/m³).
     pub fn pressure(&self, x: &[f64], t_k: f64, rho_mol_m3: f64) -> Option<f64> {
-        let mut g = self.model(x, t_k)?;
-        g.d = rho_mol_m3 * 1e-3;
-        let p_kpa = g.pressure();
+        let p_kpa = self.with_model(x, t_k, |g| {
+            g.d = rho_mol_m3 * 1e-3;
+            g.pressure()
+        })?;
         p_kpa.is_finite().then_some(p_kpa * 1e3)
     }
 
@@ -85,32 +130,34 @@ impl Gerg {
     /// `rho0` (mol/m³): a liquid start finds the liquid root. None where the iteration
     /// leaves the branch (∂P/∂ρ ≤ 0) or does not converge.
     pub fn density_from(&self, x: &[f64], t_k: f64, p_pa: f64, rho0: f64) -> Option<f64> {
-        let mut g = self.model(x, t_k)?;
-        let target = p_pa * 1e-3;
-        let mut d = rho0 * 1e-3;
-        for _ in 0..100 {
-            g.d = d;
-            let p = g.properties();
-            let f = p - target;
-            if !(g.dp_dd > 0.0 && p.is_finite()) {
-                return None;
+        self.with_model(x, t_k, |g| {
+            let target = p_pa * 1e-3;
+            let mut d = rho0 * 1e-3;
+            for _ in 0..100 {
+                g.d = d;
+                let p = g.properties();
+                let f = p - target;
+                if !(g.dp_dd > 0.0 && p.is_finite()) {
+                    return None;
+                }
+                let next = d - f / g.dp_dd;
+                let next = next.clamp(0.5 * d, 2.0 * d);
+                if (next - d).abs() <= 1e-13 * d {
+                    return Some(next * 1e3);
+                }
+                d = next;
             }
-            let next = d - f / g.dp_dd;
-            let next = next.clamp(0.5 * d, 2.0 * d);
-            if (next - d).abs() <= 1e-13 * d {
-                return Some(next * 1e3);
-            }
-            d = next;
-        }
-        None
+            None
+        })?
     }
 
     /// Molar Gibbs energy, J/mol, at (T, ρ in mol/m³).
     fn gibbs(&self, x: &[f64], t_k: f64, rho_mol_m3: f64) -> Option<f64> {
-        let mut g = self.model(x, t_k)?;
-        g.d = rho_mol_m3 * 1e-3;
-        g.properties();
-        g.g.is_finite().then_some(g.g)
+        self.with_model(x, t_k, |g| {
+            g.d = rho_mol_m3 * 1e-3;
+            g.properties();
+            g.g.is_finite().then_some(g.g)
+        })?
     }
 
     /// The saturation state of a pure fluid from GERG-2008's own equation: the pressure
@@ -144,7 +191,10 @@ impl Gerg {
 
     /// Molar density, mol/m³, at (T, P).
     pub fn density(&self, x: &[f64], t_k: f64, p_pa: f64) -> Option<f64> {
-        let mut g = self.model(x, t_k)?;
+        self.with_model(x, t_k, |g| Self::density_on(g, p_pa))?
+    }
+
+    fn density_on(g: &mut Gerg2008, p_pa: f64) -> Option<f64> {
         g.p = p_pa * 1e-3;
         g.density(0).ok()?;
         let target = g.p;

@@ -6,6 +6,7 @@
 //! reason is beside the value in the file). No comparable published set covering these gases was found
 //! for van der Waals, RK or SRK, so they use k_ij = 0, the classical default.
 
+use std::collections::HashMap;
 use std::sync::OnceLock;
 
 use super::Model;
@@ -18,10 +19,24 @@ fn pr_table() -> &'static [(String, String, f64)] {
     TABLE.get_or_init(|| ron::from_str(PR_TABLE).expect("kij_pr.ron is valid"))
 }
 
+/// The PR table keyed by the pair, the ids in sorted order (a look-up per pair, not a scan).
+fn pr_index() -> &'static HashMap<(String, String), f64> {
+    static INDEX: OnceLock<HashMap<(String, String), f64>> = OnceLock::new();
+    INDEX.get_or_init(|| pr_table().iter().map(|(a, b, k)| (ordered(a, b), *k)).collect())
+}
+
+fn ordered(a: &str, b: &str) -> (String, String) {
+    if a <= b {
+        (a.to_string(), b.to_string())
+    } else {
+        (b.to_string(), a.to_string())
+    }
+}
+
 /// The published k_ij of `model` for a pair of gas ids, 0 where none is listed.
 pub fn value(model: Model, a: &str, b: &str) -> f64 {
     match model {
-        Model::Pr => pr_table().iter().find(|(x, y, _)| (x == a && y == b) || (x == b && y == a)).map_or(0.0, |t| t.2),
+        Model::Pr => pr_index().get(&ordered(a, b)).copied().unwrap_or(0.0),
         _ => 0.0,
     }
 }
@@ -42,6 +57,8 @@ mod tests {
             assert!(c.index_of(a).is_some() && c.index_of(b).is_some(), "{a}-{b}");
             assert!(k.is_finite() && k.abs() < 1.0);
         }
+        // Each pair once, so the keyed look-up gives what a scan of the file gives.
+        assert_eq!(pr_index().len(), pr_table().len());
         // ChemSep PR k_ij for N2-CH4 is 0.0289 (thermo IPDB 'ChemSep PR').
         assert_eq!(value(Model::Pr, "CH4", "N2"), 0.0289);
         assert_eq!(value(Model::Pr, "N2", "CH4"), 0.0289);

@@ -136,6 +136,9 @@ pub struct Fluid {
     cubic: Vec<CubicComponent>,
     kij: Vec<Vec<f64>>,
     gerg: Option<gerg::Gerg>,
+    /// The Peng–Robinson fluid that judges phases for a model with no fugacities of its
+    /// own (GERG-2008, ideal gas), made once.
+    screen: Option<std::sync::Arc<Fluid>>,
 }
 
 impl Fluid {
@@ -167,14 +170,21 @@ impl Fluid {
                 }
             })
             .collect();
-        Ok(Fluid {
+        let screen_kij = model.cubic_kind().is_none().then(|| kij::matrix(Model::Pr, &id_refs));
+        let mut fluid = Fluid {
             model,
             molar_masses: gases.iter().map(|&g| catalogue.gas(g).molar_mass_g_per_mol).collect(),
             kij: kij::matrix(model, &id_refs),
             ids,
             cubic,
             gerg,
-        })
+            screen: None,
+        };
+        if let Some(kij) = screen_kij {
+            let screen = Fluid { model: Model::Pr, kij, gerg: None, ..fluid.clone() };
+            fluid.screen = Some(std::sync::Arc::new(screen));
+        }
+        Ok(fluid)
     }
 
     pub fn model(&self) -> Model {

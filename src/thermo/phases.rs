@@ -88,12 +88,11 @@ pub fn single_component(x: &[f64]) -> Option<usize> {
 impl Fluid {
     /// The fluid that judges phases: itself for a cubic model, else Peng–Robinson on the
     /// same gases (with its own k_ij).
-    pub fn phase_screen(&self) -> Fluid {
-        if self.model.cubic_kind().is_some() {
-            return self.clone();
+    pub fn phase_screen(&self) -> &Fluid {
+        match &self.screen {
+            Some(screen) => screen,
+            None => self,
         }
-        let ids: Vec<&str> = self.ids.iter().map(String::as_str).collect();
-        Fluid { model: Model::Pr, kij: super::kij::matrix(Model::Pr, &ids), gerg: None, ..self.clone() }
     }
 
     /// ln φ_i and the molar volume on one root of the cubic: the liquid-like (smallest) or
