@@ -15,6 +15,7 @@
 //!
 //! The ideal-gas model has no liquid of its own; its phases are judged by the screen.
 
+use super::kernel::{CubicAt, RootChoice};
 use super::cubic::{self, Root};
 use super::{Fluid, Model, ThermoError, MAX_PRESSURE_PA, R};
 
@@ -116,34 +117,50 @@ impl Fluid {
     /// (T, P); when it does, the trial phase's composition (a K-value start for the
     /// flash). Cubic models only (call it on [`Fluid::phase_screen`]).
     pub fn stability(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
-        let ln_phi_z = self.ln_phi(t_k, p_pa, z)?;
-        let d: Vec<f64> = z
-            .iter()
-            .zip(&ln_phi_z)
-            .map(|(zi, lp)| if *zi > TRACE { zi.ln() + lp } else { f64::NEG_INFINITY })
-            .collect();
+        Self::check_t(t_k)?;
+        Self::check_p(p_pa)?;
+        self.check_x(z)?;
+        let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        let n = z.len();
+        let mut ln_phi = vec![0.0; n];
+        if cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi).is_none() {
+            return Err(ThermoError::NoState { model: self.model, why: "no root".into() });
+        }
+        let d: Vec<f64> =
+            (0..n).map(|i| if z[i] > TRACE { z[i].ln() + ln_phi[i] } else { f64::NEG_INFINITY }).collect();
+        let ln_z: Vec<f64> = z.iter().map(|v| if *v > TRACE { v.ln() } else { f64::NEG_INFINITY }).collect();
         let k = wilson(self, t_k, p_pa);
+        let mut x = vec![0.0; n];
+        let mut w = vec![0.0; n];
+        let mut ln_w = vec![0.0; n];
         for vapour_like in [true, false] {
-            let mut w: Vec<f64> =
-                z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
+            for i in 0..n {
+                w[i] = if vapour_like { z[i] * k[i] } else { z[i] / k[i] };
+                ln_w[i] = w[i].ln();
+            }
             for _ in 0..400 {
                 let sum: f64 = w.iter().sum();
                 if !(sum.is_finite() && sum > 0.0) {
                     break;
                 }
-                let x: Vec<f64> = w.iter().map(|wi| wi / sum).collect();
-                let ln_phi_x = self.ln_phi(t_k, p_pa, &x)?;
+                for i in 0..n {
+                    x[i] = w[i] / sum;
+                }
+                if cubic.ln_phi_into(p_pa, &x, RootChoice::Stable, &mut ln_phi).is_none() {
+                    return Err(ThermoError::NoState { model: self.model, why: "no root".into() });
+                }
                 let mut change: f64 = 0.0;
                 let mut distance: f64 = 0.0;
-                for i in 0..w.len() {
+                for i in 0..n {
                     if z[i] <= TRACE {
                         w[i] = 0.0;
                         continue;
                     }
-                    let ln_w = d[i] - ln_phi_x[i];
-                    change = change.max((ln_w - w[i].ln()).abs());
-                    distance += (ln_w - z[i].ln()).powi(2);
-                    w[i] = ln_w.exp();
+                    let next = d[i] - ln_phi[i];
+                    change = change.max((next - ln_w[i]).abs());
+                    distance += (next - ln_z[i]).powi(2);
+                    ln_w[i] = next;
+                    w[i] = next.exp();
                 }
                 if distance < 1e-8 {
                     break; // converged to the feed itself: no new phase this way
