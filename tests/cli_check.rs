@@ -149,3 +149,41 @@ fn text_outputs_fit_80_columns() {
         }
     }
 }
+
+#[test]
+fn a_folder_checked_on_every_core_gives_what_one_core_gives_in_the_same_order() {
+    // Many distinct recipes: the demo blends at several fill pressures.
+    let dir = std::env::temp_dir().join(format!("fillwright-check-parallel-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let mut count = 0;
+    for (name, text) in fillwright::recipe::demo::RECIPES {
+        for bar in [60, 90, 120] {
+            let r = fillwright::recipe::Recipe::parse(text, name).unwrap();
+            let r = fillwright::recipe::Recipe {
+                name: format!("{name}-{bar}"),
+                fill: fillwright::recipe::FillTarget::Pressure(format!("{bar}bar")),
+                ..r
+            };
+            std::fs::write(dir.join(format!("{name}-{bar}.ron")), fillwright::recipe::canonical::to_text(&r)).unwrap();
+            count += 1;
+        }
+    }
+    assert!(count >= 20);
+    let with = |threads: &str| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))
+            .args(["check", dir.to_str().unwrap(), "--format", "json"])
+            .env("FILLWRIGHT_CONFIG", dir.join("config"))
+            .env("RAYON_NUM_THREADS", threads)
+            .output()
+            .unwrap()
+    };
+    let (one, all) = (with("1"), with("4"));
+    assert_eq!(one.status.code(), all.status.code());
+    assert_eq!(String::from_utf8_lossy(&one.stdout), String::from_utf8_lossy(&all.stdout));
+    let v: serde_json::Value = serde_json::from_slice(&all.stdout).unwrap();
+    let recipes: Vec<&str> = v["checks"].as_array().unwrap().iter().map(|c| c["recipe"].as_str().unwrap()).collect();
+    let mut sorted = recipes.clone();
+    sorted.sort();
+    assert_eq!(recipes, sorted, "the folder's order, as listed");
+}

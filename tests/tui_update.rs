@@ -917,3 +917,61 @@ fn a_proposed_premix_is_shown_and_accepted_as_library_recipes() {
     assert!(matches!(model.overlay, Overlay::None));
     assert!(model.status.contains("no step needs a premix"), "{}", model.status);
 }
+
+#[test]
+fn light_edits_reuse_the_heavy_results_and_a_tare_moves_only_the_scale_readings() {
+    use fillwright::tui::model::{fields, Field};
+    let (mut model, mut ctx, _dir) = setup("reuse");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let before = model.doc.as_ref().unwrap().computed.clone();
+    let set = |model: &mut Model, ctx: &mut Context, field: Field, text_in: &str| {
+        let doc = model.doc.as_mut().unwrap();
+        doc.field = fields(&doc.recipe).iter().position(|f| *f == field).unwrap();
+        keys(model, ctx, &[Key::Enter, Key::Ctrl('u')]);
+        text(model, ctx, text_in);
+        keys(model, ctx, &[Key::Enter]);
+    };
+    set(&mut model, &mut ctx, Field::Notes, "for the Brackwater audit");
+    let c = &model.doc.as_ref().unwrap().computed;
+    assert!(c.reused, "a note does not recompute the plan");
+    set(&mut model, &mut ctx, Field::Serial, "FC-10-9999");
+    assert!(model.doc.as_ref().unwrap().computed.reused);
+    // The demo's tare is 13.412 kg; 100 g more moves every scale reading by 100 g.
+    set(&mut model, &mut ctx, Field::Tare, "13.512kg");
+    let c = &model.doc.as_ref().unwrap().computed;
+    assert!(c.reused);
+    let (a, b) = (before.plan.as_ref().unwrap(), c.plan.as_ref().unwrap());
+    for (s, t) in a.steps.iter().zip(&b.steps) {
+        assert!((t.scale_reading_g - s.scale_reading_g - 100.0).abs() < 1e-9);
+        assert_eq!(t.pressure_after_pa, s.pressure_after_pa);
+    }
+    // The reused results are what a full recompute gives.
+    let doc = model.doc.as_ref().unwrap();
+    let fresh = fillwright::tui::model::Computed::of(&doc.recipe, &ctx.catalogue, &ctx.settings);
+    let f = fresh.plan.as_ref().unwrap();
+    for (s, t) in f.steps.iter().zip(&b.steps) {
+        assert!((s.scale_reading_g - t.scale_reading_g).abs() < 1e-9 && s.pressure_after_pa == t.pressure_after_pa);
+    }
+    assert_eq!(fresh.checks, c.checks);
+    // An amount is a heavy input.
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "14%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(!model.doc.as_ref().unwrap().computed.reused);
+}
+
+#[test]
+fn the_library_shows_each_recipes_worst_check() {
+    let (model, ctx, _dir) = setup("library-checks");
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("checks"), "{screen}");
+    // One result per entry, in the order of the list, each the worst of its own screening.
+    assert_eq!(model.library.screening.len(), model.library.entries.len());
+    for (e, s) in model.library.entries.iter().zip(&model.library.screening) {
+        let recipe = ctx.library.open(&e.name).unwrap().recipe;
+        let own = fillwright::tui::model::Computed::of(&recipe, &ctx.catalogue, &ctx.settings);
+        assert_eq!(*s, own.checks.as_ref().map(|c| fillwright::checks::worst(c)), "{}", e.name);
+    }
+    assert!(model.library.screening.iter().any(|s| s.is_some()));
+}

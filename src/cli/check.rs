@@ -3,6 +3,7 @@
 use std::path::Path;
 
 use clap::Args;
+use rayon::prelude::*;
 use serde_json::{json, Value};
 
 use super::plan::OrderArgs;
@@ -119,8 +120,9 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         min_temperature_k: Some(conditions.judged_down_to_k()),
         ..PlanOptions::default()
     };
+    // Both cores (every core) for many recipes; collect keeps the order of the list.
     let results: Vec<Screened> = orders
-        .iter()
+        .par_iter()
         .map(|(origin, order)| {
             let screened = order.as_ref().map_err(Clone::clone).and_then(|order| {
                 // A fill above the test pressure has no plan: it is refused, in `plan` alike.

@@ -15,8 +15,8 @@
 //!
 //! The ideal-gas model has no liquid of its own; its phases are judged by the screen.
 
-use super::kernel::{CubicAt, RootChoice};
 use super::cubic::{self, Root};
+use super::kernel::{CubicAt, RootChoice};
 use super::{Fluid, Model, ThermoError, MAX_PRESSURE_PA, R};
 
 /// Smallest mole fraction treated as present.

@@ -187,12 +187,18 @@ pub struct Computed {
     pub checks: Option<Vec<Check>>,
     /// Z against pressure for every model at the reference temperature: (model, points).
     pub z_curves: Vec<(Eos, Vec<(f64, f64)>)>,
+    /// What the plan, the screening and the curves depend on: the recipe without its
+    /// names, notes, serial and tare, and the settings. An edit that leaves it unchanged
+    /// reuses them.
+    pub key: String,
+    /// Whether the last update reused them.
+    pub reused: bool,
 }
 
 impl Computed {
-    pub fn of(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
-        let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| in_screen_words(&e.message));
-        let options = PlanOptions {
+    /// The plan options the screen uses: the settings' model, resolutions and storage range.
+    fn options(settings: &Resolved) -> PlanOptions {
+        PlanOptions {
             default_model: settings.default_model,
             resolutions: plan::Resolutions {
                 gauge_pa: settings.gauge_resolution_pa,
@@ -200,7 +206,19 @@ impl Computed {
             },
             min_temperature_k: Some(settings.conditions().judged_down_to_k()),
             ..PlanOptions::default()
-        };
+        }
+    }
+
+    /// Only the screening of a recipe (for the library's column); None where it does not plan.
+    pub fn screening_only(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Option<Vec<Check>> {
+        let order = recipe.resolve(catalogue, "", &recipe.name).ok()?;
+        let plan = plan::plan(&order, catalogue, &Self::options(settings)).ok()?;
+        Some(checks::screen(&plan, &order, catalogue, &settings.conditions()))
+    }
+
+    pub fn of(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
+        let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| in_screen_words(&e.message));
+        let options = Self::options(settings);
         let plan = match &order {
             Ok(o) => plan::plan(o, catalogue, &options).map_err(|e| e.to_string()),
             Err(e) => Err(e.clone()),
@@ -214,8 +232,44 @@ impl Computed {
             (Ok(p), Ok(o)) => z_curves(p, o, catalogue),
             _ => Vec::new(),
         };
-        Computed { order, plan, checks, z_curves }
+        Computed { order, plan, checks, z_curves, key: heavy_key(recipe, settings), reused: false }
     }
+
+    /// The results for an edited recipe: reused from `previous` when the edit leaves the
+    /// heavy results' inputs unchanged (a name, a note, a serial, a tare: the scale
+    /// readings then move by the tare's change), else computed afresh.
+    pub fn update(previous: &Computed, recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
+        if previous.key != heavy_key(recipe, settings) {
+            return Computed::of(recipe, catalogue, settings);
+        }
+        let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| in_screen_words(&e.message));
+        let tare = |o: &Result<Order, String>| o.as_ref().ok().and_then(|o| o.tare_g).unwrap_or(0.0);
+        let shift = tare(&order) - tare(&previous.order);
+        let mut plan = previous.plan.clone();
+        if let Ok(p) = plan.as_mut() {
+            for s in p.steps.iter_mut() {
+                s.scale_reading_g += shift;
+            }
+        }
+        Computed { order, plan, reused: true, ..previous.clone() }
+    }
+}
+
+/// The inputs of the heavy results (see [`Computed::key`]).
+fn heavy_key(recipe: &Recipe, settings: &Resolved) -> String {
+    let light = Recipe {
+        name: String::new(),
+        description: String::new(),
+        order: String::new(),
+        notes: String::new(),
+        revision: 0,
+        saved: None,
+        saved_by: None,
+        change_note: None,
+        cylinder: crate::recipe::CylinderLine { tare: None, serial: None, ..recipe.cylinder.clone() },
+        ..recipe.clone()
+    };
+    format!("{}{settings:?}", crate::recipe::canonical::to_text(&light))
 }
 
 /// Z of the finished blend from 1 bar to 1.2 times the fill pressure, for each model.
@@ -342,6 +396,9 @@ impl Document {
 #[derive(Debug, Clone, Default)]
 pub struct LibraryState {
     pub entries: Vec<Entry>,
+    /// The worst screening result of each entry (None: it does not plan), computed on
+    /// both cores when the list is read.
+    pub screening: Vec<Option<checks::Severity>>,
     /// Search text; the list shows only matching recipes.
     pub filter: Option<Input>,
     pub selected: usize,

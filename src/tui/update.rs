@@ -128,11 +128,28 @@ pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
 
 pub fn refresh(model: &mut Model, ctx: &Context) {
     match ctx.library.list() {
-        Ok(entries) => model.library.entries = entries,
+        Ok(entries) => {
+            model.library.screening = screen_entries(&entries, ctx);
+            model.library.entries = entries;
+        }
         Err(e) => model.status = format!("cannot list the library: {e}"),
     }
     let n = model.library.visible().len();
     model.library.selected = model.library.selected.min(n.saturating_sub(1));
+}
+
+/// The worst screening result of each library entry, planned and screened in parallel
+/// (the order of the list is kept).
+fn screen_entries(entries: &[crate::library::Entry], ctx: &Context) -> Vec<Option<crate::checks::Severity>> {
+    use rayon::prelude::*;
+    entries
+        .par_iter()
+        .map(|e| {
+            let recipe = ctx.library.open(&e.name).ok()?.recipe;
+            let c = Computed::screening_only(&recipe, &ctx.catalogue, &ctx.settings);
+            c.map(|checks| crate::checks::worst(&checks))
+        })
+        .collect()
 }
 
 pub(super) fn input(text: &str) -> Input {
@@ -145,7 +162,7 @@ pub(crate) fn recompute_doc(doc: &mut Document, ctx: &Context) {
 }
 
 fn recompute(doc: &mut Document, ctx: &Context) {
-    doc.computed = Computed::of(&doc.recipe, &ctx.catalogue, &ctx.settings);
+    doc.computed = Computed::update(&doc.computed, &doc.recipe, &ctx.catalogue, &ctx.settings);
     fit_bench(doc);
     super::sheet::sync_from_record(doc, ctx);
 }

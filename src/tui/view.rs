@@ -157,9 +157,9 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let inner = block.inner(area);
     frame.render_widget(block, area);
     let w = inner.width as usize;
-    let title_w = w.saturating_sub(22 + 9 + 14 + 4 + 5);
+    let title_w = w.saturating_sub(22 + 9 + 14 + 4 + 9 + 5);
     let mut lines = vec![Line::styled(
-        format!("  {:<22}{:>9}{:>14}{:>4}  {}", "name", "fill", "cylinder", "rev", "recipe"),
+        format!("  {:<22}{:>9}{:>14}{:>4} {:<8} {}", "name", "fill", "cylinder", "rev", "checks", "recipe"),
         theme.bold(),
     )];
     let visible = model.library.visible();
@@ -171,11 +171,17 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         let marker = if selected { "▶ " } else { "  " };
         let text = match &e.summary {
             Ok(s) => format!(
-                "{marker}{:<22}{:>9}{:>14}{:>4}  {}",
+                "{marker}{:<22}{:>9}{:>14}{:>4} {:<8} {}",
                 clip_middle(&e.name, 21),
                 clip(&s.fill, 8),
                 clip(&s.cylinder, 13),
                 s.revision,
+                match model.library.screening.get(i).copied().flatten() {
+                    Some(Severity::Stop) => "STOP",
+                    Some(Severity::Caution) => "caution",
+                    Some(Severity::Ok) => "ok",
+                    None => "no plan",
+                },
                 clip(&s.title, title_w)
             ),
             Err(err) => {
