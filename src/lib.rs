@@ -19,6 +19,7 @@ pub mod recipe;
 pub mod record;
 pub mod ron_format;
 pub mod settings;
+pub mod speed;
 pub mod thermo;
 pub mod tui;
 pub mod units;

@@ -368,3 +368,49 @@ fn vapour_pressures_reach_below_the_correlations_and_say_how() {
     // Above the critical temperature there is none.
     assert!(vapour_pressure(&c, c.index_of("N2").unwrap(), 273.15).is_none());
 }
+
+#[test]
+fn a_two_phase_cylinder_has_one_pressure_and_the_isotherm_falls_smoothly() {
+    // Propane and n-butane (the LPG step of a fill, with methane still absent) in 10 L at
+    // 15 °C: between the dew and bubble pressures the equilibrium molar volume falls
+    // monotonically with pressure. The first release's Rachford–Rice stopped at the
+    // bisection midpoint whenever its function came out exactly 0, and the flash then
+    // settled on false states: the isotherm zig-zagged and cylinder pressures moved by up
+    // to 8 %.
+    let c = Catalogue::built_in();
+    let ids = ["C3H8".to_string(), "n-C4H10".to_string(), "CH4".to_string()];
+    let f = fluid(&c, &ids, Model::Pr);
+    let n = [1.524115358235912, 0.571543259338467, 0.0];
+    let total: f64 = n.iter().sum();
+    let z: Vec<f64> = n.iter().map(|v| v / total).collect();
+    let mut last = f64::INFINITY;
+    let mut two_phase = 0;
+    for k in 0..=80 {
+        let p = 3.9e5 + k as f64 * 0.02e5;
+        let e = f.equilibrium_tp(288.15, p, &z).unwrap();
+        assert!(e.molar_volume_m3 <= last * (1.0 + 1e-12), "the volume rises at {} bar", p / 1e5);
+        last = e.molar_volume_m3;
+        if e.phase == Phase::TwoPhase {
+            two_phase += 1;
+            // Equal fugacities in the two phases.
+            let (x, y) = (e.liquid.unwrap(), e.vapour.unwrap());
+            let (ll, _) = f.ln_phi_on(288.15, p, &x, true).unwrap();
+            let (lv, _) = f.ln_phi_on(288.15, p, &y, false).unwrap();
+            for i in 0..2 {
+                assert!(((x[i].ln() + ll[i]) - (y[i].ln() + lv[i])).abs() < 1e-8, "{} bar", p / 1e5);
+            }
+        }
+    }
+    assert!(two_phase > 40, "{two_phase}");
+    // The cylinder's pressure is the one whose equilibrium volume is V/n.
+    let e = f.equilibrium_tv(288.15, 0.01, &n).unwrap();
+    assert_eq!(e.phase, Phase::TwoPhase);
+    let back = f.equilibrium_tp(288.15, e.pressure_pa, &z).unwrap();
+    assert!((back.molar_volume_m3 / (0.01 / total) - 1.0).abs() < 1e-8, "{}", back.molar_volume_m3);
+    // Rachford–Rice where its function is exactly 0 at a Newton step.
+    let k = [1.4542, 0.4186];
+    let zz = [0.72728, 0.27272];
+    let beta = fillwright::thermo::phases::rachford_rice(&zz, &k).unwrap();
+    let residual: f64 = zz.iter().zip(&k).map(|(zi, ki)| zi * (ki - 1.0) / (1.0 + beta * (ki - 1.0))).sum();
+    assert!(residual.abs() < 1e-12, "{beta}: {residual}");
+}

@@ -334,20 +334,47 @@ impl Fluid {
             let p = if self.model == screen.model { p_screen } else { self.pressure_tv(t_k, v, &z)? };
             return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
         }
-        // Split: find the pressure whose equilibrium volume (on the screen) is V/n.
+        // Split: find the pressure whose equilibrium volume (on the screen) is V/n. The
+        // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
+        // on ln v_eq − ln v over ln P, bisecting every third step, to 1e-9 in ln P.
+        let target = v.ln();
+        let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
+            let e = screen.equilibrium_tp(t_k, lp.exp().min(MAX_PRESSURE_PA), &z)?;
+            Ok((e.molar_volume_m3.ln() - target, e))
+        };
         let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
-        let mut best = None;
-        for _ in 0..60 {
-            let mid = 0.5 * (lo + hi);
-            let e = screen.equilibrium_tp(t_k, mid.exp(), &z)?;
-            let above = e.molar_volume_m3 > v;
+        let (mut f_lo, e_lo) = gap(lo)?;
+        let (mut f_hi, e_hi) = gap(hi)?;
+        let mut best = Some(if f_lo.abs() < f_hi.abs() { e_lo } else { e_hi });
+        let mut side = 0i8;
+        for k in 0..200 {
+            if hi - lo < 1e-9 {
+                break;
+            }
+            let secant = lo + (hi - lo) * f_lo / (f_lo - f_hi);
+            let mid = if k % 3 == 2 || !(secant > lo && secant < hi) { 0.5 * (lo + hi) } else { secant };
+            let (f, e) = gap(mid)?;
             best = Some(e);
-            if above {
+            if f == 0.0 {
+                break;
+            }
+            if f > 0.0 {
+                // The equilibrium volume is still above V/n: the pressure is higher.
                 lo = mid;
+                f_lo = f;
+                if side == 1 {
+                    f_hi *= 0.5;
+                }
+                side = 1;
             } else {
                 hi = mid;
+                f_hi = f;
+                if side == -1 {
+                    f_lo *= 0.5;
+                }
+                side = -1;
             }
-            if hi - lo < 1e-9 {
+            if f.abs() < 1e-13 {
                 break;
             }
         }
@@ -419,25 +446,44 @@ impl Fluid {
                 }
             })
             .collect();
+        let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        let n = z.len();
+        let (mut x, mut y) = (vec![0.0; n], vec![0.0; n]);
+        let (mut ln_l, mut ln_v) = (vec![0.0; n], vec![0.0; n]);
+        let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
+        let rt_p = R * t_k / p_pa;
         for _ in 0..1000 {
-            let Some(beta) = rachford_rice(z, &k) else { return Ok(None) };
-            let x: Vec<f64> = z.iter().zip(&k).map(|(zi, ki)| zi / (1.0 + beta * (ki - 1.0))).collect();
-            let y: Vec<f64> = x.iter().zip(&k).map(|(xi, ki)| xi * ki).collect();
-            let (sx, sy): (f64, f64) = (x.iter().sum(), y.iter().sum());
-            let x: Vec<f64> = x.iter().map(|v| v / sx).collect();
-            let y: Vec<f64> = y.iter().map(|v| v / sy).collect();
-            let (ln_l, v_l) = self.ln_phi_on(t_k, p_pa, &x, true)?;
-            let (ln_v, v_v) = self.ln_phi_on(t_k, p_pa, &y, false)?;
+            // The negative flash while iterating: K-values from the trial phase may put the
+            // feed just outside the two-phase region (β a little above 1 near the dew
+            // point); the iteration goes on from there, and only its converged β decides.
+            let Some(beta) = rachford_rice_negative(z, &k) else { return Ok(None) };
+            let (mut sx, mut sy) = (0.0, 0.0);
+            for i in 0..n {
+                x[i] = z[i] / (1.0 + beta * (k[i] - 1.0));
+                y[i] = x[i] * k[i];
+                sx += x[i];
+                sy += y[i];
+            }
+            for i in 0..n {
+                x[i] /= sx;
+                y[i] /= sy;
+            }
+            let z_l = cubic.ln_phi_into(p_pa, &x, RootChoice::Liquid, &mut ln_l).ok_or_else(no_root)?;
+            let z_v = cubic.ln_phi_into(p_pa, &y, RootChoice::Vapour, &mut ln_v).ok_or_else(no_root)?;
             let mut change: f64 = 0.0;
-            for i in 0..k.len() {
-                let new = (ln_l[i] - ln_v[i]).exp();
-                change = change.max((new.ln() - k[i].ln()).abs());
-                k[i] = new;
+            for i in 0..n {
+                let ln_new = ln_l[i] - ln_v[i];
+                change = change.max((ln_new - k[i].ln()).abs());
+                k[i] = ln_new.exp();
             }
             if k.iter().all(|ki| (ki - 1.0).abs() < 1e-6) {
                 return Ok(None); // collapsed to the trivial solution
             }
             if change < 1e-10 {
+                if !(beta > 0.0 && beta < 1.0) {
+                    return Ok(None); // converged outside the two-phase region: one phase
+                }
+                let (v_l, v_v) = (z_l * rt_p, z_v * rt_p);
                 return Ok(Some(Equilibrium {
                     phase: Phase::TwoPhase,
                     pressure_pa: p_pa,
@@ -517,6 +563,45 @@ fn single(phase: Phase, p_pa: f64, v: f64, model: Model) -> Equilibrium {
 
 /// The vapour fraction β solving Σ z_i (K_i − 1)/(1 + β(K_i − 1)) = 0 in (0, 1), by
 /// bisection safeguarded Newton; None when the root lies outside (one phase).
+/// The Rachford–Rice root on the whole interval where every phase composition is positive,
+/// β ∈ (1/(1 − K_max), 1/(1 − K_min)) (the "negative flash": β may fall outside [0, 1]).
+/// None when the K-values are all on one side of 1.
+fn rachford_rice_negative(z: &[f64], k: &[f64]) -> Option<f64> {
+    let present = || z.iter().zip(k).filter(|(zi, _)| **zi > TRACE).map(|(_, ki)| *ki);
+    let k_max = present().fold(f64::NEG_INFINITY, f64::max);
+    let k_min = present().fold(f64::INFINITY, f64::min);
+    if !(k_max > 1.0 && k_min < 1.0) {
+        return None;
+    }
+    let f = |b: f64| -> (f64, f64) {
+        z.iter().zip(k).filter(|(zi, _)| **zi > TRACE).fold((0.0, 0.0), |(s, d), (zi, ki)| {
+            let den = 1.0 + b * (ki - 1.0);
+            (s + zi * (ki - 1.0) / den, d - zi * (ki - 1.0).powi(2) / (den * den))
+        })
+    };
+    let (mut lo, mut hi) = (1.0 / (1.0 - k_max), 1.0 / (1.0 - k_min));
+    // f falls from +∞ at lo to −∞ at hi; start inside [0, 1] where it lies there.
+    let mut b = 0.5f64.clamp(lo + 1e-12 * (hi - lo), hi - 1e-12 * (hi - lo));
+    for _ in 0..300 {
+        let (v, d) = f(b);
+        // The root itself: stop here, before a step could move off it.
+        if v.abs() < 1e-15 {
+            break;
+        }
+        if v > 0.0 {
+            lo = b;
+        } else {
+            hi = b;
+        }
+        let newton = b - v / d;
+        b = if newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
+        if (hi - lo) <= 1e-15 * hi.abs().max(1.0) {
+            break;
+        }
+    }
+    b.is_finite().then_some(b)
+}
+
 pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
     let f = |b: f64| -> (f64, f64) {
         z.iter().zip(k).fold((0.0, 0.0), |(s, d), (zi, ki)| {
@@ -531,6 +616,12 @@ pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
     let mut b = 0.5;
     for _ in 0..200 {
         let (v, d) = f(b);
+        // The root itself: stop here. (Testing after the step, as the first release did,
+        // left b at the bisection midpoint whenever f came out exactly 0, a β off by up to
+        // half the bracket, and with it a false flash.)
+        if v.abs() < 1e-15 {
+            break;
+        }
         if v > 0.0 {
             lo = b;
         } else {
@@ -538,7 +629,7 @@ pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
         }
         let newton = b - v / d;
         b = if newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
-        if hi - lo < 1e-15 || v.abs() < 1e-15 {
+        if hi - lo < 1e-15 {
             break;
         }
     }
