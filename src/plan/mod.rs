@@ -779,7 +779,9 @@ fn follow(
 }
 
 /// The s ≥ 0 at which the rising function `f` reaches `target`, with f(0) = `f0` < target
-/// and `guess` a first bracket end. Regula falsi with bisection safeguard, to 1e-15.
+/// and `guess` a close estimate (the step's planned amount). Bracketed within 2 % of the
+/// guess where it can be (widening as needed), then regula falsi with the Illinois
+/// modification, to 1e-15 relative in f: a handful of evaluations, each a new composition.
 /// `None` when no bracket is found; `Some(Err)` when `f` fails.
 fn solve_rising(
     f: impl Fn(f64) -> Result<f64, ThermoError>,
@@ -787,44 +789,86 @@ fn solve_rising(
     f0: f64,
     guess: f64,
 ) -> Option<Result<f64, ThermoError>> {
+    let eval = |s: f64| -> Option<Result<f64, ThermoError>> { Some(f(s)) };
     let (mut lo, mut f_lo) = (0.0, f0);
     let mut hi = guess;
-    let mut f_hi = match f(hi) {
+    let mut f_hi = match eval(hi)? {
         Ok(v) => v,
         Err(e) => return Some(Err(e)),
     };
-    let mut doublings = 0;
-    while f_hi < target {
-        lo = hi;
-        f_lo = f_hi;
-        hi *= 2.0;
-        f_hi = match f(hi) {
-            Ok(v) => v,
-            Err(e) => return Some(Err(e)),
-        };
-        doublings += 1;
-        if doublings > 60 {
-            return None;
+    if f_hi < target {
+        // Walk up from the guess: 2 %, then doubling the stride.
+        let mut stride = 0.02 * guess;
+        let mut steps = 0;
+        while f_hi < target {
+            lo = hi;
+            f_lo = f_hi;
+            hi += stride;
+            stride *= 2.0;
+            f_hi = match eval(hi)? {
+                Ok(v) => v,
+                Err(e) => return Some(Err(e)),
+            };
+            steps += 1;
+            if steps > 80 {
+                return None;
+            }
+        }
+    } else {
+        // The lower end: 2 % below the guess, then doubling the stride down, to the first
+        // amount where the function is below the target (or 0, where it is f0).
+        let mut stride = 0.02 * guess;
+        let mut s = guess;
+        while s - stride > 0.0 {
+            let next = s - stride;
+            match eval(next)? {
+                Ok(v) if v < target => {
+                    lo = next;
+                    f_lo = v;
+                    break;
+                }
+                Ok(v) => {
+                    hi = next;
+                    f_hi = v;
+                }
+                Err(e) => return Some(Err(e)),
+            }
+            s = next;
+            stride *= 2.0;
         }
     }
-    for i in 0..200 {
-        let secant = lo + (target - f_lo) / (f_hi - f_lo) * (hi - lo);
-        // Every third step bisects, so that one-sided convergence cannot stall.
-        let mid = if i % 3 == 2 || !(secant > lo && secant < hi) { 0.5 * (lo + hi) } else { secant };
-        let f_mid = match f(mid) {
+    let mut side = 0i8;
+    let (mut w_lo, mut w_hi) = (1.0, 1.0);
+    let mut last = 0.5 * (lo + hi);
+    for _ in 0..200 {
+        let (a, b) = ((f_lo - target) * w_lo, (f_hi - target) * w_hi);
+        let secant = lo + (hi - lo) * a / (a - b);
+        let mid = if secant > lo && secant < hi { secant } else { 0.5 * (lo + hi) };
+        let f_mid = match eval(mid)? {
             Ok(v) => v,
             Err(e) => return Some(Err(e)),
         };
+        last = mid;
         if (f_mid - target).abs() <= 1e-15 * target || hi - lo <= 1e-16 * hi {
             return Some(Ok(mid));
         }
         if f_mid < target {
             lo = mid;
             f_lo = f_mid;
+            w_lo = 1.0;
+            if side == -1 {
+                w_hi *= 0.5;
+            }
+            side = -1;
         } else {
             hi = mid;
             f_hi = f_mid;
+            w_hi = 1.0;
+            if side == 1 {
+                w_lo *= 0.5;
+            }
+            side = 1;
         }
     }
-    Some(Ok(0.5 * (lo + hi)))
+    Some(Ok(last))
 }
