@@ -280,11 +280,12 @@ fn z_curves(p: &Plan, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f
         .iter()
         .filter_map(|&m| {
             let f = Fluid::new(catalogue, &p.gases, m).ok()?;
-            let pts: Vec<(f64, f64)> = (0..=30)
-                .filter_map(|k| {
-                    let p_bar = 1.0 + (top - 1.0) * k as f64 / 30.0;
-                    f.state_tp(o.reference_temperature_k, p_bar * 1e5, &x).ok().map(|s| (p_bar, s.z))
-                })
+            let bars: Vec<f64> = (0..=30).map(|k| 1.0 + (top - 1.0) * k as f64 / 30.0).collect();
+            let pascals: Vec<f64> = bars.iter().map(|b| b * 1e5).collect();
+            let pts: Vec<(f64, f64)> = bars
+                .iter()
+                .zip(f.isotherm_z(o.reference_temperature_k, &pascals, &x))
+                .filter_map(|(&b, z)| z.map(|z| (b, z)))
                 .collect();
             Some((m, pts))
         })
