@@ -160,12 +160,12 @@ pub struct ZSolution {
 }
 
 /// Residual Gibbs energy G^R/RT of the fluid at Z (= Σ x_i ln φ_i).
-fn g_residual(kind: CubicKind, z: f64, big_a: f64, big_b: f64) -> f64 {
+pub(crate) fn g_residual(kind: CubicKind, z: f64, big_a: f64, big_b: f64) -> f64 {
     z - 1.0 - (z - big_b).ln() - big_a / big_b * integral_i(kind, z, big_b)
 }
 
 /// I = ∫ terms of the generic cubic: ln((Z + σB)/(Z + εB)) / (σ − ε), or B/Z when ε = σ.
-fn integral_i(kind: CubicKind, z: f64, big_b: f64) -> f64 {
+pub(crate) fn integral_i(kind: CubicKind, z: f64, big_b: f64) -> f64 {
     let (eps, sig) = kind.epsilon_sigma();
     if sig == eps {
         big_b / z
@@ -203,14 +203,22 @@ pub fn z_roots(kind: CubicKind, m: &Mix, t_k: f64, p_pa: f64) -> Vec<f64> {
     let rt = R * t_k;
     let big_a = m.a * p_pa / (rt * rt);
     let big_b = m.b * p_pa / rt;
-    let (eps, sig) = kind.epsilon_sigma();
-    let c2 = -(1.0 + big_b - (eps + sig) * big_b);
-    let c1 = big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b);
-    let c0 = -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b));
+    let (c2, c1, c0) = z_coefficients(kind, big_a, big_b);
     let mut roots: Vec<f64> = real_cubic_roots(c2, c1, c0).into_iter().filter(|&z| z > big_b).collect();
     roots.sort_by(f64::total_cmp);
     roots.dedup_by(|a, b| (*a - *b).abs() <= 1e-12 * b.abs());
     roots
+}
+
+/// The coefficients (c2, c1, c0) of the cubic in Z, z³ + c2 z² + c1 z + c0 = 0, of the
+/// generic form at A = aP/(RT)² and B = bP/(RT).
+pub(crate) fn z_coefficients(kind: CubicKind, big_a: f64, big_b: f64) -> (f64, f64, f64) {
+    let (eps, sig) = kind.epsilon_sigma();
+    (
+        -(1.0 + big_b - (eps + sig) * big_b),
+        big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b),
+        -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b)),
+    )
 }
 
 /// ln φ_i of each component at a solved Z.

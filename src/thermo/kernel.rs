@@ -8,7 +8,7 @@
 // Indexed loops over the components read as the formulas do.
 #![allow(clippy::needless_range_loop)]
 
-use super::cubic::{self, CubicKind};
+use super::cubic::{self, g_residual, integral_i, CubicKind};
 use super::Fluid;
 use crate::units::R;
 
@@ -138,26 +138,9 @@ impl CubicAt {
     }
 }
 
-/// G^R/RT at Z (as in [`cubic`]).
-fn g_residual(kind: CubicKind, z: f64, big_a: f64, big_b: f64) -> f64 {
-    z - 1.0 - (z - big_b).ln() - big_a / big_b * integral_i(kind, z, big_b)
-}
-
-fn integral_i(kind: CubicKind, z: f64, big_b: f64) -> f64 {
-    let (eps, sig) = kind.epsilon_sigma();
-    if sig == eps {
-        big_b / z
-    } else {
-        ((z + sig * big_b) / (z + eps * big_b)).ln() / (sig - eps)
-    }
-}
-
 /// The roots of the cubic in Z above B, smallest first, without allocation.
 fn z_roots(kind: CubicKind, big_a: f64, big_b: f64) -> ([f64; 3], usize) {
-    let (eps, sig) = kind.epsilon_sigma();
-    let c2 = -(1.0 + big_b - (eps + sig) * big_b);
-    let c1 = big_a + eps * sig * big_b * big_b - (eps + sig) * big_b * (1.0 + big_b);
-    let c0 = -(big_a * big_b + eps * sig * big_b * big_b * (1.0 + big_b));
+    let (c2, c1, c0) = cubic::z_coefficients(kind, big_a, big_b);
     let (all, m) = cubic::real_cubic_roots_fixed(c2, c1, c0);
     let mut out = [0.0; 3];
     let mut count = 0;

@@ -579,42 +579,16 @@ fn rachford_rice_negative(z: &[f64], k: &[f64]) -> Option<f64> {
             (s + zi * (ki - 1.0) / den, d - zi * (ki - 1.0).powi(2) / (den * den))
         })
     };
-    let (mut lo, mut hi) = (1.0 / (1.0 - k_max), 1.0 / (1.0 - k_min));
+    let (lo, hi) = (1.0 / (1.0 - k_max), 1.0 / (1.0 - k_min));
     // f falls from +∞ at lo to −∞ at hi; start inside [0, 1] where it lies there.
-    let mut b = 0.5f64.clamp(lo + 1e-12 * (hi - lo), hi - 1e-12 * (hi - lo));
-    for _ in 0..300 {
-        let (v, d) = f(b);
-        // The root itself: stop here, before a step could move off it.
-        if v.abs() < 1e-15 {
-            break;
-        }
-        if v > 0.0 {
-            lo = b;
-        } else {
-            hi = b;
-        }
-        let newton = b - v / d;
-        b = if newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
-        if (hi - lo) <= 1e-15 * hi.abs().max(1.0) {
-            break;
-        }
-    }
+    let b = rachford_rice_root(f, lo, hi, 0.5f64.clamp(lo + 1e-12 * (hi - lo), hi - 1e-12 * (hi - lo)));
     b.is_finite().then_some(b)
 }
 
-pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
-    let f = |b: f64| -> (f64, f64) {
-        z.iter().zip(k).fold((0.0, 0.0), |(s, d), (zi, ki)| {
-            let den = 1.0 + b * (ki - 1.0);
-            (s + zi * (ki - 1.0) / den, d - zi * (ki - 1.0).powi(2) / (den * den))
-        })
-    };
-    if f(0.0).0 <= 0.0 || f(1.0).0 >= 0.0 {
-        return None;
-    }
-    let (mut lo, mut hi) = (0.0f64, 1.0f64);
-    let mut b = 0.5;
-    for _ in 0..200 {
+/// The root of the falling Rachford–Rice function `f` (value and slope) in (lo, hi), from
+/// `b`: Newton steps kept inside the bracket, bisection where they leave it.
+fn rachford_rice_root(f: impl Fn(f64) -> (f64, f64), mut lo: f64, mut hi: f64, mut b: f64) -> f64 {
+    for _ in 0..300 {
         let (v, d) = f(b);
         // The root itself: stop here. (Testing after the step, as the first release did,
         // left b at the bisection midpoint whenever f came out exactly 0, a β off by up to
@@ -629,9 +603,22 @@ pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
         }
         let newton = b - v / d;
         b = if newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
-        if hi - lo < 1e-15 {
+        if (hi - lo) <= 1e-15 * hi.abs().max(1.0) {
             break;
         }
     }
-    Some(b)
+    b
+}
+
+pub fn rachford_rice(z: &[f64], k: &[f64]) -> Option<f64> {
+    let f = |b: f64| -> (f64, f64) {
+        z.iter().zip(k).fold((0.0, 0.0), |(s, d), (zi, ki)| {
+            let den = 1.0 + b * (ki - 1.0);
+            (s + zi * (ki - 1.0) / den, d - zi * (ki - 1.0).powi(2) / (den * den))
+        })
+    };
+    if f(0.0).0 <= 0.0 || f(1.0).0 >= 0.0 {
+        return None;
+    }
+    Some(rachford_rice_root(f, 0.0, 1.0, 0.5))
 }
