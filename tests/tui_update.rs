@@ -671,6 +671,9 @@ fn the_fill_sheet_is_written_for_the_bench_folder() {
     let text = std::fs::read_to_string(&path).unwrap();
     assert!(text.starts_with("FILL SHEET  Flue-gas span"), "{text}");
     assert!(text.contains("STEPS") && text.contains("CAUTION"), "{text}");
+    // The printed sheet has the comparison the screen leaves out of its recompute.
+    assert!(text.contains("STOPPING AT EACH MODEL'S READINGS"), "{text}");
+    assert!(model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().following.is_empty());
     // And as a PDF for the printer, holding the same stop readings.
     let pdf = path.with_extension("pdf");
     let back = std::process::Command::new("pdftotext")

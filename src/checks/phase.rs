@@ -658,17 +658,19 @@ impl<'a> Tracer<'a> {
             let (mut out_ln, mut in_ln) = (points[stable], points[split]);
             let (mut out_m, mut in_m) = (at[stable].measure, at[split].measure);
             let mut trials = at[split].trials.clone();
-            for _ in 0..60 {
+            // Regula falsi (Illinois) where both ends have a measure, bisection where not.
+            let (mut w_in, mut w_out) = (1.0, 1.0);
+            let mut side = 0i8;
+            for _ in 0..100 {
                 if (out_ln - in_ln).abs() < 1e-7 {
                     break;
                 }
                 let mid = match (in_m, out_m) {
                     (Some(fi), Some(fo)) => {
-                        let lp = in_ln + (out_ln - in_ln) * (fi - SPLIT) / (fi - fo);
+                        let (a, b) = ((fi - SPLIT) * w_in, (fo - SPLIT) * w_out);
+                        let lp = in_ln + (out_ln - in_ln) * a / (a - b);
                         let (lo, hi) = (in_ln.min(out_ln), in_ln.max(out_ln));
-                        // Regula falsi kept inside, alternating with bisection so that a
-                        // one-sided approach cannot stall.
-                        if lp > lo + 0.05 * (hi - lo) && lp < hi - 0.05 * (hi - lo) {
+                        if lp > lo && lp < hi {
                             lp
                         } else {
                             0.5 * (lo + hi)
@@ -681,9 +683,22 @@ impl<'a> Tracer<'a> {
                     in_ln = mid;
                     in_m = p.measure;
                     trials = p.trials;
+                    w_in = 1.0;
+                    if side == 1 {
+                        w_out *= 0.5;
+                    }
+                    side = 1;
                 } else {
                     out_ln = mid;
                     out_m = p.measure;
+                    w_out = 1.0;
+                    if side == -1 {
+                        w_in *= 0.5;
+                    }
+                    side = -1;
+                }
+                if in_m.is_some_and(|m| (m - SPLIT).abs() < 1e-13) {
+                    return Ok(in_ln.exp());
                 }
             }
             Ok((0.5 * (out_ln + in_ln)).exp())

@@ -118,6 +118,8 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
         default_model: settings.default_model,
         resolutions: plan::Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
         min_temperature_k: Some(conditions.judged_down_to_k()),
+        // The screening does not use the comparison of following each model's readings.
+        skip_following: true,
         ..PlanOptions::default()
     };
     // Both cores (every core) for many recipes; collect keeps the order of the list.

@@ -88,6 +88,7 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         fill_temperature_k,
         order: args.order.clone(),
         resolutions: Resolutions { gauge_pa, scale_g },
+        skip_following: false,
     };
     let plan = plan::plan(&order, &catalogue, &options).map_err(|e| match &origin {
         Some(o) => Refused(format!("{o}: {e}")),

@@ -12,6 +12,7 @@ pub mod replan;
 pub mod sources;
 
 use nalgebra::{DMatrix, DVector};
+use rayon::prelude::*;
 
 use crate::gas::Catalogue;
 use crate::recipe::{Before, Fill, Order};
@@ -49,6 +50,9 @@ pub struct PlanOptions {
     /// Lowest storage temperature, K, down to which each step is judged for liquid
     /// (default 0 °C, the settings' default).
     pub min_temperature_k: Option<f64>,
+    /// Leave out the "stopping at each model's readings" comparison (the screen shows it
+    /// only on the printed sheet, and makes it then).
+    pub skip_following: bool,
 }
 
 /// The lowest storage temperature when none is given: 0 °C (common practice for cylinders
@@ -466,16 +470,17 @@ fn step_pressures(
     t_k: f64,
 ) -> Result<Vec<(f64, Vec<f64>)>, ThermoError> {
     let mut n = d.heel_mol.clone();
-    let mut out = Vec::with_capacity(d.sequence.len());
+    let mut after = Vec::with_capacity(d.sequence.len());
     for &k in &d.sequence {
         let x_src = source_vector(setup, k);
         for (ni, xi) in n.iter_mut().zip(&x_src) {
             *ni += d.source_mol[k] * xi;
         }
-        // Where the contents are partly liquid, the reading is their equilibrium pressure.
-        out.push((fluid.pressure_in_cylinder(t_k, order.volume_m3, &n)?, n.clone()));
+        after.push(n.clone());
     }
-    Ok(out)
+    // Where the contents are partly liquid, the reading is their equilibrium pressure. The
+    // steps are independent once their amounts are known: both cores.
+    after.into_par_iter().map(|n| Ok((fluid.pressure_in_cylinder(t_k, order.volume_m3, &n)?, n))).collect()
 }
 
 /// What a step's contents do between the fill temperature and the lowest storage
@@ -534,7 +539,13 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     // The scale and the gauge start from the heel.
     let mut scale = order.tare_g.unwrap_or(0.0) + heel.as_ref().map_or(0.0, |h| h.mass_g);
     let mut previous_pa = heel.as_ref().map_or(0.0, |h| h.pressure_at_fill_pa);
-    for (&k, (p_after, n_after)) in d.sequence.iter().zip(pressures) {
+    // Liquid from each step's contents, at the fill temperature or on cooling (both cores).
+    let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
+    let judgements: Vec<Judged> = pressures
+        .par_iter()
+        .map(|(_, n_after)| judge_step(&fluid, t_fill, t_min, order.volume_m3, n_after))
+        .collect::<Result<_, _>>()?;
+    for ((&k, (p_after, n_after)), judged) in d.sequence.iter().zip(pressures).zip(judgements) {
         let source = &order.sources[k];
         let add_mass_g = d.source_mol[k] * source.composition.molar_mass(catalogue);
         scale += add_mass_g;
@@ -542,10 +553,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         if add_mass_g < options.resolutions.scale_g {
             flags.push(StepFlag::BelowScaleResolution);
         }
-        // Liquid from this step's contents, at the fill temperature or on cooling.
-        let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
         let last = steps.len() + 1 == d.sequence.len();
-        let judged = judge_step(&fluid, t_fill, t_min, order.volume_m3, &n_after)?;
         let liquid_at_fill = matches!(judged, Judged::AtFill);
         match judged {
             Judged::Gas => {}
@@ -623,8 +631,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         z: totals.z,
         step_pressures_pa: steps.iter().map(|s| s.pressure_after_pa).collect(),
     };
+    // Each on its own core where one is free (rayon keeps the order).
     let models: Vec<ModelPlan> = Model::ALL
-        .iter()
+        .par_iter()
         .map(|&m| {
             if m == model {
                 return ModelPlan { model: m, result: Ok(own.clone()) };
@@ -651,6 +660,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let mut truths = vec![model];
     if model != Model::Gerg && setup.gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id())) {
         truths.push(Model::Gerg);
+    }
+    if options.skip_following {
+        truths.clear();
     }
     let following = truths
         .into_iter()

@@ -197,7 +197,9 @@ pub struct Computed {
 
 impl Computed {
     /// The plan options the screen uses: the settings' model, resolutions and storage range.
-    fn options(settings: &Resolved) -> PlanOptions {
+    /// The screen does not show the comparison of following each model's readings; the
+    /// printed sheet makes it ([`super::sheet::export`]).
+    pub fn options(settings: &Resolved) -> PlanOptions {
         PlanOptions {
             default_model: settings.default_model,
             resolutions: plan::Resolutions {
@@ -205,6 +207,7 @@ impl Computed {
                 scale_g: settings.scale_resolution_g,
             },
             min_temperature_k: Some(settings.conditions().judged_down_to_k()),
+            skip_following: true,
             ..PlanOptions::default()
         }
     }
@@ -224,13 +227,13 @@ impl Computed {
             Err(e) => Err(e.clone()),
         };
         let conditions = settings.conditions();
-        let checks = match (&plan, &order) {
-            (Ok(p), Ok(o)) => Some(checks::screen(p, o, catalogue, &conditions)),
-            _ => None,
-        };
-        let z_curves = match (&plan, &order) {
-            (Ok(p), Ok(o)) => z_curves(p, o, catalogue),
-            _ => Vec::new(),
+        // The screening and the charts on both cores.
+        let (checks, z_curves) = match (&plan, &order) {
+            (Ok(p), Ok(o)) => {
+                let (c, z) = rayon::join(|| checks::screen(p, o, catalogue, &conditions), || z_curves(p, o, catalogue));
+                (Some(c), z)
+            }
+            _ => (None, Vec::new()),
         };
         Computed { order, plan, checks, z_curves, key: heavy_key(recipe, settings), reused: false }
     }
@@ -276,8 +279,9 @@ fn heavy_key(recipe: &Recipe, settings: &Resolved) -> String {
 fn z_curves(p: &Plan, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f64)>)> {
     let x: Vec<f64> = p.components.iter().map(|c| c.mole_fraction).collect();
     let top = 1.2 * p.totals.pressure_pa / 1e5;
+    use rayon::prelude::*;
     Eos::ALL
-        .iter()
+        .par_iter()
         .filter_map(|&m| {
             let f = Fluid::new(catalogue, &p.gases, m).ok()?;
             let bars: Vec<f64> = (0..=30).map(|k| 1.0 + (top - 1.0) * k as f64 / 30.0).collect();

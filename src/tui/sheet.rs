@@ -87,6 +87,11 @@ pub fn export(model: &mut Model, ctx: &Context) {
     if doc.dirty() {
         text.push_str("UNSAVED EDITS: this sheet is of the recipe as edited, not of a saved revision.\n\n");
     }
+    // The printed sheet has the comparison of following each model's readings, which the
+    // screen leaves out of its recompute: the plan is made again with it.
+    let options = crate::plan::PlanOptions { skip_following: false, ..super::model::Computed::options(&ctx.settings) };
+    let full = crate::plan::plan(order, &ctx.catalogue, &options);
+    let plan = full.as_ref().unwrap_or(plan);
     text.push_str(&crate::cli::plan::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));
     // The text for the bench folder's screen, the PDF for its printer (the certificate's
     // machinery: Courier on A4, nothing embedded).
