@@ -977,4 +977,20 @@ fn the_library_shows_each_recipes_worst_check() {
         assert_eq!(*s, own.checks.as_ref().map(|c| fillwright::checks::worst(c)), "{}", e.name);
     }
     assert!(model.library.screening.iter().any(|s| s.is_some()));
+    // A recipe changed on disk is screened again at the next refresh; the others keep theirs.
+    let mut model = model;
+    let i = model.library.entries.iter().position(|e| e.name == "flue-gas-span").unwrap();
+    assert_ne!(model.library.screening[i], Some(fillwright::checks::Severity::Stop));
+    let path = model.library.entries[i].path.clone();
+    let text = std::fs::read_to_string(&path).unwrap().replace("Pressure(\"150bar\")", "Pressure(\"250bar\")");
+    assert!(text.contains("250bar"));
+    std::fs::write(&path, text).unwrap();
+    let others = model.library.screening.clone();
+    update::refresh(&mut model, &ctx);
+    assert_eq!(model.library.screening[i], Some(fillwright::checks::Severity::Stop), "above the working pressure");
+    for (k, s) in model.library.screening.iter().enumerate() {
+        if k != i {
+            assert_eq!(*s, others[k]);
+        }
+    }
 }

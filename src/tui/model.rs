@@ -404,6 +404,9 @@ pub struct LibraryState {
     /// The worst screening result of each entry (None: it does not plan), computed on
     /// both cores when the list is read.
     pub screening: Vec<Option<checks::Severity>>,
+    /// The last screening of each recipe by name, with the fingerprint of the file it was
+    /// made from and the settings it was made with: a refresh screens only what changed.
+    pub screened: std::collections::HashMap<String, (crate::library::Fingerprint, String, Option<checks::Severity>)>,
     /// Search text; the list shows only matching recipes.
     pub filter: Option<Input>,
     pub selected: usize,

@@ -129,7 +129,7 @@ pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
 pub fn refresh(model: &mut Model, ctx: &Context) {
     match ctx.library.list() {
         Ok(entries) => {
-            model.library.screening = screen_entries(&entries, ctx);
+            model.library.screening = screen_entries(&entries, ctx, &mut model.library.screened);
             model.library.entries = entries;
         }
         Err(e) => model.status = format!("cannot list the library: {e}"),
@@ -139,15 +139,38 @@ pub fn refresh(model: &mut Model, ctx: &Context) {
 }
 
 /// The worst screening result of each library entry, planned and screened in parallel
-/// (the order of the list is kept).
-fn screen_entries(entries: &[crate::library::Entry], ctx: &Context) -> Vec<Option<crate::checks::Severity>> {
+/// (the order of the list is kept); a recipe whose file and the settings are as at the
+/// last refresh keeps its result from `cache`.
+fn screen_entries(
+    entries: &[crate::library::Entry],
+    ctx: &Context,
+    cache: &mut std::collections::HashMap<
+        String,
+        (crate::library::Fingerprint, String, Option<crate::checks::Severity>),
+    >,
+) -> Vec<Option<crate::checks::Severity>> {
     use rayon::prelude::*;
-    entries
+    let settings = format!("{:?}", ctx.settings);
+    let results: Vec<(String, Option<(crate::library::Fingerprint, Option<crate::checks::Severity>)>)> = entries
         .par_iter()
         .map(|e| {
-            let recipe = ctx.library.open(&e.name).ok()?.recipe;
-            let c = Computed::screening_only(&recipe, &ctx.catalogue, &ctx.settings);
-            c.map(|checks| crate::checks::worst(&checks))
+            let Ok(opened) = ctx.library.open(&e.name) else { return (e.name.clone(), None) };
+            if let Some((fp, s, worst)) = cache.get(&e.name) {
+                if *fp == opened.fingerprint && *s == settings {
+                    return (e.name.clone(), Some((*fp, *worst)));
+                }
+            }
+            let c = Computed::screening_only(&opened.recipe, &ctx.catalogue, &ctx.settings);
+            (e.name.clone(), Some((opened.fingerprint, c.map(|checks| crate::checks::worst(&checks)))))
+        })
+        .collect();
+    cache.clear();
+    results
+        .into_iter()
+        .map(|(name, r)| {
+            let (fp, worst) = r?;
+            cache.insert(name, (fp, settings.clone(), worst));
+            worst
         })
         .collect()
 }
