@@ -397,6 +397,10 @@ impl Document {
     }
 }
 
+/// The last screening of each library recipe: name → (file fingerprint, settings, worst).
+pub type ScreeningCache =
+    std::collections::HashMap<String, (crate::library::Fingerprint, String, Option<checks::Severity>)>;
+
 /// The library view's state.
 #[derive(Debug, Clone, Default)]
 pub struct LibraryState {
@@ -406,7 +410,7 @@ pub struct LibraryState {
     pub screening: Vec<Option<checks::Severity>>,
     /// The last screening of each recipe by name, with the fingerprint of the file it was
     /// made from and the settings it was made with: a refresh screens only what changed.
-    pub screened: std::collections::HashMap<String, (crate::library::Fingerprint, String, Option<checks::Severity>)>,
+    pub screened: ScreeningCache,
     /// Search text; the list shows only matching recipes.
     pub filter: Option<Input>,
     pub selected: usize,

@@ -144,14 +144,12 @@ pub fn refresh(model: &mut Model, ctx: &Context) {
 fn screen_entries(
     entries: &[crate::library::Entry],
     ctx: &Context,
-    cache: &mut std::collections::HashMap<
-        String,
-        (crate::library::Fingerprint, String, Option<crate::checks::Severity>),
-    >,
+    cache: &mut super::model::ScreeningCache,
 ) -> Vec<Option<crate::checks::Severity>> {
     use rayon::prelude::*;
     let settings = format!("{:?}", ctx.settings);
-    let results: Vec<(String, Option<(crate::library::Fingerprint, Option<crate::checks::Severity>)>)> = entries
+    type Found = Option<(crate::library::Fingerprint, Option<crate::checks::Severity>)>;
+    let results: Vec<(String, Found)> = entries
         .par_iter()
         .map(|e| {
             let Ok(opened) = ctx.library.open(&e.name) else { return (e.name.clone(), None) };
