@@ -994,3 +994,25 @@ fn the_library_shows_each_recipes_worst_check() {
         }
     }
 }
+
+#[test]
+fn a_long_cascade_at_80_by_24_still_shows_how_to_accept_it() {
+    let (mut model, mut ctx, dir) = setup("cascade-80");
+    let text = r#"Recipe(format: 1, name: "h2s-trace", components: [(gas: "H2S", amount: "50ppb"),
+        (gas: "N2", amount: "balance")], cylinder: (water_capacity: "10L", working_pressure: "200bar",
+        test_pressure: "300bar"), fill: Pressure("150bar"))"#;
+    std::fs::write(dir.join("library/h2s-trace.ron"), text).unwrap();
+    update::refresh(&mut model, &ctx);
+    open(&mut model, &mut ctx, "h2s-trace");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
+    let stages = match &model.doc.as_ref().unwrap().computed.plan {
+        Ok(p) => p.premixes[0].stages.len(),
+        Err(e) => panic!("{e}"),
+    };
+    assert!(stages >= 3, "{stages}");
+    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(80, 24)).unwrap();
+    terminal.draw(|f| fillwright::tui::view::view(&model, &ctx.catalogue, f)).unwrap();
+    let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
+    assert!(screen.contains("a  accept"), "{screen}");
+    assert!(screen.contains("PREMIX PROPOSED"), "{screen}");
+}

@@ -829,13 +829,16 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
             boxed(frame, centered(area, 56, 4), "Delete", lines);
         }
         Overlay::Premixes { selected } => {
-            let mut lines: Vec<Line> = super::premixes::lines(model, *selected).into_iter().map(Line::raw).collect();
-            for hint in [
+            // The keys first, so that a long cascade cut at the foot of a small window
+            // still shows how to accept it.
+            let mut lines: Vec<Line> = [
                 "a  accept: each stage becomes a library recipe,",
                 "   the blend takes the last as its source · Esc close",
-            ] {
-                lines.push(Line::styled(hint, theme.dim()));
-            }
+            ]
+            .into_iter()
+            .map(|hint| Line::styled(hint, theme.dim()))
+            .collect();
+            lines.extend(super::premixes::lines(model, *selected).into_iter().map(Line::raw));
             let h = (lines.len() as u16 + 2).min(area.height);
             let w = area.width.min(84);
             boxed(frame, centered(area, w, h), "Premixes", lines);
