@@ -788,12 +788,54 @@ fn follow(
         if target <= p_now {
             continue;
         }
-        let s = solve_rising(p_of, target, p_now, d.source_mol[k].max(1e-12)).ok_or_else(|| {
-            ThermoError::NoState { model: truth.model(), why: "no amount reaches the reading".into() }
-        })??;
+        let guess = d.source_mol[k].max(1e-12);
+        // Newton's method with the analytic dP/ds = Σ_i a_i ∂P/∂n_i where the model has it
+        // (the cubics, the ideal gas); the bracketing solve otherwise, or where Newton fails.
+        let slope = |s: f64| -> Option<f64> {
+            let dp = truth.dpressure_damounts(t_k, order.volume_m3, &with(s))?;
+            Some(dp.iter().zip(&x_src).map(|(a, b)| a * b).sum())
+        };
+        let s = match newton_rising(&p_of, &slope, target, guess) {
+            Some(s) => s,
+            None => solve_rising(p_of, target, p_now, guess).ok_or_else(|| ThermoError::NoState {
+                model: truth.model(),
+                why: "no amount reaches the reading".into(),
+            })??,
+        };
         n = with(s);
     }
     Ok(n)
+}
+
+/// Newton's method for f(s) = target from `guess`, with the derivative `slope`, to 1e-15
+/// relative in f. None where a derivative is missing, a step leaves s > 0 or does not
+/// settle in 30 steps (the caller then brackets).
+fn newton_rising(
+    f: &impl Fn(f64) -> Result<f64, ThermoError>,
+    slope: &impl Fn(f64) -> Option<f64>,
+    target: f64,
+    guess: f64,
+) -> Option<f64> {
+    let mut s = guess;
+    for _ in 0..30 {
+        let v = f(s).ok()?;
+        if (v - target).abs() <= 1e-15 * target {
+            return Some(s);
+        }
+        let d = slope(s)?;
+        if !(d > 0.0) {
+            return None;
+        }
+        let next = s - (v - target) / d;
+        if !(next > 0.0 && next.is_finite()) {
+            return None;
+        }
+        if (next - s).abs() <= 1e-16 * s {
+            return Some(next);
+        }
+        s = next;
+    }
+    None
 }
 
 /// The s ≥ 0 at which the rising function `f` reaches `target`, with f(0) = `f0` < target
@@ -925,5 +967,12 @@ mod tests {
             let s = solve_rising(|s| Ok(s + s * s * s), 10.0, 0.0, guess).unwrap().unwrap();
             assert!((s - 2.0).abs() < 1e-14, "{guess}: {s}");
         }
+        // Newton's method with the derivative 1 + 3s² gets there too, from either side.
+        for guess in [1.5, 2.5, 4.0] {
+            let s = newton_rising(&|s: f64| Ok(s + s * s * s), &|s: f64| Some(1.0 + 3.0 * s * s), 10.0, guess).unwrap();
+            assert!((s - 2.0).abs() < 1e-14, "{guess}: {s}");
+        }
+        // Without a derivative it declines, and the caller brackets.
+        assert!(newton_rising(&|s: f64| Ok(s), &|_| None, 10.0, 1.0).is_none());
     }
 }

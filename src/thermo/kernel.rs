@@ -103,6 +103,13 @@ impl CubicAt {
         (a, b)
     }
 
+    /// Σ_j n_j a_ij for each i, and b_i, for amounts `n` (not fractions): the rows of the
+    /// extensive mixing rule.
+    pub fn extensive_rows(&mut self, n: &[f64]) -> (Vec<f64>, Vec<f64>) {
+        self.mix(n);
+        (self.a_row.clone(), self.b_i.clone())
+    }
+
     /// ln φ_i of composition `x` (mole fractions summing to 1) at `p_pa` on the chosen root,
     /// written into `out`; returns Z, or None where the cubic has no root above B.
     pub fn ln_phi_into(&mut self, p_pa: f64, x: &[f64], root: RootChoice, out: &mut [f64]) -> Option<f64> {

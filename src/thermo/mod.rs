@@ -360,6 +360,41 @@ impl Fluid {
             .collect()
     }
 
+    /// ∂P/∂n_k at (T, V, n), Pa/mol, analytic, for the ideal gas and the cubics (None for
+    /// GERG-2008, whose crate has no composition derivatives). With the extensive
+    /// B = Σ n_i b_i, A = Σ n_i n_j a_ij, N = Σ n_i and D = (V + εB)(V + σB):
+    /// ∂P/∂n_k = RT/(V − B) + NRT b_k/(V − B)² − 2 Σ_j n_j a_kj / D
+    ///           + A b_k ((ε + σ)V + 2εσB) / D².
+    pub fn dpressure_damounts(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Option<Vec<f64>> {
+        let rt = R * t_k;
+        match (self.model, self.model.cubic_kind()) {
+            (Model::Ideal, _) => Some(vec![rt / volume_m3; amounts_mol.len()]),
+            (_, Some(kind)) => {
+                let mut k = kernel::CubicAt::new(self, t_k)?;
+                let (a_row, b_i) = k.extensive_rows(amounts_mol);
+                let v = volume_m3;
+                let n: f64 = amounts_mol.iter().sum();
+                let big_b: f64 = amounts_mol.iter().zip(&b_i).map(|(ni, bi)| ni * bi).sum();
+                let big_a: f64 = amounts_mol.iter().zip(&a_row).map(|(ni, ai)| ni * ai).sum();
+                if !(v > big_b) {
+                    return None;
+                }
+                let (eps, sig) = kind.epsilon_sigma();
+                let d = (v + eps * big_b) * (v + sig * big_b);
+                let dd = (eps + sig) * v + 2.0 * eps * sig * big_b;
+                Some(
+                    (0..amounts_mol.len())
+                        .map(|i| {
+                            rt / (v - big_b) + n * rt * b_i[i] / ((v - big_b) * (v - big_b)) - 2.0 * a_row[i] / d
+                                + big_a * b_i[i] * dd / (d * d)
+                        })
+                        .collect(),
+                )
+            }
+            _ => None,
+        }
+    }
+
     pub fn amount(&self, t_k: f64, p_pa: f64, volume_m3: f64, x: &[f64]) -> Result<f64, ThermoError> {
         if !(volume_m3.is_finite() && volume_m3 > 0.0) {
             return Err(ThermoError::Volume(volume_m3 * 1e3));
@@ -400,6 +435,25 @@ mod tests {
         let c = Catalogue::built_in();
         let idx: Vec<usize> = ids.iter().map(|id| c.index_of(id).unwrap()).collect();
         Fluid::new(&c, &idx, model).unwrap()
+    }
+
+    #[test]
+    fn the_analytic_pressure_derivative_matches_central_differences() {
+        let n = [50.0, 4.0, 3.0, 2.5];
+        for model in [Model::Ideal, Model::Vdw, Model::Rk, Model::Srk, Model::Pr] {
+            let f = fluid(&["CH4", "N2", "CO2", "C2H6"], model);
+            let d = f.dpressure_damounts(288.15, 0.01, &n).unwrap();
+            for k in 0..4 {
+                let h = 1e-6 * n[k];
+                let (mut up, mut down) = (n, n);
+                up[k] += h;
+                down[k] -= h;
+                let fd =
+                    (f.pressure(288.15, 0.01, &up).unwrap() - f.pressure(288.15, 0.01, &down).unwrap()) / (2.0 * h);
+                assert!((d[k] / fd - 1.0).abs() < 1e-6, "{model} component {k}: {} vs {fd}", d[k]);
+            }
+        }
+        assert!(fluid(&["CH4", "N2"], Model::Gerg).dpressure_damounts(288.15, 0.01, &[1.0, 1.0]).is_none());
     }
 
     #[test]
