@@ -111,13 +111,22 @@ pub struct Mix {
 /// Van der Waals one-fluid mixing:
 /// a = Σ_i Σ_j x_i x_j √(a_i a_j)(1 − k_ij), b = Σ_i x_i b_i.
 pub fn mix(kind: CubicKind, components: &[CubicComponent], kij: &[Vec<f64>], x: &[f64], t_k: f64) -> Mix {
-    let (a_i, b_i): (Vec<f64>, Vec<f64>) = components.iter().map(|c| c.a_b(kind, t_k)).unzip();
     let n = components.len();
+    let mut b_i = Vec::with_capacity(n);
+    // √a_i once per component: √(a_i a_j) = √a_i √a_j, n square roots instead of n².
+    let mut root_a = Vec::with_capacity(n);
+    for c in components {
+        let (a, b) = c.a_b(kind, t_k);
+        root_a.push(a.sqrt());
+        b_i.push(b);
+    }
     let mut a_row = vec![0.0; n];
     for i in 0..n {
+        let mut s = 0.0;
         for j in 0..n {
-            a_row[i] += x[j] * (a_i[i] * a_i[j]).sqrt() * (1.0 - kij[i][j]);
+            s += x[j] * root_a[j] * (1.0 - kij[i][j]);
         }
+        a_row[i] = root_a[i] * s;
     }
     let a = (0..n).map(|i| x[i] * a_row[i]).sum();
     let b = (0..n).map(|i| x[i] * b_i[i]).sum();
