@@ -83,16 +83,6 @@ fn fluid(c: &Catalogue, ids: &[String], model: Model) -> Fluid {
     Fluid::new(c, &idx, model).unwrap()
 }
 
-fn phase_fluid<'a>(c: &Catalogue, fluid: &'a Fluid, ids: &[String]) -> PhaseFluid<'a> {
-    let g: Vec<_> = ids.iter().map(|id| c.gas(c.index_of(id).unwrap())).collect();
-    PhaseFluid {
-        fluid,
-        tc: g.iter().map(|g| g.tc_k()).collect(),
-        pc: g.iter().map(|g| g.pc_pa()).collect(),
-        omega: g.iter().map(|g| g.omega()).collect(),
-    }
-}
-
 #[test]
 fn gerg_saturation_of_pure_gases_agrees_with_the_reference_equations() {
     let f = fixture();
@@ -153,7 +143,7 @@ fn dew_and_bubble_points_agree_with_thermos_pr_flash_to_a_tenth_of_a_kelvin() {
     let mut bubbles = 0;
     for m in &f.mixtures {
         let fl = fluid(&c, &m.ids, Model::Pr);
-        let phase = phase_fluid(&c, &fl, &m.ids);
+        let phase = PhaseFluid::new(&fl);
         for d in &m.dew_points {
             let t = phase.dew_temperature(d.pressure_pa, &m.x, 80.0).unwrap().unwrap();
             assert!(
@@ -194,7 +184,7 @@ fn the_margin_covers_the_gap_to_the_multifluid_cricondentherm() {
     let mut worst: f64 = 0.0;
     for e in &f.multifluid_cricondentherms {
         let fl = fluid(&c, &e.ids, Model::Pr);
-        let phase = phase_fluid(&c, &fl, &e.ids);
+        let phase = PhaseFluid::new(&fl);
         let (t, _) = phase.cricondentherm(&e.x, 80.0, 1000e5).unwrap().unwrap();
         let gap = e.cricondentherm_k - t;
         worst = worst.max(gap);

@@ -117,12 +117,7 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
     }
 
     // The equation of state.
-    let phase = PhaseFluid {
-        fluid: &fluid,
-        tc: gases.iter().map(|&g| catalogue.gas(g).tc_k()).collect(),
-        pc: gases.iter().map(|&g| catalogue.gas(g).pc_pa()).collect(),
-        omega: gases.iter().map(|&g| catalogue.gas(g).omega()).collect(),
-    };
+    let phase = PhaseFluid::new(&fluid);
     // The equation of state is asked down to the lowest storage temperature less the
     // margin: liquid is assumed wherever the model's dew point plus the margin reaches it.
     let t_low = c.judged_down_to_k();

@@ -6,65 +6,33 @@
 //! stationary point W the distance is tm = 1 − Σ W, so ln Σ W is a continuous measure of
 //! how far the feed is from splitting: positive inside the envelope, zero on it, negative
 //! just outside (where the stationary point still exists). The envelope is traced with it:
-//! each dew point is a root of ln Σ W in T at fixed P, bracketed from the previous point's
-//! temperature and trial phase (continuation) and found by regula falsi (Illinois), with
-//! bisection where the trial falls onto the feed itself; the cricondentherm is the largest
-//! dew temperature over ln P, from a grid refined by Brent's method. The same judgement as a
+//! each dew point is a root of ln Σ W in T at fixed P, found by Newton's method from the
+//! neighbouring dew point and its incipient liquid (continuation); where Newton fails it
+//! is bracketed and found by regula falsi (Illinois), with bisection where the trial falls
+//! onto the feed itself. The cricondentherm is the largest dew temperature over ln P, from
+//! a grid refined by Brent's method. The same judgement as a
 //! yes/no verdict is [`Fluid::stability`].
 
 // Indexed loops over the components read as the formulas do.
 #![allow(clippy::needless_range_loop)]
 
 use crate::thermo::kernel::{CubicAt, RootChoice};
+use crate::thermo::phases::{wilson, Stationary, TangentPlane};
 use crate::thermo::{Fluid, ThermoError};
 
 /// Smallest mole fraction treated as present.
 const TRACE: f64 = crate::thermo::phases::TRACE;
 
-/// A fluid prepared for phase calculations: its critical constants bound the searches.
+/// A fluid prepared for phase calculations: its critical temperatures bound the searches.
 pub struct PhaseFluid<'a> {
     pub fluid: &'a Fluid,
     pub tc: Vec<f64>,
-    pub pc: Vec<f64>,
-    pub omega: Vec<f64>,
 }
-
-use crate::thermo::Model;
-
-/// Feeds on which the envelope search is checked (label, ids, mole fractions, models):
-/// the demo blends, the phase fixture's mixtures, and the hard cases (near-critical, nine
-/// components, traces of heavy components, CO2-rich).
-#[allow(clippy::type_complexity)]
-pub const ENVELOPE_CASES: &[(&str, &[&str], &[f64], &[Model])] = &[
-    ("propane-5-in-N2", &["C3H8", "N2"], &[0.05, 0.95], &[Model::Pr, Model::Srk]),
-    ("butane-2-in-N2", &["n-C4H10", "N2"], &[0.02, 0.98], &[Model::Pr]),
-    ("co2-30-in-N2", &["CO2", "N2"], &[0.3, 0.7], &[Model::Pr, Model::Srk]),
-    (
-        "natural-gas-9",
-        &["CH4", "C2H6", "C3H8", "i-C4H10", "n-C4H10", "i-C5H12", "n-C5H12", "N2", "CO2"],
-        &[0.897, 0.05, 0.015, 0.003, 0.003, 0.001, 0.001, 0.02, 0.01],
-        &[Model::Pr, Model::Srk],
-    ),
-    ("lpg-in-methane", &["C3H8", "n-C4H10", "CH4"], &[0.08, 0.03, 0.89], &[Model::Pr]),
-    ("pentane-1-in-methane", &["n-C5H12", "CH4"], &[0.01, 0.99], &[Model::Pr]),
-    ("co2-10-in-methane", &["CO2", "CH4"], &[0.1, 0.9], &[Model::Pr]),
-    ("hexane-0.5-in-N2", &["n-C6H14", "N2"], &[0.005, 0.995], &[Model::Pr]),
-    ("octane-0.1-in-N2", &["n-C8H18", "N2"], &[0.001, 0.999], &[Model::Pr]),
-    ("decane-100ppm-in-methane", &["n-C10H22", "CH4"], &[1e-4, 0.9999], &[Model::Pr]),
-    ("ethane-propane-methane", &["C2H6", "C3H8", "CH4"], &[0.1, 0.05, 0.85], &[Model::Pr]),
-    ("near-critical-methane-ethane", &["CH4", "C2H6"], &[0.5, 0.5], &[Model::Pr]),
-    ("co2-rich-with-N2", &["CO2", "N2"], &[0.8, 0.2], &[Model::Pr]),
-    ("flue-gas", &["CO", "CH4", "CO2", "N2"], &[5e-4, 0.025, 0.15, 0.8245], &[Model::Pr]),
-    ("laser-gas", &["CO2", "N2", "He"], &[0.045, 0.135, 0.82], &[Model::Pr]),
-    ("h2s-co2-methane", &["H2S", "CO2", "CH4"], &[0.05, 0.05, 0.9], &[Model::Pr]),
-    ("propane-20-in-N2", &["C3H8", "N2"], &[0.2, 0.8], &[Model::Pr, Model::Vdw, Model::Rk]),
-];
 
 impl<'a> PhaseFluid<'a> {
     /// The fluid with its critical constants.
     pub fn new(fluid: &'a Fluid) -> PhaseFluid<'a> {
-        let (tc, pc, omega) = fluid.critical_constants();
-        PhaseFluid { fluid, tc, pc, omega }
+        PhaseFluid { fluid, tc: fluid.critical_temperatures() }
     }
 
     /// Whether the feed `z` splits into two phases at (T, P): Michelsen's tangent-plane
@@ -203,9 +171,16 @@ struct Tracer<'a> {
     cubic: CubicAt,
     z: &'a [f64],
     ln_z: Vec<f64>,
-    d: Vec<f64>,
     ln_phi: Vec<f64>,
     x: Vec<f64>,
+}
+
+/// Where a walk up in temperature from a point inside the envelope ends.
+enum Walk {
+    /// The last point inside and the first outside.
+    Bracket(Point, Point),
+    /// The feed still splits at the top of the search.
+    SplitsAtTop(Point),
 }
 
 impl<'a> Tracer<'a> {
@@ -217,7 +192,6 @@ impl<'a> Tracer<'a> {
             cubic,
             z,
             ln_z: z.iter().map(|v| if *v > TRACE { v.ln() } else { f64::NEG_INFINITY }).collect(),
-            d: vec![0.0; n],
             ln_phi: vec![0.0; n],
             x: vec![0.0; n],
         })
@@ -227,16 +201,11 @@ impl<'a> Tracer<'a> {
         self.phase.tc.iter().zip(self.z).filter(|(_, zi)| **zi > TRACE).map(|(t, _)| *t).fold(0.0, f64::max)
     }
 
-    /// Wilson's K-values at (T, P).
-    fn wilson(&self, t_k: f64, p_pa: f64, i: usize) -> f64 {
-        self.phase.pc[i] / p_pa * (5.373 * (1.0 + self.phase.omega[i]) * (1.0 - self.phase.tc[i] / t_k)).exp()
-    }
-
     /// A start for the first dew point at `p_pa`: the temperature where Σ z/K_Wilson = 1
     /// (bisected; it falls with T), and the trial phases from Wilson's K there.
     fn wilson_start(&self, p_pa: f64, t_floor_k: f64) -> Point {
         let top = self.highest_tc() * 1.6;
-        let sum = |t: f64| -> f64 { (0..self.z.len()).map(|i| self.z[i] / self.wilson(t, p_pa, i)).sum() };
+        let sum = |t: f64| -> f64 { self.z.iter().zip(wilson(self.phase.fluid, t, p_pa)).map(|(zi, k)| zi / k).sum() };
         let (mut lo, mut hi) = (t_floor_k.max(1.0), top);
         for _ in 0..60 {
             let mid = 0.5 * (lo + hi);
@@ -251,75 +220,47 @@ impl<'a> Tracer<'a> {
     }
 
     fn wilson_trials(&self, t_k: f64, p_pa: f64) -> [Vec<f64>; 2] {
-        let n = self.z.len();
-        let liquid: Vec<f64> = (0..n).map(|i| self.z[i] / self.wilson(t_k, p_pa, i)).collect();
-        let vapour: Vec<f64> = (0..n).map(|i| self.z[i] * self.wilson(t_k, p_pa, i)).collect();
-        [liquid, vapour]
+        let k = wilson(self.phase.fluid, t_k, p_pa);
+        [
+            self.z.iter().zip(&k).map(|(zi, ki)| zi / ki).collect(),
+            self.z.iter().zip(&k).map(|(zi, ki)| zi * ki).collect(),
+        ]
     }
 
     /// Evaluate the measure at (T, P), each trial started from `from`'s.
     fn evaluate(&mut self, t_k: f64, p_pa: f64, from: &[Vec<f64>; 2]) -> Result<Point, ThermoError> {
         self.cubic.set_temperature(t_k);
-        let n = self.z.len();
-        if self.cubic.ln_phi_into(p_pa, self.z, RootChoice::Stable, &mut self.ln_phi).is_none() {
-            return Err(ThermoError::NoState { model: self.phase.fluid.model(), why: "no root".into() });
-        }
-        for i in 0..n {
-            self.d[i] = self.ln_z[i] + self.ln_phi[i];
-        }
+        let no_root = || ThermoError::NoState { model: self.phase.fluid.model(), why: "no root".into() };
+        let mut tpd = TangentPlane::new(&mut self.cubic, p_pa, self.z).ok_or_else(no_root)?;
+        let wilson = self.wilson_trials(t_k, p_pa);
         let mut measure: Option<f64> = None;
         let mut trials = from.clone();
-        for w in trials.iter_mut() {
-            if let Some(m) = self.stationary(p_pa, w) {
-                measure = Some(measure.map_or(m, |v| v.max(m)));
-            }
-        }
-        // A trial that fell onto the feed restarts from Wilson's next time.
-        let wilson = self.wilson_trials(t_k, p_pa);
         for (k, w) in trials.iter_mut().enumerate() {
-            if w.iter().all(|v| *v == 0.0) {
-                *w = wilson[k].clone();
+            match tpd.stationary(&mut self.cubic, w) {
+                Some(Stationary::Point(m)) => measure = Some(measure.map_or(m, |v| v.max(m))),
+                // A trial that fell onto the feed restarts from Wilson's next time.
+                Some(Stationary::Feed) => *w = wilson[k].clone(),
+                Some(Stationary::Unsettled) | None => {}
             }
         }
         Ok(Point { t_k, measure, trials })
     }
 
-    /// Successive substitution from `w` to a stationary point of the tangent-plane
-    /// distance; `w` becomes its composition. Some(ln Σ W) for a non-trivial point; None
-    /// when the iteration falls onto the feed (then `w` is zeroed) or does not settle.
-    fn stationary(&mut self, p_pa: f64, w: &mut [f64]) -> Option<f64> {
-        let n = self.z.len();
-        for _ in 0..400 {
-            let sum: f64 = w.iter().sum();
-            if !(sum.is_finite() && sum > 0.0) {
-                break;
+    /// From a point inside, up in doubling steps (the first `step`) to the first point
+    /// outside, or to the top of the search.
+    fn walk_up(&mut self, p_pa: f64, mut inside: Point, mut step: f64, top: f64) -> Result<Walk, ThermoError> {
+        loop {
+            let t = (inside.t_k + step).min(top);
+            let next = self.evaluate(t, p_pa, &inside.trials)?;
+            if !next.splits() {
+                return Ok(Walk::Bracket(inside, next));
             }
-            for i in 0..n {
-                self.x[i] = w[i] / sum;
+            if t >= top {
+                return Ok(Walk::SplitsAtTop(next));
             }
-            self.cubic.ln_phi_into(p_pa, &self.x, RootChoice::Stable, &mut self.ln_phi)?;
-            let mut change: f64 = 0.0;
-            let mut distance: f64 = 0.0;
-            for i in 0..n {
-                if self.z[i] <= TRACE {
-                    w[i] = 0.0;
-                    continue;
-                }
-                let ln_w = self.d[i] - self.ln_phi[i];
-                change = change.max((ln_w - w[i].ln()).abs());
-                distance += (ln_w - self.ln_z[i]).powi(2);
-                w[i] = ln_w.exp();
-            }
-            if distance < 1e-8 {
-                w.iter_mut().for_each(|v| *v = 0.0);
-                return None;
-            }
-            if change < 1e-10 {
-                let sum: f64 = w.iter().sum();
-                return Some(sum.ln());
-            }
+            inside = next;
+            step *= 2.0;
         }
-        None
     }
 
     /// The dew temperature at `p_pa` from a start (a nearby dew point, or Wilson's): the
@@ -343,19 +284,9 @@ impl<'a> Tracer<'a> {
         let step0 = 0.002 * t0;
         let (mut inside, mut outside) = if first.splits() {
             // Walk up until the feed no longer splits.
-            let mut inside = first;
-            let mut step = step0;
-            loop {
-                let t = (inside.t_k + step).min(top);
-                let next = self.evaluate(t, p_pa, &inside.trials)?;
-                if !next.splits() {
-                    break (inside, next);
-                }
-                if t >= top {
-                    return Ok(Some((top, next)));
-                }
-                inside = next;
-                step *= 2.0;
+            match self.walk_up(p_pa, first, step0, top)? {
+                Walk::Bracket(inside, outside) => (inside, outside),
+                Walk::SplitsAtTop(point) => return Ok(Some((top, point))),
             }
         } else {
             // Outside. Where the measure says the envelope lies above (it rises with T),
@@ -387,22 +318,10 @@ impl<'a> Tracer<'a> {
             }
             if let Some(inside) = entered {
                 // Inside from below: on up to where the feed stops splitting.
-                let mut inside = inside;
-                let mut step = step0;
-                loop {
-                    let t = (inside.t_k + step).min(top);
-                    let next = self.evaluate(t, p_pa, &inside.trials)?;
-                    if !next.splits() {
-                        outside = next;
-                        break;
-                    }
-                    if t >= top {
-                        return Ok(Some((top, next)));
-                    }
-                    inside = next;
-                    step *= 2.0;
-                }
-                return Ok(Some(self.refine(p_pa, &mut inside, &mut outside)?));
+                return match self.walk_up(p_pa, inside, step0, top)? {
+                    Walk::Bracket(mut inside, mut outside) => Ok(Some(self.refine(p_pa, &mut inside, &mut outside)?)),
+                    Walk::SplitsAtTop(point) => Ok(Some((top, point))),
+                };
             }
             loop {
                 let t = outside.t_k - step;

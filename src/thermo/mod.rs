@@ -191,13 +191,9 @@ impl Fluid {
         self.model
     }
 
-    /// Critical temperatures (K), critical pressures (Pa) and acentric factors of the gases.
-    pub fn critical_constants(&self) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
-        (
-            self.cubic.iter().map(|c| c.tc_k).collect(),
-            self.cubic.iter().map(|c| c.pc_pa).collect(),
-            self.cubic.iter().map(|c| c.omega).collect(),
-        )
+    /// Critical temperatures of the gases, K.
+    pub fn critical_temperatures(&self) -> Vec<f64> {
+        self.cubic.iter().map(|c| c.tc_k).collect()
     }
 
     /// Mean molar mass, g/mol.

@@ -15,6 +15,9 @@
 //!
 //! The ideal-gas model has no liquid of its own; its phases are judged by the screen.
 
+// Indexed loops over the components read as the formulas do.
+#![allow(clippy::needless_range_loop)]
+
 use super::cubic::{self, Root};
 use super::kernel::{CubicAt, RootChoice};
 use super::{Fluid, Model, ThermoError, MAX_PRESSURE_PA, R};
@@ -74,6 +77,76 @@ pub struct Saturation {
     pub model: Model,
 }
 
+/// Where successive substitution from a trial phase ends.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) enum Stationary {
+    /// On the feed itself (the trivial solution): no new phase this way.
+    Feed,
+    /// At a stationary point W of the tangent-plane distance, tm = 1 − Σ W: ln Σ W.
+    Point(f64),
+    /// Not settled within the iterations allowed.
+    Unsettled,
+}
+
+/// Michelsen's tangent-plane distance of a feed at one (T, P) on a cubic: the feed's
+/// d_i = ln z_i + ln φ_i(z), and scratch for the iteration.
+pub(crate) struct TangentPlane<'a> {
+    p_pa: f64,
+    z: &'a [f64],
+    ln_z: Vec<f64>,
+    d: Vec<f64>,
+    x: Vec<f64>,
+    ln_phi: Vec<f64>,
+}
+
+impl<'a> TangentPlane<'a> {
+    /// None where the cubic has no root for the feed.
+    pub(crate) fn new(cubic: &mut CubicAt, p_pa: f64, z: &'a [f64]) -> Option<TangentPlane<'a>> {
+        let n = z.len();
+        let mut ln_phi = vec![0.0; n];
+        cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi)?;
+        let ln_z: Vec<f64> = z.iter().map(|v| if *v > TRACE { v.ln() } else { f64::NEG_INFINITY }).collect();
+        let d = (0..n).map(|i| if z[i] > TRACE { ln_z[i] + ln_phi[i] } else { f64::NEG_INFINITY }).collect();
+        Some(TangentPlane { p_pa, z, ln_z, d, x: vec![0.0; n], ln_phi })
+    }
+
+    /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
+    /// cubic's temperature, which must be the one `new` was made at); `w` ends as the
+    /// point reached. None where the cubic has no root on the way.
+    pub(crate) fn stationary(&mut self, cubic: &mut CubicAt, w: &mut [f64]) -> Option<Stationary> {
+        let n = self.z.len();
+        for _ in 0..400 {
+            let sum: f64 = w.iter().sum();
+            if !(sum.is_finite() && sum > 0.0) {
+                break;
+            }
+            for i in 0..n {
+                self.x[i] = w[i] / sum;
+            }
+            cubic.ln_phi_into(self.p_pa, &self.x, RootChoice::Stable, &mut self.ln_phi)?;
+            let mut change: f64 = 0.0;
+            let mut distance: f64 = 0.0;
+            for i in 0..n {
+                if self.z[i] <= TRACE {
+                    w[i] = 0.0;
+                    continue;
+                }
+                let ln_w = self.d[i] - self.ln_phi[i];
+                change = change.max((ln_w - w[i].ln()).abs());
+                distance += (ln_w - self.ln_z[i]).powi(2);
+                w[i] = ln_w.exp();
+            }
+            if distance < 1e-8 {
+                return Some(Stationary::Feed);
+            }
+            if change < 1e-10 {
+                return Some(Stationary::Point(w.iter().sum::<f64>().ln()));
+            }
+        }
+        Some(Stationary::Unsettled)
+    }
+}
+
 /// Wilson's K-value estimate, K_i = (Pc_i/P) exp(5.373 (1 + ω_i)(1 − Tc_i/T)).
 pub fn wilson(fluid: &Fluid, t_k: f64, p_pa: f64) -> Vec<f64> {
     fluid.cubic.iter().map(|c| c.pc_pa / p_pa * (5.373 * (1.0 + c.omega) * (1.0 - c.tc_k / t_k)).exp()).collect()
@@ -121,56 +194,16 @@ impl Fluid {
         Self::check_p(p_pa)?;
         self.check_x(z)?;
         let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
-        let n = z.len();
-        let mut ln_phi = vec![0.0; n];
-        if cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi).is_none() {
-            return Err(ThermoError::NoState { model: self.model, why: "no root".into() });
-        }
-        let d: Vec<f64> =
-            (0..n).map(|i| if z[i] > TRACE { z[i].ln() + ln_phi[i] } else { f64::NEG_INFINITY }).collect();
-        let ln_z: Vec<f64> = z.iter().map(|v| if *v > TRACE { v.ln() } else { f64::NEG_INFINITY }).collect();
+        let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
+        let mut tpd = TangentPlane::new(&mut cubic, p_pa, z).ok_or_else(no_root)?;
         let k = wilson(self, t_k, p_pa);
-        let mut x = vec![0.0; n];
-        let mut w = vec![0.0; n];
-        let mut ln_w = vec![0.0; n];
         for vapour_like in [true, false] {
-            for i in 0..n {
-                w[i] = if vapour_like { z[i] * k[i] } else { z[i] / k[i] };
-                ln_w[i] = w[i].ln();
-            }
-            for _ in 0..400 {
-                let sum: f64 = w.iter().sum();
-                if !(sum.is_finite() && sum > 0.0) {
-                    break;
-                }
-                for i in 0..n {
-                    x[i] = w[i] / sum;
-                }
-                if cubic.ln_phi_into(p_pa, &x, RootChoice::Stable, &mut ln_phi).is_none() {
-                    return Err(ThermoError::NoState { model: self.model, why: "no root".into() });
-                }
-                let mut change: f64 = 0.0;
-                let mut distance: f64 = 0.0;
-                for i in 0..n {
-                    if z[i] <= TRACE {
-                        w[i] = 0.0;
-                        continue;
-                    }
-                    let next = d[i] - ln_phi[i];
-                    change = change.max((next - ln_w[i]).abs());
-                    distance += (next - ln_z[i]).powi(2);
-                    ln_w[i] = next;
-                    w[i] = next.exp();
-                }
-                if distance < 1e-8 {
-                    break; // converged to the feed itself: no new phase this way
-                }
-                if change < 1e-10 {
+            let mut w: Vec<f64> =
+                z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
+            if let Stationary::Point(ln_sum) = tpd.stationary(&mut cubic, &mut w).ok_or_else(no_root)? {
+                if ln_sum > (1.0 + 1e-8f64).ln() {
                     let sum: f64 = w.iter().sum();
-                    if sum > 1.0 + 1e-8 {
-                        return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
-                    }
-                    break;
+                    return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
                 }
             }
         }
