@@ -143,40 +143,23 @@ fn the_before_fill_line_reads_back_as_written() {
 
 #[test]
 fn the_command_line_takes_a_heel_and_shows_it_as_step_0() {
-    let out = common::run_fillwright(
-        "heel",
-        &[
-            "plan",
-            "--mix",
-            "CO=500ppm,N2=balance",
-            "--volume",
-            "10L",
-            "--pressure",
-            "150bar",
-            "--before-fill",
-            "N2 at 20bar",
-            "--format",
-            "json",
-        ],
-    );
+    let plan = [
+        "plan",
+        "--mix",
+        "CO=500ppm,N2=balance",
+        "--volume",
+        "10L",
+        "--pressure",
+        "150bar",
+        "--before-fill",
+        "N2 at 20bar",
+    ];
+    let out = common::run_fillwright("heel", &[&plan[..], &["--format", "json"]].concat());
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert!((v["heel"]["pressure_at_fill_bar"].as_f64().unwrap() - 20.0).abs() < 1e-9);
     assert_eq!(v["heel"]["components"][0]["id"], "N2");
-    let text = common::run_fillwright(
-        "heel",
-        &[
-            "plan",
-            "--mix",
-            "CO=500ppm,N2=balance",
-            "--volume",
-            "10L",
-            "--pressure",
-            "150bar",
-            "--before-fill",
-            "N2 at 20bar",
-        ],
-    );
+    let text = common::run_fillwright("heel", &plan);
     let sheet = String::from_utf8_lossy(&text.stdout);
     assert!(sheet.lines().any(|l| l.trim_start().starts_with("0  heel (start)") && l.contains("20.000")), "{sheet}");
     let bad = common::run_fillwright(

@@ -176,11 +176,7 @@ fn the_fill_sheet_is_written_as_a_pdf_with_its_premix_stages() {
     );
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let text = String::from_utf8_lossy(&out.stdout);
-    let back = std::process::Command::new("pdftotext")
-        .args(["-layout", pdf.to_str().unwrap(), "-"])
-        .output()
-        .expect("pdftotext is needed to read the sheet back (poppler-utils; .ci/run installs it)");
-    let back = String::from_utf8_lossy(&back.stdout);
+    let back = common::pdf_text(&pdf);
     for line in text.lines().filter(|l| l.contains("go into") || l.starts_with("PREMIX")) {
         assert!(back.contains(line.trim()), "{line:?} missing from the PDF:\n{back}");
     }

@@ -5,7 +5,7 @@
 mod common;
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::Output;
 
 use fillwright::gas::Catalogue;
 use fillwright::plan::{self, PlanOptions};
@@ -280,11 +280,7 @@ fn the_pdf_holds_every_number_of_the_text_certificate() {
     let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "2000", "--pdf", pdf.to_str().unwrap()]);
     assert!(o.status.success());
     let text = out(&o);
-    let back = Command::new("pdftotext").args(["-layout", pdf.to_str().unwrap(), "-"]).output();
-    let Ok(back) = back else {
-        panic!("pdftotext is needed to read the certificate back (poppler-utils; .ci/run installs it)");
-    };
-    let back = String::from_utf8_lossy(&back.stdout);
+    let back = common::pdf_text(&pdf);
     let numbers = |s: &str| -> Vec<String> {
         s.split(|c: char| !(c.is_ascii_digit() || c == '.' || c == '-'))
             .filter(|w| w.chars().any(|c| c.is_ascii_digit()))

@@ -1,5 +1,7 @@
 //! The screen's update logic, driven by key messages with no terminal.
 
+mod common;
+
 use std::path::PathBuf;
 
 use fillwright::gas::Catalogue;
@@ -676,11 +678,7 @@ fn the_fill_sheet_is_written_for_the_bench_folder() {
     assert!(model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().following.is_empty());
     // And as a PDF for the printer, holding the same stop readings.
     let pdf = path.with_extension("pdf");
-    let back = std::process::Command::new("pdftotext")
-        .args(["-layout", pdf.to_str().unwrap(), "-"])
-        .output()
-        .expect("pdftotext is needed to read the sheet back (poppler-utils; .ci/run installs it)");
-    let back = String::from_utf8_lossy(&back.stdout);
+    let back = common::pdf_text(&pdf);
     assert!(back.contains("FILL SHEET") && back.contains("Flue-gas span"), "{back}");
     let stops: Vec<&str> = text.lines().filter(|l| l.trim_start().starts_with("1  CO ")).collect();
     assert!(!stops.is_empty());

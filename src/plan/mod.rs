@@ -797,10 +797,10 @@ fn follow(
         };
         let s = match newton_rising(&p_of, &slope, target, guess) {
             Some(s) => s,
-            None => solve_rising(p_of, target, p_now, guess).ok_or_else(|| ThermoError::NoState {
+            None => solve_rising(p_of, target, p_now, guess)?.ok_or_else(|| ThermoError::NoState {
                 model: truth.model(),
                 why: "no amount reaches the reading".into(),
-            })??,
+            })?,
         };
         n = with(s);
     }
@@ -842,20 +842,16 @@ fn newton_rising(
 /// and `guess` a close estimate (the step's planned amount). Bracketed within 2 % of the
 /// guess where it can be (widening as needed), then regula falsi with the Illinois
 /// modification, to 1e-15 relative in f: a handful of evaluations, each a new composition.
-/// `None` when no bracket is found; `Some(Err)` when `f` fails.
+/// `Ok(None)` when no bracket is found; an error of `f` is passed on.
 fn solve_rising(
     f: impl Fn(f64) -> Result<f64, ThermoError>,
     target: f64,
     f0: f64,
     guess: f64,
-) -> Option<Result<f64, ThermoError>> {
-    let eval = |s: f64| -> Option<Result<f64, ThermoError>> { Some(f(s)) };
+) -> Result<Option<f64>, ThermoError> {
     let (mut lo, mut f_lo) = (0.0, f0);
     let mut hi = guess;
-    let mut f_hi = match eval(hi)? {
-        Ok(v) => v,
-        Err(e) => return Some(Err(e)),
-    };
+    let mut f_hi = f(hi)?;
     if f_hi < target {
         // Walk up from the guess: 2 %, then doubling the stride.
         let mut stride = 0.02 * guess;
@@ -865,13 +861,10 @@ fn solve_rising(
             f_lo = f_hi;
             hi += stride;
             stride *= 2.0;
-            f_hi = match eval(hi)? {
-                Ok(v) => v,
-                Err(e) => return Some(Err(e)),
-            };
+            f_hi = f(hi)?;
             steps += 1;
             if steps > 80 {
-                return None;
+                return Ok(None);
             }
         }
     } else {
@@ -881,18 +874,14 @@ fn solve_rising(
         let mut s = guess;
         while s - stride > 0.0 {
             let next = s - stride;
-            match eval(next)? {
-                Ok(v) if v < target => {
-                    lo = next;
-                    f_lo = v;
-                    break;
-                }
-                Ok(v) => {
-                    hi = next;
-                    f_hi = v;
-                }
-                Err(e) => return Some(Err(e)),
+            let v = f(next)?;
+            if v < target {
+                lo = next;
+                f_lo = v;
+                break;
             }
+            hi = next;
+            f_hi = v;
             s = next;
             stride *= 2.0;
         }
@@ -904,13 +893,10 @@ fn solve_rising(
         let (a, b) = ((f_lo - target) * w_lo, (f_hi - target) * w_hi);
         let secant = lo + (hi - lo) * a / (a - b);
         let mid = if secant > lo && secant < hi { secant } else { 0.5 * (lo + hi) };
-        let f_mid = match eval(mid)? {
-            Ok(v) => v,
-            Err(e) => return Some(Err(e)),
-        };
+        let f_mid = f(mid)?;
         last = mid;
         if (f_mid - target).abs() <= 1e-15 * target || hi - lo <= 1e-16 * hi {
-            return Some(Ok(mid));
+            return Ok(Some(mid));
         }
         if f_mid < target {
             lo = mid;
@@ -930,7 +916,7 @@ fn solve_rising(
             side = 1;
         }
     }
-    Some(Ok(last))
+    Ok(Some(last))
 }
 
 #[cfg(test)]

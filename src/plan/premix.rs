@@ -149,19 +149,13 @@ pub fn propose(
         }
         let fill_pressure_pa = plan.totals.pressure_pa.min(order.working_pressure_pa);
         let stage_options = PlanOptions { order: None, ..options.clone() };
+        // The premix of strength f: the gas in the balance gas.
+        let premix = |f: f64| Composition { gases: vec![gas, balance_gas], fractions: vec![f, 1.0 - f] };
         let stage_order = |fraction: f64, from: Option<&Stage>| -> Order {
             let share = share_of(fraction);
-            let premix = Composition { gases: vec![gas, balance_gas], fractions: vec![fraction, 1.0 - fraction] };
             let first = match from {
                 None => pure(gas, catalogue),
-                Some(s) => Source {
-                    name: s.name.clone(),
-                    composition: Composition {
-                        gases: vec![gas, balance_gas],
-                        fractions: vec![s.fraction, 1.0 - s.fraction],
-                    },
-                    pure: false,
-                },
+                Some(s) => Source { name: s.name.clone(), composition: premix(s.fraction), pure: false },
             };
             Order {
                 name: stage_name(gas, fraction, balance_gas, catalogue),
@@ -172,7 +166,7 @@ pub fn propose(
                     Target { gas: balance_gas, share: Share::Balance, tolerance: None },
                 ],
                 balance: Some(1),
-                composition: premix,
+                composition: premix(fraction),
                 fill: Fill::PressurePa(fill_pressure_pa),
                 tare_g: None,
                 serial: None,
@@ -183,8 +177,10 @@ pub fn propose(
                 ..order.clone()
             }
         };
-        // The strengths, weakest first: each next one until the pure gas can be dosed.
+        // The strengths, weakest first: each next one until the pure gas can be dosed. The
+        // plan from the pure gas of the strongest is the first stage's.
         let mut fractions = Vec::new();
+        let mut from_pure = None;
         let mut need = x;
         while fractions.len() < MAX_STAGES {
             let f = round_down_125(need / MIN_PREMIX_SHARE);
@@ -192,23 +188,28 @@ pub fn propose(
                 break;
             }
             fractions.push(f);
-            let from_pure = planner(&stage_order(f, None), catalogue, &stage_options, MAX_STAGES);
-            let dosable = from_pure.as_ref().is_ok_and(|p| {
+            let planned = planner(&stage_order(f, None), catalogue, &stage_options, MAX_STAGES);
+            let dosable = planned.as_ref().is_ok_and(|p| {
                 p.steps.iter().all(|s| s.source != catalogue.gas(gas).id() || !s.flags.iter().any(|f| f.too_small()))
             });
-            if dosable || from_pure.is_err() {
+            let done = dosable || planned.is_err();
+            from_pure = Some(planned);
+            if done {
                 break;
             }
             need = f;
         }
-        if fractions.is_empty() {
-            continue;
-        }
-        // Plan the stages strongest first (from the pure gas), each from the one before.
+        let Some(from_pure) = from_pure else { continue };
+        // The stages strongest first (from the pure gas), each planned from the one before.
         let mut stages: Vec<Stage> = Vec::new();
+        let mut first_plan = Some(from_pure);
         for &f in fractions.iter().rev() {
             let o = stage_order(f, stages.last());
-            let plan = planner(&o, catalogue, &stage_options, MAX_STAGES).map(Box::new).map_err(|e| e.to_string());
+            let planned = match first_plan.take() {
+                Some(p) => p,
+                None => planner(&o, catalogue, &stage_options, MAX_STAGES),
+            };
+            let plan = planned.map(Box::new).map_err(|e| e.to_string());
             stages.push(Stage {
                 fraction: f,
                 spec: format!(
@@ -230,11 +231,8 @@ pub fn propose(
         let last = stages.len() - 1;
         let mut needed = step.add_amount_mol / stages[last].fraction;
         for k in (0..stages.len()).rev() {
-            let f = stages[k].fraction;
-            let molar =
-                Composition { gases: vec![gas, balance_gas], fractions: vec![f, 1.0 - f] }.molar_mass(catalogue);
             stages[k].needed_mol = needed;
-            stages[k].needed_g = needed * molar;
+            stages[k].needed_g = needed * premix(stages[k].fraction).molar_mass(catalogue);
             if k > 0 {
                 let from = &stages[k - 1].name;
                 needed = stages[k]

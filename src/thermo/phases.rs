@@ -147,6 +147,15 @@ impl<'a> TangentPlane<'a> {
     }
 }
 
+/// The composition and molar volume of `amounts_mol` in `volume_m3`.
+fn contents(volume_m3: f64, amounts_mol: &[f64]) -> Result<(Vec<f64>, f64), ThermoError> {
+    let total: f64 = amounts_mol.iter().sum();
+    if !(total > 0.0 && total.is_finite()) {
+        return Err(ThermoError::Amount(total));
+    }
+    Ok((amounts_mol.iter().map(|n| n / total).collect(), volume_m3 / total))
+}
+
 /// Wilson's K-value estimate, K_i = (Pc_i/P) exp(5.373 (1 + ω_i)(1 − Tc_i/T)).
 pub fn wilson(fluid: &Fluid, t_k: f64, p_pa: f64) -> Vec<f64> {
     fluid.cubic.iter().map(|c| c.pc_pa / p_pa * (5.373 * (1.0 + c.omega) * (1.0 - c.tc_k / t_k)).exp()).collect()
@@ -323,12 +332,7 @@ impl Fluid {
     /// The equilibrium state of `amounts_mol` in `volume_m3` at T: where gas and liquid
     /// coexist, the pressure is their common (vapour) pressure.
     pub fn equilibrium_tv(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<Equilibrium, ThermoError> {
-        let total: f64 = amounts_mol.iter().sum();
-        if !(total > 0.0 && total.is_finite()) {
-            return Err(ThermoError::Amount(total));
-        }
-        let z: Vec<f64> = amounts_mol.iter().map(|n| n / total).collect();
-        let v = volume_m3 / total;
+        let (z, v) = contents(volume_m3, amounts_mol)?;
         Self::check_t(t_k)?;
         self.check_x(&z)?;
         if !(v.is_finite() && v > 0.0) {
@@ -434,12 +438,7 @@ impl Fluid {
     /// Whether `amounts_mol` in `volume_m3` at T is not a gas: liquid, or gas and liquid
     /// together (the cheap yes/no of [`Fluid::equilibrium_tv`], without the flash).
     pub fn condensed_tv(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<bool, ThermoError> {
-        let total: f64 = amounts_mol.iter().sum();
-        if !(total > 0.0 && total.is_finite()) {
-            return Err(ThermoError::Amount(total));
-        }
-        let z: Vec<f64> = amounts_mol.iter().map(|n| n / total).collect();
-        let v = volume_m3 / total;
+        let (z, v) = contents(volume_m3, amounts_mol)?;
         if single_component(&z).is_some() {
             return Ok(self.saturation(t_k, &z)?.is_some_and(|s| v < s.v_vapour_m3));
         }

@@ -51,3 +51,12 @@ pub fn recipe_text(
         components.join(", ")
     )
 }
+
+/// The text of a PDF as pdftotext reads it back (layout kept).
+pub fn pdf_text(pdf: &std::path::Path) -> String {
+    let out = Command::new("pdftotext")
+        .args(["-layout", pdf.to_str().unwrap(), "-"])
+        .output()
+        .expect("pdftotext is needed to read a PDF back (poppler-utils; .ci/run installs it)");
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
