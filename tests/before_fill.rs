@@ -46,6 +46,7 @@ fn a_nitrogen_heel_is_counted_and_the_additions_make_up_the_rest() {
     let first = &p.steps[0];
     assert!((first.pressure_after_pa - first.increment_pa - 20e5).abs() < 1e-6);
     assert!((first.scale_reading_g - (13500.0 + heel.mass_g + first.add_mass_g)).abs() < 1e-9);
+    assert!((heel.scale_reading_g - (13500.0 + heel.mass_g)).abs() < 1e-9);
     // The last stop is still the fill pressure, and the amounts after it are the blend.
     assert!((p.steps.last().unwrap().pressure_after_pa / 150e5 - 1.0).abs() < 1e-9);
 }

@@ -1014,3 +1014,29 @@ fn a_long_cascade_at_80_by_24_still_shows_how_to_accept_it() {
     assert!(screen.contains("a  accept"), "{screen}");
     assert!(screen.contains("PREMIX PROPOSED"), "{screen}");
 }
+
+#[test]
+fn a_tare_edit_moves_the_heels_scale_reading_with_the_steps() {
+    use fillwright::tui::model::{fields, Field};
+    let (mut model, mut ctx, _dir) = setup("heel-tare");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    for (field, value) in [(Field::BeforeFill, "N2 at 10bar"), (Field::Tare, "13.512kg")] {
+        let doc = model.doc.as_mut().unwrap();
+        doc.field = fields(&doc.recipe).iter().position(|f| *f == field).unwrap();
+        keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+        text(&mut model, &mut ctx, value);
+        keys(&mut model, &mut ctx, &[Key::Enter]);
+    }
+    let doc = model.doc.as_ref().unwrap();
+    assert!(doc.computed.reused, "the tare reuses the plan");
+    let heel = doc.computed.plan.as_ref().unwrap().heel.clone().unwrap();
+    let fresh = fillwright::tui::model::Computed::of(&doc.recipe, &ctx.catalogue, &ctx.settings);
+    let want = fresh.plan.unwrap().heel.unwrap();
+    assert!(
+        (heel.scale_reading_g - want.scale_reading_g).abs() < 1e-9,
+        "{} vs {}",
+        heel.scale_reading_g,
+        want.scale_reading_g
+    );
+    assert!((heel.scale_reading_g - (13512.0 + heel.mass_g)).abs() < 1e-9);
+}

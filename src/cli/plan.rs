@@ -477,7 +477,7 @@ pub fn fill_sheet(
             "heel (start)",
             Sig(h.amounts_mol.iter().sum(), 4).to_string(),
             Sig(h.mass_g, 4).to_string(),
-            order.tare_g.unwrap_or(0.0) + h.mass_g,
+            h.scale_reading_g,
             d.pf(h.pressure_at_fill_pa),
             d.pf(h.pressure_at_fill_pa - ambient_pa),
             ""

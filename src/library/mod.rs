@@ -162,11 +162,18 @@ pub struct Summary {
     /// What a search looks in besides the name and title: the order reference, the
     /// cylinder serial and the gases, lower case.
     pub search_text: String,
+    /// The recipe as read, and the fingerprint of its file (for what is computed from it,
+    /// such as the screening column, without reading the file again).
+    pub recipe: Recipe,
+    pub fingerprint: Fingerprint,
 }
 
 impl Summary {
-    fn of(r: &Recipe) -> Summary {
+    fn of(o: &Opened) -> Summary {
+        let r = &o.recipe;
         Summary {
+            recipe: r.clone(),
+            fingerprint: o.fingerprint,
             title: r.name.clone(),
             fill: match &r.fill {
                 FillTarget::Pressure(p) => p.clone(),
@@ -343,7 +350,7 @@ impl Library {
             .into_iter()
             .map(|name| {
                 let path = self.dir.join(format!("{name}.ron"));
-                let summary = self.open(&name).map(|o| Summary::of(&o.recipe)).map_err(|e| e.to_string());
+                let summary = self.open(&name).map(|o| Summary::of(&o)).map_err(|e| e.to_string());
                 Entry { name, path, summary }
             })
             .collect();

@@ -186,6 +186,8 @@ pub struct Heel {
     /// Amount of each plan gas, mol.
     pub amounts_mol: Vec<f64>,
     pub mass_g: f64,
+    /// The scale reading before the first addition, g: the tare (when given) and the heel.
+    pub scale_reading_g: f64,
     /// Its pressure at the fill temperature: the gauge's reading before the first addition, Pa.
     pub pressure_at_fill_pa: f64,
 }
@@ -528,8 +530,11 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let pressures = step_pressures(&fluid, order, &setup, &d, t_fill)?;
     let mut steps = Vec::with_capacity(d.sequence.len());
     let heel = if d.heel_mol.iter().any(|n| *n > 0.0) {
+        let mass_g: f64 =
+            d.heel_mol.iter().zip(&setup.gases).map(|(n, &g)| n * catalogue.gas(g).molar_mass_g_per_mol).sum();
         Some(Heel {
-            mass_g: d.heel_mol.iter().zip(&setup.gases).map(|(n, &g)| n * catalogue.gas(g).molar_mass_g_per_mol).sum(),
+            mass_g,
+            scale_reading_g: order.tare_g.unwrap_or(0.0) + mass_g,
             pressure_at_fill_pa: fluid.pressure_in_cylinder(t_fill, order.volume_m3, &d.heel_mol)?,
             amounts_mol: d.heel_mol.clone(),
         })
@@ -537,7 +542,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         None
     };
     // The scale and the gauge start from the heel.
-    let mut scale = order.tare_g.unwrap_or(0.0) + heel.as_ref().map_or(0.0, |h| h.mass_g);
+    let mut scale = heel.as_ref().map_or(order.tare_g.unwrap_or(0.0), |h| h.scale_reading_g);
     let mut previous_pa = heel.as_ref().map_or(0.0, |h| h.pressure_at_fill_pa);
     // Liquid from each step's contents, at the fill temperature or on cooling (both cores).
     let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);

@@ -253,6 +253,9 @@ impl Computed {
             for s in p.steps.iter_mut() {
                 s.scale_reading_g += shift;
             }
+            if let Some(h) = p.heel.as_mut() {
+                h.scale_reading_g += shift;
+            }
         }
         Computed { order, plan, reused: true, ..previous.clone() }
     }

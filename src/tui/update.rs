@@ -152,14 +152,15 @@ fn screen_entries(
     let results: Vec<(String, Found)> = entries
         .par_iter()
         .map(|e| {
-            let Ok(opened) = ctx.library.open(&e.name) else { return (e.name.clone(), None) };
+            // The listing has read every recipe already.
+            let Ok(summary) = &e.summary else { return (e.name.clone(), None) };
             if let Some((fp, s, worst)) = cache.get(&e.name) {
-                if *fp == opened.fingerprint && *s == settings {
+                if *fp == summary.fingerprint && *s == settings {
                     return (e.name.clone(), Some((*fp, *worst)));
                 }
             }
-            let c = Computed::screening_only(&opened.recipe, &ctx.catalogue, &ctx.settings);
-            (e.name.clone(), Some((opened.fingerprint, c.map(|checks| crate::checks::worst(&checks)))))
+            let c = Computed::screening_only(&summary.recipe, &ctx.catalogue, &ctx.settings);
+            (e.name.clone(), Some((summary.fingerprint, c.map(|checks| crate::checks::worst(&checks)))))
         })
         .collect();
     cache.clear();

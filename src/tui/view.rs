@@ -410,7 +410,7 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
                 0,
                 "heel",
                 h.mass_g,
-                doc.computed.order.as_ref().ok().and_then(|o| o.tare_g).unwrap_or(0.0) + h.mass_g,
+                h.scale_reading_g,
                 d.pf(h.pressure_at_fill_pa),
                 d.pf(h.pressure_at_fill_pa - ambient),
             ),
