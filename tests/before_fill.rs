@@ -170,3 +170,21 @@ fn the_command_line_takes_a_heel_and_shows_it_as_step_0() {
     assert_eq!(bad.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&bad.stderr).contains("--before-fill"));
 }
+
+#[test]
+fn a_recipe_planned_for_a_cylinder_with_a_heel_starts_from_it() {
+    // --before-fill with a recipe replaces the recipe's own (evacuated) start.
+    let out = common::run_fillwright("heel-recipe", &["plan", "flue-gas-span", "--before-fill", "N2 at 10bar"]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let sheet = String::from_utf8_lossy(&out.stdout);
+    assert!(sheet.lines().any(|l| l.trim_start().starts_with("0  heel (start)")), "{sheet}");
+    // check applies it too: a CO heel richer than the blend makes the recipe unplannable.
+    let out = common::run_fillwright(
+        "heel-check",
+        &["check", "flue-gas-span", "--before-fill", "CO=1%,N2=balance at 100bar", "--format", "json"],
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let unreadable = v["unreadable"].as_array().unwrap();
+    assert_eq!(unreadable.len(), 1, "{v}");
+    assert!(unreadable[0]["error"].as_str().unwrap().contains("heel"), "{v}");
+}

@@ -108,6 +108,7 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
             if let Some(p) = test {
                 o.test_pressure_pa = p;
             }
+            args.given.apply_before_fill(o, &catalogue)?;
             if o.test_pressure_pa < o.working_pressure_pa {
                 *order = Err(format!("{origin}: the test pressure is below the working pressure"));
             }

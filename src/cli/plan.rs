@@ -57,7 +57,9 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     let (order, origin) = match (&args.recipe, &args.given.mix) {
         (Some(name), _) => {
             let (text, origin) = config::recipe_text(name, args.library.as_deref()).map_err(Refused)?;
-            (Recipe::load(&text, &origin, &catalogue)?, Some(origin))
+            let mut order = Recipe::load(&text, &origin, &catalogue)?;
+            args.given.apply_before_fill(&mut order, &catalogue)?;
+            (order, Some(origin))
         }
         (None, Some(_)) => (args.given.order(args.common.ambient_pa(&settings)?, &catalogue)?, None),
         (None, None) => return Err(Failure::Usage(
@@ -168,8 +170,9 @@ pub struct OrderArgs {
     /// Cylinder test pressure (with --mix): a fill above it is refused.
     #[arg(long, value_name = "P", allow_hyphen_values = true)]
     pub test_pressure: Option<String>,
-    /// What is in the cylinder before the fill (with --mix): "evacuated to 0.5mbar", or a
-    /// heel "N2 at 5bar" / "CO=50ppm,N2=balance at 3barg, 20C". Default: evacuated.
+    /// What is in the cylinder before the fill (for a recipe, in place of its own; with
+    /// --mix): "evacuated to 0.5mbar", or a heel "N2 at 5bar" / "CO=50ppm,N2=balance at
+    /// 3barg, 20C". Default: the recipe's, else evacuated.
     #[arg(long, value_name = "WHAT", allow_hyphen_values = true)]
     pub before_fill: Option<String>,
 }
@@ -213,13 +216,23 @@ impl OrderArgs {
         // numbers, in `plan` and `check` alike.
         let (working, test) = (working.unwrap_or(MAX_PRESSURE_PA), test.unwrap_or(MAX_PRESSURE_PA));
         let mut order = build_order(parts, volume, pressure, t_ref, working, test, ambient, catalogue);
-        if let Some(text) = &self.before_fill {
-            let before =
-                crate::recipe::BeforeFill::parse_text(text).map_err(|e| Refused(format!("--before-fill: {e}")))?;
-            order.before = crate::recipe::resolve_before(&before, catalogue, ambient, test, t_ref)
-                .map_err(|(_, e)| Refused(format!("--before-fill: {}", e.trim_start_matches("before_fill: "))))?;
-        }
+        self.apply_before_fill(&mut order, catalogue)?;
         Ok(order)
+    }
+
+    /// `--before-fill`, where given, in place of what the order says.
+    pub fn apply_before_fill(&self, order: &mut Order, catalogue: &Catalogue) -> Result<(), Refused> {
+        let Some(text) = &self.before_fill else { return Ok(()) };
+        let before = crate::recipe::BeforeFill::parse_text(text).map_err(|e| Refused(format!("--before-fill: {e}")))?;
+        order.before = crate::recipe::resolve_before(
+            &before,
+            catalogue,
+            order.ambient_pa,
+            order.test_pressure_pa,
+            order.fill_temperature_k,
+        )
+        .map_err(|(_, e)| Refused(format!("--before-fill: {}", e.trim_start_matches("before_fill: "))))?;
+        Ok(())
     }
 }
 
