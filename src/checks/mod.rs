@@ -90,14 +90,21 @@ pub fn phase_model(plan_model: Model) -> Model {
 
 /// Run every check on a planned order.
 pub fn screen(plan: &Plan, order: &Order, catalogue: &Catalogue, conditions: &Conditions) -> Vec<Check> {
-    vec![
-        condensation::check(plan, order, catalogue, conditions),
-        rating::check(plan, order, conditions),
-        hazards::flammability(plan, catalogue),
-        hazards::oxidising(plan, catalogue),
-        hazards::toxicity(plan, catalogue),
-        hazards::incompatibility(plan, catalogue),
-    ]
+    // The condensation check (the phase envelope) on one core, the rest on the other.
+    let (condensation, mut rest) = rayon::join(
+        || condensation::check(plan, order, catalogue, conditions),
+        || {
+            vec![
+                rating::check(plan, order, conditions),
+                hazards::flammability(plan, catalogue),
+                hazards::oxidising(plan, catalogue),
+                hazards::toxicity(plan, catalogue),
+                hazards::incompatibility(plan, catalogue),
+            ]
+        },
+    );
+    rest.insert(0, condensation);
+    rest
 }
 
 /// The highest severity of a set of checks.

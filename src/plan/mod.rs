@@ -305,6 +305,9 @@ struct Setup {
     x_target: Vec<f64>,
     /// Components × sources.
     a: DMatrix<f64>,
+    /// The source amounts for one mole of the blend from an empty cylinder (the same under
+    /// every model: they scale with the total), solved once.
+    per_mole: std::sync::OnceLock<DVector<f64>>,
 }
 
 fn setup(order: &Order) -> Setup {
@@ -332,7 +335,15 @@ fn setup(order: &Order) -> Setup {
             }
         }
     }
-    Setup { gases, x_target, a }
+    Setup { gases, x_target, a, per_mole: std::sync::OnceLock::new() }
+}
+
+/// The plan's gases (the target's, then any other a source or the heel brings) and the
+/// blend's mole fractions over them, as [`Plan::gases`] and [`Plan::components`] will have
+/// them.
+pub fn blend(order: &Order) -> (Vec<usize>, Vec<f64>) {
+    let s = setup(order);
+    (s.gases, s.x_target)
 }
 
 /// The model to use: asked, else the recipe's, else gerg where it covers every gas, else pr.
@@ -404,7 +415,11 @@ fn dosing(
         setup.x_target.len(),
         setup.x_target.iter().zip(&heel_mol).map(|(x, h)| (x * total_mol - h).max(0.0)),
     );
-    let s = sources::nnls(&setup.a, &b);
+    let s = if heel_mol.iter().all(|h| *h == 0.0) {
+        setup.per_mole.get_or_init(|| sources::nnls(&setup.a, &DVector::from_column_slice(&setup.x_target))) * total_mol
+    } else {
+        sources::nnls(&setup.a, &b)
+    };
     let made = &setup.a * &s;
     let made_total: f64 = made.iter().sum::<f64>() + heel_mol.iter().sum::<f64>();
     let unreachable: Vec<Unreachable> = (0..setup.gases.len())
@@ -546,10 +561,35 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let mut previous_pa = heel.as_ref().map_or(0.0, |h| h.pressure_at_fill_pa);
     // Liquid from each step's contents, at the fill temperature or on cooling (both cores).
     let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
-    let judgements: Vec<Judged> = pressures
-        .par_iter()
-        .map(|(_, n_after)| judge_step(&fluid, t_fill, t_min, order.volume_m3, n_after))
-        .collect::<Result<_, _>>()?;
+    // Every other model's own plan, beside the judgements (each on a core where one is
+    // free; rayon keeps the order).
+    let other_model = |m: Model| -> ModelPlan {
+        let result = Fluid::new(catalogue, &setup.gases, m)
+            .map_err(PlanError::from)
+            .and_then(|f| {
+                let dm = dosing(&f, order, &setup, &sequence_names, catalogue)?;
+                let ps = step_pressures(&f, order, &setup, &dm, t_fill)?;
+                let n_m: Vec<f64> = setup.x_target.iter().map(|x| x * dm.total_mol).collect();
+                let p_ref = f.pressure(t_ref, order.volume_m3, &n_m)?;
+                Ok(ModelFigures {
+                    amount_mol: dm.total_mol,
+                    z: p_ref * order.volume_m3 / (dm.total_mol * R * t_ref),
+                    step_pressures_pa: ps.into_iter().map(|(p, _)| p).collect(),
+                })
+            })
+            .map_err(|e| e.to_string());
+        ModelPlan { model: m, result }
+    };
+    let (judgements, others) = rayon::join(
+        || -> Result<Vec<Judged>, ThermoError> {
+            pressures
+                .par_iter()
+                .map(|(_, n_after)| judge_step(&fluid, t_fill, t_min, order.volume_m3, n_after))
+                .collect()
+        },
+        || -> Vec<ModelPlan> { Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other_model(m)).collect() },
+    );
+    let judgements = judgements?;
     for ((&k, (p_after, n_after)), judged) in d.sequence.iter().zip(pressures).zip(judgements) {
         let source = &order.sources[k];
         let add_mass_g = d.source_mol[k] * source.composition.molar_mass(catalogue);
@@ -636,29 +676,10 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         z: totals.z,
         step_pressures_pa: steps.iter().map(|s| s.pressure_after_pa).collect(),
     };
-    // Each on its own core where one is free (rayon keeps the order).
+    let mut others = others.into_iter();
     let models: Vec<ModelPlan> = Model::ALL
-        .par_iter()
-        .map(|&m| {
-            if m == model {
-                return ModelPlan { model: m, result: Ok(own.clone()) };
-            }
-            let result = Fluid::new(catalogue, &setup.gases, m)
-                .map_err(PlanError::from)
-                .and_then(|f| {
-                    let dm = dosing(&f, order, &setup, &sequence_names, catalogue)?;
-                    let ps = step_pressures(&f, order, &setup, &dm, t_fill)?;
-                    let n_m: Vec<f64> = setup.x_target.iter().map(|x| x * dm.total_mol).collect();
-                    let p_ref = f.pressure(t_ref, order.volume_m3, &n_m)?;
-                    Ok(ModelFigures {
-                        amount_mol: dm.total_mol,
-                        z: p_ref * order.volume_m3 / (dm.total_mol * R * t_ref),
-                        step_pressures_pa: ps.into_iter().map(|(p, _)| p).collect(),
-                    })
-                })
-                .map_err(|e| e.to_string());
-            ModelPlan { model: m, result }
-        })
+        .iter()
+        .filter_map(|&m| if m == model { Some(ModelPlan { model: m, result: Ok(own.clone()) }) } else { others.next() })
         .collect();
 
     // Stopping at each model's readings, judged by the selected model and by GERG-2008.

@@ -72,9 +72,14 @@ fn key_of(c: &GergComposition) -> [f64; 21] {
     ]
 }
 
+/// How many compositions each thread keeps a GERG-2008 state for: a plan's steps, its
+/// blend and a premix stage or two.
+const KEPT: usize = 16;
+
 thread_local! {
-    /// The GERG-2008 state of the last composition used on this thread.
-    static LAST: std::cell::RefCell<Option<([f64; 21], Box<Gerg2008>)>> = const { std::cell::RefCell::new(None) };
+    /// The GERG-2008 states of the compositions last used on this thread, the most recent
+    /// last.
+    static KEPT_STATES: std::cell::RefCell<Vec<([f64; 21], Box<Gerg2008>)>> = const { std::cell::RefCell::new(Vec::new()) };
 }
 
 /// A GERG-2008 evaluator for a fixed list of gases.
@@ -94,24 +99,33 @@ impl Gerg {
         }
     }
 
-    /// Run `f` on the GERG-2008 state of composition `x` at `t_k`. The state of the last
-    /// composition is kept per thread: the crate's reducing parameters (per composition)
-    /// and temperature terms (per temperature) are then computed once, not per call.
+    /// Run `f` on the GERG-2008 state of composition `x` at `t_k`. The states of the last
+    /// few compositions are kept per thread: the crate's reducing parameters (per
+    /// composition) and temperature terms (per temperature) are then computed once, not
+    /// per call, even where a plan's steps take turns.
     fn with_model<R>(&self, x: &[f64], t_k: f64, f: impl FnOnce(&mut Gerg2008) -> R) -> Option<R> {
         let mut comp = GergComposition::default();
         for (id, &xi) in self.ids.iter().zip(x) {
             *slot(&mut comp, id)? += xi;
         }
         let key = key_of(&comp);
-        LAST.with(|cell| {
-            let mut last = cell.borrow_mut();
-            let fresh = !matches!(last.as_ref(), Some((k, _)) if *k == key);
-            if fresh {
-                let mut g = Gerg2008::new();
-                g.set_composition(&comp).ok()?;
-                *last = Some((key, Box::new(g)));
+        KEPT_STATES.with(|cell| {
+            let mut kept = cell.borrow_mut();
+            match kept.iter().position(|(k, _)| *k == key) {
+                Some(i) => {
+                    let hit = kept.remove(i);
+                    kept.push(hit);
+                }
+                None => {
+                    let mut g = Gerg2008::new();
+                    g.set_composition(&comp).ok()?;
+                    if kept.len() >= KEPT {
+                        kept.remove(0);
+                    }
+                    kept.push((key, Box::new(g)));
+                }
             }
-            let (_, g) = last.as_mut()?;
+            let (_, g) = kept.last_mut()?;
             g.t = t_k;
             Some(f(g))
         })
@@ -142,7 +156,9 @@ impl Gerg {
                 }
                 let next = d - f / g.dp_dd;
                 let next = next.clamp(0.5 * d, 2.0 * d);
-                if (next - d).abs() <= 1e-13 * d {
+                // Newton's error after a step of δ is of order δ²: a step below 1e-8 of
+                // the density leaves it within about 1e-16.
+                if (next - d).abs() <= 1e-8 * d {
                     return Some(next * 1e3);
                 }
                 d = next;

@@ -110,6 +110,27 @@ impl CubicAt {
         (self.a_row.clone(), self.b_i.clone())
     }
 
+    /// Pressure, Pa, of composition `x` at molar volume `v_m3` (m³/mol); None at or below
+    /// the co-volume.
+    pub fn pressure(&mut self, v_m3: f64, x: &[f64]) -> Option<f64> {
+        let (a, b) = self.mix(x);
+        if !(v_m3 > b) {
+            return None;
+        }
+        let (eps, sig) = self.kind.epsilon_sigma();
+        Some(R * self.t_k / (v_m3 - b) - a / ((v_m3 + eps * b) * (v_m3 + sig * b)))
+    }
+
+    /// Z of composition `x` at `p_pa` on the root of lowest Gibbs energy; None where the
+    /// cubic has no root above B.
+    pub fn stable_z(&mut self, p_pa: f64, x: &[f64]) -> Option<f64> {
+        let (a, b) = self.mix(x);
+        let rt = R * self.t_k;
+        let (big_a, big_b) = (a * p_pa / (rt * rt), b * p_pa / rt);
+        let (roots, count) = z_roots(self.kind, big_a, big_b);
+        pick(self.kind, RootChoice::Stable, &roots[..count], big_a, big_b)
+    }
+
     /// ln φ_i of composition `x` (mole fractions summing to 1) at `p_pa` on the chosen root,
     /// written into `out`; returns Z, or None where the cubic has no root above B.
     pub fn ln_phi_into(&mut self, p_pa: f64, x: &[f64], root: RootChoice, out: &mut [f64]) -> Option<f64> {
@@ -118,22 +139,7 @@ impl CubicAt {
         let big_a = a * p_pa / (rt * rt);
         let big_b = b * p_pa / rt;
         let (roots, count) = z_roots(self.kind, big_a, big_b);
-        if count == 0 {
-            return None;
-        }
-        let z = match root {
-            RootChoice::Liquid => roots[0],
-            RootChoice::Vapour => roots[count - 1],
-            RootChoice::Stable if count == 1 => roots[0],
-            RootChoice::Stable => {
-                let (lo, hi) = (roots[0], roots[count - 1]);
-                if g_residual(self.kind, lo, big_a, big_b) < g_residual(self.kind, hi, big_a, big_b) {
-                    lo
-                } else {
-                    hi
-                }
-            }
-        };
+        let z = pick(self.kind, root, &roots[..count], big_a, big_b)?;
         let i_term = integral_i(self.kind, z, big_b);
         let ln_z_b = (z - big_b).ln();
         let a_over = big_a / big_b * i_term;
@@ -143,6 +149,23 @@ impl CubicAt {
         }
         Some(z)
     }
+}
+
+/// The chosen root among `roots` (ascending); None where there is none.
+fn pick(kind: CubicKind, root: RootChoice, roots: &[f64], big_a: f64, big_b: f64) -> Option<f64> {
+    let (&lo, &hi) = (roots.first()?, roots.last()?);
+    Some(match root {
+        RootChoice::Liquid => lo,
+        RootChoice::Vapour => hi,
+        RootChoice::Stable if roots.len() == 1 => lo,
+        RootChoice::Stable => {
+            if g_residual(kind, lo, big_a, big_b) < g_residual(kind, hi, big_a, big_b) {
+                lo
+            } else {
+                hi
+            }
+        }
+    })
 }
 
 /// The roots of the cubic in Z above B, smallest first, without allocation.

@@ -19,31 +19,57 @@ fn pr_table() -> &'static [(String, String, f64)] {
     TABLE.get_or_init(|| ron::from_str(PR_TABLE).expect("kij_pr.ron is valid"))
 }
 
-/// The PR table keyed by the pair, the ids in sorted order (a look-up per pair, not a scan).
-fn pr_index() -> &'static HashMap<(String, String), f64> {
-    static INDEX: OnceLock<HashMap<(String, String), f64>> = OnceLock::new();
-    INDEX.get_or_init(|| pr_table().iter().map(|(a, b, k)| (ordered(a, b), *k)).collect())
+/// The PR table as a dense matrix over the ids it names: each id's row, and the rows.
+struct Dense {
+    row_of: HashMap<&'static str, usize>,
+    k: Vec<Vec<f64>>,
 }
 
-fn ordered(a: &str, b: &str) -> (String, String) {
-    if a <= b {
-        (a.to_string(), b.to_string())
-    } else {
-        (b.to_string(), a.to_string())
-    }
+fn pr_dense() -> &'static Dense {
+    static DENSE: OnceLock<Dense> = OnceLock::new();
+    DENSE.get_or_init(|| {
+        let mut row_of: HashMap<&'static str, usize> = HashMap::new();
+        for (a, b, _) in pr_table() {
+            for id in [a.as_str(), b.as_str()] {
+                let next = row_of.len();
+                row_of.entry(id).or_insert(next);
+            }
+        }
+        let mut k = vec![vec![0.0; row_of.len()]; row_of.len()];
+        for (a, b, v) in pr_table() {
+            let (i, j) = (row_of[a.as_str()], row_of[b.as_str()]);
+            k[i][j] = *v;
+            k[j][i] = *v;
+        }
+        Dense { row_of, k }
+    })
 }
 
 /// The published k_ij of `model` for a pair of gas ids, 0 where none is listed.
 pub fn value(model: Model, a: &str, b: &str) -> f64 {
-    match model {
-        Model::Pr => pr_index().get(&ordered(a, b)).copied().unwrap_or(0.0),
-        _ => 0.0,
-    }
+    matrix(model, &[a, b])[0][1]
 }
 
-/// The symmetric k_ij matrix of `model` for `ids`.
+/// The symmetric k_ij matrix of `model` for `ids` (one look-up per id, not per pair).
 pub fn matrix(model: Model, ids: &[&str]) -> Vec<Vec<f64>> {
-    ids.iter().map(|a| ids.iter().map(|b| if a == b { 0.0 } else { value(model, a, b) }).collect()).collect()
+    let n = ids.len();
+    match model {
+        Model::Pr => {
+            let dense = pr_dense();
+            let rows: Vec<Option<usize>> = ids.iter().map(|id| dense.row_of.get(id).copied()).collect();
+            (0..n)
+                .map(|i| {
+                    (0..n)
+                        .map(|j| match (rows[i], rows[j]) {
+                            (Some(a), Some(b)) if ids[i] != ids[j] => dense.k[a][b],
+                            _ => 0.0,
+                        })
+                        .collect()
+                })
+                .collect()
+        }
+        _ => vec![vec![0.0; n]; n],
+    }
 }
 
 #[cfg(test)]
@@ -57,8 +83,11 @@ mod tests {
             assert!(c.index_of(a).is_some() && c.index_of(b).is_some(), "{a}-{b}");
             assert!(k.is_finite() && k.abs() < 1.0);
         }
-        // Each pair once, so the keyed look-up gives what a scan of the file gives.
-        assert_eq!(pr_index().len(), pr_table().len());
+        // Each pair once, so the matrix gives what a scan of the file gives.
+        for (i, (a, b, k)) in pr_table().iter().enumerate() {
+            assert_eq!(value(Model::Pr, a, b), *k);
+            assert!(!pr_table()[..i].iter().any(|(c, d, _)| (c, d) == (a, b) || (c, d) == (b, a)), "{a}-{b} twice");
+        }
         // ChemSep PR k_ij for N2-CH4 is 0.0289 (thermo IPDB 'ChemSep PR').
         assert_eq!(value(Model::Pr, "CH4", "N2"), 0.0289);
         assert_eq!(value(Model::Pr, "N2", "CH4"), 0.0289);

@@ -336,13 +336,16 @@ impl Fluid {
     /// has no state. Under GERG-2008 each density is found by Newton's method from the one
     /// before (the crate's own search starts from the ideal gas each time).
     pub fn isotherm_z(&self, t_k: f64, pressures_pa: &[f64], x: &[f64]) -> Vec<Option<f64>> {
-        let mut previous: Option<f64> = None;
+        let composition_ok = self.check_x(x).is_ok();
+        // The densities found so far on this branch, (P, ρ), the last three kept: the start
+        // of each Newton search is their quadratic extrapolation.
+        let mut known: Vec<(f64, f64)> = Vec::with_capacity(3);
         pressures_pa
             .iter()
             .map(|&p| {
-                let warm = match (&self.gerg, previous) {
-                    (Some(g), Some(rho)) if self.check_x(x).is_ok() && Self::check_p(p).is_ok() => {
-                        g.density_from(x, t_k, p, rho)
+                let warm = match &self.gerg {
+                    Some(g) if !known.is_empty() && composition_ok && Self::check_p(p).is_ok() => {
+                        g.density_from(x, t_k, p, extrapolate(&known, p))
                     }
                     _ => None,
                 };
@@ -350,7 +353,15 @@ impl Fluid {
                     Some(rho) => Some(rho),
                     None => self.state_tp(t_k, p, x).ok().map(|s| 1.0 / s.molar_volume_m3),
                 };
-                previous = rho;
+                match rho {
+                    Some(rho) => {
+                        if known.len() == 3 {
+                            known.remove(0);
+                        }
+                        known.push((p, rho));
+                    }
+                    None => known.clear(),
+                }
                 rho.map(|rho| p / (rho * R * t_k))
             })
             .collect()
@@ -423,6 +434,26 @@ impl Fluid {
     }
 }
 
+/// The Lagrange polynomial through `points` (P, ρ) evaluated at `p`; the last point's ρ
+/// where that is not a positive number.
+fn extrapolate(points: &[(f64, f64)], p: f64) -> f64 {
+    let last = points.last().map_or(0.0, |q| q.1);
+    let value: f64 = points
+        .iter()
+        .enumerate()
+        .map(|(i, &(pi, rho_i))| {
+            let weight: f64 =
+                points.iter().enumerate().filter(|(j, _)| *j != i).map(|(_, &(pj, _))| (p - pj) / (pi - pj)).product();
+            weight * rho_i
+        })
+        .sum();
+    if value.is_finite() && value > 0.0 {
+        value
+    } else {
+        last
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -450,6 +481,32 @@ mod tests {
             }
         }
         assert!(fluid(&["CH4", "N2"], Model::Gerg).dpressure_damounts(288.15, 0.01, &[1.0, 1.0]).is_none());
+    }
+
+    #[test]
+    fn a_kept_saturation_is_the_one_of_the_gas_constants_and_model_asked() {
+        // The same id with another critical temperature (a user's catalogue) must not be
+        // answered from the saturations kept for the built-in one, nor one model for another.
+        let built_in = Catalogue::built_in();
+        let i = built_in.index_of("C3H8").unwrap();
+        let mut record = built_in.gas(i).record.clone();
+        record.critical_temperature_k += 5.0;
+        let text = format!("Catalogue(gases: [{}])", ron::to_string(&record).unwrap());
+        let changed = built_in.clone().with_overrides(Catalogue::parse(&text, "user").unwrap());
+        let t = 280.0;
+        let mut seen = Vec::new();
+        for catalogue in [&built_in, &changed] {
+            for model in [Model::Pr, Model::Srk, Model::Rk] {
+                let f = Fluid::new(catalogue, &[catalogue.index_of("C3H8").unwrap()], model).unwrap();
+                let first = f.saturation(t, &[1.0]).unwrap().unwrap();
+                assert_eq!(f.saturation(t, &[1.0]).unwrap(), Some(first));
+                assert!(first.pressure_pa > 1e5 && first.pressure_pa < 1e7);
+                seen.push(first.pressure_pa);
+            }
+        }
+        for (k, p) in seen.iter().enumerate() {
+            assert!(!seen[..k].contains(p), "{seen:?}");
+        }
     }
 
     #[test]

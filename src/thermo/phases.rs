@@ -77,6 +77,24 @@ pub struct Saturation {
     pub model: Model,
 }
 
+/// What a pure fluid's saturation state depends on (see [`Fluid::saturation`]).
+#[derive(Debug, Clone, PartialEq)]
+struct SaturationKey {
+    model: Model,
+    id: String,
+    /// Tc, Pc, ω and T, bit for bit.
+    bits: [u64; 4],
+    tabulated: Option<[u64; 2]>,
+}
+
+/// How many saturation states each thread keeps.
+const SATURATIONS_KEPT: usize = 64;
+
+thread_local! {
+    static SATURATIONS: std::cell::RefCell<Vec<(SaturationKey, Option<Saturation>)>> =
+        const { std::cell::RefCell::new(Vec::new()) };
+}
+
 /// Where successive substitution from a trial phase ends.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) enum Stationary {
@@ -203,13 +221,20 @@ impl Fluid {
         Self::check_p(p_pa)?;
         self.check_x(z)?;
         let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        self.stability_on(&mut cubic, p_pa, z)
+    }
+
+    /// [`Fluid::stability`] on this fluid's cubic prepared at the temperature (the
+    /// arguments already checked).
+    fn stability_on(&self, cubic: &mut CubicAt, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
+        let t_k = cubic.temperature_k();
         let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
-        let mut tpd = TangentPlane::new(&mut cubic, p_pa, z).ok_or_else(no_root)?;
+        let mut tpd = TangentPlane::new(cubic, p_pa, z).ok_or_else(no_root)?;
         let k = wilson(self, t_k, p_pa);
         for vapour_like in [true, false] {
             let mut w: Vec<f64> =
                 z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
-            if let Stationary::Point(ln_sum) = tpd.stationary(&mut cubic, &mut w).ok_or_else(no_root)? {
+            if let Stationary::Point(ln_sum) = tpd.stationary(cubic, &mut w).ok_or_else(no_root)? {
                 if ln_sum > (1.0 + 1e-8f64).ln() {
                     let sum: f64 = w.iter().sum();
                     return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
@@ -231,6 +256,30 @@ impl Fluid {
         if t_k >= c.tc_k {
             return Ok(None);
         }
+        // A pure fluid's saturation at one temperature depends only on the model, the
+        // gas's constants and T: the plan asks for the same ones at every step, under
+        // every model and on every key press, so the last few are kept per thread.
+        let key = SaturationKey {
+            model: self.model,
+            id: self.ids[i].clone(),
+            bits: [c.tc_k, c.pc_pa, c.omega, t_k].map(f64::to_bits),
+            tabulated: c.tabulated_ab.map(|(a, b)| [a.to_bits(), b.to_bits()]),
+        };
+        if let Some(hit) = SATURATIONS.with(|m| m.borrow().iter().find(|(k, _)| *k == key).map(|(_, s)| *s)) {
+            return Ok(hit);
+        }
+        let found = self.saturation_of(t_k, x)?;
+        SATURATIONS.with(|m| {
+            let mut m = m.borrow_mut();
+            if m.len() >= SATURATIONS_KEPT {
+                m.remove(0);
+            }
+            m.push((key, found));
+        });
+        Ok(found)
+    }
+
+    fn saturation_of(&self, t_k: f64, x: &[f64]) -> Result<Option<Saturation>, ThermoError> {
         let screen = self.phase_screen();
         let cubic_sat = screen.cubic_saturation(t_k, x)?;
         match self.model {
@@ -452,9 +501,13 @@ impl Fluid {
     /// None where the contents split: one phase at `v` when the stable root at its pressure
     /// has this volume and the feed does not split there.
     fn single_phase_at(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
-        let Ok(p) = self.pressure_tv(t_k, v, z) else { return Ok(None) };
-        let on_stable_root = self.state_tp(t_k, p, z).is_ok_and(|s| (s.molar_volume_m3 - v).abs() <= 1e-6 * v);
-        Ok((on_stable_root && self.stability(t_k, p, z)?.is_none()).then_some(p))
+        Self::check_t(t_k)?;
+        self.check_x(z)?;
+        // One cubic at T for the pressure, the root and the stability test.
+        let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        let Some(p) = cubic.pressure(v, z).filter(|p| Self::check_p(*p).is_ok()) else { return Ok(None) };
+        let on_stable_root = cubic.stable_z(p, z).is_some_and(|zz| (zz * R * t_k / p - v).abs() <= 1e-6 * v);
+        Ok((on_stable_root && self.stability_on(&mut cubic, p, z)?.is_none()).then_some(p))
     }
 
     /// Flash a feed known to split, starting from the stability test's trial phase.

@@ -7,7 +7,7 @@ use crate::checks::{self, Check};
 use crate::gas::Catalogue;
 use crate::library::{Entry, Opened, Revision};
 use crate::plan::{self, Plan, PlanOptions};
-use crate::recipe::{Order, Recipe};
+use crate::recipe::{Fill, Order, Recipe};
 use crate::settings::Resolved;
 use crate::thermo::{Fluid, Model as Eos};
 
@@ -222,15 +222,29 @@ impl Computed {
     pub fn of(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
         let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| in_screen_words(&e.message));
         let options = Self::options(settings);
-        let plan = match &order {
-            Ok(o) => plan::plan(o, catalogue, &options).map_err(|e| e.to_string()),
-            Err(e) => Err(e.clone()),
-        };
+        let make_plan = |o: &Order| plan::plan(o, catalogue, &options).map_err(|e| e.to_string());
         let conditions = settings.conditions();
-        // The screening and the charts on both cores.
-        let (checks, z_curves) = match (&plan, &order) {
-            (Ok(p), Ok(o)) => {
-                let (c, z) = rayon::join(|| checks::screen(p, o, catalogue, &conditions), || z_curves(p, o, catalogue));
+        // On both cores: the charts beside the plan where the fill pressure is known
+        // beforehand (else beside the screening, after the plan).
+        let (plan, early_curves) = match &order {
+            Ok(o) => match o.fill {
+                Fill::PressurePa(p) => {
+                    let (gases, x) = plan::blend(o);
+                    let (plan, z) = rayon::join(|| make_plan(o), || z_curves(&gases, &x, p, o, catalogue));
+                    (plan, Some(z))
+                }
+                _ => (make_plan(o), None),
+            },
+            Err(e) => (Err(e.clone()), None),
+        };
+        let (checks, z_curves) = match (&plan, &order, early_curves) {
+            (Ok(p), Ok(o), Some(z)) => (Some(checks::screen(p, o, catalogue, &conditions)), z),
+            (Ok(p), Ok(o), None) => {
+                let (gases, x) = (&p.gases, p.components.iter().map(|c| c.mole_fraction).collect::<Vec<_>>());
+                let (c, z) = rayon::join(
+                    || checks::screen(p, o, catalogue, &conditions),
+                    || z_curves(gases, &x, p.totals.pressure_pa, o, catalogue),
+                );
                 (Some(c), z)
             }
             _ => (None, Vec::new()),
@@ -279,19 +293,18 @@ fn heavy_key(recipe: &Recipe, settings: &Resolved) -> String {
 }
 
 /// Z of the finished blend from 1 bar to 1.2 times the fill pressure, for each model.
-fn z_curves(p: &Plan, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f64)>)> {
-    let x: Vec<f64> = p.components.iter().map(|c| c.mole_fraction).collect();
-    let top = 1.2 * p.totals.pressure_pa / 1e5;
+fn z_curves(gases: &[usize], x: &[f64], fill_pa: f64, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f64)>)> {
+    let top = 1.2 * fill_pa / 1e5;
     use rayon::prelude::*;
     Eos::ALL
         .par_iter()
         .filter_map(|&m| {
-            let f = Fluid::new(catalogue, &p.gases, m).ok()?;
+            let f = Fluid::new(catalogue, gases, m).ok()?;
             let bars: Vec<f64> = (0..=30).map(|k| 1.0 + (top - 1.0) * k as f64 / 30.0).collect();
             let pascals: Vec<f64> = bars.iter().map(|b| b * 1e5).collect();
             let pts: Vec<(f64, f64)> = bars
                 .iter()
-                .zip(f.isotherm_z(o.reference_temperature_k, &pascals, &x))
+                .zip(f.isotherm_z(o.reference_temperature_k, &pascals, x))
                 .filter_map(|(&b, z)| z.map(|z| (b, z)))
                 .collect();
             Some((m, pts))
