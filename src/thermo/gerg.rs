@@ -111,7 +111,7 @@ impl Gerg {
         let key = key_of(&comp);
         KEPT_STATES.with(|cell| {
             let mut kept = cell.borrow_mut();
-            match kept.iter().position(|(k, _)| *k == key) {
+            match kept.iter().rposition(|(k, _)| *k == key) {
                 Some(i) => {
                     let hit = kept.remove(i);
                     kept.push(hit);
