@@ -8,6 +8,8 @@ pub mod cubic;
 pub mod gerg;
 pub mod kernel;
 pub mod kij;
+pub mod dual;
+pub mod multifluid;
 pub mod phases;
 pub mod survey;
 
