@@ -84,7 +84,7 @@ pub const CAUTIONS: &[&str] = &[
 pub fn phase_model(plan_model: Model) -> Model {
     match plan_model {
         Model::Vdw | Model::Rk | Model::Srk | Model::Pr => plan_model,
-        Model::Ideal | Model::Gerg => Model::Pr,
+        Model::Ideal | Model::Gerg | Model::Multi => Model::Pr,
     }
 }
 

@@ -604,25 +604,25 @@ pub fn fill_sheet(
     // Model comparison: rows are steps, columns are models.
     let models: Vec<_> = plan.models.iter().filter(|m| m.result.is_ok()).collect();
     line(format!("EVERY MODEL  stop readings at {}, {}", d.tf(plan.fill_temperature_k), d.pu()));
-    let mut head = format!("{:<18}", "step");
+    let mut head = format!("{:<17}", "step");
     for m in &models {
         head.push_str(&format!("{:>9}", m.model.key()));
     }
     line(head);
     for (i, s) in plan.steps.iter().enumerate() {
-        let mut row = format!("{:<18}", clip(&format!("{} {}", i + 1, s.source), 18));
+        let mut row = format!("{:<17}", clip(&format!("{} {}", i + 1, s.source), 17));
         for m in &models {
             let p = m.result.as_ref().ok().and_then(|f| f.step_pressures_pa.get(i)).copied().unwrap_or(f64::NAN);
             row.push_str(&units::cell(d.p(p), 5, 9));
         }
         line(row);
     }
-    let mut row = format!("{:<18}", "amount mol");
+    let mut row = format!("{:<17}", "amount mol");
     for m in &models {
         row.push_str(&units::cell(m.result.as_ref().map_or(f64::NAN, |f| f.amount_mol), 5, 9));
     }
     line(row);
-    let mut row = format!("{:<18}", "Z");
+    let mut row = format!("{:<17}", "Z");
     for m in &models {
         row.push_str(&format!("{:>9.4}", m.result.as_ref().map_or(f64::NAN, |f| f.z)));
     }
@@ -636,7 +636,7 @@ pub fn fill_sheet(
 
     for f in &plan.following {
         line(format!("STOPPING AT EACH MODEL'S READINGS  composition error in % (gas as {} says)", f.truth.key()));
-        let mut head = format!("{:<18}", "gas");
+        let mut head = format!("{:<17}", "gas");
         for r in &f.rows {
             head.push_str(&format!("{:>9}", r.targets_of.key()));
         }
@@ -645,7 +645,7 @@ pub fn fill_sheet(
             if plan.components[i].mole_fraction == 0.0 {
                 continue;
             }
-            let mut row = format!("{:<18}", id(catalogue, g));
+            let mut row = format!("{:<17}", id(catalogue, g));
             for r in &f.rows {
                 let mark = if r.out_of_tolerance[i] { "!" } else { " " };
                 // Rounding noise of an exact match reads as 0.00, not -0.00.

@@ -346,12 +346,18 @@ pub fn blend(order: &Order) -> (Vec<usize>, Vec<f64>) {
     (s.gases, s.x_target)
 }
 
-/// The model to use: asked, else the recipe's, else gerg where it covers every gas, else pr.
+/// The model to use: asked, else the recipe's, else the reference for the gases.
 pub fn default_model(gases: &[usize], catalogue: &Catalogue) -> Model {
+    reference_model(gases, catalogue)
+}
+
+/// The best available model for a set of gases: GERG-2008 where it covers every one, else
+/// the multi-fluid model (which carries every catalogue gas; see [`Fluid`]'s models).
+pub fn reference_model(gases: &[usize], catalogue: &Catalogue) -> Model {
     if gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id())) {
         Model::Gerg
     } else {
-        Model::Pr
+        Model::Multi
     }
 }
 
@@ -684,8 +690,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
 
     // Stopping at each model's readings, judged by the selected model and by GERG-2008.
     let mut truths = vec![model];
-    if model != Model::Gerg && setup.gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id())) {
-        truths.push(Model::Gerg);
+    let reference = reference_model(&setup.gases, catalogue);
+    if model != reference {
+        truths.push(reference);
     }
     if options.skip_following {
         truths.clear();

@@ -40,11 +40,15 @@ pub enum Model {
     Pr,
     /// GERG-2008 (ISO 20765-2), for the 21 gases it covers.
     Gerg,
+    /// Multi-fluid Helmholtz: each gas on its published reference equation of state,
+    /// combined as GERG-2008 combines its own (see [`multifluid`]); for every gas.
+    Multi,
 }
 
 impl Model {
     /// Every model, simplest first.
-    pub const ALL: [Model; 6] = [Model::Ideal, Model::Vdw, Model::Rk, Model::Srk, Model::Pr, Model::Gerg];
+    pub const ALL: [Model; 7] =
+        [Model::Ideal, Model::Vdw, Model::Rk, Model::Srk, Model::Pr, Model::Gerg, Model::Multi];
 
     /// The name used on the command line and in JSON.
     pub fn key(self) -> &'static str {
@@ -55,6 +59,7 @@ impl Model {
             Model::Srk => "srk",
             Model::Pr => "pr",
             Model::Gerg => "gerg",
+            Model::Multi => "multi",
         }
     }
 
@@ -67,6 +72,7 @@ impl Model {
             Model::Srk => "Soave-Redlich-Kwong",
             Model::Pr => "Peng-Robinson",
             Model::Gerg => "GERG-2008",
+            Model::Multi => "multi-fluid",
         }
     }
 
@@ -76,7 +82,7 @@ impl Model {
             Model::Rk => Some(CubicKind::RedlichKwong),
             Model::Srk => Some(CubicKind::SoaveRedlichKwong),
             Model::Pr => Some(CubicKind::PengRobinson),
-            Model::Ideal | Model::Gerg => None,
+            Model::Ideal | Model::Gerg | Model::Multi => None,
         }
     }
 }
@@ -138,6 +144,7 @@ pub struct Fluid {
     cubic: Vec<CubicComponent>,
     kij: Vec<Vec<f64>>,
     gerg: Option<gerg::Gerg>,
+    multi: Option<std::sync::Arc<multifluid::Mixture>>,
     /// The Peng–Robinson fluid that judges phases for a model with no fugacities of its
     /// own (GERG-2008, ideal gas), made once.
     screen: Option<std::sync::Arc<Fluid>>,
@@ -180,10 +187,11 @@ impl Fluid {
             ids,
             cubic,
             gerg,
+            multi: (model == Model::Multi).then(|| std::sync::Arc::new(multifluid::Mixture::new(catalogue, gases))),
             screen: None,
         };
         if let Some(kij) = screen_kij {
-            let screen = Fluid { model: Model::Pr, kij, gerg: None, ..fluid.clone() };
+            let screen = Fluid { model: Model::Pr, kij, gerg: None, multi: None, ..fluid.clone() };
             fluid.screen = Some(std::sync::Arc::new(screen));
         }
         Ok(fluid)
@@ -255,6 +263,14 @@ impl Fluid {
                 })?;
                 (s.z, s.root != Root::Single, s.root == Root::LiquidOfThree)
             }
+            (Model::Multi, _) => {
+                let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+                let rho = m.density(t_k, p_pa, x, None).ok_or_else(|| ThermoError::NoState {
+                    model: self.model,
+                    why: "the multi-fluid density iteration found no gas root; the state may be two-phase".into(),
+                })?;
+                (p_pa / (rho * rt), false, false)
+            }
             (_, None) => {
                 let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
                 let rho = g.density(x, t_k, p_pa).ok_or_else(|| ThermoError::NoState {
@@ -288,6 +304,10 @@ impl Fluid {
                     });
                 }
                 cubic::pressure(kind, &m, t_k, v_m3_per_mol)
+            }
+            (Model::Multi, _) => {
+                let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+                m.pressure(t_k, 1.0 / v_m3_per_mol, x).0
             }
             (_, None) => {
                 let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;

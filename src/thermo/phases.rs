@@ -298,6 +298,18 @@ impl Fluid {
                     None => Ok(Some(start)),
                 }
             }
+            Model::Multi => {
+                let Some(start) = cubic_sat else { return Ok(None) };
+                match self.multi.as_ref().and_then(|m| m.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3)) {
+                    Some((p, rho_l, rho_v)) => Ok(Some(Saturation {
+                        pressure_pa: p,
+                        v_liquid_m3: 1.0 / rho_l,
+                        v_vapour_m3: 1.0 / rho_v,
+                        model: Model::Multi,
+                    })),
+                    None => Ok(Some(start)),
+                }
+            }
             _ => Ok(cubic_sat),
         }
     }
@@ -607,6 +619,17 @@ impl Fluid {
                 rho.map(|r| 1.0 / r).ok_or_else(|| ThermoError::NoState {
                     model: self.model,
                     why: "the GERG-2008 density iteration found no root".into(),
+                })
+            }
+            Model::Multi => {
+                let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+                let start = match sat {
+                    Some(s) if liquid => Some(1.0 / s.v_liquid_m3),
+                    _ => None,
+                };
+                m.density(t_k, p_pa, x, start).map(|r| 1.0 / r).ok_or_else(|| ThermoError::NoState {
+                    model: self.model,
+                    why: "the multi-fluid density iteration found no root".into(),
                 })
             }
             Model::Ideal => Ok(R * t_k / p_pa),

@@ -550,7 +550,12 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     // One table: a column per model; the stop reading of each step, then the amount, its
     // difference from the reference, and Z.
     let ok: Vec<_> = p.models.iter().filter_map(|m| m.result.as_ref().ok().map(|f| (m.model, f))).collect();
-    let reference = ok.iter().find(|(m, _)| *m == crate::thermo::Model::Gerg).map_or(p.model, |(m, _)| *m);
+    // The reference: GERG-2008 where it covers the blend, else the multi-fluid model.
+    use crate::thermo::Model as Eos;
+    let reference = [Eos::Gerg, Eos::Multi]
+        .iter()
+        .find_map(|r| ok.iter().find(|(m, _)| m == r).map(|(m, _)| *m))
+        .unwrap_or(p.model);
     let ref_amount = ok.iter().find(|(m, _)| *m == reference).map(|(_, f)| f.amount_mol);
     let max_steps = (area.height as usize).saturating_sub(14).clamp(2, 12);
     let shown = p.steps.len().min(max_steps);
@@ -600,9 +605,17 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
 
     let [zc, fc] = Layout::horizontal([Constraint::Percentage(50), Constraint::Percentage(50)]).areas(bottom);
     // One marker per model, so that the curves are told apart without colour.
-    let markers = [Marker::Dot, Marker::Braille, Marker::Block, Marker::Bar, Marker::HalfBlock, Marker::Quadrant];
-    let marks = ["•", "⣿", "█", "▄", "▀", "▖"];
-    let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red];
+    let markers = [
+        Marker::Dot,
+        Marker::Braille,
+        Marker::Block,
+        Marker::Bar,
+        Marker::HalfBlock,
+        Marker::Quadrant,
+        Marker::Custom('+'),
+    ];
+    let marks = ["•", "⣿", "█", "▄", "▀", "▖", "+"];
+    let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red, Color::Blue];
     let (mut zmin, mut zmax, mut pmax) = (f64::INFINITY, f64::NEG_INFINITY, 1.0f64);
     // The curves are computed in bar; shown in the settings' unit.
     let curves: Vec<Vec<(f64, f64)>> = doc
@@ -639,7 +652,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         .z_curves
         .iter()
         .enumerate()
-        .map(|(i, (m, _))| format!("{} {}", marks[i % marks.len()], m.key()))
+        .map(|(i, (m, _))| format!("{}{}", marks[i % marks.len()], m.key()))
         .collect::<Vec<_>>()
         .join(" ");
     let chart = Chart::new(datasets)
