@@ -346,6 +346,10 @@ pub fn blend(order: &Order) -> (Vec<usize>, Vec<f64>) {
     (s.gases, s.x_target)
 }
 
+/// Why the every-model comparison leaves the multi-fluid model out of a blend GERG-2008
+/// covers.
+pub const NOT_NEEDED: &str = "not needed: GERG-2008 covers these gases";
+
 /// The model to use: asked, else the recipe's, else the reference for the gases.
 pub fn default_model(gases: &[usize], catalogue: &Catalogue) -> Model {
     reference_model(gases, catalogue)
@@ -569,7 +573,13 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
     // Every other model's own plan, beside the judgements (each on a core where one is
     // free; rayon keeps the order).
+    let gerg_covers = setup.gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id()));
     let other_model = |m: Model| -> ModelPlan {
+        if m == Model::Multi && gerg_covers {
+            // GERG-2008 is the reference here; the multi-fluid model (asked for with
+            // --model multi) would repeat it within a few 0.01 %.
+            return ModelPlan { model: m, result: Err(NOT_NEEDED.to_string()) };
+        }
         let result = Fluid::new(catalogue, &setup.gases, m)
             .map_err(PlanError::from)
             .and_then(|f| {

@@ -355,8 +355,9 @@ impl Fluid {
 
     /// Amount of gas, mol, in `volume_m3` at (T, P, x).
     /// Z along the isotherm `t_k` at the pressures given (ascending), None where the model
-    /// has no state. Under GERG-2008 each density is found by Newton's method from the one
-    /// before (the crate's own search starts from the ideal gas each time).
+    /// has no state. Under GERG-2008 and the multi-fluid model each density is found by
+    /// Newton's method from the extrapolation of the ones before (the crate's own search
+    /// starts from the ideal gas each time).
     pub fn isotherm_z(&self, t_k: f64, pressures_pa: &[f64], x: &[f64]) -> Vec<Option<f64>> {
         let composition_ok = self.check_x(x).is_ok();
         // The densities found so far on this branch, (P, ρ), the last three kept: the start
@@ -365,10 +366,11 @@ impl Fluid {
         pressures_pa
             .iter()
             .map(|&p| {
-                let warm = match &self.gerg {
-                    Some(g) if !known.is_empty() && composition_ok && Self::check_p(p).is_ok() => {
-                        g.density_from(x, t_k, p, extrapolate(&known, p))
-                    }
+                let start = (!known.is_empty() && composition_ok && Self::check_p(p).is_ok())
+                    .then(|| extrapolate(&known, p));
+                let warm = match (start, &self.gerg, &self.multi) {
+                    (Some(rho0), Some(g), _) => g.density_from(x, t_k, p, rho0),
+                    (Some(rho0), _, Some(m)) => m.density(t_k, p, x, Some(rho0)),
                     _ => None,
                 };
                 let rho = match warm {
@@ -534,7 +536,7 @@ mod tests {
     #[test]
     fn the_isotherm_from_one_density_to_the_next_is_the_isotherm_point_by_point() {
         let x = [0.85, 0.05, 0.05, 0.05];
-        for model in [Model::Gerg, Model::Pr, Model::Ideal] {
+        for model in [Model::Gerg, Model::Multi, Model::Pr, Model::Ideal] {
             let f = fluid(&["CH4", "N2", "CO2", "C2H6"], model);
             let pressures: Vec<f64> = (0..=30).map(|k| 1e5 + 6e5 * k as f64).collect();
             for (p, z) in pressures.iter().zip(f.isotherm_z(288.15, &pressures, &x)) {

@@ -42,7 +42,7 @@ use crate::units::R;
 const DATA: &str = include_str!("multifluid.ron");
 
 /// One term of a residual Helmholtz energy, in the parameters of the fluid files.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize)]
 enum Term {
     /// n δ^d τ^t, times exp(−δ^l) where l > 0.
     Power(f64, f64, f64, f64),
@@ -156,6 +156,8 @@ pub struct Mixture {
     /// linear rule.
     estimated_gases: Vec<String>,
     estimated_pairs: Vec<(String, String)>,
+    /// Tells this mixture's prepared states apart from another's (see [`PREPARED`]).
+    serial: u64,
 }
 
 impl Mixture {
@@ -232,7 +234,9 @@ impl Mixture {
                 pairs.push(pair);
             }
         }
-        Mixture { ids, pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs }
+        static SERIAL: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+        let serial = SERIAL.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+        Mixture { ids, pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, serial }
     }
 
     /// The gases on the cubic form and the pairs on the linear rule (estimates, not
@@ -299,21 +303,66 @@ impl Mixture {
 
     /// (P in Pa, ∂P/∂ρ in Pa m³/mol) at (T, ρ in mol/m³, x).
     pub fn pressure(&self, t_k: f64, rho: f64, x: &[f64]) -> (f64, f64) {
+        self.at_composition(x, t_k).pressure(rho)
+    }
+
+    /// The composition's reducing state and every term's temperature factor at T, for
+    /// several densities in a row.
+    /// The prepared state of (x, T), from the ones kept on this thread where it is there
+    /// (an isotherm, a density search and its neighbours share one).
+    fn at_composition(&self, x: &[f64], t_k: f64) -> std::rc::Rc<Composed> {
+        let key = (self.serial, t_k.to_bits(), x.iter().map(|v| v.to_bits()).collect::<Vec<u64>>());
+        PREPARED.with(|cell| {
+            let mut kept = cell.borrow_mut();
+            if let Some(i) = kept.iter().rposition(|(k, _)| *k == key) {
+                let hit = kept.remove(i);
+                let state = hit.1.clone();
+                kept.push(hit);
+                return state;
+            }
+            let state = std::rc::Rc::new(self.compose(x, t_k));
+            if kept.len() >= PREPARED_KEPT {
+                kept.remove(0);
+            }
+            kept.push((key, state.clone()));
+            state
+        })
+    }
+
+    fn compose(&self, x: &[f64], t_k: f64) -> Composed {
         let xd: Vec<D2> = x.iter().map(|&v| D2::c(v)).collect();
         let (tr, rr) = self.reducing(&xd);
-        let delta = D2::var(rho / rr.v);
-        let a = self.alphar(delta, D2::c(tr.v / t_k), &xd);
-        let (d, ad, add) = (delta.v, a.d, a.dd);
-        let rt = R * t_k;
-        (rho * rt * (1.0 + d * ad), rt * (1.0 + 2.0 * d * ad + d * d * add))
+        let tau = tr.v / t_k;
+        let mut flat = Vec::new();
+        let mut other: Vec<(f64, Other)> = Vec::new();
+        let n = x.len();
+        for i in 0..n {
+            if x[i] == 0.0 {
+                continue;
+            }
+            match &self.pure[i] {
+                Pure::Reference(terms) => flatten(terms, x[i], tau, &mut flat, &mut other),
+                Pure::Cubic { kappa } => other.push((x[i], Other::Cubic(*kappa))),
+            }
+        }
+        for i in 0..n {
+            for j in i + 1..n {
+                let p = &self.pairs[i * n + j];
+                if let (Some(terms), true) = (p.departure, p.f != 0.0 && x[i] * x[j] != 0.0) {
+                    flatten(terms, x[i] * x[j] * p.f, tau, &mut flat, &mut other);
+                }
+            }
+        }
+        Composed { t_k, rho_r: rr.v, tau, flat, other }
     }
 
     /// Molar density, mol/m³, at (T, P) by Newton's method from `rho0` (the ideal gas
     /// when None): the branch Newton's method reaches. None where it leaves it.
     pub fn density(&self, t_k: f64, p_pa: f64, x: &[f64], rho0: Option<f64>) -> Option<f64> {
+        let composed = self.at_composition(x, t_k);
         let mut rho = rho0.unwrap_or(p_pa / (R * t_k));
         for _ in 0..100 {
-            let (p, dp) = self.pressure(t_k, rho, x);
+            let (p, dp) = composed.pressure(rho);
             if !(dp > 0.0 && p.is_finite()) {
                 return None;
             }
@@ -379,6 +428,172 @@ impl Mixture {
     }
 }
 
+/// How many prepared states each thread keeps.
+const PREPARED_KEPT: usize = 16;
+
+type PreparedKey = (u64, u64, Vec<u64>);
+
+thread_local! {
+    /// The prepared states (mixture, T and x bit for bit) last used on this thread, the
+    /// most recent last.
+    static PREPARED: std::cell::RefCell<Vec<(PreparedKey, std::rc::Rc<Composed>)>> =
+        const { std::cell::RefCell::new(Vec::new()) };
+}
+
+/// The density part of a term whose temperature part is folded into its coefficient.
+#[derive(Debug, Clone, Copy)]
+enum DeltaPart {
+    /// δ^d.
+    Plain,
+    /// δ^d exp(−g δ^l); `li` is l's place in the table of whole powers (TABLE if none).
+    ExpPower { g: f64, l: f64, li: usize },
+    /// δ^d exp(−η(δ − ε)² − β(δ − γ)) (Gaussian terms have β = 0; Gao's have −η).
+    Bell { eta: f64, eps: f64, beta: f64, gamma: f64 },
+}
+
+/// A term at one temperature: c δ^d h(δ); `di` is d's place in the table of whole
+/// powers (TABLE if none).
+#[derive(Debug, Clone, Copy)]
+struct Flat {
+    c: f64,
+    d: f64,
+    di: usize,
+    part: DeltaPart,
+}
+
+/// Terms not split into a temperature and a density part, with their weight.
+#[derive(Debug, Clone, Copy)]
+enum Other {
+    NonAnalytic(Term),
+    Cubic(f64),
+}
+
+/// Split `terms` at τ into flat terms weighted by `w` (the non-analytic ones kept whole).
+fn flatten(terms: &[Term], w: f64, tau: f64, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
+    for term in terms {
+        let (c, d, part) = match *term {
+            Term::Power(n, d, t, l) => {
+                (n * tau.powf(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain })
+            }
+            Term::Exponential(n, d, t, g, l) => (n * tau.powf(t), d, exp_power(g, l)),
+            Term::Gaussian(n, d, t, eta, eps, beta, gamma) => (
+                n * tau.powf(t) * (-beta * (tau - gamma) * (tau - gamma)).exp(),
+                d,
+                DeltaPart::Bell { eta, eps, beta: 0.0, gamma: 0.0 },
+            ),
+            Term::GaoB(n, d, t, eta, beta, gamma, eps, b) => (
+                n * tau.powf(t) * (1.0 / (beta * (tau - gamma) * (tau - gamma) + b)).exp(),
+                d,
+                DeltaPart::Bell { eta: -eta, eps, beta: 0.0, gamma: 0.0 },
+            ),
+            Term::GergExp(n, d, t, eta, eps, beta, gamma) => {
+                (n * tau.powf(t), d, DeltaPart::Bell { eta, eps, beta, gamma })
+            }
+            Term::NonAnalytic(..) => {
+                other.push((w, Other::NonAnalytic(*term)));
+                continue;
+            }
+        };
+        flat.push(Flat { c: w * c, d, di: whole(d).unwrap_or(TABLE), part });
+    }
+}
+
+fn exp_power(g: f64, l: f64) -> DeltaPart {
+    DeltaPart::ExpPower { g, l, li: whole(l).unwrap_or(TABLE) }
+}
+
+/// A mixture at one composition and temperature: its reducing state and its terms.
+struct Composed {
+    t_k: f64,
+    rho_r: f64,
+    tau: f64,
+    flat: Vec<Flat>,
+    other: Vec<(f64, Other)>,
+}
+
+impl Composed {
+    /// (P in Pa, ∂P/∂ρ in Pa m³/mol) at ρ: P = ρRT(1 + δα^r_δ),
+    /// ∂P/∂ρ = RT(1 + 2δα^r_δ + δ²α^r_δδ). Each flat term f = c δ^d h(δ) with
+    /// g = ln f: δf_δ = f δg′ and δ²f_δδ = f((δg′)² − d + δ²h″).
+    fn pressure(&self, rho: f64) -> (f64, f64) {
+        let delta = rho / self.rho_r;
+        // Whole powers of δ and exp(−δ^l) for whole l, once for all terms.
+        let mut powers = [1.0; TABLE];
+        for k in 1..TABLE {
+            powers[k] = powers[k - 1] * delta;
+        }
+        let mut decays = [f64::NAN; TABLE];
+        let (mut a1, mut a2) = (0.0, 0.0); // δα_δ, δ²α_δδ
+        for f in &self.flat {
+            let base = f.c * table_power(&powers, delta, f.d, f.di);
+            let (value, dg, d2h) = match f.part {
+                DeltaPart::Plain => (base, f.d, 0.0),
+                DeltaPart::ExpPower { g, l, li } => {
+                    let u = g * table_power(&powers, delta, l, li);
+                    let decay = if li < TABLE && g == 1.0 {
+                        if decays[li].is_nan() {
+                            decays[li] = (-u).exp();
+                        }
+                        decays[li]
+                    } else {
+                        (-u).exp()
+                    };
+                    (base * decay, f.d - l * u, -l * (l - 1.0) * u)
+                }
+                DeltaPart::Bell { eta, eps, beta, gamma } => {
+                    let e = delta - eps;
+                    let h = -eta * e * e - beta * (delta - gamma);
+                    (base * h.exp(), f.d - 2.0 * eta * delta * e - beta * delta, -2.0 * eta * delta * delta)
+                }
+            };
+            a1 += value * dg;
+            a2 += value * (dg * dg - f.d + d2h);
+        }
+        if !self.other.is_empty() {
+            let dd = D2::var(delta);
+            let tau = D2::c(self.tau);
+            let (ln_d, ln_t) = (dd.ln(), tau.ln());
+            for (w, o) in &self.other {
+                let a = match o {
+                    Other::NonAnalytic(term) => sum_terms(std::slice::from_ref(term), dd, tau, ln_d, ln_t),
+                    Other::Cubic(kappa) => pr_alphar(*kappa, dd, tau),
+                };
+                a1 += w * delta * a.d;
+                a2 += w * delta * delta * a.dd;
+            }
+        }
+        let rt = R * self.t_k;
+        (rho * rt * (1.0 + a1), rt * (1.0 + 2.0 * a1 + a2))
+    }
+}
+
+/// The whole powers kept per evaluation: δ^0 … δ^15.
+const TABLE: usize = 16;
+
+/// k as an index of the table, where it is a whole number in it.
+fn whole(k: f64) -> Option<usize> {
+    (k >= 0.0 && k < TABLE as f64 && k.fract() == 0.0).then_some(k as usize)
+}
+
+/// x^k from the table of whole powers where k has a place `i` in it (as in every
+/// published term).
+fn table_power(powers: &[f64; TABLE], x: f64, k: f64, i: usize) -> f64 {
+    if i < TABLE {
+        powers[i]
+    } else {
+        x.powf(k)
+    }
+}
+
+/// δ^k: by multiplication where k is a whole number (as in every published term).
+fn power(x: D2, k: f64) -> D2 {
+    if k.fract() == 0.0 && k.abs() < 64.0 {
+        x.powi(k as i32)
+    } else {
+        x.powf(k)
+    }
+}
+
 /// Σ of a list of terms at (δ, τ), with ln δ and ln τ given.
 fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
     let mut s = D2::c(0.0);
@@ -387,7 +602,7 @@ fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
             Term::Power(n, d, t, l) => {
                 let base = (ln_d * d + ln_t * t).exp() * n;
                 if l > 0.0 {
-                    base * (-delta.powf(l)).exp()
+                    base * (-power(delta, l)).exp()
                 } else {
                     base
                 }
@@ -396,7 +611,7 @@ fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
                 let (dd, dt) = (delta - eps, tau - gamma);
                 (ln_d * d + ln_t * t - eta * dd * dd - beta * dt * dt).exp() * n
             }
-            Term::Exponential(n, d, t, g, l) => (ln_d * d + ln_t * t - g * delta.powf(l)).exp() * n,
+            Term::Exponential(n, d, t, g, l) => (ln_d * d + ln_t * t - g * power(delta, l)).exp() * n,
             Term::NonAnalytic(n, a, b, beta, big_a, big_b, big_c, big_d) => {
                 let dm1 = delta - 1.0;
                 let sq = dm1 * dm1;

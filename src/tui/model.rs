@@ -295,9 +295,13 @@ fn heavy_key(recipe: &Recipe, settings: &Resolved) -> String {
 /// Z of the finished blend from 1 bar to 1.2 times the fill pressure, for each model.
 fn z_curves(gases: &[usize], x: &[f64], fill_pa: f64, o: &Order, catalogue: &Catalogue) -> Vec<(Eos, Vec<(f64, f64)>)> {
     let top = 1.2 * fill_pa / 1e5;
+    // The multi-fluid curve only where GERG-2008 does not cover the blend (else it lies on
+    // GERG-2008's).
+    let gerg_covers = gases.iter().all(|&g| crate::thermo::gerg::covers(catalogue.gas(g).id()));
     use rayon::prelude::*;
     Eos::ALL
         .par_iter()
+        .filter(|&&m| !(m == Eos::Multi && gerg_covers))
         .filter_map(|&m| {
             let f = Fluid::new(catalogue, gases, m).ok()?;
             let bars: Vec<f64> = (0..=30).map(|k| 1.0 + (top - 1.0) * k as f64 / 30.0).collect();
