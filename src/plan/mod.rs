@@ -365,6 +365,51 @@ pub fn reference_model(gases: &[usize], catalogue: &Catalogue) -> Model {
     }
 }
 
+/// What the multi-fluid model estimates for this blend, where it matters: a gas without a
+/// reference equation at 1 % or more (its share is Peng–Robinson's), and pairs without
+/// published parameters when the two usual estimates (linear, Lorentz–Berthelot) give
+/// amounts more than 0.05 % apart (their difference is the model's uncertainty there).
+fn multi_estimates(order: &Order, setup: &Setup, catalogue: &Catalogue, total_mol: f64) -> Vec<String> {
+    use crate::thermo::multifluid::{Estimate, Mixture};
+    let mixture = Mixture::new(catalogue, &setup.gases);
+    let (gases, pairs) = mixture.estimated();
+    let fraction = |id: &str| {
+        setup.gases.iter().position(|&g| catalogue.gas(g).id() == id).map_or(0.0, |i| setup.x_target[i])
+    };
+    let mut notes = Vec::new();
+    let major: Vec<String> = gases
+        .iter()
+        .filter(|id| fraction(id) >= 0.01)
+        .map(|id| format!("{id} ({})", crate::units::fraction_text(fraction(id))))
+        .collect();
+    if !major.is_empty() {
+        notes.push(format!(
+            "the multi-fluid model has no reference equation of state for {}: its share of the blend's \
+             behaviour is Peng-Robinson's, good to a few % of that share",
+            major.join(", ")
+        ));
+    }
+    let live: Vec<String> =
+        pairs.iter().filter(|(a, b)| fraction(a) > 0.0 && fraction(b) > 0.0).map(|(a, b)| format!("{a}-{b}")).collect();
+    if !live.is_empty() {
+        let other = Mixture::with_estimate(catalogue, &setup.gases, Estimate::LorentzBerthelot);
+        let (t, v) = (order.reference_temperature_k, order.volume_m3);
+        let p = mixture.pressure(t, total_mol / v, &setup.x_target).0;
+        if let Some(rho) = other.density(t, p, &setup.x_target, Some(total_mol / v)) {
+            let spread = (rho * v / total_mol - 1.0) * 100.0;
+            if spread.abs() > 0.05 {
+                notes.push(format!(
+                    "no published parameters for {}: the multi-fluid model estimates them, and the two usual \
+                     estimates give amounts {:.2} % apart; count that as the model's uncertainty here",
+                    live.join(", "),
+                    spread.abs()
+                ));
+            }
+        }
+    }
+    notes
+}
+
 /// Source amounts and step order, independent of the model but for the total amount.
 struct Dosing {
     total_mol: f64,
@@ -742,6 +787,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         .collect();
 
     let mut notes = Vec::new();
+    if model == Model::Multi {
+        notes.extend(multi_estimates(order, &setup, catalogue, d.total_mol));
+    }
     if let Before::Evacuated { residual_pa } = order.before {
         // The residual gas, taken as air (ideal gas at the fill temperature): reported when
         // it is more than a hundredth of the smallest target share.

@@ -160,9 +160,24 @@ pub struct Mixture {
     serial: u64,
 }
 
+/// How a pair without published parameters is combined.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Estimate {
+    /// T_r and 1/ρ_r linear in the mole fractions (the model's choice).
+    Linear,
+    /// Every parameter 1: geometric-mean temperatures, Lorentz's volumes (the other usual
+    /// estimate; the two together bound what the estimate may be off by).
+    LorentzBerthelot,
+}
+
 impl Mixture {
     /// The model for the catalogue gases at `gases` (indices).
     pub fn new(catalogue: &Catalogue, gases: &[usize]) -> Mixture {
+        Mixture::with_estimate(catalogue, gases, Estimate::Linear)
+    }
+
+    /// The model with unpublished pairs combined by `estimate`.
+    pub fn with_estimate(catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Mixture {
         let n = gases.len();
         let ids: Vec<String> = gases.iter().map(|&g| catalogue.gas(g).id().to_string()).collect();
         let mut pure = Vec::with_capacity(n);
@@ -219,11 +234,15 @@ impl Mixture {
                             estimated_pairs.push((ids[i].clone(), ids[j].clone()));
                         }
                         let v = |r: f64| 1.0 / r;
+                        let (gamma_t, gamma_v) = match estimate {
+                            Estimate::Linear => (0.5 * (t_c[i] + t_c[j]) / t_ij, 0.5 * (v(rho_c[i]) + v(rho_c[j])) / v_ij),
+                            Estimate::LorentzBerthelot => (1.0, 1.0),
+                        };
                         Pair {
                             beta_t: 1.0,
-                            gamma_t: 0.5 * (t_c[i] + t_c[j]) / t_ij,
+                            gamma_t,
                             beta_v: 1.0,
-                            gamma_v: 0.5 * (v(rho_c[i]) + v(rho_c[j])) / v_ij,
+                            gamma_v,
                             f: 0.0,
                             departure: None,
                             t_ij,
