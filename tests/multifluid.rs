@@ -31,8 +31,12 @@ fn pure_gases_follow_their_reference_equations() {
     for s in f["pure"].as_array().unwrap() {
         let id = s["id"].as_str().unwrap();
         let m = mixture(&c, &[id]);
-        let (t, p, rho, z) =
-            (s["t_k"].as_f64().unwrap(), s["p_pa"].as_f64().unwrap(), s["rho_mol_m3"].as_f64().unwrap(), s["z"].as_f64().unwrap());
+        let (t, p, rho, z) = (
+            s["t_k"].as_f64().unwrap(),
+            s["p_pa"].as_f64().unwrap(),
+            s["rho_mol_m3"].as_f64().unwrap(),
+            s["z"].as_f64().unwrap(),
+        );
         // Z at CoolProp's density: the same equation, so to rounding.
         let (p_here, _) = m.pressure(t, rho, &[1.0]);
         let z_here = p_here / (rho * fillwright::units::R * t);
@@ -59,8 +63,12 @@ fn blends_follow_coolprops_multi_fluid_model() {
         let refs: Vec<&str> = ids.iter().map(String::as_str).collect();
         let m = mixture(&c, &refs);
         let x = floats(&s["x"]);
-        let (t, p, rho, z) =
-            (s["t_k"].as_f64().unwrap(), s["p_pa"].as_f64().unwrap(), s["rho_mol_m3"].as_f64().unwrap(), s["z"].as_f64().unwrap());
+        let (t, p, rho, z) = (
+            s["t_k"].as_f64().unwrap(),
+            s["p_pa"].as_f64().unwrap(),
+            s["rho_mol_m3"].as_f64().unwrap(),
+            s["z"].as_f64().unwrap(),
+        );
         let estimated: Vec<Vec<String>> = s["estimated_pairs"].as_array().unwrap().iter().map(ids_of).collect();
         // Published pairs: the same equations, to rounding. Estimated pairs: CoolProp's
         // linear rule takes the critical densities where fillwright takes each equation's
@@ -94,7 +102,8 @@ fn a_trace_outside_gerg_no_longer_costs_the_blend_its_accuracy() {
     // where Peng-Robinson for the whole blend was 1.5-3 % off.
     use fillwright::thermo::Model;
     let c = Catalogue::built_in();
-    for (trace, x) in [("NO", 50e-6), ("SO2", 500e-6), ("NO2", 20e-6), ("NH3", 100e-6), ("HCl", 50e-6), ("Cl2", 10e-6)] {
+    for (trace, x) in [("NO", 50e-6), ("SO2", 500e-6), ("NO2", 20e-6), ("NH3", 100e-6), ("HCl", 50e-6), ("Cl2", 10e-6)]
+    {
         let ids = [trace, "N2"];
         let gases: Vec<usize> = ids.iter().map(|id| c.index_of(id).unwrap()).collect();
         assert_eq!(fillwright::plan::default_model(&gases, &c), Model::Multi, "{trace}");

@@ -26,11 +26,8 @@ pub fn demo_rows(catalogue: &Catalogue) -> Vec<Row> {
         let Ok(p) = plan(&order, catalogue, &PlanOptions::default()) else {
             continue;
         };
-        let Some(following) = p
-            .following
-            .iter()
-            .find(|f| matches!(f.truth, Model::Gerg | Model::Multi))
-            .or_else(|| p.following.first())
+        let Some(following) =
+            p.following.iter().find(|f| matches!(f.truth, Model::Gerg | Model::Multi)).or_else(|| p.following.first())
         else {
             continue;
         };

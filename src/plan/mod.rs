@@ -373,9 +373,8 @@ fn multi_estimates(order: &Order, setup: &Setup, catalogue: &Catalogue, total_mo
     use crate::thermo::multifluid::{Estimate, Mixture};
     let mixture = Mixture::new(catalogue, &setup.gases);
     let (gases, pairs) = mixture.estimated();
-    let fraction = |id: &str| {
-        setup.gases.iter().position(|&g| catalogue.gas(g).id() == id).map_or(0.0, |i| setup.x_target[i])
-    };
+    let fraction =
+        |id: &str| setup.gases.iter().position(|&g| catalogue.gas(g).id() == id).map_or(0.0, |i| setup.x_target[i]);
     let mut notes = Vec::new();
     let major: Vec<String> = gases
         .iter()

@@ -5,10 +5,10 @@
 //! composition in the cylinder changes.
 
 pub mod cubic;
+pub mod dual;
 pub mod gerg;
 pub mod kernel;
 pub mod kij;
-pub mod dual;
 pub mod multifluid;
 pub mod phases;
 pub mod survey;
@@ -47,8 +47,7 @@ pub enum Model {
 
 impl Model {
     /// Every model, simplest first.
-    pub const ALL: [Model; 7] =
-        [Model::Ideal, Model::Vdw, Model::Rk, Model::Srk, Model::Pr, Model::Gerg, Model::Multi];
+    pub const ALL: [Model; 7] = [Model::Ideal, Model::Vdw, Model::Rk, Model::Srk, Model::Pr, Model::Gerg, Model::Multi];
 
     /// The name used on the command line and in JSON.
     pub fn key(self) -> &'static str {
@@ -366,8 +365,8 @@ impl Fluid {
         pressures_pa
             .iter()
             .map(|&p| {
-                let start = (!known.is_empty() && composition_ok && Self::check_p(p).is_ok())
-                    .then(|| extrapolate(&known, p));
+                let start =
+                    (!known.is_empty() && composition_ok && Self::check_p(p).is_ok()).then(|| extrapolate(&known, p));
                 let warm = match (start, &self.gerg, &self.multi) {
                     (Some(rho0), Some(g), _) => g.density_from(x, t_k, p, rho0),
                     (Some(rho0), _, Some(m)) => m.density(t_k, p, x, Some(rho0)),

@@ -126,7 +126,9 @@ const PR_ZC: f64 = 0.307_401_308_698_7;
 enum Pure {
     Reference(&'static [Term]),
     /// Peng–Robinson in reduced form: κ of the α function.
-    Cubic { kappa: f64 },
+    Cubic {
+        kappa: f64,
+    },
 }
 
 /// The parameters of one pair i < j.
@@ -235,19 +237,12 @@ impl Mixture {
                         }
                         let v = |r: f64| 1.0 / r;
                         let (gamma_t, gamma_v) = match estimate {
-                            Estimate::Linear => (0.5 * (t_c[i] + t_c[j]) / t_ij, 0.5 * (v(rho_c[i]) + v(rho_c[j])) / v_ij),
+                            Estimate::Linear => {
+                                (0.5 * (t_c[i] + t_c[j]) / t_ij, 0.5 * (v(rho_c[i]) + v(rho_c[j])) / v_ij)
+                            }
                             Estimate::LorentzBerthelot => (1.0, 1.0),
                         };
-                        Pair {
-                            beta_t: 1.0,
-                            gamma_t,
-                            beta_v: 1.0,
-                            gamma_v,
-                            f: 0.0,
-                            departure: None,
-                            t_ij,
-                            v_ij,
-                        }
+                        Pair { beta_t: 1.0, gamma_t, beta_v: 1.0, gamma_v, f: 0.0, departure: None, t_ij, v_ij }
                     }
                 };
                 pairs.push(pair);
@@ -491,9 +486,7 @@ enum Other {
 fn flatten(terms: &[Term], w: f64, tau: f64, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
     for term in terms {
         let (c, d, part) = match *term {
-            Term::Power(n, d, t, l) => {
-                (n * tau.powf(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain })
-            }
+            Term::Power(n, d, t, l) => (n * tau.powf(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
             Term::Exponential(n, d, t, g, l) => (n * tau.powf(t), d, exp_power(g, l)),
             Term::Gaussian(n, d, t, eta, eps, beta, gamma) => (
                 n * tau.powf(t) * (-beta * (tau - gamma) * (tau - gamma)).exp(),

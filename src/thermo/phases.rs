@@ -300,7 +300,8 @@ impl Fluid {
             }
             Model::Multi => {
                 let Some(start) = cubic_sat else { return Ok(None) };
-                match self.multi.as_ref().and_then(|m| m.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3)) {
+                match self.multi.as_ref().and_then(|m| m.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3))
+                {
                     Some((p, rho_l, rho_v)) => Ok(Some(Saturation {
                         pressure_pa: p,
                         v_liquid_m3: 1.0 / rho_l,
