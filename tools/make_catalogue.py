@@ -13,6 +13,9 @@ import math
 import os
 
 import chemicals
+import numpy
+import CoolProp
+import CoolProp.CoolProp as CP
 from chemicals import acentric, critical, phase_change
 from chemicals import vapor_pressure as vp
 from thermo.interaction_parameters import IPDB
@@ -83,11 +86,107 @@ REFERENCES = {
     "CRC_VDW": "CRC Handbook of Chemistry and Physics, table 'Van der Waals Constants for Gases' (from Tc and Pc in its critical-constants table)",
     "IUPAC_2021": "IUPAC/CIAAW standard atomic weights 2021, conventional values; Ar 39.948 (atmospheric argon)",
     "CHEMSEP_PR": "ChemSep Peng-Robinson binary interaction parameters, Kooijman & Taylor, ChemSep database (via thermo IPDB 'ChemSep PR')",
+    "REFERENCE_FIT": "Wagner's form fitted by tools/make_catalogue.py to the saturation pressures of the gas's reference equation of state (CoolProp %s; the equation is named by `fillwright gases --format json`), within 0.3 %% of them from the triple point (or 0.4 Tc) to the critical point" % CoolProp.__version__,
+    "VDI_PPDS": "VDI Heat Atlas, 2nd ed. (2010), PPDS vapour-pressure equation (via chemicals Psat_data_VDI_PPDS_3)",
+    "HEOS_FIT": "Wagner's form fitted by tools/make_catalogue.py to thermo's 'HEOS_FIT' vapour-pressure curve (chemicals' fit to an equation of state CoolProp no longer ships), within 0.3 %% of it" ,
+}
+
+# Critical constants and acentric factors taken from the reference equations of state
+# (chemicals 'HEOS': CoolProp's critical points) where the usual first choice is off
+# from them beyond the tolerances of tests/catalogue_reference.rs: Tc 0.2 %, Pc 1 %,
+# omega 0.01. Each with what the first choice gave.
+CRITICAL_FROM_REFERENCE = {
+    "Ne": "MATTHEWS Pc 2.756 MPa, 3.5 % above the reference equation's 2.662 MPa (Thol 2019)",
+    "n-C10H22": "IUPAC Tc 611.7 K; the reference equation (Lemmon & Span 2006) has 617.7 K",
+    "COS": "MATTHEWS 375.0 K, 5.877 MPa; the reference equation (Lemmon & Span 2006) has 378.77 K, 6.37 MPa",
+    "CF4": "IUPAC Pc 3.68 MPa, 1.9 % below the reference equation's 3.75 MPa (Platzer 1990)",
+    "NF3": "MATTHEWS Pc 4.529 MPa; chemicals 'HEOS', Yaws and Pina-Martinez give 4.461 MPa",
+    "CH3OH": "IUPAC 512.5 K, 8.084 MPa; the reference equation (Piazza & Federico 2013) has 513.38 K, 8.216 MPa",
+    "C2H5OH": "IUPAC 514.0 K, 6.137 MPa; the reference equation (Schroeder 2014) has 514.71 K, 6.268 MPa",
+}
+OMEGA_FROM_REFERENCE = {
+    "SF6": "PSRK 0.150; chemicals 'HEOS' (the reference equation, Guder & Wagner 2009) gives 0.218",
+    "N2O": "PSRK 0.173; chemicals 'HEOS' (the reference equation, Lemmon & Span 2006) gives 0.162",
+    "NF3": "PSRK 0.102; chemicals 'HEOS' gives 0.126 (YAWS 0.120, from the vapour pressure 0.127)",
+    "HCl": "PSRK 0.120; chemicals 'HEOS' (the reference equation, Thol 2018) gives 0.129",
 }
 
 PREFER_CRITICAL = ["IUPAC", "MATTHEWS", "HEOS", "PSRK", "YAWS"]
 PREFER_OMEGA = ["PSRK", "HEOS", "YAWS"]
 PREFER_TB = ["CRC_ORG", "CRC_INORG", "HEOS", "COMMON_CHEMISTRY", "WEBBOOK", "YAWS"]
+TB_FROM_REFERENCE = {
+    "H2S": "CRC_INORG 213.6 K; the reference equation (Lemmon & Span 2006) 212.85 K, NIST WebBook 212.87 K",
+}
+
+
+def critical_method(gid, cas):
+    if gid in CRITICAL_FROM_REFERENCE:
+        return "HEOS"
+    return pick(critical.Tc_methods(cas), PREFER_CRITICAL)
+
+
+def omega_method(gid, cas):
+    if gid in OMEGA_FROM_REFERENCE:
+        return "HEOS"
+    return pick(acentric.omega_methods(cas), PREFER_OMEGA)
+
+
+def coolprop_name(cas):
+    """CoolProp's name of the fluid with this CAS number, or None."""
+    try:
+        return CP.get_fluid_param_string(cas, "name")
+    except ValueError:
+        return None
+
+
+# Exponents of the fitted Wagner form: ln(p/pc) = (Tc/T) sum n_i theta^t_i.
+WAGNER_T = [1.0, 1.5, 2.0, 2.5, 3.5, 5.0, 7.0]
+
+
+def reference_fit(cas):
+    """Wagner's form fitted to the reference equation's saturation pressures (linear least
+    squares on 80 points from the triple point or 0.4 Tc to just below the critical point), or None
+    where CoolProp has no equation for the gas. Returns (Tc, pc, n, Tmin, worst relative
+    deviation)."""
+    name = coolprop_name(cas)
+    if name is None:
+        return None
+    tc, pc = CP.PropsSI("Tcrit", name), CP.PropsSI("pcrit", name)
+    t_min = max(CP.PropsSI("Ttriple", name), 0.4 * tc)
+    ts = numpy.linspace(t_min, 0.9995 * tc, 80)
+    ps = numpy.array([CP.PropsSI("P", "T", t, "Q", 0, name) for t in ts])
+    n, worst = wagner_fit(ts, ps, tc, pc)
+    if worst > 3e-3:
+        raise SystemExit("%s: the Wagner fit is %.3g off" % (name, worst))
+    return tc, pc, n, t_min, worst
+
+
+def wagner_fit(ts, ps, tc, pc):
+    """n of Wagner's form through (ts, ps) by linear least squares; (n, worst deviation)."""
+    theta = 1.0 - ts / tc
+    a = numpy.array([[th ** e for e in WAGNER_T] for th in theta])
+    y = numpy.log(ps / pc) * ts / tc
+    n, *_ = numpy.linalg.lstsq(a, y, rcond=None)
+    fitted = pc * numpy.exp((a @ n) * tc / ts)
+    return [float(v) for v in n], float(numpy.max(numpy.abs(fitted / ps - 1.0)))
+
+
+def heos_fit(cas):
+    """Wagner's form fitted to thermo's HEOS_FIT curve where the gas has one, else None."""
+    from thermo import VaporPressure
+
+    v = VaporPressure(CASRN=cas)
+    if "HEOS_FIT" not in v.all_methods:
+        return None
+    v.method = "HEOS_FIT"
+    lo, hi = v.T_limits["HEOS_FIT"]
+    tc, pc = hi, v(hi)
+    ts = numpy.linspace(max(lo, 0.4 * tc), 0.999 * tc, 80)
+    ps = numpy.array([v(t) for t in ts])
+    n, worst = wagner_fit(ts, ps, tc, pc)
+    if worst > 3e-3:
+        raise SystemExit("%s: the Wagner fit is %.3g off" % (cas, worst))
+    return tc, pc, n, float(ts[0]), worst
 
 
 def pick(methods, prefer):
@@ -152,12 +251,12 @@ def main():
     out.append("    },")
     out.append("    gases: [")
     for gid, cas, formula, name, aliases, vdw in GASES:
-        mc = pick(critical.Tc_methods(cas), PREFER_CRITICAL)
+        mc = critical_method(gid, cas)
         tc = critical.Tc(cas, method=mc)
         pc = critical.Pc(cas, method=mc)
-        mo = pick(acentric.omega_methods(cas), PREFER_OMEGA)
+        mo = omega_method(gid, cas)
         omega = acentric.omega(cas, method=mo)
-        mb = pick(phase_change.Tb_methods(cas), PREFER_TB)
+        mb = "HEOS" if gid in TB_FROM_REFERENCE else pick(phase_change.Tb_methods(cas), PREFER_TB)
         tb = phase_change.Tb(cas, method=mb)
         out.append("        Gas(")
         out.append(f"            id: {q(gid)},")
@@ -172,7 +271,39 @@ def main():
         out.append(f"            acentric_source: {q(mo)},")
         out.append(f"            normal_boiling_point_k: {num(tb)},")
         out.append(f"            boiling_source: {q(mb)},")
-        if cas in vp.Psat_data_Perrys2_8.index:
+        fit = reference_fit(cas)
+        if gid in CRITICAL_FROM_REFERENCE:
+            out.append(f"            // critical constants: {CRITICAL_FROM_REFERENCE[gid]}")
+        if gid in OMEGA_FROM_REFERENCE:
+            out.append(f"            // acentric factor: {OMEGA_FROM_REFERENCE[gid]}")
+        if gid in TB_FROM_REFERENCE:
+            out.append(f"            // normal boiling point: {TB_FROM_REFERENCE[gid]}")
+        source = "REFERENCE_FIT"
+        if fit is None:
+            fit = heos_fit(cas)
+            source = "HEOS_FIT"
+        if fit is not None:
+            f_tc, f_pc, n, t_min, worst = fit
+            out.append(f"            // vapour pressure within {worst * 100:.3f} % of the curve fitted")
+            out.append(
+                "            vapour_pressure: Wagner(t_r_k: %s, p_r_pa: %s, n: [%s], t: [%s], tau_factor: true, t_min_k: %s, t_max_k: %s, source: %s),"
+                % (
+                    num(f_tc),
+                    num(f_pc),
+                    ", ".join(num(v) for v in n),
+                    ", ".join(num(v) for v in WAGNER_T),
+                    num(t_min),
+                    num(f_tc),
+                    q(source),
+                )
+            )
+        elif cas in vp.Psat_data_VDI_PPDS_3.index and cas not in vp.Psat_data_Perrys2_8.index:
+            row = vp.Psat_data_VDI_PPDS_3.loc[cas]
+            out.append(
+                "            vapour_pressure: Wagner(t_r_k: %s, p_r_pa: %s, n: [%s], t: [1.0, 1.5, 2.5, 5.0], tau_factor: true, t_min_k: %s, t_max_k: %s, source: \"VDI_PPDS\"),"
+                % (num(row["Tc"]), num(row["Pc"]), ", ".join(num(row[k]) for k in "ABCD"), num(row["Tm"]), num(row["Tc"]))
+            )
+        elif cas in vp.Psat_data_Perrys2_8.index:
             row = vp.Psat_data_Perrys2_8.loc[cas]
             c = [float(row[f"C{i}"]) for i in range(1, 6)]
             out.append(

@@ -11,13 +11,28 @@ pub enum VapourPressure {
     /// Lee–Kesler corresponding-states estimate from Tc, Pc and ω
     /// (Lee & Kesler, AIChE J. 21 (1975) 510), for gases with no fitted correlation.
     LeeKesler { source: String },
+    /// Wagner's form: ln(P/p_r) = f Σ n_i θ^t_i with θ = 1 − T/T_r and f = T_r/T (or 1
+    /// where `tau_factor` is false): the ancillary equations of the reference equations
+    /// of state, and the PPDS equation (t = 1, 1.5, 2.5, 5).
+    Wagner {
+        t_r_k: f64,
+        p_r_pa: f64,
+        n: Vec<f64>,
+        t: Vec<f64>,
+        tau_factor: bool,
+        t_min_k: f64,
+        t_max_k: f64,
+        source: String,
+    },
 }
 
 impl VapourPressure {
     /// Source key of the correlation.
     pub fn source(&self) -> &str {
         match self {
-            VapourPressure::Dippr101 { source, .. } | VapourPressure::LeeKesler { source } => source,
+            VapourPressure::Dippr101 { source, .. }
+            | VapourPressure::LeeKesler { source }
+            | VapourPressure::Wagner { source, .. } => source,
         }
     }
 
@@ -27,8 +42,17 @@ impl VapourPressure {
         if !(t_k > 0.0) || t_k > tc_k {
             return None;
         }
-        match *self {
-            VapourPressure::Dippr101 { c1, c2, c3, c4, c5, t_min_k, t_max_k, .. } => {
+        match self {
+            VapourPressure::Wagner { t_r_k, p_r_pa, n, t, tau_factor, t_min_k, t_max_k, .. } => {
+                if t_k < *t_min_k || t_k > *t_max_k {
+                    return None;
+                }
+                let theta = (1.0 - t_k / t_r_k).max(0.0);
+                let sum: f64 = n.iter().zip(t).map(|(ni, ti)| ni * theta.powf(*ti)).sum();
+                let factor = if *tau_factor { t_r_k / t_k } else { 1.0 };
+                Some(p_r_pa * (factor * sum).exp())
+            }
+            &VapourPressure::Dippr101 { c1, c2, c3, c4, c5, t_min_k, t_max_k, .. } => {
                 if t_k < t_min_k || t_k > t_max_k {
                     return None;
                 }

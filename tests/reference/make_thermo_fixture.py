@@ -29,8 +29,8 @@ from chemicals import acentric, critical  # noqa: E402
 def constants(gid):
     row = next(r for r in mc.GASES if r[0] == gid)
     cas = row[1]
-    m = mc.pick(critical.Tc_methods(cas), mc.PREFER_CRITICAL)
-    o = mc.pick(acentric.omega_methods(cas), mc.PREFER_OMEGA)
+    m = mc.critical_method(gid, cas)
+    o = mc.omega_method(gid, cas)
     return critical.Tc(cas, method=m), critical.Pc(cas, method=m), acentric.omega(cas, method=o)
 
 
