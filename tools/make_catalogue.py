@@ -200,8 +200,24 @@ def pick(methods, prefer):
 # its neighbours (N2/n-heptane +0.1441, N2/n-decane +0.1122, both ChemSep): it put the PR
 # cricondentherm of n-octane traces in N2 14-20 K below the multi-fluid reference. The value
 # used is the linear interpolation in carbon number between those two neighbours.
+# The same for the other outliers (values far outside their neighbours' range), each
+# replaced by an interpolation between listed neighbours or by the classical default 0.
+# tests/multifluid.rs compares the PR dew point of the H2/n-butane pair with the
+# multi-fluid reference (CoolProp, GERG-2008 parameters).
 KIJ_REPLACED = {
     ("N2", "n-C8H18"): (0.1335, "interpolated in carbon number between ChemSep N2/n-C7H16 and N2/n-C10H22"),
+    ("H2", "n-C4H10"): (
+        -0.0974,
+        "interpolated in carbon number between ChemSep H2/C3H8 (-0.1311) and H2/n-C6H14 (-0.03); the listed value "
+        "put the dew point of 2 % n-butane in H2 at 30 bar 4.0 K below the multi-fluid reference",
+    ),
+    ("H2", "C7H8"): (0.0, "the classical default 0: no H2/aromatic pair is listed to compare with"),
+    ("He", "CO"): (
+        0.0,
+        "the classical default 0, as for He/N2 (not listed); the listed value puts the dew point of 10 % CO in He "
+        "at 30 bar near 41 K, below CO's triple point (68 K)",
+    ),
+    ("C3H6", "C2H2"): (0.0, "the classical default 0: C2H4/C2H2, the nearest listed pair, has +0.065"),
 }
 
 
@@ -342,6 +358,9 @@ def main():
             if swap:
                 lines.append(f"    // {swap[1]} (ChemSep lists {num(k)}, an outlier)")
                 k = swap[0]
+                if math.isclose(k, 0.0):
+                    lines.append(f"    ({q(cas_to_id[a])}, {q(cas_to_id[b])}, 0.0),")
+                    continue
             if k and not math.isclose(k, 0.0):
                 lines.append(f"    ({q(cas_to_id[a])}, {q(cas_to_id[b])}, {num(k)}),")
     lines.append("]")

@@ -1,10 +1,14 @@
 //! Binary interaction parameters k_ij, one table per model.
 //!
 //! Peng–Robinson: the ChemSep table (Kooijman & Taylor), generated into `kij_pr.ron` by
-//! `tools/make_catalogue.py`, with outliers replaced by a documented choice (N2/n-octane:
-//! ChemSep's −0.4 becomes 0.1335, interpolated between N2/n-heptane and N2/n-decane; the
-//! reason is beside the value in the file). No comparable published set covering these gases was found
-//! for van der Waals, RK or SRK, so they use k_ij = 0, the classical default.
+//! `tools/make_catalogue.py`, with its outliers replaced by a documented choice, the reason
+//! beside each value in the file: N2/n-octane (ChemSep −0.4) and H2/n-butane (−0.397)
+//! interpolated in carbon number between listed neighbours; H2/toluene (−0.51), He/CO
+//! (+0.546) and propylene/acetylene (−0.43) set to the classical default 0.
+//! `tests/multifluid.rs` compares the H2/n-butane dew point with the multi-fluid
+//! reference. N2/methanol (−0.214) is kept: no better published value was found. No
+//! comparable published set covering these gases was found for van der Waals, RK or SRK,
+//! so they use k_ij = 0, the classical default.
 
 use std::collections::HashMap;
 use std::sync::OnceLock;

@@ -11,6 +11,8 @@ apply_simple_mixing_rule), so it checks fillwright's implementation independentl
    below each gas's vapour pressure where it is subcritical).
 2. "mixtures": blends at 100-200 bar and 15 C: (T, P, x) -> molar density, Z and ln phi.
    Each names whether its pairs are published or estimated.
+3. "dew_points": dew temperatures (PQ flash, Q = 1) of pairs whose Peng-Robinson k_ij the
+   catalogue curates, with GERG-2008's published parameters, and a control pair.
 
 Z = 1 + delta * d(alpha_r)/d(delta) does not depend on the gas constant, so the test
 compares Z at CoolProp's density, then the density fillwright solves at (T, P).
@@ -67,6 +69,13 @@ MIXTURES = [
 ]
 
 
+DEW_POINTS = [
+    (["H2", "n-C4H10"], [0.98, 0.02], 30e5),
+    (["CH4", "C3H8"], [0.95, 0.05], 30e5),
+]
+NAMES["n-C4H10"] = "n-Butane"
+
+
 def cas(gid):
     return CP.get_fluid_param_string(NAMES[gid], "CAS")
 
@@ -115,8 +124,15 @@ def main():
             rho, z, ln_phi, r = state(ids, x, p)
             mixtures.append({"ids": ids, "x": x, "t_k": T, "p_pa": p, "rho_mol_m3": rho, "z": z, "gas_constant": r,
                              "ln_phi": ln_phi, "estimated_pairs": estimated})
+    dew_points = []
+    for ids, x, p in DEW_POINTS:
+        a = CP.AbstractState("HEOS", "&".join(NAMES[i] for i in ids))
+        a.set_mole_fractions(x)
+        a.update(CP.PQ_INPUTS, p, 1.0)
+        dew_points.append({"ids": ids, "x": x, "p_pa": p, "t_k": a.T()})
     out = {
         "generator": "tests/reference/make_multifluid_fixture.py",
+        "dew_points": dew_points,
         "coolprop": CP.get_global_param_string("version"),
         "pure": pure,
         "mixtures": mixtures,
