@@ -209,3 +209,31 @@ fn pressure_rating_limits() {
     let hot = he.data["hot_pressure_bar"].as_f64().unwrap();
     assert!(hot > 225.0 && hot < 240.0, "{hot}");
 }
+
+#[test]
+fn the_toxicity_check_gives_exposure_limits_and_says_when_the_blend_exceeds_them() {
+    // H2S: TWA 10 ppm, STEL 15 ppm (Ontario Regulation 833, via chemicals). 50 ppm in N2
+    // is 5 times the TWA; 5 ppm is below both.
+    let list = screen_mix("H2S=50ppm,N2=balance", 150.0);
+    let tox = list.iter().find(|c| c.id == "toxicity").unwrap();
+    assert!(tox.message.contains("above the exposure limit as it is: H2S"), "{}", tox.message);
+    assert!(
+        tox.details.iter().any(|d| d.contains("TWA 10 ppm, STEL 15 ppm") && d.contains("5.0× the lowest")),
+        "{:?}",
+        tox.details
+    );
+    let e = &tox.data["exposure"][0];
+    assert_eq!(
+        (e["id"].as_str(), e["twa_ppm"].as_f64(), e["stel_ppm"].as_f64()),
+        (Some("H2S"), Some(10.0), Some(15.0))
+    );
+    assert!((e["content_ppm"].as_f64().unwrap() - 50.0).abs() < 1e-6);
+    let list = screen_mix("H2S=5ppm,N2=balance", 150.0);
+    let tox = list.iter().find(|c| c.id == "toxicity").unwrap();
+    assert!(!tox.message.contains("exposure limit"), "{}", tox.message);
+    assert!(tox.details.iter().any(|d| d.contains("TWA 10 ppm") && !d.contains("× the lowest")), "{:?}", tox.details);
+    // Nitrogen has no exposure limit: nothing said.
+    let list = screen_mix("Ar=5%,N2=balance", 150.0);
+    let tox = list.iter().find(|c| c.id == "toxicity").unwrap();
+    assert!(tox.data["exposure"].as_array().unwrap().is_empty());
+}

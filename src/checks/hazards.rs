@@ -164,10 +164,43 @@ pub fn toxicity(plan: &Plan, catalogue: &Catalogue) -> Check {
             ));
         }
     }
+    // Exposure limits: the blend as it is, against each component's limits (a leak, a
+    // purge vented into the room).
+    let mut exposure = Vec::new();
+    let mut above = Vec::new();
+    for (id, x, h) in &parts {
+        let limits: Vec<String> = [("TWA", h.twa_ppm), ("STEL", h.stel_ppm), ("ceiling", h.ceiling_ppm)]
+            .iter()
+            .filter_map(|(name, v)| v.map(|v| format!("{name} {v} ppm")))
+            .collect();
+        let Some(lowest) = [h.twa_ppm, h.stel_ppm, h.ceiling_ppm].into_iter().flatten().reduce(f64::min) else {
+            continue;
+        };
+        let ppm = x * 1e6;
+        if ppm > lowest {
+            above.push(id.clone());
+        }
+        details.push(format!(
+            "{id} at {}: exposure limits {} (Ontario Regulation 833; use the local list){}",
+            crate::units::fraction_text(*x),
+            limits.join(", "),
+            if ppm > lowest {
+                format!(
+                    ": the blend is {}× the lowest; vent it outdoors or to an extract",
+                    crate::units::Sig(ppm / lowest, 2)
+                )
+            } else {
+                String::new()
+            }
+        ));
+        exposure.push(json!({"id": id, "content_ppm": ppm, "twa_ppm": h.twa_ppm, "stel_ppm": h.stel_ppm,
+            "ceiling_ppm": h.ceiling_ppm}));
+    }
     let mut data = Map::new();
     data.insert("toxic".into(), json!(toxic));
     data.insert("lc50_ppm".into(), json!(lc50));
     data.insert("corrosive".into(), json!(!corrosive.is_empty()));
+    data.insert("exposure".into(), json!(exposure));
     let corr = if corrosive.is_empty() { String::new() } else { format!("; corrosive: {}", corrosive.join(", ")) };
     let (severity, message) = match lc50 {
         None if corrosive.is_empty() => (Severity::Ok, "no toxic component".to_string()),
@@ -182,6 +215,11 @@ pub fn toxicity(plan: &Plan, catalogue: &Catalogue) -> Check {
         ),
         Some(l) if !corrosive.is_empty() => (Severity::Caution, format!("not toxic (mixture LC50 {l:.0} ppm){corr}")),
         Some(l) => (Severity::Ok, format!("not toxic by inhalation (mixture LC50 {l:.0} ppm)")),
+    };
+    let message = if above.is_empty() {
+        message
+    } else {
+        format!("{message}; above the exposure limit as it is: {}", above.join(", "))
     };
     Check { id: "toxicity", severity, message, details, data }
 }

@@ -23,6 +23,8 @@ const HAZARDS: &str = include_str!("hazards.ron");
 pub struct Hazard {
     /// Lower flammability limit in air, % by volume (flammable when present).
     pub lfl_percent: Option<f64>,
+    /// Upper flammability limit in air, % by volume.
+    pub ufl_percent: Option<f64>,
     /// ISO 10156 T_ci: largest content in N2 not flammable in air, %.
     pub tci_percent: Option<f64>,
     /// ISO 10156 K_k: inerting power relative to N2 (inert when present).
@@ -31,6 +33,10 @@ pub struct Hazard {
     pub oxidising_c: Option<f64>,
     /// LC50, rat, 1 h, ppm (toxic by inhalation when present).
     pub lc50_ppm: Option<f64>,
+    /// Occupational exposure limits, ppm: 8-hour average, 15-minute, ceiling.
+    pub twa_ppm: Option<f64>,
+    pub stel_ppm: Option<f64>,
+    pub ceiling_ppm: Option<f64>,
     /// Corrosive.
     pub corrosive: bool,
 }
