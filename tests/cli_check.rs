@@ -108,6 +108,37 @@ fn csv_is_a_table_for_check_and_gases() {
     let text = String::from_utf8_lossy(&o.stdout).into_owned();
     assert!(text.starts_with("id,name,cas,molar_mass_g_per_mol,"), "{text}");
     assert!(text.lines().any(|l| l.starts_with("CO2,carbon dioxide,124-38-9,44.0")), "{text}");
+    assert!(text.lines().next().unwrap().ends_with(",gerg,reference_model,reference_equation"), "{text}");
+    assert!(text.lines().any(|l| l.starts_with("SF6,") && l.ends_with(",false,multi,Guder-JPCRD-2009")), "{text}");
+}
+
+#[test]
+fn gases_names_the_model_that_carries_each_at_reference_quality() {
+    let o = run(&["gases", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let gas = |id: &str| v["gases"].as_array().unwrap().iter().find(|g| g["id"] == id).unwrap().clone();
+    // GERG-2008's own; a reference equation in the multi-fluid model; an estimate.
+    assert_eq!(gas("N2")["reference"]["model"], "gerg");
+    assert_eq!(gas("N2")["reference"]["quality"], "reference");
+    let sf6 = gas("SF6");
+    assert_eq!(
+        (sf6["reference"]["model"].as_str(), sf6["reference"]["quality"].as_str()),
+        (Some("multi"), Some("reference"))
+    );
+    assert_eq!(sf6["reference"]["equation"]["source"], "Guder-JPCRD-2009");
+    let no = gas("NO");
+    assert_eq!(
+        (no["reference"]["model"].as_str(), no["reference"]["quality"].as_str()),
+        (Some("multi"), Some("estimate"))
+    );
+    assert!(no["reference"]["equation"].is_null());
+    // The text table: its last column, within 80 columns.
+    let text = String::from_utf8_lossy(&run(&["gases"]).stdout).into_owned();
+    for (id, mark) in [("N2 ", "gerg v"), ("SF6 ", "eos v"), ("NO ", "cub v"), ("CF4 ", "eos")] {
+        let line = text.lines().find(|l| l.starts_with(id)).unwrap();
+        assert!(line.ends_with(mark), "{line}");
+    }
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "{text}");
 }
 
 #[test]

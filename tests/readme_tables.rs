@@ -19,6 +19,12 @@ fn accuracy_table_is_current() {
 }
 
 #[test]
+fn hazard_review_table_is_current() {
+    let table = fillwright::checks::hazards::from_memory_table(&Catalogue::built_in());
+    assert!(readme().contains(&table), "run `cargo run --example hazard_review` and paste into README.md");
+}
+
+#[test]
 fn accuracy_rows_judge_by_gerg_where_it_covers() {
     let c = Catalogue::built_in();
     let rows = fillwright::plan::accuracy::demo_rows(&c);

@@ -3,6 +3,7 @@
 
   <!-- generated: density-table -->   cargo run --example density_table
   <!-- generated: accuracy-table -->  cargo run --example accuracy_table
+  <!-- generated: hazard-review -->   cargo run --example hazard_review
   <!-- generated: fill-sheet -->      cargo run -- plan flue-gas-span
   <!-- generated: check-lpg -->       cargo run -- check lpg-in-methane
   <!-- generated: certificate -->     cargo run -- certify tests/records/flue-gas-made.ron
@@ -20,6 +21,7 @@ ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 PARTS = {
     "density-table": (["cargo", "run", "-q", "--example", "density_table"], None),
     "accuracy-table": (["cargo", "run", "-q", "--example", "accuracy_table"], None),
+    "hazard-review": (["cargo", "run", "-q", "--example", "hazard_review"], None),
     "fill-sheet": (["cargo", "run", "-q", "--", "plan", "flue-gas-span"], "plan flue-gas-span"),
     "check-lpg": (["cargo", "run", "-q", "--", "check", "lpg-in-methane"], "check lpg-in-methane"),
     "certificate": (["cargo", "run", "-q", "--", "certify", "tests/records/flue-gas-made.ron"],

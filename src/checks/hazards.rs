@@ -302,3 +302,27 @@ pub fn incompatibility(plan: &Plan, catalogue: &Catalogue) -> Check {
     };
     Check { id: "incompatibility", severity, message, details: findings, data }
 }
+
+/// The hazard values no registry library carries, which the table marks "from memory"
+/// (ISO 10156 T_ci and C_i, ISO 10298 LC50, the corrosive flag of the transport listing),
+/// as a Markdown table for review (`cargo run --example hazard_review`, in the README).
+pub fn from_memory_table(catalogue: &Catalogue) -> String {
+    let mut s = String::from("| gas | T_ci % (ISO 10156) | C_i (ISO 10156) | LC50 ppm (ISO 10298) | corrosive |\n");
+    s.push_str("|---|---:|---:|---:|---|\n");
+    let cell = |v: Option<f64>| v.map_or("–".to_string(), |v| format!("{v}"));
+    for g in catalogue.gases() {
+        let h = g.hazard();
+        if h.tci_percent.is_none() && h.oxidising_c.is_none() && h.lc50_ppm.is_none() && !h.corrosive {
+            continue;
+        }
+        s.push_str(&format!(
+            "| {} | {} | {} | {} | {} |\n",
+            g.id(),
+            cell(h.tci_percent),
+            cell(h.oxidising_c),
+            cell(h.lc50_ppm),
+            if h.corrosive { "yes" } else { "–" }
+        ));
+    }
+    s
+}

@@ -5,8 +5,20 @@ use serde_json::json;
 
 use super::{csv_field, print_json, Failure, Format, Refused};
 use crate::config;
-use crate::thermo::gerg;
+use crate::thermo::{gerg, multifluid};
 use crate::units::bar;
+
+/// Which model carries a gas at reference quality: ("gerg" | "multi", the reference
+/// equation of state in the multi-fluid model if it has one, the short mark of the text
+/// table).
+fn reference_of(id: &str) -> (&'static str, Option<(&'static str, &'static str)>, &'static str) {
+    let equation = multifluid::reference_equation(id);
+    match (gerg::covers(id), equation) {
+        (true, _) => ("gerg", equation, "gerg"),
+        (false, Some(_)) => ("multi", equation, "eos"),
+        (false, None) => ("multi", None, "cub"),
+    }
+}
 
 #[derive(Debug, Args)]
 pub struct GasesArgs {
@@ -32,6 +44,11 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
                         "acentric_factor": r.acentric_factor,
                         "normal_boiling_point_k": r.normal_boiling_point_k,
                         "gerg": gerg::covers(&r.id),
+                        "reference": {
+                            "model": reference_of(&r.id).0,
+                            "equation": reference_of(&r.id).1.map(|(file, source)| json!({"fluid": file, "source": source})),
+                            "quality": if reference_of(&r.id).1.is_some() || gerg::covers(&r.id) { "reference" } else { "estimate" },
+                        },
                         "van_der_waals_a_bar_l2_per_mol2": r.van_der_waals.as_ref().map(|v| v.a_bar_l2_per_mol2),
                         "van_der_waals_b_l_per_mol": r.van_der_waals.as_ref().map(|v| v.b_l_per_mol),
                         "sources": {
@@ -47,11 +64,12 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
             print_json(&json!({ "gases": gases }));
         }
         Format::Csv => {
-            println!("id,name,cas,molar_mass_g_per_mol,critical_temperature_k,critical_pressure_bar,acentric_factor,normal_boiling_point_k,gerg");
+            println!("id,name,cas,molar_mass_g_per_mol,critical_temperature_k,critical_pressure_bar,acentric_factor,normal_boiling_point_k,gerg,reference_model,reference_equation");
             for g in catalogue.gases() {
                 let r = &g.record;
+                let (model, equation, _) = reference_of(&r.id);
                 println!(
-                    "{},{},{},{},{},{},{},{},{}",
+                    "{},{},{},{},{},{},{},{},{},{},{}",
                     csv_field(&r.id),
                     csv_field(&r.name),
                     csv_field(&r.cas),
@@ -60,40 +78,43 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
                     bar(r.critical_pressure_pa),
                     r.acentric_factor,
                     r.normal_boiling_point_k,
-                    gerg::covers(&r.id)
+                    gerg::covers(&r.id),
+                    model,
+                    csv_field(equation.map_or("", |e| e.1))
                 );
             }
         }
         Format::Text => {
             // 80 columns: long names are cut (the JSON and CSV have them whole).
             println!(
-                "{:<9} {:<14} {:<11} {:>7} {:>7} {:>6} {:>6} {:>6} also",
+                "{:<9} {:<12} {:<11} {:>7} {:>7} {:>6} {:>6} {:>6} ref",
                 "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"
             );
             for g in catalogue.gases() {
                 let r = &g.record;
-                let also = format!(
-                    "{}{}",
-                    if r.van_der_waals.is_some() { "v" } else { " " },
-                    if gerg::covers(&r.id) { " g" } else { "" }
-                );
+                let mark = format!("{}{}", reference_of(&r.id).2, if r.van_der_waals.is_some() { " v" } else { "" });
                 println!(
-                    "{:<9} {:<14} {:<11} {:>7.3} {:>7.2} {:>6.2} {:>6.3} {:>6.1} {}",
+                    "{:<9} {:<12} {:<11} {:>7.3} {:>7.2} {:>6.2} {:>6.3} {:>6.1} {}",
                     r.id,
-                    crate::ron_format::clip(&r.name, 14),
+                    crate::ron_format::clip(&r.name, 12),
                     r.cas,
                     g.molar_mass_g_per_mol,
                     r.critical_temperature_k,
                     bar(r.critical_pressure_pa),
                     r.acentric_factor,
                     r.normal_boiling_point_k,
-                    also.trim_end()
+                    mark
                 );
             }
             println!();
-            println!("{} gases. Every one works with the cubic models; also: v a tabulated", catalogue.gases().len());
-            println!("van der Waals a and b, g covered by GERG-2008. The source of every value:");
-            println!("`fillwright gases --format json`.");
+            println!(
+                "{} gases, every one under the cubic and multi-fluid models. ref: the model",
+                catalogue.gases().len()
+            );
+            println!("that carries the gas at reference quality: gerg GERG-2008; eos its reference");
+            println!("equation of state in the multi-fluid model (--model multi); cub Peng-Robinson's");
+            println!("form inside the multi-fluid model, an estimate. v: tabulated van der Waals a");
+            println!("and b. The source of every value: `fillwright gases --format json`.");
         }
     }
     Ok(())
