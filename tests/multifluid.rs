@@ -144,10 +144,17 @@ fn the_fill_sheet_says_where_the_model_estimates() {
 #[test]
 fn curated_peng_robinson_pairs_give_the_multi_fluid_dew_point() {
     // The dew points of the PR screen (which judges phases under every model) against the
-    // multi-fluid reference, for a pair whose k_ij the catalogue replaced and a control
-    // pair. H2/n-C4H10: ChemSep's -0.397 put it at 250.75 K (thermo 0.6.1's PR flash), 4.0 K
-    // low; the interpolated -0.0974 gives 3.1 K low (the rest is PR's own error for
-    // n-butane); CH4/C3H8 (ChemSep 0.014) is within 1 K.
+    // multi-fluid reference, for the pairs whose k_ij the catalogue replaced and a control
+    // pair, each with the largest gap allowed. H2/n-C4H10: ChemSep's -0.397 put it at
+    // 250.75 K (thermo 0.6.1's PR flash), 4.0 K low; the interpolated -0.0974 gives 3.1 K
+    // low (the rest is PR's own error for n-butane). N2/n-C8H18: ChemSep's -0.4 put the
+    // cricondentherm 14-20 K low; the interpolated 0.1335 gives 3.8 K low here.
+    // CH4/C3H8 (ChemSep 0.014) is within 1 K.
+    let allowed = |ids: &[String]| match ids[1].as_str() {
+        "n-C4H10" => 3.5,
+        "n-C8H18" => 4.5,
+        _ => 1.0,
+    };
     use fillwright::checks::phase::PhaseFluid;
     use fillwright::thermo::{Fluid, Model};
     let c = Catalogue::built_in();
@@ -159,11 +166,9 @@ fn curated_peng_robinson_pairs_give_the_multi_fluid_dew_point() {
         let (p, reference) = (d["p_pa"].as_f64().unwrap(), d["t_k"].as_f64().unwrap());
         let fluid = Fluid::new(&c, &gases, Model::Pr).unwrap();
         let dew = PhaseFluid::new(&fluid).dew_temperature(p, &x, 80.0).unwrap().expect("a dew point");
-        assert!((dew - reference).abs() < 3.5, "{ids:?} at {p} Pa: PR {dew} K, multi-fluid {reference} K");
+        assert!((dew - reference).abs() < allowed(&ids), "{ids:?} at {p} Pa: PR {dew} K, multi-fluid {reference} K");
         if ids[0] == "H2" {
             assert!(dew > 250.75 + 0.5, "no better than the listed k_ij: {dew} K");
-        } else {
-            assert!((dew - reference).abs() < 1.0, "{ids:?}: PR {dew} K, multi-fluid {reference} K");
         }
     }
 }

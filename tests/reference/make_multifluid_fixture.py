@@ -71,9 +71,11 @@ MIXTURES = [
 
 DEW_POINTS = [
     (["H2", "n-C4H10"], [0.98, 0.02], 30e5),
+    (["N2", "n-C8H18"], [0.999, 0.001], 30e5),
     (["CH4", "C3H8"], [0.95, 0.05], 30e5),
 ]
 NAMES["n-C4H10"] = "n-Butane"
+NAMES["n-C8H18"] = "n-Octane"
 
 
 def cas(gid):
