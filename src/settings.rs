@@ -17,7 +17,7 @@ pub struct Settings {
     /// Unit of temperatures in the text outputs and on the screen: C, K or F.
     pub temperature_unit: crate::units::TemperatureUnit,
     /// Model used when neither the command nor the recipe names one. None: gerg where
-    /// GERG-2008 covers every gas, else pr.
+    /// GERG-2008 covers every gas, else multi.
     pub default_model: Option<Model>,
     /// Ambient pressure for gauge readings.
     pub ambient: String,

@@ -108,8 +108,8 @@ pub enum Format {
 /// Options shared by every computing command.
 #[derive(Debug, Clone, Args)]
 pub struct Common {
-    /// Equation of state: ideal, vdw, rk, srk, pr or gerg. Default: gerg where GERG-2008
-    /// covers every gas of the mixture, else pr.
+    /// Equation of state: ideal, vdw, rk, srk, pr, gerg or multi. Default: gerg where GERG-2008
+    /// covers every gas of the mixture, else multi (the multi-fluid model).
     #[arg(long, value_enum)]
     pub model: Option<Model>,
     /// Output format: text, json, or csv where a table is the natural output.
@@ -134,7 +134,7 @@ impl Common {
 }
 
 /// The model to use: the one asked for, else the settings' default model, else gerg where
-/// it covers the gases, else pr. Asking for gerg on gases it does not cover is refused by
+/// it covers the gases, else multi. Asking for gerg on gases it does not cover is refused by
 /// the fluid.
 pub fn choose_model(
     asked: Option<Model>,

@@ -176,7 +176,7 @@ pub struct Recipe {
     /// The cylinder before the fill; default: evacuated, nothing left in it.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub before_fill: Option<BeforeFill>,
-    /// Model; default: gerg where it covers the gases, else pr.
+    /// Model; default: gerg where it covers the gases, else multi.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub model: Option<Model>,
     /// Source cylinders; default: one pure source for each component.
