@@ -282,35 +282,25 @@ impl Fluid {
     fn saturation_of(&self, t_k: f64, x: &[f64]) -> Result<Option<Saturation>, ThermoError> {
         let screen = self.phase_screen();
         let cubic_sat = screen.cubic_saturation(t_k, x)?;
-        match self.model {
-            Model::Gerg => {
-                let Some(start) = cubic_sat else { return Ok(None) };
-                match self.gerg.as_ref().and_then(|g| g.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3))
-                {
-                    Some((p, rho_l, rho_v)) => Ok(Some(Saturation {
-                        pressure_pa: p,
-                        v_liquid_m3: 1.0 / rho_l,
-                        v_vapour_m3: 1.0 / rho_v,
-                        model: Model::Gerg,
-                    })),
-                    // Close to the critical point GERG's two roots can merge in the search;
-                    // the cubic's saturation is used and says so through `model`.
-                    None => Ok(Some(start)),
-                }
-            }
-            Model::Multi => {
-                let Some(start) = cubic_sat else { return Ok(None) };
-                match self.multi.as_ref().and_then(|m| m.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3))
-                {
-                    Some((p, rho_l, rho_v)) => Ok(Some(Saturation {
-                        pressure_pa: p,
-                        v_liquid_m3: 1.0 / rho_l,
-                        v_vapour_m3: 1.0 / rho_v,
-                        model: Model::Multi,
-                    })),
-                    None => Ok(Some(start)),
-                }
-            }
+        // GERG-2008 and the multi-fluid model: their own equation's saturation, started from
+        // the cubic's.
+        let own = |start: &Saturation| match self.model {
+            Model::Gerg => self.gerg.as_ref()?.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3),
+            Model::Multi => self.multi.as_ref()?.saturation(x, t_k, start.pressure_pa, 1.0 / start.v_liquid_m3),
+            _ => None,
+        };
+        match (self.model, cubic_sat) {
+            (Model::Gerg | Model::Multi, Some(start)) => match own(&start) {
+                Some((p, rho_l, rho_v)) => Ok(Some(Saturation {
+                    pressure_pa: p,
+                    v_liquid_m3: 1.0 / rho_l,
+                    v_vapour_m3: 1.0 / rho_v,
+                    model: self.model,
+                })),
+                // Close to the critical point the two roots can merge in the search; the
+                // cubic's saturation is used and says so through `model`.
+                None => Ok(Some(start)),
+            },
             _ => Ok(cubic_sat),
         }
     }

@@ -87,10 +87,15 @@ def main():
         "versions": {"CoolProp": CoolProp.__version__, "chemicals": chemicals.__version__, "thermo": thermo.__version__},
         "gases": gases,
     }
-    path = os.path.join(ROOT, "tests", "fixtures", "catalogue_reference.json")
+    write_fixture("catalogue_reference.json", out)
+
+
+def write_fixture(name, out):
+    """Write `out` as tests/fixtures/NAME and say so."""
+    path = os.path.join(ROOT, "tests", "fixtures", name)
     with open(path, "w") as f:
         json.dump(out, f, indent=1)
-    print("%d gases -> %s" % (len(gases), path))
+    print("%d gases -> %s" % (len(out["gases"]), path))
 
 
 if __name__ == "__main__":

@@ -10,17 +10,17 @@ every catalogue gas, for tests/hazard_reference.rs and src/gas/hazards.ron.
 
 Run:  pip install chemicals==1.5.2 && python3 tests/reference/make_hazard_reference.py
 """
-import json
 import os
-import re
+import sys
 import warnings
 
 import chemicals
 import chemicals.safety as safety
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from make_catalogue_reference import catalogue, write_fixture  # noqa: E402
+
 warnings.filterwarnings("ignore")
-HERE = os.path.dirname(os.path.abspath(__file__))
-ROOT = os.path.dirname(os.path.dirname(HERE))
 IEC, NFPA = "IEC 60079-20-1 (2010)", "NFPA 497 (2008)"
 
 
@@ -40,9 +40,8 @@ def exposure(fn, methods_fn, cas):
 
 
 def main():
-    text = open(os.path.join(ROOT, "src", "gas", "catalogue.ron")).read()
     gases = []
-    for gid, cas in re.findall(r'id: "([^"]*)".*?cas: "([^"]*)"', text, re.S):
+    for gid, cas in catalogue():
         lfl_m, ufl_m = safety.LFL_methods(CASRN=cas), safety.UFL_methods(CASRN=cas)
         gases.append({
             "id": gid,
@@ -57,10 +56,7 @@ def main():
             "ceiling_ppm": exposure(safety.Ceiling, safety.Ceiling_methods, cas),
         })
     out = {"generator": "tests/reference/make_hazard_reference.py", "chemicals": chemicals.__version__, "gases": gases}
-    path = os.path.join(ROOT, "tests", "fixtures", "hazard_reference.json")
-    with open(path, "w") as f:
-        json.dump(out, f, indent=1)
-    print("%d gases -> %s" % (len(gases), path))
+    write_fixture("hazard_reference.json", out)
 
 
 if __name__ == "__main__":
