@@ -114,7 +114,7 @@ pub enum ThermoError {
     BelowCovolume { model: Model, v_l_per_mol: f64, b_l_per_mol: f64 },
     #[error("the {model} model gives no gas state here ({why})")]
     NoState { model: Model, why: String },
-    #[error("GERG-2008 does not cover {}; choose another model (pr, srk, rk, vdw, ideal)", .0.join(", "))]
+    #[error("GERG-2008 does not cover {}; choose another model (multi, pr, srk, rk, vdw, ideal)", .0.join(", "))]
     NotCovered(Vec<String>),
     #[error("fugacity coefficients are not available from the {0} model here")]
     NoFugacity(Model),
@@ -264,9 +264,9 @@ impl Fluid {
             }
             (Model::Multi, _) => {
                 let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                let rho = m.density(t_k, p_pa, x, None).ok_or_else(|| ThermoError::NoState {
+                let rho = m.stable_density(t_k, p_pa, x).ok_or_else(|| ThermoError::NoState {
                     model: self.model,
-                    why: "the multi-fluid density iteration found no gas root; the state may be two-phase".into(),
+                    why: "the multi-fluid density iteration found no root".into(),
                 })?;
                 (p_pa / (rho * rt), false, false)
             }

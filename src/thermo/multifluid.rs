@@ -79,6 +79,7 @@ struct PairData {
     gamma_v: f64,
     f: f64,
     departure: Option<String>,
+    #[allow(dead_code)] // the citation, for the reader of the data file (checked by the tests)
     source: String,
 }
 
@@ -113,11 +114,6 @@ pub fn reference_equation(id: &str) -> Option<(&'static str, &'static str)> {
     fluid_index().get(id).map(|f| (f.file.as_str(), f.source.as_str()))
 }
 
-/// The published binary parameters of a pair of gas ids (its citation key), if any.
-pub fn published_pair(a: &str, b: &str) -> Option<&'static str> {
-    data().pairs.iter().find(|p| (p.a == a && p.b == b) || (p.a == b && p.b == a)).map(|p| p.source.as_str())
-}
-
 /// Peng–Robinson's critical compressibility factor.
 const PR_ZC: f64 = 0.307_401_308_698_7;
 
@@ -148,7 +144,6 @@ struct Pair {
 /// The model bound to a list of gases.
 #[derive(Debug, Clone)]
 pub struct Mixture {
-    ids: Vec<String>,
     pure: Vec<Pure>,
     t_c: Vec<f64>,
     rho_c: Vec<f64>,
@@ -250,17 +245,13 @@ impl Mixture {
         }
         static SERIAL: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
         let serial = SERIAL.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-        Mixture { ids, pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, serial }
+        Mixture { pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, serial }
     }
 
     /// The gases on the cubic form and the pairs on the linear rule (estimates, not
     /// published parameters).
     pub fn estimated(&self) -> (&[String], &[(String, String)]) {
         (&self.estimated_gases, &self.estimated_pairs)
-    }
-
-    pub fn ids(&self) -> &[String] {
-        &self.ids
     }
 
     /// (T_r, ρ_r) of composition `x`.
@@ -389,6 +380,31 @@ impl Mixture {
             rho = next;
         }
         None
+    }
+
+    /// Molar density, mol/m³, at (T, P) on the stable branch: Newton's method from the
+    /// ideal gas and, below some component's critical temperature, from liquid-like
+    /// densities (3, 2.5 and 2 times the reducing density);
+    /// where both a gas and a liquid root exist, the one of lower Gibbs energy
+    /// (g^r/RT = α^r + Z − 1 − ln Z). None where no start converges.
+    pub fn stable_density(&self, t_k: f64, p_pa: f64, x: &[f64]) -> Option<f64> {
+        let composed = self.at_composition(x, t_k);
+        let gas = self.density(t_k, p_pa, x, None);
+        // Above every component's critical temperature no liquid branch is looked for.
+        let all_supercritical = x.iter().zip(&self.t_c).all(|(xi, tc)| *xi == 0.0 || t_k > *tc);
+        if gas.is_some() && all_supercritical {
+            return gas;
+        }
+        let liquid = [3.0, 2.5, 2.0].iter().find_map(|f| self.density(t_k, p_pa, x, Some(f * composed.rho_r)));
+        let gibbs = |rho: f64| {
+            let z = p_pa / (rho * R * t_k);
+            composed.alphar(rho) + z - 1.0 - z.ln()
+        };
+        match (gas, liquid) {
+            (Some(g), Some(l)) if (g / l - 1.0).abs() > 1e-9 => Some(if gibbs(l) < gibbs(g) { l } else { g }),
+            (Some(g), _) => Some(g),
+            (None, l) => l,
+        }
     }
 
     /// ln φ_i at (T, ρ in mol/m³, x): ∂(nα^r)/∂n_i at constant T and V, less ln Z.
@@ -524,6 +540,30 @@ struct Composed {
 }
 
 impl Composed {
+    /// α^r at ρ.
+    fn alphar(&self, rho: f64) -> f64 {
+        let delta = rho / self.rho_r;
+        let mut a = 0.0;
+        for f in &self.flat {
+            let base = f.c * delta.powf(f.d);
+            a += match f.part {
+                DeltaPart::Plain => base,
+                DeltaPart::ExpPower { g, l, .. } => base * (-g * delta.powf(l)).exp(),
+                DeltaPart::Bell { eta, eps, beta, gamma } => {
+                    base * (-eta * (delta - eps) * (delta - eps) - beta * (delta - gamma)).exp()
+                }
+            };
+        }
+        let (dd, tau) = (D2::c(delta), D2::c(self.tau));
+        for (w, o) in &self.other {
+            a += w * match o {
+                Other::NonAnalytic(term) => sum_terms(std::slice::from_ref(term), dd, tau, dd.ln(), tau.ln()).v,
+                Other::Cubic(kappa) => pr_alphar(*kappa, dd, tau).v,
+            };
+        }
+        a
+    }
+
     /// (P in Pa, ∂P/∂ρ in Pa m³/mol) at ρ: P = ρRT(1 + δα^r_δ),
     /// ∂P/∂ρ = RT(1 + 2δα^r_δ + δ²α^r_δδ). Each flat term f = c δ^d h(δ) with
     /// g = ln f: δf_δ = f δg′ and δ²f_δδ = f((δg′)² − d + δ²h″).

@@ -13,7 +13,7 @@ pub type SurveyGas = (&'static str, &'static [(&'static str, f64)], &'static [f6
 const FULL_RANGE: &[f64] = &[1.0, 10.0, 50.0, 100.0, 150.0, 200.0];
 /// CO2 at 15 °C condenses at 50.9 bar (Span & Wagner 1996), so it is surveyed below that.
 const CO2_RANGE: &[f64] = &[1.0, 10.0, 20.0, 30.0, 40.0];
-/// Xenon at 15 °C condenses at 57 bar (Lemmon & Span 2006), SF6 at 21 bar (Guder &
+/// Xenon at 15 °C condenses at 56.6 bar (Lemmon & Span 2006), SF6 at 18.6 bar (Guder &
 /// Wagner 2009): surveyed below that.
 const XE_RANGE: &[f64] = &[1.0, 10.0, 20.0, 30.0, 40.0];
 const SF6_RANGE: &[f64] = &[1.0, 5.0, 10.0, 15.0];
