@@ -109,6 +109,12 @@ fn fluid_index() -> &'static HashMap<&'static str, &'static FluidData> {
     I.get_or_init(|| data().fluids.iter().map(|f| (f.id.as_str(), f)).collect())
 }
 
+/// The published pairs keyed by their ids in the file's order.
+fn pair_index() -> &'static HashMap<(&'static str, &'static str), &'static PairData> {
+    static I: OnceLock<HashMap<(&'static str, &'static str), &'static PairData>> = OnceLock::new();
+    I.get_or_init(|| data().pairs.iter().map(|p| ((p.a.as_str(), p.b.as_str()), p)).collect())
+}
+
 /// The citation of the reference equation of state of a gas id, if the model has one.
 pub fn reference_equation(id: &str) -> Option<(&'static str, &'static str)> {
     fluid_index().get(id).map(|f| (f.file.as_str(), f.source.as_str()))
@@ -203,15 +209,10 @@ impl Mixture {
             for j in 0..n {
                 let t_ij = (t_c[i] * t_c[j]).sqrt();
                 let v_ij = (rho_c[i].powf(-1.0 / 3.0) + rho_c[j].powf(-1.0 / 3.0)).powi(3) / 8.0;
-                let found = data().pairs.iter().find_map(|p| {
-                    if p.a == ids[i] && p.b == ids[j] {
-                        Some((p, false))
-                    } else if p.a == ids[j] && p.b == ids[i] {
-                        Some((p, true))
-                    } else {
-                        None
-                    }
-                });
+                let found = pair_index()
+                    .get(&(ids[i].as_str(), ids[j].as_str()))
+                    .map(|p| (*p, false))
+                    .or_else(|| pair_index().get(&(ids[j].as_str(), ids[i].as_str())).map(|p| (*p, true)));
                 let pair = match found {
                     // The parameters are written for the file's order: swapped, β → 1/β.
                     Some((p, swapped)) => Pair {
