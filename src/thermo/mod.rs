@@ -262,26 +262,28 @@ impl Fluid {
                 })?;
                 (s.z, s.root != Root::Single, s.root == Root::LiquidOfThree)
             }
-            (Model::Multi, _) => {
-                let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                let rho = m.stable_density(t_k, p_pa, x).ok_or_else(|| ThermoError::NoState {
-                    model: self.model,
-                    why: "the multi-fluid density iteration found no root".into(),
-                })?;
-                (p_pa / (rho * rt), false, false)
-            }
-            (_, None) => {
-                let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                let rho = g.density(x, t_k, p_pa).ok_or_else(|| ThermoError::NoState {
-                    model: self.model,
-                    why: "the GERG-2008 density iteration found no root; the state may be two-phase".into(),
-                })?;
-                // Z with our R: GERG-2008 carries its own R (8.314472), and mixing the two
-                // would shift every amount by 1.1e-6.
-                (p_pa / (rho * rt), false, false)
-            }
+            // Z with our R: GERG-2008 carries its own R (8.314472), and mixing the two would
+            // shift every amount by 1.1e-6.
+            (_, None) => (p_pa / (self.helmholtz_density(t_k, p_pa, x, None)? * rt), false, false),
         };
         Ok(TpState { z, molar_volume_m3: z * rt / p_pa, near_condensation: near, liquid_like: liquid })
+    }
+
+    /// Molar density, mol/m³, at (T, P) under GERG-2008 or the multi-fluid model: from
+    /// `rho0` on the branch Newton's method reaches, else by the model's own search (the
+    /// stable root under the multi-fluid model).
+    fn helmholtz_density(&self, t_k: f64, p_pa: f64, x: &[f64], rho0: Option<f64>) -> Result<f64, ThermoError> {
+        let rho = match (&self.multi, &self.gerg, rho0) {
+            (Some(m), _, Some(_)) => m.density(t_k, p_pa, x, rho0),
+            (Some(m), _, None) => m.stable_density(t_k, p_pa, x),
+            (None, Some(g), Some(start)) => g.density_from(x, t_k, p_pa, start),
+            (None, Some(g), None) => g.density(x, t_k, p_pa),
+            (None, None, _) => return Err(ThermoError::NotCovered(self.ids.clone())),
+        };
+        rho.ok_or_else(|| ThermoError::NoState {
+            model: self.model,
+            why: format!("the {} density iteration found no root; the state may be two-phase", self.model.title()),
+        })
     }
 
     /// Pressure, Pa, at (T, molar volume v in m³/mol, x).
@@ -304,17 +306,12 @@ impl Fluid {
                 }
                 cubic::pressure(kind, &m, t_k, v_m3_per_mol)
             }
-            (Model::Multi, _) => {
-                let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                m.pressure(t_k, 1.0 / v_m3_per_mol, x).0
-            }
-            (_, None) => {
-                let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                g.pressure(x, t_k, 1.0 / v_m3_per_mol).ok_or_else(|| ThermoError::NoState {
-                    model: self.model,
-                    why: "GERG-2008 pressure is not finite".into(),
-                })?
-            }
+            (_, None) => match (&self.multi, &self.gerg) {
+                (Some(m), _) => m.pressure(t_k, 1.0 / v_m3_per_mol, x).0,
+                // Not finite: refused below.
+                (None, Some(g)) => g.pressure(x, t_k, 1.0 / v_m3_per_mol).unwrap_or(f64::NAN),
+                (None, None) => return Err(ThermoError::NotCovered(self.ids.clone())),
+            },
         };
         if !(p.is_finite() && p > 0.0) {
             return Err(ThermoError::NoState {
@@ -365,13 +362,10 @@ impl Fluid {
         pressures_pa
             .iter()
             .map(|&p| {
-                let start =
-                    (!known.is_empty() && composition_ok && Self::check_p(p).is_ok()).then(|| extrapolate(&known, p));
-                let warm = match (start, &self.gerg, &self.multi) {
-                    (Some(rho0), Some(g), _) => g.density_from(x, t_k, p, rho0),
-                    (Some(rho0), _, Some(m)) => m.density(t_k, p, x, Some(rho0)),
-                    _ => None,
-                };
+                let helmholtz = self.gerg.is_some() || self.multi.is_some();
+                let warm = (helmholtz && !known.is_empty() && composition_ok && Self::check_p(p).is_ok())
+                    .then(|| self.helmholtz_density(t_k, p, x, Some(extrapolate(&known, p))).ok())
+                    .flatten();
                 let rho = match warm {
                     Some(rho) => Some(rho),
                     None => self.state_tp(t_k, p, x).ok().map(|s| 1.0 / s.molar_volume_m3),

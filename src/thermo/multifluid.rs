@@ -312,8 +312,6 @@ impl Mixture {
         self.at_composition(x, t_k).pressure(rho)
     }
 
-    /// The composition's reducing state and every term's temperature factor at T, for
-    /// several densities in a row.
     /// The prepared state of (x, T), from the ones kept on this thread where it is there
     /// (an isotherm, a density search and its neighbours share one).
     fn at_composition(&self, x: &[f64], t_k: f64) -> std::rc::Rc<Composed> {
@@ -335,6 +333,8 @@ impl Mixture {
         })
     }
 
+    /// The composition's reducing state and every term's temperature factor at T, for
+    /// several densities in a row.
     fn compose(&self, x: &[f64], t_k: f64) -> Composed {
         let xd: Vec<D2> = x.iter().map(|&v| D2::c(v)).collect();
         let (tr, rr) = self.reducing(&xd);
@@ -365,44 +365,26 @@ impl Mixture {
     /// Molar density, mol/m³, at (T, P) by Newton's method from `rho0` (the ideal gas
     /// when None): the branch Newton's method reaches. None where it leaves it.
     pub fn density(&self, t_k: f64, p_pa: f64, x: &[f64], rho0: Option<f64>) -> Option<f64> {
-        let composed = self.at_composition(x, t_k);
-        let mut rho = rho0.unwrap_or(p_pa / (R * t_k));
-        for _ in 0..100 {
-            let (p, dp) = composed.pressure(rho);
-            if !(dp > 0.0 && p.is_finite()) {
-                return None;
-            }
-            let next = (rho - (p - p_pa) / dp).clamp(0.5 * rho, 2.0 * rho);
-            // Newton's error after a step δ is of order δ²: a step below 1e-9 of the
-            // density leaves it within rounding.
-            if (next - rho).abs() <= 1e-9 * rho {
-                return Some(next);
-            }
-            rho = next;
-        }
-        None
+        self.at_composition(x, t_k).density(p_pa, rho0.unwrap_or(p_pa / (R * t_k)))
     }
 
     /// Molar density, mol/m³, at (T, P) on the stable branch: Newton's method from the
     /// ideal gas and, below some component's critical temperature, from liquid-like
-    /// densities (3, 2.5 and 2 times the reducing density);
-    /// where both a gas and a liquid root exist, the one of lower Gibbs energy
-    /// (g^r/RT = α^r + Z − 1 − ln Z). None where no start converges.
+    /// densities (3, 2.5 and 2 times the reducing density); where both a gas and a liquid
+    /// root exist, the one of lower Gibbs energy. None where no start converges.
     pub fn stable_density(&self, t_k: f64, p_pa: f64, x: &[f64]) -> Option<f64> {
         let composed = self.at_composition(x, t_k);
-        let gas = self.density(t_k, p_pa, x, None);
+        let gas = composed.density(p_pa, p_pa / (R * t_k));
         // Above every component's critical temperature no liquid branch is looked for.
         let all_supercritical = x.iter().zip(&self.t_c).all(|(xi, tc)| *xi == 0.0 || t_k > *tc);
         if gas.is_some() && all_supercritical {
             return gas;
         }
-        let liquid = [3.0, 2.5, 2.0].iter().find_map(|f| self.density(t_k, p_pa, x, Some(f * composed.rho_r)));
-        let gibbs = |rho: f64| {
-            let z = p_pa / (rho * R * t_k);
-            composed.alphar(rho) + z - 1.0 - z.ln()
-        };
+        let liquid = [3.0, 2.5, 2.0].iter().find_map(|f| composed.density(p_pa, f * composed.rho_r));
         match (gas, liquid) {
-            (Some(g), Some(l)) if (g / l - 1.0).abs() > 1e-9 => Some(if gibbs(l) < gibbs(g) { l } else { g }),
+            (Some(g), Some(l)) if (g / l - 1.0).abs() > 1e-9 => {
+                Some(if composed.residual_gibbs(l, p_pa) < composed.residual_gibbs(g, p_pa) { l } else { g })
+            }
             (Some(g), _) => Some(g),
             (None, l) => l,
         }
@@ -433,22 +415,17 @@ impl Mixture {
     /// liquid and vapour fugacities are equal, by Newton's method on P started from `p0`
     /// and a liquid density `rho_l0`. Returns (P in Pa, ρ_liquid, ρ_vapour in mol/m³).
     pub fn saturation(&self, x: &[f64], t_k: f64, p0: f64, rho_l0: f64) -> Option<(f64, f64, f64)> {
+        let composed = self.at_composition(x, t_k);
         let mut p = p0;
         let mut rho_l = 1.3 * rho_l0;
-        let ln_phi_pure = |rho: f64, p: f64| -> f64 {
-            let xd: Vec<D2> = x.iter().map(|&v| D2::c(v)).collect();
-            let (tr, rr) = self.reducing(&xd);
-            let a = self.alphar(D2::c(rho / rr.v), D2::c(tr.v / t_k), &xd).v;
-            let z = p / (rho * R * t_k);
-            a + z - 1.0 - z.ln()
-        };
         for _ in 0..100 {
-            let rho_v = self.density(t_k, p, x, Some(0.5 * p / (R * t_k)))?;
-            rho_l = self.density(t_k, p, x, Some(1.3 * rho_l)).or_else(|| self.density(t_k, p, x, Some(rho_l)))?;
+            let rho_v = composed.density(p, 0.5 * p / (R * t_k))?;
+            rho_l = composed.density(p, 1.3 * rho_l).or_else(|| composed.density(p, rho_l))?;
             if (rho_l - rho_v).abs() <= 1e-6 * rho_l {
                 return None;
             }
-            let dg = R * t_k * (ln_phi_pure(rho_v, p) - ln_phi_pure(rho_l, p));
+            // g_V − g_L from the residual parts (the ideal parts are equal at one T and P).
+            let dg = R * t_k * (composed.residual_gibbs(rho_v, p) - composed.residual_gibbs(rho_l, p));
             let next = (p - dg / (1.0 / rho_v - 1.0 / rho_l)).clamp(0.8 * p, 1.25 * p);
             if (next - p).abs() <= 1e-12 * p {
                 return Some((next, rho_l, rho_v));
@@ -541,34 +518,42 @@ struct Composed {
 }
 
 impl Composed {
-    /// α^r at ρ.
-    fn alphar(&self, rho: f64) -> f64 {
-        let delta = rho / self.rho_r;
-        let mut a = 0.0;
-        for f in &self.flat {
-            let base = f.c * delta.powf(f.d);
-            a += match f.part {
-                DeltaPart::Plain => base,
-                DeltaPart::ExpPower { g, l, .. } => base * (-g * delta.powf(l)).exp(),
-                DeltaPart::Bell { eta, eps, beta, gamma } => {
-                    base * (-eta * (delta - eps) * (delta - eps) - beta * (delta - gamma)).exp()
-                }
-            };
-        }
-        let (dd, tau) = (D2::c(delta), D2::c(self.tau));
-        for (w, o) in &self.other {
-            a += w * match o {
-                Other::NonAnalytic(term) => sum_terms(std::slice::from_ref(term), dd, tau, dd.ln(), tau.ln()).v,
-                Other::Cubic(kappa) => pr_alphar(*kappa, dd, tau).v,
-            };
-        }
-        a
+    /// (P in Pa, ∂P/∂ρ in Pa m³/mol) at ρ: P = ρRT(1 + δα^r_δ),
+    /// ∂P/∂ρ = RT(1 + 2δα^r_δ + δ²α^r_δδ).
+    fn pressure(&self, rho: f64) -> (f64, f64) {
+        let (_, a1, a2) = self.evaluate(rho);
+        let rt = R * self.t_k;
+        (rho * rt * (1.0 + a1), rt * (1.0 + 2.0 * a1 + a2))
     }
 
-    /// (P in Pa, ∂P/∂ρ in Pa m³/mol) at ρ: P = ρRT(1 + δα^r_δ),
-    /// ∂P/∂ρ = RT(1 + 2δα^r_δ + δ²α^r_δδ). Each flat term f = c δ^d h(δ) with
-    /// g = ln f: δf_δ = f δg′ and δ²f_δδ = f((δg′)² − d + δ²h″).
-    fn pressure(&self, rho: f64) -> (f64, f64) {
+    /// The residual Gibbs energy g^r/RT = α^r + Z − 1 − ln Z at (ρ, P).
+    fn residual_gibbs(&self, rho: f64, p_pa: f64) -> f64 {
+        let z = p_pa / (rho * R * self.t_k);
+        self.evaluate(rho).0 + z - 1.0 - z.ln()
+    }
+
+    /// Density by Newton's method on P(ρ) from `rho`: the branch Newton's method reaches.
+    /// None where it leaves it (∂P/∂ρ ≤ 0) or does not settle.
+    fn density(&self, p_pa: f64, mut rho: f64) -> Option<f64> {
+        for _ in 0..100 {
+            let (p, dp) = self.pressure(rho);
+            if !(dp > 0.0 && p.is_finite()) {
+                return None;
+            }
+            let next = (rho - (p - p_pa) / dp).clamp(0.5 * rho, 2.0 * rho);
+            // Newton's error after a step δ is of order δ²: a step below 1e-9 of the
+            // density leaves it within rounding.
+            if (next - rho).abs() <= 1e-9 * rho {
+                return Some(next);
+            }
+            rho = next;
+        }
+        None
+    }
+
+    /// (α^r, δα^r_δ, δ²α^r_δδ) at ρ. Each flat term f = c δ^d h(δ) with g = ln f:
+    /// δf_δ = f δg′ and δ²f_δδ = f((δg′)² − d + δ²h″).
+    fn evaluate(&self, rho: f64) -> (f64, f64, f64) {
         let delta = rho / self.rho_r;
         // Whole powers of δ and exp(−δ^l) for whole l, once for all terms.
         let mut powers = [1.0; TABLE];
@@ -576,7 +561,7 @@ impl Composed {
             powers[k] = powers[k - 1] * delta;
         }
         let mut decays = [f64::NAN; TABLE];
-        let (mut a1, mut a2) = (0.0, 0.0); // δα_δ, δ²α_δδ
+        let (mut a, mut a1, mut a2) = (0.0, 0.0, 0.0); // α, δα_δ, δ²α_δδ
         for f in &self.flat {
             let base = f.c * table_power(&powers, delta, f.d, f.di);
             let (value, dg, d2h) = match f.part {
@@ -599,6 +584,7 @@ impl Composed {
                     (base * h.exp(), f.d - 2.0 * eta * delta * e - beta * delta, -2.0 * eta * delta * delta)
                 }
             };
+            a += value;
             a1 += value * dg;
             a2 += value * (dg * dg - f.d + d2h);
         }
@@ -607,16 +593,16 @@ impl Composed {
             let tau = D2::c(self.tau);
             let (ln_d, ln_t) = (dd.ln(), tau.ln());
             for (w, o) in &self.other {
-                let a = match o {
+                let term = match o {
                     Other::NonAnalytic(term) => sum_terms(std::slice::from_ref(term), dd, tau, ln_d, ln_t),
                     Other::Cubic(kappa) => pr_alphar(*kappa, dd, tau),
                 };
-                a1 += w * delta * a.d;
-                a2 += w * delta * delta * a.dd;
+                a += w * term.v;
+                a1 += w * delta * term.d;
+                a2 += w * delta * delta * term.dd;
             }
         }
-        let rt = R * self.t_k;
-        (rho * rt * (1.0 + a1), rt * (1.0 + 2.0 * a1 + a2))
+        (a, a1, a2)
     }
 }
 

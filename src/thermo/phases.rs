@@ -597,31 +597,12 @@ impl Fluid {
         sat: Option<&Saturation>,
     ) -> Result<f64, ThermoError> {
         match self.model {
-            Model::Gerg => {
-                let g = self.gerg.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
+            Model::Gerg | Model::Multi => {
                 let start = match sat {
                     Some(s) if liquid => Some(1.0 / s.v_liquid_m3),
                     _ => None,
                 };
-                let rho = match start {
-                    Some(rho0) => g.density_from(x, t_k, p_pa, rho0),
-                    None => g.density(x, t_k, p_pa),
-                };
-                rho.map(|r| 1.0 / r).ok_or_else(|| ThermoError::NoState {
-                    model: self.model,
-                    why: "the GERG-2008 density iteration found no root".into(),
-                })
-            }
-            Model::Multi => {
-                let m = self.multi.as_ref().ok_or(ThermoError::NotCovered(self.ids.clone()))?;
-                let start = match sat {
-                    Some(s) if liquid => Some(1.0 / s.v_liquid_m3),
-                    _ => None,
-                };
-                m.density(t_k, p_pa, x, start).map(|r| 1.0 / r).ok_or_else(|| ThermoError::NoState {
-                    model: self.model,
-                    why: "the multi-fluid density iteration found no root".into(),
-                })
+                Ok(1.0 / self.helmholtz_density(t_k, p_pa, x, start)?)
             }
             Model::Ideal => Ok(R * t_k / p_pa),
             _ => Ok(self.ln_phi_on(t_k, p_pa, x, liquid)?.1),
