@@ -369,9 +369,14 @@ pub fn reference_model(gases: &[usize], catalogue: &Catalogue) -> Model {
 /// reference equation at 1 % or more (its share is Peng–Robinson's), and pairs without
 /// published parameters when the two usual estimates (linear, Lorentz–Berthelot) give
 /// amounts more than 0.05 % apart (their difference is the model's uncertainty there).
-fn multi_estimates(order: &Order, setup: &Setup, catalogue: &Catalogue, total_mol: f64) -> Vec<String> {
+fn multi_estimates(
+    mixture: &crate::thermo::multifluid::Mixture,
+    order: &Order,
+    setup: &Setup,
+    catalogue: &Catalogue,
+    total_mol: f64,
+) -> Vec<String> {
     use crate::thermo::multifluid::{Estimate, Mixture};
-    let mixture = Mixture::new(catalogue, &setup.gases);
     let (gases, pairs) = mixture.estimated();
     let fraction =
         |id: &str| setup.gases.iter().position(|&g| catalogue.gas(g).id() == id).map_or(0.0, |i| setup.x_target[i]);
@@ -617,9 +622,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
     // Every other model's own plan, beside the judgements (each on a core where one is
     // free; rayon keeps the order).
-    let gerg_covers = setup.gases.iter().all(|&g| gerg::covers(catalogue.gas(g).id()));
+    let reference = reference_model(&setup.gases, catalogue);
     let other_model = |m: Model| -> ModelPlan {
-        if m == Model::Multi && gerg_covers {
+        if m == Model::Multi && reference == Model::Gerg {
             // GERG-2008 is the reference here; the multi-fluid model (asked for with
             // --model multi) would repeat it within a few 0.01 %.
             return ModelPlan { model: m, result: Err(NOT_NEEDED.to_string()) };
@@ -742,9 +747,8 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         .filter_map(|&m| if m == model { Some(ModelPlan { model: m, result: Ok(own.clone()) }) } else { others.next() })
         .collect();
 
-    // Stopping at each model's readings, judged by the selected model and by GERG-2008.
+    // Stopping at each model's readings, judged by the selected model and by the reference (GERG-2008 or the multi-fluid model).
     let mut truths = vec![model];
-    let reference = reference_model(&setup.gases, catalogue);
     if model != reference {
         truths.push(reference);
     }
@@ -786,8 +790,8 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         .collect();
 
     let mut notes = Vec::new();
-    if model == Model::Multi {
-        notes.extend(multi_estimates(order, &setup, catalogue, d.total_mol));
+    if let Some(mixture) = fluid.multifluid() {
+        notes.extend(multi_estimates(mixture, order, &setup, catalogue, d.total_mol));
     }
     if let Before::Evacuated { residual_pa } = order.before {
         // The residual gas, taken as air (ideal gas at the fill temperature): reported when

@@ -200,6 +200,11 @@ impl Fluid {
         self.model
     }
 
+    /// The multi-fluid model behind this fluid, where it is that model.
+    pub fn multifluid(&self) -> Option<&multifluid::Mixture> {
+        self.multi.as_deref()
+    }
+
     /// Critical temperatures of the gases, K.
     pub fn critical_temperatures(&self) -> Vec<f64> {
         self.cubic.iter().map(|c| c.tc_k).collect()

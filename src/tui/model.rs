@@ -297,7 +297,7 @@ fn z_curves(gases: &[usize], x: &[f64], fill_pa: f64, o: &Order, catalogue: &Cat
     let top = 1.2 * fill_pa / 1e5;
     // The multi-fluid curve only where GERG-2008 does not cover the blend (else it lies on
     // GERG-2008's).
-    let gerg_covers = gases.iter().all(|&g| crate::thermo::gerg::covers(catalogue.gas(g).id()));
+    let gerg_covers = plan::reference_model(gases, catalogue) == Eos::Gerg;
     use rayon::prelude::*;
     Eos::ALL
         .par_iter()
