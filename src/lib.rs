@@ -8,6 +8,7 @@
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
 pub mod certificate;
+pub mod certify;
 pub mod checks;
 pub mod cli;
 pub mod config;
@@ -23,3 +24,4 @@ pub mod speed;
 pub mod thermo;
 pub mod tui;
 pub mod units;
+pub mod verification;

@@ -96,6 +96,15 @@ pub fn shorten(message: &str) -> String {
     out
 }
 
+/// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
+pub fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -34,6 +34,10 @@ pub struct Settings {
     pub condensation_margin: String,
     /// Commit each library save when the library folder is a git work tree.
     pub git_commit_on_save: bool,
+    /// On the certificate, combine the uncertainty of a consistent verification by analysis
+    /// with the gravimetric one (u² = u_prep² + u_ver²); false keeps the gravimetric
+    /// uncertainty alone, the verification shown beside it.
+    pub combine_verification_uncertainty: bool,
 }
 
 impl Default for Settings {
@@ -54,6 +58,7 @@ impl Default for Settings {
             // for the mixtures of tests/fixtures/phase_reference.json; rounded up.
             condensation_margin: DEFAULT_CONDENSATION_MARGIN.into(),
             git_commit_on_save: false,
+            combine_verification_uncertainty: false,
         }
     }
 }
@@ -95,6 +100,7 @@ pub struct Resolved {
     /// K.
     pub condensation_margin_k: f64,
     pub git_commit_on_save: bool,
+    pub combine_verification_uncertainty: bool,
 }
 
 impl Resolved {
@@ -156,6 +162,7 @@ impl Settings {
             max_service_temperature_k,
             condensation_margin_k,
             git_commit_on_save: self.git_commit_on_save,
+            combine_verification_uncertainty: self.combine_verification_uncertainty,
         })
     }
 }

@@ -39,7 +39,8 @@ pub struct QuantityError {
 
 /// Units accepted for each kind of quantity, for messages and `--help`.
 pub const PRESSURE_UNITS: &str =
-    "a number with bar, mbar, kPa, MPa, Pa, psi, atm (absolute) or barg, kPag, MPag, psig (gauge), e.g. 150bar";
+    "a number with bar, mbar, hPa, kPa, MPa, Pa, psi, atm (absolute) or barg, mbarg, kPag, \
+     MPag, psig (gauge), SI prefixes in SI case, e.g. 150bar";
 pub const TEMPERATURE_UNITS: &str = "a number with C, K or F, e.g. 15C, 288.15K, 59F";
 pub const VOLUME_UNITS: &str = "a number with L, mL, m3 or dm3, e.g. 10L, 0.05m3";
 pub const AMOUNT_UNITS: &str = "a number with mol, mmol or kmol (amount) or g, kg (mass), e.g. 12mol, 500g";
@@ -137,26 +138,70 @@ fn number_and_unit<'a>(
 pub fn parse_pressure(text: &str, ambient_pa: f64) -> Result<f64, QuantityError> {
     let what = "pressure";
     let (value, unit) = number_and_unit(what, text, PRESSURE_UNITS)?;
-    let (factor, gauge) = match unit.to_ascii_lowercase().as_str() {
-        "bar" | "bara" => (PA_PER_BAR, false),
-        "mbar" => (100.0, false),
-        "pa" => (1.0, false),
-        "kpa" | "kpaa" => (1.0e3, false),
-        "mpa" | "mpaa" => (1.0e6, false),
-        "psi" | "psia" => (PA_PER_PSI, false),
-        "atm" => (STANDARD_AMBIENT_PA, false),
-        "barg" => (PA_PER_BAR, true),
-        "kpag" => (1.0e3, true),
-        "mpag" => (1.0e6, true),
-        "psig" => (PA_PER_PSI, true),
-        _ => return Err(error(what, text, format!("unknown unit {unit:?}"), PRESSURE_UNITS)),
-    };
+    let (factor, gauge) = pressure_unit(unit).map_err(|problem| error(what, text, problem, PRESSURE_UNITS))?;
     let pa = value * factor + if gauge { ambient_pa } else { 0.0 };
     if pa <= 0.0 {
         return Err(error(what, text, "the absolute pressure must be above zero", PRESSURE_UNITS));
     }
     within(what, text, pa, (1.0, 1.0e9), "1 Pa to 10000 bar", PRESSURE_UNITS)?;
     Ok(pa)
+}
+
+/// Pa per unit and whether the unit is gauge. The base symbol (bar, Pa, psi, atm) may be
+/// typed in any case, but an SI prefix is read as SI writes it (m milli, M mega, k kilo,
+/// h hecto): `15mPa` is 15 millipascal, never 15 MPa, and a prefix whose case is unclear
+/// (`Kpa`) is refused rather than guessed.
+fn pressure_unit(unit: &str) -> Result<(f64, bool), String> {
+    let base = |symbol: &str| -> Option<(f64, bool)> {
+        Some(match symbol.to_ascii_lowercase().as_str() {
+            "bar" | "bara" => (PA_PER_BAR, false),
+            "barg" => (PA_PER_BAR, true),
+            "pa" | "paa" => (1.0, false),
+            "pag" => (1.0, true),
+            "psi" | "psia" => (PA_PER_PSI, false),
+            "psig" => (PA_PER_PSI, true),
+            "atm" => (STANDARD_AMBIENT_PA, false),
+            _ => return None,
+        })
+    };
+    if let Some(found) = base(unit) {
+        return Ok(found);
+    }
+    let mut chars = unit.chars();
+    let prefix = chars.next().unwrap_or(' ');
+    let rest = chars.as_str();
+    let Some((factor, gauge)) = base(rest) else {
+        return Err(format!("unknown unit {unit:?}"));
+    };
+    let scale = match prefix {
+        'k' => 1.0e3,
+        'M' => 1.0e6,
+        'h' => 1.0e2,
+        'm' => 1.0e-3,
+        'G' => 1.0e9,
+        'K' | 'H' => {
+            return Err(format!("{unit:?}: the prefix {prefix:?} is not an SI prefix (kilo is k, hecto is h)"));
+        }
+        _ => return Err(format!("unknown unit {unit:?}")),
+    };
+    let bar_or_pa = rest.to_ascii_lowercase().starts_with("bar") || rest.to_ascii_lowercase().starts_with("pa");
+    if !bar_or_pa {
+        return Err(format!("unknown unit {unit:?} (prefixes go with bar and Pa only)"));
+    }
+    // Prefixes a blender never means and that sit outside the working range are refused
+    // with what was probably meant: megabar for millibar, millipascal for megapascal.
+    let pa = scale * factor;
+    if pa == 1.0e11 {
+        return Err(format!(
+            "{unit:?} is megabar (SI prefixes are case-sensitive: M mega, m milli); for millibar write mbar"
+        ));
+    }
+    if pa == 1.0e-3 {
+        return Err(format!(
+            "{unit:?} is millipascal (SI prefixes are case-sensitive: m milli, M mega); for megapascal write MPa"
+        ));
+    }
+    Ok((pa, gauge))
 }
 
 /// Parse a temperature; returns K.
@@ -403,6 +448,28 @@ mod tests {
         assert_eq!(parse_pressure("0barg", amb).unwrap(), amb);
         assert_eq!(parse_pressure("10barg", 0.95e5).unwrap(), 10.95e5);
         assert!((parse_pressure("100kPag", amb).unwrap() - 201_325.0).abs() < 1e-9);
+        assert_eq!(parse_pressure("1013.25hPa", amb).unwrap(), 101_325.0);
+        assert_eq!(parse_pressure("500mbar", amb).unwrap(), 50_000.0);
+        assert_eq!(parse_pressure("150BAR", amb).unwrap(), 150.0e5);
+        assert_eq!(parse_pressure("2200PSIG", amb).unwrap(), 2200.0 * PA_PER_PSI + amb);
+    }
+
+    #[test]
+    fn prefixes_are_read_in_si_case_and_the_unclear_ones_refused() {
+        let amb = STANDARD_AMBIENT_PA;
+        // 15 mPa is 15 millipascal, never 15 MPa (150 bar); it is refused with the hint.
+        let e = parse_pressure("15mPa", amb).unwrap_err();
+        assert!(e.problem.contains("millipascal") && e.problem.contains("MPa"), "{e}");
+        // 1500 Mbar is megabar, never 1.5 bar.
+        let e = parse_pressure("1500Mbar", amb).unwrap_err();
+        assert!(e.problem.contains("megabar") && e.problem.contains("mbar"), "{e}");
+        // A prefix in the wrong case is not guessed.
+        for typed in ["100KPa", "10Kpa", "5MBAR", "1mpag", "3Hpa", "1kpsi", "2matm"] {
+            let e = parse_pressure(typed, amb).unwrap_err();
+            assert!(e.to_string().contains("accepted"), "{typed}: {e}");
+            assert_ne!(parse_pressure(typed, amb).ok(), Some(0.0));
+        }
+        assert_eq!(parse_pressure("0.1GPa", amb).unwrap(), 1.0e8);
     }
 
     #[test]

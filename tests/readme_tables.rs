@@ -51,12 +51,13 @@ fn accuracy_rows_judge_by_gerg_where_it_covers() {
 #[test]
 fn fill_sheet_and_screening_examples_are_current() {
     let config = std::env::temp_dir().join(format!("fillwright-readme-{}", std::process::id()));
-    let runs: [&[&str]; 5] = [
+    let runs: [&[&str]; 6] = [
         &["plan", "flue-gas-span"],
         &["check", "lpg-in-methane"],
         &["certify", "tests/records/flue-gas-made.ron"],
         &["plan", "--mix", "CO2=60%,N2=balance", "--volume", "10L", "--pressure", "150bar"],
         &["state", "--mix", "CO2", "--temp", "15C", "--volume", "10L", "--amount", "100mol"],
+        &["verify", "tests/verifications/co-ppm-quadratic.ron"],
     ];
     for args in runs {
         let out = std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))

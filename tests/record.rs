@@ -214,7 +214,7 @@ fn bad_records_are_refused_with_exit_1_and_their_place() {
     for (k, (text, needle)) in cases.iter().enumerate() {
         let file = dir.join(format!("bad{k}.ron"));
         std::fs::write(&file, text).unwrap();
-        let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "100"]);
+        let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "1000"]);
         let err = String::from_utf8_lossy(&o.stderr);
         if needle.is_empty() {
             // A record whose last addition is not weighed yet certifies what is complete.
@@ -324,7 +324,7 @@ fn a_premix_made_here_brings_its_certified_composition_and_covariance() {
     let own = lib.join("records/PX-118-20261120.ron");
     let t = std::fs::read_to_string(&own).unwrap().replace("CO=balance,CO2=<20ppm", "record:PX-118-20261120");
     std::fs::write(&own, t).unwrap();
-    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "100"]);
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
     assert_eq!(o.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&o.stderr).contains("nest deeper"), "{}", String::from_utf8_lossy(&o.stderr));
 }

@@ -1040,3 +1040,71 @@ fn a_tare_edit_moves_the_heels_scale_reading_with_the_steps() {
     );
     assert!((heel.scale_reading_g - (13512.0 + heel.mass_g)).abs() < 1e-9);
 }
+
+/// The flue-gas record, finished, in the library's records/.
+fn place_flue_record(ctx: &Context) {
+    let text = std::fs::read_to_string("tests/records/flue-gas-made.ron")
+        .unwrap()
+        .replace("recipe_revision: 1,", "recipe_revision: 1,\n    finished: \"2026-12-02T10:00:00Z\",");
+    let records = ctx.library.dir().join("records");
+    std::fs::create_dir_all(&records).unwrap();
+    std::fs::write(records.join("FC-10-2291-20261202.ron"), text).unwrap();
+}
+
+#[test]
+fn a_verification_is_typed_on_the_screen_written_as_typed_and_judged() {
+    use fillwright::tui::verification;
+    let (mut model, mut ctx, _dir) = setup("verify");
+    place_flue_record(&ctx);
+    keys(&mut model, &mut ctx, &[Key::Char('v')]);
+    assert!(model.verification.is_some());
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    text(&mut model, &mut ctx, "FC-10-2291-20261202 carbon dioxide");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let file = ctx.library.dir().join("verifications/FC-10-2291-CO2.ron");
+    assert!(file.is_file(), "{}", model.verification.as_ref().unwrap().status);
+    // Three reference mixtures: Enter on "add" types the content, → the response.
+    for (content, response) in [
+        ("12.002%±0.004%", "1.20020±0.00030"),
+        ("14.010%±0.004%", "1.40095±0.00030"),
+        ("16.005%±0.005%", "1.60054±0.00030"),
+    ] {
+        keys(
+            &mut model,
+            &mut ctx,
+            &[Key::Down, Key::Down, Key::Down, Key::Down, Key::Down, Key::Down, Key::Up, Key::Enter],
+        );
+        text(&mut model, &mut ctx, content);
+        keys(&mut model, &mut ctx, &[Key::Enter, Key::Right, Key::Enter, Key::Ctrl('u')]);
+        text(&mut model, &mut ctx, response);
+        keys(&mut model, &mut ctx, &[Key::Enter]);
+        // Written at once, as typed.
+        let saved = std::fs::read_to_string(&file).unwrap();
+        assert!(saved.contains(content) && saved.contains(response), "{saved}");
+    }
+    // The sample's response as three repeats, on the last line.
+    keys(&mut model, &mut ctx, &[Key::End, Key::Down, Key::Down, Key::Right, Key::Enter]);
+    text(&mut model, &mut ctx, "1.4640, 1.4644, 1.4641");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let pane = model.verification.as_ref().unwrap();
+    let e = verification::editing(pane).expect("editing the file");
+    let report = e.outcome.as_ref().unwrap_or_else(|why| panic!("{why}"));
+    assert_eq!(report.checked.points.len(), 3);
+    assert_eq!(report.checked.repeats.len(), 3);
+    assert_eq!(report.checked.sample_record.as_deref(), Some("FC-10-2291-20261202"));
+    // The record's CO2 is about 14.64 %: the analyser's 14.64 % agrees.
+    assert!(report.consistent, "{report:?}");
+    // Each write kept the text it replaced.
+    let history = ctx.library.dir().join("verifications/.history/FC-10-2291-CO2");
+    assert!(std::fs::read_dir(history).unwrap().count() >= 6);
+    // A bad value is written as typed and explained, not lost.
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "1.4640");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let pane = model.verification.as_ref().unwrap();
+    assert!(pane.status.contains("no uncertainty"), "{}", pane.status);
+    assert!(std::fs::read_to_string(&file).unwrap().contains("response: \"1.4640\""));
+    // Esc goes back to the list, Esc again closes the pane.
+    keys(&mut model, &mut ctx, &[Key::Esc, Key::Esc]);
+    assert!(model.verification.is_none());
+}

@@ -9,6 +9,7 @@
   <!-- generated: certificate -->     cargo run -- certify tests/records/flue-gas-made.ron
   <!-- generated: plan-liquid -->     cargo run -- plan --mix "CO2=60%,N2=balance" --volume 10L --pressure 150bar
   <!-- generated: state-two-phase --> cargo run -- state --mix CO2 --temp 15C --volume 10L --amount 100mol
+  <!-- generated: verify -->          cargo run -- verify tests/verifications/co-ppm-quadratic.ron
 
 Run from anywhere: python3 tools/update_readme.py
 """
@@ -32,6 +33,8 @@ PARTS = {
     "state-two-phase": (["cargo", "run", "-q", "--", "state", "--mix", "CO2", "--temp", "15C", "--volume", "10L",
                          "--amount", "100mol"],
                         "state --mix CO2 --temp 15C --volume 10L --amount 100mol"),
+    "verify": (["cargo", "run", "-q", "--", "verify", "tests/verifications/co-ppm-quadratic.ron"],
+               "verify tests/verifications/co-ppm-quadratic.ron"),
 }
 
 
@@ -40,7 +43,11 @@ def main():
     text = open(path, encoding="utf-8").read()
     env = dict(os.environ, FILLWRIGHT_CONFIG=os.path.join(ROOT, "target", "readme-config"))
     for name, (cmd, fenced) in PARTS.items():
-        out = subprocess.run(cmd, cwd=ROOT, check=True, capture_output=True, text=True, env=env).stdout
+        done = subprocess.run(cmd, cwd=ROOT, capture_output=True, text=True, env=env)
+        # 3 is a stop or an inconsistency: the output is still the example to show.
+        if done.returncode not in (0, 3):
+            raise SystemExit(f"{' '.join(cmd)} exited {done.returncode}: {done.stderr}")
+        out = done.stdout
         body = f"```\n$ fillwright {fenced}\n{out}```\n" if fenced else out
         pattern = re.compile(rf"(<!-- generated: {name} -->\n).*?(<!-- /generated -->)", re.S)
         text, n = pattern.subn(lambda m: m.group(1) + body + m.group(2), text)

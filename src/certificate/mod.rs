@@ -9,6 +9,7 @@ use serde_json::{json, Value};
 
 use crate::gas::Catalogue;
 use crate::record::{Checked, Evaluation, Method, Record};
+use crate::verification;
 
 /// The coverage factor of the expanded uncertainty.
 pub const COVERAGE_FACTOR: f64 = 2.0;
@@ -44,6 +45,18 @@ pub struct Certificate<'a> {
     pub targets: Vec<Target>,
     /// Other things that could not be verified or deserve the reviewer's eye.
     pub remarks: Vec<String>,
+    /// Verifications by analysis of this cylinder (ISO 6143), one per file.
+    pub verifications: Vec<Verified>,
+    /// Combine a consistent verification's uncertainty with the gravimetric one (a setting).
+    pub combine_verification: bool,
+}
+
+/// A verification file of the certified cylinder and what it gave.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Verified {
+    /// The file's name in the library.
+    pub file: String,
+    pub outcome: Result<verification::Report, String>,
 }
 
 /// A mole fraction and its expanded uncertainty in a unit that suits the magnitude,
@@ -100,6 +113,69 @@ impl Certificate<'_> {
         }
     }
 
+    /// The verification report of component i, if one gave a verdict.
+    fn verification_of(&self, i: usize) -> Option<&verification::Report> {
+        let gas = self.evaluation.measurand.gases[i];
+        self.verifications.iter().filter_map(|v| v.outcome.as_ref().ok()).find(|r| r.checked.gas == gas)
+    }
+
+    /// The standard uncertainty stated for component i: the gravimetric one, combined with
+    /// a consistent verification's where the setting asks for it.
+    fn u_of(&self, i: usize) -> f64 {
+        let u = self.evaluation.gum.u[i];
+        match self.verification_of(i) {
+            Some(r) if self.combine_verification && r.consistent => (u * u + r.analysed.u.powi(2)).sqrt(),
+            _ => u,
+        }
+    }
+
+    /// Components whose analysis does not confirm the prepared content.
+    fn inconsistent(&self) -> Vec<&str> {
+        (0..self.evaluation.gum.values.len())
+            .filter(|&i| self.verification_of(i).is_some_and(|r| !r.consistent))
+            .map(|i| self.id_of(i))
+            .collect()
+    }
+
+    /// The verification section: each component verified, not verified, or refused.
+    fn verification_lines(&self) -> Vec<String> {
+        let e = self.evaluation;
+        let mut o = vec![
+            "VERIFICATION BY ANALYSIS (ISO 6143)  U = k u, k = 2".into(),
+            "  consistent where |prepared - analysed| <= 2 sqrt(u_prep^2 + u_ver^2)".into(),
+            format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", "gas", "analysed", "U", "unit", "difference", "verdict"),
+        ];
+        for i in 0..e.gum.values.len() {
+            let Some(r) = self.verification_of(i) else {
+                o.push(format!("{:<10} not verified", self.id_of(i)));
+                continue;
+            };
+            let (xs, us, unit) = with_uncertainty(r.analysed.value, COVERAGE_FACTOR * r.analysed.u);
+            let verdict = if r.consistent { "consistent" } else { "NOT CONSISTENT" };
+            o.push(format!(
+                "{:<10} {:>14} {:>12} {:<5} {:>12}  {verdict}",
+                self.id_of(i),
+                xs,
+                us,
+                unit,
+                in_unit(r.difference, unit)
+            ));
+        }
+        for v in &self.verifications {
+            if let Err(why) = &v.outcome {
+                o.extend(wrap(&format!("  {}: no verdict: {why}", v.file), 78, "    "));
+            }
+        }
+        if self.combine_verification {
+            o.push("  U of a verified component combines the gravimetric u and the analysis's".into());
+            o.push("  u (laboratory setting); elsewhere U is the gravimetric one.".into());
+        } else {
+            o.push("  U in COMPOSITION is the gravimetric one (ISO 6142-1); the analysis".into());
+            o.push("  confirms it and is not combined with it.".into());
+        }
+        o
+    }
+
     /// Additions not weighed yet, or an unfinished record that lacks a target gas.
     fn in_progress(&self) -> bool {
         let missing_target = self.targets.iter().any(|t| !self.evaluation.measurand.gases.contains(&t.gas));
@@ -112,6 +188,13 @@ impl Certificate<'_> {
         let r = self.record;
         let mut o: Vec<String> = Vec::new();
         o.push("CERTIFICATE OF PREPARATION  draft for review by the laboratory".into());
+        let inconsistent = self.inconsistent();
+        if !inconsistent.is_empty() {
+            o.push("!".repeat(78));
+            o.push(format!("!! STOP - NOT CONSISTENT WITH ANALYSIS: {}", inconsistent.join(", ")));
+            o.push("!! The analysis does not confirm the prepared content: do not issue.".into());
+            o.push("!".repeat(78));
+        }
         o.push(format!("record {} rev {} | cylinder {}", self.id, r.revision, r.cylinder));
         o.push(format!("recipe {} revision {}", r.recipe, r.recipe_revision));
         if let Some(h) = &r.recipe_sha256 {
@@ -151,7 +234,7 @@ impl Certificate<'_> {
         o.push(format!("COMPOSITION  U = k u with k = {COVERAGE_FACTOR} (about 95 %)"));
         o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", "gas", "amount", "U", "unit", "target", "judged"));
         for i in 0..e.gum.values.len() {
-            let (x, u) = (e.gum.values[i], e.gum.u[i]);
+            let (x, u) = (e.gum.values[i], self.u_of(i));
             let (xs, us, unit) = with_uncertainty(x, COVERAGE_FACTOR * u);
             let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
             let (ts, judged) = match target {
@@ -168,6 +251,10 @@ impl Certificate<'_> {
                 None => ("–".into(), "impurity".into()),
             };
             o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", self.id_of(i), xs, us, unit, ts, judged));
+        }
+        if !self.verifications.is_empty() {
+            o.push(String::new());
+            o.extend(self.verification_lines());
         }
         o.push(String::new());
         o.push("ADDITIONS".into());
@@ -243,10 +330,13 @@ impl Certificate<'_> {
             }
         }
         o.push(String::new());
+        let verified = if self.verifications.is_empty() { "verified (ISO 6143) " } else { "" };
         o.extend(wrap(
-            "CAUTION  A draft produced by a computation aid, to be reviewed, verified (ISO 6143) and signed under \
-             the laboratory's quality system before it is issued. The cylinder holds gas under high pressure: \
-             follow local codes, the cylinder's markings and licensed practice.",
+            &format!(
+                "CAUTION  A draft produced by a computation aid, to be reviewed, {verified}and signed under the \
+                 laboratory's quality system before it is issued. The cylinder holds gas under high pressure: \
+                 follow local codes, the cylinder's markings and licensed practice."
+            ),
             78,
             "  ",
         ));
@@ -265,8 +355,9 @@ impl Certificate<'_> {
                 json!({
                     "id": self.id_of(i),
                     "mole_fraction": e.gum.values[i],
-                    "standard_uncertainty": e.gum.u[i],
-                    "expanded_uncertainty": COVERAGE_FACTOR * e.gum.u[i],
+                    "standard_uncertainty": self.u_of(i),
+                    "expanded_uncertainty": COVERAGE_FACTOR * self.u_of(i),
+                    "gravimetric_standard_uncertainty": e.gum.u[i],
                     "coverage_factor": COVERAGE_FACTOR,
                     "target": target.map(|t| t.fraction),
                     "tolerance": target.and_then(|t| t.tolerance),
@@ -332,8 +423,49 @@ impl Certificate<'_> {
                 })).collect::<Vec<_>>(),
             },
             "remarks": self.remarks,
+            "verification": self.verification_json(),
+            "consistent_with_analysis": if self.verifications.iter().any(|v| v.outcome.is_ok()) {
+                json!(self.inconsistent().is_empty())
+            } else {
+                Value::Null
+            },
             "text": self.text(),
         })
+    }
+}
+
+impl Certificate<'_> {
+    /// Every component: its verification by analysis, or `verified: false`.
+    fn verification_json(&self) -> Value {
+        let e = self.evaluation;
+        let components: Vec<Value> = (0..e.gum.values.len())
+            .map(|i| match self.verification_of(i) {
+                Some(r) => json!({
+                    "id": self.id_of(i),
+                    "verified": true,
+                    "analysed": r.analysed.value,
+                    "standard_uncertainty": r.analysed.u,
+                    "difference": r.difference,
+                    "allowed_difference": r.bound,
+                    "consistent": r.consistent,
+                    "goodness_of_fit": r.fit.goodness(),
+                }),
+                None => json!({"id": self.id_of(i), "verified": false}),
+            })
+            .collect();
+        json!({
+            "components": components,
+            "files": self.verifications.iter().map(|v| json!({
+                "file": v.file,
+                "error": v.outcome.as_ref().err(),
+            })).collect::<Vec<_>>(),
+            "combined": self.combine_verification,
+        })
+    }
+
+    /// Does any verification contradict the prepared content?
+    pub fn stopped_by_analysis(&self) -> bool {
+        !self.inconsistent().is_empty()
     }
 }
 

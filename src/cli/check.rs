@@ -149,12 +149,12 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
             "cautions": CAUTIONS,
         })),
         Format::Csv => {
-            println!("recipe,model,id,severity,message");
+            outln!("recipe,model,id,severity,message");
             for (origin, r) in &results {
                 match r {
                     Ok((model, list)) => {
                         for c in list {
-                            println!(
+                            outln!(
                                 "{},{},{},{},{}",
                                 super::csv_field(origin),
                                 model.key(),
@@ -165,7 +165,7 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
                         }
                     }
                     Err(e) => {
-                        println!("{},,,unreadable,{}", super::csv_field(origin), super::csv_field(e))
+                        outln!("{},,,unreadable,{}", super::csv_field(origin), super::csv_field(e))
                     }
                 }
             }
@@ -219,14 +219,14 @@ fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
         let (model, list) = match result {
             Ok((model, list)) => (model, list),
             Err(e) => {
-                println!("{origin}: NOT SCREENED - refused");
-                println!("  {}", crate::ron_format::shorten(e));
-                println!();
+                outln!("{origin}: NOT SCREENED - refused");
+                outln!("  {}", crate::ron_format::shorten(e));
+                outln!();
                 continue;
             }
         };
         let worst = checks::worst(list);
-        println!(
+        outln!(
             "{}: {}",
             origin,
             match worst {
@@ -235,7 +235,7 @@ fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
                 Severity::Ok => "OK",
             }
         );
-        println!(
+        outln!(
             "  plan {}; storage down to {}, service up to {}",
             model.key(),
             d.tf(conditions.min_temperature_k),
@@ -249,23 +249,23 @@ fn print_text(results: &[Screened], conditions: &Conditions, d: &Shown) {
             let lines = wrap_words(&c.message, 80 - 29);
             for (k, l) in lines.iter().enumerate() {
                 if k == 0 {
-                    println!("  [{:<7}] {:<16} {l}", c.severity.key(), c.id);
+                    outln!("  [{:<7}] {:<16} {l}", c.severity.key(), c.id);
                 } else {
-                    println!("{:29}{l}", "");
+                    outln!("{:29}{l}", "");
                 }
             }
             for d in &c.details {
                 for (k, l) in wrap_words(d, 80 - 16).iter().enumerate() {
-                    println!("{}{l}", if k == 0 { "              " } else { "                " });
+                    outln!("{}{l}", if k == 0 { "              " } else { "                " });
                 }
             }
         }
-        println!();
+        outln!();
     }
-    println!("Cautions:");
+    outln!("Cautions:");
     for c in CAUTIONS {
         for (k, l) in wrap_words(c, 80 - 4).iter().enumerate() {
-            println!("{}{l}", if k == 0 { "  - " } else { "    " });
+            outln!("{}{l}", if k == 0 { "  - " } else { "    " });
         }
     }
 }

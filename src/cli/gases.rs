@@ -64,11 +64,11 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
             print_json(&json!({ "gases": gases }));
         }
         Format::Csv => {
-            println!("id,name,cas,molar_mass_g_per_mol,critical_temperature_k,critical_pressure_bar,acentric_factor,normal_boiling_point_k,gerg,reference_model,reference_equation");
+            outln!("id,name,cas,molar_mass_g_per_mol,critical_temperature_k,critical_pressure_bar,acentric_factor,normal_boiling_point_k,gerg,reference_model,reference_equation");
             for g in catalogue.gases() {
                 let r = &g.record;
                 let (model, equation, _) = reference_of(&r.id);
-                println!(
+                outln!(
                     "{},{},{},{},{},{},{},{},{},{},{}",
                     csv_field(&r.id),
                     csv_field(&r.name),
@@ -86,14 +86,21 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
         }
         Format::Text => {
             // 80 columns: long names are cut (the JSON and CSV have them whole).
-            println!(
+            outln!(
                 "{:<9} {:<12} {:<11} {:>7} {:>7} {:>6} {:>6} {:>6} ref",
-                "id", "name", "CAS", "M g/mol", "Tc K", "Pc bar", "ω", "Tb K"
+                "id",
+                "name",
+                "CAS",
+                "M g/mol",
+                "Tc K",
+                "Pc bar",
+                "ω",
+                "Tb K"
             );
             for g in catalogue.gases() {
                 let r = &g.record;
                 let mark = format!("{}{}", reference_of(&r.id).2, if r.van_der_waals.is_some() { " v" } else { "" });
-                println!(
+                outln!(
                     "{:<9} {:<12} {:<11} {:>7.3} {:>7.2} {:>6.2} {:>6.3} {:>6.1} {}",
                     r.id,
                     crate::ron_format::clip(&r.name, 12),
@@ -106,15 +113,15 @@ pub fn run(args: &GasesArgs) -> Result<(), Failure> {
                     mark
                 );
             }
-            println!();
-            println!(
+            outln!();
+            outln!(
                 "{} gases, every one under the cubic and multi-fluid models. ref: the model",
                 catalogue.gases().len()
             );
-            println!("that carries the gas at reference quality: gerg GERG-2008; eos its reference");
-            println!("equation of state in the multi-fluid model (--model multi); cub Peng-Robinson's");
-            println!("form inside the multi-fluid model, an estimate. v: tabulated van der Waals a");
-            println!("and b. The source of every value: `fillwright gases --format json`.");
+            outln!("that carries the gas at reference quality: gerg GERG-2008; eos its reference");
+            outln!("equation of state in the multi-fluid model (--model multi); cub Peng-Robinson's");
+            outln!("form inside the multi-fluid model, an estimate. v: tabulated van der Waals a");
+            outln!("and b. The source of every value: `fillwright gases --format json`.");
         }
     }
     Ok(())

@@ -55,12 +55,12 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
         }));
         return Ok(());
     }
-    println!("library {}", lib.dir().display());
+    outln!("library {}", lib.dir().display());
     // 80 columns: long names and titles are cut with an ellipsis.
-    println!("{:<22} {:>8} {:>13} {:>3}  recipe", "name", "fill", "cylinder", "rev");
+    outln!("{:<22} {:>8} {:>13} {:>3}  recipe", "name", "fill", "cylinder", "rev");
     for e in &entries {
         match &e.summary {
-            Ok(s) => println!(
+            Ok(s) => outln!(
                 "{:<22} {:>8} {:>13} {:>3}  {}",
                 crate::ron_format::clip_middle(&e.name, 22),
                 clip(&s.fill, 8),
@@ -69,13 +69,13 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
                 clip(&s.title, 29)
             ),
             Err(err) if err.starts_with("skipped:") => {
-                println!("{:<22} {err}", crate::ron_format::clip_middle(&e.name, 22))
+                outln!("{:<22} {err}", crate::ron_format::clip_middle(&e.name, 22))
             }
-            Err(err) => println!("{:<22} cannot be read: {err}", crate::ron_format::clip_middle(&e.name, 22)),
+            Err(err) => outln!("{:<22} cannot be read: {err}", crate::ron_format::clip_middle(&e.name, 22)),
         }
     }
     if entries.is_empty() {
-        println!("(no recipes)");
+        outln!("(no recipes)");
     }
     Ok(())
 }
@@ -108,11 +108,11 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         if args.format == Format::Json {
             print_json(&json!({"name": args.name, "from": pair[0], "to": pair[1], "changes": list}));
         } else if list.is_empty() {
-            println!("{} revisions {} and {} are the same order", args.name, pair[0], pair[1]);
+            outln!("{} revisions {} and {} are the same order", args.name, pair[0], pair[1]);
         } else {
-            println!("{} revision {} → {}:", args.name, pair[0], pair[1]);
+            outln!("{} revision {} → {}:", args.name, pair[0], pair[1]);
             for c in list {
-                println!("  {c}");
+                outln!("  {c}");
             }
         }
         return Ok(());
@@ -131,7 +131,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         }))).collect::<Vec<_>>()}));
         return Ok(());
     }
-    println!("{:>4}  {:<21} {:<12} note", "rev", "saved (UTC)", "by");
+    outln!("{:>4}  {:<21} {:<12} note", "rev", "saved (UTC)", "by");
     for r in &revs {
         let filled: Vec<&str> = records
             .iter()
@@ -139,7 +139,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
             .map(|(id, _)| id.as_str())
             .collect();
         let note = r.note.as_deref().unwrap_or("");
-        println!(
+        outln!(
             "{:>4}  {:<21} {:<12} {}",
             r.revision,
             r.saved.as_deref().unwrap_or("-"),
@@ -147,12 +147,12 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
             clip(note, 39)
         );
         for id in filled {
-            println!("{:>4}  {:<21} {:<12} filled: record {id}", "", "", "");
+            outln!("{:>4}  {:<21} {:<12} filled: record {id}", "", "", "");
         }
     }
     if !records.is_empty() {
-        println!();
-        println!("fill records of {}:", args.name);
+        outln!();
+        outln!("fill records of {}:", args.name);
         super::record::print_records(&records);
     }
     Ok(())
@@ -162,9 +162,9 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
 /// exit status (4).
 fn report_save(name: &str, saved: Saved) -> Result<(), Failure> {
     match saved {
-        Saved::Unchanged { revision } => println!("{name}: unchanged, still revision {revision}"),
+        Saved::Unchanged { revision } => outln!("{name}: unchanged, still revision {revision}"),
         Saved::Written { revision, changes, git } => {
-            println!("{name}: saved revision {revision} ({})", changes.join("; "));
+            outln!("{name}: saved revision {revision} ({})", changes.join("; "));
             if let Some(Err(e)) = git {
                 return Err(Failure::NotCommitted(format!(
                     "{name} revision {revision} is saved in the library, but not committed: {e}"
@@ -197,7 +197,7 @@ pub fn tidy(args: &TidyArgs) -> Result<(), Failure> {
             } else {
                 crate::library::atomic::write(file, canon.as_bytes())
                     .map_err(|e| Refused(format!("{}: {e}", file.display())))?;
-                println!("tidied {}", file.display());
+                outln!("tidied {}", file.display());
             }
         }
     }
@@ -240,7 +240,7 @@ pub struct ExportArgs {
 
 pub fn export(args: &ExportArgs) -> Result<(), Failure> {
     args.place.open()?.export(&args.name, &args.file)?;
-    println!("wrote {}", args.file.display());
+    outln!("wrote {}", args.file.display());
     Ok(())
 }
 
@@ -258,7 +258,7 @@ pub fn copy(args: &TwoNames) -> Result<(), Failure> {
 
 pub fn rename(args: &TwoNames) -> Result<(), Failure> {
     args.place.open()?.rename(&args.from, &args.to)?;
-    println!("renamed {} to {}", args.from, args.to);
+    outln!("renamed {} to {}", args.from, args.to);
     Ok(())
 }
 
@@ -271,7 +271,7 @@ pub struct DeleteArgs {
 
 pub fn delete(args: &DeleteArgs) -> Result<(), Failure> {
     let to = args.place.open()?.delete(&args.name, &clock::now_utc())?;
-    println!("moved {} to {} (recoverable)", args.name, to.display());
+    outln!("moved {} to {} (recoverable)", args.name, to.display());
     Ok(())
 }
 
@@ -291,14 +291,14 @@ pub fn undelete(args: &UndeleteArgs) -> Result<(), Failure> {
     let Some(name) = &args.name else {
         let trash = lib.trash();
         if trash.is_empty() {
-            println!("the trash is empty");
+            outln!("the trash is empty");
         }
         for (name, stamp, _) in trash {
-            println!("{:<40} deleted {stamp}", clip(&name, 40));
+            outln!("{:<40} deleted {stamp}", clip(&name, 40));
         }
         return Ok(());
     };
     let back = lib.undelete(name, args.to.as_deref())?;
-    println!("{name} is back in the library as {back}");
+    outln!("{name} is back in the library as {back}");
     Ok(())
 }

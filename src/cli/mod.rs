@@ -1,12 +1,28 @@
 //! The command line: parse, call the core, present. Exit status 0 success, 1 input refused,
 //! 2 wrong usage (INTERFACE.md).
 
+/// Write to standard output; a write error (a closed pipe, a full disk, `/dev/full`) is
+/// kept and reported once the command ends ([`stdout_failure`]), never a panic.
+macro_rules! out {
+    ($($arg:tt)*) => { $crate::cli::write_out(format_args!($($arg)*)) };
+}
+
+/// [`out!`] with a newline.
+macro_rules! outln {
+    () => { $crate::cli::write_out(format_args!("\n")) };
+    ($($arg:tt)*) => {{
+        $crate::cli::write_out(format_args!($($arg)*));
+        $crate::cli::write_out(format_args!("\n"));
+    }};
+}
+
 mod check;
 mod gases;
 mod library;
 pub mod plan;
 pub mod record;
 mod state;
+mod verify;
 
 use std::process::ExitCode;
 
@@ -75,6 +91,10 @@ enum Command {
     Certify(record::CertifyArgs),
     /// List the fill records of the library, or of one recipe.
     Records(record::RecordsArgs),
+    /// Verification by analysis (ISO 6143): fit the analyser's calibration to reference
+    /// mixtures, give the sample's analysed content and whether it is consistent with the
+    /// prepared one. Exit status 3 when it is not.
+    Verify(verify::VerifyArgs),
     /// Print the shell completion script (bash, zsh, fish, elvish or powershell).
     Completions(CompletionsArgs),
     /// Print the manual page (roff, for man).
@@ -203,14 +223,24 @@ pub fn main() -> ExitCode {
         Some(Command::Undelete(args)) => library::undelete(&args),
         Some(Command::Certify(args)) => record::certify(&args),
         Some(Command::Records(args)) => record::records(&args),
+        Some(Command::Verify(args)) => verify::verify(&args),
         // Generated from the command definitions, so they never drift from them.
         Some(Command::Completions(args)) => {
-            clap_complete::generate(args.shell, &mut Cli::command(), "fillwright", &mut std::io::stdout());
+            let mut script = Vec::new();
+            clap_complete::generate(args.shell, &mut Cli::command(), "fillwright", &mut script);
+            out!("{}", String::from_utf8_lossy(&script));
             Ok(())
         }
         Some(Command::Manual) => clap_mangen::Man::new(Cli::command())
             .render(&mut std::io::stdout())
             .map_err(|e| Refused(format!("the manual page could not be written: {e}")).into()),
+    };
+    // Output that never reached its reader is a failure, whatever the command concluded.
+    let result = match (result, stdout_failure()) {
+        (Ok(()) | Err(Failure::Findings), Some(e)) => {
+            Err(Failure::Refused(Refused(format!("standard output could not be written: {e}"))))
+        }
+        (result, _) => result,
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -230,16 +260,29 @@ pub fn main() -> ExitCode {
     }
 }
 
-/// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
-pub fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
+/// The first error met writing standard output, if any.
+static STDOUT_ERROR: std::sync::Mutex<Option<String>> = std::sync::Mutex::new(None);
+
+/// Write formatted text to standard output, keeping the first error for the end.
+pub fn write_out(args: std::fmt::Arguments) {
+    use std::io::Write;
+    if let Err(e) = std::io::stdout().lock().write_fmt(args) {
+        let mut first = STDOUT_ERROR.lock().unwrap_or_else(|p| p.into_inner());
+        first.get_or_insert_with(|| e.to_string());
     }
 }
 
+/// Standard output could not be written (or flushed): the reason, for exit status 1.
+fn stdout_failure() -> Option<String> {
+    use std::io::Write;
+    let flushed = std::io::stdout().lock().flush();
+    let first = STDOUT_ERROR.lock().unwrap_or_else(|p| p.into_inner()).clone();
+    first.or(flushed.err().map(|e| e.to_string()))
+}
+
+pub use crate::ron_format::csv_field;
+
 /// Print a JSON value (numbers at full precision).
 pub fn print_json(value: &serde_json::Value) {
-    println!("{}", serde_json::to_string_pretty(value).unwrap_or_default());
+    outln!("{}", serde_json::to_string_pretty(value).unwrap_or_default());
 }

@@ -96,27 +96,27 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         Some(o) => Refused(format!("{o}: {e}")),
         None => Refused(e.to_string()),
     })?;
-    // The cylinder's rating is judged here as in `check`: a fill above it is a stop, with
-    // a banner at the top of the sheet and exit status 3.
+    // The plan is screened as `check` screens it (every check, the same conditions): any
+    // finding at stop puts a banner at the top of the sheet and ends in exit status 3.
     let conditions = settings.conditions();
-    let rating = checks::rating::check(&plan, &order, &conditions);
+    let findings = checks::screen(&plan, &order, &catalogue, &conditions);
+    let stops: Vec<&checks::Check> = findings.iter().filter(|c| c.severity == Severity::Stop).collect();
     match args.common.format {
         Format::Json => {
             let mut v = plan_json(&plan, &order, &catalogue);
-            v["rating"] = json!({
-                "severity": rating.severity.key(),
-                "message": rating.message,
-                "details": rating.details,
-            });
+            if let Some(rating) = findings.iter().find(|c| c.id == "pressure-rating") {
+                v["rating"] = check_json(rating);
+            }
+            v["stops"] = Value::Array(stops.iter().map(|c| check_json(c)).collect());
             print_json(&v)
         }
-        Format::Csv => print!("{}", steps_csv(&plan)),
+        Format::Csv => out!("{}", steps_csv(&plan)),
         Format::Text => {}
     }
     if args.common.format == Format::Text || args.pdf.is_some() {
         let mut text = String::new();
-        if rating.severity == Severity::Stop {
-            text.push_str(&stop_banner(&rating.message));
+        if !stops.is_empty() {
+            text.push_str(&stop_banner_for(&stops));
         }
         text.push_str(&fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown));
         if let Some(path) = &args.pdf {
@@ -124,16 +124,40 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
             crate::library::atomic::write(path, &bytes).map_err(|e| Refused(format!("{}: {e}", path.display())))?;
         }
         if args.common.format == Format::Text {
-            print!("{text}");
+            out!("{text}");
         }
     }
-    if rating.severity == Severity::Stop {
-        if args.common.format == Format::Csv {
-            eprintln!("fillwright: STOP - {}", rating.message);
+    if !stops.is_empty() {
+        if args.common.format != Format::Text {
+            for stop in &stops {
+                eprintln!("fillwright: STOP - {}", stop.message);
+            }
         }
         return Err(Failure::Findings);
     }
     Ok(())
+}
+
+fn check_json(c: &checks::Check) -> Value {
+    json!({"id": c.id, "severity": c.severity.key(), "message": c.message, "details": c.details})
+}
+
+/// The banner for every stop finding of a plan: each stop's reason, then what to do.
+fn stop_banner_for(stops: &[&checks::Check]) -> String {
+    let mut o = String::new();
+    o.push_str(&format!("{}\n", "!".repeat(78)));
+    o.push_str("!! STOP - DO NOT FILL AS PLANNED\n");
+    for stop in stops {
+        for line in crate::ron_format::wrap_words(&format!("{} ({})", stop.message, stop.id), 72) {
+            o.push_str(&format!("!! {line}\n"));
+        }
+    }
+    if stops.iter().any(|c| c.id == "pressure-rating") {
+        o.push_str("!! Lower the fill, or use a cylinder rated for it (see its markings).\n");
+    }
+    o.push_str("!! Change what is stopped; `fillwright check` gives every figure.\n");
+    o.push_str(&format!("{}\n\n", "!".repeat(78)));
+    o
 }
 
 /// The banner above a sheet whose plan must not be filled as it stands, 80 columns wide.

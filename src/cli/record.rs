@@ -7,13 +7,11 @@ use serde_json::json;
 
 use super::library::Place;
 use super::{print_json, Failure, Format, Refused};
-use crate::certificate::{self, Certificate, RecipeCheck, Target};
+use crate::certificate;
+use crate::certify::{certify_record, looks_like_path, Evaluate, Found};
 use crate::config;
-use crate::gas::Catalogue;
-use crate::library::records::Lookup;
 use crate::library::Library;
-use crate::recipe::Recipe;
-use crate::record::{self, Checked, Record};
+use crate::record::{self, Record};
 use crate::thermo::Model;
 
 #[derive(Debug, Args)]
@@ -28,37 +26,16 @@ pub struct CertifyArgs {
     /// Also write the certificate as a PDF to this file.
     #[arg(long, value_name = "FILE")]
     pub pdf: Option<PathBuf>,
-    /// Monte Carlo draws (JCGM 101); at least 10⁵ for a certificate.
-    #[arg(long, default_value_t = record::DEFAULT_DRAWS)]
-    pub draws: usize,
+    /// Monte Carlo draws (JCGM 101), 1000 to 10000000; at least 100000 for a certificate.
+    #[arg(long, default_value_t = record::DEFAULT_DRAWS as u64,
+          value_parser = clap::value_parser!(u64).range(1_000..=10_000_000))]
+    pub draws: u64,
     /// Seed of the Monte Carlo draws (the same seed gives the same figures).
     #[arg(long, default_value_t = record::DEFAULT_SEED)]
     pub seed: u64,
     /// Model for a record of pressure readings (default: the record's, else as for plans).
     #[arg(long, value_enum)]
     pub model: Option<Model>,
-}
-
-/// A record found for certification.
-pub struct Found {
-    pub id: String,
-    pub origin: String,
-    pub text: String,
-    pub record: Record,
-    /// The library it belongs to (None for a file elsewhere).
-    pub library: Option<Library>,
-}
-
-/// How to evaluate: the model for pressure readings, the Monte Carlo draws and seed.
-#[derive(Debug, Clone, Copy)]
-pub struct Evaluate {
-    pub model: Option<Model>,
-    pub draws: usize,
-    pub seed: u64,
-}
-
-fn looks_like_path(s: &str) -> bool {
-    s.ends_with(".ron") || s.contains('/') || s.contains(std::path::MAIN_SEPARATOR)
 }
 
 fn find(args: &CertifyArgs) -> Result<Found, Refused> {
@@ -88,135 +65,17 @@ fn find(args: &CertifyArgs) -> Result<Found, Refused> {
     })
 }
 
-/// What the library says of the record's recipe: the check of revision and hash, the
-/// recipe at that revision if it is on file, and the recipe's current revision.
-fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Option<Recipe>, Option<u32>) {
-    let Some(lib) = library else {
-        let why = "the record is not in a library, so its recipe could not be looked up";
-        return (RecipeCheck::NotVerified(why.into()), None, None);
-    };
-    let recipe = match lib.revision(&record.recipe, record.recipe_revision) {
-        Ok(r) => r,
-        Err(e) => {
-            let why = format!("recipe {} revision {}: {e}", record.recipe, record.recipe_revision);
-            return (RecipeCheck::NotVerified(why), None, None);
-        }
-    };
-    let hash = record::sha256_hex(crate::recipe::canonical::to_text(&recipe).as_bytes());
-    let current = lib.open(&record.recipe).ok().map(|o| o.recipe.revision);
-    let check = match &record.recipe_sha256 {
-        None => RecipeCheck::NotVerified("the record carries no hash of the recipe".into()),
-        Some(h) if *h != hash => RecipeCheck::NotVerified(format!(
-            "revision {} on file hashes to {}…, not to the recorded {}…; the recipe filled is not the one on file",
-            record.recipe_revision,
-            &hash[..12],
-            h.get(..12).unwrap_or(h)
-        )),
-        Some(_) => RecipeCheck::Verified,
-    };
-    (check, Some(recipe), current)
-}
-
-/// Everything `certify` computes, for the command and the screen.
-pub struct Certified {
-    pub id: String,
-    pub record: Record,
-    pub checked: Checked,
-    pub evaluation: record::Evaluation,
-    pub recipe_check: RecipeCheck,
-    pub targets: Vec<Target>,
-    pub remarks: Vec<String>,
-}
-
-/// Check, evaluate and verify a record.
-pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Result<Certified, String> {
-    let Evaluate { model, draws, seed } = how;
-    let (id, record, library) = (found.id.as_str(), &found.record, found.library.as_ref());
-    let (text, origin) = (found.text.as_str(), found.origin.as_str());
-    let sources = config::config_dir().map(|d| d.join("sources"));
-    let lookup = Lookup { library, sources: sources.as_deref(), catalogue, depth: 0 };
-    let checked = record.check(catalogue, &|r| lookup.resolve(r), text, origin).map_err(|e| e.to_string())?;
-    let (recipe_check, recipe, current_revision) = check_recipe(record, library);
-    let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
-    let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));
-    let settings = config::load_settings()
-        .unwrap_or_else(|_| crate::settings::Settings::default().resolve("", "").expect("defaults resolve"));
-    let gases: Vec<usize> = checked.additions.iter().flat_map(|a| a.source.composition().gases).collect();
-    let model = model
-        .or(record.model)
-        .or(order.as_ref().and_then(|o| o.model))
-        .or(settings.default_model)
-        .unwrap_or_else(|| crate::plan::default_model(&gases, catalogue));
-    let others: Vec<Model> = Model::ALL.iter().copied().filter(|m| *m != Model::Ideal).collect();
-    let evaluation = record::evaluate(&checked, catalogue, model, volume, &others, draws, seed)?;
-    let targets: Vec<Target> = order
-        .as_ref()
-        .map(|o| {
-            o.targets
-                .iter()
-                .zip(&o.composition.fractions)
-                .map(|(t, x)| Target { gas: t.gas, fraction: *x, tolerance: t.tolerance })
-                .collect()
-        })
-        .unwrap_or_default();
-    let mut remarks = Vec::new();
-    if let Some(now) = current_revision.filter(|&r| r != record.recipe_revision) {
-        let filled = record.recipe_revision;
-        remarks.push(format!("the recipe is now at revision {now}; the record was filled to revision {filled}"));
-    }
-    if library.is_none() {
-        remarks.push(
-            "record file outside a library: the recipe, its hash and any record: premix sources could not be verified"
-                .into(),
-        );
-    }
-    for (k, a) in record.additions.iter().enumerate() {
-        if let (Some(name), Some(dir)) = (a.source.trim().strip_prefix('@'), sources.as_deref()) {
-            if let Ok(entry) = crate::library::records::open_source(dir, name.trim()) {
-                let when = a.time.as_deref().or(record.started.as_deref()).unwrap_or("");
-                if let Some(expiry) =
-                    entry.expiry.as_deref().filter(|e| !when.is_empty() && when.get(..10).is_some_and(|w| w > *e))
-                {
-                    remarks.push(format!("addition {}: the analysis of source {name} expired on {expiry}", k + 1));
-                }
-            }
-        }
-    }
-    if draws < record::DEFAULT_DRAWS {
-        remarks.push(format!(
-            "Monte Carlo with {draws} draws only; a certificate wants at least {}",
-            record::DEFAULT_DRAWS
-        ));
-    }
-    if checked.method == record::Method::Manometric {
-        remarks.push("composition from pressure readings: expect about 1 % relative, ten times a gravimetric preparation (common practice)".into());
-    }
-    Ok(Certified { id: id.to_string(), record: record.clone(), checked, evaluation, recipe_check, targets, remarks })
-}
-
-impl Certified {
-    pub fn certificate<'a>(&'a self, catalogue: &'a Catalogue) -> Certificate<'a> {
-        Certificate {
-            id: self.id.clone(),
-            record: &self.record,
-            checked: &self.checked,
-            evaluation: &self.evaluation,
-            catalogue,
-            recipe_check: self.recipe_check.clone(),
-            targets: self.targets.clone(),
-            remarks: self.remarks.clone(),
-        }
-    }
-}
-
 pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     if args.format == Format::Csv {
         return Err(Failure::Usage("certify prints text or json; --format csv is not offered".into()));
     }
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let found = find(args)?;
-    let how = Evaluate { model: args.model, draws: args.draws, seed: args.seed };
-    let c = certify_record(&found, &catalogue, how).map_err(Refused)?;
+    let how = Evaluate { model: args.model, draws: args.draws as usize, seed: args.seed };
+    let mut c = certify_record(&found, &catalogue, how).map_err(Refused)?;
+    if let Some(lib) = &found.library {
+        c.attach_verifications(lib, &catalogue);
+    }
     let cert = c.certificate(&catalogue);
     let text = cert.text();
     if let Some(pdf) = &args.pdf {
@@ -225,7 +84,13 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     }
     match args.format {
         Format::Json => print_json(&cert.json()),
-        _ => print!("{text}"),
+        _ => out!("{text}"),
+    }
+    if cert.stopped_by_analysis() {
+        if args.format == Format::Json {
+            eprintln!("fillwright: STOP - the analysis does not confirm the prepared content");
+        }
+        return Err(Failure::Findings);
     }
     Ok(())
 }
@@ -278,15 +143,15 @@ pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
 pub fn print_records(shown: &[&(String, Result<Record, String>)]) {
     use crate::ron_format::clip;
     if shown.is_empty() {
-        println!("(no fill records)");
+        outln!("(no fill records)");
         return;
     }
-    println!("{:<22} {:<18} {:>3} {:<10}  state", "record", "recipe", "rev", "started");
+    outln!("{:<22} {:<18} {:>3} {:<10}  state", "record", "recipe", "rev", "started");
     for (id, r) in shown {
         match r {
             Ok(r) => {
                 let s = summary(id, r);
-                println!(
+                outln!(
                     "{:<22} {:<18} {:>3} {:<10}  {}",
                     clip(&s.0, 22),
                     clip(&s.1, 18),
@@ -295,7 +160,7 @@ pub fn print_records(shown: &[&(String, Result<Record, String>)]) {
                     clip(&s.5, 23)
                 );
             }
-            Err(e) => println!("{:<22} cannot be read: {}", clip(id, 22), clip(e, 40)),
+            Err(e) => outln!("{:<22} cannot be read: {}", clip(id, 22), clip(e, 40)),
         }
     }
 }

@@ -265,52 +265,52 @@ fn print_text(
     d: &Shown,
 ) {
     let mark = |u: Unknown| if u == unknown { "  <- solved" } else { "" };
-    println!("State of {mix}");
-    println!("model: {} ({})", s.model.title(), s.model.key());
-    println!();
-    println!("  temperature  {:>12} {:<4} {:>10} K", Sig(d.t(given.t_k), 5), d.tu(), Sig(given.t_k, 6));
-    println!(
+    outln!("State of {mix}");
+    outln!("model: {} ({})", s.model.title(), s.model.key());
+    outln!();
+    outln!("  temperature  {:>12} {:<4} {:>10} K", Sig(d.t(given.t_k), 5), d.tu(), Sig(given.t_k, 6));
+    outln!(
         "  pressure     {:>12} {u:<4} {:>10} {u} gauge{}",
         Sig(d.p(s.p_pa), 6),
         Sig(d.p(s.p_pa - ambient_pa), 6),
         mark(Unknown::Pressure),
         u = d.pu()
     );
-    println!("  volume       {:>12} L{}", Sig(litres(s.volume_m3), 6), mark(Unknown::Volume));
-    println!("  amount       {:>12} mol{}", Sig(s.amount_mol, 6), mark(Unknown::Amount));
-    println!("  mass         {:>12} g", Sig(s.mass_g, 6));
-    println!("  Z            {:>12.5}", s.z);
-    println!("  density      {:>12} g/L", Sig(s.mass_g / litres(s.volume_m3), 5));
-    println!(
+    outln!("  volume       {:>12} L{}", Sig(litres(s.volume_m3), 6), mark(Unknown::Volume));
+    outln!("  amount       {:>12} mol{}", Sig(s.amount_mol, 6), mark(Unknown::Amount));
+    outln!("  mass         {:>12} g", Sig(s.mass_g, 6));
+    outln!("  Z            {:>12.5}", s.z);
+    outln!("  density      {:>12} g/L", Sig(s.mass_g / litres(s.volume_m3), 5));
+    outln!(
         "  phase        {:>12}{}",
         s.phase.key(),
         if s.judged_by != s.model { format!("  (judged by {})", s.judged_by.key()) } else { String::new() }
     );
     match s.phase {
         Phase::TwoPhase => {
-            println!();
-            println!(
+            outln!();
+            outln!(
                 "  ! Gas and liquid together: {} mol liquid and {} mol vapour ({:.1} % liquid).",
                 Sig(s.liquid_fraction * s.amount_mol, 4),
                 Sig((1.0 - s.liquid_fraction) * s.amount_mol, 4),
                 s.liquid_fraction * 100.0
             );
-            println!("    The pressure is the vapour pressure of the contents: adding gas makes more");
-            println!("    liquid, not more pressure.");
+            outln!("    The pressure is the vapour pressure of the contents: adding gas makes more");
+            outln!("    liquid, not more pressure.");
         }
         Phase::Liquid => {
-            println!();
-            println!("  ! Liquid: the contents are a liquid at this state, not a gas.");
+            outln!();
+            outln!("  ! Liquid: the contents are a liquid at this state, not a gas.");
         }
         Phase::Gas | Phase::Supercritical => {}
     }
-    println!();
+    outln!();
     let unit = match unknown {
         Unknown::Pressure => d.pu(),
         Unknown::Volume => "L",
         Unknown::Amount => "mol",
     };
-    println!(
+    outln!(
         "  {:<22} {:>12} {:>9} {:>10}",
         "other models",
         format!("{} {unit}", unknown.name()),
@@ -319,7 +319,7 @@ fn print_text(
     );
     for (m, r) in others {
         match r {
-            Ok(o) => println!(
+            Ok(o) => outln!(
                 "  {:<22} {:>12} {:>9} {:>9}%",
                 m.title(),
                 Sig(
@@ -330,7 +330,7 @@ fn print_text(
                 format!("{:.5}", o.z),
                 format!("{:+.3}", percent(o.value(unknown), s.value(unknown)))
             ),
-            Err(e) => println!("  {:<22} {}", m.title(), short_reason(e)),
+            Err(e) => outln!("  {:<22} {}", m.title(), short_reason(e)),
         }
     }
 }

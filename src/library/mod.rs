@@ -10,6 +10,7 @@ pub mod atomic;
 pub mod clock;
 pub mod git;
 pub mod records;
+pub mod verifications;
 
 use std::path::{Path, PathBuf};
 

@@ -14,6 +14,7 @@ pub mod settings_editor;
 pub mod sheet;
 pub mod svg;
 pub mod update;
+pub mod verification;
 pub mod view;
 
 use std::path::{Path, PathBuf};

@@ -479,6 +479,8 @@ pub struct Model {
     /// The service range and gauge resolution the bench readings are judged by (from the
     /// settings).
     pub limits: BenchLimits,
+    /// The verification pane, while it is open (it takes every key).
+    pub verification: Option<Box<super::verification::Pane>>,
     pub quit: bool,
 }
 
@@ -521,6 +523,7 @@ impl Model {
             color,
             shown: crate::units::Shown::default(),
             limits: BenchLimits::default(),
+            verification: None,
             quit: false,
         }
     }

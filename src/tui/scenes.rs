@@ -110,6 +110,20 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
             }),
         ),
         (
+            "verification",
+            Box::new(|m: &mut Model, c: &mut Context| {
+                // A finished fill of the flue-gas demo and its CO2 verified on an NDIR
+                // (invented readings).
+                let records = c.library.dir().join("records");
+                let _ = std::fs::create_dir_all(&records);
+                let _ = std::fs::write(records.join("FC-10-2291-20261202.ron"), DEMO_RECORD);
+                if let Ok(v) = crate::verification::Verification::parse(DEMO_VERIFICATION, "demo") {
+                    let _ = c.library.save_verification("FC-10-2291-CO2", &v);
+                }
+                press(m, c, &[Key::Char('v'), Key::Enter, Key::Down, Key::Down, Key::Down, Key::Right]);
+            }),
+        ),
+        (
             "gas-picker",
             Box::new(move |m: &mut Model, c: &mut Context| {
                 open_flue(m, c);
@@ -119,6 +133,39 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
         ),
     ]
 }
+
+/// A finished fill of the flue-gas demo (invented readings).
+const DEMO_RECORD: &str = r#"Record(
+    format: 1,
+    recipe: "flue-gas-span",
+    recipe_revision: 1,
+    cylinder: "FC-10-2291",
+    operator: "R. Okafor",
+    finished: "2026-12-02T10:00:00Z",
+    scale_uncertainty: "0.010g",
+    weighings: ["13412.000g", "13504.850g", "13942.450g", "15473.450g"],
+    additions: [
+        (source: "CO=1%±0.002%,N2=balance"),
+        (source: "CO2=balance,N2=<10ppm"),
+        (source: "N2=balance,O2=<2ppm,Ar=5ppm±1ppm"),
+    ],
+)
+"#;
+
+/// Its CO2 analysed against three reference mixtures (invented readings).
+const DEMO_VERIFICATION: &str = r#"Verification(
+    format: 1,
+    gas: "CO2",
+    analyser: "NDIR, bench 2",
+    function: "linear",
+    standards: [
+        (name: "RM-A 4471", content: "12.002%±0.004%", response: "1.20020±0.00030"),
+        (name: "RM-B 4472", content: "14.010%±0.004%", response: "1.40095±0.00030"),
+        (name: "RM-C 4473", content: "16.005%±0.005%", response: "1.60054±0.00030"),
+    ],
+    sample: (record: "FC-10-2291-20261202", responses: ["1.46390", "1.46431", "1.46402"]),
+)
+"#;
 
 /// Render one scene at `width`×`height`, on a demo library in `dir`.
 pub fn render(dir: &Path, scene: &dyn Fn(&mut Model, &mut Context), width: u16, height: u16, color: bool) -> Buffer {

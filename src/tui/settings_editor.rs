@@ -9,7 +9,7 @@ use crate::thermo::Model as Eos;
 use crate::units::{PressureUnit, TemperatureUnit};
 
 /// The editable fields, in the order shown.
-pub const FIELDS: [&str; 10] = [
+pub const FIELDS: [&str; 11] = [
     "pressure_unit",
     "temperature_unit",
     "default_model",
@@ -20,6 +20,7 @@ pub const FIELDS: [&str; 10] = [
     "max_service_temperature",
     "condensation_margin",
     "git_commit_on_save",
+    "combine_verification_uncertainty",
 ];
 
 /// What each field is, for the overlay.
@@ -34,6 +35,7 @@ pub fn label(field: &str) -> &'static str {
         "min_storage_temperature" => "lowest storage temperature",
         "max_service_temperature" => "highest service temperature",
         "condensation_margin" => "condensation margin",
+        "combine_verification_uncertainty" => "combine verification u",
         _ => "commit saves to git",
     }
 }
@@ -65,6 +67,7 @@ pub fn value(s: &Settings, field: &str) -> String {
         "min_storage_temperature" => s.min_storage_temperature.clone(),
         "max_service_temperature" => s.max_service_temperature.clone(),
         "condensation_margin" => s.condensation_margin.clone(),
+        "combine_verification_uncertainty" => if s.combine_verification_uncertainty { "yes" } else { "no" }.into(),
         _ => if s.git_commit_on_save { "yes" } else { "no" }.into(),
     }
 }
@@ -96,6 +99,7 @@ pub fn on_enter(model: &mut Model, ctx: &mut Context, selected: usize) {
             }
         }
         "git_commit_on_save" => s.git_commit_on_save = !s.git_commit_on_save,
+        "combine_verification_uncertainty" => s.combine_verification_uncertainty = !s.combine_verification_uncertainty,
         _ => {
             model.overlay = Overlay::Prompt { purpose: Prompt::Setting(selected), input: input(&value(&s, field)) };
             model.status = format!("{}: type the new value; Enter keeps it, Esc cancels", label(field));

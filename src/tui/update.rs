@@ -258,7 +258,7 @@ pub(crate) fn edit(doc: &mut Document, ctx: &Context, change: impl FnOnce(&mut R
     }
 }
 
-fn input_request(key: Key) -> Option<InputRequest> {
+pub(super) fn input_request(key: Key) -> Option<InputRequest> {
     Some(match key {
         Key::Char(c) => InputRequest::InsertChar(c),
         Key::Backspace => InputRequest::DeletePrevChar,
@@ -281,6 +281,13 @@ pub fn update(model: &mut Model, msg: Msg, ctx: &mut Context) {
 }
 
 fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
+    // The verification pane, while open, takes every key.
+    if let Some(pane) = model.verification.as_mut() {
+        if super::verification::on_key(pane, key, ctx) == super::verification::After::Close {
+            model.verification = None;
+        }
+        return;
+    }
     // Overlays take the keys first.
     if !matches!(model.overlay, Overlay::None) {
         on_overlay_key(model, key, ctx);
@@ -418,6 +425,7 @@ fn on_library_key(model: &mut Model, key: Key, ctx: &mut Context) {
             model.status = "settings: Enter changes the chosen one; they are written to settings.ron at once".into();
         }
         Key::Char('n') => model.overlay = Overlay::Prompt { purpose: Prompt::NewRecipe, input: input("") },
+        Key::Char('v') => model.verification = Some(Box::new(super::verification::open(ctx))),
         Key::Char('c') => {
             if let Some(name) = selected_name(model) {
                 let proposal = format!("{name}-copy");

@@ -80,6 +80,10 @@ pub fn view(model: &Model, catalogue: &Catalogue, frame: &mut Frame) {
     }
     status_line(model, &theme, frame, status);
     overlay(model, catalogue, &theme, frame, body);
+    if let Some(pane) = &model.verification {
+        // The pane has its own foot line with its keys, over the status line.
+        super::verification::draw(pane, model.color, frame, body.union(status));
+    }
 }
 
 fn header(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
@@ -106,7 +110,7 @@ fn keys_hint(model: &Model) -> &'static str {
     match (&model.overlay, model.view) {
         (Overlay::None, View::Library) if model.library.filter.is_some() => "? help · Enter open · Esc clear · type to search",
         (Overlay::None, View::Library) => {
-            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · t trash · o settings"
+            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · t trash · o settings · v verify"
         }
         (Overlay::None, View::Editor) if model.doc.as_ref().is_some_and(|d| d.editing.is_some()) => {
             "Enter keep · Esc cancel · type"
@@ -776,6 +780,8 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "t           the trash: bring a deleted recipe back",
             "o           settings: units, default model, resolutions,",
             "            storage temperatures, margin (settings.ron)",
+            "v           verification by analysis (ISO 6143): type the",
+            "            analyser's responses, see the fit and the verdict",
         ],
         View::Editor => vec![
             "↑↓ or j k   move between lines",
