@@ -290,3 +290,19 @@ fn the_laboratory_may_combine_the_verification_uncertainty() {
     let want = (u_grav * u_grav + u_ver * u_ver).sqrt();
     assert!((co2(&combined, "standard_uncertainty") - want).abs() <= 1e-15 * want, "{combined}");
 }
+
+#[test]
+fn a_sample_record_without_the_gas_is_refused_naming_what_it_holds() {
+    let (config, lib) = library_with_verified_record("nogas", "1.46000±0.00030");
+    let file = lib.join("verifications/FC-10-2291-CO2.ron");
+    let text = std::fs::read_to_string(&file).unwrap().replace("gas: \"CO2\"", "gas: \"SO2\"");
+    std::fs::write(&file, text).unwrap();
+    let o = common::run_in(&config, &["verify", "FC-10-2291-CO2"]);
+    assert_eq!(o.status.code(), Some(1), "{}", stdout(&o));
+    let e = stderr(&o);
+    assert!(e.contains("does not contain SO2") && e.contains("CO2"), "{e}");
+    // The certificate names the file that gave no verdict, and still certifies.
+    let o = common::run_in(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains("FC-10-2291-CO2: no verdict"), "{}", stdout(&o));
+}
