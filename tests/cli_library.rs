@@ -107,7 +107,7 @@ fn a_deleted_recipe_comes_back_from_the_trash() {
     run(&config, &["copy", "lpg-in-methane", "flue-gas-span"]);
     let o = run(&config, &["undelete", "flue-gas-span"]);
     assert_eq!(o.status.code(), Some(1));
-    assert!(err(&o).contains("already exists"), "{}", err(&o));
+    assert!(err(&o).contains("exists again") && err(&o).contains("--as flue-gas-span-restored"), "{}", err(&o));
     let o = run(&config, &["undelete", "flue-gas-span", "--as", "flue-gas-span-old"]);
     assert!(o.status.success(), "{}", err(&o));
     let text = std::fs::read_to_string(config.join("library/flue-gas-span-old.ron")).unwrap();

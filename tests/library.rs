@@ -154,7 +154,7 @@ fn copy_rename_delete_import_export() {
     lib.rename("flue-copy", "flue-renamed").unwrap();
     assert!(matches!(lib.open("flue-copy"), Err(LibraryError::NotFound(_))));
     let trashed = lib.delete("flue-renamed", T2).unwrap();
-    assert!(trashed.starts_with(dir.join(".trash")) && trashed.is_file());
+    assert!(trashed.starts_with(dir.join(".trash")) && trashed.join("recipe.ron").is_file());
     let out = dir.join("exported.txt");
     lib.export("nox-span-premix", &out).unwrap();
     assert_eq!(std::fs::read_to_string(&out).unwrap(), demo::find("nox-span-premix").unwrap());

@@ -282,6 +282,10 @@ pub struct UndeleteArgs {
     /// Bring it back under another name (when the old one is taken again).
     #[arg(long = "as", value_name = "NAME")]
     pub to: Option<String>,
+    /// Which deleted recipe of that name: its trash id as `undelete` lists it (default: the
+    /// most recently deleted).
+    #[arg(long, value_name = "ID")]
+    pub deleted: Option<String>,
     #[command(flatten)]
     pub place: Place,
 }
@@ -298,7 +302,7 @@ pub fn undelete(args: &UndeleteArgs) -> Result<(), Failure> {
         }
         return Ok(());
     };
-    let back = lib.undelete(name, args.to.as_deref())?;
+    let back = lib.undelete(name, args.to.as_deref(), args.deleted.as_deref())?;
     outln!("{name} is back in the library as {back}");
     Ok(())
 }

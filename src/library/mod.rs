@@ -25,6 +25,8 @@ pub enum LibraryError {
     NotFound(String),
     #[error("a recipe {0:?} already exists; choose another name")]
     Exists(String),
+    #[error("a recipe {name:?} exists again since it was deleted; bring the deleted one back under another name: {hint}")]
+    NameTaken { name: String, hint: String },
     #[error(
         "{0} changed on disk since it was opened; nothing was written. Reload it, save under \
          another name, or overwrite it explicitly"
@@ -403,6 +405,43 @@ impl Library {
         Lock::take(&dir.join(format!("{key}.lock")))
     }
 
+    /// The lock of a recipe name, shared by every name that reads the same (case and
+    /// invisible characters folded): the look-alike rule is decided under the lock that
+    /// the write holds, so two look-alike imports at once cannot both be created.
+    fn name_lock(&self, name: &str) -> Result<Lock, LibraryError> {
+        self.lock(&format!("name.{}", folded(name)))
+    }
+
+    /// A history folder left without its recipe (deleted before histories moved with
+    /// their recipes, or by hand) is never adopted by a new recipe of the same name: it
+    /// goes to the trash as a history of its own. Called under the name's lock.
+    fn set_aside_orphan_history(&self, name: &str, now: &str) -> Result<(), LibraryError> {
+        let history = self.dir.join(".history").join(name);
+        if !std::fs::symlink_metadata(&history).is_ok_and(|m| m.is_dir()) {
+            return Ok(());
+        }
+        let entry = self.new_trash_entry(name, now)?;
+        std::fs::rename(&history, entry.join("history")).map_err(io(&history))
+    }
+
+    /// A trash folder of its own for a deleted recipe: `.trash/NAME.STAMP`, with `-2`,
+    /// `-3` … where that exists already. Made with create_dir, so two deletes of one name
+    /// within a second (or at once) never share an entry.
+    fn new_trash_entry(&self, name: &str, now: &str) -> Result<PathBuf, LibraryError> {
+        let trash = self.own_dir(&[".trash"])?;
+        let stamp: String = now.chars().filter(|c| c.is_ascii_alphanumeric()).collect();
+        for k in 1..10_000 {
+            let id = if k == 1 { stamp.clone() } else { format!("{stamp}-{k}") };
+            let dir = trash.join(format!("{name}.{id}"));
+            match std::fs::create_dir(&dir) {
+                Ok(()) => return Ok(dir),
+                Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => continue,
+                Err(e) => return Err(LibraryError::Io { path: dir, source: e }),
+            }
+        }
+        Err(LibraryError::Unsafe { path: trash, why: format!("holds 10000 entries of {name} at {now}") })
+    }
+
     /// Refuse a new name that reads the same as an existing recipe: it differs only by
     /// case (two such files cannot live side by side on a case-insensitive volume, nor in
     /// a git repository checked out on one) or by invisible characters.
@@ -457,7 +496,7 @@ impl Library {
         on_conflict: OnConflict,
     ) -> Result<Saved, LibraryError> {
         let path = self.path_of(name)?;
-        let _lock = self.lock(name)?;
+        let _lock = self.name_lock(name)?;
         self.save_locked(name, &path, recipe, opened, note, now, on_conflict)
     }
 
@@ -486,6 +525,8 @@ impl Library {
         };
         if current.is_none() {
             self.check_new_name(name)?;
+            // A new recipe starts a history of its own.
+            self.set_aside_orphan_history(name, now)?;
         }
         let previous_recipe = match (&current, opened) {
             (None, _) => None,
@@ -545,46 +586,56 @@ impl Library {
         self.save_as(to, &opened.recipe, now)
     }
 
-    /// Rename a recipe and its history.
+    /// Rename a recipe and its history. A history left under the new name by a deleted
+    /// recipe is set aside in the trash, never adopted.
     pub fn rename(&self, from: &str, to: &str) -> Result<(), LibraryError> {
         let (src, dst) = (self.path_of(from)?, self.path_of(to)?);
         // Both locks, always in the same order, so two renames cannot wait on each other.
-        let (first, second) = if from <= to { (from, to) } else { (to, from) };
-        let _a = self.lock(first)?;
-        let _b = (first != second).then(|| self.lock(second)).transpose()?;
+        let (a, b) = (folded(from), folded(to));
+        let (first, second) = if a <= b { (from, to) } else { (to, from) };
+        let _a = self.name_lock(first)?;
+        let _b = (folded(first) != folded(second)).then(|| self.name_lock(second)).transpose()?;
         if std::fs::symlink_metadata(&src).map_or(true, |m| !m.is_file()) {
             return Err(LibraryError::NotFound(from.to_string()));
         }
         if std::fs::symlink_metadata(&dst).is_ok() {
             return Err(LibraryError::Exists(to.to_string()));
         }
-        self.check_new_name(to)?;
+        if folded(from) != folded(to) {
+            self.check_new_name(to)?;
+        }
+        let now = clock::now_utc();
+        self.set_aside_orphan_history(to, &now)?;
         std::fs::rename(&src, &dst).map_err(io(&src))?;
         let history = self.own_dir(&[".history"])?;
-        let (h_src, h_dst) = (history.join(from), history.join(to));
-        let src_is_dir = std::fs::symlink_metadata(&h_src).is_ok_and(|m| m.is_dir());
-        if src_is_dir && std::fs::symlink_metadata(&h_dst).is_err() {
-            std::fs::rename(&h_src, &h_dst).map_err(io(&h_src))?;
+        let h_src = history.join(from);
+        if std::fs::symlink_metadata(&h_src).is_ok_and(|m| m.is_dir()) {
+            std::fs::rename(&h_src, history.join(to)).map_err(io(&h_src))?;
         }
         Ok(())
     }
 
-    /// Move a recipe to `.trash/` (recoverable); returns where it went.
+    /// Move a recipe to the trash with its whole history (recoverable); returns its trash
+    /// entry, a folder of its own that no later delete reuses.
     pub fn delete(&self, name: &str, now: &str) -> Result<PathBuf, LibraryError> {
         let src = self.path_of(name)?;
-        let _lock = self.lock(name)?;
+        let _lock = self.name_lock(name)?;
         if std::fs::symlink_metadata(&src).map_or(true, |m| !m.is_file()) {
             return Err(LibraryError::NotFound(name.to_string()));
         }
-        let trash = self.own_dir(&[".trash"])?;
-        let stamp: String = now.chars().filter(|c| c.is_ascii_alphanumeric()).collect();
-        let dst = trash.join(format!("{name}.{stamp}.ron"));
-        std::fs::rename(&src, &dst).map_err(io(&src))?;
-        Ok(dst)
+        let entry = self.new_trash_entry(name, now)?;
+        std::fs::rename(&src, entry.join(TRASHED_RECIPE)).map_err(io(&src))?;
+        let history = self.dir.join(".history").join(name);
+        if std::fs::symlink_metadata(&history).is_ok_and(|m| m.is_dir()) {
+            std::fs::rename(&history, entry.join("history")).map_err(io(&history))?;
+        }
+        Ok(entry)
     }
 
-    /// The deleted recipes in the trash: (name, when it was deleted as stamped, path),
-    /// newest first.
+    /// The deleted recipes in the trash: (name, its trash id: when it was deleted as
+    /// stamped, with `-2` … for more deletes in that second, path), newest first. Entries
+    /// from before histories moved with their recipes (`NAME.STAMP.ron` files) are listed
+    /// too; history folders set aside without a recipe are not.
     pub fn trash(&self) -> Vec<(String, String, PathBuf)> {
         let dir = self.dir.join(".trash");
         if !std::fs::symlink_metadata(&dir).is_ok_and(|m| m.is_dir()) {
@@ -593,42 +644,78 @@ impl Library {
         let mut out: Vec<(String, String, PathBuf)> = std::fs::read_dir(&dir)
             .map(|rd| {
                 rd.flatten()
-                    .filter(|e| e.file_type().is_ok_and(|t| t.is_file()))
                     .filter_map(|e| {
+                        let t = e.file_type().ok()?;
                         let file = e.file_name().to_str()?.to_string();
-                        let (name, stamp) = file.strip_suffix(".ron")?.rsplit_once('.')?;
+                        let entry = if t.is_dir() && e.path().join(TRASHED_RECIPE).is_file() {
+                            file.as_str()
+                        } else if t.is_file() {
+                            file.strip_suffix(".ron")?
+                        } else {
+                            return None;
+                        };
+                        let (name, stamp) = entry.rsplit_once('.')?;
                         Some((name.to_string(), stamp.to_string(), e.path()))
                     })
                     .collect()
             })
             .unwrap_or_default();
-        out.sort_by(|a, b| b.1.cmp(&a.1).then(a.0.cmp(&b.0)));
+        // Newest first: by stamp, then by the number after it.
+        let key = |stamp: &str| {
+            let (time, k) = stamp.split_once('-').unwrap_or((stamp, "1"));
+            (time.to_string(), k.parse::<u32>().unwrap_or(1))
+        };
+        out.sort_by(|a, b| key(&b.1).cmp(&key(&a.1)).then(a.0.cmp(&b.0)));
         out
     }
 
-    /// Bring the most recently deleted recipe `name` back from the trash, as `to` (its own
-    /// name when None). Its history stays with it.
-    pub fn undelete(&self, name: &str, to: Option<&str>) -> Result<String, LibraryError> {
+    /// Bring a deleted recipe `name` back from the trash, as `to` (its own name when
+    /// None), with its history: the entry `which` (its trash id), else the most recently
+    /// deleted. Refused, naming the way out, where the name is taken again.
+    pub fn undelete(&self, name: &str, to: Option<&str>, which: Option<&str>) -> Result<String, LibraryError> {
         let to = to.unwrap_or(name);
         let dst = self.path_of(to)?;
-        let _lock = self.lock(to)?;
+        let _lock = self.name_lock(to)?;
         let trash = self.trash();
-        let Some((_, _, src)) = trash.iter().find(|(n, _, _)| n == name) else {
-            let mut names: Vec<&str> = trash.iter().map(|(n, _, _)| n.as_str()).collect();
+        let of_name: Vec<&(String, String, PathBuf)> = trash.iter().filter(|(n, _, _)| n == name).collect();
+        let chosen = match which {
+            Some(id) => of_name.iter().find(|(_, s, _)| s == id),
+            None => of_name.first(),
+        };
+        let Some((_, _, src)) = chosen else {
+            let mut names: Vec<String> = match which {
+                Some(_) => of_name.iter().map(|(_, s, _)| format!("{name} deleted {s}")).collect(),
+                None => trash.iter().map(|(n, _, _)| n.clone()).collect(),
+            };
             names.dedup();
             return Err(LibraryError::NotFound(if names.is_empty() {
-                format!("{name} in the trash (the trash is empty)")
+                format!("{name} in the trash (the trash has no such entry)")
             } else {
                 format!("{name} in the trash; it holds {}", names.join(", "))
             }));
         };
         if std::fs::symlink_metadata(&dst).is_ok() {
-            return Err(LibraryError::Exists(to.to_string()));
+            let hint = format!("fillwright undelete {name} --as {to}-restored");
+            return Err(LibraryError::NameTaken { name: to.to_string(), hint });
         }
         if to != name {
             self.check_new_name(to)?;
         }
-        std::fs::rename(src, &dst).map_err(io(src))?;
+        if src.is_file() {
+            // An entry from before histories moved with their recipes.
+            std::fs::rename(src, &dst).map_err(io(src))?;
+            return Ok(to.to_string());
+        }
+        let now = clock::now_utc();
+        self.set_aside_orphan_history(to, &now)?;
+        let history = src.join("history");
+        if std::fs::symlink_metadata(&history).is_ok_and(|m| m.is_dir()) {
+            let into = self.own_dir(&[".history"])?.join(to);
+            std::fs::rename(&history, &into).map_err(io(&history))?;
+        }
+        let recipe = src.join(TRASHED_RECIPE);
+        std::fs::rename(&recipe, &dst).map_err(io(&recipe))?;
+        let _ = std::fs::remove_dir(src);
         Ok(to.to_string())
     }
 
@@ -706,13 +793,16 @@ impl Library {
     /// file to the rename: two restores at once become two revisions, one after the other.
     pub fn restore(&self, name: &str, revision: u32, now: &str) -> Result<Saved, LibraryError> {
         let path = self.path_of(name)?;
-        let _lock = self.lock(name)?;
+        let _lock = self.name_lock(name)?;
         let old = self.revision(name, revision)?;
         let opened = self.open(name)?;
         let note = format!("restored revision {revision}");
         self.save_locked(name, &path, &old, Some(&opened), Some(&note), now, OnConflict::Refuse)
     }
 }
+
+/// The recipe's file inside its trash entry.
+const TRASHED_RECIPE: &str = "recipe.ron";
 
 /// Only regular files are read: a FIFO would block the reader, a device never ends.
 fn kind_allowed(meta: &std::fs::Metadata) -> Result<(), String> {

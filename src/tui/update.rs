@@ -790,16 +790,13 @@ fn on_overlay_key(model: &mut Model, key: Key, ctx: &mut Context) {
                 model.overlay = Overlay::Trash { entries, selected };
             }
             Key::Enter | Key::Char('y') => {
-                let Some((name, _)) = entries.get(selected).cloned() else { return };
-                match ctx.library.undelete(&name, None) {
+                let Some((name, deleted)) = entries.get(selected).cloned() else { return };
+                match ctx.library.undelete(&name, None, Some(&deleted)) {
                     Ok(back) => {
                         model.status = format!("{back} is back in the library");
                         refresh(model, ctx);
                     }
-                    Err(e) => {
-                        model.status =
-                            format!("{e} (fillwright undelete {name} --as NEW brings it back under another name)")
-                    }
+                    Err(e) => model.status = e.to_string(),
                 }
             }
             _ => {}
