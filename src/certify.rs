@@ -39,7 +39,7 @@ pub fn looks_like_path(s: &str) -> bool {
 
 /// What the library says of the record's recipe: the check of revision and hash, the
 /// recipe at that revision if it is on file, and the recipe's current revision.
-fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Option<Recipe>, Option<u32>) {
+fn check_recipe(record: &Record, library: Option<&Library>) -> (RecipeCheck, Option<Recipe>, Option<u64>) {
     let Some(lib) = library else {
         let why = "the record is not in a library, so its recipe could not be looked up";
         return (RecipeCheck::NotVerified(why.into()), None, None);

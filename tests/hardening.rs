@@ -80,7 +80,7 @@ fn concurrent_restores_become_consecutive_revisions_and_none_is_lost() {
             let o = finish(child, Duration::from_secs(60));
             assert!(o.status.success(), "{name}: {}", err(&o));
             let text = out(&o);
-            let rev: u32 = text
+            let rev: u64 = text
                 .split("saved revision ")
                 .nth(1)
                 .and_then(|t| t.split(' ').next())
@@ -88,7 +88,7 @@ fn concurrent_restores_become_consecutive_revisions_and_none_is_lost() {
                 .unwrap_or_else(|| panic!("{name}: {text}"));
             assert!(said.insert(rev), "{name}: two restores both said revision {rev}");
         }
-        assert_eq!(said, (8..=13).collect::<BTreeSet<u32>>(), "{name}");
+        assert_eq!(said, (8..=13).collect::<BTreeSet<u64>>(), "{name}");
         // Every revision is kept, in the file or in the history, and the six restores are
         // six different ones.
         let history = lib.history(name).unwrap();

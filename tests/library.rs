@@ -56,7 +56,7 @@ fn a_change_makes_a_new_revision_and_keeps_the_old() {
     // Saving the same content again keeps revision 2.
     let again = lib.save("flue-gas-span", &now.recipe, Some(&now), None, T2, OnConflict::Refuse).unwrap();
     assert_eq!(again, Saved::Unchanged { revision: 2 });
-    let revs: Vec<u32> = lib.history("flue-gas-span").unwrap().iter().map(|r| r.revision).collect();
+    let revs: Vec<u64> = lib.history("flue-gas-span").unwrap().iter().map(|r| r.revision).collect();
     assert_eq!(revs, vec![1, 2]);
     assert_eq!(lib.revision("flue-gas-span", 1).unwrap().components[2].amount, "15%");
     // Restoring revision 1 makes revision 3 with revision 1's content.
@@ -156,7 +156,7 @@ fn copy_rename_delete_import_export() {
     let trashed = lib.delete("flue-renamed", T2).unwrap();
     assert!(trashed.starts_with(dir.join(".trash")) && trashed.join("recipe.ron").is_file());
     let out = dir.join("exported.txt");
-    lib.export("nox-span-premix", &out).unwrap();
+    lib.export("nox-span-premix", &out, false).unwrap();
     assert_eq!(std::fs::read_to_string(&out).unwrap(), demo::find("nox-span-premix").unwrap());
     lib.import(&out, "nox-again", T1).unwrap();
     assert_eq!(
@@ -254,7 +254,7 @@ fn recipe_strategy() -> impl Strategy<Value = Recipe> {
         .prop_map(
             |(stamp, names, components, cyl, fill, temps, model, sources, fill_order, notes, before_fill)| Recipe {
                 format: 1,
-                revision: stamp.0,
+                revision: u64::from(stamp.0),
                 saved: stamp.1,
                 saved_by: None,
                 change_note: stamp.2,

@@ -37,7 +37,7 @@ fn save_notes(lib: &Library, name: &str, notes: &str) {
     }
 }
 
-fn notes_of_history(lib: &Library, name: &str) -> Vec<(u32, String)> {
+fn notes_of_history(lib: &Library, name: &str) -> Vec<(u64, String)> {
     lib.history(name)
         .unwrap()
         .iter()
@@ -79,7 +79,7 @@ fn import_copy_and_rename_onto_a_deleted_name_start_a_history_of_their_own() {
         let args: Vec<String> = match op {
             "import" => {
                 let file = config.join("new.ron");
-                lib.export("lpg-in-methane", &file).unwrap();
+                lib.export("lpg-in-methane", &file, false).unwrap();
                 vec!["import".into(), file.display().to_string(), "--name".into(), name.clone()]
             }
             "copy" => vec!["copy".into(), "lpg-in-methane".into(), name.clone()],
@@ -100,7 +100,7 @@ fn import_copy_and_rename_onto_a_deleted_name_start_a_history_of_their_own() {
         assert!(String::from_utf8_lossy(&o.stderr).contains(&format!("--as {name}-restored")));
         let back = format!("{name}-back");
         assert!(common::run_in(&config, &["undelete", &name, "--as", &back]).status.success());
-        let want: Vec<(u32, String)> = (1..=3).map(|k| (k, format!("old {k}"))).collect();
+        let want: Vec<(u64, String)> = (1..=3).map(|k| (k, format!("old {k}"))).collect();
         assert_eq!(notes_of_history(&lib, &back), want, "{op}");
     }
 }
@@ -235,7 +235,7 @@ fn look_alike_names_imported_at_once_are_never_both_created() {
     let dir = config.join("library");
     let lib = Library::at(&dir).unwrap();
     let file = config.join("x.ron");
-    lib.export("flue-gas-span", &file).unwrap();
+    lib.export("flue-gas-span", &file, false).unwrap();
     let f = file.display().to_string();
     for round in 0..8 {
         let names = [format!("Span-{round}"), format!("span-{round}"), format!("SPAN-{round}")];

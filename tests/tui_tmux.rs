@@ -241,3 +241,64 @@ fn two_screens_saving_one_recipe_at_once_never_lose_an_edit() {
     assert_eq!(v["revisions"].as_array().unwrap().len(), 1 + kept.len());
     t.run(&["kill-server"]);
 }
+
+#[test]
+fn a_value_being_typed_is_in_the_draft_when_the_session_drops() {
+    let config = fresh_config("typing");
+    let t = Tmux::new("typing");
+    t.start(&config, "edit flue-gas-span");
+    t.wait_for("flue-gas-span rev 1");
+    // The CO2 amount, typed but not kept with Enter.
+    t.keys(&["Down", "Down", "Down", "Down", "Down", "Down", "Down", "Enter", "C-u"]);
+    t.type_text("12.5%");
+    // Written at once, before any signal.
+    let start = Instant::now();
+    let text = loop {
+        let found = std::fs::read_dir(config.join("drafts"))
+            .into_iter()
+            .flatten()
+            .flatten()
+            .map(|e| e.path())
+            .find(|p| p.file_name().and_then(|n| n.to_str()).is_some_and(|n| n.starts_with("flue-gas-span.")));
+        if let Some(text) = found.and_then(|p| std::fs::read_to_string(p).ok()).filter(|t| t.contains("12.5%")) {
+            break text;
+        }
+        assert!(start.elapsed() < Duration::from_secs(10), "the value being typed is in no draft:\n{}", t.screen());
+        std::thread::sleep(Duration::from_millis(100));
+    };
+    assert!(text.contains("amount: \\\"12.5%\\\""), "{text}");
+    t.kill_session();
+    // The next start offers it.
+    t.start(&config, "");
+    t.wait_for("Recover unsaved edits?");
+    t.keys(&["Enter"]);
+    let s = t.wait_for("recovered the unsaved edits");
+    assert!(s.contains("12.5%"), "{s}");
+    t.keys(&["q", "y"]);
+    t.wait_exit();
+    // Quitting on purpose leaves no draft behind.
+    let left: Vec<_> = std::fs::read_dir(config.join("drafts")).unwrap().flatten().collect();
+    assert!(left.iter().all(|e| !e.file_name().to_string_lossy().contains(".ron.") ), "{left:?}");
+}
+
+#[test]
+fn a_draft_folder_that_is_a_link_is_refused_and_said_at_once() {
+    let config = fresh_config("draft-link");
+    std::fs::create_dir_all(&config).unwrap();
+    let outside = config.with_extension("outside");
+    let _ = std::fs::remove_dir_all(&outside);
+    std::fs::create_dir_all(&outside).unwrap();
+    std::os::unix::fs::symlink(&outside, config.join("drafts")).unwrap();
+    let t = Tmux::new("draft-link");
+    t.start(&config, "edit flue-gas-span");
+    t.wait_for("flue-gas-span rev 1");
+    t.keys(&["Down", "Down", "Down", "Down", "Down", "Down", "Down", "Enter", "C-u"]);
+    t.type_text("13%");
+    t.keys(&["Enter"]);
+    let s = t.wait_for("DRAFT NOT WRITTEN");
+    assert!(s.contains("drafts is a sym"), "{s}");
+    t.kill_session();
+    std::thread::sleep(Duration::from_millis(300));
+    assert_eq!(std::fs::read_dir(&outside).unwrap().count(), 0, "a draft went through the link");
+    let _ = std::fs::remove_dir_all(&outside);
+}

@@ -86,10 +86,10 @@ pub struct HistoryArgs {
     pub name: String,
     /// Show what changed from revision A to revision B.
     #[arg(long, num_args = 2, value_names = ["A", "B"])]
-    pub diff: Option<Vec<u32>>,
+    pub diff: Option<Vec<u64>>,
     /// Make revision REV the newest revision again.
     #[arg(long, value_name = "REV", conflicts_with = "diff")]
-    pub restore: Option<u32>,
+    pub restore: Option<u64>,
     #[command(flatten)]
     pub place: Place,
     /// Output format: text or json.
@@ -232,15 +232,20 @@ pub fn import(args: &ImportArgs) -> Result<(), Failure> {
 pub struct ExportArgs {
     /// Recipe name in the library.
     pub name: String,
-    /// File to write.
+    /// File to write: a new or regular file is replaced whole; a pipe or a terminal
+    /// (/dev/stdout) is written into; a symbolic link is refused unless --replace-link.
     pub file: PathBuf,
+    /// Replace a symbolic link at FILE with the file (the link's target is left alone).
+    #[arg(long)]
+    pub replace_link: bool,
     #[command(flatten)]
     pub place: Place,
 }
 
 pub fn export(args: &ExportArgs) -> Result<(), Failure> {
-    args.place.open()?.export(&args.name, &args.file)?;
-    outln!("wrote {}", args.file.display());
+    args.place.open()?.export(&args.name, &args.file, args.replace_link)?;
+    // The confirmation goes beside the output, never into it (export x /dev/stdout).
+    eprintln!("fillwright: wrote {}", args.file.display());
     Ok(())
 }
 

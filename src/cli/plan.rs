@@ -44,9 +44,13 @@ pub struct PlanArgs {
     /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else the config folder's library/).
     #[arg(long, value_name = "DIR")]
     pub library: Option<std::path::PathBuf>,
-    /// Also write the fill sheet as a printable PDF (A4) to FILE.
+    /// Also write the fill sheet as a printable PDF (A4) to FILE (a pipe is written into;
+    /// a symbolic link is refused unless --replace-link).
     #[arg(long, value_name = "FILE")]
     pub pdf: Option<std::path::PathBuf>,
+    /// Replace a symbolic link at the --pdf path with the file.
+    #[arg(long, requires = "pdf")]
+    pub replace_link: bool,
     #[command(flatten)]
     pub common: Common,
 }
@@ -121,7 +125,8 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         text.push_str(&fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown));
         if let Some(path) = &args.pdf {
             let bytes = crate::certificate::pdf::render(&text, &format!("Fill sheet {}", order.name));
-            crate::library::atomic::write(path, &bytes).map_err(|e| Refused(format!("{}: {e}", path.display())))?;
+            crate::library::atomic::write_output(path, &bytes, args.replace_link)
+                .map_err(|e| Refused(format!("{}: {e}", path.display())))?;
         }
         if args.common.format == Format::Text {
             out!("{text}");

@@ -23,9 +23,13 @@ pub struct CertifyArgs {
     /// Output format: text or json.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
-    /// Also write the certificate as a PDF to this file.
+    /// Also write the certificate as a PDF to this file (a pipe is written into; a
+    /// symbolic link is refused unless --replace-link).
     #[arg(long, value_name = "FILE")]
     pub pdf: Option<PathBuf>,
+    /// Replace a symbolic link at the --pdf path with the file.
+    #[arg(long, requires = "pdf")]
+    pub replace_link: bool,
     /// Monte Carlo draws (JCGM 101), 1000 to 10000000; at least 100000 for a certificate.
     #[arg(long, default_value_t = record::DEFAULT_DRAWS as u64,
           value_parser = clap::value_parser!(u64).range(1_000..=10_000_000))]
@@ -80,7 +84,8 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     let text = cert.text();
     if let Some(pdf) = &args.pdf {
         let bytes = certificate::pdf::render(&text, &format!("Certificate of preparation {}", found.id));
-        crate::library::atomic::write(pdf, &bytes).map_err(|e| Refused(format!("{}: {e}", pdf.display())))?;
+        crate::library::atomic::write_output(pdf, &bytes, args.replace_link)
+            .map_err(|e| Refused(format!("{}: {e}", pdf.display())))?;
     }
     match args.format {
         Format::Json => print_json(&cert.json()),
@@ -107,7 +112,7 @@ pub struct RecordsArgs {
 }
 
 /// One line of the records list: (id, recipe, revision, cylinder, started, state).
-fn summary(id: &str, r: &Record) -> (String, String, u32, String, String, String) {
+fn summary(id: &str, r: &Record) -> (String, String, u64, String, String, String) {
     let state = match &r.finished {
         Some(_) => format!("finished, {} additions", r.additions.len()),
         None => format!("in progress, {} weighings", r.weighings.len()),

@@ -15,6 +15,47 @@ pub fn write(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
     write_with(path, bytes, || Ok(()))
 }
 
+/// Write an output the user named (an export, a PDF): a regular file or a new one is
+/// replaced atomically; a FIFO, a character device or a socket (`/dev/stdout`, a pipe) is
+/// written into, never renamed over; a symbolic link to anything else is refused unless
+/// `replace_link` (then the link itself is replaced by a regular file); a directory or a
+/// block device is refused.
+pub fn write_output(path: &Path, bytes: &[u8], replace_link: bool) -> std::io::Result<()> {
+    use std::os::unix::fs::FileTypeExt;
+    let refuse = |why: &str| Err(std::io::Error::new(std::io::ErrorKind::InvalidInput, why.to_string()));
+    let own = match std::fs::symlink_metadata(path) {
+        Ok(m) => m,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return write(path, bytes),
+        Err(e) => return Err(e),
+    };
+    // What the name leads to, following links.
+    let target = std::fs::metadata(path).ok().map(|m| m.file_type());
+    let stream = target.is_some_and(|t| t.is_fifo() || t.is_char_device() || t.is_socket());
+    if stream {
+        let mut f = std::fs::OpenOptions::new().write(true).open(path)?;
+        f.write_all(bytes)?;
+        return f.flush();
+    }
+    let t = own.file_type();
+    if t.is_symlink() {
+        if !replace_link {
+            let to = std::fs::read_link(path).map(|p| p.display().to_string()).unwrap_or_default();
+            return refuse(&format!(
+                "is a symbolic link (to {to}); not replaced. Give the target's own path, or --replace-link to \
+                 replace the link with a file"
+            ));
+        }
+        return write(path, bytes);
+    }
+    if t.is_dir() {
+        return refuse("is a folder; give a file name");
+    }
+    if t.is_block_device() {
+        return refuse("is a block device; not written");
+    }
+    write(path, bytes)
+}
+
 /// As [`write`], calling `before_rename` after the temporary file is complete and before
 /// it replaces the target; an error from it abandons the write (used by the tests to
 /// simulate a crash at the worst moment).

@@ -37,7 +37,7 @@ pub enum LibraryError {
     #[error("{0}")]
     Recipe(#[from] crate::recipe::RecipeError),
     #[error("no revision {revision} of {name:?}; it has revisions {have}")]
-    NoRevision { name: String, revision: u32, have: String },
+    NoRevision { name: String, revision: u64, have: String },
     #[error("{path}: {source}")]
     Io { path: PathBuf, source: std::io::Error },
     #[error("{path}: {why}")]
@@ -161,7 +161,7 @@ pub struct Summary {
     pub fill: String,
     /// Water capacity and working pressure, e.g. `10L, 200bar`.
     pub cylinder: String,
-    pub revision: u32,
+    pub revision: u64,
     /// What a search looks in besides the name and title: the order reference, the
     /// cylinder serial and the gases, lower case.
     pub search_text: String,
@@ -198,7 +198,7 @@ impl Summary {
 /// One stored revision.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Revision {
-    pub revision: u32,
+    pub revision: u64,
     pub saved: Option<String>,
     /// Who saved it, where recorded.
     pub saved_by: Option<String>,
@@ -210,9 +210,9 @@ pub struct Revision {
 #[derive(Debug, Clone, PartialEq)]
 pub enum Saved {
     /// Nothing changed; the file was left alone.
-    Unchanged { revision: u32 },
+    Unchanged { revision: u64 },
     /// A new revision was written.
-    Written { revision: u32, changes: Vec<String>, git: Option<Result<(), String>> },
+    Written { revision: u64, changes: Vec<String>, git: Option<Result<(), String>> },
 }
 
 /// How a save treats a file that changed on disk since it was opened.
@@ -558,8 +558,12 @@ impl Library {
             atomic::write(&kept, text.as_bytes()).map_err(io(&kept))?;
         }
         let note = note.map(str::trim).filter(|n| !n.is_empty());
+        let next = base_revision.checked_add(1).ok_or_else(|| LibraryError::Unsafe {
+            path: path.to_path_buf(),
+            why: format!("is at revision {base_revision}, the last one that can be numbered; copy it under a new name"),
+        })?;
         let new = Recipe {
-            revision: base_revision + 1,
+            revision: next,
             saved: Some(now.to_string()),
             saved_by: Some(self.user.clone().unwrap_or_else(|| who_saves(&self.dir))),
             change_note: note.map(str::to_string).or_else(|| Some(change_list.join("; "))),
@@ -727,9 +731,9 @@ impl Library {
     }
 
     /// Write a recipe to a file outside the library (canonical form).
-    pub fn export(&self, name: &str, file: &Path) -> Result<(), LibraryError> {
+    pub fn export(&self, name: &str, file: &Path, replace_link: bool) -> Result<(), LibraryError> {
         let opened = self.open(name)?;
-        atomic::write(file, canonical::to_text(&opened.recipe).as_bytes()).map_err(io(file))
+        atomic::write_output(file, canonical::to_text(&opened.recipe).as_bytes(), replace_link).map_err(io(file))
     }
 
     /// Every revision, oldest first, the current file last.
@@ -776,7 +780,7 @@ impl Library {
     }
 
     /// One revision's recipe.
-    pub fn revision(&self, name: &str, revision: u32) -> Result<Recipe, LibraryError> {
+    pub fn revision(&self, name: &str, revision: u64) -> Result<Recipe, LibraryError> {
         let all = self.history(name)?;
         let Some(r) = all.iter().find(|r| r.revision == revision) else {
             return Err(LibraryError::NoRevision {
@@ -791,7 +795,7 @@ impl Library {
 
     /// Make an old revision the newest one. The lock is held from reading the current
     /// file to the rename: two restores at once become two revisions, one after the other.
-    pub fn restore(&self, name: &str, revision: u32, now: &str) -> Result<Saved, LibraryError> {
+    pub fn restore(&self, name: &str, revision: u64, now: &str) -> Result<Saved, LibraryError> {
         let path = self.path_of(name)?;
         let _lock = self.name_lock(name)?;
         let old = self.revision(name, revision)?;

@@ -123,8 +123,12 @@ impl Library {
         let history = self.own_dir(&["records", ".history", &opened.id])?;
         let kept = history.join(format!("{:04}.ron", opened.record.revision));
         atomic::write(&kept, current.as_bytes()).map_err(io(&kept))?;
+        let next = opened.record.revision.checked_add(1).ok_or_else(|| LibraryError::Unsafe {
+            path: path.clone(),
+            why: "is at the last revision that can be numbered".into(),
+        })?;
         let new = Record {
-            revision: opened.record.revision + 1,
+            revision: next,
             saved: Some(now.to_string()),
             change_note: Some(note.to_string()),
             ..record.clone()
@@ -175,9 +179,9 @@ impl Library {
     }
 
     /// The revisions of a record kept in its history, oldest first: (revision, note, path).
-    pub fn record_history(&self, id: &str) -> Vec<(u32, Option<String>, PathBuf)> {
+    pub fn record_history(&self, id: &str) -> Vec<(u64, Option<String>, PathBuf)> {
         let dir = self.records_dir().join(".history").join(id);
-        let mut out: Vec<(u32, Option<String>, PathBuf)> = std::fs::read_dir(dir)
+        let mut out: Vec<(u64, Option<String>, PathBuf)> = std::fs::read_dir(dir)
             .map(|rd| {
                 rd.flatten()
                     .filter_map(|e| {
@@ -194,7 +198,7 @@ impl Library {
     }
 
     /// The canonical text of a recipe at one revision, for the record's hash.
-    pub fn recipe_text_at(&self, name: &str, revision: u32) -> Result<String, LibraryError> {
+    pub fn recipe_text_at(&self, name: &str, revision: u64) -> Result<String, LibraryError> {
         let r = self.revision(name, revision)?;
         Ok(canonical::to_text(&r))
     }

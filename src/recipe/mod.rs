@@ -145,7 +145,7 @@ pub struct Recipe {
     pub format: u32,
     /// Revision in the library: 0 for a recipe never saved there, then +1 per changed save.
     #[serde(default)]
-    pub revision: u32,
+    pub revision: u64,
     /// When this revision was saved (UTC, RFC 3339).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub saved: Option<String>,

@@ -55,7 +55,7 @@ pub struct Record {
     pub format: u32,
     /// Revision of this record: 0 never saved, then +1 per save (a correction is a revision).
     #[serde(default)]
-    pub revision: u32,
+    pub revision: u64,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub saved: Option<String>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -64,7 +64,7 @@ pub struct Record {
     pub recipe: String,
     /// Its revision when the fill started.
     #[serde(default)]
-    pub recipe_revision: u32,
+    pub recipe_revision: u64,
     /// SHA-256 of that revision's canonical text, hex.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub recipe_sha256: Option<String>,
@@ -185,7 +185,7 @@ pub const DEFAULT_TEMPERATURE_U_K: f64 = 0.5;
 
 impl Record {
     /// A new record for `recipe` at `revision`, its canonical text hashed.
-    pub fn start(recipe: &str, revision: u32, canonical_text: &str, cylinder: &str, now: &str) -> Record {
+    pub fn start(recipe: &str, revision: u64, canonical_text: &str, cylinder: &str, now: &str) -> Record {
         Record {
             format: FORMAT,
             revision: 0,

@@ -60,6 +60,25 @@ pub fn path_for(drafts: &Path, file: &Path, name: &str, session: &str) -> PathBu
     drafts.join(format!("{name}.{hash}.{session}.ron"))
 }
 
+/// Write a draft: its folder must be a real folder (created when missing), never a
+/// symbolic link, the same rule as the library's own folders; the file is replaced
+/// atomically. The error says what was refused or failed, for the screen to show at once.
+pub fn write(path: &Path, text: &str) -> Result<(), String> {
+    let dir = path.parent().ok_or("a draft needs a folder")?;
+    match std::fs::symlink_metadata(dir) {
+        Ok(m) if m.file_type().is_symlink() => {
+            return Err(format!(
+                "{} is a symbolic link; drafts are not written through links (replace it with a folder)",
+                dir.display()
+            ))
+        }
+        Ok(m) if !m.is_dir() => return Err(format!("{} is in the way: it should be a folder", dir.display())),
+        Ok(_) => {}
+        Err(_) => std::fs::create_dir_all(dir).map_err(|e| format!("{}: {e}", dir.display()))?,
+    }
+    crate::library::atomic::write(path, text.as_bytes()).map_err(|e| format!("{}: {e}", path.display()))
+}
+
 /// The text of a draft of `recipe` for the file `file`.
 pub fn text_for(file: &Path, name: &str, recipe: &Recipe, written: &str) -> String {
     let draft = DraftFile {

@@ -38,17 +38,43 @@ static SCREEN: Mutex<()> = Mutex::new(());
 fn write_pending_draft() {
     if let Ok(guard) = PENDING_DRAFT.lock() {
         if let Some((path, text)) = guard.as_ref() {
-            if let Some(dir) = path.parent() {
-                let _ = std::fs::create_dir_all(dir);
-            }
-            let _ = crate::library::atomic::write(path, text.as_bytes());
+            let _ = drafts::write(path, text);
         }
     }
 }
 
-/// Keep the pending draft in step with the model after every update.
-fn remember_draft(model: &Model, ctx: &Context) {
-    let pending = model.doc.as_ref().filter(|doc| doc.dirty()).and_then(|doc| ctx.draft_of(&doc.name, &doc.recipe));
+/// Keep the draft in step with the model after every update: the recipe with unsaved
+/// edits, and the value being typed, is written at once (and again on a signal or a lost
+/// terminal); a draft that cannot be written is said on the status line at once. The
+/// draft goes when the edits are saved or undone. `written` is the draft on disk.
+fn remember_draft(model: &mut Model, ctx: &Context, written: &mut Option<(PathBuf, String)>) {
+    let pending = model
+        .doc
+        .as_ref()
+        .map(|doc| (doc, update::recipe_as_typed(doc)))
+        .filter(|(doc, typed)| !crate::recipe::changes::same_content(typed, &doc.saved))
+        .and_then(|(doc, typed)| ctx.draft_of(&doc.name, &typed));
+    let same = |a: &Option<(PathBuf, String)>, b: &Option<(PathBuf, String)>| {
+        // The stamp inside changes every second; the recipe is what matters.
+        a.as_ref().map(|(p, t)| (p, t.lines().filter(|l| !l.contains("written")).collect::<String>()))
+            == b.as_ref().map(|(p, t)| (p, t.lines().filter(|l| !l.contains("written")).collect::<String>()))
+    };
+    if !same(&pending, written) {
+        if let Some((old, _)) = written.as_ref().filter(|(old, _)| pending.as_ref().is_none_or(|(p, _)| p != old)) {
+            let _ = std::fs::remove_file(old);
+        }
+        match &pending {
+            Some((path, text)) => match drafts::write(path, text) {
+                Ok(()) => *written = pending.clone(),
+                // Tried again after every key, and said again, until it can be written.
+                Err(e) => {
+                    model.status = format!("DRAFT NOT WRITTEN: {e}. Save (s) to keep the edits");
+                    *written = None;
+                }
+            },
+            None => *written = None,
+        }
+    }
     if let Ok(mut guard) = PENDING_DRAFT.lock() {
         *guard = pending;
     }
@@ -147,6 +173,7 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
         restore_terminal();
         restore_hook(info);
     }));
+    let mut draft_on_disk: Option<(PathBuf, String)> = None;
     let result = (|| -> Result<(), String> {
         loop {
             {
@@ -161,9 +188,16 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
                 };
                 if let Some(msg) = msg {
                     update::update(&mut model, msg, &mut ctx);
-                    remember_draft(&model, &ctx);
+                    remember_draft(&mut model, &ctx, &mut draft_on_disk);
                 }
                 if model.quit {
+                    // Quitting was asked for (with unsaved edits confirmed away): no draft.
+                    if let Some((path, _)) = draft_on_disk.take() {
+                        let _ = std::fs::remove_file(path);
+                    }
+                    if let Ok(mut guard) = PENDING_DRAFT.lock() {
+                        *guard = None;
+                    }
                     return Ok(());
                 }
             }

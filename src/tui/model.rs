@@ -81,7 +81,7 @@ pub enum Overlay {
         revisions: Vec<Revision>,
         selected: usize,
         changes: Vec<String>,
-        base: Option<u32>,
+        base: Option<u64>,
     },
     /// The premix cascades the plan proposes, and the one shown.
     Premixes {

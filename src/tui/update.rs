@@ -76,12 +76,9 @@ impl Context {
     }
 
     /// Write this session's draft of a recipe with unsaved edits.
-    pub fn write_draft(&self, name: &str, recipe: &Recipe) -> std::io::Result<()> {
+    pub fn write_draft(&self, name: &str, recipe: &Recipe) -> Result<(), String> {
         let Some((path, text)) = self.draft_of(name, recipe) else { return Ok(()) };
-        if let Some(dir) = path.parent() {
-            std::fs::create_dir_all(dir)?;
-        }
-        crate::library::atomic::write(&path, text.as_bytes())
+        super::drafts::write(&path, &text)
     }
 
     /// Remove this session's draft of `name`, and the draft its edits were recovered from.
@@ -100,6 +97,16 @@ impl Context {
     pub fn draft_names(&self) -> Vec<String> {
         self.drafts().into_iter().map(|d| d.name).collect()
     }
+}
+
+/// The recipe as the screen holds it, with the line being typed taken as typed (for the
+/// draft: a value not yet kept with Enter is not lost when the session drops).
+pub fn recipe_as_typed(doc: &Document) -> Recipe {
+    let mut r = doc.recipe.clone();
+    if let Some(input) = &doc.editing {
+        set_field(&mut r, doc.current_field(), input.value());
+    }
+    r
 }
 
 /// Read the library into the model and offer any drafts. An empty library gets the demo
@@ -653,7 +660,7 @@ pub fn field_text(r: &Recipe, f: Field) -> String {
     }
 }
 
-fn set_field(r: &mut Recipe, f: Field, text: &str) {
+pub(crate) fn set_field(r: &mut Recipe, f: Field, text: &str) {
     let t = text.trim().to_string();
     let opt = |t: &str| (!t.is_empty()).then(|| t.to_string());
     match f {
