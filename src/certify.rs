@@ -90,8 +90,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     let (recipe_check, recipe, current_revision) = check_recipe(record, library);
     let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
     let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));
-    let settings = config::load_settings()
-        .unwrap_or_else(|_| crate::settings::Settings::default().resolve("", "").expect("defaults resolve"));
+    let settings = config::load_settings().unwrap_or_else(|_| config::default_settings());
     let gases: Vec<usize> = checked.additions.iter().flat_map(|a| a.source.composition().gases).collect();
     let model = model
         .or(record.model)

@@ -10,7 +10,8 @@ const MAX_CATALOGUE_BYTES: u64 = 4 * 1024 * 1024;
 /// The configuration folder: `$FILLWRIGHT_CONFIG`, else the platform's config directory
 /// for the program (on Linux `$XDG_CONFIG_HOME/fillwright`, else `~/.config/fillwright`).
 pub fn config_dir() -> Option<PathBuf> {
-    if let Some(dir) = std::env::var_os("FILLWRIGHT_CONFIG") {
+    // Set but empty is taken as unset, never as the current folder.
+    if let Some(dir) = std::env::var_os("FILLWRIGHT_CONFIG").filter(|d| !d.is_empty()) {
         return Some(PathBuf::from(dir));
     }
     directories::ProjectDirs::from("", "", "fillwright").map(|d| d.config_dir().to_path_buf())
@@ -41,13 +42,34 @@ pub fn load_catalogue() -> Result<Catalogue, String> {
 /// The recipe library folder: `--library`, else `$FILLWRIGHT_LIBRARY`, else `library/` in
 /// the config folder.
 pub fn library_dir(flag: Option<&Path>) -> Option<PathBuf> {
-    if let Some(dir) = flag {
+    explicit_library(flag).or_else(|| config_dir().map(|d| d.join("library")))
+}
+
+/// The library folder named by `--library` or `$FILLWRIGHT_LIBRARY` (set and not empty).
+fn explicit_library(flag: Option<&Path>) -> Option<PathBuf> {
+    if let Some(dir) = flag.filter(|d| !d.as_os_str().is_empty()) {
         return Some(dir.to_path_buf());
     }
-    if let Some(dir) = std::env::var_os("FILLWRIGHT_LIBRARY") {
-        return Some(PathBuf::from(dir));
+    std::env::var_os("FILLWRIGHT_LIBRARY").filter(|d| !d.is_empty()).map(PathBuf::from)
+}
+
+/// The library folder to open: as [`library_dir`], but a folder named explicitly must
+/// exist (a typo must not create a library and fill it with the demos) unless `create`;
+/// the default one in the config folder is made on first use.
+pub fn library_to_open(flag: Option<&Path>, create: bool) -> Result<PathBuf, String> {
+    if let Some(dir) = explicit_library(flag) {
+        if !create && !dir.is_dir() {
+            return Err(format!(
+                "the library folder {} does not exist; check the name, or add --create-library to start a new \
+                 library there",
+                dir.display()
+            ));
+        }
+        return Ok(dir);
     }
-    config_dir().map(|d| d.join("library"))
+    config_dir()
+        .map(|d| d.join("library"))
+        .ok_or_else(|| "no config folder could be found; give --library DIR".to_string())
 }
 
 /// The text of a recipe given as a file path, a library name or a demo recipe name,
@@ -85,6 +107,21 @@ fn read_limited(path: &Path) -> Result<String, String> {
 
 /// Largest settings file read, bytes.
 const MAX_SETTINGS_BYTES: u64 = 256 * 1024;
+
+/// The settings for a command that only reads or writes the library: a settings file
+/// that cannot be used is reported (on standard error) and the defaults are used, so the
+/// library still opens.
+pub fn settings_or_defaults() -> crate::settings::Resolved {
+    load_settings().unwrap_or_else(|e| {
+        eprintln!("fillwright: {e}; the default settings are used");
+        default_settings()
+    })
+}
+
+/// The shipped default settings.
+pub fn default_settings() -> crate::settings::Resolved {
+    crate::settings::Settings::default().resolve("", "defaults").expect("the shipped defaults resolve")
+}
 
 /// The settings from `settings.ron` in the config folder, or the defaults when there is none.
 pub fn load_settings() -> Result<crate::settings::Resolved, String> {

@@ -77,6 +77,8 @@ pub enum MixError {
     Empty,
     #[error("component {0:?} has no amount; write it as GAS=AMOUNT (ppb, ppm, %, a fraction, or balance)")]
     MissingAmount(String),
+    #[error("component {0} of {1:?} is empty (two commas, or a comma at an end); write GAS=AMOUNT between commas")]
+    EmptyComponent(usize, String),
     #[error("{0}")]
     UnknownGas(#[from] UnknownGas),
     #[error("amount {text:?} of {gas}: {problem}; accepted: a number with ppb, ppm or %, a bare mole fraction like 0.025, or balance")]
@@ -104,12 +106,22 @@ pub struct Part {
     pub share: Share,
 }
 
-/// Parse a mixture spec. Components keep the order written.
-pub fn parse_spec(spec: &str, catalogue: &Catalogue) -> Result<Vec<Part>, MixError> {
-    let items: Vec<&str> = spec.split(',').map(str::trim).filter(|s| !s.is_empty()).collect();
-    if items.is_empty() {
+/// The comma-separated components of a spec, trimmed; an empty one (`N2=balance,`) is
+/// refused, never skipped.
+pub fn components(spec: &str) -> Result<Vec<&str>, MixError> {
+    if spec.trim().is_empty() {
         return Err(MixError::Empty);
     }
+    let items: Vec<&str> = spec.split(',').map(str::trim).collect();
+    if let Some(k) = items.iter().position(|s| s.is_empty()) {
+        return Err(MixError::EmptyComponent(k + 1, spec.to_string()));
+    }
+    Ok(items)
+}
+
+/// Parse a mixture spec. Components keep the order written.
+pub fn parse_spec(spec: &str, catalogue: &Catalogue) -> Result<Vec<Part>, MixError> {
+    let items = components(spec)?;
     if items.len() == 1 && !items[0].contains('=') {
         let gas = catalogue.find(items[0])?;
         return Ok(vec![Part { gas, share: Share::Balance }]);

@@ -17,15 +17,79 @@ pub fn plain_ron_message(message: &str) -> String {
 }
 
 /// Line and column (1-based) of the first occurrence of `needle` in `text`, or 1:1, to place
-/// a problem found after parsing (a value that parsed but is not acceptable).
+/// a problem found after parsing (a value that parsed but is not acceptable). A field name
+/// is found where it is written as a field, never inside a quoted string or a comment; a
+/// needle that is itself quoted (`"15%"`) is found where that string starts.
 pub fn locate(text: &str, needle: &str) -> (usize, usize) {
-    match text.find(needle) {
-        Some(pos) => {
-            let before = &text[..pos];
-            (before.matches('\n').count() + 1, pos - before.rfind('\n').map_or(0, |nl| nl + 1) + 1)
+    let position = |pos: usize| {
+        let before = &text[..pos];
+        (
+            before.matches('\n').count() + 1,
+            before.chars().count() - before.rfind('\n').map_or(0, |nl| before[..=nl].chars().count()) + 1,
+        )
+    };
+    let mut in_string = false;
+    let mut escaped = false;
+    let mut in_comment = false;
+    for (pos, c) in text.char_indices() {
+        if in_comment {
+            in_comment = c != '\n';
+            continue;
         }
-        None => (1, 1),
+        if in_string {
+            match (escaped, c) {
+                (true, _) => escaped = false,
+                (false, '\\') => escaped = true,
+                (false, '"') => in_string = false,
+                _ => {}
+            }
+            continue;
+        }
+        if text[pos..].starts_with(needle) {
+            return position(pos);
+        }
+        match c {
+            '"' => in_string = true,
+            '/' if text[pos..].starts_with("//") => in_comment = true,
+            _ => {}
+        }
     }
+    (1, 1)
+}
+
+/// Where a RON parser stopped, and what to say: a NUL byte (the file is damaged), a file
+/// cut short (the parser ran out of text), a file that is not a `head` at all (`Recipe(`),
+/// or the parser's own words without the program's type names.
+pub fn parse_problem(text: &str, e: &ron::error::SpannedError, what: &str, head: &str) -> (usize, usize, String) {
+    if let Some(pos) = text.find('\0') {
+        let (line, column) = locate(text, "\0");
+        let _ = pos;
+        return (line, column, format!("a NUL byte: a {what} file is text, and this one looks damaged"));
+    }
+    let (line, column) = (e.position.line, e.position.col);
+    let offset: usize = text.split_inclusive('\n').take(line.saturating_sub(1)).map(str::len).sum::<usize>()
+        + text
+            .split_inclusive('\n')
+            .nth(line.saturating_sub(1))
+            .map_or(0, |l| l.char_indices().nth(column.saturating_sub(1)).map_or(l.len(), |(i, _)| i));
+    let runs_out = matches!(e.code, ron::Error::Eof | ron::Error::ExpectedStringEnd);
+    let at_end = runs_out || offset >= text.trim_end().len();
+    let is_head = text.trim_start().starts_with(head);
+    let message = match &e.code {
+        _ if at_end && is_head => {
+            format!("the file ends before the {what} is complete (cut short?): a `{head}` is not closed")
+        }
+        ron::Error::ExpectedDifferentStructName { .. } | ron::Error::ExpectedNamedStructLike(_) if !is_head => {
+            format!("this is not a {what}: a {what} file begins with `{head}`")
+        }
+        code => shorten(&plain_ron_message(&code.to_string())),
+    };
+    (line, column, message)
+}
+
+/// A file's text without a UTF-8 byte-order mark (some editors write one).
+pub fn without_bom(text: &str) -> &str {
+    text.strip_prefix('\u{feff}').unwrap_or(text)
 }
 
 /// `text` cut to `width` characters, an ellipsis marking the cut.

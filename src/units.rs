@@ -271,6 +271,17 @@ pub fn parse_amount(text: &str) -> Result<AmountInput, QuantityError> {
     Ok(amount)
 }
 
+/// A signed number with `decimals` decimals, never "-0.00": a value that rounds to zero
+/// is shown as +0.00.
+pub fn signed(v: f64, decimals: usize) -> String {
+    let shown = format!("{v:+.decimals$}");
+    if shown.starts_with('-') && shown[1..].chars().all(|c| c == '0' || c == '.') {
+        format!("{:+.decimals$}", 0.0)
+    } else {
+        shown
+    }
+}
+
 /// Pressure in bar from Pa.
 pub fn bar(pa: f64) -> f64 {
     pa / PA_PER_BAR
@@ -470,6 +481,15 @@ mod tests {
             assert_ne!(parse_pressure(typed, amb).ok(), Some(0.0));
         }
         assert_eq!(parse_pressure("0.1GPa", amb).unwrap(), 1.0e8);
+    }
+
+    #[test]
+    fn signed_numbers_have_no_negative_zero() {
+        assert_eq!(signed(-0.0001, 3), "+0.000");
+        assert_eq!(signed(-0.0, 2), "+0.00");
+        assert_eq!(signed(-0.006, 2), "-0.01");
+        assert_eq!(signed(0.004, 2), "+0.00");
+        assert_eq!(signed(1.5, 1), "+1.5");
     }
 
     #[test]

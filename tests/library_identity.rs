@@ -38,11 +38,7 @@ fn save_notes(lib: &Library, name: &str, notes: &str) {
 }
 
 fn notes_of_history(lib: &Library, name: &str) -> Vec<(u64, String)> {
-    lib.history(name)
-        .unwrap()
-        .iter()
-        .map(|r| (r.revision, lib.revision(name, r.revision).unwrap().notes))
-        .collect()
+    lib.history(name).unwrap().iter().map(|r| (r.revision, lib.revision(name, r.revision).unwrap().notes)).collect()
 }
 
 #[test]
@@ -217,7 +213,9 @@ fn a_storm_of_mixed_processes_on_one_name_loses_no_revision_and_repeats_no_numbe
                 stack.push(p);
                 continue;
             }
-            let under_history = p.parent().and_then(|h| h.parent()).is_some_and(|g| g.ends_with(".history") || g.file_name().is_some_and(|n| n.to_string_lossy().contains('.')));
+            let under_history = p.parent().and_then(|h| h.parent()).is_some_and(|g| {
+                g.ends_with(".history") || g.file_name().is_some_and(|n| n.to_string_lossy().contains('.'))
+            });
             let stem = p.file_stem().unwrap().to_string_lossy().to_string();
             if under_history && stem.chars().all(|c| c.is_ascii_digit()) {
                 let text = std::fs::read_to_string(&p).unwrap();
@@ -239,10 +237,8 @@ fn look_alike_names_imported_at_once_are_never_both_created() {
     let f = file.display().to_string();
     for round in 0..8 {
         let names = [format!("Span-{round}"), format!("span-{round}"), format!("SPAN-{round}")];
-        let children: Vec<Child> = names
-            .iter()
-            .map(|n| spawn(&config, &["import".into(), f.clone(), "--name".into(), n.clone()]))
-            .collect();
+        let children: Vec<Child> =
+            names.iter().map(|n| spawn(&config, &["import".into(), f.clone(), "--name".into(), n.clone()])).collect();
         let ok = children.into_iter().map(finish).filter(|o| o.status.success()).count();
         assert_eq!(ok, 1, "round {round}");
         let made = std::fs::read_dir(&dir)

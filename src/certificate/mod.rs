@@ -244,7 +244,7 @@ impl Certificate<'_> {
                     match t.tolerance {
                         Some(tol) if (x - t.fraction).abs() <= tol => "within tolerance".to_string(),
                         Some(_) => "OUTSIDE tolerance".to_string(),
-                        None => format!("{:+.3} % rel", (x / t.fraction - 1.0) * 100.0),
+                        None => format!("{} % rel", crate::units::signed((x / t.fraction - 1.0) * 100.0, 3)),
                     },
                 ),
                 None if self.targets.is_empty() => ("–".into(), "–".into()),

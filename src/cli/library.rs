@@ -14,17 +14,20 @@ use crate::recipe::{canonical, changes, Recipe};
 /// Where the library is.
 #[derive(Debug, Clone, Args)]
 pub struct Place {
-    /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else library/ in the config folder).
+    /// Recipe library folder (default: $FILLWRIGHT_LIBRARY, else library/ in the config
+    /// folder). A folder named here must exist, unless --create-library.
     #[arg(long, value_name = "DIR")]
     pub library: Option<PathBuf>,
+    /// Start a new library in the --library folder when it does not exist yet.
+    #[arg(long)]
+    pub create_library: bool,
 }
 
 impl Place {
     pub fn open(&self) -> Result<Library, Refused> {
-        let dir = config::library_dir(self.library.as_deref())
-            .ok_or_else(|| Refused("no config folder could be found; give --library DIR".into()))?;
+        let dir = config::library_to_open(self.library.as_deref(), self.create_library).map_err(Refused)?;
         let mut lib = Library::at(&dir)?;
-        lib.git_commit = config::load_settings().map_err(Refused)?.git_commit_on_save;
+        lib.git_commit = config::settings_or_defaults().git_commit_on_save;
         Ok(lib)
     }
 }
@@ -309,5 +312,20 @@ pub fn undelete(args: &UndeleteArgs) -> Result<(), Failure> {
     };
     let back = lib.undelete(name, args.to.as_deref(), args.deleted.as_deref())?;
     outln!("{name} is back in the library as {back}");
+    Ok(())
+}
+
+#[derive(Debug, Args)]
+pub struct SyncArgs {
+    #[command(flatten)]
+    pub place: Place,
+}
+
+/// Bring in the other benches' saves and send this bench's (the library is a git clone of
+/// the lab's shared repository).
+pub fn sync(args: &SyncArgs) -> Result<(), Failure> {
+    let lib = args.place.open()?;
+    let done = lib.sync().map_err(|e| Refused(e.to_string()))?;
+    outln!("{}", crate::library::sync::summary(&done));
     Ok(())
 }

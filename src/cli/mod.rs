@@ -48,10 +48,14 @@ use crate::units::{self, STANDARD_AMBIENT_PA};
 struct Cli {
     #[command(subcommand)]
     command: Option<Command>,
-    /// Recipe library folder for the screen (default: $FILLWRIGHT_LIBRARY, else library/ in
-    /// the config folder).
+    /// Recipe library folder, for the screen and for the command that follows (default:
+    /// $FILLWRIGHT_LIBRARY, else library/ in the config folder). It must exist, unless
+    /// --create-library.
     #[arg(long, value_name = "DIR")]
     library: Option<std::path::PathBuf>,
+    /// Start a new library in the --library folder when it does not exist yet.
+    #[arg(long)]
+    create_library: bool,
 }
 
 #[derive(Debug, Subcommand)]
@@ -95,6 +99,10 @@ enum Command {
     /// mixtures, give the sample's analysed content and whether it is consistent with the
     /// prepared one. Exit status 3 when it is not.
     Verify(verify::VerifyArgs),
+    /// Share the library between benches: bring in the other benches' saves from the git
+    /// remote and send this bench's. A recipe saved on two benches keeps both as
+    /// consecutive revisions; no file is left with conflict markers.
+    Sync(library::SyncArgs),
     /// Print the shell completion script (bash, zsh, fish, elvish or powershell).
     Completions(CompletionsArgs),
     /// Print the manual page (roff, for man).
@@ -201,9 +209,16 @@ pub fn main() -> ExitCode {
             return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
         }
     };
+    // A --library before the command holds for the command too (as the environment would).
+    if let Some(dir) = cli.library.as_ref().filter(|_| cli.command.is_some()) {
+        if cli.create_library {
+            let _ = std::fs::create_dir_all(dir);
+        }
+        std::env::set_var("FILLWRIGHT_LIBRARY", dir);
+    }
     let result = match cli.command {
-        None => config::library_dir(cli.library.as_deref())
-            .ok_or_else(|| Refused("no config folder could be found; give --library DIR".into()).into())
+        None => config::library_to_open(cli.library.as_deref(), cli.create_library)
+            .map_err(|e| Refused(e).into())
             .and_then(|dir| crate::tui::run(&dir, None, true).map_err(|e| Refused(e).into())),
         Some(Command::Edit(args)) => crate::tui::place_of(&args.recipe, args.library.as_deref())
             .map_err(|e| Refused(e).into())
@@ -224,6 +239,7 @@ pub fn main() -> ExitCode {
         Some(Command::Certify(args)) => record::certify(&args),
         Some(Command::Records(args)) => record::records(&args),
         Some(Command::Verify(args)) => verify::verify(&args),
+        Some(Command::Sync(args)) => library::sync(&args),
         // Generated from the command definitions, so they never drift from them.
         Some(Command::Completions(args)) => {
             let mut script = Vec::new();

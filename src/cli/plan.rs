@@ -680,7 +680,7 @@ pub fn fill_sheet(
                 // Rounding noise of an exact match reads as 0.00, not -0.00.
                 let e = r.relative_error_percent[i];
                 let e = if e.abs() < 0.005 { 0.0 } else { e };
-                row.push_str(&format!("{:>8}{mark}", format!("{e:+.2}")));
+                row.push_str(&format!("{:>8}{mark}", crate::units::signed(e, 2)));
             }
             line(row);
         }

@@ -328,7 +328,7 @@ fn print_text(
                 )
                 .to_string(),
                 format!("{:.5}", o.z),
-                format!("{:+.3}", percent(o.value(unknown), s.value(unknown)))
+                crate::units::signed(percent(o.value(unknown), s.value(unknown)), 3)
             ),
             Err(e) => outln!("  {:<22} {}", m.title(), short_reason(e)),
         }

@@ -13,9 +13,10 @@ pub fn is_work_tree(dir: &Path) -> bool {
         .is_ok_and(|o| o.status.success() && o.stdout.starts_with(b"true"))
 }
 
-/// Add and commit one file with `message`. Errors are returned as text for the status
-/// line; the save itself has already happened.
-pub fn commit(dir: &Path, file: &Path, message: &str) -> Result<(), String> {
+/// Add and commit the files of one save (the recipe and its history folder) with
+/// `message`. Errors are returned as text for the status line; the save itself has
+/// already happened.
+pub fn commit(dir: &Path, files: &[&Path], message: &str) -> Result<(), String> {
     if !is_work_tree(dir) {
         return Err(format!("{} is not a git work tree; nothing committed", dir.display()));
     }
@@ -27,6 +28,12 @@ pub fn commit(dir: &Path, file: &Path, message: &str) -> Result<(), String> {
             Err(format!("git: {}", String::from_utf8_lossy(&out.stderr).trim()))
         }
     };
-    run(&["add".as_ref(), "--".as_ref(), file.as_os_str()])?;
-    run(&["commit".as_ref(), "-q".as_ref(), "-m".as_ref(), message.as_ref(), "--".as_ref(), file.as_os_str()])
+    let files: Vec<&std::ffi::OsStr> = files.iter().filter(|f| f.exists()).map(|f| f.as_os_str()).collect();
+    let mut add: Vec<&std::ffi::OsStr> = vec!["add".as_ref(), "--all".as_ref(), "--".as_ref()];
+    add.extend(&files);
+    run(&add)?;
+    let mut commit: Vec<&std::ffi::OsStr> =
+        vec!["commit".as_ref(), "-q".as_ref(), "-m".as_ref(), message.as_ref(), "--".as_ref()];
+    commit.extend(&files);
+    run(&commit)
 }

@@ -10,6 +10,7 @@ pub mod atomic;
 pub mod clock;
 pub mod git;
 pub mod records;
+pub mod sync;
 pub mod verifications;
 
 use std::path::{Path, PathBuf};
@@ -25,7 +26,9 @@ pub enum LibraryError {
     NotFound(String),
     #[error("a recipe {0:?} already exists; choose another name")]
     Exists(String),
-    #[error("a recipe {name:?} exists again since it was deleted; bring the deleted one back under another name: {hint}")]
+    #[error(
+        "a recipe {name:?} exists again since it was deleted; bring the deleted one back under another name: {hint}"
+    )]
     NameTaken { name: String, hint: String },
     #[error(
         "{0} changed on disk since it was opened; nothing was written. Reload it, save under \
@@ -402,7 +405,17 @@ impl Library {
     /// screen or command, happens one at a time.
     pub(crate) fn lock(&self, key: &str) -> Result<Lock, LibraryError> {
         let dir = self.own_dir(&[".locks"])?;
-        Lock::take(&dir.join(format!("{key}.lock")))
+        // Shared with every other writer, exclusive against a sync moving the work tree.
+        let library = Lock::take(&dir.join("library.lock"), libc::LOCK_SH)?;
+        let mut lock = Lock::take(&dir.join(format!("{key}.lock")), libc::LOCK_EX)?;
+        lock.also.push(library);
+        Ok(lock)
+    }
+
+    /// The whole library, for a sync: every writer waits until it is released.
+    pub(crate) fn lock_library_exclusive(&self) -> Result<Lock, LibraryError> {
+        let dir = self.own_dir(&[".locks"])?;
+        Lock::take(&dir.join("library.lock"), libc::LOCK_EX)
     }
 
     /// The lock of a recipe name, shared by every name that reads the same (case and
@@ -573,7 +586,8 @@ impl Library {
         atomic::write(path, text.as_bytes()).map_err(io(path))?;
         let git = self.git_commit.then(|| {
             let message = format!("{name} rev {}: {}", new.revision, new.change_note.clone().unwrap_or_default());
-            git::commit(&self.dir, path, &message)
+            let history = self.dir.join(".history").join(name);
+            git::commit(&self.dir, &[path, &history], &message)
         });
         Ok(Saved::Written { revision: new.revision, changes: change_list, git })
     }
@@ -605,9 +619,7 @@ impl Library {
         if std::fs::symlink_metadata(&dst).is_ok() {
             return Err(LibraryError::Exists(to.to_string()));
         }
-        if folded(from) != folded(to) {
-            self.check_new_name(to)?;
-        }
+        self.check_new_name(to)?;
         let now = clock::now_utc();
         self.set_aside_orphan_history(to, &now)?;
         std::fs::rename(&src, &dst).map_err(io(&src))?;
@@ -862,10 +874,12 @@ pub fn read_regular(path: &Path, limit: usize) -> Result<String, LibraryError> {
 #[derive(Debug)]
 pub struct Lock {
     _file: std::fs::File,
+    /// Locks held with this one (the library's shared lock), released with it.
+    also: Vec<Lock>,
 }
 
 impl Lock {
-    fn take(path: &Path) -> Result<Lock, LibraryError> {
+    fn take(path: &Path, mode: libc::c_int) -> Result<Lock, LibraryError> {
         use std::os::fd::AsRawFd;
         use std::os::unix::fs::OpenOptionsExt;
         let file = std::fs::OpenOptions::new()
@@ -879,8 +893,8 @@ impl Lock {
             .map_err(io(path))?;
         loop {
             // SAFETY: flock on a descriptor we own; it only takes or waits for the lock.
-            if unsafe { libc::flock(file.as_raw_fd(), libc::LOCK_EX) } == 0 {
-                return Ok(Lock { _file: file });
+            if unsafe { libc::flock(file.as_raw_fd(), mode) } == 0 {
+                return Ok(Lock { _file: file, also: Vec::new() });
             }
             let e = std::io::Error::last_os_error();
             if e.kind() != std::io::ErrorKind::Interrupted {

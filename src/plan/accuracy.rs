@@ -66,7 +66,9 @@ pub fn markdown_table(catalogue: &Catalogue) -> String {
         s.push_str(&format!("| {} | {} |", r.recipe, r.truth.key()));
         for m in Model::ALL {
             match r.worst.iter().find(|w| w.0 == m) {
-                Some((_, id, e)) if e.abs() >= 0.005 => s.push_str(&format!(" {e:+.2} % {id} |")),
+                Some((_, id, e)) if e.abs() >= 0.005 => {
+                    s.push_str(&format!(" {} % {id} |", crate::units::signed(*e, 2)))
+                }
                 Some(_) => s.push_str(" 0 |"),
                 None => s.push_str(" – |"),
             }

@@ -93,15 +93,18 @@ fn format_unreachable(rows: &[Unreachable]) -> String {
     rows.iter()
         .map(|r| {
             format!(
-                "  {}: target {} mol/mol, closest possible {} mol/mol ({:+.4} % relative)",
+                "  {}: target {} mol/mol, closest possible {} mol/mol ({} % relative)",
                 r.id,
                 r.target_fraction,
                 r.closest_fraction,
-                if r.target_fraction > 0.0 {
-                    (r.closest_fraction / r.target_fraction - 1.0) * 100.0
-                } else {
-                    f64::INFINITY
-                }
+                crate::units::signed(
+                    if r.target_fraction > 0.0 {
+                        (r.closest_fraction / r.target_fraction - 1.0) * 100.0
+                    } else {
+                        f64::INFINITY
+                    },
+                    4
+                )
             )
         })
         .collect::<Vec<_>>()

@@ -291,17 +291,10 @@ impl Recipe {
                 ),
             });
         }
-        let recipe: Recipe = crate::ron_format::options().from_str(text).map_err(|e| RecipeError {
-            origin: origin.into(),
-            line: e.position.line,
-            column: e.position.col,
-            message: match e.code {
-                // The file is not a recipe at all: say so without quoting what it holds.
-                ron::Error::ExpectedDifferentStructName { .. } | ron::Error::ExpectedNamedStructLike(_) => {
-                    "this is not a recipe: a recipe file begins with `Recipe(`".to_string()
-                }
-                code => crate::ron_format::shorten(&crate::ron_format::plain_ron_message(&code.to_string())),
-            },
+        let text = crate::ron_format::without_bom(text);
+        let recipe: Recipe = crate::ron_format::options().from_str(text).map_err(|e| {
+            let (line, column, message) = crate::ron_format::parse_problem(text, &e, "recipe", "Recipe(");
+            RecipeError { origin: origin.into(), line, column, message }
         })?;
         if recipe.format != FORMAT {
             return Err(place(

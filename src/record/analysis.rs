@@ -58,10 +58,7 @@ impl Analysis {
     /// Parse `CO=1%±0.002%,N2=balance,O2=<2ppm`; a single gas alone (`N2`) is that pure gas
     /// with no impurity known.
     pub fn parse(spec: &str, catalogue: &Catalogue) -> Result<Analysis, MixError> {
-        let items: Vec<&str> = spec.split(',').map(str::trim).filter(|s| !s.is_empty()).collect();
-        if items.is_empty() {
-            return Err(MixError::Empty);
-        }
+        let items = mixture::components(spec)?;
         if items.len() == 1 && !items[0].contains('=') {
             let gas = catalogue.find(items[0])?;
             return Ok(Analysis { lines: vec![Line { gas, assay: Assay::Balance }] });

@@ -213,11 +213,10 @@ impl Record {
 
     /// Parse a record file's text; `origin` names it in messages.
     pub fn parse(text: &str, origin: &str) -> Result<Record, RecordError> {
-        let record: Record = crate::ron_format::options().from_str(text).map_err(|e| RecordError {
-            origin: origin.into(),
-            line: e.position.line,
-            column: e.position.col,
-            message: crate::ron_format::plain_ron_message(&e.code.to_string()),
+        let text = crate::ron_format::without_bom(text);
+        let record: Record = crate::ron_format::options().from_str(text).map_err(|e| {
+            let (line, column, message) = crate::ron_format::parse_problem(text, &e, "record", "Record(");
+            RecordError { origin: origin.into(), line, column, message }
         })?;
         if record.format != FORMAT {
             let (line, column) = crate::ron_format::locate(text, "format");

@@ -121,7 +121,7 @@ pub fn markdown_table(catalogue: &Catalogue) -> String {
             s.push_str(&format!("| {label} | {} | {p} |", reference.key()));
             for m in &columns {
                 match devs.iter().find(|d| d.gas == label && d.model == *m && d.pressure_bar == p) {
-                    Some(d) => s.push_str(&format!(" {:+.2} % |", d.percent)),
+                    Some(d) => s.push_str(&format!(" {} % |", crate::units::signed(d.percent, 2))),
                     None if *m == reference => s.push_str(" ref |"),
                     None => s.push_str(" – |"),
                 }

@@ -68,7 +68,7 @@ pub fn write(path: &Path, text: &str) -> Result<(), String> {
     match std::fs::symlink_metadata(dir) {
         Ok(m) if m.file_type().is_symlink() => {
             return Err(format!(
-                "{} is a symbolic link; drafts are not written through links (replace it with a folder)",
+                "symbolic link at {}; drafts are not written through links (replace it with a folder)",
                 dir.display()
             ))
         }

@@ -118,7 +118,7 @@ pub fn place_of(target: &str, library: Option<&Path>) -> Result<(PathBuf, String
             path.file_stem().and_then(|s| s.to_str()).ok_or_else(|| format!("{target}: not a recipe file name"))?;
         return Ok((dir, name.to_string(), false));
     }
-    let dir = config::library_dir(library).ok_or("no config folder could be found; give --library DIR")?;
+    let dir = config::library_to_open(library, false)?;
     Ok((dir, target.to_string(), true))
 }
 
@@ -126,7 +126,12 @@ pub fn place_of(target: &str, library: Option<&Path>) -> Result<(PathBuf, String
 /// demo recipes into an empty library (not into the folder of a recipe file).
 pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let catalogue = config::load_catalogue()?;
-    let settings = config::load_settings()?;
+    // A settings file that cannot be used is said on the status line; the screen opens
+    // with the defaults so the library is never out of reach.
+    let (settings, settings_problem) = match config::load_settings() {
+        Ok(s) => (s, None),
+        Err(e) => (config::default_settings(), Some(format!("{e}; the default settings are used"))),
+    };
     let mut library = Library::at(dir).map_err(|e| e.to_string())?;
     library.git_commit = settings.git_commit_on_save;
     let drafts = config::config_dir().map(|d| d.join("drafts"));
@@ -139,6 +144,9 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let mut model = Model::new(dir.display().to_string(), color);
     model.shown = ctx.settings.shown;
     update::start_with(&mut model, &mut ctx, seed);
+    if let Some(problem) = settings_problem {
+        model.status = problem;
+    }
     if let Some(name) = open {
         if matches!(model.overlay, model::Overlay::None) {
             // `edit NAME` of a recipe that does not exist yet starts it.

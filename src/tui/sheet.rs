@@ -203,12 +203,11 @@ pub fn reading_notes(doc: &Document, limits: &BenchLimits, d: &Shown, step: usiz
         }
     }
     let line = format!(
-        "step {}: reached {} {u}, target {} {u}, {:+.*} {u} off",
+        "step {}: reached {} {u}, target {} {u}, {} {u} off",
         step + 1,
         d.pf(*actual),
         d.pf(target),
-        d.pd(),
-        d.p(off),
+        crate::units::signed(d.p(off), d.pd()),
     );
     if far {
         notes.push((

@@ -433,6 +433,14 @@ fn on_library_key(model: &mut Model, key: Key, ctx: &mut Context) {
         }
         Key::Char('n') => model.overlay = Overlay::Prompt { purpose: Prompt::NewRecipe, input: input("") },
         Key::Char('v') => model.verification = Some(Box::new(super::verification::open(ctx))),
+        Key::Char('y') => {
+            let said = match ctx.library.sync() {
+                Ok(done) => crate::library::sync::summary(&done),
+                Err(e) => format!("not synced: {e}"),
+            };
+            refresh(model, ctx);
+            model.status = said;
+        }
         Key::Char('c') => {
             if let Some(name) = selected_name(model) {
                 let proposal = format!("{name}-copy");

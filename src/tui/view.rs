@@ -110,7 +110,7 @@ fn keys_hint(model: &Model) -> &'static str {
     match (&model.overlay, model.view) {
         (Overlay::None, View::Library) if model.library.filter.is_some() => "? help · Enter open · Esc clear · type to search",
         (Overlay::None, View::Library) => {
-            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · t trash · o settings · v verify"
+            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · t trash · o settings · v verify · y sync"
         }
         (Overlay::None, View::Editor) if model.doc.as_ref().is_some_and(|d| d.editing.is_some()) => {
             "Enter keep · Esc cancel · type"
@@ -518,7 +518,7 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
     let mut so_far = String::from("so far vs plan:");
     for (id, now, planned) in &prog.rows {
         if *planned > 0.0 {
-            so_far.push_str(&format!(" {id} {:+.2}%", (now / planned - 1.0) * 100.0));
+            so_far.push_str(&format!(" {id} {}%", crate::units::signed((now / planned - 1.0) * 100.0, 2)));
         }
     }
     lines.push(Line::raw(clip(&so_far, 78)));
@@ -532,8 +532,11 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
             let verdict = if rp.on_target {
                 format!("on target; final {} {} settled", d.pf(rp.final_pressure_pa), d.pu())
             } else {
-                let worst =
-                    rp.deviations.iter().filter(|x| !x.2).map(|x| format!("{} {:+.2}%", prog.rows[x.0].0, x.1 * 100.0));
+                let worst = rp
+                    .deviations
+                    .iter()
+                    .filter(|x| !x.2)
+                    .map(|x| format!("{} {}%", prog.rows[x.0].0, crate::units::signed(x.1 * 100.0, 2)));
                 format!("target can no longer be met: {}", worst.collect::<Vec<_>>().join(", "))
             };
             let style = if rp.on_target { Style::default() } else { theme.fg(Color::Red) };
@@ -596,7 +599,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         amount.push_str(&crate::units::cell(f.amount_mol, 5, 9));
         diff.push_str(&format!(
             "{:>9}",
-            format!("{:+.2}%", ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0))
+            format!("{}%", crate::units::signed(ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0), 2))
         ));
         z.push_str(&format!("{:>9.4}", f.z));
     }
@@ -782,6 +785,7 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "            storage temperatures, margin (settings.ron)",
             "v           verification by analysis (ISO 6143): type the",
             "            analyser's responses, see the fit and the verdict",
+            "y           sync: bring in the other benches' saves, send ours",
         ],
         View::Editor => vec![
             "↑↓ or j k   move between lines",

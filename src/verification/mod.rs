@@ -140,11 +140,10 @@ pub struct Report {
 impl Verification {
     /// Parse a verification file's text.
     pub fn parse(text: &str, origin: &str) -> Result<Verification, VerificationError> {
-        let v: Verification = crate::ron_format::options().from_str(text).map_err(|e| VerificationError {
-            origin: origin.into(),
-            line: e.position.line,
-            column: e.position.col,
-            message: crate::ron_format::plain_ron_message(&e.code.to_string()),
+        let text = crate::ron_format::without_bom(text);
+        let v: Verification = crate::ron_format::options().from_str(text).map_err(|e| {
+            let (line, column, message) = crate::ron_format::parse_problem(text, &e, "verification", "Verification(");
+            VerificationError { origin: origin.into(), line, column, message }
         })?;
         if v.format != FORMAT {
             let (line, column) = crate::ron_format::locate(text, "format");
@@ -201,9 +200,10 @@ impl Verification {
             } else {
                 format!("reference mixture {}", k + 1)
             };
-            let here = |m: String| {
-                err(s.content.as_deref().or(s.record.as_deref()).unwrap_or("standards"), format!("{name}: {m}"))
-            };
+            // Placed at the mixture's content (or record) as written, quoted.
+            let needle =
+                s.content.as_deref().or(s.record.as_deref()).map_or("standards".into(), |t| format!("\"{t}\""));
+            let here = |m: String| err(&needle, format!("{name}: {m}"));
             let content = match (&s.content, &s.record) {
                 (Some(c), None) => content(c).map_err(&here)?,
                 (None, Some(r)) => record_content(r, gas).map_err(&here)?,
@@ -230,9 +230,9 @@ impl Verification {
             repeats.push(n);
         }
         let sample = &self.sample;
-        let here = |m: String| {
-            err(sample.prepared.as_deref().or(sample.record.as_deref()).unwrap_or("sample"), format!("sample: {m}"))
-        };
+        let needle =
+            sample.prepared.as_deref().or(sample.record.as_deref()).map_or("sample".into(), |t| format!("\"{t}\""));
+        let here = |m: String| err(&needle, format!("sample: {m}"));
         let prepared = match (&sample.prepared, &sample.record) {
             (Some(c), None) => content(c).map_err(&here)?,
             (None, Some(r)) => record_content(r, gas).map_err(&here)?,
