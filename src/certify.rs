@@ -77,6 +77,64 @@ pub struct Certified {
     pub remarks: Vec<String>,
     pub verifications: Vec<crate::certificate::Verified>,
     pub combine_verification: bool,
+    /// Why the fill is not finished, if it is not (the certificate is then refused, or
+    /// printed as the composition so far with `--in-progress`).
+    pub unfinished: Option<String>,
+}
+
+/// Why a record is not a finished fill: an addition recorded but not weighed; or, for a
+/// fill started at the bench (`started` set), no finish time or fewer additions than the
+/// recipe's plan (`planned`). A record written by hand (no start time) with every addition
+/// weighed is taken as complete.
+pub fn unfinished(record: &Record, checked: &Checked, planned: Option<usize>) -> Option<String> {
+    let recorded = checked.additions.len();
+    if checked.complete < recorded {
+        return Some(format!("{} of {recorded} additions are weighed or read", checked.complete));
+    }
+    let started = record.started.as_deref()?;
+    if record.finished.is_none() {
+        return Some(format!("the fill started at {started} has no finish time"));
+    }
+    planned
+        .filter(|&n| recorded < n)
+        .map(|n| format!("{recorded} of the {n} additions of the recipe's plan are recorded"))
+}
+
+/// A source whose amounts are nominal is refused: a composition without uncertainty
+/// would be certified as exact (a premix's nominal 0.5 % gave an uncertainty 40 times too
+/// small). Returns the remarks for pure gases with no impurity stated.
+pub fn check_sources(checked: &Checked, catalogue: &Catalogue) -> Result<Vec<String>, String> {
+    use crate::record::analysis::Assay;
+    let mut remarks = Vec::new();
+    for (k, a) in checked.additions.iter().enumerate() {
+        let record::SourceInput::Analysis(analysis) = &a.source else { continue };
+        if let [only] = analysis.lines.as_slice() {
+            if only.assay == Assay::Balance {
+                let id = catalogue.gas(only.gas).id();
+                remarks.push(format!(
+                    "addition {}: source {} ({id}) has no impurity stated; certified as pure {id}",
+                    k + 1,
+                    a.source_name.as_deref().unwrap_or(&a.written)
+                ));
+                continue;
+            }
+        }
+        for line in &analysis.lines {
+            if let Assay::Measured { u, .. } = line.assay {
+                if !(u > 0.0) {
+                    return Err(format!(
+                        "addition {}: source {:?} gives {} with no uncertainty; a nominal composition is not an \
+                         analysis. Write each amount with its standard uncertainty (CO=0.5%±0.002%), or name the \
+                         premix's own record (record:ID)",
+                        k + 1,
+                        a.written,
+                        catalogue.gas(line.gas).id()
+                    ));
+                }
+            }
+        }
+    }
+    Ok(remarks)
 }
 
 /// Check, evaluate and verify a record.
@@ -87,8 +145,12 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     let sources = config::config_dir().map(|d| d.join("sources"));
     let lookup = Lookup { library, sources: sources.as_deref(), catalogue, depth: 0 };
     let checked = record.check(catalogue, &|r| lookup.resolve(r), text, origin).map_err(|e| e.to_string())?;
+    let source_remarks = check_sources(&checked, catalogue).map_err(|e| format!("{origin}: {e}"))?;
     let (recipe_check, recipe, current_revision) = check_recipe(record, library);
     let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
+    let options = crate::plan::PlanOptions { skip_following: true, ..Default::default() };
+    let planned = order.as_ref().and_then(|o| crate::plan::plan(o, catalogue, &options).ok()).map(|p| p.steps.len());
+    let unfinished = unfinished(record, &checked, planned);
     let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));
     let settings = config::load_settings().unwrap_or_else(|_| config::default_settings());
     let gases: Vec<usize> = checked.additions.iter().flat_map(|a| a.source.composition().gases).collect();
@@ -109,7 +171,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
                 .collect()
         })
         .unwrap_or_default();
-    let mut remarks = Vec::new();
+    let mut remarks = source_remarks;
     if let Some(now) = current_revision.filter(|&r| r != record.recipe_revision) {
         let filled = record.recipe_revision;
         remarks.push(format!("the recipe is now at revision {now}; the record was filled to revision {filled}"));
@@ -151,6 +213,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
         remarks,
         verifications: Vec::new(),
         combine_verification: settings.combine_verification_uncertainty,
+        unfinished,
     })
 }
 
@@ -167,6 +230,7 @@ impl Certified {
             remarks: self.remarks.clone(),
             verifications: self.verifications.clone(),
             combine_verification: self.combine_verification,
+            unfinished: self.unfinished.clone(),
         }
     }
 

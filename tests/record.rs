@@ -217,9 +217,39 @@ fn bad_records_are_refused_with_exit_1_and_their_place() {
         let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "1000"]);
         let err = String::from_utf8_lossy(&o.stderr);
         if needle.is_empty() {
-            // A record whose last addition is not weighed yet certifies what is complete.
-            assert!(o.status.success(), "{err}");
-            assert!(out(&o).contains("FILL IN PROGRESS: 2 additions complete (3 recorded)"), "{}", out(&o));
+            // A record whose last addition is not weighed yet is not certified as finished
+            // (exit 1, saying so); --in-progress prints the composition so far, bannered.
+            assert_eq!(o.status.code(), Some(1), "{err}");
+            assert!(err.contains("not finished (2 of 3 additions") && err.contains("--in-progress"), "{err}");
+            let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "1000", "--in-progress"]);
+            assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+            let text = out(&o);
+            assert!(text.starts_with("FILL IN PROGRESS - COMPOSITION SO FAR - NOT A CERTIFICATE"), "{text}");
+            assert!(text.contains("FILL IN PROGRESS: 2 additions complete (3 recorded)"), "{text}");
+            assert!(!text.contains("CERTIFICATE OF PREPARATION"), "{text}");
+            let o =
+                run(&dir, &["certify", file.to_str().unwrap(), "--draws", "1000", "--in-progress", "--format", "json"]);
+            let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+            assert_eq!(v["finished"], false);
+            // The PDF carries the banner on every page.
+            let pdf = dir.join("progress.pdf");
+            let o = run(
+                &dir,
+                &[
+                    "certify",
+                    file.to_str().unwrap(),
+                    "--draws",
+                    "1000",
+                    "--in-progress",
+                    "--pdf",
+                    pdf.to_str().unwrap(),
+                ],
+            );
+            assert!(o.status.success());
+            let pages = common::pdf_text(&pdf);
+            let sheets: Vec<&str> = pages.split('\u{c}').filter(|p| !p.trim().is_empty()).collect();
+            assert!(!sheets.is_empty(), "{pages}");
+            assert!(sheets.iter().all(|p| p.contains("FILL IN PROGRESS - COMPOSITION SO FAR")), "{pages}");
             continue;
         }
         assert_eq!(o.status.code(), Some(1), "{k}: {err}");
@@ -240,7 +270,16 @@ fn the_source_library_supplies_analyses_by_name() {
     let path = lib.join("records/FC-10-2291-20261202.ron");
     let text = std::fs::read_to_string(&path).unwrap().replace("CO2=balance,N2=<10ppm", "@co2-lot-4");
     std::fs::write(&path, text.replace("finished:", "started: \"2026-12-01T08:00:00Z\",\n    finished:")).unwrap();
+    // Started at the bench with 3 of the recipe's 4 additions: refused as unfinished, the
+    // composition so far printed on request.
     let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        String::from_utf8_lossy(&o.stderr).contains("3 of the 4 additions"),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000", "--in-progress"]);
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     assert!(out(&o).contains("the analysis of source co2-lot-4 expired on 2026-01-31"), "{}", out(&o));
 }
@@ -327,4 +366,25 @@ fn a_premix_made_here_brings_its_certified_composition_and_covariance() {
     let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
     assert_eq!(o.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&o.stderr).contains("nest deeper"), "{}", String::from_utf8_lossy(&o.stderr));
+}
+
+#[test]
+fn a_source_without_uncertainty_is_refused_and_a_pure_gas_without_impurities_is_remarked() {
+    let dir = fresh("nominal");
+    let good = std::fs::read_to_string("tests/records/flue-gas-made.ron").unwrap();
+    // The nominal premix composition: CO 1 % with no uncertainty.
+    let nominal = dir.join("nominal.ron");
+    std::fs::write(&nominal, good.replace("CO=1%±0.002%,N2=balance", "CO=1%,N2=balance")).unwrap();
+    let o = run(&dir, &["certify", nominal.to_str().unwrap(), "--draws", "1000"]);
+    assert_eq!(o.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(err.contains("addition 1") && err.contains("CO with no uncertainty") && err.contains("record:ID"), "{err}");
+    // A pure nitrogen with no impurity stated: certified, with a remark.
+    let pure = dir.join("pure.ron");
+    std::fs::write(&pure, good.replace("N2=balance,O2=<2ppm,Ar=5ppm±1ppm", "N2")).unwrap();
+    let o = run(&dir, &["certify", pure.to_str().unwrap(), "--draws", "1000", "--format", "json"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let remarks: Vec<&str> = v["remarks"].as_array().unwrap().iter().map(|r| r.as_str().unwrap()).collect();
+    assert!(remarks.iter().any(|r| r.contains("addition 3") && r.contains("no impurity stated")), "{remarks:?}");
 }

@@ -49,7 +49,13 @@ pub struct Certificate<'a> {
     pub verifications: Vec<Verified>,
     /// Combine a consistent verification's uncertainty with the gravimetric one (a setting).
     pub combine_verification: bool,
+    /// Why the fill is not finished, if it is not: then this is the composition so far,
+    /// never a certificate, bannered on every page.
+    pub unfinished: Option<String>,
 }
+
+/// The banner of every page of the composition of an unfinished fill.
+pub const IN_PROGRESS_BANNER: &str = "FILL IN PROGRESS - COMPOSITION SO FAR - NOT A CERTIFICATE";
 
 /// A verification file of the certified cylinder and what it gave.
 #[derive(Debug, Clone, PartialEq)]
@@ -176,10 +182,9 @@ impl Certificate<'_> {
         o
     }
 
-    /// Additions not weighed yet, or an unfinished record that lacks a target gas.
+    /// The fill is not finished (see [`crate::certify::unfinished`]).
     fn in_progress(&self) -> bool {
-        let missing_target = self.targets.iter().any(|t| !self.evaluation.measurand.gases.contains(&t.gas));
-        self.checked.complete < self.checked.additions.len() || (self.record.finished.is_none() && missing_target)
+        self.unfinished.is_some()
     }
 
     /// The certificate as lines of at most 80 columns.
@@ -187,7 +192,12 @@ impl Certificate<'_> {
         let e = self.evaluation;
         let r = self.record;
         let mut o: Vec<String> = Vec::new();
-        o.push("CERTIFICATE OF PREPARATION  draft for review by the laboratory".into());
+        if let Some(why) = &self.unfinished {
+            o.push(IN_PROGRESS_BANNER.into());
+            o.extend(wrap(&format!("  {why}"), 78, "  "));
+        } else {
+            o.push("CERTIFICATE OF PREPARATION  draft for review by the laboratory".into());
+        }
         let inconsistent = self.inconsistent();
         if !inconsistent.is_empty() {
             o.push("!".repeat(78));
@@ -395,7 +405,9 @@ impl Certificate<'_> {
             "operator": r.operator,
             "balance": r.balance,
             "started": r.started,
-            "finished": r.finished,
+            "finished": self.unfinished.is_none(),
+            "finished_at": r.finished,
+            "unfinished_because": self.unfinished,
             "complete_additions": self.checked.complete,
             "additions": self.checked.additions.len(),
             "method": match self.checked.method { Method::Gravimetric => "gravimetric", Method::Manometric => "manometric" },

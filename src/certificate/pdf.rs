@@ -12,8 +12,13 @@ const LEADING: f32 = 11.5;
 
 /// Lay out `text` (lines of at most 80 columns) on as many pages as it needs.
 pub fn render(text: &str, title: &str) -> Vec<u8> {
+    render_with_banner(text, title, None)
+}
+
+/// As [`render`], with `banner` as the first line of every page (a fill in progress).
+pub fn render_with_banner(text: &str, title: &str, banner: Option<&str>) -> Vec<u8> {
     let lines: Vec<&str> = text.lines().collect();
-    let per_page = ((PAGE_H - 2.0 * MARGIN) / LEADING).floor() as usize;
+    let per_page = ((PAGE_H - 2.0 * MARGIN) / LEADING).floor() as usize - usize::from(banner.is_some()) * 2;
     let pages: Vec<&[&str]> = lines.chunks(per_page.max(1)).collect();
     let mut pdf = Pdf::new();
     let catalog = Ref::new(1);
@@ -38,6 +43,11 @@ pub fn render(text: &str, title: &str) -> Vec<u8> {
         content.set_font(Name(b"F1"), FONT_SIZE);
         content.set_leading(LEADING);
         content.next_line(MARGIN, PAGE_H - MARGIN);
+        if let Some(b) = banner.filter(|_| k > 0) {
+            content.show(Str(&win_ansi(b)));
+            content.next_line_using_leading();
+            content.next_line_using_leading();
+        }
         for line in chunk.iter() {
             content.show(Str(&win_ansi(line)));
             content.next_line_using_leading();

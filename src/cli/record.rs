@@ -40,6 +40,10 @@ pub struct CertifyArgs {
     /// Model for a record of pressure readings (default: the record's, else as for plans).
     #[arg(long, value_enum)]
     pub model: Option<Model>,
+    /// Print the composition so far of a fill that is not finished (bannered on every
+    /// page, never a certificate); without it an unfinished fill is refused.
+    #[arg(long)]
+    pub in_progress: bool,
 }
 
 fn find(args: &CertifyArgs) -> Result<Found, Refused> {
@@ -77,13 +81,23 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     let found = find(args)?;
     let how = Evaluate { model: args.model, draws: args.draws as usize, seed: args.seed };
     let mut c = certify_record(&found, &catalogue, how).map_err(Refused)?;
+    if let (Some(why), false) = (&c.unfinished, args.in_progress) {
+        return Err(Refused(format!(
+            "{}: the fill is not finished ({why}); a certificate is for a finished fill. \
+             `fillwright certify {} --in-progress` prints the composition so far",
+            found.origin, args.record
+        ))
+        .into());
+    }
     if let Some(lib) = &found.library {
         c.attach_verifications(lib, &catalogue);
     }
     let cert = c.certificate(&catalogue);
     let text = cert.text();
     if let Some(pdf) = &args.pdf {
-        let bytes = certificate::pdf::render(&text, &format!("Certificate of preparation {}", found.id));
+        let banner = c.unfinished.is_some().then_some(certificate::IN_PROGRESS_BANNER);
+        let bytes =
+            certificate::pdf::render_with_banner(&text, &format!("Certificate of preparation {}", found.id), banner);
         crate::library::atomic::write_output(pdf, &bytes, args.replace_link)
             .map_err(|e| Refused(format!("{}: {e}", pdf.display())))?;
     }
