@@ -273,80 +273,220 @@ pub const COVERAGE_PROBABILITY: f64 = 0.95;
 /// The Gaussian coverage factor for 95 %.
 pub const K_95: f64 = 1.959_963_984_540_054;
 
+/// Draws per chunk: each chunk has its own ChaCha20 stream of the seed, so the draws are
+/// the same however many threads share the chunks.
+const CHUNK: usize = 4096;
+
+/// Bins of the histogram the coverage interval is read from (see [`monte_carlo`]).
+const BINS: usize = 1 << 16;
+
 /// Draw the inputs `draws` times from their distributions (seeded ChaCha20, so the result
-/// is the same on every machine) and evaluate `f` on each (JCGM 101:2008, 7).
+/// is the same on every machine and with any number of threads) and evaluate `f` on each
+/// (JCGM 101:2008, 7).
+///
+/// Memory does not grow with the number of draws: the draws are made in chunks, on every
+/// core, twice. The first pass gives each output's mean and standard uncertainty (merged in
+/// chunk order, Chan et al.'s pairwise update) and its range; the second, the same draws
+/// again, counts them in 65 536 bins over that range, and the 2.5 % and 97.5 % quantiles
+/// are read from the counts, interpolated within their bin (a resolution of the range over
+/// 65 536, about 1.6e-4 u at 10⁷ normal draws, far inside the 5 % of u of the comparison).
 pub fn monte_carlo(
     inputs: &Inputs,
     draws: usize,
     seed: u64,
-    mut f: impl FnMut(&[f64]) -> Option<Vec<f64>>,
+    f: impl Fn(&[f64]) -> Option<Vec<f64>> + Sync,
 ) -> MonteCarlo {
-    let mut rng = ChaCha20Rng::seed_from_u64(seed);
-    let n = inputs.list.len();
-    let in_block: Vec<bool> = (0..n).map(|j| inputs.blocks.iter().any(|b| b.inputs.contains(&j))).collect();
-    // Each block is drawn as value + Q √Λ z, from the eigen decomposition of its covariance
-    // (which may be singular: a composition sums to one).
-    let factors: Vec<DMatrix<f64>> = inputs
-        .blocks
-        .iter()
-        .map(|b| {
-            let e = SymmetricEigen::new(b.covariance.clone());
-            let root = DMatrix::from_diagonal(&e.eigenvalues.map(|l| l.max(0.0).sqrt()));
-            e.eigenvectors * root
+    use rayon::prelude::*;
+    let sampler = Sampler::new(inputs);
+    let chunks: Vec<usize> = (0..draws.div_ceil(CHUNK)).collect();
+    let size = |c: usize| CHUNK.min(draws - c * CHUNK);
+    // First pass: count, mean, M2, min, max per output, per chunk, merged in order.
+    let stats: Vec<Moments> = chunks
+        .par_iter()
+        .map(|&c| {
+            let mut m = Moments::default();
+            sampler.each(seed, c, size(c), &f, |y| m.add(y));
+            m
         })
         .collect();
-    let mut outputs: Vec<Vec<f64>> = Vec::new();
-    let mut failed = 0;
-    let mut x = inputs.values();
-    for _ in 0..draws {
-        for (j, input) in inputs.list.iter().enumerate() {
-            if in_block[j] {
-                continue;
-            }
-            x[j] = input.value
-                + match input.shape {
-                    Shape::Normal => input.u * rng.sample::<f64, _>(StandardNormal),
-                    Shape::Rectangular => input.u * 3f64.sqrt() * rng.random_range(-1.0..1.0),
-                };
+    let total = stats.into_iter().fold(Moments::default(), Moments::merge);
+    let m = total.mean.len();
+    let count = total.count.max(1) as f64;
+    let u: Vec<f64> = total.m2.iter().map(|m2| (m2 / (count - 1.0).max(1.0)).sqrt()).collect();
+    let failed = draws - total.count;
+    // Second pass: the same draws counted in bins over each output's range.
+    let (lo, hi) = (total.min.clone(), total.max.clone());
+    let bin_of = |i: usize, v: f64| -> usize {
+        let width = hi[i] - lo[i];
+        if !(width > 0.0) {
+            return 0;
         }
-        for (b, l) in inputs.blocks.iter().zip(&factors) {
-            let z = nalgebra::DVector::from_fn(b.inputs.len(), |_, _| StandardNormal.sample(&mut rng));
-            let dx = l * z;
-            for (a, &j) in b.inputs.iter().enumerate() {
-                x[j] = inputs.list[j].value + dx[a];
-            }
-        }
-        match f(&x) {
-            Some(y) if y.iter().all(|v| v.is_finite()) => outputs.push(y),
-            _ => failed += 1,
-        }
-    }
-    let m = outputs.first().map_or(0, Vec::len);
-    let count = outputs.len().max(1) as f64;
-    let mut mean = vec![0.0; m];
-    let mut u = vec![0.0; m];
-    let mut low = vec![f64::NAN; m];
-    let mut high = vec![f64::NAN; m];
-    for i in 0..m {
-        let mut column: Vec<f64> = outputs.iter().map(|y| y[i]).collect();
-        mean[i] = column.iter().sum::<f64>() / count;
-        u[i] = (column.iter().map(|v| (v - mean[i]).powi(2)).sum::<f64>() / (count - 1.0).max(1.0)).sqrt();
-        column.sort_by(f64::total_cmp);
-        let tail = (1.0 - COVERAGE_PROBABILITY) / 2.0;
-        low[i] = quantile(&column, tail);
-        high[i] = quantile(&column, 1.0 - tail);
-    }
-    MonteCarlo { draws, seed, failed, mean, u, low, high }
+        (((v - lo[i]) / width * BINS as f64) as usize).min(BINS - 1)
+    };
+    let counts: Vec<Vec<u64>> = chunks
+        .par_iter()
+        .map(|&c| {
+            let mut h = vec![vec![0u64; BINS]; m];
+            sampler.each(seed, c, size(c), &f, |y| {
+                for (i, v) in y.iter().enumerate() {
+                    h[i][bin_of(i, *v)] += 1;
+                }
+            });
+            h
+        })
+        .reduce(
+            || vec![vec![0u64; BINS]; m],
+            |mut a, b| {
+                for (x, y) in a.iter_mut().zip(&b) {
+                    for (p, q) in x.iter_mut().zip(y) {
+                        *p += q;
+                    }
+                }
+                a
+            },
+        );
+    let tail = (1.0 - COVERAGE_PROBABILITY) / 2.0;
+    let quantile_of = |i: usize, p: f64| histogram_quantile(&counts[i], lo[i], hi[i], total.count, p);
+    let low: Vec<f64> = (0..m).map(|i| quantile_of(i, tail)).collect();
+    let high: Vec<f64> = (0..m).map(|i| quantile_of(i, 1.0 - tail)).collect();
+    MonteCarlo { draws, seed, failed, mean: total.mean, u, low, high }
 }
 
-fn quantile(sorted: &[f64], p: f64) -> f64 {
-    if sorted.is_empty() {
+/// The p-quantile of `n` values counted in equal bins over [lo, hi]: the value of rank
+/// p·(n − 1) (as for sorted values), placed within its bin by linear interpolation.
+fn histogram_quantile(counts: &[u64], lo: f64, hi: f64, n: usize, p: f64) -> f64 {
+    if n == 0 {
         return f64::NAN;
     }
-    let pos = p * (sorted.len() - 1) as f64;
-    let (i, frac) = (pos.floor() as usize, pos - pos.floor());
-    let next = sorted[(i + 1).min(sorted.len() - 1)];
-    sorted[i] + frac * (next - sorted[i])
+    if !(hi > lo) {
+        return lo;
+    }
+    let rank = p * (n - 1) as f64;
+    let width = (hi - lo) / counts.len() as f64;
+    let mut below = 0u64;
+    for (k, &c) in counts.iter().enumerate() {
+        if c > 0 && (below + c) as f64 > rank {
+            let within = (rank - below as f64 + 0.5) / c as f64;
+            return lo + width * (k as f64 + within.clamp(0.0, 1.0));
+        }
+        below += c;
+    }
+    hi
+}
+
+/// Running moments of every output: count, mean, sum of squared deviations, range.
+#[derive(Debug, Clone, Default)]
+struct Moments {
+    count: usize,
+    mean: Vec<f64>,
+    m2: Vec<f64>,
+    min: Vec<f64>,
+    max: Vec<f64>,
+}
+
+impl Moments {
+    /// Welford's update with one draw's outputs.
+    fn add(&mut self, y: &[f64]) {
+        if self.mean.is_empty() {
+            let n = y.len();
+            (self.mean, self.m2) = (vec![0.0; n], vec![0.0; n]);
+            (self.min, self.max) = (vec![f64::INFINITY; n], vec![f64::NEG_INFINITY; n]);
+        }
+        self.count += 1;
+        let n = self.count as f64;
+        for (i, v) in y.iter().enumerate() {
+            let d = v - self.mean[i];
+            self.mean[i] += d / n;
+            self.m2[i] += d * (v - self.mean[i]);
+            self.min[i] = self.min[i].min(*v);
+            self.max[i] = self.max[i].max(*v);
+        }
+    }
+
+    /// Two sets of moments as one (Chan, Golub and LeVeque's pairwise update).
+    fn merge(a: Moments, b: Moments) -> Moments {
+        if a.count == 0 {
+            return b;
+        }
+        if b.count == 0 {
+            return a;
+        }
+        let (na, nb) = (a.count as f64, b.count as f64);
+        let n = na + nb;
+        let mut out = a.clone();
+        out.count = a.count + b.count;
+        for i in 0..a.mean.len() {
+            let d = b.mean[i] - a.mean[i];
+            out.mean[i] = a.mean[i] + d * nb / n;
+            out.m2[i] = a.m2[i] + b.m2[i] + d * d * na * nb / n;
+            out.min[i] = a.min[i].min(b.min[i]);
+            out.max[i] = a.max[i].max(b.max[i]);
+        }
+        out
+    }
+}
+
+/// Draws the inputs: independent ones from their own distribution, correlated blocks as
+/// value + Q √Λ z from the eigen decomposition of their covariance (which may be singular:
+/// a composition sums to one).
+struct Sampler<'a> {
+    inputs: &'a Inputs,
+    in_block: Vec<bool>,
+    factors: Vec<DMatrix<f64>>,
+}
+
+impl<'a> Sampler<'a> {
+    fn new(inputs: &'a Inputs) -> Sampler<'a> {
+        let n = inputs.list.len();
+        let in_block: Vec<bool> = (0..n).map(|j| inputs.blocks.iter().any(|b| b.inputs.contains(&j))).collect();
+        let factors: Vec<DMatrix<f64>> = inputs
+            .blocks
+            .iter()
+            .map(|b| {
+                let e = SymmetricEigen::new(b.covariance.clone());
+                let root = DMatrix::from_diagonal(&e.eigenvalues.map(|l| l.max(0.0).sqrt()));
+                e.eigenvectors * root
+            })
+            .collect();
+        Sampler { inputs, in_block, factors }
+    }
+
+    /// Chunk `chunk`'s `count` draws from stream `chunk` of the seed, each evaluated by
+    /// `f` and handed to `take` when every output is finite.
+    fn each(
+        &self,
+        seed: u64,
+        chunk: usize,
+        count: usize,
+        f: &(impl Fn(&[f64]) -> Option<Vec<f64>> + Sync),
+        mut take: impl FnMut(&[f64]),
+    ) {
+        let mut rng = ChaCha20Rng::seed_from_u64(seed);
+        rng.set_stream(chunk as u64);
+        let mut x = self.inputs.values();
+        for _ in 0..count {
+            for (j, input) in self.inputs.list.iter().enumerate() {
+                if self.in_block[j] {
+                    continue;
+                }
+                x[j] = input.value
+                    + match input.shape {
+                        Shape::Normal => input.u * rng.sample::<f64, _>(StandardNormal),
+                        Shape::Rectangular => input.u * 3f64.sqrt() * rng.random_range(-1.0..1.0),
+                    };
+            }
+            for (b, l) in self.inputs.blocks.iter().zip(&self.factors) {
+                let z = nalgebra::DVector::from_fn(b.inputs.len(), |_, _| StandardNormal.sample(&mut rng));
+                let dx = l * z;
+                for (a, &j) in b.inputs.iter().enumerate() {
+                    x[j] = self.inputs.list[j].value + dx[a];
+                }
+            }
+            if let Some(y) = f(&x).filter(|y| y.iter().all(|v| v.is_finite())) {
+                take(&y);
+            }
+        }
+    }
 }
 
 /// How the GUM and the Monte Carlo results compare for one output.
@@ -431,5 +571,47 @@ mod tests {
         let a = monte_carlo(&inputs, 1000, 42, |x| Some(vec![x[0]]));
         let b = monte_carlo(&inputs, 1000, 42, |x| Some(vec![x[0]]));
         assert_eq!(a, b);
+    }
+
+    #[test]
+    fn one_thread_and_two_give_the_same_figures_for_a_seed() {
+        let mut inputs = Inputs::default();
+        inputs.push("x".into(), 1.0, 0.1, Shape::Normal);
+        inputs.push("y".into(), 2.0, 0.3, Shape::Rectangular);
+        let run = |threads: usize| {
+            let pool = rayon::ThreadPoolBuilder::new().num_threads(threads).build().unwrap();
+            pool.install(|| monte_carlo(&inputs, 50_000, 9, |x| Some(vec![x[0] * x[1], x[0] - x[1]])))
+        };
+        let (one, two) = (run(1), run(2));
+        assert_eq!(one, two);
+        // And the figures are those of the distribution: x·y has mean 2 and u ≈ √(0.2² + 0.3²).
+        assert!((one.mean[0] - 2.0).abs() < 0.01, "{one:?}");
+        assert!((one.u[0] - (0.04f64 + 0.09 + 0.0009).sqrt()).abs() < 0.01, "{one:?}");
+    }
+
+    /// The p-quantile of sorted values at rank p·(n − 1), interpolated.
+    fn quantile(sorted: &[f64], p: f64) -> f64 {
+        let pos = p * (sorted.len() - 1) as f64;
+        let (i, frac) = (pos.floor() as usize, pos - pos.floor());
+        let next = sorted[(i + 1).min(sorted.len() - 1)];
+        sorted[i] + frac * (next - sorted[i])
+    }
+
+    #[test]
+    fn the_interval_from_the_bins_matches_the_sorted_draws() {
+        // 20 001 draws of a normal: the binned 2.5 % and 97.5 % quantiles against those of
+        // the same draws sorted (the rank p·(n − 1) rule), to the bin width.
+        let mut inputs = Inputs::default();
+        inputs.push("x".into(), 5.0, 0.5, Shape::Normal);
+        let mc = monte_carlo(&inputs, 20_001, 3, |x| Some(vec![x[0]]));
+        let sampler = Sampler::new(&inputs);
+        let mut all = Vec::new();
+        for c in 0..20_001usize.div_ceil(CHUNK) {
+            sampler.each(3, c, CHUNK.min(20_001 - c * CHUNK), &|x: &[f64]| Some(vec![x[0]]), |y| all.push(y[0]));
+        }
+        all.sort_by(f64::total_cmp);
+        let width = (all[all.len() - 1] - all[0]) / BINS as f64;
+        assert!((mc.low[0] - quantile(&all, 0.025)).abs() <= width, "{} {}", mc.low[0], quantile(&all, 0.025));
+        assert!((mc.high[0] - quantile(&all, 0.975)).abs() <= width);
     }
 }
