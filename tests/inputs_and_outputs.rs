@@ -45,6 +45,26 @@ fn an_export_into_a_pipe_or_device_writes_into_it_and_a_link_is_refused_unless_a
     let o = common::run_in(&config, &["export", "flue-gas-span", "/dev/stdout"]);
     assert!(o.status.success(), "{}", err(&o));
     assert!(out(&o).starts_with("Recipe(") && !out(&o).contains("wrote"), "{}", out(&o));
+    // /dev/stdout redirected to a file: the recipe lands in that file.
+    let redirected = config.join("redirected.ron");
+    let o = Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(["export", "flue-gas-span", "/dev/stdout"])
+        .env("FILLWRIGHT_CONFIG", &config)
+        .stdout(Stdio::from(std::fs::File::create(&redirected).unwrap()))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", err(&o));
+    assert!(std::fs::read_to_string(&redirected).unwrap().starts_with("Recipe("));
+    // A PDF sent to standard output is the whole output: no text follows it.
+    let o = common::run_in(
+        &config,
+        &["certify", "tests/records/flue-gas-made.ron", "--draws", "1000", "--pdf", "/dev/stdout"],
+    );
+    assert!(o.status.success(), "{}", err(&o));
+    assert!(o.stdout.starts_with(b"%PDF") && o.stdout.trim_ascii_end().ends_with(b"%%EOF"));
+    // --replace-link never replaces a system link.
+    let o = common::run_in(&config, &["export", "flue-gas-span", "/dev/stdout", "--replace-link"]);
+    assert!(o.status.success() || err(&o).contains("never replaced"), "{}", err(&o));
     // A character device (/dev/null) stays a device.
     let o = common::run_in(&config, &["plan", "flue-gas-span", "--pdf", "/dev/null"]);
     assert!(o.status.success(), "{}", err(&o));

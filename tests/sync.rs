@@ -213,3 +213,21 @@ fn a_sync_killed_midway_leaves_the_library_whole_and_the_next_one_completes_it()
         lab.sync_ok("a");
     }
 }
+
+#[test]
+fn a_recipe_deleted_on_one_bench_and_edited_on_the_other_is_kept_edited() {
+    let lab = Lab::new("delete-edit");
+    let lib_a = Library::at(&lab.library("a")).unwrap();
+    lib_a.delete("laser-co2-he-n2", "2026-12-04T09:00:00Z").unwrap();
+    lab.save("b", "laser-co2-he-n2", "edited on B", "bench B", "2026-12-04T09:30:00Z");
+    lab.sync_ok("a");
+    lab.sync_ok("b");
+    lab.sync_ok("a");
+    for bench in ["a", "b"] {
+        let dir = lab.library(bench);
+        no_conflict_markers(&dir);
+        let notes = history_notes(&dir, "laser-co2-he-n2");
+        assert_eq!(notes.iter().map(|n| n.0).collect::<Vec<_>>(), vec![1, 2], "{bench}: {notes:?}");
+        assert_eq!(notes[1].1, "edited on B", "{bench}");
+    }
+}

@@ -1061,7 +1061,7 @@ fn a_verification_is_typed_on_the_screen_written_as_typed_and_judged() {
     keys(&mut model, &mut ctx, &[Key::Char('n')]);
     text(&mut model, &mut ctx, "FC-10-2291-20261202 carbon dioxide");
     keys(&mut model, &mut ctx, &[Key::Enter]);
-    let file = ctx.library.dir().join("verifications/FC-10-2291-CO2.ron");
+    let file = ctx.library.dir().join("verifications/FC-10-2291-20261202-CO2.ron");
     assert!(file.is_file(), "{}", model.verification.as_ref().unwrap().status);
     // Three reference mixtures: Enter on "add" types the content, → the response.
     for (content, response) in [
@@ -1095,7 +1095,7 @@ fn a_verification_is_typed_on_the_screen_written_as_typed_and_judged() {
     // The record's CO2 is about 14.64 %: the analyser's 14.64 % agrees.
     assert!(report.consistent, "{report:?}");
     // Each write kept the text it replaced.
-    let history = ctx.library.dir().join("verifications/.history/FC-10-2291-CO2");
+    let history = ctx.library.dir().join("verifications/.history/FC-10-2291-20261202-CO2");
     assert!(std::fs::read_dir(history).unwrap().count() >= 6);
     // A bad value is written as typed and explained, not lost.
     keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);

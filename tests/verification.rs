@@ -306,3 +306,26 @@ fn a_sample_record_without_the_gas_is_refused_naming_what_it_holds() {
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     assert!(stdout(&o).contains("FC-10-2291-CO2: no verdict"), "{}", stdout(&o));
 }
+
+#[test]
+fn every_verification_of_a_gas_is_judged_whatever_the_file_names() {
+    let (config, lib) = library_with_verified_record("two", "1.46000±0.00030");
+    let x = certified_co2(&config);
+    let dir = lib.join("verifications");
+    let good = std::fs::read_to_string(dir.join("FC-10-2291-CO2.ron"))
+        .unwrap()
+        .replace("1.46000", &format!("{:.5}", 10.0 * x));
+    let bad = good.replace(&format!("{:.5}", 10.0 * x), &format!("{:.5}", 10.02 * x));
+    // The failing rerun sorts after the passing file, and before it: a stop either way.
+    for (first, second) in [("A-pass.ron", "Z-rerun.ron"), ("Z-pass.ron", "A-rerun.ron")] {
+        std::fs::remove_dir_all(&dir).unwrap();
+        std::fs::create_dir_all(&dir).unwrap();
+        std::fs::write(dir.join(first), &good).unwrap();
+        std::fs::write(dir.join(second), &bad).unwrap();
+        let o = common::run_in(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+        assert_eq!(o.status.code(), Some(3), "{first} {second}: {}", stdout(&o));
+        let text = stdout(&o);
+        assert!(text.contains("NOT CONSISTENT") && text.contains("consistent"), "{text}");
+        assert!(!text.contains("the analysis\n  confirms it"), "{text}");
+    }
+}

@@ -119,10 +119,25 @@ impl Certificate<'_> {
         }
     }
 
-    /// The verification report of component i, if one gave a verdict.
-    fn verification_of(&self, i: usize) -> Option<&verification::Report> {
+    /// Every verification of component i that gave a verdict (file name, report): all are
+    /// judged, none is chosen over another.
+    fn verifications_of(&self, i: usize) -> Vec<(&str, &verification::Report)> {
         let gas = self.evaluation.measurand.gases[i];
-        self.verifications.iter().filter_map(|v| v.outcome.as_ref().ok()).find(|r| r.checked.gas == gas)
+        self.verifications
+            .iter()
+            .filter_map(|v| v.outcome.as_ref().ok().map(|r| (v.file.as_str(), r)))
+            .filter(|(_, r)| r.checked.gas == gas)
+            .collect()
+    }
+
+    /// The report of component i that enters its stated uncertainty: where every analysis
+    /// of it is consistent, the one with the largest u (the cautious choice).
+    fn verification_of(&self, i: usize) -> Option<&verification::Report> {
+        let all = self.verifications_of(i);
+        if all.iter().any(|(_, r)| !r.consistent) {
+            return None;
+        }
+        all.into_iter().map(|(_, r)| r).max_by(|a, b| a.analysed.u.total_cmp(&b.analysed.u))
     }
 
     /// The standard uncertainty stated for component i: the gravimetric one, combined with
@@ -130,15 +145,15 @@ impl Certificate<'_> {
     fn u_of(&self, i: usize) -> f64 {
         let u = self.evaluation.gum.u[i];
         match self.verification_of(i) {
-            Some(r) if self.combine_verification && r.consistent => (u * u + r.analysed.u.powi(2)).sqrt(),
+            Some(r) if self.combine_verification => (u * u + r.analysed.u.powi(2)).sqrt(),
             _ => u,
         }
     }
 
-    /// Components whose analysis does not confirm the prepared content.
+    /// Components of which any analysis does not confirm the prepared content.
     fn inconsistent(&self) -> Vec<&str> {
         (0..self.evaluation.gum.values.len())
-            .filter(|&i| self.verification_of(i).is_some_and(|r| !r.consistent))
+            .filter(|&i| self.verifications_of(i).iter().any(|(_, r)| !r.consistent))
             .map(|i| self.id_of(i))
             .collect()
     }
@@ -152,20 +167,26 @@ impl Certificate<'_> {
             format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", "gas", "analysed", "U", "unit", "difference", "verdict"),
         ];
         for i in 0..e.gum.values.len() {
-            let Some(r) = self.verification_of(i) else {
+            let all = self.verifications_of(i);
+            if all.is_empty() {
                 o.push(format!("{:<10} not verified", self.id_of(i)));
                 continue;
-            };
-            let (xs, us, unit) = with_uncertainty(r.analysed.value, COVERAGE_FACTOR * r.analysed.u);
-            let verdict = if r.consistent { "consistent" } else { "NOT CONSISTENT" };
-            o.push(format!(
-                "{:<10} {:>14} {:>12} {:<5} {:>12}  {verdict}",
-                self.id_of(i),
-                xs,
-                us,
-                unit,
-                in_unit(r.difference, unit)
-            ));
+            }
+            for (file, r) in &all {
+                let (xs, us, unit) = with_uncertainty(r.analysed.value, COVERAGE_FACTOR * r.analysed.u);
+                let verdict = if r.consistent { "consistent" } else { "NOT CONSISTENT" };
+                o.push(format!(
+                    "{:<10} {:>14} {:>12} {:<5} {:>12}  {verdict}",
+                    self.id_of(i),
+                    xs,
+                    us,
+                    unit,
+                    in_unit(r.difference, unit)
+                ));
+                if all.len() > 1 {
+                    o.push(format!("{:<10} ({})", "", crate::ron_format::clip(file, 66)));
+                }
+            }
         }
         for v in &self.verifications {
             if let Err(why) = &v.outcome {
@@ -175,9 +196,12 @@ impl Certificate<'_> {
         if self.combine_verification {
             o.push("  U of a verified component combines the gravimetric u and the analysis's".into());
             o.push("  u (laboratory setting); elsewhere U is the gravimetric one.".into());
-        } else {
+        } else if self.inconsistent().is_empty() {
             o.push("  U in COMPOSITION is the gravimetric one (ISO 6142-1); the analysis".into());
             o.push("  confirms it and is not combined with it.".into());
+        } else {
+            o.push("  U in COMPOSITION is the gravimetric one; an analysis above does NOT".into());
+            o.push("  confirm the prepared content: the certificate cannot be issued.".into());
         }
         o
     }
@@ -451,18 +475,26 @@ impl Certificate<'_> {
     fn verification_json(&self) -> Value {
         let e = self.evaluation;
         let components: Vec<Value> = (0..e.gum.values.len())
-            .map(|i| match self.verification_of(i) {
-                Some(r) => json!({
-                    "id": self.id_of(i),
-                    "verified": true,
-                    "analysed": r.analysed.value,
-                    "standard_uncertainty": r.analysed.u,
-                    "difference": r.difference,
-                    "allowed_difference": r.bound,
-                    "consistent": r.consistent,
-                    "goodness_of_fit": r.fit.goodness(),
-                }),
-                None => json!({"id": self.id_of(i), "verified": false}),
+            .flat_map(|i| {
+                let all = self.verifications_of(i);
+                if all.is_empty() {
+                    return vec![json!({"id": self.id_of(i), "verified": false})];
+                }
+                all.into_iter()
+                    .map(|(file, r)| {
+                        json!({
+                            "id": self.id_of(i),
+                            "file": file,
+                            "verified": true,
+                            "analysed": r.analysed.value,
+                            "standard_uncertainty": r.analysed.u,
+                            "difference": r.difference,
+                            "allowed_difference": r.bound,
+                            "consistent": r.consistent,
+                            "goodness_of_fit": r.fit.goodness(),
+                        })
+                    })
+                    .collect()
             })
             .collect();
         json!({

@@ -301,6 +301,9 @@ pub struct UndeleteArgs {
 pub fn undelete(args: &UndeleteArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
     let Some(name) = &args.name else {
+        if args.deleted.is_some() {
+            return Err(Failure::Usage("--deleted ID needs the NAME of the deleted recipe".into()));
+        }
         let trash = lib.trash();
         if trash.is_empty() {
             outln!("the trash is empty");

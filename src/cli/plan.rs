@@ -128,7 +128,9 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
             crate::library::atomic::write_output(path, &bytes, args.replace_link)
                 .map_err(|e| Refused(format!("{}: {e}", path.display())))?;
         }
-        if args.common.format == Format::Text {
+        // A PDF sent to standard output is the output: the text does not follow it.
+        let pdf_is_output = args.pdf.as_deref().is_some_and(crate::library::atomic::is_standard_output);
+        if args.common.format == Format::Text && !pdf_is_output {
             out!("{text}");
         }
     }

@@ -101,7 +101,10 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
         crate::library::atomic::write_output(pdf, &bytes, args.replace_link)
             .map_err(|e| Refused(format!("{}: {e}", pdf.display())))?;
     }
+    // A PDF sent to standard output is the output: nothing else follows it.
+    let pdf_is_output = args.pdf.as_deref().is_some_and(crate::library::atomic::is_standard_output);
     match args.format {
+        _ if pdf_is_output => {}
         Format::Json => print_json(&cert.json()),
         _ => out!("{text}"),
     }

@@ -23,6 +23,16 @@ pub fn write(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
 pub fn write_output(path: &Path, bytes: &[u8], replace_link: bool) -> std::io::Result<()> {
     use std::os::unix::fs::FileTypeExt;
     let refuse = |why: &str| Err(std::io::Error::new(std::io::ErrorKind::InvalidInput, why.to_string()));
+    // `/dev/stdout` (or any name of this process's standard output, a file it was
+    // redirected to included): written where standard output stands.
+    if is_standard_output(path) {
+        let mut out = std::io::stdout().lock();
+        out.write_all(bytes)?;
+        return out.flush();
+    }
+    if replace_link && (path.starts_with("/dev") || path.starts_with("/proc")) {
+        return refuse("is a system link; it is never replaced");
+    }
     let own = match std::fs::symlink_metadata(path) {
         Ok(m) => m,
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return write(path, bytes),
@@ -54,6 +64,19 @@ pub fn write_output(path: &Path, bytes: &[u8], replace_link: bool) -> std::io::R
         return refuse("is a block device; not written");
     }
     write(path, bytes)
+}
+
+/// Whether `path` leads to this process's standard output (the same file, pipe or
+/// terminal).
+pub fn is_standard_output(path: &Path) -> bool {
+    use std::os::unix::fs::MetadataExt;
+    let Ok(target) = std::fs::metadata(path) else { return false };
+    // SAFETY: fstat on descriptor 1 fills a stat structure we own.
+    let mut st: libc::stat = unsafe { std::mem::zeroed() };
+    if unsafe { libc::fstat(1, &mut st) } != 0 {
+        return false;
+    }
+    target.dev() == st.st_dev && target.ino() == st.st_ino
 }
 
 /// As [`write`], calling `before_rename` after the temporary file is complete and before

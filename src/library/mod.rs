@@ -24,6 +24,9 @@ pub enum LibraryError {
     BadName { name: String, why: &'static str },
     #[error("no recipe {0:?} in the library")]
     NotFound(String),
+    /// Something other than a recipe that is not there: "no fill record \"X\" in records/".
+    #[error("{0}")]
+    Missing(String),
     #[error("a recipe {0:?} already exists; choose another name")]
     Exists(String),
     #[error(
@@ -704,10 +707,10 @@ impl Library {
                 None => trash.iter().map(|(n, _, _)| n.clone()).collect(),
             };
             names.dedup();
-            return Err(LibraryError::NotFound(if names.is_empty() {
-                format!("{name} in the trash (the trash has no such entry)")
+            return Err(LibraryError::Missing(if names.is_empty() {
+                format!("no deleted recipe {name:?} in the trash")
             } else {
-                format!("{name} in the trash; it holds {}", names.join(", "))
+                format!("no such deleted recipe {name:?} in the trash; it holds {}", names.join(", "))
             }));
         };
         if std::fs::symlink_metadata(&dst).is_ok() {

@@ -318,8 +318,15 @@ fn merge_in(git: &Git, theirs: &str, marker: &Path) -> Result<(usize, Vec<String
     let tree = lines.next().unwrap_or_default().trim().to_string();
     let conflicted: BTreeSet<String> =
         if code == 1 { lines.take_while(|l| !l.is_empty()).map(str::to_string).collect() } else { BTreeSet::new() };
-    let (tree, merged, kept) =
-        if conflicted.is_empty() { (tree, Vec::new(), Vec::new()) } else { resolve(git, &tree, theirs, &conflicted)? };
+    // git's merge may take a delete (the recipe moved into the trash) for a rename and carry
+    // the other bench's edit into the trash: every recipe changed on both sides is merged
+    // here as revisions, and every trash entry keeps the text of the side that made it.
+    let sides = Changes::of(git, theirs)?;
+    let (tree, merged, kept) = if conflicted.is_empty() && sides.both_recipes.is_empty() && sides.trash.is_empty() {
+        (tree, Vec::new(), Vec::new())
+    } else {
+        resolve(git, &tree, theirs, &conflicted, &sides)?
+    };
     let fast_forward = git.run(&["merge-base", "--is-ancestor", "HEAD", theirs]).is_ok();
     let commit = if fast_forward {
         git.run(&["rev-parse", theirs])?.trim().to_string()
@@ -332,6 +339,34 @@ fn merge_in(git: &Git, theirs: &str, marker: &Path) -> Result<(usize, Vec<String
     git.run(&["reset", "--quiet", "--hard", &commit])?;
     let _ = std::fs::remove_file(marker);
     Ok((received, merged, kept))
+}
+
+/// What each side changed since the merge base, without rename detection.
+struct Changes {
+    /// Recipes changed on both sides (edited, saved or deleted).
+    both_recipes: BTreeSet<String>,
+    /// Trash paths changed on one side only, with that side (`HEAD` or theirs).
+    trash: Vec<(String, String)>,
+}
+
+impl Changes {
+    fn of(git: &Git, theirs: &str) -> Result<Changes, SyncError> {
+        let Ok(base) = git.run(&["merge-base", "HEAD", theirs]).map(|b| b.trim().to_string()) else {
+            return Ok(Changes { both_recipes: BTreeSet::new(), trash: Vec::new() });
+        };
+        let changed = |to: &str| -> Result<BTreeSet<String>, SyncError> {
+            Ok(git.run(&["diff", "--no-renames", "--name-only", &base, to])?.lines().map(str::to_string).collect())
+        };
+        let (ours, other) = (changed("HEAD")?, changed(theirs)?);
+        let recipes =
+            |set: &BTreeSet<String>| -> BTreeSet<String> { set.iter().filter_map(|p| recipe_of(p)).collect() };
+        let both_recipes = recipes(&ours).intersection(&recipes(&other)).cloned().collect();
+        let in_trash = |p: &&String| p.starts_with(".trash/");
+        let mut trash: Vec<(String, String)> =
+            ours.iter().filter(in_trash).filter(|p| !other.contains(*p)).map(|p| (p.clone(), "HEAD".into())).collect();
+        trash.extend(other.iter().filter(in_trash).filter(|p| !ours.contains(*p)).map(|p| (p.clone(), theirs.into())));
+        Ok(Changes { both_recipes, trash })
+    }
 }
 
 /// The recipe a library path belongs to: `NAME.ron` or `.history/NAME/NNNN.ron`.
@@ -351,13 +386,27 @@ fn resolve(
     tree: &str,
     theirs: &str,
     conflicted: &BTreeSet<String>,
+    sides: &Changes,
 ) -> Result<(String, Vec<String>, Vec<String>), SyncError> {
     let git_dir = git.run(&["rev-parse", "--absolute-git-dir"])?.trim().to_string();
     let index = format!("{git_dir}/fillwright-sync-index");
     let _ = std::fs::remove_file(&index);
     let env = [("GIT_INDEX_FILE", index.as_str())];
     git.run_env(&["read-tree", tree], None, &[], &env)?;
-    let recipes: BTreeSet<String> = conflicted.iter().filter_map(|p| recipe_of(p)).collect();
+    let mut recipes: BTreeSet<String> = conflicted.iter().filter_map(|p| recipe_of(p)).collect();
+    recipes.extend(sides.both_recipes.iter().cloned());
+    // Trash entries as the side that made them wrote them.
+    for (path, side) in &sides.trash {
+        match git.run(&["rev-parse", &format!("{side}:{path}")]) {
+            Ok(blob) => {
+                let info = format!("100644,{},{path}", blob.trim());
+                git.run_env(&["update-index", "--add", "--cacheinfo", &info], None, &[], &env)?;
+            }
+            Err(_) => {
+                git.run_env(&["update-index", "--force-remove", "--", path], None, &[], &env)?;
+            }
+        }
+    }
     let mut merged = Vec::new();
     let mut kept = Vec::new();
     for name in &recipes {
@@ -368,7 +417,9 @@ fn resolve(
         }
         merged.push(name.clone());
     }
-    for path in conflicted.iter().filter(|p| recipe_of(p).is_none_or(|n| !recipes.contains(&n))) {
+    for path in
+        conflicted.iter().filter(|p| recipe_of(p).is_none_or(|n| !recipes.contains(&n)) && !p.starts_with(".trash/"))
+    {
         let ours = git.show("HEAD", path);
         let other = git.show(theirs, path);
         let later_is_theirs = commit_time(git, theirs) >= commit_time(git, "HEAD");
@@ -439,6 +490,7 @@ fn merge_recipe(git: &Git, name: &str, theirs: &str) -> Result<Vec<(String, Stri
     let last_saved = |list: &[Recipe]| list.last().and_then(|r| r.saved.clone()).unwrap_or_default();
     // The bench whose last save is earlier goes first and keeps its numbers.
     let (first, second) = if last_saved(&mine) <= last_saved(&yours) { (mine, yours) } else { (yours, mine) };
+    let first_count = first.len();
     let mut sequence: Vec<Recipe> = first.into_iter().chain(second).collect();
     let count = sequence.len();
     let mut out = Vec::new();
@@ -448,8 +500,9 @@ fn merge_recipe(git: &Git, name: &str, theirs: &str) -> Result<Vec<(String, Stri
     for (k, r) in sequence.iter().enumerate() {
         let last = k + 1 == count;
         let mut r = r.clone();
-        if last && count > 1 {
-            let before = &sequence[k - 1];
+        if last && count > 1 && first_count > 0 && first_count < count {
+            // The other bench's last save, now in the history.
+            let before = &sequence[first_count - 1];
             let note = format!(
                 "merged at sync: saved on two benches since revision {common_top}; revision {} ({}, {}) kept in \
                  the history, this one ({}, {}) follows it. {}",

@@ -26,9 +26,9 @@ impl Library {
     pub fn open_verification(&self, name: &str) -> Result<(PathBuf, String, Verification), LibraryError> {
         let path = self.verification_path(name)?;
         let text = read_limited(&path).map_err(|e| match e {
-            LibraryError::Io { source, .. } if source.kind() == std::io::ErrorKind::NotFound => {
-                LibraryError::NotFound(format!("verification {name}"))
-            }
+            LibraryError::Io { source, .. } if source.kind() == std::io::ErrorKind::NotFound => LibraryError::Missing(
+                format!("no verification file {name:?} in the library's verifications/, and no file of that name"),
+            ),
             other => other,
         })?;
         let v = Verification::parse(&text, &path.display().to_string()).map_err(|e| LibraryError::Io {

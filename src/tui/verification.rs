@@ -139,14 +139,29 @@ pub fn create(ctx: &Context, typed: &str) -> Result<Editing, String> {
     let Some((id, gas)) = typed.trim().split_once(char::is_whitespace).map(|(i, g)| (i, g.trim())) else {
         return Err("type the record id (or cylinder serial) and the gas, e.g. CY-2207-20261204 CO2".into());
     };
-    let gas_id = ctx.catalogue.find(gas).map(|g| ctx.catalogue.gas(g).id().to_string()).map_err(|e| e.to_string())?;
-    let (cylinder, record) = match ctx.library.open_record(id) {
-        Ok(o) => (o.record.cylinder.clone(), Some(id.to_string())),
-        Err(_) => (id.to_string(), None),
+    let gas = ctx.catalogue.find(gas).map_err(|e| e.to_string())?;
+    let gas_id = ctx.catalogue.gas(gas).id().to_string();
+    // A record names the fill (cylinder and date), so a refill never meets the file of the
+    // fill before; a serial alone is a cylinder whose prepared content is typed in.
+    let record = match ctx.library.open_record(id) {
+        Ok(_) => {
+            crate::certify::record_content(Some(&ctx.library), &ctx.catalogue, id, gas)?;
+            Some(id.to_string())
+        }
+        Err(_) if id.chars().filter(|c| *c == '-').count() >= 2 && id.ends_with(|c: char| c.is_ascii_digit()) => {
+            return Err(format!(
+                "no fill record {id} in the library; give a record id as `fillwright records` lists it, or the \
+                 cylinder serial to type the prepared content in"
+            ));
+        }
+        Err(_) => None,
     };
-    let name = Verification::file_stem(&cylinder, &gas_id);
-    if ctx.library.open_verification(&name).is_ok() {
-        return open_file(ctx, &name);
+    let name = Verification::file_stem(id, &gas_id);
+    if let Ok((_, _, existing)) = ctx.library.open_verification(&name) {
+        if existing.sample.record == record {
+            return open_file(ctx, &name);
+        }
+        return Err(format!("verifications/{name}.ron exists for another sample; open it from the list"));
     }
     let file = Verification {
         format: verification::FORMAT,

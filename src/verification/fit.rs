@@ -308,12 +308,13 @@ fn minimise(points: &[Point], p: usize) -> Result<(DVector<f64>, DMatrix<f64>), 
 
 /// The responses, taken in order of content, must all rise or all fall.
 fn check_data_monotonic(points: &[Point]) -> Result<(), FitError> {
+    // Two mixtures of the same content (two cylinders of one certified content) are
+    // allowed; the rise or fall is judged between distinct contents.
     let mut sorted: Vec<&Point> = points.iter().collect();
     sorted.sort_by(|a, b| a.x.total_cmp(&b.x));
-    for pair in sorted.windows(2) {
-        if pair[0].x == pair[1].x {
-            return Err(FitError::Singular);
-        }
+    sorted.dedup_by(|b, a| a.x == b.x);
+    if sorted.len() < 2 {
+        return Err(FitError::Singular);
     }
     let rises: Vec<bool> = sorted.windows(2).map(|w| w[1].y > w[0].y).collect();
     if let Some(k) = rises.iter().position(|&r| r != rises[0]) {

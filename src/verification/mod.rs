@@ -213,7 +213,8 @@ impl Verification {
                 }
             };
             let (response, n) = responses(s.response.as_deref(), &s.responses).map_err(&here)?;
-            if let Some(first) = names.iter().position(|n| *n == name) {
+            let same = |a: &str, b: &str| a.trim().eq_ignore_ascii_case(b.trim());
+            if let Some(first) = names.iter().position(|n: &String| same(n, &name)) {
                 return Err(here(format!("listed twice (also as reference mixture {})", first + 1)));
             }
             if let Some(first) =
@@ -246,7 +247,7 @@ impl Verification {
 
 /// A content as written: a mole fraction with a standard uncertainty above zero.
 fn content(text: &str) -> Result<Measured, String> {
-    match parse_assay(text)? {
+    match parse_assay(text).map_err(|e| format!("content {text:?}: {e}"))? {
         Assay::Measured { value, u } if u > 0.0 && value > 0.0 => Ok(Measured { value, u }),
         Assay::Measured { value, .. } if value > 0.0 => Err(format!(
             "content {text:?} has no uncertainty; write it with its standard uncertainty, e.g. 9.987%±0.004% or \
