@@ -30,7 +30,7 @@ fn composition_and_uncertainty_agree_with_the_uncertainties_package() {
     let fixture: serde_json::Value = serde_json::from_str(include_str!("fixtures/uncertainties_records.json")).unwrap();
     let c = Catalogue::built_in();
     let records = fixture["records"].as_object().unwrap();
-    assert_eq!(records.len(), 3);
+    assert_eq!(records.len(), 4);
     for (name, expected) in records {
         let text = std::fs::read_to_string(format!("tests/records/{name}.ron")).unwrap();
         let e = evaluate(&text, 0);
@@ -387,4 +387,45 @@ fn a_source_without_uncertainty_is_refused_and_a_pure_gas_without_impurities_is_
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     let remarks: Vec<&str> = v["remarks"].as_array().unwrap().iter().map(|r| r.as_str().unwrap()).collect();
     assert!(remarks.iter().any(|r| r.contains("addition 3") && r.contains("no impurity stated")), "{remarks:?}");
+}
+
+#[test]
+fn air_buoyancy_moves_the_composition_and_enters_the_budget() {
+    let dir = fresh("buoyancy");
+    let plain = run(&dir, &["certify", "tests/records/flue-gas-made.ron", "--draws", "1000", "--format", "json"]);
+    let air = run(&dir, &["certify", "tests/records/flue-gas-buoyancy.ron", "--draws", "1000", "--format", "json"]);
+    assert!(air.status.success(), "{}", String::from_utf8_lossy(&air.stderr));
+    let (p, a): (serde_json::Value, serde_json::Value) =
+        (serde_json::from_slice(&plain.stdout).unwrap(), serde_json::from_slice(&air.stdout).unwrap());
+    let co = |v: &serde_json::Value, key: &str| {
+        v["components"].as_array().unwrap().iter().find(|c| c["id"] == "CO").unwrap()[key].as_f64().unwrap()
+    };
+    // The small first addition (92.85 g) moves most: the air thinned between weighings.
+    assert!((co(&a, "mole_fraction") / co(&p, "mole_fraction") - 1.0).abs() > 1e-5);
+    assert!(co(&a, "standard_uncertainty") > co(&p, "standard_uncertainty"));
+    let inputs: Vec<String> = a["budget"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .flat_map(|b| b["contributions"].as_array().unwrap().iter().map(|c| c["input"].as_str().unwrap().to_string()))
+        .collect();
+    for name in ["air density at weighing 2", "air density before the fill", "cylinder outer volume"] {
+        assert!(inputs.iter().any(|i| i == name), "{name} not in {inputs:?}");
+    }
+    // The air without the volume, or one entry too few: refused, placed.
+    let text = std::fs::read_to_string("tests/records/flue-gas-buoyancy.ron").unwrap();
+    for (bad, needle) in [
+        (text.replace("    cylinder_outer_volume: \"13.6L\",\n", ""), "outer volume"),
+        (
+            text.replacen("        (temperature: \"20.4C\", pressure: \"1012.3hPa\", humidity: \"41.0%\"),\n", "", 1),
+            "3 air entries for 4 weighings",
+        ),
+        (text.replace("\"41.0%\"", "\"141%\""), "outside 0 to 100 %"),
+    ] {
+        let file = dir.join("bad-air.ron");
+        std::fs::write(&file, bad).unwrap();
+        let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "1000"]);
+        assert_eq!(o.status.code(), Some(1));
+        assert!(String::from_utf8_lossy(&o.stderr).contains(needle), "{}", String::from_utf8_lossy(&o.stderr));
+    }
 }

@@ -310,6 +310,14 @@ impl Certificate<'_> {
         }
         if self.checked.method == Method::Gravimetric {
             o.push(format!("  scale: u = {} g per reading", self.checked.scale_u_g));
+            match &self.checked.buoyancy {
+                Some(b) => o.push(format!(
+                    "  air buoyancy corrected: air density by CIPM-2007 at {}, outer volume {} L",
+                    if b.densities.len() == 1 { "one reading for all weighings" } else { "each weighing" },
+                    b.volume_l.0
+                )),
+                None => o.push("  air buoyancy not corrected (no air conditions recorded)".into()),
+            }
         } else {
             o.push(format!(
                 "  gauge: u = {} bar; thermometer: u = {} K",

@@ -47,6 +47,9 @@ enum Kind {
     Gravimetric {
         /// Input indices of the weighings used.
         weighings: Vec<usize>,
+        /// Input indices of the air density at each weighing used and of the cylinder's
+        /// outer volume (L), where the weighings are corrected for air buoyancy.
+        buoyancy: Option<(Vec<usize>, usize)>,
         /// Per blend gas: (input index of an atomic weight, count).
         formulas: Vec<Vec<(usize, f64)>>,
     },
@@ -163,6 +166,26 @@ impl Measurand {
                         inputs.push(label, w, checked.scale_u_g, Shape::Normal)
                     })
                     .collect();
+                let buoyancy = checked.buoyancy.as_ref().map(|b| {
+                    let densities: Vec<usize> = if let [(rho, u)] = b.densities.as_slice() {
+                        let j = inputs.push("air density (all weighings)".into(), *rho, *u, Shape::Normal);
+                        vec![j; weighings.len()]
+                    } else {
+                        (0..weighings.len())
+                            .map(|k| {
+                                let (rho, u) = b.densities[k];
+                                let label = if k == 0 {
+                                    "air density before the fill".to_string()
+                                } else {
+                                    format!("air density at weighing {k}")
+                                };
+                                inputs.push(label, rho, u, Shape::Normal)
+                            })
+                            .collect()
+                    };
+                    let volume = inputs.push("cylinder outer volume".into(), b.volume_l.0, b.volume_l.1, Shape::Normal);
+                    (densities, volume)
+                });
                 let sources: Vec<SourceTerms> = additions
                     .iter()
                     .enumerate()
@@ -190,7 +213,7 @@ impl Measurand {
                     }
                     formulas.push(f);
                 }
-                Ok(Measurand { gases, inputs, method: Kind::Gravimetric { weighings, formulas }, sources })
+                Ok(Measurand { gases, inputs, method: Kind::Gravimetric { weighings, buoyancy, formulas }, sources })
             }
             super::Method::Manometric => {
                 let volume_m3 = volume_m3.ok_or_else(|| {
@@ -280,7 +303,9 @@ impl Measurand {
     /// measurand has no value there.
     pub fn evaluate(&self, x: &[f64]) -> Option<Vec<f64>> {
         match &self.method {
-            Kind::Gravimetric { weighings, formulas } => Some(self.gravimetric(x, weighings, formulas)),
+            Kind::Gravimetric { weighings, buoyancy, formulas } => {
+                Some(self.gravimetric(x, weighings, buoyancy.as_ref(), formulas))
+            }
             Kind::Manometric(m) => {
                 let mut y = self.manometric_values(m, x).ok()?;
                 if let Some(j) = m.model_input {
@@ -297,7 +322,9 @@ impl Measurand {
     pub fn amounts_mol(&self) -> Vec<f64> {
         let x = self.inputs.values();
         match &self.method {
-            Kind::Gravimetric { weighings, formulas } => self.gravimetric_amounts(&x, weighings, formulas),
+            Kind::Gravimetric { weighings, buoyancy, formulas } => {
+                self.gravimetric_amounts(&x, weighings, buoyancy.as_ref(), formulas)
+            }
             Kind::Manometric(m) => self.manometric_amounts(m, &x).unwrap_or_else(|_| vec![f64::NAN; self.gases.len()]),
         }
     }
@@ -306,7 +333,9 @@ impl Measurand {
     pub fn duals(&self) -> Vec<Dual> {
         let x = self.inputs.duals();
         match &self.method {
-            Kind::Gravimetric { weighings, formulas } => self.gravimetric(&x, weighings, formulas),
+            Kind::Gravimetric { weighings, buoyancy, formulas } => {
+                self.gravimetric(&x, weighings, buoyancy.as_ref(), formulas)
+            }
             Kind::Manometric(m) => self.manometric_duals(m, &x).unwrap_or_else(|_| {
                 let nan = x[0].lift(f64::NAN);
                 vec![nan; self.gases.len()]
@@ -314,7 +343,13 @@ impl Measurand {
         }
     }
 
-    fn gravimetric_amounts<T: Real>(&self, x: &[T], weighings: &[usize], formulas: &[Vec<(usize, f64)>]) -> Vec<T> {
+    fn gravimetric_amounts<T: Real>(
+        &self,
+        x: &[T],
+        weighings: &[usize],
+        buoyancy: Option<&(Vec<usize>, usize)>,
+        formulas: &[Vec<(usize, f64)>],
+    ) -> Vec<T> {
         let zero = x[0].lift(0.0);
         let molar: Vec<T> = formulas
             .iter()
@@ -322,7 +357,7 @@ impl Measurand {
             .collect();
         let mut amounts = vec![zero.clone(); self.gases.len()];
         for (k, terms) in self.sources.iter().enumerate() {
-            let mass = x[weighings[k + 1]].clone() - x[weighings[k]].clone();
+            let mass = weighed_mass(x, weighings, buoyancy, k + 1) - weighed_mass(x, weighings, buoyancy, k);
             let fr: Vec<T> = terms.iter().map(|(_, t)| fraction(t, x)).collect();
             let m_source =
                 terms.iter().zip(&fr).fold(zero.clone(), |acc, ((i, _), f)| acc + f.clone() * molar[*i].clone());
@@ -334,8 +369,14 @@ impl Measurand {
         amounts
     }
 
-    fn gravimetric<T: Real>(&self, x: &[T], weighings: &[usize], formulas: &[Vec<(usize, f64)>]) -> Vec<T> {
-        normalise(self.gravimetric_amounts(x, weighings, formulas))
+    fn gravimetric<T: Real>(
+        &self,
+        x: &[T],
+        weighings: &[usize],
+        buoyancy: Option<&(Vec<usize>, usize)>,
+        formulas: &[Vec<(usize, f64)>],
+    ) -> Vec<T> {
+        normalise(self.gravimetric_amounts(x, weighings, buoyancy, formulas))
     }
 
     fn source_fractions<T: Real>(&self, k: usize, x: &[T]) -> Vec<T> {
@@ -397,6 +438,22 @@ impl Measurand {
             }
         }
         Ok(y)
+    }
+}
+
+/// The mass of weighing `k`, g: the scale's conventional reading W, corrected for air
+/// buoyancy where the record gives the air: m = W·(1 − ρa/8000 kg/m³) + ρa·V (ρa in
+/// kg/m³ times V in L is in g).
+fn weighed_mass<T: Real>(x: &[T], weighings: &[usize], buoyancy: Option<&(Vec<usize>, usize)>, k: usize) -> T {
+    let w = x[weighings[k]].clone();
+    match buoyancy {
+        None => w,
+        Some((densities, volume)) => {
+            let rho = x[densities[k]].clone();
+            let one = w.lift(1.0);
+            let reference = w.lift(super::buoyancy::REFERENCE_DENSITY);
+            w * (one - rho.clone() / reference) + rho * x[*volume].clone()
+        }
     }
 }
 

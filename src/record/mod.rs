@@ -8,6 +8,7 @@
 //! is pure: source look-ups (the source library, other records) come in as a closure.
 
 pub mod analysis;
+pub mod buoyancy;
 pub mod composition;
 pub mod uncertainty;
 
@@ -103,8 +104,35 @@ pub struct Record {
     pub weighings: Vec<String>,
     #[serde(default)]
     pub additions: Vec<Addition>,
+    /// The air at each weighing (or one entry for all), for the buoyancy correction.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub air: Vec<AirLine>,
+    /// The cylinder's outer (displaced) volume, `13.6L` or `13.6L±0.1L`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cylinder_outer_volume: Option<String>,
+    /// Standard uncertainties of the air readings (defaults in [`buoyancy`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub air_uncertainty: Option<AirLine>,
     #[serde(default)]
     pub notes: String,
+}
+
+/// Air conditions as written: `(temperature: "20.4C", pressure: "1012.3hPa", humidity: "41%")`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct AirLine {
+    pub temperature: String,
+    pub pressure: String,
+    pub humidity: String,
+}
+
+/// The buoyancy correction read into numbers.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BuoyancyInputs {
+    /// Air density (kg/m³) and its standard uncertainty: one per weighing, or one for all.
+    pub densities: Vec<(f64, f64)>,
+    /// The cylinder's outer volume and its standard uncertainty, L.
+    pub volume_l: (f64, f64),
 }
 
 /// A record problem, placed in its file.
@@ -174,6 +202,8 @@ pub struct Checked {
     pub pressure_u_pa: f64,
     pub temperature_u_k: f64,
     pub volume_m3: Option<f64>,
+    /// The air-buoyancy correction of the weighings, where the record gives the air.
+    pub buoyancy: Option<BuoyancyInputs>,
 }
 
 /// Default standard uncertainty of a pressure reading: 0.05 bar, half the 0.1 bar
@@ -207,6 +237,9 @@ impl Record {
             ambient: None,
             weighings: Vec::new(),
             additions: Vec::new(),
+            air: Vec::new(),
+            cylinder_outer_volume: None,
+            air_uncertainty: None,
             notes: String::new(),
         }
     }
@@ -364,6 +397,7 @@ impl Record {
             None => None,
             Some(v) => Some(units::parse_volume(v).map_err(|e| err(&quoted(v), format!("water_capacity: {e}")))?),
         };
+        let buoyancy = self.buoyancy_inputs(gravimetric, weighings_g.len(), &err)?;
         Ok(Checked {
             method: if gravimetric { Method::Gravimetric } else { Method::Manometric },
             scale_u_g,
@@ -373,8 +407,101 @@ impl Record {
             pressure_u_pa,
             temperature_u_k,
             volume_m3,
+            buoyancy,
         })
     }
+
+    /// The air densities and the outer volume, where the record gives the air.
+    fn buoyancy_inputs(
+        &self,
+        gravimetric: bool,
+        weighings: usize,
+        err: &dyn Fn(&str, String) -> RecordError,
+    ) -> Result<Option<BuoyancyInputs>, RecordError> {
+        if self.air.is_empty() {
+            return Ok(None);
+        }
+        if !gravimetric {
+            return Err(err("air", "air conditions correct weighings; this record has none".into()));
+        }
+        if self.air.len() != 1 && self.air.len() != weighings {
+            return Err(err(
+                "air",
+                format!(
+                    "{} air entries for {weighings} weighings: give one entry per weighing, or one for all",
+                    self.air.len()
+                ),
+            ));
+        }
+        let quoted = |s: &str| format!("\"{s}\"");
+        let Some(volume_text) = &self.cylinder_outer_volume else {
+            return Err(err(
+                "air",
+                "air conditions need the cylinder's outer volume (cylinder_outer_volume: \"13.6L\")".into(),
+            ));
+        };
+        let (v, u_v) = match volume_text.split_once('±') {
+            Some((v, u)) => (v, Some(u)),
+            None => (volume_text.as_str(), None),
+        };
+        let place = |e: String| err(&quoted(volume_text), format!("cylinder_outer_volume: {e}"));
+        let volume_l = units::parse_volume(v.trim()).map_err(|e| place(e.to_string()))? * 1e3;
+        let u_volume_l = match u_v {
+            Some(u) => units::parse_volume(u.trim()).map_err(|e| place(e.to_string()))? * 1e3,
+            None => buoyancy::DEFAULT_U_VOLUME_REL * volume_l,
+        };
+        let read_u = |line: &AirLine| -> Result<(f64, f64, f64), RecordError> {
+            let t = line.temperature.trim();
+            let u_t = t
+                .strip_suffix('K')
+                .and_then(|k| k.trim().parse::<f64>().ok())
+                .filter(|k| *k >= 0.0)
+                .ok_or_else(|| err(&quoted(t), "air_uncertainty: temperature as kelvin, e.g. 0.5K".into()))?;
+            let u_p =
+                units::parse_pressure(&line.pressure, 0.0).map_err(|e| err(&quoted(&line.pressure), e.to_string()))?;
+            let u_h = humidity(&line.humidity).map_err(|e| err(&quoted(&line.humidity), e))?;
+            Ok((u_t, u_p, u_h))
+        };
+        let u = match &self.air_uncertainty {
+            Some(line) => read_u(line)?,
+            None => (buoyancy::DEFAULT_U_TEMPERATURE_K, buoyancy::DEFAULT_U_PRESSURE_PA, buoyancy::DEFAULT_U_HUMIDITY),
+        };
+        let mut densities = Vec::new();
+        for line in &self.air {
+            let here = |what: &str, text: &str, e: String| err(&quoted(text), format!("air {what}: {e}"));
+            let t = units::parse_temperature(&line.temperature)
+                .map_err(|e| here("temperature", &line.temperature, e.to_string()))?;
+            let p = units::parse_pressure(&line.pressure, STANDARD_AMBIENT_PA)
+                .map_err(|e| here("pressure", &line.pressure, e.to_string()))?;
+            let h = humidity(&line.humidity).map_err(|e| here("humidity", &line.humidity, e))?;
+            if !(263.15..=318.15).contains(&t) || !(60_000.0..=110_000.0).contains(&p) {
+                return Err(here(
+                    "conditions",
+                    &line.temperature,
+                    "outside the range of the air-density equation (600 to 1100 hPa; CIPM-2007 is made for 15 to \
+                     27 °C, accepted here from -10 to 45 °C)"
+                        .into(),
+                ));
+            }
+            let air = buoyancy::Air { temperature_k: t, pressure_pa: p, humidity: h };
+            densities.push(buoyancy::density_with_u(&air, u));
+        }
+        Ok(Some(BuoyancyInputs { densities, volume_l: (volume_l, u_volume_l) }))
+    }
+}
+
+/// A relative humidity as written: `41%` or a fraction `0.41`; returns the fraction.
+fn humidity(text: &str) -> Result<f64, String> {
+    let t = text.trim();
+    let value = match t.strip_suffix('%') {
+        Some(p) => p.trim().parse::<f64>().map(|v| v / 100.0),
+        None => t.parse::<f64>(),
+    }
+    .map_err(|_| format!("humidity {t:?} is not a number; write it as 41% or 0.41"))?;
+    if !(0.0..=1.0).contains(&value) {
+        return Err(format!("humidity {t:?} is outside 0 to 100 %"));
+    }
+    Ok(value)
 }
 
 /// The composition made and its uncertainty, by both methods of evaluation.

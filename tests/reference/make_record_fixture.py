@@ -16,7 +16,7 @@ import os
 import re
 
 import uncertainties
-from uncertainties import ufloat
+from uncertainties import ufloat, umath
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(os.path.dirname(HERE))
@@ -78,9 +78,37 @@ def analysis(spec, k):
     return out
 
 
+def cipm_2007(t_k, p, h):
+    """Density of moist air, kg/m3 (Picard et al., Metrologia 45 (2008) 149), x_CO2 = 0.0004."""
+    t = t_k - 273.15
+    p_sv = umath.exp(1.2378847e-5 * t_k ** 2 - 1.9121316e-2 * t_k + 33.93711047 - 6.3431645e3 / t_k)
+    f = 1.00062 + 3.14e-8 * p + 5.6e-7 * t ** 2
+    x_v = h * f * p_sv / p
+    z = (1 - p / t_k * (1.58123e-6 - 2.9331e-8 * t + 1.1043e-10 * t ** 2 + (5.707e-6 - 2.051e-8 * t) * x_v
+                        + (1.9898e-4 - 2.376e-6 * t) * x_v ** 2)
+         + (p / t_k) ** 2 * (1.83e-11 - 0.765e-8 * x_v ** 2))
+    m_a, m_v, r = 28.96546e-3, 18.01528e-3, 8.314472
+    return p * m_a / (z * r * t_k) * (1 - x_v * (1 - m_v / m_a))
+
+
+def air_densities(rec):
+    """One independent input per weighing: the density from T (u 0.5 K), p (u 50 Pa) and
+    h (u 5 %), and the equation's own 22e-6 relative."""
+    out = []
+    for k, (t, p_hpa, h) in enumerate(rec["air"]):
+        rho = cipm_2007(ufloat(t + 273.15, 0.5), ufloat(p_hpa * 100, 50.0), ufloat(h / 100, 0.05))
+        u = math.sqrt(rho.std_dev ** 2 + (22e-6 * rho.nominal_value) ** 2)
+        out.append(ufloat(rho.nominal_value, u, f"air density {k}"))
+    return out
+
+
 def composition(rec):
     scale_u = float(rec["scale_uncertainty"][:-1])
     w = [ufloat(float(x[:-1]), scale_u, f"weighing {i}") for i, x in enumerate(rec["weighings"])]
+    if "air" in rec:
+        # m = W (1 - rho/8000) + rho V: rho in kg/m3 times V in L is in g.
+        volume = ufloat(rec["outer_volume_l"], 0.01 * rec["outer_volume_l"], "outer volume")
+        w = [wk * (1 - rho / 8000.0) + rho * volume for wk, rho in zip(w, air_densities(rec))]
     moles = {}
     for k, src in enumerate(rec["sources"], start=1):
         x = analysis(src, k)
@@ -106,6 +134,14 @@ RECORDS = {
         "sources": ["NO=0.5%±0.3%rel,N2=balance,H2O=<5ppm", "SO2=0.2%±0.0005%,N2=balance",
                     "N2=balance,O2=<1ppm,H2O=<0.5ppm"],
     },
+    # The flue-gas fill again, with the air at each weighing: the buoyancy correction.
+    "flue-gas-buoyancy": {
+        "recipe": "flue-gas-span", "cylinder": "FC-10-2291", "scale_uncertainty": "0.010g",
+        "weighings": ["13412.000g", "13504.850g", "13942.450g", "15473.450g"],
+        "sources": ["CO=1%±0.002%,N2=balance", "CO2=balance,N2=<10ppm", "N2=balance,O2=<2ppm,Ar=5ppm±1ppm"],
+        "air": [(20.4, 1012.3, 41.0), (21.0, 1011.8, 43.0), (21.6, 1010.9, 44.0), (22.1, 1010.2, 46.0)],
+        "outer_volume_l": 13.6,
+    },
     # A detector test gas made from four pure-ish gases, one with an analysed impurity.
     "detector-gas-made": {
         "recipe": "detector-test-ch4-air", "cylinder": "DX-40-7781", "scale_uncertainty": "0.020g",
@@ -121,7 +157,12 @@ def ron(name, rec):
              f'    cylinder: "{rec["cylinder"]}",', f'    scale_uncertainty: "{rec["scale_uncertainty"]}",',
              "    weighings: [" + ", ".join(f'"{w}"' for w in rec["weighings"]) + "],", "    additions: ["]
     lines += [f'        (source: "{s}"),' for s in rec["sources"]]
-    lines += ["    ],", ")", ""]
+    lines += ["    ],"]
+    if "air" in rec:
+        lines += ["    air: ["]
+        lines += [f'        (temperature: "{t}C", pressure: "{p}hPa", humidity: "{h}%"),' for t, p, h in rec["air"]]
+        lines += ["    ],", f'    cylinder_outer_volume: "{rec["outer_volume_l"]}L",']
+    lines += [")", ""]
     return "\n".join(lines)
 
 
