@@ -80,6 +80,15 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
     if looks_like_path || as_path.is_file() {
         return read_limited(as_path).map(|t| (t, name.to_string()));
     }
+    // A library named on purpose must exist: a mistyped one never falls back to the demos.
+    if let Some(explicit) = explicit_library(library) {
+        if !explicit.is_dir() {
+            return Err(format!(
+                "the library folder {} does not exist; check the name (--library or $FILLWRIGHT_LIBRARY)",
+                explicit.display()
+            ));
+        }
+    }
     let dir = library_dir(library);
     if let Some(dir) = &dir {
         let file = dir.join(format!("{name}.ron"));

@@ -212,3 +212,20 @@ fn the_last_revision_number_is_refused_never_wrapped() {
     assert!(matches!(saved, Ok(fillwright::library::Saved::Written { revision: 4294967296, .. })), "{saved:?}");
     let _ = Stdio::null();
 }
+
+#[test]
+fn a_mistyped_library_is_refused_by_every_command_that_reads_recipes() {
+    let dir = fresh("typo-all");
+    let typo = dir.join("no-such-library");
+    for args in [
+        vec!["plan", "flue-gas-span", "--library", typo.to_str().unwrap()],
+        vec!["check", "flue-gas-span", "--library", typo.to_str().unwrap()],
+        vec!["--library", typo.to_str().unwrap(), "plan", "flue-gas-span"],
+        vec!["records", "--library", typo.to_str().unwrap()],
+    ] {
+        let o = common::run_fillwright("typo-all", &args);
+        assert_ne!(o.status.code(), Some(0), "{args:?}: {}", out(&o));
+        assert!(err(&o).contains("does not exist"), "{args:?}: {}", err(&o));
+        assert!(!typo.exists(), "{args:?} created the folder");
+    }
+}
