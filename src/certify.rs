@@ -25,11 +25,113 @@ pub struct Found {
 }
 
 /// How to evaluate: the model for pressure readings, the Monte Carlo draws and seed.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone)]
 pub struct Evaluate {
     pub model: Option<Model>,
     pub draws: usize,
     pub seed: u64,
+    /// The date of issue, YYYY-MM-DD (default today).
+    pub issued: Option<String>,
+}
+
+/// Add `months` to a date `YYYY-MM-DD` (the day clamped to the month's last).
+pub fn add_months(date: &str, months: u32) -> Option<String> {
+    let mut parts = date.get(..10)?.split('-');
+    let (y, m, d): (i32, u32, u32) =
+        (parts.next()?.parse().ok()?, parts.next()?.parse().ok()?, parts.next()?.parse().ok()?);
+    if !(1..=12).contains(&m) || !(1..=31).contains(&d) {
+        return None;
+    }
+    let total = (m - 1) + months;
+    let (y, m) = (y + (total / 12) as i32, total % 12 + 1);
+    let leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+    let last = [31, if leap { 29 } else { 28 }, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31][(m - 1) as usize];
+    Some(format!("{y:04}-{m:02}-{:02}", d.min(last)))
+}
+
+/// How long a certificate of this blend is valid, months: the setting, else by its
+/// components (common practice, no source): 6 with a reactive gas (NO, NO2, SO2, H2S,
+/// NH3, HCl, Cl2 or any corrosive one), 12 with CO or a hydrocarbon below 0.1 %, else 24.
+pub fn shelf_life_months(gases: &[usize], fractions: &[f64], catalogue: &Catalogue, setting: Option<u32>) -> u32 {
+    if let Some(m) = setting {
+        return m;
+    }
+    let reactive = ["NO", "NO2", "SO2", "H2S", "NH3", "HCl", "Cl2"];
+    let ids: Vec<&str> = gases.iter().map(|&g| catalogue.gas(g).id()).collect();
+    if ids.iter().zip(gases).any(|(id, &g)| reactive.contains(id) || catalogue.gas(g).hazard().corrosive) {
+        return 6;
+    }
+    let trace_of = |id: &str, x: f64| x < 1e-3 && (id == "CO" || id.contains('C') && id.contains('H'));
+    if ids.iter().zip(fractions).any(|(id, &x)| trace_of(id, x)) {
+        12
+    } else {
+        24
+    }
+}
+
+/// What makes the certificate a document: its number and dates, the order, the cylinder
+/// and the final pressure, and the blend's own cautions.
+/// What the fill made: the evaluation, the cylinder's volume and the model for its pressure.
+struct Made<'a> {
+    evaluation: &'a record::Evaluation,
+    volume_m3: Option<f64>,
+    model: Model,
+}
+
+fn document(
+    record: &Record,
+    id: &str,
+    order: Option<&crate::recipe::Order>,
+    made: Made,
+    catalogue: &Catalogue,
+    settings: &crate::settings::Resolved,
+    issued: Option<&str>,
+) -> crate::certificate::Document {
+    let Made { evaluation, volume_m3, model } = made;
+    let issued = issued.map(str::to_string).unwrap_or_else(|| crate::library::clock::now_utc()[..10].to_string());
+    let year = issued.get(..4).unwrap_or("");
+    let number = settings.certificate_number.replace("{record}", id).replace("{year}", year);
+    let gases = &evaluation.measurand.gases;
+    let months = shelf_life_months(gases, &evaluation.gum.values, catalogue, settings.shelf_life_months);
+    let amounts = evaluation.measurand.amounts_mol();
+    let final_pressure_bar = volume_m3.and_then(|v| {
+        let fluid = crate::thermo::Fluid::new(catalogue, gases, model).ok()?;
+        fluid.pressure(crate::units::REFERENCE_TEMPERATURE_K, v, &amounts).ok().map(|p| p / 1e5)
+    });
+    let mut cautions: Vec<String> = Vec::new();
+    if let Some(o) = order {
+        let options = crate::plan::PlanOptions { skip_following: true, ..Default::default() };
+        if let Ok(plan) = crate::plan::plan(o, catalogue, &options) {
+            let findings = crate::checks::screen(&plan, o, catalogue, &settings.conditions());
+            cautions.extend(
+                findings
+                    .iter()
+                    .filter(|c| c.severity != crate::checks::Severity::Ok)
+                    .map(|c| format!("{}: {}", c.id, c.message)),
+            );
+        }
+    }
+    if months <= 6 {
+        cautions.push(
+            "reactive components: keep in a passivated cylinder with a suitable valve; the content may drift \
+             (shelf life 6 months)"
+                .into(),
+        );
+    }
+    cautions.push(format!("valid for {months} months from issue if kept between 0 and 40 °C (common practice)"));
+    cautions.push(crate::checks::CAUTIONS[1].to_string());
+    crate::certificate::Document {
+        number,
+        valid_until: add_months(&issued, months).unwrap_or_default(),
+        issued,
+        order_reference: order.map(|o| o.order.clone()).unwrap_or_default(),
+        customer: record.customer.clone(),
+        recipe_title: order.map(|o| o.description.lines().next().unwrap_or("").to_string()).unwrap_or_default(),
+        water_capacity_l: volume_m3.map(|v| v * 1e3),
+        working_pressure_bar: order.map(|o| o.working_pressure_pa / 1e5),
+        final_pressure_bar,
+        cautions,
+    }
 }
 
 /// A name that can only be a file.
@@ -80,6 +182,7 @@ pub struct Certified {
     /// Why the fill is not finished, if it is not (the certificate is then refused, or
     /// printed as the composition so far with `--in-progress`).
     pub unfinished: Option<String>,
+    pub document: crate::certificate::Document,
 }
 
 /// Why a record is not a finished fill: an addition recorded but not weighed; or, for a
@@ -139,7 +242,7 @@ pub fn check_sources(checked: &Checked, catalogue: &Catalogue) -> Result<Vec<Str
 
 /// Check, evaluate and verify a record.
 pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Result<Certified, String> {
-    let Evaluate { model, draws, seed } = how;
+    let Evaluate { model, draws, seed, issued } = how.clone();
     let (id, record, library) = (found.id.as_str(), &found.record, found.library.as_ref());
     let (text, origin) = (found.text.as_str(), found.origin.as_str());
     let sources = config::config_dir().map(|d| d.join("sources"));
@@ -203,6 +306,8 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     if checked.method == record::Method::Manometric {
         remarks.push("composition from pressure readings: expect about 1 % relative, ten times a gravimetric preparation (common practice)".into());
     }
+    let made = Made { evaluation: &evaluation, volume_m3: volume, model };
+    let document = document(record, id, order.as_ref(), made, catalogue, &settings, issued.as_deref());
     Ok(Certified {
         id: id.to_string(),
         record: record.clone(),
@@ -214,6 +319,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
         verifications: Vec::new(),
         combine_verification: settings.combine_verification_uncertainty,
         unfinished,
+        document,
     })
 }
 
@@ -231,6 +337,7 @@ impl Certified {
             verifications: self.verifications.clone(),
             combine_verification: self.combine_verification,
             unfinished: self.unfinished.clone(),
+            document: self.document.clone(),
         }
     }
 
@@ -289,7 +396,7 @@ pub fn record_content(
         record: opened.record,
         library: Some(lib.clone()),
     };
-    let how = Evaluate { model: None, draws: RECORD_DRAWS, seed: crate::record::DEFAULT_SEED };
+    let how = Evaluate { model: None, draws: RECORD_DRAWS, seed: crate::record::DEFAULT_SEED, issued: None };
     let certified = certify_record(&found, catalogue, how).map_err(|e| format!("record {id}: {e}"))?;
     let e = &certified.evaluation;
     let i = e.measurand.gases.iter().position(|&g| g == gas).ok_or_else(|| {

@@ -38,6 +38,11 @@ pub struct Settings {
     /// with the gravimetric one (u² = u_prep² + u_ver²); false keeps the gravimetric
     /// uncertainty alone, the verification shown beside it.
     pub combine_verification_uncertainty: bool,
+    /// The certificate number: `{record}` and `{year}` are replaced (e.g. "FW-{year}-{record}").
+    pub certificate_number: String,
+    /// Months a certificate is valid for; none: by the blend's components (6 months with a
+    /// reactive gas, 12 with a ppm-level CO or hydrocarbon, else 24; common practice).
+    pub shelf_life_months: Option<u32>,
 }
 
 impl Default for Settings {
@@ -59,6 +64,8 @@ impl Default for Settings {
             condensation_margin: DEFAULT_CONDENSATION_MARGIN.into(),
             git_commit_on_save: false,
             combine_verification_uncertainty: false,
+            certificate_number: "{year}-{record}".into(),
+            shelf_life_months: None,
         }
     }
 }
@@ -101,6 +108,8 @@ pub struct Resolved {
     pub condensation_margin_k: f64,
     pub git_commit_on_save: bool,
     pub combine_verification_uncertainty: bool,
+    pub certificate_number: String,
+    pub shelf_life_months: Option<u32>,
 }
 
 impl Resolved {
@@ -163,6 +172,8 @@ impl Settings {
             condensation_margin_k,
             git_commit_on_save: self.git_commit_on_save,
             combine_verification_uncertainty: self.combine_verification_uncertainty,
+            certificate_number: self.certificate_number.clone(),
+            shelf_life_months: self.shelf_life_months,
         })
     }
 }

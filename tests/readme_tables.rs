@@ -54,7 +54,7 @@ fn fill_sheet_and_screening_examples_are_current() {
     let runs: [&[&str]; 6] = [
         &["plan", "flue-gas-span"],
         &["check", "lpg-in-methane"],
-        &["certify", "tests/records/flue-gas-made.ron"],
+        &["certify", "tests/records/flue-gas-made.ron", "--issued", "2026-12-04"],
         &["plan", "--mix", "CO2=60%,N2=balance", "--volume", "10L", "--pressure", "150bar"],
         &["state", "--mix", "CO2", "--temp", "15C", "--volume", "10L", "--amount", "100mol"],
         &["verify", "tests/verifications/co-ppm-quadratic.ron"],

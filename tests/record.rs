@@ -429,3 +429,42 @@ fn air_buoyancy_moves_the_composition_and_enters_the_budget() {
         assert!(String::from_utf8_lossy(&o.stderr).contains(needle), "{}", String::from_utf8_lossy(&o.stderr));
     }
 }
+
+#[test]
+fn the_certificate_is_a_document_with_number_dates_order_cylinder_and_signatures() {
+    let (config, lib) = library_with_record("document");
+    let path = lib.join("records/FC-10-2291-20261202.ron");
+    let text =
+        std::fs::read_to_string(&path).unwrap().replace("cylinder:", "customer: \"Brewery stack lab\",\n    cylinder:");
+    std::fs::write(&path, text).unwrap();
+    std::fs::write(config.join("settings.ron"), "(certificate_number: \"FW-{year}-{record}\")").unwrap();
+    let o = run(
+        &config,
+        &["certify", "FC-10-2291-20261202", "--draws", "1000", "--issued", "2026-02-28", "--format", "json"],
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["certificate"]["number"], "FW-2026-FC-10-2291-20261202");
+    assert_eq!(v["certificate"]["issued"], "2026-02-28");
+    // CO at ppm level: 12 months (common practice), to the same day.
+    assert_eq!(v["certificate"]["valid_until"], "2027-02-28");
+    assert_eq!(v["order"]["reference"], "BRW-2026-0117");
+    assert_eq!(v["order"]["customer"], "Brewery stack lab");
+    assert_eq!(v["cylinder"]["serial"], "FC-10-2291");
+    assert_eq!(v["cylinder"]["water_capacity_l"], 10.0);
+    assert_eq!(v["cylinder"]["working_pressure_bar"], 200.0);
+    // About 65 mol in 10 L at 15 °C: near the fill pressure, never zero.
+    let p = v["cylinder"]["final_pressure_bar"].as_f64().unwrap();
+    assert!(p > 140.0 && p < 170.0, "{p}");
+    assert!(!v["cautions"].as_array().unwrap().is_empty());
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000", "--issued", "2026-02-28"]);
+    let text = out(&o);
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "{text}");
+    assert!(text.contains("prepared by ____") && text.contains("approved by ____"), "{text}");
+    assert!(text.contains("final pressure") && text.contains("at 15 °C"), "{text}");
+    // The Monte Carlo table speaks in words no gas formula reads as.
+    assert!(!text.contains(" NO\n") && !text.lines().any(|l| l.ends_with("  yes")), "{text}");
+    // A date that is not one is wrong usage.
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--issued", "2026-13-01"]);
+    assert_eq!(o.status.code(), Some(2));
+}

@@ -6,7 +6,7 @@
   <!-- generated: hazard-review -->   cargo run --example hazard_review
   <!-- generated: fill-sheet -->      cargo run -- plan flue-gas-span
   <!-- generated: check-lpg -->       cargo run -- check lpg-in-methane
-  <!-- generated: certificate -->     cargo run -- certify tests/records/flue-gas-made.ron
+  <!-- generated: certificate -->     cargo run -- certify tests/records/flue-gas-made.ron --issued 2026-12-04
   <!-- generated: plan-liquid -->     cargo run -- plan --mix "CO2=60%,N2=balance" --volume 10L --pressure 150bar
   <!-- generated: state-two-phase --> cargo run -- state --mix CO2 --temp 15C --volume 10L --amount 100mol
   <!-- generated: verify -->          cargo run -- verify tests/verifications/co-ppm-quadratic.ron
@@ -25,8 +25,8 @@ PARTS = {
     "hazard-review": (["cargo", "run", "-q", "--example", "hazard_review"], None),
     "fill-sheet": (["cargo", "run", "-q", "--", "plan", "flue-gas-span"], "plan flue-gas-span"),
     "check-lpg": (["cargo", "run", "-q", "--", "check", "lpg-in-methane"], "check lpg-in-methane"),
-    "certificate": (["cargo", "run", "-q", "--", "certify", "tests/records/flue-gas-made.ron"],
-                    "certify tests/records/flue-gas-made.ron"),
+    "certificate": (["cargo", "run", "-q", "--", "certify", "tests/records/flue-gas-made.ron", "--issued", "2026-12-04"],
+                    "certify tests/records/flue-gas-made.ron --issued 2026-12-04"),
     "plan-liquid": (["cargo", "run", "-q", "--", "plan", "--mix", "CO2=60%,N2=balance", "--volume", "10L",
                      "--pressure", "150bar"],
                     'plan --mix "CO2=60%,N2=balance" --volume 10L --pressure 150bar'),

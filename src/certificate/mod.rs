@@ -52,6 +52,26 @@ pub struct Certificate<'a> {
     /// Why the fill is not finished, if it is not: then this is the composition so far,
     /// never a certificate, bannered on every page.
     pub unfinished: Option<String>,
+    pub document: Document,
+}
+
+/// What makes the certificate a document a laboratory can issue.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Document {
+    pub number: String,
+    /// YYYY-MM-DD.
+    pub issued: String,
+    pub valid_until: String,
+    pub order_reference: String,
+    pub customer: String,
+    /// The recipe's description, first line.
+    pub recipe_title: String,
+    pub water_capacity_l: Option<f64>,
+    pub working_pressure_bar: Option<f64>,
+    /// The pressure at 15 °C of the amounts made, bar absolute.
+    pub final_pressure_bar: Option<f64>,
+    /// The blend's own cautions from the screening, then the usual ones.
+    pub cautions: Vec<String>,
 }
 
 /// The banner of every page of the composition of an unfinished fill.
@@ -229,8 +249,30 @@ impl Certificate<'_> {
             o.push("!! The analysis does not confirm the prepared content: do not issue.".into());
             o.push("!".repeat(78));
         }
+        let d = &self.document;
+        let or_not = |s: &str| if s.trim().is_empty() { "(not recorded)".to_string() } else { s.to_string() };
+        o.push(crate::ron_format::clip(&format!("certificate {}", d.number), 80));
+        o.push(format!("  issued {} | valid until {}", d.issued, d.valid_until));
+        o.push(crate::ron_format::clip(
+            &format!("order {} | customer {}", or_not(&d.order_reference), or_not(&d.customer)),
+            80,
+        ));
         o.push(format!("record {} rev {} | cylinder {}", self.id, r.revision, r.cylinder));
+        let cylinder = [
+            d.water_capacity_l.map(|v| format!("{v} L water capacity")),
+            d.working_pressure_bar.map(|p| format!("working pressure {p:.0} bar")),
+        ];
+        let cylinder: Vec<String> = cylinder.into_iter().flatten().collect();
+        if !cylinder.is_empty() {
+            o.push(format!("  {}", cylinder.join(" | ")));
+        }
+        if let Some(p) = d.final_pressure_bar {
+            o.push(format!("  final pressure {p:.1} bar (absolute) at 15 °C, from the composition made"));
+        }
         o.push(format!("recipe {} revision {}", r.recipe, r.recipe_revision));
+        if !d.recipe_title.is_empty() {
+            o.push(crate::ron_format::clip(&format!("  {}", d.recipe_title), 80));
+        }
         if let Some(h) = &r.recipe_sha256 {
             o.push(format!("  sha256 {h}"));
         }
@@ -354,11 +396,11 @@ impl Certificate<'_> {
                 in_unit(e.gum.u[i], unit),
                 in_unit(mc.u[i], unit),
                 interval,
-                if a.agrees { "yes" } else { "NO" }
+                if a.agrees { "agrees" } else { "differs" }
             ));
         }
         if e.agreement.iter().any(|a| !a.agrees) {
-            o.push("  where NO: GUM and Monte Carlo differ by more than 5 % of u (JCGM 101,".into());
+            o.push("  differs: GUM and Monte Carlo differ by more than 5 % of u (JCGM 101,".into());
             o.push("  8.2); the Monte Carlo interval is the better statement there.".into());
         }
         if mc.failed > 0 {
@@ -370,6 +412,18 @@ impl Certificate<'_> {
             for rmk in &self.remarks {
                 o.extend(wrap(&format!("- {rmk}"), 78, "  "));
             }
+        }
+        if !d.cautions.is_empty() {
+            o.push(String::new());
+            o.push("CAUTIONS OF THIS BLEND".into());
+            for c in &d.cautions {
+                o.extend(wrap(&format!("- {c}"), 78, "  "));
+            }
+        }
+        if self.unfinished.is_none() {
+            o.push(String::new());
+            o.push("prepared by ______________________________  date ______________".into());
+            o.push("approved by ______________________________  date ______________".into());
         }
         o.push(String::new());
         let verified = if self.verifications.is_empty() { "verified (ISO 6143) " } else { "" };
@@ -426,7 +480,19 @@ impl Certificate<'_> {
             "record": self.id,
             "record_revision": r.revision,
             "draft": true,
-            "cylinder": r.cylinder,
+            "certificate": {
+                "number": self.document.number,
+                "issued": self.document.issued,
+                "valid_until": self.document.valid_until,
+            },
+            "order": {"reference": self.document.order_reference, "customer": self.document.customer},
+            "cylinder": {
+                "serial": r.cylinder,
+                "water_capacity_l": self.document.water_capacity_l,
+                "working_pressure_bar": self.document.working_pressure_bar,
+                "final_pressure_bar": self.document.final_pressure_bar,
+            },
+            "cautions": self.document.cautions,
             "recipe": {
                 "name": r.recipe,
                 "revision": r.recipe_revision,

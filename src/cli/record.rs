@@ -40,6 +40,9 @@ pub struct CertifyArgs {
     /// Model for a record of pressure readings (default: the record's, else as for plans).
     #[arg(long, value_enum)]
     pub model: Option<Model>,
+    /// The date of issue, YYYY-MM-DD (default: today); the validity runs from it.
+    #[arg(long, value_name = "DATE", value_parser = issue_date)]
+    pub issued: Option<String>,
     /// Print the composition so far of a fill that is not finished (bannered on every
     /// page, never a certificate); without it an unfinished fill is refused.
     #[arg(long)]
@@ -73,13 +76,20 @@ fn find(args: &CertifyArgs) -> Result<Found, Refused> {
     })
 }
 
+/// A date of issue as YYYY-MM-DD.
+fn issue_date(text: &str) -> Result<String, String> {
+    crate::certify::add_months(text, 0)
+        .filter(|d| d == text)
+        .ok_or_else(|| format!("{text:?} is not a date; write it as YYYY-MM-DD, e.g. 2026-12-04"))
+}
+
 pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     if args.format == Format::Csv {
         return Err(Failure::Usage("certify prints text or json; --format csv is not offered".into()));
     }
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let found = find(args)?;
-    let how = Evaluate { model: args.model, draws: args.draws as usize, seed: args.seed };
+    let how = Evaluate { model: args.model, draws: args.draws as usize, seed: args.seed, issued: args.issued.clone() };
     let mut c = certify_record(&found, &catalogue, how).map_err(Refused)?;
     if let (Some(why), false) = (&c.unfinished, args.in_progress) {
         return Err(Refused(format!(

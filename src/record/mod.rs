@@ -74,6 +74,9 @@ pub struct Record {
     /// Its water capacity (needed for a record of pressure readings).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub water_capacity: Option<String>,
+    /// The customer (free text); the order reference is the recipe's.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub customer: String,
     /// Who filled it.
     #[serde(default)]
     pub operator: String,
@@ -226,6 +229,7 @@ impl Record {
             recipe_sha256: Some(sha256_hex(canonical_text.as_bytes())),
             cylinder: cylinder.to_string(),
             water_capacity: None,
+            customer: String::new(),
             operator: String::new(),
             balance: String::new(),
             started: Some(now.to_string()),
