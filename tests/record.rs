@@ -468,3 +468,21 @@ fn the_certificate_is_a_document_with_number_dates_order_cylinder_and_signatures
     let o = run(&config, &["certify", "FC-10-2291-20261202", "--issued", "2026-13-01"]);
     assert_eq!(o.status.code(), Some(2));
 }
+
+#[test]
+fn a_component_without_uncertainty_is_shown_as_such_without_a_budget() {
+    let dir = fresh("exact");
+    let file = dir.join("pure.ron");
+    std::fs::write(
+        &file,
+        "Record(format: 1, recipe: \"x\", cylinder: \"Z-1\", scale_uncertainty: \"0.010g\", \
+         weighings: [\"1000.000g\", \"1100.000g\"], additions: [(source: \"N2\")])",
+    )
+    .unwrap();
+    let o = run(&dir, &["certify", file.to_str().unwrap(), "--draws", "1000"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let text = out(&o);
+    let n2 = text.lines().find(|l| l.starts_with("N2 ")).unwrap();
+    assert!(n2.contains("none") && !n2.contains("0.000000"), "{n2}");
+    assert!(text.contains("N2 u = 0: no uncertainty stated, so no budget"), "{text}");
+}

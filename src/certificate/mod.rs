@@ -90,6 +90,12 @@ pub struct Verified {
 pub fn with_uncertainty(x: f64, expanded: f64) -> (String, String, &'static str) {
     let (scale, unit) = unit_for(x.abs().max(expanded));
     let (xs, us) = (x * scale, expanded * scale);
+    // No uncertainty (or one below a part in 10⁹ of the value): the value to six
+    // significant digits and "none", never a run of zeros.
+    if !(us > 1e-9 * xs.abs()) {
+        let decimals = (5 - xs.abs().max(1e-300).log10().floor() as i32).clamp(0, 9) as usize;
+        return (format!("{xs:.decimals$}"), "none".into(), unit);
+    }
     let decimals = if us > 0.0 { (1 - us.log10().floor() as i32).clamp(0, 12) as usize } else { 6 };
     (format!("{xs:.decimals$}"), format!("{us:.decimals$}"), unit)
 }
@@ -373,6 +379,10 @@ impl Certificate<'_> {
         o.push("UNCERTAINTY BUDGET  the largest contributions to u, share of u²".into());
         for i in 0..e.gum.values.len() {
             let (_, us, unit) = with_uncertainty(e.gum.values[i], e.gum.u[i]);
+            if us == "none" {
+                o.push(format!("{} u = 0: no uncertainty stated, so no budget", self.id_of(i)));
+                continue;
+            }
             o.push(format!("{} u = {us} {unit}", self.id_of(i)));
             for c in e.gum.budget[i].iter().filter(|c| c.share_percent >= 0.01).take(4) {
                 o.push(format!("   {:<44} {:>7.2} %", crate::ron_format::clip(&c.group, 44), c.share_percent));
