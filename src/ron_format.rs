@@ -160,6 +160,18 @@ pub fn shorten(message: &str) -> String {
     out
 }
 
+/// A file's canonical text: named structs, three levels of indentation, optional fields
+/// bare, a final newline (records and verification files).
+pub fn to_text<T: serde::Serialize>(value: &T) -> String {
+    let config = ron::ser::PrettyConfig::new()
+        .depth_limit(3)
+        .struct_names(true)
+        .extensions(ron::extensions::Extensions::IMPLICIT_SOME);
+    let mut text = ron::ser::to_string_pretty(value, config).unwrap_or_default();
+    text.push('\n');
+    text
+}
+
 /// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
 pub fn csv_field(s: &str) -> String {
     if s.contains([',', '"', '\n']) {

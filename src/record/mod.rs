@@ -269,13 +269,7 @@ impl Record {
 
     /// The canonical text of the record (fixed field order, quantities as typed).
     pub fn to_text(&self) -> String {
-        let config = ron::ser::PrettyConfig::new()
-            .depth_limit(3)
-            .struct_names(true)
-            .extensions(ron::extensions::Extensions::IMPLICIT_SOME);
-        let mut text = ron::ser::to_string_pretty(self, config).unwrap_or_default();
-        text.push('\n');
-        text
+        crate::ron_format::to_text(self)
     }
 
     /// Read every field into numbers. `lookup` resolves `@NAME` and `record:ID` sources;

@@ -155,13 +155,7 @@ impl Verification {
 
     /// The canonical text (fixed field order, values as typed).
     pub fn to_text(&self) -> String {
-        let config = ron::ser::PrettyConfig::new()
-            .depth_limit(3)
-            .struct_names(true)
-            .extensions(ron::extensions::Extensions::IMPLICIT_SOME);
-        let mut text = ron::ser::to_string_pretty(self, config).unwrap_or_default();
-        text.push('\n');
-        text
+        crate::ron_format::to_text(self)
     }
 
     /// The file name a verification is kept under in the library: cylinder and gas.
