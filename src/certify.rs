@@ -347,7 +347,17 @@ impl Certified {
     pub fn attach_verifications(&mut self, library: &Library, catalogue: &Catalogue) {
         let id = self.id.clone();
         for (name, file) in library.verifications() {
-            let Ok(v) = file else { continue };
+            let v = match file {
+                Ok(v) => v,
+                // A file that cannot be read is named where it may concern this record.
+                Err(why) => {
+                    let text = library.verification_path(&name).ok().and_then(|p| std::fs::read_to_string(p).ok());
+                    if text.is_some_and(|t| t.contains(id.as_str())) {
+                        self.verifications.push(crate::certificate::Verified { file: name, outcome: Err(why) });
+                    }
+                    continue;
+                }
+            };
             if v.sample.record.as_deref() != Some(id.as_str()) {
                 continue;
             }

@@ -97,6 +97,8 @@ fn a_full_disk_on_standard_output_is_a_message_and_exit_1() {
         vec!["plan", "flue-gas-span"],
         vec!["state", "--mix", "N2", "--temp", "15C", "--volume", "10L", "--pressure", "150bar"],
         vec!["gases", "--format", "json"],
+        vec!["--help"],
+        vec!["plan", "--help"],
     ] {
         let o = to_dev_full(&args);
         assert_eq!(o.status.code(), Some(1), "{args:?}: {}", err(&o));

@@ -231,3 +231,34 @@ fn a_recipe_deleted_on_one_bench_and_edited_on_the_other_is_kept_edited() {
         assert_eq!(notes[1].1, "edited on B", "{bench}");
     }
 }
+
+#[test]
+fn locks_left_by_a_killed_sync_are_cleared_and_a_save_made_since_is_kept() {
+    let lab = Lab::new("stale");
+    let lib = lab.library("b");
+    let git_dir = lib.join(".git");
+    // What a sync killed while moving the library leaves: git's locks and the marker.
+    let head = String::from_utf8_lossy(&git(&lib, &["rev-parse", "HEAD"]).stdout).trim().to_string();
+    std::fs::write(git_dir.join("HEAD.lock"), "").unwrap();
+    std::fs::write(git_dir.join("index.lock"), "").unwrap();
+    std::fs::write(git_dir.join("fillwright-sync-target"), &head).unwrap();
+    // A save made after the kill.
+    lab.save("b", "flue-gas-span", "saved after the kill", "bench B", "2026-12-04T12:00:00Z");
+    let said = lab.sync_ok("b");
+    assert!(said.contains("sent"), "{said}");
+    let notes = history_notes(&lib, "flue-gas-span");
+    assert_eq!(notes.last().unwrap().1, "saved after the kill", "{notes:?}");
+    assert!(!git_dir.join("HEAD.lock").exists() && !git_dir.join("fillwright-sync-target").exists());
+    lab.sync_ok("a");
+    assert_eq!(history_notes(&lab.library("a"), "flue-gas-span").last().unwrap().1, "saved after the kill");
+}
+
+#[test]
+fn a_remote_that_cannot_be_reached_is_a_message_and_exit_1() {
+    let lab = Lab::new("unreachable");
+    let lib = lab.library("a");
+    git(&lib, &["remote", "set-url", "origin", &lab.root.join("no-such-server.git").display().to_string()]);
+    let o = lab.fillwright("a", &["sync"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("git fetch"), "{}", String::from_utf8_lossy(&o.stderr));
+}

@@ -329,3 +329,14 @@ fn every_verification_of_a_gas_is_judged_whatever_the_file_names() {
         assert!(!text.contains("the analysis\n  confirms it"), "{text}");
     }
 }
+
+#[test]
+fn a_damaged_verification_file_of_the_record_is_named_on_the_certificate() {
+    let (config, lib) = library_with_verified_record("damaged", "1.46000±0.00030");
+    let file = lib.join("verifications/FC-10-2291-CO2.ron");
+    let text = std::fs::read_to_string(&file).unwrap();
+    std::fs::write(&file, &text[..text.len() - 3]).unwrap();
+    let o = common::run_in(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stdout(&o).contains("FC-10-2291-CO2: no verdict"), "{}", stdout(&o));
+}

@@ -204,9 +204,20 @@ impl<T: Into<Refused>> From<T> for Failure {
 pub fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
-        Err(e) => {
+        Err(e) if e.use_stderr() => {
             let _ = e.print();
-            return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
+            return ExitCode::from(2);
+        }
+        // Help and version go to standard output, whose write errors are reported.
+        Err(e) => {
+            out!("{}", e.render().ansi());
+            return match stdout_failure() {
+                Some(why) => {
+                    eprintln!("fillwright: standard output could not be written: {why}");
+                    ExitCode::from(1)
+                }
+                None => ExitCode::SUCCESS,
+            };
         }
     };
     // A --library before the command holds for the command too (as the environment would).

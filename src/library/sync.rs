@@ -75,6 +75,9 @@ pub enum SyncError {
     Busy,
 }
 
+/// How long a fetch or a push may wait on the remote.
+const NETWORK_TIMEOUT: std::time::Duration = std::time::Duration::from_secs(60);
+
 /// The marker a sync writes before moving the work tree: the commit it moves to.
 const MARKER: &str = "fillwright-sync-target";
 
@@ -88,6 +91,12 @@ impl Git<'_> {
     fn command(&self, args: &[&str]) -> Command {
         let mut c = Command::new("git");
         c.arg("-C").arg(self.dir).args(args).stdin(Stdio::null());
+        // Never wait for a password or a host that does not answer: a sync fails, saying so.
+        c.env("GIT_TERMINAL_PROMPT", "0");
+        if std::env::var_os("GIT_SSH_COMMAND").is_none() {
+            c.env("GIT_SSH_COMMAND", "ssh -o BatchMode=yes -o ConnectTimeout=20");
+        }
+        c.env("GIT_HTTP_LOW_SPEED_LIMIT", "1000").env("GIT_HTTP_LOW_SPEED_TIME", "30");
         // A git of a sync that is killed dies with it, so that it never goes on working
         // beside the next sync.
         #[cfg(target_os = "linux")]
@@ -142,6 +151,24 @@ impl Git<'_> {
                 std::io::Write::write_all(&mut stdin, bytes).map_err(|e| failed(e.to_string()))?;
             }
             child.wait_with_output().map_err(|e| failed(e.to_string()))?
+        } else if matches!(args.first(), Some(&"fetch") | Some(&"push")) {
+            // A remote that never answers (a git:// host behind a firewall) is given up
+            // after a minute.
+            c.stdout(Stdio::piped()).stderr(Stdio::piped());
+            let mut child = c.spawn().map_err(|e| failed(format!("{e} (is git installed?)")))?;
+            let start = std::time::Instant::now();
+            while child.try_wait().map_err(|e| failed(e.to_string()))?.is_none() {
+                if start.elapsed() > NETWORK_TIMEOUT {
+                    let _ = child.kill();
+                    let _ = child.wait();
+                    return Err(failed(format!(
+                        "the remote did not answer within {} s; check the network and the remote's address",
+                        NETWORK_TIMEOUT.as_secs()
+                    )));
+                }
+                std::thread::sleep(std::time::Duration::from_millis(20));
+            }
+            child.wait_with_output().map_err(|e| failed(e.to_string()))?
         } else {
             c.output().map_err(|e| failed(format!("{e} (is git installed?)")))?
         };
@@ -178,7 +205,7 @@ impl Library {
         let _all = self.lock_library_exclusive()?;
         let git_dir = git.run(&["rev-parse", "--absolute-git-dir"])?.trim().to_string();
         let marker = Path::new(&git_dir).join(MARKER);
-        finish_interrupted(&git, &marker, &git_dir)?;
+        finish_interrupted(&git, &marker, &git_dir, &self.dir)?;
         let branch = git.run(&["symbolic-ref", "--short", "HEAD"])?.trim().to_string();
         fetch(&git, &remote, &git_dir)?;
         adopt_remote_if_new(&git, &format!("refs/remotes/{remote}/{branch}"))?;
@@ -190,7 +217,7 @@ impl Library {
             let theirs = format!("refs/remotes/{remote}/{branch}");
             let have_theirs = git.run(&["rev-parse", "--verify", "--quiet", &theirs]).is_ok();
             if have_theirs {
-                let (received, merged, kept) = merge_in(&git, &theirs, &marker)?;
+                let (received, merged, kept) = merge_in(&git, &theirs, &marker, &self.dir)?;
                 synced.received += received;
                 synced.merged_recipes.extend(merged);
                 synced.kept_both.extend(kept);
@@ -263,12 +290,60 @@ fn remove_lock_files(dir: &Path) {
 }
 
 /// A sync killed after it wrote its marker: move to the commit it named.
-fn finish_interrupted(git: &Git, marker: &Path, git_dir: &str) -> Result<(), SyncError> {
+fn finish_interrupted(git: &Git, marker: &Path, git_dir: &str, library: &Path) -> Result<(), SyncError> {
+    // A git of a killed sync leaves its lock files; no other git of ours runs now (the
+    // library lock is held, and a sync's git dies with it).
+    for lock in ["index.lock", "HEAD.lock", "fillwright-sync-index", "fillwright-sync-index.lock"] {
+        let _ = std::fs::remove_file(Path::new(git_dir).join(lock));
+    }
     let Ok(target) = std::fs::read_to_string(marker) else { return Ok(()) };
-    // A git killed mid-checkout leaves its index lock; no other git of ours runs now.
-    let _ = std::fs::remove_file(Path::new(git_dir).join("index.lock"));
-    git.run(&["reset", "--quiet", "--hard", target.trim()])?;
+    move_to(git, target.trim(), library)?;
     let _ = std::fs::remove_file(marker);
+    Ok(())
+}
+
+/// Move the library from HEAD to `target` file by file, each written atomically: a file
+/// already at the target is left, one still at HEAD's text is replaced, and one that is
+/// neither (saved since an interrupted sync) is kept as it is, to be committed as a local
+/// save. Then HEAD and the index follow. Run again after a kill, it completes the move.
+fn move_to(git: &Git, target: &str, library: &Path) -> Result<(), SyncError> {
+    let head = git.run(&["rev-parse", "HEAD"])?.trim().to_string();
+    // Paths from git are relative to the top of the work tree (the library may be below it).
+    let top = git.run(&["rev-parse", "--show-toplevel"]).map(|t| std::path::PathBuf::from(t.trim()));
+    let root = top.unwrap_or_else(|_| library.to_path_buf());
+    let changed = git.run(&["diff", "--no-renames", "--name-only", "-z", &head, target])?;
+    let blob = |rev: &str, path: &str| git.run(&["rev-parse", "--verify", "--quiet", &format!("{rev}:{path}")]).ok();
+    for path in changed.split('\0').filter(|p| !p.is_empty()) {
+        let file = root.join(path);
+        let absolute = file.display().to_string();
+        let current = file.is_file().then(|| git.run(&["hash-object", "--", &absolute]).ok()).flatten();
+        let (wanted, before) = (blob(target, path), blob(&head, path));
+        let trim = |o: &Option<String>| o.as_ref().map(|s| s.trim().to_string());
+        let (current, wanted, before) = (trim(&current), trim(&wanted), trim(&before));
+        if current == wanted || current != before {
+            continue;
+        }
+        match wanted {
+            Some(oid) => {
+                let bytes = git
+                    .command(&["cat-file", "blob", &oid])
+                    .output()
+                    .map_err(|e| SyncError::Git { command: "cat-file".into(), message: e.to_string() })?
+                    .stdout;
+                if let Some(dir) = file.parent() {
+                    std::fs::create_dir_all(dir)
+                        .map_err(|e| SyncError::Git { command: "mkdir".into(), message: e.to_string() })?;
+                }
+                super::atomic::write(&file, &bytes)
+                    .map_err(|e| SyncError::Git { command: format!("write {path}"), message: e.to_string() })?;
+            }
+            None => {
+                let _ = std::fs::remove_file(&file);
+            }
+        }
+    }
+    git.run(&["update-ref", "HEAD", target])?;
+    git.run(&["read-tree", target])?;
     Ok(())
 }
 
@@ -304,7 +379,12 @@ fn commit_local_saves(git: &Git) -> Result<(), SyncError> {
 
 /// Merge `theirs` into HEAD without conflict markers; returns (commits received, recipes
 /// merged as consecutive revisions, other files kept twice).
-fn merge_in(git: &Git, theirs: &str, marker: &Path) -> Result<(usize, Vec<String>, Vec<String>), SyncError> {
+fn merge_in(
+    git: &Git,
+    theirs: &str,
+    marker: &Path,
+    library: &Path,
+) -> Result<(usize, Vec<String>, Vec<String>), SyncError> {
     let received: usize = git.run(&["rev-list", "--count", &format!("HEAD..{theirs}")])?.trim().parse().unwrap_or(0);
     if received == 0 {
         return Ok((0, Vec::new(), Vec::new()));
@@ -336,7 +416,7 @@ fn merge_in(git: &Git, theirs: &str, marker: &Path) -> Result<(usize, Vec<String
     };
     // The marker first: a kill from here on is completed by the next sync.
     std::fs::write(marker, &commit).map_err(|e| SyncError::Git { command: "marker".into(), message: e.to_string() })?;
-    git.run(&["reset", "--quiet", "--hard", &commit])?;
+    move_to(git, &commit, library)?;
     let _ = std::fs::remove_file(marker);
     Ok((received, merged, kept))
 }

@@ -167,13 +167,17 @@ impl Fit {
         Ok(0.5 * (a + b))
     }
 
+    /// The standard uncertainty of the content `x` read from a response with standard
+    /// uncertainty uy.
+    pub fn u_content(&self, x: f64, uy: f64) -> f64 {
+        (uy * uy + self.u_response(x).powi(2)).sqrt() / self.slope(x).abs()
+    }
+
     /// The sample's content and its standard uncertainty from its response y with
     /// standard uncertainty uy: u²(x) = (u²(y) + gᵀ·cov(b)·g) / F′(x)², g = (1, x, x², …).
     pub fn analyse(&self, y: f64, uy: f64) -> Result<(f64, f64), Option<f64>> {
         let x = self.content_of(y)?;
-        let slope = self.slope(x);
-        let u = (uy * uy + self.u_response(x).powi(2)).sqrt() / slope.abs();
-        Ok((x, u))
+        Ok((x, self.u_content(x, uy)))
     }
 }
 
@@ -318,7 +322,7 @@ fn check_data_monotonic(points: &[Point]) -> Result<(), FitError> {
     }
     let rises: Vec<bool> = sorted.windows(2).map(|w| w[1].y > w[0].y).collect();
     if let Some(k) = rises.iter().position(|&r| r != rises[0]) {
-        let (a, b) = (sorted[k + 1], sorted[k + 2]);
+        let (a, b) = (sorted[k], sorted[k + 1]);
         return Err(FitError::NotMonotonic(format!(
             "the responses are not monotonic in the content: {} at {} but {} at {} (each response should {} with \
              the content)",
