@@ -262,3 +262,17 @@ fn a_remote_that_cannot_be_reached_is_a_message_and_exit_1() {
     assert_eq!(o.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&o.stderr).contains("git fetch"), "{}", String::from_utf8_lossy(&o.stderr));
 }
+
+#[test]
+fn the_first_sync_of_a_new_clone_says_what_it_brought_in() {
+    let lab = Lab::new("first");
+    let root = &lab.root;
+    // A bench whose library was made before the lab's repository had anything in it.
+    let lib = root.join("c-lib");
+    assert!(git(root, &["init", "--quiet", "-b", "main", "c-lib"]).status.success());
+    git(&lib, &["remote", "add", "origin", root.join("lab.git").to_str().unwrap()]);
+    let o = common::run_in(&root.join("c-config"), &["sync", "--library", lib.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(String::from_utf8_lossy(&o.stdout).contains("brought in"), "{}", String::from_utf8_lossy(&o.stdout));
+    assert!(lib.join("flue-gas-span.ron").is_file());
+}

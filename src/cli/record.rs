@@ -140,9 +140,13 @@ pub struct RecordsArgs {
 
 /// One line of the records list: (id, recipe, revision, cylinder, started, state).
 fn summary(id: &str, r: &Record) -> (String, String, u64, String, String, String) {
-    let state = match &r.finished {
-        Some(_) => format!("finished, {} additions", r.additions.len()),
-        None => format!("in progress, {} weighings", r.weighings.len()),
+    // As certify judges it: a record written by hand (no start time) with every addition
+    // weighed is complete.
+    let weighed_all = r.weighings.len() > r.additions.len() && !r.additions.is_empty();
+    let state = match (&r.finished, &r.started) {
+        (Some(_), _) => format!("finished, {} additions", r.additions.len()),
+        (None, None) if weighed_all => format!("complete (by hand), {} additions", r.additions.len()),
+        (None, _) => format!("in progress, {} weighings", r.weighings.len()),
     };
     (id.to_string(), r.recipe.clone(), r.revision, r.cylinder.clone(), r.started.clone().unwrap_or_default(), state)
 }

@@ -714,7 +714,13 @@ impl Library {
             }));
         };
         if std::fs::symlink_metadata(&dst).is_ok() {
-            let hint = format!("fillwright undelete {name} --as {to}-restored");
+            let mut hint = format!("fillwright undelete {name} --as {to}-restored");
+            if of_name.len() > 1 {
+                hint.push_str(&format!(
+                    " ({} deleted recipes of that name: choose one with --deleted ID, as `fillwright undelete` lists them)",
+                    of_name.len()
+                ));
+            }
             return Err(LibraryError::NameTaken { name: to.to_string(), hint });
         }
         if to != name {

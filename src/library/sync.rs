@@ -208,10 +208,10 @@ impl Library {
         finish_interrupted(&git, &marker, &git_dir, &self.dir)?;
         let branch = git.run(&["symbolic-ref", "--short", "HEAD"])?.trim().to_string();
         fetch(&git, &remote, &git_dir)?;
-        adopt_remote_if_new(&git, &format!("refs/remotes/{remote}/{branch}"))?;
+        let adopted = adopt_remote_if_new(&git, &format!("refs/remotes/{remote}/{branch}"))?;
         self.ignore_local_files()?;
         commit_local_saves(&git)?;
-        let mut synced = Synced::default();
+        let mut synced = Synced { received: adopted, ..Synced::default() };
         for _ in 0..3 {
             fetch(&git, &remote, &git_dir)?;
             let theirs = format!("refs/remotes/{remote}/{branch}");
@@ -349,10 +349,10 @@ fn move_to(git: &Git, target: &str, library: &Path) -> Result<(), SyncError> {
 
 /// A bench's first sync, before it has a commit of its own: it starts from the lab's
 /// history, its own files laid over it as changes (nothing of the lab's is deleted).
-fn adopt_remote_if_new(git: &Git, theirs: &str) -> Result<(), SyncError> {
+fn adopt_remote_if_new(git: &Git, theirs: &str) -> Result<usize, SyncError> {
     let unborn = git.run(&["rev-parse", "--verify", "--quiet", "HEAD"]).is_err();
     if !unborn || git.run(&["rev-parse", "--verify", "--quiet", theirs]).is_err() {
-        return Ok(());
+        return Ok(0);
     }
     git.run(&["update-ref", "HEAD", theirs])?;
     git.run(&["reset", "--quiet", "--mixed", "HEAD"])?;
@@ -363,7 +363,7 @@ fn adopt_remote_if_new(git: &Git, theirs: &str) -> Result<(), SyncError> {
         args.extend(missing);
         git.run(&args)?;
     }
-    Ok(())
+    Ok(git.run(&["rev-list", "--count", "HEAD"])?.trim().parse().unwrap_or(0))
 }
 
 /// Commit whatever the library holds that is not committed yet (saves made without
