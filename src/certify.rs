@@ -71,6 +71,22 @@ pub fn shelf_life_months(gases: &[usize], fractions: &[f64], catalogue: &Catalog
 
 /// What makes the certificate a document: its number and dates, the order, the cylinder
 /// and the final pressure, and the blend's own cautions.
+/// Sources from the source library whose analysis had expired when they were added.
+fn expired_sources(record: &Record, sources: Option<&std::path::Path>) -> Vec<String> {
+    let mut remarks = Vec::new();
+    for (k, a) in record.additions.iter().enumerate() {
+        let (Some(name), Some(dir)) = (a.source.trim().strip_prefix('@'), sources) else { continue };
+        let Ok(entry) = crate::library::records::open_source(dir, name.trim()) else { continue };
+        let when = a.time.as_deref().or(record.started.as_deref()).unwrap_or("");
+        if let Some(expiry) =
+            entry.expiry.as_deref().filter(|e| !when.is_empty() && when.get(..10).is_some_and(|w| w > *e))
+        {
+            remarks.push(format!("addition {}: the analysis of source {name} expired on {expiry}", k + 1));
+        }
+    }
+    remarks
+}
+
 /// What the fill made: the evaluation, the cylinder's volume and the model for its pressure.
 struct Made<'a> {
     evaluation: &'a record::Evaluation,
@@ -285,18 +301,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
                 .into(),
         );
     }
-    for (k, a) in record.additions.iter().enumerate() {
-        if let (Some(name), Some(dir)) = (a.source.trim().strip_prefix('@'), sources.as_deref()) {
-            if let Ok(entry) = crate::library::records::open_source(dir, name.trim()) {
-                let when = a.time.as_deref().or(record.started.as_deref()).unwrap_or("");
-                if let Some(expiry) =
-                    entry.expiry.as_deref().filter(|e| !when.is_empty() && when.get(..10).is_some_and(|w| w > *e))
-                {
-                    remarks.push(format!("addition {}: the analysis of source {name} expired on {expiry}", k + 1));
-                }
-            }
-        }
-    }
+    remarks.extend(expired_sources(record, sources.as_deref()));
     if draws < record::DEFAULT_DRAWS {
         remarks.push(format!(
             "Monte Carlo with {draws} draws only; a certificate wants at least {}",

@@ -200,25 +200,33 @@ impl<T: Into<Refused>> From<T> for Failure {
     }
 }
 
-/// Run the program with the process arguments.
-pub fn main() -> ExitCode {
-    let cli = match Cli::try_parse() {
-        Ok(c) => c,
+/// The command line read; wrong usage prints its message (exit 2), and help and version
+/// are printed to standard output, whose write errors are reported (exit 1).
+fn parse() -> Result<Cli, ExitCode> {
+    match Cli::try_parse() {
+        Ok(c) => Ok(c),
         Err(e) if e.use_stderr() => {
             let _ = e.print();
-            return ExitCode::from(2);
+            Err(ExitCode::from(2))
         }
-        // Help and version go to standard output, whose write errors are reported.
         Err(e) => {
             out!("{}", e.render().ansi());
-            return match stdout_failure() {
+            Err(match stdout_failure() {
                 Some(why) => {
                     eprintln!("fillwright: standard output could not be written: {why}");
                     ExitCode::from(1)
                 }
                 None => ExitCode::SUCCESS,
-            };
+            })
         }
+    }
+}
+
+/// Run the program with the process arguments.
+pub fn main() -> ExitCode {
+    let cli = match parse() {
+        Ok(cli) => cli,
+        Err(code) => return code,
     };
     // A --library before the command holds for the command too (as the environment would).
     if let Some(dir) = cli.library.as_ref().filter(|_| cli.command.is_some()) {

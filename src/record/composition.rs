@@ -166,26 +166,7 @@ impl Measurand {
                         inputs.push(label, w, checked.scale_u_g, Shape::Normal)
                     })
                     .collect();
-                let buoyancy = checked.buoyancy.as_ref().map(|b| {
-                    let densities: Vec<usize> = if let [(rho, u)] = b.densities.as_slice() {
-                        let j = inputs.push("air density (all weighings)".into(), *rho, *u, Shape::Normal);
-                        vec![j; weighings.len()]
-                    } else {
-                        (0..weighings.len())
-                            .map(|k| {
-                                let (rho, u) = b.densities[k];
-                                let label = if k == 0 {
-                                    "air density before the fill".to_string()
-                                } else {
-                                    format!("air density at weighing {k}")
-                                };
-                                inputs.push(label, rho, u, Shape::Normal)
-                            })
-                            .collect()
-                    };
-                    let volume = inputs.push("cylinder outer volume".into(), b.volume_l.0, b.volume_l.1, Shape::Normal);
-                    (densities, volume)
-                });
+                let buoyancy = checked.buoyancy.as_ref().map(|b| buoyancy_inputs(b, weighings.len(), &mut inputs));
                 let sources: Vec<SourceTerms> = additions
                     .iter()
                     .enumerate()
@@ -439,6 +420,29 @@ impl Measurand {
         }
         Ok(y)
     }
+}
+
+/// The buoyancy inputs: the air density at each of `weighings` (one input when the record
+/// gives the air once) and the cylinder's outer volume, L.
+fn buoyancy_inputs(b: &super::BuoyancyInputs, weighings: usize, inputs: &mut Inputs) -> (Vec<usize>, usize) {
+    let densities: Vec<usize> = if let [(rho, u)] = b.densities.as_slice() {
+        let j = inputs.push("air density (all weighings)".into(), *rho, *u, Shape::Normal);
+        vec![j; weighings]
+    } else {
+        (0..weighings)
+            .map(|k| {
+                let (rho, u) = b.densities[k];
+                let label = if k == 0 {
+                    "air density before the fill".to_string()
+                } else {
+                    format!("air density at weighing {k}")
+                };
+                inputs.push(label, rho, u, Shape::Normal)
+            })
+            .collect()
+    };
+    let volume = inputs.push("cylinder outer volume".into(), b.volume_l.0, b.volume_l.1, Shape::Normal);
+    (densities, volume)
 }
 
 /// The mass of weighing `k`, g: the scale's conventional reading W, corrected for air
