@@ -7,6 +7,7 @@
 // `!(x > 0.0)` is the deliberate NaN-rejecting form throughout the numerical code.
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
+pub mod bench;
 pub mod certificate;
 pub mod certify;
 pub mod checks;

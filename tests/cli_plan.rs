@@ -250,3 +250,45 @@ fn two_balance_gases_are_named_before_a_tolerance_on_one_of_them() {
     assert_eq!(o.status.code(), Some(1));
     assert!(stderr(&o).contains("two balance gases (Ar and N2)"), "{}", stderr(&o));
 }
+
+#[test]
+fn plan_with_a_record_replans_the_rest_of_a_fill_that_went_over() {
+    let config = std::env::temp_dir().join(format!("fillwright-rest-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&config);
+    assert!(common::run_in(&config, &["list"]).status.success());
+    let records = config.join("library/records");
+    std::fs::create_dir_all(&records).unwrap();
+    // The CO addition went 18 % over its planned 0.928 g.
+    std::fs::write(
+        records.join("FC-10-2291-20261204.ron"),
+        "Record(format: 1, recipe: \"flue-gas-span\", recipe_revision: 1, cylinder: \"FC-10-2291\", \
+         started: \"2026-12-04T09:00:00Z\", scale_uncertainty: \"0.010g\", \
+         weighings: [\"13412.000g\", \"13413.100g\"], additions: [(source: \"CO\")])",
+    )
+    .unwrap();
+    let o = common::run_in(&config, &["plan", "flue-gas-span", "--record", "FC-10-2291-20261204", "--format", "json"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let rest = &v["rest_of_fill"];
+    assert_eq!(rest["weighed"], 1);
+    assert_eq!(rest["on_target"], true);
+    let steps = rest["steps"].as_array().unwrap();
+    assert_eq!(steps.iter().map(|s| s["source"].as_str().unwrap()).collect::<Vec<_>>(), ["CH4", "CO2", "N2"]);
+    // Following the re-planned readings gives the target composition (within 1e-6).
+    for c in v["components"].as_array().unwrap() {
+        let target = c["mole_fraction"].as_f64().unwrap();
+        let made = rest["final_fractions"][c["id"].as_str().unwrap()].as_f64().unwrap();
+        assert!((made / target - 1.0).abs() < 1e-6, "{}: {made} vs {target}", c["id"]);
+    }
+    // More of everything after it: each later addition larger than planned.
+    let planned: Vec<f64> = v["steps"].as_array().unwrap().iter().map(|s| s["add_mass_g"].as_f64().unwrap()).collect();
+    for (k, s) in steps.iter().enumerate() {
+        assert!(s["add_mass_g"].as_f64().unwrap() > planned[k + 1] * 1.1, "{s}");
+    }
+    // The text shows it after the sheet; a record of another recipe is refused.
+    let o = common::run_in(&config, &["plan", "flue-gas-span", "--record", "FC-10-2291-20261204"]);
+    assert!(String::from_utf8_lossy(&o.stdout).contains("REST OF THE FILL"));
+    let o = common::run_in(&config, &["plan", "lpg-in-methane", "--record", "FC-10-2291-20261204"]);
+    assert_eq!(o.status.code(), Some(1));
+    let _ = std::fs::remove_dir_all(&config);
+}

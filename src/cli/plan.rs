@@ -51,8 +51,100 @@ pub struct PlanArgs {
     /// Replace a symbolic link at the --pdf path with the file.
     #[arg(long, requires = "pdf")]
     pub replace_link: bool,
+    /// The fill record of a fill in progress (its id in the library's records/): the rest
+    /// of the fill is re-planned from what it holds and printed after the sheet.
+    #[arg(long, value_name = "ID")]
+    pub record: Option<String>,
     #[command(flatten)]
     pub common: Common,
+}
+
+/// The rest of a fill in progress, re-planned from its record: text and JSON.
+fn rest_of_fill(
+    args: &PlanArgs,
+    plan: &plan::Plan,
+    order: &Order,
+    catalogue: &Catalogue,
+    d: &crate::units::Shown,
+) -> Result<Option<(String, Value)>, Refused> {
+    let Some(id) = &args.record else { return Ok(None) };
+    let dir = config::library_to_open(args.library.as_deref(), false).map_err(Refused)?;
+    let library = crate::library::Library::at(&dir)?;
+    let opened = library.open_record(id)?;
+    let given = args.recipe.as_deref().unwrap_or_default();
+    let stem = std::path::Path::new(given).file_stem().and_then(|s| s.to_str()).unwrap_or(given);
+    if ![given, stem, order.name.as_str()].contains(&opened.record.recipe.as_str()) {
+        return Err(Refused(format!("record {id} is a fill of recipe {:?}, not of {given:?}", opened.record.recipe)));
+    }
+    let sources = config::config_dir().map(|c| c.join("sources"));
+    let s = crate::bench::standing(&opened, plan, order, &library, sources.as_deref(), catalogue).map_err(Refused)?;
+    let r = s.replan.map_err(|e| Refused(format!("record {id}: the rest of the fill cannot be re-planned: {e}")))?;
+    let mut o = String::new();
+    o.push_str(&format!(
+        "\nREST OF THE FILL  re-planned from record {id}: {} of {} additions weighed\n",
+        s.weighed,
+        plan.steps.len()
+    ));
+    o.push_str(&format!(
+        "{:>4} {:<16} {:>12} {:>12} {:>12}\n",
+        "step",
+        "source",
+        "add g",
+        format!("stop {}", d.pu()),
+        "scale g"
+    ));
+    let mut scale = s.last_reading_g;
+    let mut steps = Vec::new();
+    for (k, step) in r.steps.iter().enumerate() {
+        scale = scale.map(|g| g + step.add_mass_g);
+        o.push_str(&format!(
+            "{:>4} {:<16} {:>12.3} {:>12} {:>12}\n",
+            s.weighed + k + 1,
+            crate::ron_format::clip(&step.source, 16),
+            step.add_mass_g,
+            d.pf(step.pressure_after_pa),
+            scale.map_or("-".to_string(), |g| format!("{g:.2}"))
+        ));
+        steps.push(json!({
+            "source": step.source,
+            "add_amount_mol": step.add_amount_mol,
+            "add_mass_g": step.add_mass_g,
+            "pressure_after_bar": step.pressure_after_pa / 1e5,
+            "scale_reading_g": scale,
+        }));
+    }
+    let made: Vec<String> = r
+        .deviations
+        .iter()
+        .map(|(i, dev, ok)| {
+            let id = catalogue.gas(plan.gases[*i]).id();
+            format!("{id} {}%{}", crate::units::signed(dev * 100.0, 3), if *ok { "" } else { " OUTSIDE" })
+        })
+        .collect();
+    for line in crate::ron_format::wrap_words(&format!("made at the end, against the targets: {}", made.join(", ")), 78)
+    {
+        o.push_str(&format!("{line}\n"));
+    }
+    o.push_str(if r.on_target {
+        "every target within its tolerance\n"
+    } else {
+        "NOT every target can be met from here: see OUTSIDE above\n"
+    });
+    let fractions: serde_json::Map<String, Value> = plan
+        .gases
+        .iter()
+        .zip(&r.final_fractions)
+        .map(|(&g, x)| (catalogue.gas(g).id().to_string(), json!(x)))
+        .collect();
+    let v = json!({
+        "record": id,
+        "weighed": s.weighed,
+        "steps": steps,
+        "final_fractions": fractions,
+        "final_pressure_bar": r.final_pressure_pa / 1e5,
+        "on_target": r.on_target,
+    });
+    Ok(Some((o, v)))
 }
 
 pub fn run(args: &PlanArgs) -> Result<(), Failure> {
@@ -104,10 +196,14 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
     // finding at stop puts a banner at the top of the sheet and ends in exit status 3.
     let conditions = settings.conditions();
     let findings = checks::screen(&plan, &order, &catalogue, &conditions);
+    let rest = rest_of_fill(args, &plan, &order, &catalogue, &settings.shown)?;
     let stops: Vec<&checks::Check> = findings.iter().filter(|c| c.severity == Severity::Stop).collect();
     match args.common.format {
         Format::Json => {
             let mut v = plan_json(&plan, &order, &catalogue);
+            if let Some((_, rest)) = &rest {
+                v["rest_of_fill"] = rest.clone();
+            }
             if let Some(rating) = findings.iter().find(|c| c.id == "pressure-rating") {
                 v["rating"] = check_json(rating);
             }
@@ -123,6 +219,9 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
             text.push_str(&stop_banner_for(&stops));
         }
         text.push_str(&fill_sheet(&plan, &order, &catalogue, &options.resolutions, ambient, &settings.shown));
+        if let Some((rest_text, _)) = &rest {
+            text.push_str(rest_text);
+        }
         if let Some(path) = &args.pdf {
             let bytes = crate::certificate::pdf::render(&text, &format!("Fill sheet {}", order.name));
             crate::library::atomic::write_output(path, &bytes, args.replace_link)

@@ -9,7 +9,6 @@ use super::update::{input, Context, Key};
 use crate::checks::Severity;
 use crate::library::records::Lookup;
 use crate::recipe::canonical;
-use crate::record::composition::Measurand;
 use crate::record::Record;
 use crate::units::{self, AmountInput};
 use crate::units::{Shown, REFERENCE_TEMPERATURE_K};
@@ -298,24 +297,15 @@ pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
 fn progress(doc: &Document, ctx: &Context) -> Option<Progress> {
     let opened = doc.bench.record.as_ref()?;
     let (Ok(plan), Ok(order)) = (&doc.computed.plan, &doc.computed.order) else { return None };
-    let origin = opened.path.display().to_string();
-    let lookup =
-        Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
-    let checked = opened.record.check(&ctx.catalogue, &|r| lookup.resolve(r), &opened.text, &origin).ok()?;
-    let m = Measurand::of(&checked, &ctx.catalogue, plan.model, Some(plan.volume_m3), &[]).ok()?;
-    let amounts = m.amounts_mol();
-    let weighed = checked.complete.min(plan.steps.len());
-    let planned = &plan.steps[weighed - 1].amounts_after_mol;
-    let now: Vec<f64> =
-        plan.gases.iter().map(|g| m.gases.iter().position(|h| h == g).map_or(0.0, |i| amounts[i])).collect();
+    let s = crate::bench::standing(opened, plan, order, &ctx.library, ctx.sources.as_deref(), &ctx.catalogue).ok()?;
+    let planned = &plan.steps[s.weighed.checked_sub(1)?].amounts_after_mol;
     let rows = plan
         .gases
         .iter()
         .enumerate()
-        .map(|(i, &g)| (ctx.catalogue.gas(g).id().to_string(), now[i], planned[i]))
+        .map(|(i, &g)| (ctx.catalogue.gas(g).id().to_string(), s.now_mol[i], planned[i]))
         .collect();
-    let replan = crate::plan::replan::replan(plan, order, weighed, &now);
-    Some(Progress { weighed, rows, replan })
+    Some(Progress { weighed: s.weighed, rows, replan: s.replan })
 }
 
 /// Write a change to the fill record as its next revision (creating the record on the
