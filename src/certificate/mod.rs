@@ -239,8 +239,22 @@ impl Certificate<'_> {
 
     /// The certificate as lines of at most 80 columns.
     pub fn text(&self) -> String {
-        let e = self.evaluation;
-        let r = self.record;
+        let sections = [
+            self.title_lines(),
+            self.document_lines(),
+            self.composition_lines(),
+            self.additions_lines(),
+            self.budget_lines(),
+            self.monte_carlo_lines(),
+            self.closing_lines(),
+        ];
+        let mut text = sections.concat().join("\n");
+        text.push('\n');
+        text
+    }
+
+    /// The title, and a stop where an analysis contradicts the prepared content.
+    fn title_lines(&self) -> Vec<String> {
         let mut o: Vec<String> = Vec::new();
         if let Some(why) = &self.unfinished {
             o.push(IN_PROGRESS_BANNER.into());
@@ -255,6 +269,14 @@ impl Certificate<'_> {
             o.push("!! The analysis does not confirm the prepared content: do not issue.".into());
             o.push("!".repeat(78));
         }
+        o
+    }
+
+    /// Number, dates, order, cylinder, recipe, fill, method.
+    fn document_lines(&self) -> Vec<String> {
+        let e = self.evaluation;
+        let r = self.record;
+        let mut o: Vec<String> = Vec::new();
         let d = &self.document;
         let or_not = |s: &str| if s.trim().is_empty() { "(not recorded)".to_string() } else { s.to_string() };
         o.push(crate::ron_format::clip(&format!("certificate {}", d.number), 80));
@@ -312,6 +334,13 @@ impl Certificate<'_> {
                 self.checked.additions.len()
             ));
         }
+        o
+    }
+
+    /// The composition made against the targets, and the verification.
+    fn composition_lines(&self) -> Vec<String> {
+        let e = self.evaluation;
+        let mut o: Vec<String> = Vec::new();
         o.push(String::new());
         o.push(format!("COMPOSITION  U = k u with k = {COVERAGE_FACTOR} (about 95 %)"));
         o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", "gas", "amount", "U", "unit", "target", "judged"));
@@ -338,6 +367,12 @@ impl Certificate<'_> {
             o.push(String::new());
             o.extend(self.verification_lines());
         }
+        o
+    }
+
+    /// The additions and what the weighings or readings rest on.
+    fn additions_lines(&self) -> Vec<String> {
+        let mut o: Vec<String> = Vec::new();
         o.push(String::new());
         o.push("ADDITIONS".into());
         for (k, a) in self.checked.additions.iter().enumerate() {
@@ -375,6 +410,13 @@ impl Certificate<'_> {
         }
         o.push("  atomic weights: CIAAW standard atomic weights, rectangular over the".into());
         o.push("  interval (IUPAC technical report 2021)".into());
+        o
+    }
+
+    /// The largest contributions to each u.
+    fn budget_lines(&self) -> Vec<String> {
+        let e = self.evaluation;
+        let mut o: Vec<String> = Vec::new();
         o.push(String::new());
         o.push("UNCERTAINTY BUDGET  the largest contributions to u, share of u²".into());
         for i in 0..e.gum.values.len() {
@@ -388,6 +430,13 @@ impl Certificate<'_> {
                 o.push(format!("   {:<44} {:>7.2} %", crate::ron_format::clip(&c.group, 44), c.share_percent));
             }
         }
+        o
+    }
+
+    /// The Monte Carlo check against the GUM intervals.
+    fn monte_carlo_lines(&self) -> Vec<String> {
+        let e = self.evaluation;
+        let mut o: Vec<String> = Vec::new();
         o.push(String::new());
         let mc = &e.monte_carlo;
         o.push(format!("MONTE CARLO CHECK  {} draws, seed {}, 95 % intervals", mc.draws, mc.seed));
@@ -416,6 +465,13 @@ impl Certificate<'_> {
         if mc.failed > 0 {
             o.push(format!("  {} draws had no value and were left out", mc.failed));
         }
+        o
+    }
+
+    /// Remarks, cautions, signatures and the caution of a draft.
+    fn closing_lines(&self) -> Vec<String> {
+        let d = &self.document;
+        let mut o: Vec<String> = Vec::new();
         if !self.remarks.is_empty() {
             o.push(String::new());
             o.push("FOR THE REVIEWER".into());
@@ -446,46 +502,13 @@ impl Certificate<'_> {
             78,
             "  ",
         ));
-        let mut text = o.join("\n");
-        text.push('\n');
-        text
+        o
     }
 
     /// The certificate as JSON (mol/mol throughout).
     pub fn json(&self) -> Value {
         let e = self.evaluation;
         let r = self.record;
-        let components: Vec<Value> = (0..e.gum.values.len())
-            .map(|i| {
-                let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
-                json!({
-                    "id": self.id_of(i),
-                    "mole_fraction": e.gum.values[i],
-                    "standard_uncertainty": self.u_of(i),
-                    "expanded_uncertainty": COVERAGE_FACTOR * self.u_of(i),
-                    "gravimetric_standard_uncertainty": e.gum.u[i],
-                    "coverage_factor": COVERAGE_FACTOR,
-                    "target": target.map(|t| t.fraction),
-                    "tolerance": target.and_then(|t| t.tolerance),
-                    "within_tolerance": target.and_then(|t| t.tolerance.map(|tol| (e.gum.values[i] - t.fraction).abs() <= tol)),
-                })
-            })
-            .collect();
-        let budget: Vec<Value> = (0..e.gum.values.len())
-            .map(|i| {
-                json!({
-                    "id": self.id_of(i),
-                    "contributions": e.gum.budget[i].iter().map(|c| json!({
-                        "input": c.group,
-                        "standard_uncertainty": c.u,
-                        "sensitivity": if c.sensitivity.is_finite() { json!(c.sensitivity) } else { Value::Null },
-                        "contribution": c.contribution,
-                        "share_percent": c.share_percent,
-                    })).collect::<Vec<_>>(),
-                })
-            })
-            .collect();
-        let mc = &e.monte_carlo;
         json!({
             "record": self.id,
             "record_revision": r.revision,
@@ -520,28 +543,12 @@ impl Certificate<'_> {
             "additions": self.checked.additions.len(),
             "method": match self.checked.method { Method::Gravimetric => "gravimetric", Method::Manometric => "manometric" },
             "model": e.measurand.models().map(|(m, _)| m.key()),
-            "components": components,
-            "budget": budget,
+            "components": self.components_json(),
+            "budget": self.budget_json(),
             "inputs": e.measurand.inputs.list.iter().map(|i| json!({
                 "input": i.label, "value": i.value, "standard_uncertainty": i.u, "distribution": i.shape.key(),
             })).collect::<Vec<_>>(),
-            "monte_carlo": {
-                "draws": mc.draws,
-                "seed": mc.seed,
-                "failed": mc.failed,
-                "agrees": e.agreement.iter().all(|a| a.agrees),
-                "tolerance_of_u": crate::record::uncertainty::AGREEMENT_TOLERANCE,
-                "components": (0..mc.mean.len()).map(|i| json!({
-                    "id": self.id_of(i),
-                    "mean": mc.mean[i],
-                    "standard_uncertainty": mc.u[i],
-                    "low": mc.low[i],
-                    "high": mc.high[i],
-                    "agrees": e.agreement.get(i).map(|a| a.agrees),
-                    "low_gap_of_u": e.agreement.get(i).map(|a| a.low_gap),
-                    "high_gap_of_u": e.agreement.get(i).map(|a| a.high_gap),
-                })).collect::<Vec<_>>(),
-            },
+            "monte_carlo": self.monte_carlo_json(),
             "remarks": self.remarks,
             "verification": self.verification_json(),
             "consistent_with_analysis": if self.verifications.iter().any(|v| v.outcome.is_ok()) {
@@ -555,6 +562,69 @@ impl Certificate<'_> {
 }
 
 impl Certificate<'_> {
+    /// Every component made, with its target and tolerance.
+    fn components_json(&self) -> Vec<Value> {
+        let e = self.evaluation;
+        (0..e.gum.values.len())
+            .map(|i| {
+                let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
+                json!({
+                    "id": self.id_of(i),
+                    "mole_fraction": e.gum.values[i],
+                    "standard_uncertainty": self.u_of(i),
+                    "expanded_uncertainty": COVERAGE_FACTOR * self.u_of(i),
+                    "gravimetric_standard_uncertainty": e.gum.u[i],
+                    "coverage_factor": COVERAGE_FACTOR,
+                    "target": target.map(|t| t.fraction),
+                    "tolerance": target.and_then(|t| t.tolerance),
+                    "within_tolerance": target.and_then(|t| t.tolerance.map(|tol| (e.gum.values[i] - t.fraction).abs() <= tol)),
+                })
+            })
+            .collect()
+    }
+
+    /// Each component's uncertainty budget.
+    fn budget_json(&self) -> Vec<Value> {
+        let e = self.evaluation;
+        (0..e.gum.values.len())
+            .map(|i| {
+                json!({
+                    "id": self.id_of(i),
+                    "contributions": e.gum.budget[i].iter().map(|c| json!({
+                        "input": c.group,
+                        "standard_uncertainty": c.u,
+                        "sensitivity": if c.sensitivity.is_finite() { json!(c.sensitivity) } else { Value::Null },
+                        "contribution": c.contribution,
+                        "share_percent": c.share_percent,
+                    })).collect::<Vec<_>>(),
+                })
+            })
+            .collect()
+    }
+
+    /// The Monte Carlo check, per component.
+    fn monte_carlo_json(&self) -> Value {
+        let e = self.evaluation;
+        let mc = &e.monte_carlo;
+        json!({
+            "draws": mc.draws,
+            "seed": mc.seed,
+            "failed": mc.failed,
+            "agrees": e.agreement.iter().all(|a| a.agrees),
+            "tolerance_of_u": crate::record::uncertainty::AGREEMENT_TOLERANCE,
+            "components": (0..mc.mean.len()).map(|i| json!({
+                "id": self.id_of(i),
+                "mean": mc.mean[i],
+                "standard_uncertainty": mc.u[i],
+                "low": mc.low[i],
+                "high": mc.high[i],
+                "agrees": e.agreement.get(i).map(|a| a.agrees),
+                "low_gap_of_u": e.agreement.get(i).map(|a| a.low_gap),
+                "high_gap_of_u": e.agreement.get(i).map(|a| a.high_gap),
+            })).collect::<Vec<_>>(),
+        })
+    }
+
     /// Every component: its verification by analysis, or `verified: false`.
     fn verification_json(&self) -> Value {
         let e = self.evaluation;
