@@ -59,26 +59,15 @@ pub struct PlanArgs {
     pub common: Common,
 }
 
-/// The rest of a fill in progress, re-planned from its record: text and JSON.
-fn rest_of_fill(
-    args: &PlanArgs,
+/// The rest of the fill as text lines and as JSON steps.
+fn rest_text(
+    id: &str,
+    s: &crate::bench::Standing,
+    r: &plan::replan::Replan,
     plan: &plan::Plan,
-    order: &Order,
     catalogue: &Catalogue,
     d: &crate::units::Shown,
-) -> Result<Option<(String, Value)>, Refused> {
-    let Some(id) = &args.record else { return Ok(None) };
-    let dir = config::library_to_open(args.library.as_deref(), false).map_err(Refused)?;
-    let library = crate::library::Library::at(&dir)?;
-    let opened = library.open_record(id)?;
-    let given = args.recipe.as_deref().unwrap_or_default();
-    let stem = std::path::Path::new(given).file_stem().and_then(|s| s.to_str()).unwrap_or(given);
-    if ![given, stem, order.name.as_str()].contains(&opened.record.recipe.as_str()) {
-        return Err(Refused(format!("record {id} is a fill of recipe {:?}, not of {given:?}", opened.record.recipe)));
-    }
-    let sources = config::config_dir().map(|c| c.join("sources"));
-    let s = crate::bench::standing(&opened, plan, order, &library, sources.as_deref(), catalogue).map_err(Refused)?;
-    let r = s.replan.map_err(|e| Refused(format!("record {id}: the rest of the fill cannot be re-planned: {e}")))?;
+) -> (String, Vec<Value>) {
     let mut o = String::new();
     o.push_str(&format!(
         "\nREST OF THE FILL  re-planned from record {id}: {} of {} additions weighed\n",
@@ -130,6 +119,33 @@ fn rest_of_fill(
     } else {
         "NOT every target can be met from here: see OUTSIDE above\n"
     });
+    (o, steps)
+}
+
+/// The rest of a fill in progress, re-planned from its record: text and JSON.
+fn rest_of_fill(
+    args: &PlanArgs,
+    plan: &plan::Plan,
+    order: &Order,
+    catalogue: &Catalogue,
+    d: &crate::units::Shown,
+) -> Result<Option<(String, Value)>, Refused> {
+    let Some(id) = &args.record else { return Ok(None) };
+    let dir = config::library_to_open(args.library.as_deref(), false).map_err(Refused)?;
+    let library = crate::library::Library::at(&dir)?;
+    let opened = library.open_record(id)?;
+    let given = args.recipe.as_deref().unwrap_or_default();
+    let stem = std::path::Path::new(given).file_stem().and_then(|s| s.to_str()).unwrap_or(given);
+    if ![given, stem, order.name.as_str()].contains(&opened.record.recipe.as_str()) {
+        return Err(Refused(format!("record {id} is a fill of recipe {:?}, not of {given:?}", opened.record.recipe)));
+    }
+    let sources = config::config_dir().map(|c| c.join("sources"));
+    let s = crate::bench::standing(&opened, plan, order, &library, sources.as_deref(), catalogue).map_err(Refused)?;
+    let r = s
+        .replan
+        .clone()
+        .map_err(|e| Refused(format!("record {id}: the rest of the fill cannot be re-planned: {e}")))?;
+    let (o, steps) = rest_text(id, &s, &r, plan, catalogue, d);
     let fractions: serde_json::Map<String, Value> = plan
         .gases
         .iter()
@@ -147,23 +163,30 @@ fn rest_of_fill(
     Ok(Some((o, v)))
 }
 
-pub fn run(args: &PlanArgs) -> Result<(), Failure> {
-    let catalogue = config::load_catalogue().map_err(Refused)?;
-    let settings = config::load_settings().map_err(Refused)?;
+/// The order to plan: a recipe (name or file), or the --mix order; and where it came from.
+fn read_order(
+    args: &PlanArgs,
+    catalogue: &Catalogue,
+    settings: &crate::settings::Resolved,
+) -> Result<(Order, Option<String>), Failure> {
     let (order, origin) = match (&args.recipe, &args.given.mix) {
         (Some(name), _) => {
             let (text, origin) = config::recipe_text(name, args.library.as_deref()).map_err(Refused)?;
-            let mut order = Recipe::load(&text, &origin, &catalogue)?;
-            args.given.apply_before_fill(&mut order, &catalogue)?;
+            let mut order = Recipe::load(&text, &origin, catalogue)?;
+            args.given.apply_before_fill(&mut order, catalogue)?;
             (order, Some(origin))
         }
-        (None, Some(_)) => (args.given.order(args.common.ambient_pa(&settings)?, &catalogue)?, None),
+        (None, Some(_)) => (args.given.order(args.common.ambient_pa(settings)?, catalogue)?, None),
         (None, None) => return Err(Failure::Usage(
             "plan needs a recipe (name or file) or --mix with --volume and --pressure; see `fillwright plan --help`"
                 .into(),
         )),
     };
-    let ambient = order.ambient_pa;
+    Ok((order, origin))
+}
+
+/// The plan options from the command line, the settings filling in.
+fn plan_options(args: &PlanArgs, settings: &crate::settings::Resolved) -> Result<PlanOptions, Failure> {
     let fill_temperature_k = args
         .fill_temp
         .as_deref()
@@ -188,6 +211,15 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
         resolutions: Resolutions { gauge_pa, scale_g },
         skip_following: false,
     };
+    Ok(options)
+}
+
+pub fn run(args: &PlanArgs) -> Result<(), Failure> {
+    let catalogue = config::load_catalogue().map_err(Refused)?;
+    let settings = config::load_settings().map_err(Refused)?;
+    let (order, origin) = read_order(args, &catalogue, &settings)?;
+    let ambient = order.ambient_pa;
+    let options = plan_options(args, &settings)?;
     let plan = plan::plan(&order, &catalogue, &options).map_err(|e| match &origin {
         Some(o) => Refused(format!("{o}: {e}")),
         None => Refused(e.to_string()),

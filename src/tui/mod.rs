@@ -157,30 +157,10 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
         }
     }
 
-    // Signals are handled on their own thread: when the SSH session drops, the terminal
-    // library can be stuck reading a closed terminal, so the main loop may never see them.
-    #[cfg(unix)]
-    {
-        use signal_hook::consts::{SIGHUP, SIGINT, SIGTERM};
-        let mut signals = signal_hook::iterator::Signals::new([SIGHUP, SIGTERM, SIGINT]).map_err(|e| e.to_string())?;
-        std::thread::spawn(move || {
-            if let Some(signal) = signals.forever().next() {
-                let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
-                write_pending_draft();
-                restore_terminal();
-                std::process::exit(128 + signal);
-            }
-        });
-    }
+    handle_signals()?;
 
     let mut terminal = ratatui::try_init().map_err(|e| format!("cannot open the terminal: {e}"))?;
-    // ratatui's hook restores the terminal; ours first keeps the unsaved edits.
-    let restore_hook = std::panic::take_hook();
-    std::panic::set_hook(Box::new(move |info| {
-        write_pending_draft();
-        restore_terminal();
-        restore_hook(info);
-    }));
+    keep_drafts_on_panic();
     let mut draft_on_disk: Option<(PathBuf, String)> = None;
     let result = (|| -> Result<(), String> {
         loop {
@@ -218,6 +198,35 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     drop(terminal);
     restore_terminal();
     result
+}
+
+/// Signals are handled on their own thread: when the SSH session drops, the terminal
+/// library can be stuck reading a closed terminal, so the main loop may never see them.
+fn handle_signals() -> Result<(), String> {
+    #[cfg(unix)]
+    {
+        use signal_hook::consts::{SIGHUP, SIGINT, SIGTERM};
+        let mut signals = signal_hook::iterator::Signals::new([SIGHUP, SIGTERM, SIGINT]).map_err(|e| e.to_string())?;
+        std::thread::spawn(move || {
+            if let Some(signal) = signals.forever().next() {
+                let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+                write_pending_draft();
+                restore_terminal();
+                std::process::exit(128 + signal);
+            }
+        });
+    }
+    Ok(())
+}
+
+/// ratatui's panic hook restores the terminal; ours first keeps the unsaved edits.
+fn keep_drafts_on_panic() {
+    let restore_hook = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        write_pending_draft();
+        restore_terminal();
+        restore_hook(info);
+    }));
 }
 
 /// Give the terminal back as it was, on every way out (quit, signal, panic, lost

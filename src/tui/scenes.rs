@@ -109,20 +109,7 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
                 press(m, c, &[Key::Char('?')]);
             }),
         ),
-        (
-            "verification",
-            Box::new(|m: &mut Model, c: &mut Context| {
-                // A finished fill of the flue-gas demo and its CO2 verified on an NDIR
-                // (invented readings).
-                let records = c.library.dir().join("records");
-                let _ = std::fs::create_dir_all(&records);
-                let _ = std::fs::write(records.join("FC-10-2291-20261202.ron"), DEMO_RECORD);
-                if let Ok(v) = crate::verification::Verification::parse(DEMO_VERIFICATION, "demo") {
-                    let _ = c.library.save_verification("FC-10-2291-CO2", &v);
-                }
-                press(m, c, &[Key::Char('v'), Key::Enter, Key::Down, Key::Down, Key::Down, Key::Right]);
-            }),
-        ),
+        ("verification", Box::new(verification_scene)),
         (
             "gas-picker",
             Box::new(move |m: &mut Model, c: &mut Context| {
@@ -132,6 +119,19 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
             }),
         ),
     ]
+}
+
+/// The verification pane on a finished fill of the flue-gas demo.
+fn verification_scene(m: &mut Model, c: &mut Context) {
+    // A finished fill of the flue-gas demo and its CO2 verified on an NDIR
+    // (invented readings).
+    let records = c.library.dir().join("records");
+    let _ = std::fs::create_dir_all(&records);
+    let _ = std::fs::write(records.join("FC-10-2291-20261202.ron"), DEMO_RECORD);
+    if let Ok(v) = crate::verification::Verification::parse(DEMO_VERIFICATION, "demo") {
+        let _ = c.library.save_verification("FC-10-2291-CO2", &v);
+    }
+    press(m, c, &[Key::Char('v'), Key::Enter, Key::Down, Key::Down, Key::Down, Key::Right]);
 }
 
 /// A finished fill of the flue-gas demo (invented readings).

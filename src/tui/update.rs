@@ -356,26 +356,30 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
             View::Sheet if key == Key::Char('p') => super::sheet::export(model, ctx),
             View::Sheet if key == Key::Char('m') => super::premixes::open(model),
             View::Sheet => super::sheet::on_key(model, key),
-            View::Checks => {
-                // Move in the order shown (worst first), remember the check itself.
-                let order = model
-                    .doc
-                    .as_ref()
-                    .and_then(|d| d.computed.checks.as_deref())
-                    .map(super::model::checks_worst_first)
-                    .unwrap_or_default();
-                let at = order.iter().position(|&i| i == model.check_selected).unwrap_or(0);
-                let to = match key {
-                    Key::Up | Key::Char('k') => at.saturating_sub(1),
-                    Key::Down | Key::Char('j') => (at + 1).min(order.len().saturating_sub(1)),
-                    _ => at,
-                };
-                if let Some(&i) = order.get(to) {
-                    model.check_selected = i;
-                }
-            }
+            View::Checks => on_checks_key(model, key),
             View::Models => {}
         },
+    }
+}
+
+/// Keys of the Screening view: move in the order shown (worst first), remember the check
+/// itself.
+fn on_checks_key(model: &mut Model, key: Key) {
+    // Move in the order shown (worst first), remember the check itself.
+    let order = model
+        .doc
+        .as_ref()
+        .and_then(|d| d.computed.checks.as_deref())
+        .map(super::model::checks_worst_first)
+        .unwrap_or_default();
+    let at = order.iter().position(|&i| i == model.check_selected).unwrap_or(0);
+    let to = match key {
+        Key::Up | Key::Char('k') => at.saturating_sub(1),
+        Key::Down | Key::Char('j') => (at + 1).min(order.len().saturating_sub(1)),
+        _ => at,
+    };
+    if let Some(&i) = order.get(to) {
+        model.check_selected = i;
     }
 }
 
