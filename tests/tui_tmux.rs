@@ -23,10 +23,30 @@ impl Tmux {
         String::from_utf8_lossy(&o.stdout).into_owned()
     }
 
+    /// Starts a session, trying again while a server whose last session was just killed
+    /// is still shutting down (the new session would otherwise be lost with it).
+    fn new_session(&self, name: &str, size: (&str, &str), cmd: &str) {
+        let start = Instant::now();
+        loop {
+            let o = Command::new("tmux")
+                .arg("-L")
+                .arg(&self.socket)
+                .args(["new-session", "-d", "-s", name, "-x", size.0, "-y", size.1, cmd])
+                .output()
+                .unwrap();
+            if o.status.success() {
+                return;
+            }
+            let why = String::from_utf8_lossy(&o.stderr);
+            assert!(start.elapsed() < Duration::from_secs(10), "tmux new-session failed: {why}");
+            std::thread::sleep(Duration::from_millis(100));
+        }
+    }
+
     fn start(&self, config: &Path, args: &str) {
         let bin = env!("CARGO_BIN_EXE_fillwright");
         let cmd = format!("env -u NO_COLOR FILLWRIGHT_CONFIG={} {bin} {args}", config.display());
-        self.run(&["new-session", "-d", "-s", "bench", "-x", "80", "-y", "24", &cmd]);
+        self.new_session("bench", ("80", "24"), &cmd);
         self.run(&["set-option", "-t", "bench", "remain-on-exit", "on"]);
     }
 
@@ -153,13 +173,15 @@ fn terminal_state(t: &Tmux) -> String {
 #[test]
 fn the_terminal_is_given_back_whole_after_a_signal() {
     let config = fresh_config("restore");
-    let t = Tmux::new("restore");
     let bin = env!("CARGO_BIN_EXE_fillwright");
     // The program runs under a shell that stays, so the pane (and what the program last
     // wrote to it) outlives the program.
     let cmd = format!("sh -c 'FILLWRIGHT_CONFIG={} {bin}; echo exited $?; sleep 60'", config.display());
     for (signal, status) in [("TERM", 143), ("INT", 130), ("HUP", 129), ("quit", 0)] {
-        t.run(&["new-session", "-d", "-s", "bench", "-x", "80", "-y", "24", &cmd]);
+        // A tmux server of its own for each round: killing a server's last session shuts
+        // the server down, and a session started while it does so would be lost.
+        let t = Tmux::new(&format!("restore-{signal}"));
+        t.new_session("bench", ("80", "24"), &cmd);
         t.wait_for("Recipes in");
         assert_eq!(terminal_state(&t), "0 1", "the screen hides the cursor and uses the alternate screen");
         if signal == "quit" {
@@ -173,7 +195,6 @@ fn the_terminal_is_given_back_whole_after_a_signal() {
         }
         t.wait_for(&format!("exited {status}"));
         assert_eq!(terminal_state(&t), "1 0", "after {signal}: cursor shown, alternate screen left");
-        t.kill_session();
     }
 }
 
@@ -184,7 +205,7 @@ fn two_screens_saving_one_recipe_at_once_never_lose_an_edit() {
     let bin = env!("CARGO_BIN_EXE_fillwright");
     let start = |session: &str| {
         let cmd = format!("env FILLWRIGHT_CONFIG={} {bin} edit flue-gas-span", config.display());
-        t.run(&["new-session", "-d", "-s", session, "-x", "100", "-y", "30", &cmd]);
+        t.new_session(session, ("100", "30"), &cmd);
     };
     let screen = |session: &str| t.run(&["capture-pane", "-p", "-t", session]);
     let wait = |session: &str, needles: &[&str]| -> String {
