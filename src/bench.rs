@@ -4,6 +4,8 @@
 
 use std::path::Path;
 
+use serde_json::{json, Value};
+
 use crate::gas::Catalogue;
 use crate::library::records::{Lookup, OpenedRecord};
 use crate::library::Library;
@@ -21,6 +23,11 @@ pub struct Standing {
     pub now_mol: Vec<f64>,
     /// The last scale reading, g.
     pub last_reading_g: Option<f64>,
+    /// Every scale reading, g: the empty cylinder, then after each addition.
+    pub weighings_g: Vec<f64>,
+    /// Per addition recorded: the source as written and the pressure reading (Pa
+    /// absolute) with the cylinder temperature (K), where both were recorded.
+    pub recorded: Vec<(String, Option<(f64, f64)>)>,
     /// The rest re-planned, or why not.
     pub replan: Result<Replan, String>,
 }
@@ -44,5 +51,190 @@ pub fn standing(
     let now_mol: Vec<f64> =
         plan.gases.iter().map(|g| m.gases.iter().position(|h| h == g).map_or(0.0, |i| amounts[i])).collect();
     let replan = replan::replan(plan, order, weighed, &now_mol);
-    Ok(Standing { weighed, now_mol, last_reading_g: checked.weighings_g.last().copied(), replan })
+    let recorded = checked.additions.iter().map(|a| (a.written.clone(), a.reading)).collect();
+    Ok(Standing {
+        weighed,
+        now_mol,
+        last_reading_g: checked.weighings_g.last().copied(),
+        weighings_g: checked.weighings_g.clone(),
+        recorded,
+        replan,
+    })
+}
+
+/// One line of the Fill sheet as the fill stands: a finished addition as it was recorded,
+/// or one still to do as re-planned from the record (the plan itself before any weighing).
+#[derive(Debug, Clone, PartialEq)]
+pub struct LiveStep {
+    pub source: String,
+    /// Mass to add (re-planned), or added (recorded), g.
+    pub add_mass_g: f64,
+    /// The scale reading to stop at (from the empty weight typed), or the one recorded, g.
+    pub scale_reading_g: f64,
+    /// The stop reading at the plan's fill temperature, Pa absolute (None for a finished
+    /// addition: its own reading, if any, is in `recorded_reading`).
+    pub pressure_after_pa: Option<f64>,
+    /// The stop reading for the cylinder temperature measured now, Pa absolute.
+    pub pressure_now_pa: Option<f64>,
+    /// Amounts of each plan gas after the addition, mol (what the stop reading is of).
+    pub amounts_after_mol: Vec<f64>,
+    /// A finished addition: the pressure reading and cylinder temperature recorded with it.
+    pub recorded_reading: Option<(f64, f64)>,
+    pub finished: bool,
+    /// As first planned: mass to add, scale reading and stop reading at the fill temperature.
+    pub planned: (f64, f64, f64),
+}
+
+impl LiveStep {
+    /// Whether the live step differs from the first plan by more than the sheet shows.
+    pub fn moved(&self) -> bool {
+        (self.add_mass_g - self.planned.0).abs() >= 0.005
+            || (self.scale_reading_g - self.planned.1).abs() >= 0.005
+            || self.pressure_after_pa.is_some_and(|p| (p - self.planned.2).abs() >= 500.0)
+    }
+}
+
+/// The Fill sheet's lines as the fill stands: finished additions as recorded, the rest
+/// re-planned from the record, every scale reading counted from the empty weight typed and
+/// every stop reading also given for the cylinder temperature measured now (`measured_k`).
+pub fn live_sheet(
+    plan: &Plan,
+    standing: Option<&Standing>,
+    empty_g: Option<f64>,
+    measured_k: Option<f64>,
+) -> Vec<LiveStep> {
+    let now_at = |amounts: &[f64]| {
+        measured_k.and_then(|t| crate::plan::corrected_target_pa(&plan.fluid, plan.volume_m3, amounts, t).ok())
+    };
+    let planned = |k: usize| {
+        let s = &plan.steps[k];
+        (s.add_mass_g, s.scale_reading_g, s.pressure_after_pa)
+    };
+    let replanned = standing.and_then(|s| s.replan.as_ref().ok().filter(|_| s.weighed > 0).map(|r| (s, r)));
+    let mut lines = Vec::with_capacity(plan.steps.len());
+    for (k, step) in plan.steps.iter().enumerate() {
+        let finished = standing.filter(|s| k < s.weighed && k + 1 < s.weighings_g.len());
+        if let Some(s) = finished {
+            lines.push(LiveStep {
+                source: s.recorded.get(k).map_or_else(|| step.source.clone(), |r| r.0.clone()),
+                add_mass_g: s.weighings_g[k + 1] - s.weighings_g[k],
+                scale_reading_g: s.weighings_g[k + 1],
+                pressure_after_pa: None,
+                pressure_now_pa: None,
+                amounts_after_mol: Vec::new(),
+                recorded_reading: s.recorded.get(k).and_then(|r| r.1),
+                finished: true,
+                planned: planned(k),
+            });
+            continue;
+        }
+        let (add_mass_g, pressure, amounts) = match replanned {
+            Some((s, r)) => match r.steps.get(k - s.weighed.min(k)) {
+                Some(rs) => (rs.add_mass_g, rs.pressure_after_pa, rs.amounts_after_mol.clone()),
+                None => (step.add_mass_g, step.pressure_after_pa, step.amounts_after_mol.clone()),
+            },
+            None => (step.add_mass_g, step.pressure_after_pa, step.amounts_after_mol.clone()),
+        };
+        // The scale: from the last reading recorded (the empty weight typed, at first),
+        // else from the plan's own tare.
+        let empty = standing.and_then(|s| s.weighings_g.first().copied()).or(empty_g);
+        let scale_reading_g = match (lines.last(), empty) {
+            (Some(prev), _) => prev.scale_reading_g + add_mass_g,
+            (None, Some(empty)) => empty + add_mass_g,
+            (None, None) => step.scale_reading_g,
+        };
+        lines.push(LiveStep {
+            source: step.source.clone(),
+            add_mass_g,
+            scale_reading_g,
+            pressure_after_pa: Some(pressure),
+            pressure_now_pa: now_at(&amounts),
+            amounts_after_mol: amounts,
+            recorded_reading: None,
+            finished: false,
+            planned: planned(k),
+        });
+    }
+    lines
+}
+
+/// The sheet as the fill stands, as text (finished additions as recorded, the rest
+/// re-planned with its stop and scale readings) and the steps still to do as JSON: what
+/// `plan NAME --record ID` prints after the sheet and the screen writes for the bench.
+pub fn rest_text(
+    id: &str,
+    s: &Standing,
+    r: &Replan,
+    live: &[LiveStep],
+    plan: &Plan,
+    catalogue: &Catalogue,
+    d: &crate::units::Shown,
+) -> (String, Vec<Value>) {
+    let mut o = format!(
+        "\nTHE FILL AS IT STANDS  record {id}\n{} of {} additions weighed; the rest re-planned from them\n",
+        s.weighed,
+        plan.steps.len()
+    );
+    o.push_str(&format!(
+        "{:>4} {:<16} {:>11} {:>12} {:>11}  {}\n",
+        "step",
+        "source",
+        "add g",
+        "scale g",
+        format!("stop {}", d.pu()),
+        "first plan"
+    ));
+    let mut steps = Vec::new();
+    for (k, l) in live.iter().enumerate() {
+        let stop = match (l.pressure_after_pa, l.recorded_reading) {
+            (Some(p), _) => d.pf(p),
+            (None, Some((p, _))) => d.pf(p),
+            (None, None) => "-".into(),
+        };
+        let state = if l.finished {
+            "recorded".to_string()
+        } else if l.moved() {
+            format!("{:.3}, {}", l.planned.0, d.pf(l.planned.2))
+        } else {
+            "as planned".to_string()
+        };
+        o.push_str(&format!(
+            "{:>4} {:<16} {:>11.3} {:>12.3} {:>11}  {state}\n",
+            k + 1,
+            crate::ron_format::clip(&l.source, 16),
+            l.add_mass_g,
+            l.scale_reading_g,
+            stop
+        ));
+        if let (false, Some(rs)) = (l.finished, r.steps.get(k.wrapping_sub(s.weighed))) {
+            steps.push(json!({
+                "source": rs.source,
+                "add_amount_mol": rs.add_amount_mol,
+                "add_mass_g": rs.add_mass_g,
+                "pressure_after_bar": rs.pressure_after_pa / 1e5,
+                "scale_reading_g": l.scale_reading_g,
+                "first_planned": {"add_mass_g": l.planned.0, "scale_reading_g": l.planned.1,
+                                  "pressure_after_bar": l.planned.2 / 1e5},
+            }));
+        }
+    }
+    o.push_str(&format!("stop readings for the cylinder at {}\n", d.tf(plan.fill_temperature_k)));
+    let made: Vec<String> = r
+        .deviations
+        .iter()
+        .map(|(i, dev, ok)| {
+            let id = catalogue.gas(plan.gases[*i]).id();
+            format!("{id} {}%{}", crate::units::signed(dev * 100.0, 3), if *ok { "" } else { " OUTSIDE" })
+        })
+        .collect();
+    for line in crate::ron_format::wrap_words(&format!("made at the end, against the targets: {}", made.join(", ")), 78)
+    {
+        o.push_str(&format!("{line}\n"));
+    }
+    o.push_str(if r.on_target {
+        "every target within its tolerance\n"
+    } else {
+        "NOT every target can be met from here: see OUTSIDE above\n"
+    });
+    (o, steps)
 }

@@ -285,9 +285,41 @@ fn plan_with_a_record_replans_the_rest_of_a_fill_that_went_over() {
     for (k, s) in steps.iter().enumerate() {
         assert!(s["add_mass_g"].as_f64().unwrap() > planned[k + 1] * 1.1, "{s}");
     }
-    // The text shows it after the sheet; a record of another recipe is refused.
+    // Fill on: weigh each remaining addition at the re-planned scale reading, then certify
+    // the finished record. The composition made is the target (within 1e-6).
+    let mut weighings = vec!["\"13412.000g\"".to_string(), "\"13413.100g\"".to_string()];
+    weighings.extend(steps.iter().map(|s| format!("\"{:.9}g\"", s["scale_reading_g"].as_f64().unwrap())));
+    std::fs::write(
+        records.join("FC-10-2291-20261205.ron"),
+        format!(
+            "Record(format: 1, recipe: \"flue-gas-span\", recipe_revision: 1, cylinder: \"FC-10-2291\", \
+             started: \"2026-12-05T09:00:00Z\", finished: \"2026-12-05T11:00:00Z\", scale_uncertainty: \"0.010g\", \
+             weighings: [{}], additions: [(source: \"CO\"), (source: \"CH4\"), (source: \"CO2\"), (source: \"N2\")])",
+            weighings.join(", ")
+        ),
+    )
+    .unwrap();
+    let c = common::run_in(&config, &["certify", "FC-10-2291-20261205", "--format", "json"]);
+    assert!(c.status.success(), "{}", String::from_utf8_lossy(&c.stderr));
+    let cert: serde_json::Value = serde_json::from_slice(&c.stdout).unwrap();
+    for c in v["components"].as_array().unwrap() {
+        let target = c["mole_fraction"].as_f64().unwrap();
+        let made = cert["components"].as_array().unwrap().iter().find(|m| m["id"] == c["id"]).unwrap();
+        let made = made["mole_fraction"].as_f64().unwrap();
+        assert!((made / target - 1.0).abs() < 1e-6, "{}: made {made} vs target {target}", c["id"]);
+    }
+    // The text shows it after the sheet: the finished addition as recorded, the rest
+    // re-planned beside the first plan; a record of another recipe is refused.
     let o = common::run_in(&config, &["plan", "flue-gas-span", "--record", "FC-10-2291-20261204"]);
-    assert!(String::from_utf8_lossy(&o.stdout).contains("REST OF THE FILL"));
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(text.contains("THE FILL AS IT STANDS"), "{text}");
+    let rest = &text[text.find("THE FILL AS IT STANDS").unwrap()..];
+    assert!(rest.lines().any(|l| l.contains("CO ") && l.contains("1.100") && l.contains("recorded")), "{rest}");
+    let n2 = rest.lines().find(|l| l.trim_start().starts_with("4 N2")).unwrap();
+    assert!(n2.contains(&format!("{:.3}", steps[2]["scale_reading_g"].as_f64().unwrap())), "{n2}");
+    assert!(n2.contains(&format!("{:.3}", planned[3])), "the first plan beside it: {n2}");
+    let long: Vec<&str> = text.lines().filter(|l| l.chars().count() > 80).collect();
+    assert!(long.is_empty(), "{long:?}");
     let o = common::run_in(&config, &["plan", "lpg-in-methane", "--record", "FC-10-2291-20261204"]);
     assert_eq!(o.status.code(), Some(1));
     let _ = std::fs::remove_dir_all(&config);

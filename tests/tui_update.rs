@@ -236,7 +236,7 @@ fn the_fill_sheet_corrects_targets_for_the_measured_temperature() {
     let doc = model.doc.as_ref().unwrap();
     let plan = doc.computed.plan.as_ref().unwrap();
     let last = plan.steps.len() - 1;
-    let corrected = doc.bench.corrected_pa[last].unwrap();
+    let corrected = doc.bench.live[last].pressure_now_pa.unwrap();
     assert_eq!(corrected, plan.corrected_target_pa(last, 308.15).unwrap());
     assert!(corrected > plan.steps[last].pressure_after_pa, "a warmer cylinder reads higher");
     // Mark the first step done and type the reading reached.
@@ -417,9 +417,64 @@ fn a_fill_at_the_bench_is_recorded_entry_by_entry_and_continues_after_a_restart(
     assert_eq!(replan.steps.len(), 2);
     assert!(!replan.on_target, "{:?}", replan.deviations);
     assert!(replan.steps[1].add_amount_mol > 54.65, "more balance to bring the minors back: {:?}", replan.steps);
+    // The sheet follows the fill: finished steps as recorded, the rest re-planned, the
+    // scale counted on from the last weighing.
+    let live = &doc.bench.live;
+    let w2 = 13412.928 + 26.585 * 1.03;
+    assert!(live[0].finished && live[1].finished && !live[2].finished);
+    assert!((live[1].scale_reading_g - w2).abs() < 1e-6 && (live[1].add_mass_g - 26.585 * 1.03).abs() < 1e-6);
+    assert!((live[2].add_mass_g - replan.steps[0].add_mass_g).abs() < 1e-9);
+    assert!((live[2].scale_reading_g - (w2 + replan.steps[0].add_mass_g)).abs() < 1e-6);
+    assert!((live[3].scale_reading_g - live[2].scale_reading_g - replan.steps[1].add_mass_g).abs() < 1e-6);
+    assert_eq!(live[3].pressure_after_pa, Some(replan.steps[1].pressure_after_pa));
+    assert!(live[3].moved() && live[3].add_mass_g > live[3].planned.0);
+    // The reading to stop at is the live one for the cylinder at 21.5 °C, and a reading
+    // there is judged on the live plan, not the first one.
+    let plan = doc.computed.plan.as_ref().unwrap();
+    let now = live[2].pressure_now_pa.unwrap();
+    let expected =
+        fillwright::plan::corrected_target_pa(&plan.fluid, plan.volume_m3, &replan.steps[0].amounts_after_mol, 294.65);
+    assert_eq!(now, expected.unwrap());
+    keys(&mut model, &mut ctx, &[Key::Char('r')]);
+    text(&mut model, &mut ctx, &format!("{:.4}bar", now / 1e5));
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("0.000 bar off") || model.status.contains("reached"), "{}", model.status);
+    let doc = model.doc.as_ref().unwrap();
+    let notes = fillwright::tui::sheet::reading_notes(doc, &model.limits, &model.shown, 2);
+    assert!(
+        notes.iter().all(|(s, n)| *s == fillwright::checks::Severity::Ok && n.contains("0.000 bar off")),
+        "{notes:?}"
+    );
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("recorded") && screen.contains("re-planned from the fill record"), "{screen}");
+    assert!(screen.contains(&format!("{:.2}", live_scale(&model, 2))), "{screen}");
     // The history keeps every entry as a revision.
     let history = ctx.library.record_history(&doc.bench.record.as_ref().unwrap().id);
     assert!(history.len() >= 3, "{history:?}");
+}
+
+fn live_scale(model: &Model, k: usize) -> f64 {
+    model.doc.as_ref().unwrap().bench.live[k].scale_reading_g
+}
+
+#[test]
+fn the_sheets_scale_readings_start_from_the_empty_weight_typed() {
+    let (mut model, mut ctx, _dir) = setup("bench-tare");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    let planned: Vec<(f64, f64)> = {
+        let plan = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().clone();
+        plan.steps.iter().map(|s| (s.add_mass_g, s.scale_reading_g)).collect()
+    };
+    // The empty cylinder weighs 6 g more than the recipe's tare says.
+    let tare = planned[0].1 - planned[0].0;
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
+    text(&mut model, &mut ctx, &format!("{:.2}g", tare + 6.0));
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    for (k, (_, scale)) in planned.iter().enumerate() {
+        assert!((live_scale(&model, k) - (scale + 6.0)).abs() < 1e-6, "step {k}");
+    }
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains(&format!("{:.2}", planned[0].1 + 6.0)), "{screen}");
 }
 
 #[test]
@@ -489,7 +544,7 @@ fn typed_readings_and_temperatures_are_judged_against_the_rating_and_the_plan() 
     keys(&mut model, &mut ctx, &[Key::Char('t')]);
     text(&mut model, &mut ctx, "35C");
     keys(&mut model, &mut ctx, &[Key::Enter]);
-    let target = model.doc.as_ref().unwrap().bench.corrected_pa[last].unwrap();
+    let target = model.doc.as_ref().unwrap().bench.live[last].pressure_now_pa.unwrap();
     assert!(target > 200e5, "{target}");
     for _ in 0..last {
         keys(&mut model, &mut ctx, &[Key::Down]);
@@ -510,7 +565,7 @@ fn typed_readings_and_temperatures_are_judged_against_the_rating_and_the_plan() 
     for _ in 0..last {
         keys(&mut model, &mut ctx, &[Key::Up]);
     }
-    let first_target = model.doc.as_ref().unwrap().bench.corrected_pa[0].unwrap();
+    let first_target = model.doc.as_ref().unwrap().bench.live[0].pressure_now_pa.unwrap();
     keys(&mut model, &mut ctx, &[Key::Char('r')]);
     let typed = format!("{:.2}bar", first_target / 1e5 + 20.0);
     text(&mut model, &mut ctx, &typed);

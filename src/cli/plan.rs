@@ -59,69 +59,6 @@ pub struct PlanArgs {
     pub common: Common,
 }
 
-/// The rest of the fill as text lines and as JSON steps.
-fn rest_text(
-    id: &str,
-    s: &crate::bench::Standing,
-    r: &plan::replan::Replan,
-    plan: &plan::Plan,
-    catalogue: &Catalogue,
-    d: &crate::units::Shown,
-) -> (String, Vec<Value>) {
-    let mut o = String::new();
-    o.push_str(&format!(
-        "\nREST OF THE FILL  re-planned from record {id}: {} of {} additions weighed\n",
-        s.weighed,
-        plan.steps.len()
-    ));
-    o.push_str(&format!(
-        "{:>4} {:<16} {:>12} {:>12} {:>12}\n",
-        "step",
-        "source",
-        "add g",
-        format!("stop {}", d.pu()),
-        "scale g"
-    ));
-    let mut scale = s.last_reading_g;
-    let mut steps = Vec::new();
-    for (k, step) in r.steps.iter().enumerate() {
-        scale = scale.map(|g| g + step.add_mass_g);
-        o.push_str(&format!(
-            "{:>4} {:<16} {:>12.3} {:>12} {:>12}\n",
-            s.weighed + k + 1,
-            crate::ron_format::clip(&step.source, 16),
-            step.add_mass_g,
-            d.pf(step.pressure_after_pa),
-            scale.map_or("-".to_string(), |g| format!("{g:.2}"))
-        ));
-        steps.push(json!({
-            "source": step.source,
-            "add_amount_mol": step.add_amount_mol,
-            "add_mass_g": step.add_mass_g,
-            "pressure_after_bar": step.pressure_after_pa / 1e5,
-            "scale_reading_g": scale,
-        }));
-    }
-    let made: Vec<String> = r
-        .deviations
-        .iter()
-        .map(|(i, dev, ok)| {
-            let id = catalogue.gas(plan.gases[*i]).id();
-            format!("{id} {}%{}", crate::units::signed(dev * 100.0, 3), if *ok { "" } else { " OUTSIDE" })
-        })
-        .collect();
-    for line in crate::ron_format::wrap_words(&format!("made at the end, against the targets: {}", made.join(", ")), 78)
-    {
-        o.push_str(&format!("{line}\n"));
-    }
-    o.push_str(if r.on_target {
-        "every target within its tolerance\n"
-    } else {
-        "NOT every target can be met from here: see OUTSIDE above\n"
-    });
-    (o, steps)
-}
-
 /// The rest of a fill in progress, re-planned from its record: text and JSON.
 fn rest_of_fill(
     args: &PlanArgs,
@@ -145,7 +82,8 @@ fn rest_of_fill(
         .replan
         .clone()
         .map_err(|e| Refused(format!("record {id}: the rest of the fill cannot be re-planned: {e}")))?;
-    let (o, steps) = rest_text(id, &s, &r, plan, catalogue, d);
+    let live = crate::bench::live_sheet(plan, Some(&s), None, None);
+    let (o, steps) = crate::bench::rest_text(id, &s, &r, &live, plan, catalogue, d);
     let fractions: serde_json::Map<String, Value> = plan
         .gases
         .iter()

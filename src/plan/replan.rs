@@ -20,6 +20,8 @@ pub struct Replanned {
     pub add_mass_g: f64,
     /// Absolute pressure after the addition at the fill temperature, Pa.
     pub pressure_after_pa: f64,
+    /// Amount of each plan gas in the cylinder after the addition, mol.
+    pub amounts_after_mol: Vec<f64>,
 }
 
 /// The rest of the fill from here.
@@ -80,6 +82,7 @@ pub fn replan(plan: &Plan, order: &Order, done: usize, amounts_mol: &[f64]) -> R
             add_amount_mol: add[j],
             add_mass_g: add[j] * molar,
             pressure_after_pa,
+            amounts_after_mol: cumulative.clone(),
         });
     }
     let total: f64 = cumulative.iter().sum();

@@ -326,6 +326,8 @@ pub struct Progress {
     pub rows: Vec<(String, f64, f64)>,
     /// The remaining steps re-planned (or why not).
     pub replan: Result<crate::plan::replan::Replan, String>,
+    /// The record read into numbers (the live sheet is made from it).
+    pub standing: crate::bench::Standing,
 }
 
 /// The fill as it happens at the bench.
@@ -343,20 +345,35 @@ pub struct Bench {
     pub measured_k: Option<f64>,
     /// Absolute readings reached, Pa, per step.
     pub actual_pa: Vec<Option<f64>>,
-    /// Stop readings corrected to `measured_k`, Pa, per step (computed in `update`).
-    pub corrected_pa: Vec<Option<f64>>,
+    /// The sheet as the fill stands: finished steps as recorded, the rest re-planned, the
+    /// stop readings also for `measured_k` (computed in `update`).
+    pub live: Vec<crate::bench::LiveStep>,
     /// The stop finding the user chose to fill past (steps of a plan at stop are locked
     /// until the user confirms; a different stop asks again).
     pub stop_accepted: Option<String>,
+    /// A weighing far from the plan waiting for the user's confirmation (the text typed).
+    pub unconfirmed_weighing: Option<String>,
 }
 
 impl Bench {
-    /// Recompute the corrected targets for the measured temperature.
+    /// Make the live sheet again (after a new plan, a record entry or a temperature).
     pub fn correct(&mut self, plan: Option<&Plan>) {
-        self.corrected_pa = match (plan, self.measured_k) {
-            (Some(p), Some(t)) => (0..p.steps.len()).map(|i| p.corrected_target_pa(i, t).ok()).collect(),
-            _ => Vec::new(),
-        };
+        let standing = self.progress.as_ref().map(|p| &p.standing);
+        // Before the first addition is weighed the record holds only the empty weight.
+        let empty_g =
+            self.record.as_ref().and_then(|r| r.record.weighings.first()).and_then(
+                |w| match crate::units::parse_amount(w) {
+                    Ok(crate::units::AmountInput::Grams(g)) => Some(g),
+                    _ => None,
+                },
+            );
+        self.live = plan.map(|p| crate::bench::live_sheet(p, standing, empty_g, self.measured_k)).unwrap_or_default();
+    }
+
+    /// The stop reading to judge step `k` against: for the temperature measured now where
+    /// there is one, else at the fill temperature, from the live sheet.
+    pub fn target_pa(&self, k: usize) -> Option<f64> {
+        self.live.get(k).and_then(|l| l.pressure_now_pa.or(l.pressure_after_pa))
     }
 }
 

@@ -60,7 +60,7 @@ pub fn on_key(model: &mut Model, key: Key) {
         }
         Key::Char('c') => {
             doc.bench.measured_k = None;
-            doc.bench.correct(None);
+            doc.bench.correct(doc.computed.plan.as_ref().ok());
             model.status = "targets for the planned fill temperature again".into();
         }
         _ => {}
@@ -92,6 +92,21 @@ pub fn export(model: &mut Model, ctx: &Context) {
     let full = crate::plan::plan(order, &ctx.catalogue, &options);
     let plan = full.as_ref().unwrap_or(plan);
     text.push_str(&crate::cli::plan::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));
+    // A fill in progress: the sheet as it stands, what `plan NAME --record ID` prints.
+    if let (Some(rec), Some(prog)) = (&doc.bench.record, &doc.bench.progress) {
+        if let Ok(r) = &prog.replan {
+            let (rest, _) = crate::bench::rest_text(
+                &rec.id,
+                &prog.standing,
+                r,
+                &doc.bench.live,
+                plan,
+                &ctx.catalogue,
+                &model.shown,
+            );
+            text.push_str(&rest);
+        }
+    }
     // The text for the bench folder's screen, the PDF for its printer (the certificate's
     // machinery: Courier on A4, nothing embedded).
     let title = format!("Fill sheet {} rev {}", doc.name, doc.recipe.revision);
@@ -163,7 +178,7 @@ pub fn reading_notes(doc: &Document, limits: &BenchLimits, d: &Shown, step: usiz
     };
     let u = d.pu();
     let t = b.measured_k.unwrap_or(s.temperature_k);
-    let target = b.corrected_pa.get(step).copied().flatten().unwrap_or(s.pressure_after_pa);
+    let target = b.target_pa(step).unwrap_or(s.pressure_after_pa);
     let off = actual - target;
     // Far from the plan: more than 5 % of the target or ten gauge divisions (common practice).
     let far = off.abs() > (0.05 * target).max(10.0 * limits.gauge_pa);
@@ -272,6 +287,7 @@ pub fn attach_record(doc: &mut Document, ctx: &Context) {
 pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
     let Some(opened) = &doc.bench.record else {
         doc.bench.progress = None;
+        doc.bench.correct(doc.computed.plan.as_ref().ok());
         return;
     };
     let r = &opened.record;
@@ -288,9 +304,9 @@ pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
             doc.bench.measured_k = Some(t);
         }
     }
-    doc.bench.correct(doc.computed.plan.as_ref().ok());
     doc.bench.selected = weighed.min(doc.bench.done.len().saturating_sub(1));
     doc.bench.progress = progress(doc, ctx);
+    doc.bench.correct(doc.computed.plan.as_ref().ok());
 }
 
 /// The composition so far from the record's masses, against the plan, and the rest re-planned.
@@ -305,7 +321,7 @@ fn progress(doc: &Document, ctx: &Context) -> Option<Progress> {
         .enumerate()
         .map(|(i, &g)| (ctx.catalogue.gas(g).id().to_string(), s.now_mol[i], planned[i]))
         .collect();
-    Some(Progress { weighed: s.weighed, rows, replan: s.replan })
+    Some(Progress { weighed: s.weighed, rows, replan: s.replan.clone(), standing: s })
 }
 
 /// Write a change to the fill record as its next revision (creating the record on the

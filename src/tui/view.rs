@@ -423,25 +423,15 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     }
     for (i, s) in p.steps.iter().enumerate() {
         let selected = i == b.selected;
-        let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
-        let now = b.corrected_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
-        let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
-        let flag = step_mark(s).map_or(String::new(), |m| format!(" {m}"));
-        let text = format!(
-            "{}{:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}{:>9}{:>9}{flag}",
-            if selected { "▶" } else { " " },
-            done,
-            i + 1,
-            clip(&s.source, 10),
-            s.add_mass_g,
-            s.scale_reading_g,
-            d.pf(s.pressure_after_pa),
-            d.pf(s.pressure_after_pa - ambient),
-            now,
-            reached
-        );
-        lines.push(Line::styled(text, if selected { theme.selected() } else { Style::default() }));
+        let text = sheet_row(b, d, i, s, ambient);
+        let style = match (selected, b.live.get(i).is_some_and(|l| l.finished)) {
+            (true, _) => theme.selected(),
+            (false, true) => theme.dim(),
+            (false, false) => Style::default(),
+        };
+        lines.push(Line::styled(text, style));
     }
+    lines.extend(first_plan_note(b, d, width).into_iter().map(|l| Line::styled(l, theme.dim())));
     // A source name cut in the table (a premix) is given whole for the chosen step.
     if let Some(s) = p.steps.get(b.selected).filter(|s| s.source.chars().count() > 10) {
         lines.push(Line::raw(format!("step {} source: {}", b.selected + 1, s.source)));
@@ -498,6 +488,65 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     frame.render_widget(Paragraph::new(lines), inner);
 }
 
+/// One step of the Fill sheet: a finished step as recorded (what was added, the scale
+/// and pressure readings taken), a step to do as the live plan has it.
+fn sheet_row(b: &crate::tui::model::Bench, d: &Shown, i: usize, s: &crate::plan::Step, ambient: f64) -> String {
+    let cursor = if i == b.selected { "▶" } else { " " };
+    let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
+    let flag = step_mark(s).map_or(String::new(), |m| format!(" {m}"));
+    let Some(live) = b.live.get(i) else {
+        return format!("{cursor}{done:<4}{:<3}{:<11}", i + 1, clip(&s.source, 10));
+    };
+    if live.finished {
+        let reached = live.recorded_reading.map_or("–".to_string(), |(p, _)| d.pf(p));
+        return format!(
+            "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9} recorded",
+            i + 1,
+            clip(&live.source, 10),
+            live.add_mass_g,
+            live.scale_reading_g,
+            "",
+            "",
+            "",
+            reached
+        );
+    }
+    let stop = live.pressure_after_pa.unwrap_or(s.pressure_after_pa);
+    let now = live.pressure_now_pa.map_or("–".to_string(), |v| d.pf(v));
+    let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
+    let moved = if live.moved() { "*" } else { "" };
+    format!(
+        "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}{moved}{flag}",
+        i + 1,
+        clip(&s.source, 10),
+        live.add_mass_g,
+        live.scale_reading_g,
+        d.pf(stop),
+        d.pf(stop - ambient),
+        now,
+        reached
+    )
+}
+
+/// Under the table: that starred steps are re-planned, and the first plan of the chosen
+/// step for comparison.
+fn first_plan_note(b: &crate::tui::model::Bench, d: &Shown, width: usize) -> Vec<String> {
+    if !b.live.iter().any(|l| !l.finished && l.moved()) {
+        return Vec::new();
+    }
+    let mut note = "* re-planned from the fill record: stop at these readings".to_string();
+    if let Some(l) = b.live.get(b.selected).filter(|l| l.moved()) {
+        let (add, scale, stop) = l.planned;
+        note.push_str(&format!(
+            "; step {} as first planned: add {add:.2} g, scale {scale:.2} g, stop {} {}",
+            b.selected + 1,
+            d.pf(stop),
+            d.pu()
+        ));
+    }
+    wrap_words(&note, width)
+}
+
 /// The fill record under the steps: where it is, the composition so far against the plan,
 /// and the rest of the fill re-planned from the weighings.
 fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'static>> {
@@ -524,11 +573,6 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
     lines.push(Line::raw(clip(&so_far, 78)));
     match &prog.replan {
         Ok(rp) if prog.weighed < plan.steps.len() => {
-            let mut rest = String::from("rest re-planned:");
-            for s in &rp.steps {
-                rest.push_str(&format!(" {} {:.2}g→{}", clip(&s.source, 8), s.add_mass_g, d.pf(s.pressure_after_pa)));
-            }
-            lines.push(Line::raw(clip(&rest, 78)));
             let verdict = if rp.on_target {
                 format!("on target; final {} {} settled", d.pf(rp.final_pressure_pa), d.pu())
             } else {
