@@ -28,6 +28,8 @@ pub struct Standing {
     /// Per addition recorded: the source as written and the pressure reading (Pa
     /// absolute) with the cylinder temperature (K), where both were recorded.
     pub recorded: Vec<(String, Option<(f64, f64)>)>,
+    /// The pressure readings against the weighings, per addition with both.
+    pub cross_checks: Vec<CrossCheck>,
     /// The rest re-planned, or why not.
     pub replan: Result<Replan, String>,
 }
@@ -52,12 +54,14 @@ pub fn standing(
         plan.gases.iter().map(|g| m.gases.iter().position(|h| h == g).map_or(0.0, |i| amounts[i])).collect();
     let replan = replan::replan(plan, order, weighed, &now_mol);
     let recorded = checked.additions.iter().map(|a| (a.written.clone(), a.reading)).collect();
+    let cross_checks = cross_check(&checked, plan, catalogue);
     Ok(Standing {
         weighed,
         now_mol,
         last_reading_g: checked.weighings_g.last().copied(),
         weighings_g: checked.weighings_g.clone(),
         recorded,
+        cross_checks,
         replan,
     })
 }
@@ -237,4 +241,63 @@ pub fn rest_text(
         "NOT every target can be met from here: see OUTSIDE above\n"
     });
     (o, steps)
+}
+
+/// A step whose pressure reading and weighing were compared: the reading recorded, the
+/// pressure the weighed contents give under the plan's model at the recorded temperature,
+/// and the disagreement allowed (k = 2).
+#[derive(Debug, Clone, PartialEq)]
+pub struct CrossCheck {
+    /// The addition, 0-based.
+    pub step: usize,
+    pub reading_pa: f64,
+    pub from_masses_pa: f64,
+    pub allowed_pa: f64,
+}
+
+impl CrossCheck {
+    pub fn disagrees(&self) -> bool {
+        (self.reading_pa - self.from_masses_pa).abs() > self.allowed_pa
+    }
+}
+
+/// Relative standard uncertainty of the cylinder's internal volume taken from its stamped
+/// water capacity: ±1 % read as a rectangular distribution, 1 %/√3 (common practice, no
+/// source: stamped capacities are rounded to 0.1 L on 10 L cylinders and vary by batch).
+pub const WATER_CAPACITY_U_REL: f64 = 0.01 / 1.732_050_807_568_877_2;
+
+/// Cross-check every weighed addition that also has a pressure reading: the amounts from
+/// the masses (each source's molar mass from its composition) give a pressure in the
+/// cylinder at the recorded temperature; a reading further from it than twice the combined
+/// uncertainty of the gauge, the thermometer and the volume is flagged (a slip in either).
+pub fn cross_check(checked: &crate::record::Checked, plan: &Plan, catalogue: &Catalogue) -> Vec<CrossCheck> {
+    let mut amounts = vec![0.0; plan.gases.len()];
+    let mut out = Vec::new();
+    for (k, a) in checked.additions.iter().enumerate().take(checked.complete) {
+        let (Some(before), Some(after)) = (checked.weighings_g.get(k), checked.weighings_g.get(k + 1)) else { break };
+        let c = a.source.composition();
+        let molar: f64 =
+            c.gases.iter().zip(&c.fractions).map(|(&g, x)| x * catalogue.gas(g).molar_mass_g_per_mol).sum();
+        let n = (after - before) / molar;
+        for (&g, x) in c.gases.iter().zip(&c.fractions) {
+            if let Some(i) = plan.gases.iter().position(|h| *h == g) {
+                amounts[i] += n * x;
+            }
+        }
+        let Some((reading_pa, t_k)) = a.reading else { continue };
+        let p = |t: f64, v: f64| crate::plan::corrected_target_pa(&plan.fluid, v, &amounts, t).ok();
+        let (Some(p0), Some(p_t), Some(p_v)) =
+            (p(t_k, plan.volume_m3), p(t_k + 0.01, plan.volume_m3), p(t_k, plan.volume_m3 * 1.0001))
+        else {
+            continue;
+        };
+        let dp_dt = (p_t - p0) / 0.01;
+        let dp_dlnv = (p_v - p0) / 1e-4;
+        let u = (checked.pressure_u_pa.powi(2)
+            + (dp_dt * checked.temperature_u_k).powi(2)
+            + (dp_dlnv * WATER_CAPACITY_U_REL).powi(2))
+        .sqrt();
+        out.push(CrossCheck { step: k, reading_pa, from_masses_pa: p0, allowed_pa: 2.0 * u });
+    }
+    out
 }

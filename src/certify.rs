@@ -256,6 +256,43 @@ pub fn check_sources(checked: &Checked, catalogue: &Catalogue) -> Result<Vec<Str
     Ok(remarks)
 }
 
+/// What a reviewer must know about the entries: every correction made after an entry was
+/// recorded (what it was, what it became, why), and every addition whose pressure reading
+/// disagrees with its weighing beyond their uncertainties.
+pub fn entry_remarks(
+    record: &record::Record,
+    checked: &Checked,
+    plan: Option<&crate::plan::Plan>,
+    catalogue: &Catalogue,
+) -> Vec<String> {
+    let mut remarks: Vec<String> = record
+        .corrections
+        .iter()
+        .map(|c| {
+            let now = if c.now.is_empty() { "withdrawn".to_string() } else { c.now.clone() };
+            format!(
+                "corrected {}: {} was {}, now {now} ({}); the entry as it was is in the record's revisions",
+                c.time, c.entry, c.was, c.reason
+            )
+        })
+        .collect();
+    if let Some(plan) = plan {
+        for c in crate::bench::cross_check(checked, plan, catalogue).iter().filter(|c| c.disagrees()) {
+            remarks.push(format!(
+                "addition {}: the pressure reading {:.3} bar disagrees with the weighing, whose contents give {:.3} \
+                 bar at the recorded temperature ({} model; allowed ±{:.3} bar, k = 2): check the gauge, the scale \
+                 and the source",
+                c.step + 1,
+                c.reading_pa / 1e5,
+                c.from_masses_pa / 1e5,
+                plan.model.key(),
+                c.allowed_pa / 1e5
+            ));
+        }
+    }
+    remarks
+}
+
 /// Check, evaluate and verify a record.
 pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Result<Certified, String> {
     let Evaluate { model, draws, seed, issued } = how.clone();
@@ -268,8 +305,8 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     let (recipe_check, recipe, current_revision) = check_recipe(record, library);
     let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
     let options = crate::plan::PlanOptions { skip_following: true, ..Default::default() };
-    let planned = order.as_ref().and_then(|o| crate::plan::plan(o, catalogue, &options).ok()).map(|p| p.steps.len());
-    let unfinished = unfinished(record, &checked, planned);
+    let plan = order.as_ref().and_then(|o| crate::plan::plan(o, catalogue, &options).ok());
+    let unfinished = unfinished(record, &checked, plan.as_ref().map(|p| p.steps.len()));
     let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));
     let settings = config::load_settings().unwrap_or_else(|_| config::default_settings());
     let gases: Vec<usize> = checked.additions.iter().flat_map(|a| a.source.composition().gases).collect();
@@ -302,6 +339,7 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
         );
     }
     remarks.extend(expired_sources(record, sources.as_deref()));
+    remarks.extend(entry_remarks(record, &checked, plan.as_ref(), catalogue));
     if draws < record::DEFAULT_DRAWS {
         remarks.push(format!(
             "Monte Carlo with {draws} draws only; a certificate wants at least {}",

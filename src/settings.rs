@@ -43,6 +43,21 @@ pub struct Settings {
     /// Months a certificate is valid for; none: by the blend's components (6 months with a
     /// reactive gas, 12 with a ppm-level CO or hydrocarbon, else 24; common practice).
     pub shelf_life_months: Option<u32>,
+    /// A weighing whose addition is more than this factor above or below the live plan's
+    /// (a unit slip: kg for g) asks for confirmation before it is recorded.
+    pub weighing_check_factor: f64,
+    /// Whether the bench records the air (temperature, pressure, humidity) for the buoyancy
+    /// correction: `None`, `Once` (with the empty cylinder) or `EachWeighing`.
+    pub air_conditions: AirConditions,
+}
+
+/// When the Fill sheet asks for the air conditions.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+pub enum AirConditions {
+    #[default]
+    None,
+    Once,
+    EachWeighing,
 }
 
 impl Default for Settings {
@@ -66,6 +81,10 @@ impl Default for Settings {
             combine_verification_uncertainty: false,
             certificate_number: "{year}-{record}".into(),
             shelf_life_months: None,
+            // Common practice, no source: twice or half the planned mass is no fill error
+            // a careful blender makes; a unit slip is a factor of 1000.
+            weighing_check_factor: 2.0,
+            air_conditions: AirConditions::None,
         }
     }
 }
@@ -110,6 +129,8 @@ pub struct Resolved {
     pub combine_verification_uncertainty: bool,
     pub certificate_number: String,
     pub shelf_life_months: Option<u32>,
+    pub weighing_check_factor: f64,
+    pub air_conditions: AirConditions,
 }
 
 impl Resolved {
@@ -161,6 +182,12 @@ impl Settings {
         }
         let condensation_margin_k = parse_margin(&self.condensation_margin)
             .map_err(|why| err("condensation_margin", format!("{:?}: {why}", self.condensation_margin)))?;
+        if !(self.weighing_check_factor > 1.0 && self.weighing_check_factor <= 1000.0) {
+            return Err(err(
+                "weighing_check_factor",
+                format!("{} is not a factor from above 1 to 1000 (e.g. 2.0)", self.weighing_check_factor),
+            ));
+        }
         Ok(Resolved {
             shown: crate::units::Shown { pressure: self.pressure_unit, temperature: self.temperature_unit },
             default_model: self.default_model,
@@ -174,6 +201,8 @@ impl Settings {
             combine_verification_uncertainty: self.combine_verification_uncertainty,
             certificate_number: self.certificate_number.clone(),
             shelf_life_months: self.shelf_life_months,
+            weighing_check_factor: self.weighing_check_factor,
+            air_conditions: self.air_conditions,
         })
     }
 }

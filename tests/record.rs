@@ -486,3 +486,34 @@ fn a_component_without_uncertainty_is_shown_as_such_without_a_budget() {
     assert!(n2.contains("none") && !n2.contains("0.000000"), "{n2}");
     assert!(text.contains("N2 u = 0: no uncertainty stated, so no budget"), "{text}");
 }
+
+#[test]
+fn corrections_and_readings_that_disagree_with_the_weighings_are_on_the_certificate() {
+    let (config, lib) = library_with_record("corrections");
+    let path = lib.join("records/FC-10-2291-20261202.ron");
+    let text = std::fs::read_to_string(&path).unwrap();
+    // The N2 addition's gauge read 100 bar at 22 °C: its weighing (1531 g of N2 on top)
+    // gives about 150 bar, far beyond what the gauge, thermometer and volume allow.
+    let text = text
+        .replace(
+            "(source: \"N2=balance,O2=<2ppm,Ar=5ppm±1ppm\")",
+            "(source: \"N2=balance,O2=<2ppm,Ar=5ppm±1ppm\", pressure: \"100bar\", temperature: \"22C\")",
+        )
+        .replace(
+            "    additions:",
+            "    corrections: [(time: \"2026-12-02T09:30:00Z\", entry: \"weighing 2\", was: \"13942.450kg\", \
+             now: \"13942.450g\", reason: \"typed kg for g\")],\n    additions:",
+        );
+    std::fs::write(&path, text).unwrap();
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "2000"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let t = out(&o);
+    assert!(t.contains("corrected 2026-12-02T09:30:00Z: weighing 2 was 13942.450kg"), "{t}");
+    assert!(t.contains("typed kg for g"), "{t}");
+    assert!(t.contains("addition 3: the pressure reading 100.000 bar disagrees with the weighing"), "{t}");
+    assert!(t.lines().all(|l| l.chars().count() <= 80), "{t}");
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "2000", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["corrections"][0]["reason"], "typed kg for g");
+    assert_eq!(v["corrections"][0]["now"], "13942.450g");
+}

@@ -1163,3 +1163,163 @@ fn a_verification_is_typed_on_the_screen_written_as_typed_and_judged() {
     keys(&mut model, &mut ctx, &[Key::Esc, Key::Esc]);
     assert!(model.verification.is_none());
 }
+
+/// The Fill sheet of a demo recipe, opened and saved as is.
+fn on_sheet(tag: &str, name: &str) -> (Model, Context, PathBuf) {
+    let (mut model, mut ctx, dir) = setup(tag);
+    open(&mut model, &mut ctx, name);
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    (model, ctx, dir)
+}
+
+fn typed(model: &mut Model, ctx: &mut Context, key: char, value: &str) {
+    keys(model, ctx, &[Key::Char(key)]);
+    text(model, ctx, value);
+    keys(model, ctx, &[Key::Enter]);
+}
+
+fn record_of(model: &Model) -> fillwright::record::Record {
+    model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().record.clone()
+}
+
+#[test]
+fn a_premix_without_its_analysis_is_asked_for_and_the_analysis_is_written_at_once() {
+    let (mut model, mut ctx, _dir) = on_sheet("premix-analysis", "nox-span-premix");
+    typed(&mut model, &mut ctx, 'w', "13390.00g");
+    // The first addition comes from the premix at its nominal composition: asked at once.
+    assert!(
+        matches!(&model.overlay, Overlay::Prompt { purpose: fillwright::tui::model::Prompt::StepSource, .. }),
+        "{:?}",
+        model.overlay
+    );
+    assert!(model.status.contains("has no uncertainty") && model.status.contains("NO 1% in N2"), "{}", model.status);
+    // A nominal answer is still not an analysis; the real one is written to the record now.
+    text(&mut model, &mut ctx, "NO=1.0012%±0.0020%,N2=balance");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("(recorded)"), "{}", model.status);
+    assert_eq!(record_of(&model).additions[0].source, "NO=1.0012%±0.0020%,N2=balance");
+    // The session drops before the weighing: a new one shows the analysis for step 1.
+    let mut model = Model::new("test library".into(), false);
+    update::start(&mut model, &mut ctx);
+    open(&mut model, &mut ctx, "nox-span-premix");
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    assert_eq!(model.doc.as_ref().unwrap().bench.chosen_source.as_deref(), Some("NO=1.0012%±0.0020%,N2=balance"));
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("NO=1.0012%±0.0020%") && screen.contains("(recorded)"), "{screen}");
+    // The weighing keeps it.
+    typed(&mut model, &mut ctx, 'w', "13403.82g");
+    assert_eq!(record_of(&model).additions[0].source, "NO=1.0012%±0.0020%,N2=balance");
+}
+
+#[test]
+fn a_slip_is_confirmed_then_corrected_with_its_reason_and_kept_in_the_history() {
+    let (mut model, mut ctx, _dir) = on_sheet("slip", "flue-gas-span");
+    typed(&mut model, &mut ctx, 'w', "13412.000g");
+    typed(&mut model, &mut ctx, 'w', "13412.93g");
+    typed(&mut model, &mut ctx, 'w', "13439.51g");
+    // CO2: typed in kg where g was meant. Held back the first time, with why.
+    typed(&mut model, &mut ctx, 'w', "13877.09kg");
+    assert!(matches!(model.overlay, Overlay::Prompt { .. }), "the prompt stays open");
+    assert!(
+        model.status.contains("g added where the plan has 437.") && model.status.contains("×31"),
+        "{}",
+        model.status
+    );
+    assert_eq!(record_of(&model).weighings.len(), 3, "nothing recorded yet");
+    // Entered again as typed: recorded (the blender insisted).
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(record_of(&model).weighings.len(), 4);
+    // The correct reading is refused as a new weighing; corrected with x instead.
+    typed(&mut model, &mut ctx, 'x', "w 3 13877.09g");
+    assert!(model.status.contains("why?"), "{}", model.status);
+    // No reason: asked again.
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("needs its reason"), "{}", model.status);
+    text(&mut model, &mut ctx, "typed kg for g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("corrected"), "{}", model.status);
+    let r = record_of(&model);
+    assert_eq!(r.weighings[3], "13877.09g");
+    assert_eq!(r.corrections.len(), 1);
+    assert_eq!((r.corrections[0].was.as_str(), r.corrections[0].reason.as_str()), ("13877.09kg", "typed kg for g"));
+    // The history keeps the record as it was before the correction.
+    let id = model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().id.clone();
+    let history = ctx.library.record_history(&id);
+    assert!(
+        history.iter().any(|(_, _, p)| std::fs::read_to_string(p).unwrap().contains("\"13877.09kg\"")),
+        "{history:?}"
+    );
+    // A bad correction keeps its prompt and changes nothing.
+    typed(&mut model, &mut ctx, 'x', "w 2 13000g");
+    assert!(matches!(model.overlay, Overlay::Prompt { .. }));
+    assert!(model.status.contains("between the readings"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert_eq!(record_of(&model).corrections.len(), 1);
+    // Operator and balance on the screen.
+    keys(&mut model, &mut ctx, &[Key::Char('o'), Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "R. Okafor");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'b', "BAL-3, calibrated 2026-10-02");
+    let r = record_of(&model);
+    assert_eq!((r.operator.as_str(), r.balance.as_str()), ("R. Okafor", "BAL-3, calibrated 2026-10-02"));
+}
+
+#[test]
+fn a_pressure_reading_that_disagrees_with_the_weighing_is_flagged() {
+    let (mut model, mut ctx, _dir) = on_sheet("cross", "flue-gas-span");
+    typed(&mut model, &mut ctx, 'w', "13412.000g");
+    typed(&mut model, &mut ctx, 'w', "13412.93g");
+    typed(&mut model, &mut ctx, 't', "22C");
+    // CH4: the reading that matches the weighing passes.
+    let target = model.doc.as_ref().unwrap().bench.live[1].pressure_now_pa.unwrap();
+    typed(&mut model, &mut ctx, 'r', &format!("{:.3}bar", target / 1e5));
+    typed(&mut model, &mut ctx, 'w', "13439.51g");
+    let prog = model.doc.as_ref().unwrap().bench.progress.clone().unwrap();
+    let c = &prog.standing.cross_checks;
+    assert_eq!(c.len(), 1, "{c:?}");
+    assert!(!c[0].disagrees(), "{c:?}");
+    // Corrected to a reading 2 bar off (a slip of the gauge): flagged on the sheet.
+    typed(&mut model, &mut ctx, 'x', &format!("p 2 {:.3}bar", target / 1e5 + 2.0));
+    text(&mut model, &mut ctx, "read from the wrong gauge");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let prog = model.doc.as_ref().unwrap().bench.progress.clone().unwrap();
+    let c = &prog.standing.cross_checks[0];
+    assert!(c.disagrees(), "{c:?}");
+    // Allowed: twice the gauge (0.05 bar), thermometer (0.5 K) and volume (0.58 %) combined.
+    assert!(c.allowed_pa > 0.1e5 && c.allowed_pa < 0.2e5, "{c:?}");
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("but the weighing gives"), "{screen}");
+}
+
+#[test]
+fn the_air_is_asked_where_the_settings_say_and_needs_the_outer_volume_once() {
+    let (mut model, mut ctx, _dir) = on_sheet("air", "flue-gas-span");
+    ctx.settings.air_conditions = fillwright::settings::AirConditions::EachWeighing;
+    typed(&mut model, &mut ctx, 'w', "13412.000g");
+    assert!(
+        matches!(&model.overlay, Overlay::Prompt { purpose: fillwright::tui::model::Prompt::Air(0), .. }),
+        "{:?}",
+        model.overlay
+    );
+    text(&mut model, &mut ctx, "20.4C 1012.3hPa 41%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("outer (displaced) volume"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "20.4C 1012.3hPa 41% 13.6L");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let r = record_of(&model);
+    assert_eq!(r.air.len(), 1);
+    assert_eq!(r.cylinder_outer_volume.as_deref(), Some("13.6L"));
+    // The next weighing asks again; the record stays readable meanwhile (one entry each).
+    typed(&mut model, &mut ctx, 'w', "13412.93g");
+    assert_eq!(record_of(&model).air.len(), 2);
+    assert!(model.doc.as_ref().unwrap().bench.progress.is_some(), "the record still reads");
+    text(&mut model, &mut ctx, "21.0C 1011.8hPa 40%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let r = record_of(&model);
+    assert_eq!(r.air[1].temperature, "21.0C");
+    assert_eq!(r.air[0].temperature, "20.4C");
+    // Out of the equation's range: refused, the prompt kept.
+    typed(&mut model, &mut ctx, 'a', "80C 1012hPa 40%");
+    assert!(model.status.contains("outside the range"), "{}", model.status);
+}

@@ -550,6 +550,9 @@ impl Certificate<'_> {
             })).collect::<Vec<_>>(),
             "monte_carlo": self.monte_carlo_json(),
             "remarks": self.remarks,
+            "corrections": r.corrections.iter().map(|c| json!({
+                "time": c.time, "entry": c.entry, "was": c.was, "now": c.now, "reason": c.reason,
+            })).collect::<Vec<_>>(),
             "verification": self.verification_json(),
             "consistent_with_analysis": if self.verifications.iter().any(|v| v.outcome.is_ok()) {
                 json!(self.inconsistent().is_empty())

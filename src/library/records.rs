@@ -178,6 +178,19 @@ impl Library {
         self.open_record(&id).ok()
     }
 
+    /// The finished records of a recipe (a premix made here), newest first.
+    pub fn finished_records_of(&self, recipe: &str) -> Vec<String> {
+        let mut done: Vec<(String, Record)> = self
+            .records()
+            .unwrap_or_default()
+            .into_iter()
+            .filter_map(|(id, r)| r.ok().map(|r| (id, r)))
+            .filter(|(_, r)| r.recipe == recipe && r.finished.is_some())
+            .collect();
+        done.sort_by(|a, b| b.1.finished.cmp(&a.1.finished).then(b.0.cmp(&a.0)));
+        done.into_iter().map(|(id, _)| id).collect()
+    }
+
     /// The revisions of a record kept in its history, oldest first: (revision, note, path).
     pub fn record_history(&self, id: &str) -> Vec<(u64, Option<String>, PathBuf)> {
         let dir = self.records_dir().join(".history").join(id);

@@ -10,6 +10,7 @@
 pub mod analysis;
 pub mod buoyancy;
 pub mod composition;
+pub mod correct;
 pub mod uncertainty;
 
 use nalgebra::DMatrix;
@@ -116,8 +117,28 @@ pub struct Record {
     /// Standard uncertainties of the air readings (defaults in [`buoyancy`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub air_uncertainty: Option<AirLine>,
+    /// Corrections made to entries after they were recorded, oldest first (the entries as
+    /// they were are also in the record's revisions).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub corrections: Vec<Correction>,
     #[serde(default)]
     pub notes: String,
+}
+
+/// One correction of a recorded entry: what it was, what it is now (empty when withdrawn),
+/// and why.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Correction {
+    /// When it was made (UTC, RFC 3339).
+    pub time: String,
+    /// The entry: `weighing 2`, `addition 3 pressure`, `addition 3 temperature`,
+    /// `addition 3 source`.
+    pub entry: String,
+    pub was: String,
+    #[serde(default)]
+    pub now: String,
+    pub reason: String,
 }
 
 /// Air conditions as written: `(temperature: "20.4C", pressure: "1012.3hPa", humidity: "41%")`.
@@ -244,6 +265,7 @@ impl Record {
             air: Vec::new(),
             cylinder_outer_volume: None,
             air_uncertainty: None,
+            corrections: Vec::new(),
             notes: String::new(),
         }
     }
@@ -466,26 +488,29 @@ impl Record {
         };
         let mut densities = Vec::new();
         for line in &self.air {
-            let here = |what: &str, text: &str, e: String| err(&quoted(text), format!("air {what}: {e}"));
-            let t = units::parse_temperature(&line.temperature)
-                .map_err(|e| here("temperature", &line.temperature, e.to_string()))?;
-            let p = units::parse_pressure(&line.pressure, STANDARD_AMBIENT_PA)
-                .map_err(|e| here("pressure", &line.pressure, e.to_string()))?;
-            let h = humidity(&line.humidity).map_err(|e| here("humidity", &line.humidity, e))?;
-            if !(263.15..=318.15).contains(&t) || !(60_000.0..=110_000.0).contains(&p) {
-                return Err(here(
-                    "conditions",
-                    &line.temperature,
-                    "outside the range of the air-density equation (600 to 1100 hPa; CIPM-2007 is made for 15 to \
-                     27 °C, accepted here from -10 to 45 °C)"
-                        .into(),
-                ));
-            }
-            let air = buoyancy::Air { temperature_k: t, pressure_pa: p, humidity: h };
+            let air = read_air(line).map_err(|(text, e)| err(&quoted(&text), e))?;
             densities.push(buoyancy::density_with_u(&air, u));
         }
         Ok(Some(BuoyancyInputs { densities, volume_l: (volume_l, u_volume_l) }))
     }
+}
+
+/// One air entry read into numbers; a refusal names the text at fault and why.
+pub fn read_air(line: &AirLine) -> Result<buoyancy::Air, (String, String)> {
+    let t = units::parse_temperature(&line.temperature)
+        .map_err(|e| (line.temperature.clone(), format!("air temperature: {e}")))?;
+    let p = units::parse_pressure(&line.pressure, STANDARD_AMBIENT_PA)
+        .map_err(|e| (line.pressure.clone(), format!("air pressure: {e}")))?;
+    let h = humidity(&line.humidity).map_err(|e| (line.humidity.clone(), format!("air humidity: {e}")))?;
+    if !(263.15..=318.15).contains(&t) || !(60_000.0..=110_000.0).contains(&p) {
+        return Err((
+            line.temperature.clone(),
+            "air conditions: outside the range of the air-density equation (600 to 1100 hPa; CIPM-2007 is made \
+             for 15 to 27 °C, accepted here from -10 to 45 °C)"
+                .into(),
+        ));
+    }
+    Ok(buoyancy::Air { temperature_k: t, pressure_pa: p, humidity: h })
 }
 
 /// A relative humidity as written: `41%` or a fraction `0.41`; returns the fraction.

@@ -109,6 +109,14 @@ pub enum Prompt {
     Weighing,
     /// The source (analysis or @name) of the step in progress.
     StepSource,
+    /// A correction of a recorded entry (`w 2 13450.12g`), then its reason.
+    Correction,
+    CorrectionReason(String),
+    /// Who fills, and the balance used, for the fill record.
+    Operator,
+    Balance,
+    /// The air at the weighing just recorded (index of the weighing), for buoyancy.
+    Air(usize),
     /// A value of the settings editor (the field's index).
     Setting(usize),
 }

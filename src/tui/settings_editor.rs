@@ -4,12 +4,12 @@
 
 use super::model::{BenchLimits, Model, Overlay, Prompt};
 use super::update::{input, Context};
-use crate::settings::Settings;
+use crate::settings::{AirConditions, Settings};
 use crate::thermo::Model as Eos;
 use crate::units::{PressureUnit, TemperatureUnit};
 
 /// The editable fields, in the order shown.
-pub const FIELDS: [&str; 11] = [
+pub const FIELDS: [&str; 13] = [
     "pressure_unit",
     "temperature_unit",
     "default_model",
@@ -21,6 +21,8 @@ pub const FIELDS: [&str; 11] = [
     "condensation_margin",
     "git_commit_on_save",
     "combine_verification_uncertainty",
+    "weighing_check_factor",
+    "air_conditions",
 ];
 
 /// What each field is, for the overlay.
@@ -36,6 +38,8 @@ pub fn label(field: &str) -> &'static str {
         "max_service_temperature" => "highest service temperature",
         "condensation_margin" => "condensation margin",
         "combine_verification_uncertainty" => "combine verification u",
+        "weighing_check_factor" => "confirm weighings off by ×",
+        "air_conditions" => "air conditions asked",
         _ => "commit saves to git",
     }
 }
@@ -68,6 +72,13 @@ pub fn value(s: &Settings, field: &str) -> String {
         "max_service_temperature" => s.max_service_temperature.clone(),
         "condensation_margin" => s.condensation_margin.clone(),
         "combine_verification_uncertainty" => if s.combine_verification_uncertainty { "yes" } else { "no" }.into(),
+        "weighing_check_factor" => format!("{}", s.weighing_check_factor),
+        "air_conditions" => match s.air_conditions {
+            AirConditions::None => "never",
+            AirConditions::Once => "once, with the empty cylinder",
+            AirConditions::EachWeighing => "at every weighing",
+        }
+        .into(),
         _ => if s.git_commit_on_save { "yes" } else { "no" }.into(),
     }
 }
@@ -100,6 +111,13 @@ pub fn on_enter(model: &mut Model, ctx: &mut Context, selected: usize) {
         }
         "git_commit_on_save" => s.git_commit_on_save = !s.git_commit_on_save,
         "combine_verification_uncertainty" => s.combine_verification_uncertainty = !s.combine_verification_uncertainty,
+        "air_conditions" => {
+            s.air_conditions = match s.air_conditions {
+                AirConditions::None => AirConditions::Once,
+                AirConditions::Once => AirConditions::EachWeighing,
+                AirConditions::EachWeighing => AirConditions::None,
+            }
+        }
         _ => {
             model.overlay = Overlay::Prompt { purpose: Prompt::Setting(selected), input: input(&value(&s, field)) };
             model.status = format!("{}: type the new value; Enter keeps it, Esc cancels", label(field));
@@ -113,13 +131,25 @@ pub fn on_enter(model: &mut Model, ctx: &mut Context, selected: usize) {
 pub fn on_value(model: &mut Model, ctx: &mut Context, selected: usize, text: &str) {
     let field = FIELDS[selected.min(FIELDS.len() - 1)];
     let mut s = current(ctx);
+    if field == "weighing_check_factor" {
+        match text.trim().parse::<f64>() {
+            Ok(f) => s.weighing_check_factor = f,
+            Err(_) => {
+                model.overlay = Overlay::Prompt { purpose: Prompt::Setting(selected), input: input(text) };
+                model.status = "a factor is a plain number, e.g. 2.0 (Esc cancels)".into();
+                return;
+            }
+        }
+    }
+    let mut unused = String::new();
     let slot = match field {
         "ambient" => &mut s.ambient,
         "gauge_resolution" => &mut s.gauge_resolution,
         "scale_resolution" => &mut s.scale_resolution,
         "min_storage_temperature" => &mut s.min_storage_temperature,
         "max_service_temperature" => &mut s.max_service_temperature,
-        _ => &mut s.condensation_margin,
+        "condensation_margin" => &mut s.condensation_margin,
+        _ => &mut unused,
     };
     *slot = text.trim().to_string();
     if let Err(e) = s.resolve("", "settings") {

@@ -58,6 +58,25 @@ pub fn on_key(model: &mut Model, key: Key) {
             model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
             model.status = format!("source of the next addition: @NAME from the source library{now}, or its analysis");
         }
+        Key::Char('x') if doc.bench.record.is_some() => {
+            model.overlay = Overlay::Prompt { purpose: Prompt::Correction, input: input("") };
+            model.status = format!("correct a recorded entry: {}", crate::record::correct::SYNTAX);
+        }
+        Key::Char('o') => {
+            let now = doc.bench.record.as_ref().map_or(String::new(), |r| r.record.operator.clone());
+            model.overlay = Overlay::Prompt { purpose: Prompt::Operator, input: input(&now) };
+            model.status = "who fills this cylinder (written to the fill record and the certificate)".into();
+        }
+        Key::Char('b') => {
+            let now = doc.bench.record.as_ref().map_or(String::new(), |r| r.record.balance.clone());
+            model.overlay = Overlay::Prompt { purpose: Prompt::Balance, input: input(&now) };
+            model.status = "the balance: its identity and calibration, as your quality system names them".into();
+        }
+        Key::Char('a') if doc.bench.record.is_some() => {
+            let k = doc.bench.record.as_ref().map_or(0, |r| r.record.weighings.len().saturating_sub(1));
+            model.overlay = Overlay::Prompt { purpose: Prompt::Air(k), input: input("") };
+            model.status = AIR_HINT.into();
+        }
         Key::Char('c') => {
             doc.bench.measured_k = None;
             doc.bench.correct(doc.computed.plan.as_ref().ok());
@@ -305,6 +324,8 @@ pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
         }
     }
     doc.bench.selected = weighed.min(doc.bench.done.len().saturating_sub(1));
+    // The source recorded for the addition in progress (typed before a restart) stands.
+    doc.bench.chosen_source = r.additions.get(weighed).map(|a| a.source.clone()).filter(|s| !s.is_empty());
     doc.bench.progress = progress(doc, ctx);
     doc.bench.correct(doc.computed.plan.as_ref().ok());
 }
@@ -398,6 +419,10 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
         model.status = "every step is weighed already".into();
         return;
     }
+    if let Some(why) = far_from_plan(doc, ctx, k, grams, previous.as_deref(), text) {
+        return keep_prompt(model, Prompt::Weighing, text, &why);
+    }
+    doc.bench.unconfirmed_weighing = None;
     // Kept as typed: the record shows the reading the scale showed.
     let reading = text.trim().to_string();
     let source = k.map(|k| step_source(doc, k)).unwrap_or_default();
@@ -407,6 +432,7 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
         Some(k) => format!("step {} weighed: {reading}", k + 1),
     };
     let last = k.is_some_and(|k| k + 1 == steps);
+    let each_weighing = ctx.settings.air_conditions == crate::settings::AirConditions::EachWeighing;
     let result = write_record(doc, ctx, &note, |r| {
         if let Some(k) = k {
             if let Some(a) = addition_for(r, k, &source) {
@@ -414,22 +440,58 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
             }
         }
         r.weighings.push(reading.clone());
+        // Air recorded per weighing: the last conditions stand for this one until typed.
+        if r.air.len() > 1 || (r.air.len() == 1 && each_weighing) {
+            let last_air = r.air[r.air.len() - 1].clone();
+            r.air.push(last_air);
+        }
         if last {
             r.finished = Some(now.clone());
         }
     });
     match result {
         Ok(()) => {
-            doc.bench.chosen_source = None;
             let id = doc.bench.record.as_ref().map_or(String::new(), |o| o.id.clone());
             model.status = match (k, last) {
                 (None, _) => format!("record {id} started: {reading} before the fill"),
                 (Some(_), true) => format!("{note}; the fill is finished: fillwright certify {id}"),
                 (Some(_), false) => format!("{note} (record {id})"),
             };
+            if !ask_for_air(model, ctx, k) {
+                ask_for_analysis(model, ctx);
+            }
         }
         Err(e) => model.status = format!("not recorded: {e}"),
     }
+}
+
+/// A weighing whose addition is more than the settings' factor off the live plan (a unit
+/// slip) is held back the first time with why; the same text entered again is recorded.
+fn far_from_plan(
+    doc: &mut Document,
+    ctx: &Context,
+    k: Option<usize>,
+    grams: f64,
+    previous: Option<&str>,
+    text: &str,
+) -> Option<String> {
+    let k = k?;
+    let Ok(AmountInput::Grams(before)) = units::parse_amount(previous?) else { return None };
+    let planned = doc.bench.live.get(k).map(|l| l.add_mass_g).filter(|m| *m > 0.0)?;
+    let added = grams - before;
+    let factor = ctx.settings.weighing_check_factor;
+    let typed = text.trim().to_string();
+    if (added <= factor * planned && added >= planned / factor)
+        || doc.bench.unconfirmed_weighing.as_ref() == Some(&typed)
+    {
+        return None;
+    }
+    doc.bench.unconfirmed_weighing = Some(typed);
+    Some(format!(
+        "{text} means {added:.2} g added where the plan has {planned:.2} g (×{:.3}): check the unit and the scale; \
+         Enter again records it as typed",
+        added / planned
+    ))
 }
 
 /// A pressure reading typed for step `step`: shown on the sheet, and recorded when it is
@@ -495,7 +557,9 @@ pub fn on_temperature(model: &mut Model, ctx: &Context, text: &str) {
     }
 }
 
-/// The source of the step in progress: `@NAME` or an analysis with uncertainties.
+/// The source of the step in progress: `@NAME`, `record:ID` or an analysis with
+/// uncertainties. Written to the record at once (the addition's entry is made for it), so
+/// an analysis typed is never lost with the session.
 pub fn on_source(model: &mut Model, ctx: &Context, text: &str) {
     let Some(doc) = model.doc.as_mut() else { return };
     let lookup =
@@ -503,20 +567,237 @@ pub fn on_source(model: &mut Model, ctx: &Context, text: &str) {
     if let Err(e) = crate::record::resolve_source(text, &ctx.catalogue, &|r| lookup.resolve(r)) {
         return keep_prompt(model, Prompt::StepSource, text, &e);
     }
-    let typed = text.trim().to_string();
-    doc.bench.chosen_source = Some(typed.clone());
-    model.status = format!("the next addition comes from {typed}");
-    let step = step_in_progress(doc);
-    if doc.bench.record.as_ref().is_some_and(|o| step < o.record.additions.len()) {
-        let note = format!("step {} source {typed}", step + 1);
-        if let Err(e) = write_record(doc, ctx, &note, |r| r.additions[step].source = typed.clone()) {
-            model.status = format!("not recorded: {e}");
-        }
+    if doc.bench.record.is_none() {
+        let why = "weigh the empty cylinder first (w): the fill record starts with it, and the source is written to it";
+        return keep_prompt(model, Prompt::StepSource, text, why);
     }
+    let step = step_in_progress(doc);
+    if step >= doc.bench.done.len() {
+        model.status = "every step is weighed: there is no addition in progress".into();
+        return;
+    }
+    let typed = text.trim().to_string();
+    let note = format!("step {} source {typed}", step + 1);
+    let result = write_record(doc, ctx, &note, |r| {
+        if let Some(a) = addition_for(r, step, &typed) {
+            r.additions[a].source = typed.clone();
+        }
+    });
+    model.status = match result {
+        Ok(()) => {
+            doc.bench.chosen_source = Some(typed.clone());
+            format!("step {} comes from {typed} (recorded)", step + 1)
+        }
+        Err(e) => format!("not recorded: {e}"),
+    };
+}
+
+/// Whether a source as written gives some amount without an uncertainty (a nominal
+/// composition, not an analysis): the certificate would refuse it.
+fn lacks_uncertainty(written: &str, ctx: &Context) -> bool {
+    use crate::record::analysis::Assay;
+    let lookup =
+        Lookup { library: Some(&ctx.library), sources: ctx.sources.as_deref(), catalogue: &ctx.catalogue, depth: 0 };
+    match crate::record::resolve_source(written, &ctx.catalogue, &|r| lookup.resolve(r)) {
+        Ok(crate::record::SourceInput::Analysis(a)) => {
+            a.lines.iter().any(|l| matches!(l.assay, Assay::Measured { u, .. } if !(u > 0.0)))
+        }
+        Ok(_) => false,
+        Err(_) => true,
+    }
+}
+
+/// When an addition starts from a source with no analysis (a premix at its nominal
+/// composition), ask for the analysis now, offering the premix's own finished fill records
+/// and the source library.
+fn ask_for_analysis(model: &mut Model, ctx: &Context) {
+    let Some(doc) = model.doc.as_ref() else { return };
+    let step = step_in_progress(doc);
+    if doc.bench.record.is_none() || step >= doc.bench.done.len() {
+        return;
+    }
+    let written = step_source(doc, step);
+    if !lacks_uncertainty(&written, ctx) {
+        return;
+    }
+    let name = plan_step(doc, step).map_or(String::new(), |s| s.source.clone());
+    let own = ctx.library.finished_records_of(&name);
+    let offer = match own.first() {
+        Some(id) => format!(", record:{id} (its own fill)"),
+        None => String::new(),
+    };
+    model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
+    model.status = format!(
+        "step {} comes from {name}, whose composition {written} has no uncertainty: type its analysis \
+         (CO=0.5%±0.002%,N2=balance){offer}, or @NAME from the source library",
+        step + 1
+    );
 }
 
 /// A refused entry keeps its prompt open with the text typed and says why.
 fn keep_prompt(model: &mut Model, purpose: Prompt, text: &str, why: &str) {
     model.overlay = Overlay::Prompt { purpose, input: input(text) };
     model.status = format!("{why} (Esc cancels)");
+}
+
+/// A correction typed (`w 2 13450.12g`): checked, then its reason is asked.
+pub fn on_correction(model: &mut Model, ctx: &Context, text: &str) {
+    let Some(doc) = model.doc.as_ref() else { return };
+    let Some(opened) = &doc.bench.record else { return };
+    let (entry, value) = match crate::record::correct::parse(text) {
+        Ok(p) => p,
+        Err(e) => return keep_prompt(model, Prompt::Correction, text, &e),
+    };
+    if let (crate::record::correct::Entry::Source(_), Some(v)) = (entry, &value) {
+        let lookup = Lookup {
+            library: Some(&ctx.library),
+            sources: ctx.sources.as_deref(),
+            catalogue: &ctx.catalogue,
+            depth: 0,
+        };
+        if let Err(e) = crate::record::resolve_source(v, &ctx.catalogue, &|r| lookup.resolve(r)) {
+            return keep_prompt(model, Prompt::Correction, text, &e);
+        }
+    }
+    // Tried on a copy first: a refusal keeps the prompt and changes nothing.
+    let mut trial = opened.record.clone();
+    if let Err(e) = crate::record::correct::apply(&mut trial, entry, value.as_deref(), "trial", "") {
+        return keep_prompt(model, Prompt::Correction, text, &e);
+    }
+    let typed = text.trim().to_string();
+    model.overlay = Overlay::Prompt { purpose: Prompt::CorrectionReason(typed), input: input("") };
+    model.status = format!("{}: why? (e.g. typed kg for g); the entry as it was stays in the record", entry.name());
+}
+
+/// The reason of a correction: the correction is written to the record with it.
+pub fn on_correction_reason(model: &mut Model, ctx: &Context, pending: &str, reason: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let Ok((entry, value)) = crate::record::correct::parse(pending) else { return };
+    if reason.trim().is_empty() {
+        let why = "a correction needs its reason: it goes on the record and the certificate";
+        return keep_prompt(model, Prompt::CorrectionReason(pending.to_string()), reason, why);
+    }
+    let now = (ctx.now)();
+    let note = format!("correction: {} ({})", entry.name(), reason.trim());
+    let mut refused = None;
+    let result = write_record(doc, ctx, &note, |r| {
+        if let Err(e) = crate::record::correct::apply(r, entry, value.as_deref(), reason, &now) {
+            refused = Some(e);
+        }
+    });
+    // A withdrawn entry shown on the sheet goes with it.
+    if let crate::record::correct::Entry::Pressure(k) = entry {
+        if let Some(slot) = doc.bench.actual_pa.get_mut(k - 1) {
+            let ambient = doc.computed.order.as_ref().map_or(units::STANDARD_AMBIENT_PA, |o| o.ambient_pa);
+            *slot = value.as_deref().and_then(|v| units::parse_pressure(v, ambient).ok());
+        }
+    }
+    if let crate::record::correct::Entry::Weighing(k) = entry {
+        if value.is_none() {
+            if let Some(d) = k.checked_sub(1).and_then(|i| doc.bench.done.get_mut(i)) {
+                *d = false;
+            }
+        }
+    }
+    model.status = match (result, refused) {
+        (_, Some(e)) => format!("not corrected: {e}"),
+        (Ok(()), None) => format!("{} corrected ({}); the certificate will say so", entry.name(), reason.trim()),
+        (Err(e), None) => format!("not corrected: {e}"),
+    };
+}
+
+/// The operator or the balance, written to the record (which starts with the empty
+/// cylinder's weighing).
+pub fn on_person(model: &mut Model, ctx: &Context, balance: bool, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let typed = text.trim().to_string();
+    let what = if balance { "balance" } else { "operator" };
+    if doc.bench.record.is_none() {
+        let why = format!("weigh the empty cylinder first (w): the fill record starts with it, then the {what}");
+        return keep_prompt(model, if balance { Prompt::Balance } else { Prompt::Operator }, text, &why);
+    }
+    let note = format!("{what}: {typed}");
+    let result = write_record(doc, ctx, &note, |r| {
+        if balance {
+            r.balance = typed.clone();
+        } else {
+            r.operator = typed.clone();
+        }
+    });
+    model.status = match result {
+        Ok(()) => format!("{what} {typed} (recorded)"),
+        Err(e) => format!("not recorded: {e}"),
+    };
+}
+
+/// What the air prompt accepts.
+const AIR_HINT: &str = "the air at the scale: temperature, pressure, relative humidity, e.g. 20.4C 1012.3hPa 41%";
+
+/// The air conditions at weighing `k`, written to the record's `air` list (one entry per
+/// weighing; a single entry stands for all).
+pub fn on_air(model: &mut Model, ctx: &Context, k: usize, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let words: Vec<&str> = text.split_whitespace().collect();
+    let (t, p, h, volume) = match words.as_slice() {
+        [t, p, h] => (t, p, h, None),
+        [t, p, h, v] => (t, p, h, Some(v.to_string())),
+        _ => return keep_prompt(model, Prompt::Air(k), text, &format!("three values, please: {AIR_HINT}")),
+    };
+    let line = crate::record::AirLine { temperature: t.to_string(), pressure: p.to_string(), humidity: h.to_string() };
+    if let Err((at, e)) = crate::record::read_air(&line) {
+        return keep_prompt(model, Prompt::Air(k), text, &format!("{at}: {e}"));
+    }
+    let has_volume = doc.bench.record.as_ref().is_some_and(|r| r.record.cylinder_outer_volume.is_some());
+    match &volume {
+        Some(v) if units::parse_volume(v.split('±').next().unwrap_or(v)).is_err() => {
+            let why = format!("{v}: the cylinder's outer volume is a volume, e.g. 13.6L");
+            return keep_prompt(model, Prompt::Air(k), text, &why);
+        }
+        None if !has_volume => {
+            let why = "the first time, also the cylinder's outer (displaced) volume: 20.4C 1012.3hPa 41% 13.6L";
+            return keep_prompt(model, Prompt::Air(k), text, why);
+        }
+        _ => {}
+    }
+    let note = format!("air at weighing {k}: {t} {p} {h}");
+    let result = write_record(doc, ctx, &note, |r| {
+        if let Some(v) = &volume {
+            r.cylinder_outer_volume = Some(v.clone());
+        }
+        // Entries for the weighings before this one that have none repeat the last given.
+        while r.air.len() < k {
+            let last = r.air.last().cloned().unwrap_or_else(|| line.clone());
+            r.air.push(last);
+        }
+        if k < r.air.len() {
+            r.air[k] = line.clone();
+        } else {
+            r.air.push(line.clone());
+        }
+    });
+    match result {
+        Ok(()) => {
+            model.status = format!("air at weighing {k} recorded: {t} {p} {h}");
+            ask_for_analysis(model, ctx);
+        }
+        Err(e) => model.status = format!("not recorded: {e}"),
+    }
+}
+
+/// After a weighing: the air, where the settings say the bench records it (once, with the
+/// empty cylinder, or at every weighing).
+fn ask_for_air(model: &mut Model, ctx: &Context, k: Option<usize>) -> bool {
+    use crate::settings::AirConditions;
+    let asked = match ctx.settings.air_conditions {
+        AirConditions::None => false,
+        AirConditions::Once => k.is_none(),
+        AirConditions::EachWeighing => true,
+    };
+    if asked {
+        let index = k.map_or(0, |k| k + 1);
+        model.overlay = Overlay::Prompt { purpose: Prompt::Air(index), input: input("") };
+        let stands = if index > 0 { " (until then the last air recorded stands for it)" } else { "" };
+        model.status = format!("{}; {AIR_HINT}{stands}", model.status);
+    }
+    asked
 }

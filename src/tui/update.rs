@@ -1083,6 +1083,11 @@ fn on_prompt(model: &mut Model, ctx: &mut Context, purpose: Prompt, text: String
         Prompt::ActualReading(step) => super::sheet::on_pressure(model, ctx, step, &text),
         Prompt::Weighing => super::sheet::on_weighing(model, ctx, &text),
         Prompt::StepSource => super::sheet::on_source(model, ctx, &text),
+        Prompt::Correction => super::sheet::on_correction(model, ctx, &text),
+        Prompt::CorrectionReason(pending) => super::sheet::on_correction_reason(model, ctx, &pending, &text),
+        Prompt::Operator => super::sheet::on_person(model, ctx, false, &text),
+        Prompt::Balance => super::sheet::on_person(model, ctx, true, &text),
+        Prompt::Air(k) => super::sheet::on_air(model, ctx, k, &text),
         Prompt::AddSource => {
             if let Some(doc) = model.doc.as_mut() {
                 if !text.is_empty() {

@@ -432,9 +432,18 @@ fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         lines.push(Line::styled(text, style));
     }
     lines.extend(first_plan_note(b, d, width).into_iter().map(|l| Line::styled(l, theme.dim())));
-    // A source name cut in the table (a premix) is given whole for the chosen step.
-    if let Some(s) = p.steps.get(b.selected).filter(|s| s.source.chars().count() > 10) {
-        lines.push(Line::raw(format!("step {} source: {}", b.selected + 1, s.source)));
+    // A source name cut in the table (a premix) is given whole for the chosen step, and
+    // the source recorded for the addition in progress (an analysis, @NAME, record:ID).
+    let in_progress = b.record.as_ref().map(|r| r.record.weighings.len().saturating_sub(1));
+    match (&b.chosen_source, p.steps.get(b.selected)) {
+        (Some(c), Some(s)) if in_progress == Some(b.selected) => {
+            let text = format!("step {} source {}: {c} (recorded)", b.selected + 1, s.source);
+            lines.extend(wrap_words(&text, width).into_iter().map(Line::raw));
+        }
+        (_, Some(s)) if s.source.chars().count() > 10 => {
+            lines.push(Line::raw(format!("step {} source: {}", b.selected + 1, s.source)));
+        }
+        _ => {}
     }
     for (severity, note) in super::sheet::reading_notes(doc, &model.limits, d, b.selected) {
         let style = match severity {
@@ -564,6 +573,21 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
     ))];
     let Some(prog) = &doc.bench.progress else { return lines };
     let Ok(plan) = &doc.computed.plan else { return lines };
+    for c in prog.standing.cross_checks.iter().filter(|c| c.disagrees()) {
+        let text = format!(
+            "step {}: reading {} {u} but the weighing gives {} {u} (±{}): check gauge, scale, source; x corrects",
+            c.step + 1,
+            d.pf(c.reading_pa),
+            d.pf(c.from_masses_pa),
+            d.pf(c.allowed_pa),
+            u = d.pu()
+        );
+        lines.extend(wrap_words(&text, 78).into_iter().map(|l| Line::styled(l, theme.fg(Color::Red))));
+    }
+    if let Some(c) = r.corrections.last() {
+        let text = format!("{} correction(s); last: {} ({})", r.corrections.len(), c.entry, c.reason);
+        lines.push(Line::styled(clip(&text, 78), theme.dim()));
+    }
     let mut so_far = String::from("so far vs plan:");
     for (id, now, planned) in &prog.rows {
         if *planned > 0.0 {
@@ -841,20 +865,17 @@ fn help_lines(view: View) -> Vec<&'static str> {
             "u, Ctrl-z   undo      Ctrl-r, Ctrl-y  redo",
         ],
         View::Sheet => vec![
-            "↑↓ or j k   choose a step",
-            "Space       mark the step done",
-            "t           type the cylinder temperature measured now",
-            "c           back to the planned fill temperature",
-            "r           type the reading reached (bar, barg, psig …)",
-            "w           type the scale reading: before the fill, then",
-            "            after each step (starts and writes the fill record)",
-            "l           the source of the next addition: @NAME or analysis",
-            "m           the premixes proposed for steps too small to dose;",
-            "            a accepts one: its stages become library recipes",
-            "p           write the sheet as text to sheets/ in the library",
-            "every entry is saved in records/ at once; reopening the",
-            "recipe continues the fill; fillwright certify ID prints",
-            "the certificate",
+            "↑↓ j k  choose a step        Space  mark it done",
+            "t  cylinder temperature now  c  back to the planned temperature",
+            "r  reading reached (bar, barg, psig …)",
+            "w  scale reading: the empty cylinder, then after each step",
+            "l  source of the addition: analysis, @NAME or record:ID",
+            "x  correct a recorded entry, with its reason",
+            "o  operator   b  balance   a  air at the scale (buoyancy)",
+            "m  premixes for steps too small to dose (a accepts one)",
+            "p  write the sheet to sheets/ in the library (text, PDF)",
+            "every entry is written to records/ at once; reopening the",
+            "recipe continues the fill; fillwright certify ID certifies",
         ],
         View::Models => vec!["every model's amount, Z and last stop reading;", "charts of Z and of the fill"],
         View::Checks => vec![
@@ -986,7 +1007,12 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Prompt::ActualReading(i) => format!("Reading reached at step {} (e.g. 48.2bar)", i + 1),
                 Prompt::AddSource => "Source: a gas id, or NAME = SPEC for a premix".into(),
                 Prompt::Weighing => "Scale reading (e.g. 13504.85g) for the fill record".into(),
-                Prompt::StepSource => "Source: @NAME, or an analysis (N2=balance,O2=<2ppm)".into(),
+                Prompt::StepSource => "Source: @NAME, record:ID, or an analysis (CO=0.5%±0.002%,N2=balance)".into(),
+                Prompt::Correction => "Correct: w|p|t|s STEP VALUE (- withdraws)".into(),
+                Prompt::CorrectionReason(c) => format!("Why correct {c}?"),
+                Prompt::Operator => "Operator (who fills)".into(),
+                Prompt::Balance => "Balance (identity, calibration)".into(),
+                Prompt::Air(k) => format!("Air at weighing {k}: temperature pressure humidity"),
                 Prompt::Setting(k) => {
                     let field = super::settings_editor::FIELDS[(*k).min(super::settings_editor::FIELDS.len() - 1)];
                     format!("Setting: {}", super::settings_editor::label(field))
