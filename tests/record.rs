@@ -30,7 +30,7 @@ fn composition_and_uncertainty_agree_with_the_uncertainties_package() {
     let fixture: serde_json::Value = serde_json::from_str(include_str!("fixtures/uncertainties_records.json")).unwrap();
     let c = Catalogue::built_in();
     let records = fixture["records"].as_object().unwrap();
-    assert_eq!(records.len(), 4);
+    assert_eq!(records.len(), 5);
     for (name, expected) in records {
         let text = std::fs::read_to_string(format!("tests/records/{name}.ron")).unwrap();
         let e = evaluate(&text, 0);
@@ -516,4 +516,22 @@ fn corrections_and_readings_that_disagree_with_the_weighings_are_on_the_certific
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(v["corrections"][0]["reason"], "typed kg for g");
     assert_eq!(v["corrections"][0]["now"], "13942.450g");
+}
+
+#[test]
+fn a_substitution_weighing_needs_a_reference_reading_beside_every_weighing() {
+    let dir = fresh("substitution");
+    let text = std::fs::read_to_string("tests/records/flue-gas-substitution.ron").unwrap();
+    let broken = dir.join("short.ron");
+    std::fs::write(&broken, text.replace("\"13950.150g\"]", "]")).unwrap();
+    let o = run(&dir, &["certify", broken.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert!(e.contains("3 reference readings for 4 weighings"), "{e}");
+    // Buoyancy on the difference of the volumes: the budget names it.
+    let o = run(&dir, &["certify", "tests/records/flue-gas-substitution.ron", "--draws", "1000", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let inputs: Vec<&str> = v["inputs"].as_array().unwrap().iter().map(|i| i["input"].as_str().unwrap()).collect();
+    assert!(inputs.contains(&"outer volume, cylinder less reference"), "{inputs:?}");
+    assert!(inputs.contains(&"reference cylinder at weighing 3"), "{inputs:?}");
 }

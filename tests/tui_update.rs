@@ -1323,3 +1323,22 @@ fn the_air_is_asked_where_the_settings_say_and_needs_the_outer_volume_once() {
     typed(&mut model, &mut ctx, 'a', "80C 1012hPa 40%");
     assert!(model.status.contains("outside the range"), "{}", model.status);
 }
+
+#[test]
+fn a_substitution_weighing_takes_the_reference_cylinders_reading_beside_each() {
+    let (mut model, mut ctx, _dir) = on_sheet("substitution", "flue-gas-span");
+    typed(&mut model, &mut ctx, 'w', "13412.00g / 13950.12g");
+    assert_eq!(record_of(&model).reference_weighings, ["13950.12g"]);
+    // Every weighing then has its reference reading; a reading alone is refused.
+    typed(&mut model, &mut ctx, 'w', "13412.93g");
+    assert!(model.status.contains("weighed by substitution"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "13412.94g / 13950.13g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let r = record_of(&model);
+    assert_eq!((r.weighings.len(), r.reference_weighings.len()), (2, 2));
+    // The far-from-plan judgement is on the difference: 0.93 g added (0.94 − 0.01 drift).
+    assert!(model.status.contains("step 1 weighed"), "{}", model.status);
+    let progress = model.doc.as_ref().unwrap().bench.progress.as_ref().unwrap();
+    assert!(progress.rows[0].1 > 0.0, "the record reads: {:?}", progress.rows);
+}

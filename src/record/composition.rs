@@ -42,11 +42,15 @@ pub struct Measurand {
     sources: Vec<SourceTerms>,
 }
 
+/// A weighing's input index, and the reference cylinder's reading beside it (substitution).
+type Weighing = (usize, Option<usize>);
+
 #[derive(Debug, Clone)]
 enum Kind {
     Gravimetric {
-        /// Input indices of the weighings used.
-        weighings: Vec<usize>,
+        /// Input indices of the weighings used, each with the reference cylinder's reading
+        /// beside it in a substitution weighing.
+        weighings: Vec<Weighing>,
         /// Input indices of the air density at each weighing used and of the cylinder's
         /// outer volume (L), where the weighings are corrected for air buoyancy.
         buoyancy: Option<(Vec<usize>, usize)>,
@@ -157,15 +161,7 @@ impl Measurand {
         let additions = &checked.additions[..checked.complete];
         match checked.method {
             super::Method::Gravimetric => {
-                let weighings: Vec<usize> = checked.weighings_g[..=checked.complete]
-                    .iter()
-                    .enumerate()
-                    .map(|(k, &w)| {
-                        let label =
-                            if k == 0 { "weighing before the fill".to_string() } else { format!("weighing {k}") };
-                        inputs.push(label, w, checked.scale_u_g, Shape::Normal)
-                    })
-                    .collect();
+                let weighings = weighing_inputs(checked, &mut inputs);
                 let buoyancy = checked.buoyancy.as_ref().map(|b| buoyancy_inputs(b, weighings.len(), &mut inputs));
                 let sources: Vec<SourceTerms> = additions
                     .iter()
@@ -327,7 +323,7 @@ impl Measurand {
     fn gravimetric_amounts<T: Real>(
         &self,
         x: &[T],
-        weighings: &[usize],
+        weighings: &[Weighing],
         buoyancy: Option<&(Vec<usize>, usize)>,
         formulas: &[Vec<(usize, f64)>],
     ) -> Vec<T> {
@@ -353,7 +349,7 @@ impl Measurand {
     fn gravimetric<T: Real>(
         &self,
         x: &[T],
-        weighings: &[usize],
+        weighings: &[Weighing],
         buoyancy: Option<&(Vec<usize>, usize)>,
         formulas: &[Vec<(usize, f64)>],
     ) -> Vec<T> {
@@ -422,6 +418,22 @@ impl Measurand {
     }
 }
 
+/// The weighings as inputs (and the reference cylinder's readings beside them in a
+/// substitution weighing), each with the scale's standard uncertainty.
+fn weighing_inputs(checked: &super::Checked, inputs: &mut Inputs) -> Vec<Weighing> {
+    (0..=checked.complete)
+        .map(|k| {
+            let label = if k == 0 { "weighing before the fill".to_string() } else { format!("weighing {k}") };
+            let w = inputs.push(label.clone(), checked.weighings_g[k], checked.scale_u_g, Shape::Normal);
+            let r = checked
+                .reference_weighings_g
+                .get(k)
+                .map(|&r| inputs.push(format!("reference cylinder at {label}"), r, checked.scale_u_g, Shape::Normal));
+            (w, r)
+        })
+        .collect()
+}
+
 /// The buoyancy inputs: the air density at each of `weighings` (one input when the record
 /// gives the air once) and the cylinder's outer volume, L.
 fn buoyancy_inputs(b: &super::BuoyancyInputs, weighings: usize, inputs: &mut Inputs) -> (Vec<usize>, usize) {
@@ -441,15 +453,22 @@ fn buoyancy_inputs(b: &super::BuoyancyInputs, weighings: usize, inputs: &mut Inp
             })
             .collect()
     };
-    let volume = inputs.push("cylinder outer volume".into(), b.volume_l.0, b.volume_l.1, Shape::Normal);
+    let label = if b.substitution { "outer volume, cylinder less reference" } else { "cylinder outer volume" };
+    let volume = inputs.push(label.into(), b.volume_l.0, b.volume_l.1, Shape::Normal);
     (densities, volume)
 }
 
 /// The mass of weighing `k`, g: the scale's conventional reading W, corrected for air
 /// buoyancy where the record gives the air: m = W·(1 − ρa/8000 kg/m³) + ρa·V (ρa in
 /// kg/m³ times V in L is in g).
-fn weighed_mass<T: Real>(x: &[T], weighings: &[usize], buoyancy: Option<&(Vec<usize>, usize)>, k: usize) -> T {
-    let w = x[weighings[k]].clone();
+fn weighed_mass<T: Real>(x: &[T], weighings: &[Weighing], buoyancy: Option<&(Vec<usize>, usize)>, k: usize) -> T {
+    // In a substitution weighing the cylinder is weighed against a reference cylinder: the
+    // difference of the two readings carries the mass added (the reference's own mass and
+    // the scale's drift cancel), and buoyancy acts on the difference of their volumes.
+    let w = match weighings[k] {
+        (w, None) => x[w].clone(),
+        (w, Some(r)) => x[w].clone() - x[r].clone(),
+    };
     match buoyancy {
         None => w,
         Some((densities, volume)) => {

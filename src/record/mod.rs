@@ -114,6 +114,13 @@ pub struct Record {
     /// The cylinder's outer (displaced) volume, `13.6L` or `13.6L±0.1L`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub cylinder_outer_volume: Option<String>,
+    /// Substitution weighing: the reference cylinder's scale reading beside each weighing.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub reference_weighings: Vec<String>,
+    /// The reference cylinder's outer volume (`13.5L±0.05L`), for the buoyancy on the
+    /// difference; without it the two cylinders are taken as alike.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reference_outer_volume: Option<String>,
     /// Standard uncertainties of the air readings (defaults in [`buoyancy`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub air_uncertainty: Option<AirLine>,
@@ -155,8 +162,10 @@ pub struct AirLine {
 pub struct BuoyancyInputs {
     /// Air density (kg/m³) and its standard uncertainty: one per weighing, or one for all.
     pub densities: Vec<(f64, f64)>,
-    /// The cylinder's outer volume and its standard uncertainty, L.
+    /// The cylinder's outer volume and its standard uncertainty, L (in a substitution
+    /// weighing, the cylinder's less the reference cylinder's).
     pub volume_l: (f64, f64),
+    pub substitution: bool,
 }
 
 /// A record problem, placed in its file.
@@ -220,6 +229,8 @@ pub struct Checked {
     pub method: Method,
     pub scale_u_g: f64,
     pub weighings_g: Vec<f64>,
+    /// Substitution weighing: the reference cylinder's reading beside each weighing, g.
+    pub reference_weighings_g: Vec<f64>,
     pub additions: Vec<CheckedAddition>,
     /// Additions complete enough to enter the composition (weighed, or with a reading).
     pub complete: usize,
@@ -264,6 +275,8 @@ impl Record {
             additions: Vec::new(),
             air: Vec::new(),
             cylinder_outer_volume: None,
+            reference_weighings: Vec::new(),
+            reference_outer_volume: None,
             air_uncertainty: None,
             corrections: Vec::new(),
             notes: String::new(),
@@ -418,10 +431,12 @@ impl Record {
             Some(v) => Some(units::parse_volume(v).map_err(|e| err(&quoted(v), format!("water_capacity: {e}")))?),
         };
         let buoyancy = self.buoyancy_inputs(gravimetric, weighings_g.len(), &err)?;
+        let reference_weighings_g = self.reference_weighings(weighings_g.len(), &err)?;
         Ok(Checked {
             method: if gravimetric { Method::Gravimetric } else { Method::Manometric },
             scale_u_g,
             weighings_g,
+            reference_weighings_g,
             additions,
             complete,
             pressure_u_pa,
@@ -429,6 +444,35 @@ impl Record {
             volume_m3,
             buoyancy,
         })
+    }
+
+    /// The reference cylinder's readings of a substitution weighing, one beside each
+    /// weighing (none: direct weighing).
+    fn reference_weighings(
+        &self,
+        weighings: usize,
+        err: &dyn Fn(&str, String) -> RecordError,
+    ) -> Result<Vec<f64>, RecordError> {
+        if self.reference_weighings.is_empty() {
+            return Ok(Vec::new());
+        }
+        if self.reference_weighings.len() != weighings {
+            return Err(err(
+                "reference_weighings",
+                format!(
+                    "{} reference readings for {weighings} weighings: a substitution weighing has the reference \
+                     cylinder's reading beside each weighing",
+                    self.reference_weighings.len()
+                ),
+            ));
+        }
+        self.reference_weighings
+            .iter()
+            .map(|r| match units::parse_amount(r) {
+                Ok(AmountInput::Grams(g)) if g > 0.0 => Ok(g),
+                _ => Err(err(&format!("\"{r}\""), format!("reference reading {r:?} is not a mass, e.g. 12950.31g"))),
+            })
+            .collect()
     }
 
     /// The air densities and the outer volume, where the record gives the air.
@@ -491,7 +535,25 @@ impl Record {
             let air = read_air(line).map_err(|(text, e)| err(&quoted(&text), e))?;
             densities.push(buoyancy::density_with_u(&air, u));
         }
-        Ok(Some(BuoyancyInputs { densities, volume_l: (volume_l, u_volume_l) }))
+        let substitution = !self.reference_weighings.is_empty();
+        let volume_l = match (&self.reference_outer_volume, substitution) {
+            (_, false) => (volume_l, u_volume_l),
+            (None, true) => (0.0, std::f64::consts::SQRT_2 * u_volume_l),
+            (Some(text), true) => {
+                let place = |e: String| err(&quoted(text), format!("reference_outer_volume: {e}"));
+                let (v, u) = match text.split_once('±') {
+                    Some((v, u)) => (v, Some(u)),
+                    None => (text.as_str(), None),
+                };
+                let v_r = units::parse_volume(v.trim()).map_err(|e| place(e.to_string()))? * 1e3;
+                let u_r = match u {
+                    Some(u) => units::parse_volume(u.trim()).map_err(|e| place(e.to_string()))? * 1e3,
+                    None => buoyancy::DEFAULT_U_VOLUME_REL * v_r,
+                };
+                (volume_l - v_r, u_volume_l.hypot(u_r))
+            }
+        };
+        Ok(Some(BuoyancyInputs { densities, volume_l, substitution }))
     }
 }
 

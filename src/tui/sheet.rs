@@ -389,23 +389,67 @@ fn addition_for(record: &mut Record, k: usize, source: &str) -> Option<usize> {
     None
 }
 
+/// A weighing as typed: the cylinder's reading, and in a substitution weighing the
+/// reference cylinder's beside it (`15473.49g / 13950.15g`).
+struct TypedWeighing {
+    reading: String,
+    reference: Option<String>,
+    /// The reading less the reference's, g (the reading alone in a direct weighing), now
+    /// and at the weighing before.
+    net_g: f64,
+    previous_net_g: Option<f64>,
+}
+
+fn grams(text: &str) -> Option<f64> {
+    match units::parse_amount(text) {
+        Ok(AmountInput::Grams(g)) => Some(g),
+        _ => None,
+    }
+}
+
+/// Read a typed weighing against the record: masses, the reference reading where the
+/// record weighs by substitution (every weighing or none), and more than the one before.
+fn read_weighing(doc: &Document, text: &str) -> Result<TypedWeighing, String> {
+    let (w, r) = match text.split_once('/') {
+        Some((w, r)) => (w.trim(), Some(r.trim())),
+        None => (text.trim(), None),
+    };
+    let w_g = units::parse_mass(w).map_err(|e| e.to_string())?;
+    let r_g = r.map(|r| units::parse_mass(r).map_err(|e| format!("reference cylinder: {e}"))).transpose()?;
+    let record = doc.bench.record.as_ref().map(|o| &o.record);
+    let substitution = record.is_some_and(|r| !r.reference_weighings.is_empty());
+    match (record.is_some_and(|r| !r.weighings.is_empty()), substitution, r_g.is_some()) {
+        (true, true, false) => {
+            return Err("this fill is weighed by substitution: type the cylinder's reading / the reference \
+                        cylinder's (e.g. 13504.86g / 13950.13g)"
+                .into())
+        }
+        (true, false, true) => return Err("this fill is weighed directly: type the cylinder's reading alone".into()),
+        _ => {}
+    }
+    let previous = record.and_then(|r| r.weighings.last().and_then(|w| grams(w)));
+    if let (Some(p), Some(prev)) = (previous, record.and_then(|r| r.weighings.last())) {
+        if w_g <= p {
+            return Err(format!("{w} is not above the previous reading {prev}; every addition adds mass"));
+        }
+    }
+    let previous_ref = record.and_then(|r| r.reference_weighings.last().and_then(|w| grams(w)));
+    Ok(TypedWeighing {
+        reading: w.to_string(),
+        reference: r.map(str::to_string),
+        net_g: w_g - r_g.unwrap_or(0.0),
+        previous_net_g: previous.map(|p| p - previous_ref.unwrap_or(0.0)),
+    })
+}
+
 /// A scale reading typed at the bench.
 pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
     let Some(doc) = model.doc.as_mut() else { return };
     let steps = doc.bench.done.len();
-    let grams = match units::parse_mass(text) {
-        Ok(g) => g,
-        Err(e) => return keep_prompt(model, Prompt::Weighing, text, &e.to_string()),
+    let typed = match read_weighing(doc, text) {
+        Ok(t) => t,
+        Err(e) => return keep_prompt(model, Prompt::Weighing, text, &e),
     };
-    let previous = doc.bench.record.as_ref().and_then(|o| o.record.weighings.last().cloned());
-    if let Some(prev) = &previous {
-        if let Ok(AmountInput::Grams(p)) = units::parse_amount(prev) {
-            if grams <= p {
-                let why = format!("{text} is not above the previous reading {prev}; every addition adds mass");
-                return keep_prompt(model, Prompt::Weighing, text, &why);
-            }
-        }
-    }
     let k = weighed(doc);
     if k.is_none() && doc.computed.plan.as_ref().is_ok_and(|p| p.heel.is_some()) {
         // The record's composition counts what its weighings add; a heel weighed in with the
@@ -419,41 +463,17 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
         model.status = "every step is weighed already".into();
         return;
     }
-    if let Some(why) = far_from_plan(doc, ctx, k, grams, previous.as_deref(), text) {
+    if let Some(why) = far_from_plan(doc, ctx, k, &typed, text) {
         return keep_prompt(model, Prompt::Weighing, text, &why);
     }
     doc.bench.unconfirmed_weighing = None;
-    // Kept as typed: the record shows the reading the scale showed.
-    let reading = text.trim().to_string();
-    let source = k.map(|k| step_source(doc, k)).unwrap_or_default();
-    let now = (ctx.now)();
-    let note = match k {
-        None => format!("empty cylinder weighed: {reading}"),
-        Some(k) => format!("step {} weighed: {reading}", k + 1),
-    };
-    let last = k.is_some_and(|k| k + 1 == steps);
-    let each_weighing = ctx.settings.air_conditions == crate::settings::AirConditions::EachWeighing;
-    let result = write_record(doc, ctx, &note, |r| {
-        if let Some(k) = k {
-            if let Some(a) = addition_for(r, k, &source) {
-                r.additions[a].time = Some(now.clone());
-            }
-        }
-        r.weighings.push(reading.clone());
-        // Air recorded per weighing: the last conditions stand for this one until typed.
-        if r.air.len() > 1 || (r.air.len() == 1 && each_weighing) {
-            let last_air = r.air[r.air.len() - 1].clone();
-            r.air.push(last_air);
-        }
-        if last {
-            r.finished = Some(now.clone());
-        }
-    });
+    let result = record_weighing(doc, ctx, k, &typed);
     match result {
-        Ok(()) => {
+        Ok(note) => {
             let id = doc.bench.record.as_ref().map_or(String::new(), |o| o.id.clone());
+            let last = k.is_some_and(|k| k + 1 == steps);
             model.status = match (k, last) {
-                (None, _) => format!("record {id} started: {reading} before the fill"),
+                (None, _) => format!("record {id} started: {} before the fill", typed.reading),
                 (Some(_), true) => format!("{note}; the fill is finished: fillwright certify {id}"),
                 (Some(_), false) => format!("{note} (record {id})"),
             };
@@ -465,18 +485,56 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
     }
 }
 
+/// Write a weighing (after step `k`, or of the empty cylinder) to the record, as typed:
+/// the record shows what the scale showed. Returns the note of the revision.
+fn record_weighing(
+    doc: &mut Document,
+    ctx: &Context,
+    k: Option<usize>,
+    typed: &TypedWeighing,
+) -> Result<String, String> {
+    let steps = doc.bench.done.len();
+    let source = k.map(|k| step_source(doc, k)).unwrap_or_default();
+    let now = (ctx.now)();
+    let beside = typed.reference.as_ref().map_or(String::new(), |r| format!(" / reference {r}"));
+    let note = match k {
+        None => format!("empty cylinder weighed: {}{beside}", typed.reading),
+        Some(k) => format!("step {} weighed: {}{beside}", k + 1, typed.reading),
+    };
+    let last = k.is_some_and(|k| k + 1 == steps);
+    let each_weighing = ctx.settings.air_conditions == crate::settings::AirConditions::EachWeighing;
+    write_record(doc, ctx, &note, |r| {
+        if let Some(a) = k.and_then(|k| addition_for(r, k, &source)) {
+            r.additions[a].time = Some(now.clone());
+        }
+        r.weighings.push(typed.reading.clone());
+        if let Some(reference) = &typed.reference {
+            r.reference_weighings.push(reference.clone());
+        }
+        // Air recorded per weighing: the last conditions stand for this one until typed.
+        if r.air.len() > 1 || (r.air.len() == 1 && each_weighing) {
+            let last_air = r.air[r.air.len() - 1].clone();
+            r.air.push(last_air);
+        }
+        if last {
+            r.finished = Some(now.clone());
+        }
+    })?;
+    Ok(note)
+}
+
 /// A weighing whose addition is more than the settings' factor off the live plan (a unit
 /// slip) is held back the first time with why; the same text entered again is recorded.
 fn far_from_plan(
     doc: &mut Document,
     ctx: &Context,
     k: Option<usize>,
-    grams: f64,
-    previous: Option<&str>,
+    typed: &TypedWeighing,
     text: &str,
 ) -> Option<String> {
     let k = k?;
-    let Ok(AmountInput::Grams(before)) = units::parse_amount(previous?) else { return None };
+    let before = typed.previous_net_g?;
+    let grams = typed.net_g;
     let planned = doc.bench.live.get(k).map(|l| l.add_mass_g).filter(|m| *m > 0.0)?;
     let added = grams - before;
     let factor = ctx.settings.weighing_check_factor;

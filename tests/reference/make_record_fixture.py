@@ -105,9 +105,20 @@ def air_densities(rec):
 def composition(rec):
     scale_u = float(rec["scale_uncertainty"][:-1])
     w = [ufloat(float(x[:-1]), scale_u, f"weighing {i}") for i, x in enumerate(rec["weighings"])]
+    volume = None
+    if "air" in rec:
+        volume = ufloat(rec["outer_volume_l"], 0.01 * rec["outer_volume_l"], "outer volume")
+    if "reference_weighings" in rec:
+        # Substitution weighing: the cylinder against a reference cylinder, read in turn;
+        # the difference of the readings carries the mass, and the buoyancy acts on the
+        # difference of the outer volumes.
+        r = [ufloat(float(x[:-1]), scale_u, f"reference {i}") for i, x in enumerate(rec["reference_weighings"])]
+        w = [wk - rk for wk, rk in zip(w, r)]
+        if volume is not None:
+            v_r = rec["reference_outer_volume_l"]
+            volume = volume - ufloat(v_r, 0.01 * v_r, "reference outer volume")
     if "air" in rec:
         # m = W (1 - rho/8000) + rho V: rho in kg/m3 times V in L is in g.
-        volume = ufloat(rec["outer_volume_l"], 0.01 * rec["outer_volume_l"], "outer volume")
         w = [wk * (1 - rho / 8000.0) + rho * volume for wk, rho in zip(w, air_densities(rec))]
     moles = {}
     for k, src in enumerate(rec["sources"], start=1):
@@ -142,6 +153,17 @@ RECORDS = {
         "air": [(20.4, 1012.3, 41.0), (21.0, 1011.8, 43.0), (21.6, 1010.9, 44.0), (22.1, 1010.2, 46.0)],
         "outer_volume_l": 13.6,
     },
+    # The flue-gas fill weighed by substitution against a reference cylinder of nearly the
+    # same outer volume, with the air at each weighing: buoyancy largely cancels.
+    "flue-gas-substitution": {
+        "recipe": "flue-gas-span", "cylinder": "FC-10-2291", "scale_uncertainty": "0.010g",
+        "weighings": ["13412.000g", "13504.860g", "13942.470g", "15473.490g"],
+        "reference_weighings": ["13950.120g", "13950.130g", "13950.135g", "13950.150g"],
+        "sources": ["CO=1%±0.002%,N2=balance", "CO2=balance,N2=<10ppm", "N2=balance,O2=<2ppm,Ar=5ppm±1ppm"],
+        "air": [(20.4, 1012.3, 41.0), (21.0, 1011.8, 43.0), (21.6, 1010.9, 44.0), (22.1, 1010.2, 46.0)],
+        "outer_volume_l": 13.6,
+        "reference_outer_volume_l": 13.4,
+    },
     # A detector test gas made from four pure-ish gases, one with an analysed impurity.
     "detector-gas-made": {
         "recipe": "detector-test-ch4-air", "cylinder": "DX-40-7781", "scale_uncertainty": "0.020g",
@@ -162,6 +184,9 @@ def ron(name, rec):
         lines += ["    air: ["]
         lines += [f'        (temperature: "{t}C", pressure: "{p}hPa", humidity: "{h}%"),' for t, p, h in rec["air"]]
         lines += ["    ],", f'    cylinder_outer_volume: "{rec["outer_volume_l"]}L",']
+    if "reference_weighings" in rec:
+        lines += ["    reference_weighings: [" + ", ".join(f'"{w}"' for w in rec["reference_weighings"]) + "],"]
+        lines += [f'    reference_outer_volume: "{rec["reference_outer_volume_l"]}L",']
     lines += [")", ""]
     return "\n".join(lines)
 
