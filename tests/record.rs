@@ -330,7 +330,32 @@ fn the_pdf_holds_every_number_of_the_text_certificate() {
     for n in numbers(&text) {
         assert!(in_pdf.contains(&n), "{n} is missing from the PDF:\n{back}");
     }
-    assert!(back.contains("CERTIFICATE OF PREPARATION") && back.contains("±") == text.contains('±'));
+    assert!(back.contains("Certificate of preparation") && back.contains("±") == text.contains('±'));
+    // Typeset: page numbers, the running head on the next pages, and the Monte Carlo
+    // verdict in words no gas formula can be taken for.
+    assert!(back.contains("page 1 of"), "{back}");
+    assert!(!back.contains(" NO\n") && (back.contains("agrees") || back.contains("differs")), "{back}");
+    // A page rendered to an image is not blank: it carries text and rules.
+    let image = config.join("page");
+    let o = std::process::Command::new("pdftoppm")
+        .args(["-gray", "-r", "40", "-f", "1", "-l", "1"])
+        .arg(&pdf)
+        .arg(&image)
+        .output()
+        .expect("pdftoppm (poppler-utils) renders the page");
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let pgm = std::fs::read_dir(&config)
+        .unwrap()
+        .flatten()
+        .map(|e| e.path())
+        .find(|p| p.extension().is_some_and(|x| x == "pgm"))
+        .expect("a rendered page");
+    let bytes = std::fs::read(pgm).unwrap();
+    // P5 WIDTH HEIGHT MAXVAL, then one byte a pixel.
+    let header_end = bytes.iter().enumerate().filter(|(_, b)| **b == b'\n').nth(2).unwrap().0 + 1;
+    let pixels = &bytes[header_end..];
+    let dark = pixels.iter().filter(|&&p| p < 128).count() as f64 / pixels.len() as f64;
+    assert!(dark > 0.005 && dark < 0.3, "dark share of the page {dark}");
 }
 
 #[test]

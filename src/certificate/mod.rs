@@ -3,7 +3,10 @@
 //! A presenter above the record: it computes nothing itself. Text (80 columns), JSON and
 //! PDF carry the same content; the PDF is the text set in a fixed-width font.
 
+mod blocks;
+pub mod metrics;
 pub mod pdf;
+pub mod typeset;
 
 use serde_json::{json, Value};
 
@@ -339,29 +342,12 @@ impl Certificate<'_> {
 
     /// The composition made against the targets, and the verification.
     fn composition_lines(&self) -> Vec<String> {
-        let e = self.evaluation;
         let mut o: Vec<String> = Vec::new();
         o.push(String::new());
         o.push(format!("COMPOSITION  U = k u with k = {COVERAGE_FACTOR} (about 95 %)"));
         o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", "gas", "amount", "U", "unit", "target", "judged"));
-        for i in 0..e.gum.values.len() {
-            let (x, u) = (e.gum.values[i], self.u_of(i));
-            let (xs, us, unit) = with_uncertainty(x, COVERAGE_FACTOR * u);
-            let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
-            let (ts, judged) = match target {
-                Some(t) if self.in_progress() => (in_unit(t.fraction, unit), "fill in progress".to_string()),
-                Some(t) => (
-                    in_unit(t.fraction, unit),
-                    match t.tolerance {
-                        Some(tol) if (x - t.fraction).abs() <= tol => "within tolerance".to_string(),
-                        Some(_) => "OUTSIDE tolerance".to_string(),
-                        None => format!("{} % rel", crate::units::signed((x / t.fraction - 1.0) * 100.0, 3)),
-                    },
-                ),
-                None if self.targets.is_empty() => ("–".into(), "–".into()),
-                None => ("–".into(), "impurity".into()),
-            };
-            o.push(format!("{:<10} {:>14} {:>12} {:<5} {:>12}  {}", self.id_of(i), xs, us, unit, ts, judged));
+        for [id, xs, us, unit, ts, judged] in self.composition_rows() {
+            o.push(format!("{id:<10} {xs:>14} {us:>12} {unit:<5} {ts:>12}  {judged}"));
         }
         if !self.verifications.is_empty() {
             o.push(String::new());
@@ -370,23 +356,84 @@ impl Certificate<'_> {
         o
     }
 
+    /// Per gas: id, amount, U, unit, target, judgement (as the text and the PDF show them).
+    fn composition_rows(&self) -> Vec<[String; 6]> {
+        let e = self.evaluation;
+        (0..e.gum.values.len())
+            .map(|i| {
+                let (x, u) = (e.gum.values[i], self.u_of(i));
+                let (xs, us, unit) = with_uncertainty(x, COVERAGE_FACTOR * u);
+                let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
+                let (ts, judged) = match target {
+                    Some(t) if self.in_progress() => (in_unit(t.fraction, unit), "fill in progress".to_string()),
+                    Some(t) => (
+                        in_unit(t.fraction, unit),
+                        match t.tolerance {
+                            Some(tol) if (x - t.fraction).abs() <= tol => "within tolerance".to_string(),
+                            Some(_) => "OUTSIDE tolerance".to_string(),
+                            None => format!("{} % rel", crate::units::signed((x / t.fraction - 1.0) * 100.0, 3)),
+                        },
+                    ),
+                    None if self.targets.is_empty() => ("–".into(), "–".into()),
+                    None => ("–".into(), "impurity".into()),
+                };
+                [self.id_of(i).to_string(), xs, us, unit.to_string(), ts, judged]
+            })
+            .collect()
+    }
+
+    /// Per gas: id, unit, u GUM, u MC, the MC interval, whether they agree.
+    fn monte_carlo_rows(&self) -> Vec<[String; 6]> {
+        let e = self.evaluation;
+        let mc = &e.monte_carlo;
+        (0..e.gum.values.len())
+            .filter_map(|i| {
+                let a = e.agreement.get(i)?;
+                let (_, _, unit) = with_uncertainty(e.gum.values[i], e.gum.u[i]);
+                Some([
+                    self.id_of(i).to_string(),
+                    unit.to_string(),
+                    in_unit(e.gum.u[i], unit),
+                    in_unit(mc.u[i], unit),
+                    format!("{} to {}", in_unit(mc.low[i], unit), in_unit(mc.high[i], unit)),
+                    if a.agrees { "agrees" } else { "differs" }.to_string(),
+                ])
+            })
+            .collect()
+    }
+
+    /// Per addition: its number, the mass (or reading) and the source as written.
+    fn addition_rows(&self) -> Vec<[String; 3]> {
+        let c = self.checked;
+        c.additions
+            .iter()
+            .enumerate()
+            .map(|(k, a)| {
+                let mass = match c.method {
+                    Method::Gravimetric => c
+                        .weighings_g
+                        .get(k + 1)
+                        .map_or("not weighed".into(), |w| format!("{:.3} g", w - c.weighings_g[k])),
+                    Method::Manometric => a
+                        .reading
+                        .map_or("no reading".into(), |(p, t)| format!("{:.3} bar at {:.2} °C", p / 1e5, t - 273.15)),
+                };
+                let source = match &a.source_name {
+                    Some(n) => format!("{} (source {n})", a.written),
+                    None => a.written.clone(),
+                };
+                [format!("{}", k + 1), mass, source]
+            })
+            .collect()
+    }
+
     /// The additions and what the weighings or readings rest on.
     fn additions_lines(&self) -> Vec<String> {
         let mut o: Vec<String> = Vec::new();
         o.push(String::new());
         o.push("ADDITIONS".into());
-        for (k, a) in self.checked.additions.iter().enumerate() {
-            let mass = match self.checked.method {
-                Method::Gravimetric => self
-                    .checked
-                    .weighings_g
-                    .get(k + 1)
-                    .map_or("not weighed".into(), |w| format!("{:.3} g", w - self.checked.weighings_g[k])),
-                Method::Manometric => a
-                    .reading
-                    .map_or("no reading".into(), |(p, t)| format!("{:.3} bar at {:.2} °C", p / 1e5, t - 273.15)),
-            };
-            o.push(format!("{:>2} {}  {}", k + 1, mass, a.written));
+        for (a, [k, mass, _]) in self.checked.additions.iter().zip(self.addition_rows()) {
+            o.push(format!("{k:>2} {mass}  {}", a.written));
             if let Some(n) = &a.source_name {
                 o.push(format!("   source {n}"));
             }
@@ -444,19 +491,8 @@ impl Certificate<'_> {
             "{:<10} {:<5} {:>10} {:>10} {:>22}  {}",
             "gas", "unit", "u GUM", "u MC", "interval MC", "agrees"
         ));
-        for i in 0..e.gum.values.len() {
-            let Some(a) = e.agreement.get(i) else { continue };
-            let (_, _, unit) = with_uncertainty(e.gum.values[i], e.gum.u[i]);
-            let interval = format!("{} to {}", in_unit(mc.low[i], unit), in_unit(mc.high[i], unit));
-            o.push(format!(
-                "{:<10} {:<5} {:>10} {:>10} {:>22}  {}",
-                self.id_of(i),
-                unit,
-                in_unit(e.gum.u[i], unit),
-                in_unit(mc.u[i], unit),
-                interval,
-                if a.agrees { "agrees" } else { "differs" }
-            ));
+        for [id, unit, u_gum, u_mc, interval, agrees] in self.monte_carlo_rows() {
+            o.push(format!("{id:<10} {unit:<5} {u_gum:>10} {u_mc:>10} {interval:>22}  {agrees}"));
         }
         if e.agreement.iter().any(|a| !a.agrees) {
             o.push("  differs: GUM and Monte Carlo differ by more than 5 % of u (JCGM 101,".into());
@@ -492,17 +528,18 @@ impl Certificate<'_> {
             o.push("approved by ______________________________  date ______________".into());
         }
         o.push(String::new());
-        let verified = if self.verifications.is_empty() { "verified (ISO 6143) " } else { "" };
-        o.extend(wrap(
-            &format!(
-                "CAUTION  A draft produced by a computation aid, to be reviewed, {verified}and signed under the \
-                 laboratory's quality system before it is issued. The cylinder holds gas under high pressure: \
-                 follow local codes, the cylinder's markings and licensed practice."
-            ),
-            78,
-            "  ",
-        ));
+        o.extend(wrap(&format!("CAUTION  {}", self.draft_caution()), 78, "  "));
         o
+    }
+
+    /// The caution that ends every certificate: a draft until the laboratory signs it.
+    fn draft_caution(&self) -> String {
+        let verified = if self.verifications.is_empty() { "verified (ISO 6143) " } else { "" };
+        format!(
+            "A draft produced by a computation aid, to be reviewed, {verified}and signed under the laboratory's \
+             quality system before it is issued. The cylinder holds gas under high pressure: follow local codes, \
+             the cylinder's markings and licensed practice."
+        )
     }
 
     /// The certificate as JSON (mol/mol throughout).

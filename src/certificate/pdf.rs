@@ -62,7 +62,7 @@ pub fn render_with_banner(text: &str, title: &str, banner: Option<&str>) -> Vec<
 
 /// The text in the Windows-1252 (WinAnsi) encoding of the standard fonts; characters it
 /// lacks become their nearest ASCII spelling.
-fn win_ansi(text: &str) -> Vec<u8> {
+pub(super) fn win_ansi(text: &str) -> Vec<u8> {
     let mut out = Vec::with_capacity(text.len());
     for c in text.chars() {
         match c {

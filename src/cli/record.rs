@@ -106,8 +106,10 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     let text = cert.text();
     if let Some(pdf) = &args.pdf {
         let banner = c.unfinished.is_some().then_some(certificate::IN_PROGRESS_BANNER);
-        let bytes =
-            certificate::pdf::render_with_banner(&text, &format!("Certificate of preparation {}", found.id), banner);
+        let title = format!("Certificate of preparation {}", found.id);
+        let running =
+            format!("certificate {} | record {} | cylinder {}", cert.document.number, found.id, c.record.cylinder);
+        let bytes = certificate::typeset::render(&cert.blocks(), &title, &running, banner);
         crate::library::atomic::write_output(pdf, &bytes, args.replace_link)
             .map_err(|e| Refused(format!("{}: {e}", pdf.display())))?;
     }
