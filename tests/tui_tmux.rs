@@ -323,3 +323,56 @@ fn a_draft_folder_that_is_a_link_is_refused_and_said_at_once() {
     assert_eq!(std::fs::read_dir(&outside).unwrap().count(), 0, "a draft went through the link");
     let _ = std::fs::remove_dir_all(&outside);
 }
+
+#[test]
+fn a_fill_survives_a_dropped_session_and_a_slip_is_corrected_on_the_sheet() {
+    let config = fresh_config("fill");
+    let t = Tmux::new("fill");
+    t.start(&config, "edit flue-gas-span");
+    t.wait_for("flue-gas-span rev 1");
+    t.keys(&["3"]);
+    t.wait_for("Fill sheet");
+    // The empty cylinder, the CO addition, and the analysis of the CH4 source typed.
+    t.keys(&["w"]);
+    t.type_text("13412.000g");
+    t.keys(&["Enter"]);
+    t.wait_for("started");
+    t.keys(&["w"]);
+    t.type_text("13412.93g");
+    t.keys(&["Enter"]);
+    t.wait_for("step 1 weighed");
+    t.keys(&["l"]);
+    t.type_text("CH4=balance,C2H6=50ppm±5ppm");
+    t.keys(&["Enter"]);
+    t.wait_for("(recorded)");
+    // The SSH session drops before the weighing.
+    t.kill_session();
+    t.start(&config, "edit flue-gas-span");
+    t.wait_for("flue-gas-span rev 1");
+    t.keys(&["3"]);
+    let s = t.wait_for("C2H6=50ppm±5ppm");
+    assert!(s.contains("(recorded)"), "the analysis typed before the drop is there:\n{s}");
+    // CH4 goes 3 % over and is typed in kg: held back, then entered again, then corrected.
+    t.keys(&["w"]);
+    t.type_text("13440.31kg");
+    t.keys(&["Enter"]);
+    t.wait_for("Enter again");
+    t.keys(&["Enter"]);
+    t.wait_for("step 2 weighed");
+    t.keys(&["x"]);
+    t.type_text("w 2 13440.31g");
+    t.keys(&["Enter"]);
+    t.wait_for("why?");
+    t.type_text("typed kg for g");
+    t.keys(&["Enter"]);
+    t.wait_for("corrected");
+    // The sheet now follows the fill: the rest re-planned from the record.
+    let s = t.wait_for("re-planned from the fill record");
+    assert!(s.contains("recorded"), "{s}");
+    let records = config.join("library/records");
+    let file = std::fs::read_dir(&records).unwrap().flatten().find(|e| e.path().is_file()).unwrap().path();
+    let saved = std::fs::read_to_string(file).unwrap();
+    assert!(saved.contains("reason: \"typed kg for g\"") && saved.contains("\"13440.31g\""), "{saved}");
+    t.keys(&["q"]);
+    t.wait_exit();
+}

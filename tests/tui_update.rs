@@ -1221,7 +1221,7 @@ fn a_slip_is_confirmed_then_corrected_with_its_reason_and_kept_in_the_history() 
     typed(&mut model, &mut ctx, 'w', "13877.09kg");
     assert!(matches!(model.overlay, Overlay::Prompt { .. }), "the prompt stays open");
     assert!(
-        model.status.contains("g added where the plan has 437.") && model.status.contains("×31"),
+        model.status.contains("the plan's 437.") && model.status.starts_with("Enter again records it"),
         "{}",
         model.status
     );

@@ -546,9 +546,8 @@ fn far_from_plan(
     }
     doc.bench.unconfirmed_weighing = Some(typed);
     Some(format!(
-        "{text} means {added:.2} g added where the plan has {planned:.2} g (×{:.3}): check the unit and the scale; \
-         Enter again records it as typed",
-        added / planned
+        "Enter again records it: {added:.2} g added, ×{} the plan's {planned:.2} g (a unit slip? check the scale)",
+        crate::units::Sig(added / planned, 3)
     ))
 }
 

@@ -509,12 +509,12 @@ fn sheet_row(b: &crate::tui::model::Bench, d: &Shown, i: usize, s: &crate::plan:
     if live.finished {
         let reached = live.recorded_reading.map_or("–".to_string(), |(p, _)| d.pf(p));
         return format!(
-            "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9} recorded",
+            "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}",
             i + 1,
             clip(&live.source, 10),
             live.add_mass_g,
             live.scale_reading_g,
-            "",
+            "recorded",
             "",
             "",
             reached
