@@ -24,6 +24,14 @@ impl Certificate<'_> {
             subtitle = format!("{} {}", self.document.recipe_title, subtitle);
         }
         b.push(Block::Title { title: title.into(), subtitle, facts: self.facts() });
+        b.extend(self.table_blocks());
+        b.extend(self.closing_blocks());
+        b
+    }
+
+    /// Composition, verification, additions, budget and Monte Carlo check.
+    fn table_blocks(&self) -> Vec<Block> {
+        let mut b = Vec::new();
         b.push(Block::Heading("Composition".into()));
         b.push(Block::Text(format!("U = k u with k = {COVERAGE_FACTOR} (about 95 %).")));
         b.push(Block::Table {
@@ -82,6 +90,12 @@ impl Certificate<'_> {
         if !mc_notes.is_empty() {
             b.push(Block::Text(mc_notes.join(" ")));
         }
+        b
+    }
+
+    /// Remarks, cautions, signatures and the caution of a draft.
+    fn closing_blocks(&self) -> Vec<Block> {
+        let mut b = Vec::new();
         if !self.remarks.is_empty() {
             b.push(Block::Heading("For the reviewer".into()));
             b.push(Block::List(self.remarks.clone()));

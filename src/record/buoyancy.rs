@@ -92,6 +92,23 @@ mod tests {
     }
 
     #[test]
+    fn cipm_2007_agrees_with_an_independent_humid_air_model() {
+        // CoolProp 8.0.0 (PyPI), HAPropsSI("Vha", "T", T, "P", p, "R", h): the humid-air
+        // model of ASHRAE RP-1485 (Herrmann, Kretzschmar and Gatley), density 1/Vha in
+        // kg/m³. It is a different equation from CIPM-2007 (its own dry-air composition),
+        // so the two agree to a few 1e-5, twice CIPM-2007's own 22e-6 standard uncertainty.
+        for (t_c, p, h, coolprop) in [
+            (20.0, 101_325.0, 0.5, 1.199_359_276_772_361_8),
+            (18.0, 95_000.0, 0.3, 1.134_362_963_656_197_2),
+            (25.0, 104_000.0, 0.7, 1.205_851_632_310_762_2),
+            (15.0, 100_000.0, 0.1, 1.208_755_370_328_413_7),
+        ] {
+            let rho = density(&Air { temperature_k: t_c + 273.15, pressure_pa: p, humidity: h });
+            assert!((rho / coolprop - 1.0).abs() < 6e-5, "{t_c} °C {p} Pa {h}: {rho} vs {coolprop}");
+        }
+    }
+
+    #[test]
     fn a_drier_warmer_thinner_air_is_lighter() {
         let base = Air { temperature_k: 293.15, pressure_pa: 101_325.0, humidity: 0.5 };
         let rho = density(&base);
