@@ -25,6 +25,8 @@ pub struct Standing {
     pub last_reading_g: Option<f64>,
     /// Every scale reading, g: the empty cylinder, then after each addition.
     pub weighings_g: Vec<f64>,
+    /// The reference cylinder's reading beside each (substitution weighing), g.
+    pub reference_g: Vec<f64>,
     /// Per addition recorded: the source as written and the pressure reading (Pa
     /// absolute) with the cylinder temperature (K), where both were recorded.
     pub recorded: Vec<(String, Option<(f64, f64)>)>,
@@ -43,6 +45,11 @@ pub fn standing(
     sources: Option<&Path>,
     catalogue: &Catalogue,
 ) -> Result<Standing, String> {
+    if plan.heel.is_some() {
+        return Err("the plan starts from a heel, which a fill record does not weigh: the composition so far and \
+                    the rest of the fill cannot be taken from it"
+            .into());
+    }
     let origin = opened.path.display().to_string();
     let lookup = Lookup { library: Some(library), sources, catalogue, depth: 0 };
     let checked =
@@ -60,10 +67,20 @@ pub fn standing(
         now_mol,
         last_reading_g: checked.weighings_g.last().copied(),
         weighings_g: checked.weighings_g.clone(),
+        reference_g: checked.reference_weighings_g.clone(),
         recorded,
         cross_checks,
         replan,
     })
+}
+
+impl Standing {
+    /// Scale reading `k` less the reference cylinder's beside it (the reading alone in a
+    /// direct weighing), g: differences of these are the masses added.
+    pub fn net_g(&self, k: usize) -> Option<f64> {
+        let w = self.weighings_g.get(k)?;
+        Some(w - self.reference_g.get(k).copied().unwrap_or(0.0))
+    }
 }
 
 /// One line of the Fill sheet as the fill stands: a finished addition as it was recorded,
@@ -91,9 +108,9 @@ pub struct LiveStep {
 
 impl LiveStep {
     /// Whether the live step differs from the first plan by more than the sheet shows.
+    /// (The scale reading is left out: it also moves with the empty weight typed.)
     pub fn moved(&self) -> bool {
         (self.add_mass_g - self.planned.0).abs() >= 0.005
-            || (self.scale_reading_g - self.planned.1).abs() >= 0.005
             || self.pressure_after_pa.is_some_and(|p| (p - self.planned.2).abs() >= 500.0)
     }
 }
@@ -117,12 +134,16 @@ pub fn live_sheet(
     let replanned = standing.and_then(|s| s.replan.as_ref().ok().filter(|_| s.weighed > 0).map(|r| (s, r)));
     let mut lines = Vec::with_capacity(plan.steps.len());
     for (k, step) in plan.steps.iter().enumerate() {
-        let finished = standing.filter(|s| k < s.weighed && k + 1 < s.weighings_g.len());
-        if let Some(s) = finished {
+        if let Some(s) = standing.filter(|s| k < s.weighed) {
+            // A record of pressure readings has no weighings: no mass to show.
+            let (add_mass_g, scale_reading_g) = match (s.net_g(k), s.net_g(k + 1)) {
+                (Some(a), Some(b)) => (b - a, s.weighings_g[k + 1]),
+                _ => (f64::NAN, f64::NAN),
+            };
             lines.push(LiveStep {
                 source: s.recorded.get(k).map_or_else(|| step.source.clone(), |r| r.0.clone()),
-                add_mass_g: s.weighings_g[k + 1] - s.weighings_g[k],
-                scale_reading_g: s.weighings_g[k + 1],
+                add_mass_g,
+                scale_reading_g,
                 pressure_after_pa: None,
                 pressure_now_pa: None,
                 amounts_after_mol: Vec::new(),
@@ -133,7 +154,7 @@ pub fn live_sheet(
             continue;
         }
         let (add_mass_g, pressure, amounts) = match replanned {
-            Some((s, r)) => match r.steps.get(k - s.weighed.min(k)) {
+            Some((s, r)) => match k.checked_sub(s.weighed).and_then(|j| r.steps.get(j)) {
                 Some(rs) => (rs.add_mass_g, rs.pressure_after_pa, rs.amounts_after_mol.clone()),
                 None => (step.add_mass_g, step.pressure_after_pa, step.amounts_after_mol.clone()),
             },
@@ -142,7 +163,7 @@ pub fn live_sheet(
         // The scale: from the last reading recorded (the empty weight typed, at first),
         // else from the plan's own tare.
         let empty = standing.and_then(|s| s.weighings_g.first().copied()).or(empty_g);
-        let scale_reading_g = match (lines.last(), empty) {
+        let scale_reading_g = match (lines.last().filter(|l| l.scale_reading_g.is_finite()), empty) {
             (Some(prev), _) => prev.scale_reading_g + add_mass_g,
             (None, Some(empty)) => empty + add_mass_g,
             (None, None) => step.scale_reading_g,
@@ -202,12 +223,13 @@ pub fn rest_text(
         } else {
             "as planned".to_string()
         };
+        let grams = |g: f64| if g.is_finite() { format!("{g:.3}") } else { "-".into() };
         o.push_str(&format!(
-            "{:>4} {:<16} {:>11.3} {:>12.3} {:>11}  {state}\n",
+            "{:>4} {:<16} {:>11} {:>12} {:>11}  {state}\n",
             k + 1,
             crate::ron_format::clip(&l.source, 16),
-            l.add_mass_g,
-            l.scale_reading_g,
+            grams(l.add_mass_g),
+            grams(l.scale_reading_g),
             stop
         ));
         if let (false, Some(rs)) = (l.finished, r.steps.get(k.wrapping_sub(s.weighed))) {
@@ -274,7 +296,11 @@ pub fn cross_check(checked: &crate::record::Checked, plan: &Plan, catalogue: &Ca
     let mut amounts = vec![0.0; plan.gases.len()];
     let mut out = Vec::new();
     for (k, a) in checked.additions.iter().enumerate().take(checked.complete) {
-        let (Some(before), Some(after)) = (checked.weighings_g.get(k), checked.weighings_g.get(k + 1)) else { break };
+        let net = |j: usize| {
+            let w = checked.weighings_g.get(j)?;
+            Some(w - checked.reference_weighings_g.get(j).copied().unwrap_or(0.0))
+        };
+        let (Some(before), Some(after)) = (net(k), net(k + 1)) else { break };
         let c = a.source.composition();
         let molar: f64 =
             c.gases.iter().zip(&c.fractions).map(|(&g, x)| x * catalogue.gas(g).molar_mass_g_per_mol).sum();

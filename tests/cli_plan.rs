@@ -324,3 +324,31 @@ fn plan_with_a_record_replans_the_rest_of_a_fill_that_went_over() {
     assert_eq!(o.status.code(), Some(1));
     let _ = std::fs::remove_dir_all(&config);
 }
+
+#[test]
+fn plan_with_a_record_of_pressure_readings_shows_its_finished_steps_without_masses() {
+    let config = std::env::temp_dir().join(format!("fillwright-rest-manometric-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&config);
+    assert!(common::run_in(&config, &["list"]).status.success());
+    let records = config.join("library/records");
+    std::fs::create_dir_all(&records).unwrap();
+    std::fs::write(
+        records.join("FC-10-2291-M.ron"),
+        "Record(format: 1, recipe: \"flue-gas-span\", recipe_revision: 1, cylinder: \"FC-10-2291\", \
+         water_capacity: \"10L\", scale_uncertainty: \"0.010g\", additions: [\
+         (source: \"CO\", pressure: \"0.081bar\", temperature: \"22C\"), \
+         (source: \"CH4\", pressure: \"4.118bar\", temperature: \"22C\")])",
+    )
+    .unwrap();
+    let o = common::run_in(&config, &["plan", "flue-gas-span", "--record", "FC-10-2291-M"]);
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let rest = &text[text.find("THE FILL AS IT STANDS").expect("the table")..];
+    assert!(!rest.contains("NaN"), "{rest}");
+    let rows: Vec<&str> = rest.lines().filter(|l| l.contains("recorded")).collect();
+    assert_eq!(rows.len(), 2, "{rest}");
+    assert!(rows[1].contains("CH4") && rows[1].contains("4.118"), "{rest}");
+    // The steps still to do are the re-planned third and fourth, not the first twice.
+    assert!(rest.lines().any(|l| l.trim_start().starts_with("3 CO2")), "{rest}");
+    let _ = std::fs::remove_dir_all(&config);
+}

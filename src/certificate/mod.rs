@@ -410,10 +410,13 @@ impl Certificate<'_> {
             .enumerate()
             .map(|(k, a)| {
                 let mass = match c.method {
-                    Method::Gravimetric => c
-                        .weighings_g
-                        .get(k + 1)
-                        .map_or("not weighed".into(), |w| format!("{:.3} g", w - c.weighings_g[k])),
+                    Method::Gravimetric => {
+                        // Substitution: the differences to the reference cylinder's readings.
+                        let net = |j: usize| {
+                            c.weighings_g.get(j).map(|w| w - c.reference_weighings_g.get(j).copied().unwrap_or(0.0))
+                        };
+                        net(k + 1).zip(net(k)).map_or("not weighed".into(), |(b, a)| format!("{:.3} g", b - a))
+                    }
                     Method::Manometric => a
                         .reading
                         .map_or("no reading".into(), |(p, t)| format!("{:.3} bar at {:.2} °C", p / 1e5, t - 273.15)),

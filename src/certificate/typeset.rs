@@ -60,11 +60,45 @@ pub fn text_width(text: &str, size: f32, bold: bool) -> f32 {
     units as f32 * size / 1000.0
 }
 
+/// A word wider than `width` in pieces that fit: after its commas where it has them (an
+/// analysis: `CO=0.5%±0.002%,N2=balance`), else character by character.
+fn split_word(word: &str, width: f32, size: f32, bold: bool) -> Vec<String> {
+    if text_width(word, size, bold) <= width {
+        return vec![word.to_string()];
+    }
+    let mut pieces = Vec::new();
+    let mut piece = String::new();
+    for part in word.split_inclusive(',') {
+        if !piece.is_empty() && text_width(&format!("{piece}{part}"), size, bold) > width {
+            pieces.push(std::mem::take(&mut piece));
+        }
+        piece.push_str(part);
+        // A part wider than the line by itself is cut character by character.
+        while text_width(&piece, size, bold) > width && piece.chars().count() > 1 {
+            let mut head = String::new();
+            for c in piece.chars() {
+                if !head.is_empty() && text_width(&format!("{head}{c}"), size, bold) > width {
+                    break;
+                }
+                head.push(c);
+            }
+            piece = piece[head.len()..].to_string();
+            pieces.push(head);
+        }
+    }
+    if !piece.is_empty() {
+        pieces.push(piece);
+    }
+    pieces
+}
+
 /// Break `text` into lines no wider than `width` points.
 fn wrap(text: &str, width: f32, size: f32, bold: bool) -> Vec<String> {
     let mut lines = Vec::new();
     let mut line = String::new();
-    for word in text.split_whitespace() {
+    let words: Vec<String> = text.split_whitespace().flat_map(|w| split_word(w, width, size, bold)).collect();
+    for word in &words {
+        let word = word.as_str();
         let candidate = if line.is_empty() { word.to_string() } else { format!("{line} {word}") };
         if text_width(&candidate, size, bold) > width && !line.is_empty() {
             lines.push(std::mem::take(&mut line));
@@ -206,9 +240,10 @@ fn table_pieces(columns: &[(String, bool)], rows: &[Vec<String>]) -> Vec<Piece> 
         }
     }
     let natural: f32 = widths.iter().sum::<f32>() + 2.0 * CELL_PAD * widths.len() as f32;
-    // The last column takes what is left (it holds the longest text, such as a source).
+    // The last column takes what is left (it holds the longest text, such as a source),
+    // and its cells wrap when that is less than they need.
     if let Some(last) = widths.last_mut() {
-        *last += (WIDTH - natural).max(0.0);
+        *last = (*last + WIDTH - natural).max(60.0);
     }
     let xs: Vec<f32> = widths
         .iter()
@@ -219,14 +254,25 @@ fn table_pieces(columns: &[(String, bool)], rows: &[Vec<String>]) -> Vec<Piece> 
         })
         .collect();
     let row_h = LEADING + 3.0;
+    let last = widths.len().saturating_sub(1);
+    let lines_of =
+        |cells: &[String]| -> usize { cells.get(last).map_or(1, |c| wrap(c, widths[last], SIZE, false).len().max(1)) };
+    let height = |cells: &[String]| row_h + (lines_of(cells) - 1) as f32 * LEADING;
     let cells = |cells: &[String], bold: bool, y: f32| -> Vec<Op> {
         let mut ops = Vec::new();
         for (k, cell) in cells.iter().enumerate().take(xs.len()) {
-            let right = columns[k].1;
-            let x = if right { xs[k] + CELL_PAD + widths[k] - text_width(cell, SIZE, bold) } else { xs[k] + CELL_PAD };
-            ops.push(text_op(x, y + LEADING - 1.0, SIZE, bold, cell));
+            let lines = if k == last { wrap(cell, widths[k], SIZE, bold) } else { vec![cell.clone()] };
+            for (j, line) in lines.iter().enumerate() {
+                let x = if columns[k].1 {
+                    xs[k] + CELL_PAD + widths[k] - text_width(line, SIZE, bold)
+                } else {
+                    xs[k] + CELL_PAD
+                };
+                ops.push(text_op(x, y + LEADING - 1.0 + j as f32 * LEADING, SIZE, bold, line));
+            }
         }
-        ops.push(Op::Line { x0: MARGIN, y0: y + row_h, x1: MARGIN + WIDTH, y1: y + row_h, width: 0.3 });
+        let h = row_h + (lines_of(cells) - 1) as f32 * LEADING;
+        ops.push(Op::Line { x0: MARGIN, y0: y + h, x1: MARGIN + WIDTH, y1: y + h, width: 0.3 });
         ops
     };
     let headers: Vec<String> = columns.iter().map(|(h, _)| h.clone()).collect();
@@ -238,17 +284,19 @@ fn table_pieces(columns: &[(String, bool)], rows: &[Vec<String>]) -> Vec<Piece> 
     let header = Piece::new(row_h, header_ops);
     if rows.len() <= 8 {
         let mut ops = header.ops.clone();
-        for (k, row) in rows.iter().enumerate() {
-            ops.extend(cells(row, false, (k as f32 + 1.0) * row_h));
+        let mut y = row_h;
+        for row in rows {
+            ops.extend(cells(row, false, y));
+            y += height(row);
         }
-        return vec![Piece::new((rows.len() as f32 + 1.0) * row_h + 8.0, ops)];
+        return vec![Piece::new(y + 8.0, ops)];
     }
     let mut out = vec![Piece { keep_with_next: true, ..Piece::new(row_h, header.ops.clone()) }];
     for (k, row) in rows.iter().enumerate() {
         let pad = if k + 1 == rows.len() { 8.0 } else { 0.0 };
         out.push(Piece {
             header: Some(Box::new(Piece::new(row_h, header.ops.clone()))),
-            ..Piece::new(row_h + pad, cells(row, false, 0.0))
+            ..Piece::new(height(row) + pad, cells(row, false, 0.0))
         });
     }
     out
@@ -384,6 +432,30 @@ mod tests {
         assert!((text_width("1", 10.0, false) - 5.56).abs() < 1e-4);
         assert!((text_width("i", 10.0, false) - 2.22).abs() < 1e-4);
         assert!(text_width("Wm", 9.0, true) > text_width("Wm", 9.0, false));
+    }
+
+    #[test]
+    fn nothing_runs_past_the_right_margin() {
+        let source = "CO=0.5%±0.002%,NO=50ppm±1ppm,SO2=20ppm±0.4ppm,H2O=<5ppm,O2=<2ppm,N2=balance (source PX-118)";
+        let long = "x".repeat(300);
+        let blocks = vec![
+            Block::Table {
+                columns: vec![("#".into(), true), ("added".into(), true), ("source".into(), false)],
+                rows: vec![vec!["1".into(), "92.850 g".into(), format!("{source} {source}")]],
+            },
+            Block::Text(format!("{source}{source} {long}")),
+            Block::Title { title: "T".into(), subtitle: long.clone(), facts: vec![("recipe".into(), long.clone())] },
+        ];
+        for b in &blocks {
+            for piece in pieces(b) {
+                for op in &piece.ops {
+                    if let Op::Text { x, size, bold, text, .. } = op {
+                        let right = x + text_width(text, *size, *bold);
+                        assert!(right <= MARGIN + WIDTH + 0.5, "{text:?} ends at {right}");
+                    }
+                }
+            }
+        }
     }
 
     #[test]

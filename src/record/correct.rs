@@ -11,6 +11,8 @@ use crate::units::{self, AmountInput};
 pub enum Entry {
     /// A scale reading: 0 the empty cylinder, k after addition k.
     Weighing(usize),
+    /// The reference cylinder's reading beside weighing k (substitution weighing).
+    Reference(usize),
     /// Addition k's (1-based) pressure reading, cylinder temperature or source.
     Pressure(usize),
     Temperature(usize),
@@ -23,6 +25,7 @@ impl Entry {
         match self {
             Entry::Weighing(0) => "weighing 0 (empty cylinder)".into(),
             Entry::Weighing(k) => format!("weighing {k}"),
+            Entry::Reference(k) => format!("reference reading {k}"),
             Entry::Pressure(k) => format!("addition {k} pressure"),
             Entry::Temperature(k) => format!("addition {k} temperature"),
             Entry::Source(k) => format!("addition {k} source"),
@@ -31,8 +34,8 @@ impl Entry {
 }
 
 /// What the correction prompt accepts, for messages.
-pub const SYNTAX: &str = "w N VALUE (scale reading N, 0 the empty cylinder), p N VALUE (pressure), t N VALUE \
-                          (temperature), s N SOURCE (N the step); '-' as VALUE withdraws the entry";
+pub const SYNTAX: &str = "w N VALUE (scale reading N, 0 the empty cylinder; r N: the reference cylinder's), \
+                          p N VALUE (pressure), t N VALUE (temperature), s N SOURCE (N the step); '-' withdraws";
 
 /// Read `w 2 13450.12g`, `p 3 -`, `s 2 @CO-lot-7` into the entry and the new value (None:
 /// withdraw).
@@ -51,6 +54,7 @@ pub fn parse(text: &str) -> Result<(Entry, Option<String>), String> {
     let step = |n: usize| if n == 0 { Err("steps count from 1".to_string()) } else { Ok(n) };
     let entry = match kind.to_ascii_lowercase().as_str() {
         "w" | "weighing" => Entry::Weighing(n),
+        "r" | "reference" => Entry::Reference(n),
         "p" | "pressure" => Entry::Pressure(step(n)?),
         "t" | "temperature" => Entry::Temperature(step(n)?),
         "s" | "source" => Entry::Source(step(n)?),
@@ -75,6 +79,15 @@ pub fn apply(record: &mut Record, entry: Entry, value: Option<&str>, reason: &st
     }
     let was = match entry {
         Entry::Weighing(k) => correct_weighing(record, k, value)?,
+        Entry::Reference(k) => {
+            let v = value.ok_or("a reference reading is withdrawn with its weighing (w N -), not alone")?;
+            let n = record.reference_weighings.len();
+            if k >= n {
+                return Err(format!("the record has {n} reference readings, not one beside weighing {k}"));
+            }
+            grams(v).ok_or(format!("{v}: a scale reading is a mass, e.g. 13950.12g"))?;
+            std::mem::replace(&mut record.reference_weighings[k], v.to_string())
+        }
         Entry::Pressure(k) | Entry::Temperature(k) | Entry::Source(k) => {
             let count = record.additions.len();
             let a = record.additions.get_mut(k - 1).ok_or(format!("the record has {count} additions, not {k}"))?;
@@ -129,6 +142,13 @@ fn correct_weighing(record: &mut Record, k: usize, value: Option<&str>) -> Resul
         record.finished = None;
         if let Some(a) = k.checked_sub(1).and_then(|i| record.additions.get_mut(i)) {
             a.time = None;
+        }
+        // What stands beside the weighing goes with it (one air entry for all stays).
+        if record.reference_weighings.len() == n {
+            record.reference_weighings.pop();
+        }
+        if record.air.len() == n && n > 1 {
+            record.air.pop();
         }
         return Ok(record.weighings.pop().unwrap_or_default());
     };
@@ -190,6 +210,22 @@ mod tests {
         for bad in ["", "w", "w x 1g", "z 1 1g", "p 0 1bar", "w 1"] {
             assert!(parse(bad).is_err(), "{bad}");
         }
+    }
+
+    #[test]
+    fn withdrawing_a_substitution_weighing_takes_its_reference_and_air_with_it() {
+        let mut r = record();
+        r.weighings[2] = "14550.61g".into();
+        r.reference_weighings = vec!["13950.10g".into(), "13950.11g".into(), "13950.12g".into()];
+        let air =
+            super::super::AirLine { temperature: "20C".into(), pressure: "1013hPa".into(), humidity: "40%".into() };
+        r.air = vec![air.clone(), air.clone(), air];
+        apply(&mut r, Entry::Weighing(2), None, "wrong cylinder", "t").unwrap();
+        assert_eq!((r.weighings.len(), r.reference_weighings.len(), r.air.len()), (2, 2, 2));
+        let (e, v) = parse("r 1 13950.31g").unwrap();
+        apply(&mut r, e, v.as_deref(), "misread", "t").unwrap();
+        assert_eq!(r.reference_weighings[1], "13950.31g");
+        assert!(apply(&mut r, Entry::Reference(1), None, "x", "t").is_err());
     }
 
     #[test]

@@ -434,12 +434,15 @@ fn read_weighing(doc: &Document, text: &str) -> Result<TypedWeighing, String> {
         }
     }
     let previous_ref = record.and_then(|r| r.reference_weighings.last().and_then(|w| grams(w)));
-    Ok(TypedWeighing {
-        reading: w.to_string(),
-        reference: r.map(str::to_string),
-        net_g: w_g - r_g.unwrap_or(0.0),
-        previous_net_g: previous.map(|p| p - previous_ref.unwrap_or(0.0)),
-    })
+    let net_g = w_g - r_g.unwrap_or(0.0);
+    let previous_net_g = previous.map(|p| p - previous_ref.unwrap_or(0.0));
+    if previous_net_g.is_some_and(|p| net_g <= p) {
+        return Err(format!(
+            "{w} less the reference's {} is not above the difference at the weighing before: check both readings",
+            r.unwrap_or_default()
+        ));
+    }
+    Ok(TypedWeighing { reading: w.to_string(), reference: r.map(str::to_string), net_g, previous_net_g })
 }
 
 /// A scale reading typed at the bench.
@@ -481,7 +484,7 @@ pub fn on_weighing(model: &mut Model, ctx: &Context, text: &str) {
                 ask_for_analysis(model, ctx);
             }
         }
-        Err(e) => model.status = format!("not recorded: {e}"),
+        Err(e) => keep_prompt(model, Prompt::Weighing, text, &format!("not recorded: {e}")),
     }
 }
 
@@ -511,10 +514,12 @@ fn record_weighing(
         if let Some(reference) = &typed.reference {
             r.reference_weighings.push(reference.clone());
         }
-        // Air recorded per weighing: the last conditions stand for this one until typed.
+        // Air recorded per weighing: the last conditions stand for this one (and any
+        // before it without its own) until typed.
         if r.air.len() > 1 || (r.air.len() == 1 && each_weighing) {
-            let last_air = r.air[r.air.len() - 1].clone();
-            r.air.push(last_air);
+            while let Some(last_air) = r.air.last().cloned().filter(|_| r.air.len() < r.weighings.len()) {
+                r.air.push(last_air);
+            }
         }
         if last {
             r.finished = Some(now.clone());
@@ -640,13 +645,13 @@ pub fn on_source(model: &mut Model, ctx: &Context, text: &str) {
             r.additions[a].source = typed.clone();
         }
     });
-    model.status = match result {
+    match result {
         Ok(()) => {
             doc.bench.chosen_source = Some(typed.clone());
-            format!("step {} comes from {typed} (recorded)", step + 1)
+            model.status = format!("step {} comes from {typed} (recorded)", step + 1);
         }
-        Err(e) => format!("not recorded: {e}"),
-    };
+        Err(e) => keep_prompt(model, Prompt::StepSource, text, &format!("not recorded: {e}")),
+    }
 }
 
 /// Whether a source as written gives some amount without an uncertainty (a nominal
@@ -736,31 +741,32 @@ pub fn on_correction_reason(model: &mut Model, ctx: &Context, pending: &str, rea
     }
     let now = (ctx.now)();
     let note = format!("correction: {} ({})", entry.name(), reason.trim());
-    let mut refused = None;
-    let result = write_record(doc, ctx, &note, |r| {
-        if let Err(e) = crate::record::correct::apply(r, entry, value.as_deref(), reason, &now) {
-            refused = Some(e);
-        }
-    });
-    // A withdrawn entry shown on the sheet goes with it.
-    if let crate::record::correct::Entry::Pressure(k) = entry {
-        if let Some(slot) = doc.bench.actual_pa.get_mut(k - 1) {
-            let ambient = doc.computed.order.as_ref().map_or(units::STANDARD_AMBIENT_PA, |o| o.ambient_pa);
-            *slot = value.as_deref().and_then(|v| units::parse_pressure(v, ambient).ok());
-        }
+    // Applied to a copy first: a refusal writes nothing and keeps what was typed.
+    let Some(mut corrected) = doc.bench.record.as_ref().map(|o| o.record.clone()) else { return };
+    let purpose = Prompt::CorrectionReason(pending.to_string());
+    if let Err(e) = crate::record::correct::apply(&mut corrected, entry, value.as_deref(), reason, &now) {
+        return keep_prompt(model, purpose, reason, &format!("not corrected: {e}"));
     }
-    if let crate::record::correct::Entry::Weighing(k) = entry {
-        if value.is_none() {
+    if let Err(e) = write_record(doc, ctx, &note, |r| *r = corrected.clone()) {
+        return keep_prompt(model, purpose, reason, &format!("not corrected: {e}"));
+    }
+    // A withdrawn or replaced entry shown on the sheet follows.
+    match entry {
+        crate::record::correct::Entry::Pressure(k) => {
+            if let Some(slot) = doc.bench.actual_pa.get_mut(k - 1) {
+                let ambient = doc.computed.order.as_ref().map_or(units::STANDARD_AMBIENT_PA, |o| o.ambient_pa);
+                *slot = value.as_deref().and_then(|v| units::parse_pressure(v, ambient).ok());
+            }
+        }
+        crate::record::correct::Entry::Weighing(k) if value.is_none() => {
             if let Some(d) = k.checked_sub(1).and_then(|i| doc.bench.done.get_mut(i)) {
                 *d = false;
             }
+            sync_from_record(doc, ctx);
         }
+        _ => {}
     }
-    model.status = match (result, refused) {
-        (_, Some(e)) => format!("not corrected: {e}"),
-        (Ok(()), None) => format!("{} corrected ({}); the certificate will say so", entry.name(), reason.trim()),
-        (Err(e), None) => format!("not corrected: {e}"),
-    };
+    model.status = format!("{} corrected ({}); the certificate will say so", entry.name(), reason.trim());
 }
 
 /// The operator or the balance, written to the record (which starts with the empty
@@ -781,10 +787,13 @@ pub fn on_person(model: &mut Model, ctx: &Context, balance: bool, text: &str) {
             r.operator = typed.clone();
         }
     });
-    model.status = match result {
-        Ok(()) => format!("{what} {typed} (recorded)"),
-        Err(e) => format!("not recorded: {e}"),
-    };
+    match result {
+        Ok(()) => model.status = format!("{what} {typed} (recorded)"),
+        Err(e) => {
+            let purpose = if balance { Prompt::Balance } else { Prompt::Operator };
+            keep_prompt(model, purpose, text, &format!("not recorded: {e}"));
+        }
+    }
 }
 
 /// What the air prompt accepts.
@@ -837,7 +846,7 @@ pub fn on_air(model: &mut Model, ctx: &Context, k: usize, text: &str) {
             model.status = format!("air at weighing {k} recorded: {t} {p} {h}");
             ask_for_analysis(model, ctx);
         }
-        Err(e) => model.status = format!("not recorded: {e}"),
+        Err(e) => keep_prompt(model, Prompt::Air(k), text, &format!("not recorded: {e}")),
     }
 }
 
