@@ -1,9 +1,50 @@
-//! The README's generated tables are current: regenerate with the examples named in them.
+//! The README and the guides under docs/: their generated tables and examples are current
+//! (regenerate with `python3 tools/update_readme.py`), the README stays short, and every
+//! link resolves.
+
+use std::path::{Path, PathBuf};
 
 use fillwright::gas::Catalogue;
 
+fn root() -> &'static Path {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// The README and the guides, where the generated parts live.
+fn documents() -> Vec<PathBuf> {
+    let mut docs: Vec<PathBuf> = std::fs::read_dir(root().join("docs"))
+        .unwrap()
+        .flatten()
+        .map(|e| e.path())
+        .filter(|p| p.extension().is_some_and(|x| x == "md"))
+        .collect();
+    docs.sort();
+    docs.insert(0, root().join("README.md"));
+    docs
+}
+
 fn readme() -> String {
-    std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap()
+    documents().iter().map(|p| std::fs::read_to_string(p).unwrap()).collect::<Vec<_>>().join("\n")
+}
+
+#[test]
+fn the_readme_reads_in_minutes_and_every_link_resolves() {
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    assert!(readme.len() <= 30 * 1024, "README.md is {} bytes; move detail to docs/", readme.len());
+    for doc in documents().into_iter().chain([root().join("DEVELOPERS.md")]) {
+        let text = std::fs::read_to_string(&doc).unwrap();
+        let dir = doc.parent().unwrap();
+        for (i, _) in text.match_indices("](") {
+            let target: String = text[i + 2..].chars().take_while(|c| *c != ')').collect();
+            if target.starts_with("http") || target.starts_with('#') {
+                continue;
+            }
+            let file = target.split('#').next().unwrap();
+            assert!(dir.join(file).exists(), "{}: the link {target} goes nowhere", doc.display());
+        }
+        // The project's docs stand on their own: no file outside the repository is cited.
+        assert!(!text.contains("../shared") && !text.contains("INTERFACE.md"), "{}", doc.display());
+    }
 }
 
 #[test]

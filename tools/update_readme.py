@@ -1,5 +1,5 @@
 #!/usr/bin/env python3
-"""Regenerate the generated parts of README.md between their markers:
+"""Regenerate the generated parts of README.md and docs/*.md between their markers:
 
   <!-- generated: density-table -->   cargo run --example density_table
   <!-- generated: accuracy-table -->  cargo run --example accuracy_table
@@ -13,6 +13,7 @@
 
 Run from anywhere: python3 tools/update_readme.py
 """
+import glob
 import os
 import re
 import subprocess
@@ -39,8 +40,8 @@ PARTS = {
 
 
 def main():
-    path = os.path.join(ROOT, "README.md")
-    text = open(path, encoding="utf-8").read()
+    paths = [os.path.join(ROOT, "README.md")] + sorted(glob.glob(os.path.join(ROOT, "docs", "*.md")))
+    texts = {p: open(p, encoding="utf-8").read() for p in paths}
     env = dict(os.environ, FILLWRIGHT_CONFIG=os.path.join(ROOT, "target", "readme-config"))
     for name, (cmd, fenced) in PARTS.items():
         done = subprocess.run(cmd, cwd=ROOT, capture_output=True, text=True, env=env)
@@ -50,10 +51,14 @@ def main():
         out = done.stdout
         body = f"```\n$ fillwright {fenced}\n{out}```\n" if fenced else out
         pattern = re.compile(rf"(<!-- generated: {name} -->\n).*?(<!-- /generated -->)", re.S)
-        text, n = pattern.subn(lambda m: m.group(1) + body + m.group(2), text)
-        if n != 1:
-            raise SystemExit(f"README.md has no marker for {name}")
-    open(path, "w", encoding="utf-8").write(text)
+        found = 0
+        for path, text in texts.items():
+            texts[path], n = pattern.subn(lambda m: m.group(1) + body + m.group(2), text)
+            found += n
+        if found != 1:
+            raise SystemExit(f"the README and docs/ have {found} markers for {name}, not one")
+    for path, text in texts.items():
+        open(path, "w", encoding="utf-8").write(text)
 
 
 if __name__ == "__main__":

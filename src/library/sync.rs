@@ -63,7 +63,7 @@ pub fn summary(s: &Synced) -> String {
 /// Why a sync could not bring the library in step.
 #[derive(Debug, thiserror::Error)]
 pub enum SyncError {
-    #[error("{0} is not a git work tree; make the library a clone of the lab's shared repository (see the README, sharing between benches)")]
+    #[error("{0} is not a git work tree; make the library a clone of the lab's shared repository (see docs/library.md, sharing between benches)")]
     NotWorkTree(String),
     #[error("the library has no git remote to sync with; add one: git -C {0} remote add origin URL")]
     NoRemote(String),
