@@ -560,3 +560,17 @@ fn a_substitution_weighing_needs_a_reference_reading_beside_every_weighing() {
     assert!(inputs.contains(&"outer volume, cylinder less reference"), "{inputs:?}");
     assert!(inputs.contains(&"reference cylinder at weighing 3"), "{inputs:?}");
 }
+
+#[test]
+fn every_certificate_text_stays_within_80_columns() {
+    let dir = fresh("columns");
+    for entry in std::fs::read_dir("tests/records").unwrap().flatten() {
+        let path = entry.path();
+        let o = run(&dir, &["certify", path.to_str().unwrap(), "--draws", "1000", "--in-progress"]);
+        assert!(o.status.success(), "{}: {}", path.display(), String::from_utf8_lossy(&o.stderr));
+        let text = out(&o);
+        let long: Vec<&str> = text.lines().filter(|l| l.chars().count() > 80).collect();
+        assert!(long.is_empty(), "{}: {long:?}", path.display());
+        assert!(!text.contains("99999") && !text.contains("00000000"), "unrounded figures: {text}");
+    }
+}

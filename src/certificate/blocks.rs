@@ -57,7 +57,7 @@ impl Certificate<'_> {
         let notes: Vec<String> = self
             .additions_lines()
             .into_iter()
-            .filter(|l| l.starts_with("  ") && !l.starts_with("   "))
+            .filter(|l| l.starts_with("  ") && !l.starts_with("   source "))
             .map(|l| l.trim().to_string())
             .collect();
         b.push(Block::Text(notes.join(" ")));

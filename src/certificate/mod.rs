@@ -307,9 +307,9 @@ impl Certificate<'_> {
         if let Some(h) = &r.recipe_sha256 {
             o.push(format!("  sha256 {h}"));
         }
-        o.push(match &self.recipe_check {
-            RecipeCheck::Verified => "  verified: that revision is on file with this hash".into(),
-            RecipeCheck::NotVerified(why) => format!("  NOT VERIFIED: {why}"),
+        o.extend(match &self.recipe_check {
+            RecipeCheck::Verified => vec!["  verified: that revision is on file with this hash".into()],
+            RecipeCheck::NotVerified(why) => indented(&format!("NOT VERIFIED: {why}")),
         });
         o.push(format!(
             "filled {} to {}",
@@ -443,12 +443,16 @@ impl Certificate<'_> {
         }
         if self.checked.method == Method::Gravimetric {
             o.push(format!("  scale: u = {} g per reading", self.checked.scale_u_g));
+            if !self.checked.reference_weighings_g.is_empty() {
+                o.push("  substitution weighing: each reading less the reference cylinder's".into());
+            }
             match &self.checked.buoyancy {
-                Some(b) => o.push(format!(
-                    "  air buoyancy corrected: air density by CIPM-2007 at {}, outer volume {} L",
+                Some(b) => o.extend(indented(&format!(
+                    "air buoyancy corrected: air density by CIPM-2007 at {}, {} {:.2} L",
                     if b.densities.len() == 1 { "one reading for all weighings" } else { "each weighing" },
+                    if b.substitution { "outer volume less the reference's" } else { "outer volume" },
                     b.volume_l.0
-                )),
+                ))),
                 None => o.push("  air buoyancy not corrected (no air conditions recorded)".into()),
             }
         } else {
@@ -711,6 +715,11 @@ impl Certificate<'_> {
 }
 
 /// Wrap `text` at `width` columns, continuation lines indented by `indent`.
+/// `text` wrapped within 80 columns, every line indented by two.
+fn indented(text: &str) -> Vec<String> {
+    wrap(text, 76, "").into_iter().map(|l| format!("  {l}")).collect()
+}
+
 pub fn wrap(text: &str, width: usize, indent: &str) -> Vec<String> {
     let mut lines = Vec::new();
     let mut line = String::new();
