@@ -17,6 +17,7 @@ pub mod gas;
 pub mod library;
 pub mod mixture;
 pub mod plan;
+pub mod print;
 pub mod recipe;
 pub mod record;
 pub mod ron_format;

@@ -100,7 +100,7 @@ pub fn export(model: &mut Model, ctx: &Context) {
     };
     let mut text = String::new();
     if let Some(stop) = first_stop(doc) {
-        text.push_str(&crate::cli::plan::stop_banner(&stop));
+        text.push_str(&crate::print::stop_banner(&stop));
     }
     if doc.dirty() {
         text.push_str("UNSAVED EDITS: this sheet is of the recipe as edited, not of a saved revision.\n\n");
@@ -110,7 +110,7 @@ pub fn export(model: &mut Model, ctx: &Context) {
     let options = crate::plan::PlanOptions { skip_following: false, ..super::model::Computed::options(&ctx.settings) };
     let full = crate::plan::plan(order, &ctx.catalogue, &options);
     let plan = full.as_ref().unwrap_or(plan);
-    text.push_str(&crate::cli::plan::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));
+    text.push_str(&crate::print::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));
     // A fill in progress: the sheet as it stands, what `plan NAME --record ID` prints.
     if let (Some(rec), Some(prog)) = (&doc.bench.record, &doc.bench.progress) {
         if let Ok(r) = &prog.replan {
