@@ -1342,3 +1342,44 @@ fn a_substitution_weighing_takes_the_reference_cylinders_reading_beside_each() {
     let progress = model.doc.as_ref().unwrap().bench.progress.as_ref().unwrap();
     assert!(progress.rows[0].1 > 0.0, "the record reads: {:?}", progress.rows);
 }
+
+#[test]
+fn a_warm_reading_far_over_the_plan_is_not_called_normal() {
+    let (mut model, mut ctx, _dir) = on_sheet("overfill", "flue-gas-span");
+    let last = model.doc.as_ref().unwrap().bench.done.len() - 1;
+    typed(&mut model, &mut ctx, 't', "35C");
+    for _ in 0..last {
+        keys(&mut model, &mut ctx, &[Key::Down]);
+    }
+    // 206 barg at 35 °C: above the 200 bar working pressure only because it is warm (it
+    // settles below it at 15 °C), but some 40 bar over the plan's 160 bar.
+    typed(&mut model, &mut ctx, 'r', "206barg");
+    let doc = model.doc.as_ref().unwrap();
+    let notes = fillwright::tui::sheet::reading_notes(doc, &model.limits, &model.shown, last);
+    assert!(notes.iter().all(|(_, n)| !n.contains("Normal")), "{notes:?}");
+    assert!(notes.iter().any(|(s, n)| *s == fillwright::checks::Severity::Caution && n.contains("far from the plan")));
+}
+
+#[test]
+fn a_tolerance_as_wide_as_the_amount_is_questioned() {
+    let (mut model, mut ctx, _dir) = setup("tolerance");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    go_to_component(&mut model, &mut ctx, "CO");
+    keys(&mut model, &mut ctx, &[Key::Down]);
+    let field = model.doc.as_ref().unwrap().current_field();
+    assert!(matches!(field, fillwright::tui::model::Field::Tolerance(_)), "{field:?}");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "2%");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(
+        model.status.contains("CO: the tolerance ±2% (absolute) is as wide as the amount 500ppm"),
+        "{}",
+        model.status
+    );
+    assert!(model.status.contains("%rel"), "{}", model.status);
+    // A relative one passes without a word.
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "2%rel");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(model.status, "recomputed");
+}

@@ -792,7 +792,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         })
         .collect();
 
-    let mut notes = Vec::new();
+    let mut notes = crate::recipe::tolerance_doubts(order, catalogue);
     if let Some(mixture) = fluid.multifluid() {
         notes.extend(multi_estimates(mixture, order, &setup, catalogue, d.total_mol));
     }

@@ -218,6 +218,28 @@ pub struct Target {
     pub tolerance: Option<f64>,
 }
 
+/// Tolerances as wide as the amount they bound: `2%` on a 400 ppm component reads as
+/// ±2 % mol/mol absolute, 50 times the amount, where `2%rel` was almost surely meant. Said,
+/// not refused (a wide absolute tolerance can be meant).
+pub fn tolerance_doubts(order: &Order, catalogue: &crate::gas::Catalogue) -> Vec<String> {
+    order
+        .targets
+        .iter()
+        .filter_map(|t| {
+            let (x, tol) = (t.share.fraction()?, t.tolerance?);
+            (x > 0.0 && tol >= x).then(|| {
+                format!(
+                    "{}: the tolerance ±{} (absolute) is as wide as the amount {} itself; a relative tolerance \
+                     is written with %rel (2%rel)",
+                    catalogue.gas(t.gas).id(),
+                    crate::units::fraction_text(tol),
+                    crate::units::fraction_text(x)
+                )
+            })
+        })
+        .collect()
+}
+
 /// A resolved source.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Source {

@@ -218,8 +218,11 @@ pub fn reading_notes(doc: &Document, limits: &BenchLimits, d: &Shown, step: usiz
                 ),
             ));
         } else if *actual > w && t > REFERENCE_TEMPERATURE_K {
+            // Warm gas reads high; that is normal only where the reading is also the plan's.
             let (severity, verdict) = if t > limits.max_k {
                 (Severity::Caution, "but the cylinder is hotter than its service range")
+            } else if far {
+                (Severity::Caution, "Within the rating, but far from the plan: see below")
             } else {
                 (Severity::Ok, "Normal")
             };

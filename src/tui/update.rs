@@ -746,9 +746,14 @@ fn on_field_typing(doc: &mut Document, key: Key, ctx: &Context, status: &mut Str
             }
             doc.editing = None;
             edit(doc, ctx, |r| set_field(r, field, &text));
-            *status = match &doc.computed.plan {
-                Ok(_) => "recomputed".into(),
-                Err(e) => format!("not plannable yet: {}", first_line(e)),
+            let doubt = match (&doc.computed.order, field) {
+                (Ok(o), Field::Tolerance(_)) => crate::recipe::tolerance_doubts(o, &ctx.catalogue).into_iter().next(),
+                _ => None,
+            };
+            *status = match (&doc.computed.plan, doubt) {
+                (Ok(_), Some(doubt)) => doubt,
+                (Ok(_), None) => "recomputed".into(),
+                (Err(e), _) => format!("not plannable yet: {}", first_line(e)),
             };
         }
         k => {
