@@ -134,3 +134,30 @@ fn completions_and_the_manual_come_from_the_command_definitions() {
     let o = run(&config, &["completions", "tcsh"]);
     assert_eq!(o.status.code(), Some(2), "an unknown shell is wrong usage");
 }
+
+#[test]
+fn list_history_and_records_give_csv_tables() {
+    let config = fresh("csv");
+    assert!(run(&config, &["list"]).status.success());
+    let o = run(&config, &["list", "--format", "csv"]);
+    assert!(o.status.success(), "{}", err(&o));
+    let text = out(&o);
+    let mut lines = text.lines();
+    assert_eq!(lines.next(), Some("name,title,fill,cylinder,revision,error"));
+    let rows: Vec<&str> = lines.collect();
+    let json: serde_json::Value = serde_json::from_slice(&run(&config, &["list", "--format", "json"]).stdout).unwrap();
+    assert_eq!(rows.len(), json["recipes"].as_array().unwrap().len(), "{text}");
+    // A title with a comma is quoted.
+    assert!(rows.iter().any(|r| r.starts_with("flue-gas-span,\"Flue-gas span, four components\",")), "{text}");
+    let o = run(&config, &["history", "flue-gas-span", "--format", "csv"]);
+    assert!(o.status.success(), "{}", err(&o));
+    let text = out(&o);
+    assert!(text.starts_with("revision,saved,saved_by,note,records\n1,"), "{text}");
+    let o = run(&config, &["history", "flue-gas-span", "--diff", "1", "1", "--format", "csv"]);
+    assert_eq!(o.status.code(), Some(2), "{}", out(&o));
+    assert!(err(&o).contains("csv is for the list of revisions"), "{}", err(&o));
+    let o = run(&config, &["records", "--format", "csv"]);
+    assert!(o.status.success(), "{}", err(&o));
+    assert_eq!(out(&o), "id,recipe,revision,cylinder,started,finished,state,error\n");
+    let _ = std::fs::remove_dir_all(&config);
+}

@@ -58,6 +58,16 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
         }));
         return Ok(());
     }
+    if args.format == Format::Csv {
+        super::print_csv_row(&["name", "title", "fill", "cylinder", "revision", "error"]);
+        for e in &entries {
+            match &e.summary {
+                Ok(s) => super::print_csv_row(&[&e.name, &s.title, &s.fill, &s.cylinder, &s.revision.to_string(), ""]),
+                Err(err) => super::print_csv_row(&[e.name.as_str(), "", "", "", "", err]),
+            }
+        }
+        return Ok(());
+    }
     outln!("library {}", lib.dir().display());
     // 80 columns: long names and titles are cut with an ellipsis.
     outln!("{:<22} {:>8} {:>13} {:>3}  recipe", "name", "fill", "cylinder", "rev");
@@ -106,6 +116,9 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
         return report_save(&args.name, lib.restore(&args.name, rev, &clock::now_utc())?);
     }
     if let Some(pair) = &args.diff {
+        if args.format == Format::Csv {
+            return Err(Failure::Usage("history --diff prints text or json; csv is for the list of revisions".into()));
+        }
         let (a, b) = (lib.revision(&args.name, pair[0])?, lib.revision(&args.name, pair[1])?);
         let list = changes::describe(&a, &b);
         if args.format == Format::Json {
@@ -132,6 +145,20 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
             "id": id, "recipe_revision": r.recipe_revision, "cylinder": r.cylinder,
             "started": r.started, "finished": r.finished,
         }))).collect::<Vec<_>>()}));
+        return Ok(());
+    }
+    if args.format == Format::Csv {
+        super::print_csv_row(&["revision", "saved", "saved_by", "note", "records"]);
+        for r in &revs {
+            let filled: Vec<&str> = records
+                .iter()
+                .filter(|(_, rec)| rec.as_ref().is_ok_and(|rec| rec.recipe_revision == r.revision))
+                .map(|(id, _)| id.as_str())
+                .collect();
+            let (saved, by) = (r.saved.as_deref().unwrap_or(""), r.saved_by.as_deref().unwrap_or(""));
+            let rev = r.revision.to_string();
+            super::print_csv_row(&[rev.as_str(), saved, by, r.note.as_deref().unwrap_or(""), &filled.join(" ")]);
+        }
         return Ok(());
     }
     outln!("{:>4}  {:<21} {:<12} note", "rev", "saved (UTC)", "by");

@@ -129,7 +129,8 @@ struct EditArgs {
 pub enum Format {
     Text,
     Json,
-    /// Comma-separated values, where a table is the natural output (the steps of `plan`).
+    /// Comma-separated values where the output is a table (plan's steps, check, gases, list,
+    /// history, records, verify's fit); refused with exit 2 elsewhere.
     Csv,
 }
 
@@ -320,4 +321,21 @@ pub use crate::ron_format::csv_field;
 /// Print a JSON value (numbers at full precision).
 pub fn print_json(value: &serde_json::Value) {
     outln!("{}", serde_json::to_string_pretty(value).unwrap_or_default());
+}
+
+/// Print one CSV row (RFC 4180: a field with a comma, a quote or a line break is quoted,
+/// its quotes doubled).
+pub fn print_csv_row<S: AsRef<str>>(fields: &[S]) {
+    let cells: Vec<String> = fields
+        .iter()
+        .map(|f| {
+            let f = f.as_ref();
+            if f.contains([',', '"', '\n', '\r']) {
+                format!("\"{}\"", f.replace('"', "\"\""))
+            } else {
+                f.to_string()
+            }
+        })
+        .collect();
+    outln!("{}", cells.join(","));
 }

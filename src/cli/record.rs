@@ -154,9 +154,6 @@ fn summary(id: &str, r: &Record) -> (String, String, u64, String, String, String
 }
 
 pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
-    if args.format == Format::Csv {
-        return Err(Failure::Usage("records prints text or json; --format csv is not offered".into()));
-    }
     let lib = args.place.open()?;
     let all = lib.records()?;
     let shown: Vec<&(String, Result<Record, String>)> = all
@@ -171,6 +168,20 @@ pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
             }
             Err(e) => json!({"id": id, "error": e}),
         }).collect::<Vec<_>>()}));
+        return Ok(());
+    }
+    if args.format == Format::Csv {
+        super::print_csv_row(&["id", "recipe", "revision", "cylinder", "started", "finished", "state", "error"]);
+        for (id, r) in &shown {
+            match r {
+                Ok(r) => {
+                    let s = summary(id, r);
+                    let finished = r.finished.clone().unwrap_or_default();
+                    super::print_csv_row(&[&s.0, &s.1, &s.2.to_string(), &s.3, &s.4, &finished, &s.5, ""]);
+                }
+                Err(e) => super::print_csv_row(&[id.as_str(), "", "", "", "", "", "", e]),
+            }
+        }
         return Ok(());
     }
     print_records(&shown);
