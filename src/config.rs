@@ -78,7 +78,15 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
     let as_path = Path::new(name);
     let looks_like_path = name.ends_with(".ron") || name.contains(std::path::MAIN_SEPARATOR) || name.contains('/');
     if looks_like_path || as_path.is_file() {
-        return read_limited(as_path).map(|t| (t, name.to_string()));
+        return read_limited(as_path).map(|t| (t, name.to_string())).map_err(|e| {
+            if as_path.exists() {
+                format!("{name}: {e}")
+            } else {
+                format!(
+                    "{name}: no such file; a recipe is a file, a library name (`fillwright list`) or a demo recipe name"
+                )
+            }
+        });
     }
     // A library named on purpose must exist: a mistyped one never falls back to the demos.
     if let Some(explicit) = explicit_library(library) {
@@ -103,11 +111,26 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
         return Ok((text.to_string(), format!("demo recipe {name}")));
     }
     let demos: Vec<&str> = crate::recipe::demo::RECIPES.iter().map(|(n, _)| *n).collect();
+    let mut known: Vec<String> = demos.iter().map(|d| d.to_string()).collect();
+    if let Some(lib) = dir.as_ref().filter(|d| d.is_dir()).map(|d| crate::library::Library::existing(d)) {
+        known.extend(lib.list().unwrap_or_default().into_iter().map(|e| e.name));
+    }
+    let guess = did_you_mean(name, &known);
     Err(format!(
-        "no recipe {name:?}: not a file, not in the library{}, and not a demo recipe ({})",
+        "no recipe {name:?}{guess}: not a file, not in the library{}, and not a demo recipe ({})",
         dir.map(|d| format!(" at {}", d.display())).unwrap_or_default(),
         demos.join(", ")
     ))
+}
+
+/// "; did you mean X?" for the name most like `name` among `known`, if one is close.
+pub fn did_you_mean(name: &str, known: &[String]) -> String {
+    known
+        .iter()
+        .map(|k| (strsim::jaro_winkler(&name.to_lowercase(), &k.to_lowercase()), k))
+        .filter(|(s, _)| *s > 0.85)
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .map_or(String::new(), |(_, k)| format!(" (did you mean {k:?}?)"))
 }
 
 fn read_limited(path: &Path) -> Result<String, String> {

@@ -161,3 +161,28 @@ fn list_history_and_records_give_csv_tables() {
     assert_eq!(out(&o), "id,recipe,revision,cylinder,started,finished,state,error\n");
     let _ = std::fs::remove_dir_all(&config);
 }
+
+#[test]
+fn slips_in_names_are_named_with_the_nearest_and_exit_1() {
+    let config = fresh("slips");
+    assert!(run(&config, &["list"]).status.success());
+    let o = run(&config, &["plan", "flue-gas-spam"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("did you mean \"flue-gas-span\"?"), "{}", err(&o));
+    let o = run(&config, &["plan", "missing.ron"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(err(&o).contains("missing.ron: no such file; a recipe is a file, a library name"), "{}", err(&o));
+    // A recipe the library does not hold is not "a recipe without fill records".
+    let o = run(&config, &["records", "flue-gas-spam"]);
+    assert_eq!(o.status.code(), Some(1), "{}", out(&o));
+    assert!(
+        err(&o).contains("no recipe \"flue-gas-spam\" in the library (did you mean \"flue-gas-span\"?)"),
+        "{}",
+        err(&o)
+    );
+    let o = run(&config, &["records", "flue-gas-span"]);
+    assert!(o.status.success() && out(&o).contains("(no fill records)"), "{}", err(&o));
+    let o = run(&config, &["state", "--mix", "NN", "--temp", "15C", "--volume", "10L", "--amount", "1mol"]);
+    assert!(err(&o).contains("did you mean N2"), "{}", err(&o));
+    let _ = std::fs::remove_dir_all(&config);
+}

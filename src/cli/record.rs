@@ -160,6 +160,16 @@ pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
         .iter()
         .filter(|(_, r)| args.recipe.as_ref().is_none_or(|name| r.as_ref().is_ok_and(|r| &r.recipe == name)))
         .collect();
+    // A recipe named that the library does not hold is a slip, not a recipe without fills.
+    if let Some(name) = args.recipe.as_ref().filter(|_| shown.is_empty()) {
+        let names: Vec<String> = lib.list().unwrap_or_default().into_iter().map(|e| e.name).collect();
+        if !names.contains(name) {
+            let guess = crate::config::did_you_mean(name, &names);
+            return Err(
+                Refused(format!("no recipe {name:?} in the library{guess}; `fillwright list` lists them")).into()
+            );
+        }
+    }
     if args.format == Format::Json {
         print_json(&json!({"records": shown.iter().map(|(id, r)| match r {
             Ok(r) => {

@@ -173,6 +173,25 @@ fn suggestion_text(s: &[String]) -> String {
     }
 }
 
+/// How alike two formulas are by their atoms: 1 for the same counts, less by the share of
+/// atoms that differ.
+fn atoms_alike(typed: &[(String, u32)], formula: &str) -> f64 {
+    let Ok(other) = formula::element_counts(formula) else { return 0.0 };
+    let count = |list: &[(String, u32)], e: &str| list.iter().filter(|(x, _)| x == e).map(|(_, n)| *n).sum::<u32>();
+    let elements: std::collections::BTreeSet<&str> = typed.iter().chain(&other).map(|(e, _)| e.as_str()).collect();
+    let (mut differ, mut total) = (0u32, 0u32);
+    for e in elements {
+        let (a, b) = (count(typed, e), count(&other, e));
+        differ += a.abs_diff(b);
+        total += a + b;
+    }
+    if total == 0 {
+        0.0
+    } else {
+        1.0 - f64::from(differ) / f64::from(total)
+    }
+}
+
 /// The set of known gases.
 #[derive(Debug, Clone)]
 pub struct Catalogue {
@@ -287,6 +306,7 @@ impl Catalogue {
     /// The ids of the gases whose id, name or alias is closest to `text`.
     pub fn nearest(&self, text: &str, count: usize) -> Vec<String> {
         let lower = text.to_lowercase();
+        let typed = formula::element_counts(text).ok();
         let mut scored: Vec<(f64, &str)> = self
             .gases
             .iter()
@@ -294,8 +314,15 @@ impl Catalogue {
                 let names = std::iter::once(g.id())
                     .chain(std::iter::once(g.name()))
                     .chain(g.record.aliases.iter().map(String::as_str));
-                let best = names.map(|n| strsim::jaro_winkler(&lower, &n.to_lowercase())).fold(0.0, f64::max);
-                (best, g.id())
+                let by_name = names.map(|n| strsim::jaro_winkler(&lower, &n.to_lowercase())).fold(0.0, f64::max);
+                // Text that reads as a formula is also compared by its atoms (N2 for NN, CH4
+                // for CH3): the names' shared prefixes would otherwise put n-C9H20 first.
+                let (by_name, by_atoms) = match &typed {
+                    // Read as a formula, the atoms lead (CH4 before CH3OH for CH3).
+                    Some(t) => (0.9 * by_name, atoms_alike(t, &g.record.formula)),
+                    None => (by_name, 0.0),
+                };
+                (by_name.max(by_atoms), g.id())
             })
             .filter(|(s, _)| *s > 0.7)
             .collect();
@@ -402,6 +429,11 @@ mod tests {
         let e = c.find("nitrogn").unwrap_err();
         assert!(e.suggestions.contains(&"N2".to_string()), "{e}");
         assert!(e.to_string().contains("did you mean"));
+        let c = Catalogue::built_in();
+        assert_eq!(c.nearest("NN", 3)[0], "N2", "{:?}", c.nearest("NN", 3));
+        assert_eq!(c.nearest("CH3", 3)[0], "CH4", "{:?}", c.nearest("CH3", 3));
+        assert_eq!(c.nearest("propan", 3)[0], "C3H8", "{:?}", c.nearest("propan", 3));
+        assert_eq!(c.nearest("nitrogen dioxid", 3)[0], "NO2", "{:?}", c.nearest("nitrogen dioxid", 3));
         let e = c.find("unobtainium-42").unwrap_err();
         assert!(e.to_string().contains("unknown gas"));
     }

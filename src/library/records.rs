@@ -92,9 +92,13 @@ impl Library {
     pub fn open_record(&self, id: &str) -> Result<OpenedRecord, LibraryError> {
         let path = self.record_path(id)?;
         let text = read_limited(&path).map_err(|e| match e {
-            LibraryError::Io { source, .. } if source.kind() == std::io::ErrorKind::NotFound => LibraryError::Missing(
-                format!("no fill record {id:?} in the library's records/ (`fillwright records` lists them)"),
-            ),
+            LibraryError::Io { source, .. } if source.kind() == std::io::ErrorKind::NotFound => {
+                let ids: Vec<String> = self.records().unwrap_or_default().into_iter().map(|(id, _)| id).collect();
+                let guess = crate::config::did_you_mean(id, &ids);
+                LibraryError::Missing(format!(
+                    "no fill record {id:?}{guess} in the library's records/ (`fillwright records` lists them)"
+                ))
+            }
             other => other,
         })?;
         let record = Record::parse(&text, &path.display().to_string()).map_err(|e| LibraryError::Io {
