@@ -110,6 +110,15 @@ pub struct HistoryArgs {
     pub format: Format,
 }
 
+/// The ids of the records filled to `revision`.
+fn filled_at<'a>(records: &[&'a (String, Result<crate::record::Record, String>)], revision: u64) -> Vec<&'a str> {
+    records
+        .iter()
+        .filter(|(_, rec)| rec.as_ref().is_ok_and(|rec| rec.recipe_revision == revision))
+        .map(|(id, _)| id.as_str())
+        .collect()
+}
+
 pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
     if let Some(rev) = args.restore {
@@ -150,11 +159,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     if args.format == Format::Csv {
         super::print_csv_row(&["revision", "saved", "saved_by", "note", "records"]);
         for r in &revs {
-            let filled: Vec<&str> = records
-                .iter()
-                .filter(|(_, rec)| rec.as_ref().is_ok_and(|rec| rec.recipe_revision == r.revision))
-                .map(|(id, _)| id.as_str())
-                .collect();
+            let filled = filled_at(&records, r.revision);
             let (saved, by) = (r.saved.as_deref().unwrap_or(""), r.saved_by.as_deref().unwrap_or(""));
             let rev = r.revision.to_string();
             super::print_csv_row(&[rev.as_str(), saved, by, r.note.as_deref().unwrap_or(""), &filled.join(" ")]);
@@ -163,11 +168,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     }
     outln!("{:>4}  {:<21} {:<12} note", "rev", "saved (UTC)", "by");
     for r in &revs {
-        let filled: Vec<&str> = records
-            .iter()
-            .filter(|(_, rec)| rec.as_ref().is_ok_and(|rec| rec.recipe_revision == r.revision))
-            .map(|(id, _)| id.as_str())
-            .collect();
+        let filled = filled_at(&records, r.revision);
         let note = r.note.as_deref().unwrap_or("");
         outln!(
             "{:>4}  {:<21} {:<12} {}",
