@@ -693,8 +693,8 @@ fn ask_for_analysis(model: &mut Model, ctx: &Context) {
     };
     model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
     model.status = format!(
-        "step {} comes from {name}, whose composition {written} has no uncertainty: type its analysis \
-         (CO=0.5%±0.002%,N2=balance){offer}, or @NAME from the source library",
+        "type the analysis of {name} for step {} ({written} has no uncertainty): e.g. \
+         CO=0.5%±0.002%,N2=balance{offer}, or @NAME from the source library",
         step + 1
     );
 }

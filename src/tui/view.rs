@@ -1007,7 +1007,7 @@ fn overlay(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fram
                 Prompt::ActualReading(i) => format!("Reading reached at step {} (e.g. 48.2bar)", i + 1),
                 Prompt::AddSource => "Source: a gas id, or NAME = SPEC for a premix".into(),
                 Prompt::Weighing => "Scale reading (e.g. 13504.85g) for the fill record".into(),
-                Prompt::StepSource => "Source: @NAME, record:ID, or an analysis (CO=0.5%±0.002%,N2=balance)".into(),
+                Prompt::StepSource => "Source: its analysis, @NAME or record:ID".into(),
                 Prompt::Correction => "Correct: w|p|t|s STEP VALUE (- withdraws)".into(),
                 Prompt::CorrectionReason(c) => format!("Why correct {c}?"),
                 Prompt::Operator => "Operator (who fills)".into(),
