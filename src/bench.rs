@@ -296,11 +296,7 @@ pub fn cross_check(checked: &crate::record::Checked, plan: &Plan, catalogue: &Ca
     let mut amounts = vec![0.0; plan.gases.len()];
     let mut out = Vec::new();
     for (k, a) in checked.additions.iter().enumerate().take(checked.complete) {
-        let net = |j: usize| {
-            let w = checked.weighings_g.get(j)?;
-            Some(w - checked.reference_weighings_g.get(j).copied().unwrap_or(0.0))
-        };
-        let (Some(before), Some(after)) = (net(k), net(k + 1)) else { break };
+        let (Some(before), Some(after)) = (checked.net_g(k), checked.net_g(k + 1)) else { break };
         let c = a.source.composition();
         let molar: f64 =
             c.gases.iter().zip(&c.fractions).map(|(&g, x)| x * catalogue.gas(g).molar_mass_g_per_mol).sum();

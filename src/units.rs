@@ -248,6 +248,14 @@ pub enum AmountInput {
     Grams(f64),
 }
 
+/// A mass as written (`13412.00g`, `13.4kg`), in grams; None for anything else.
+pub fn grams(text: &str) -> Option<f64> {
+    match parse_amount(text) {
+        Ok(AmountInput::Grams(g)) => Some(g),
+        _ => None,
+    }
+}
+
 /// Parse an amount (`12mol`) or a mass (`500g`, `0.5kg`).
 pub fn parse_amount(text: &str) -> Result<AmountInput, QuantityError> {
     let what = "amount";

@@ -411,11 +411,7 @@ impl Certificate<'_> {
             .map(|(k, a)| {
                 let mass = match c.method {
                     Method::Gravimetric => {
-                        // Substitution: the differences to the reference cylinder's readings.
-                        let net = |j: usize| {
-                            c.weighings_g.get(j).map(|w| w - c.reference_weighings_g.get(j).copied().unwrap_or(0.0))
-                        };
-                        net(k + 1).zip(net(k)).map_or("not weighed".into(), |(b, a)| format!("{:.3} g", b - a))
+                        c.net_g(k + 1).zip(c.net_g(k)).map_or("not weighed".into(), |(b, a)| format!("{:.3} g", b - a))
                     }
                     Method::Manometric => a
                         .reading

@@ -4,7 +4,7 @@
 //! entry as it was (the audit trail), and the certificate says a correction was made.
 
 use super::{Correction, Record};
-use crate::units::{self, AmountInput};
+use crate::units;
 
 /// An entry of a record that can be corrected.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -63,13 +63,6 @@ pub fn parse(text: &str) -> Result<(Entry, Option<String>), String> {
     Ok((entry, value))
 }
 
-fn grams(text: &str) -> Option<f64> {
-    match units::parse_amount(text) {
-        Ok(AmountInput::Grams(g)) => Some(g),
-        _ => None,
-    }
-}
-
 /// Apply a correction to `record` (the caller checks the value's own syntax where it
 /// needs the catalogue, as for a source). Returns what is kept in `record.corrections`.
 pub fn apply(record: &mut Record, entry: Entry, value: Option<&str>, reason: &str, now: &str) -> Result<(), String> {
@@ -85,7 +78,7 @@ pub fn apply(record: &mut Record, entry: Entry, value: Option<&str>, reason: &st
             if k >= n {
                 return Err(format!("the record has {n} reference readings, not one beside weighing {k}"));
             }
-            grams(v).ok_or(format!("{v}: a scale reading is a mass, e.g. 13950.12g"))?;
+            units::grams(v).ok_or(format!("{v}: a scale reading is a mass, e.g. 13950.12g"))?;
             std::mem::replace(&mut record.reference_weighings[k], v.to_string())
         }
         Entry::Pressure(k) | Entry::Temperature(k) | Entry::Source(k) => {
@@ -152,9 +145,9 @@ fn correct_weighing(record: &mut Record, k: usize, value: Option<&str>) -> Resul
         }
         return Ok(record.weighings.pop().unwrap_or_default());
     };
-    let g = grams(v).ok_or(format!("{v}: a scale reading is a mass, e.g. 13450.12g"))?;
-    let before = k.checked_sub(1).and_then(|i| grams(&record.weighings[i]));
-    let after = record.weighings.get(k + 1).and_then(|w| grams(w));
+    let g = units::grams(v).ok_or(format!("{v}: a scale reading is a mass, e.g. 13450.12g"))?;
+    let before = k.checked_sub(1).and_then(|i| units::grams(&record.weighings[i]));
+    let after = record.weighings.get(k + 1).and_then(|w| units::grams(w));
     if before.is_some_and(|b| g <= b) || after.is_some_and(|a| g >= a) {
         return Err(format!(
             "{v} does not lie between the readings before and after it ({} and {}): every addition adds mass",

@@ -241,6 +241,15 @@ pub struct Checked {
     pub buoyancy: Option<BuoyancyInputs>,
 }
 
+impl Checked {
+    /// Scale reading `k` less the reference cylinder's beside it (the reading alone in a
+    /// direct weighing), g: differences of these are the masses added.
+    pub fn net_g(&self, k: usize) -> Option<f64> {
+        let w = self.weighings_g.get(k)?;
+        Some(w - self.reference_weighings_g.get(k).copied().unwrap_or(0.0))
+    }
+}
+
 /// Default standard uncertainty of a pressure reading: 0.05 bar, half the 0.1 bar
 /// resolution of the gauge the plan assumes (common practice, no source).
 pub const DEFAULT_PRESSURE_U_PA: f64 = 0.05e5;

@@ -10,7 +10,7 @@ use crate::checks::Severity;
 use crate::library::records::Lookup;
 use crate::recipe::canonical;
 use crate::record::Record;
-use crate::units::{self, AmountInput};
+use crate::units;
 use crate::units::{Shown, REFERENCE_TEMPERATURE_K};
 
 /// Keys of the Fill sheet.
@@ -403,13 +403,6 @@ struct TypedWeighing {
     previous_net_g: Option<f64>,
 }
 
-fn grams(text: &str) -> Option<f64> {
-    match units::parse_amount(text) {
-        Ok(AmountInput::Grams(g)) => Some(g),
-        _ => None,
-    }
-}
-
 /// Read a typed weighing against the record: masses, the reference reading where the
 /// record weighs by substitution (every weighing or none), and more than the one before.
 fn read_weighing(doc: &Document, text: &str) -> Result<TypedWeighing, String> {
@@ -430,13 +423,13 @@ fn read_weighing(doc: &Document, text: &str) -> Result<TypedWeighing, String> {
         (true, false, true) => return Err("this fill is weighed directly: type the cylinder's reading alone".into()),
         _ => {}
     }
-    let previous = record.and_then(|r| r.weighings.last().and_then(|w| grams(w)));
+    let previous = record.and_then(|r| r.weighings.last().and_then(|w| units::grams(w)));
     if let (Some(p), Some(prev)) = (previous, record.and_then(|r| r.weighings.last())) {
         if w_g <= p {
             return Err(format!("{w} is not above the previous reading {prev}; every addition adds mass"));
         }
     }
-    let previous_ref = record.and_then(|r| r.reference_weighings.last().and_then(|w| grams(w)));
+    let previous_ref = record.and_then(|r| r.reference_weighings.last().and_then(|w| units::grams(w)));
     let net_g = w_g - r_g.unwrap_or(0.0);
     let previous_net_g = previous.map(|p| p - previous_ref.unwrap_or(0.0));
     if previous_net_g.is_some_and(|p| net_g <= p) {
