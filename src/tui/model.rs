@@ -369,12 +369,7 @@ impl Bench {
         let standing = self.progress.as_ref().map(|p| &p.standing);
         // Before the first addition is weighed the record holds only the empty weight.
         let empty_g =
-            self.record.as_ref().and_then(|r| r.record.weighings.first()).and_then(
-                |w| match crate::units::parse_amount(w) {
-                    Ok(crate::units::AmountInput::Grams(g)) => Some(g),
-                    _ => None,
-                },
-            );
+            self.record.as_ref().and_then(|r| r.record.weighings.first()).and_then(|w| crate::units::grams(w));
         self.live = plan.map(|p| crate::bench::live_sheet(p, standing, empty_g, self.measured_k)).unwrap_or_default();
     }
 
