@@ -164,11 +164,44 @@ pub fn toxicity(plan: &Plan, catalogue: &Catalogue) -> Check {
             ));
         }
     }
-    // Exposure limits: the blend as it is, against each component's limits (a leak, a
-    // purge vented into the room).
+    let (exposure, above) = exposure_limits(&parts, &mut details);
+    let mut data = Map::new();
+    data.insert("toxic".into(), json!(toxic));
+    data.insert("lc50_ppm".into(), json!(lc50));
+    data.insert("corrosive".into(), json!(!corrosive.is_empty()));
+    data.insert("exposure".into(), json!(exposure));
+    let corr = if corrosive.is_empty() { String::new() } else { format!("; corrosive: {}", corrosive.join(", ")) };
+    let (severity, message) = match lc50 {
+        None if corrosive.is_empty() => (Severity::Ok, "no toxic component".to_string()),
+        None => (Severity::Caution, format!("no toxic component{corr}")),
+        Some(l) if toxic => (Severity::Caution, format!("toxic by inhalation: mixture LC50 {l:.0} ppm{corr}")),
+        Some(l) if l > 1e6 && !corrosive.is_empty() => {
+            (Severity::Caution, format!("not toxic by the additivity rule (mixture LC50 above 10⁶ ppm){corr}"))
+        }
+        Some(l) if l > 1e6 => (
+            Severity::Ok,
+            "not toxic by inhalation (mixture LC50 above 10⁶ ppm: the rule finds no lethal level)".into(),
+        ),
+        Some(l) if !corrosive.is_empty() => (Severity::Caution, format!("not toxic (mixture LC50 {l:.0} ppm){corr}")),
+        Some(l) => (Severity::Ok, format!("not toxic by inhalation (mixture LC50 {l:.0} ppm)")),
+    };
+    let message = if above.is_empty() {
+        message
+    } else {
+        format!("{message}; above the exposure limit as it is: {}", above.join(", "))
+    };
+    Check { id: "toxicity", severity, message, details, data }
+}
+
+/// Exposure limits: the blend as it is, against each component's limits (a leak, a purge
+/// vented into the room). Returns the JSON entries and the components above a limit.
+fn exposure_limits(
+    parts: &[(String, f64, Hazard)],
+    details: &mut Vec<String>,
+) -> (Vec<serde_json::Value>, Vec<String>) {
     let mut exposure = Vec::new();
     let mut above = Vec::new();
-    for (id, x, h) in &parts {
+    for (id, x, h) in parts {
         let limits: Vec<String> = [("TWA", h.twa_ppm), ("STEL", h.stel_ppm), ("ceiling", h.ceiling_ppm)]
             .iter()
             .filter_map(|(name, v)| v.map(|v| format!("{name} {v} ppm")))
@@ -196,32 +229,7 @@ pub fn toxicity(plan: &Plan, catalogue: &Catalogue) -> Check {
         exposure.push(json!({"id": id, "content_ppm": ppm, "twa_ppm": h.twa_ppm, "stel_ppm": h.stel_ppm,
             "ceiling_ppm": h.ceiling_ppm}));
     }
-    let mut data = Map::new();
-    data.insert("toxic".into(), json!(toxic));
-    data.insert("lc50_ppm".into(), json!(lc50));
-    data.insert("corrosive".into(), json!(!corrosive.is_empty()));
-    data.insert("exposure".into(), json!(exposure));
-    let corr = if corrosive.is_empty() { String::new() } else { format!("; corrosive: {}", corrosive.join(", ")) };
-    let (severity, message) = match lc50 {
-        None if corrosive.is_empty() => (Severity::Ok, "no toxic component".to_string()),
-        None => (Severity::Caution, format!("no toxic component{corr}")),
-        Some(l) if toxic => (Severity::Caution, format!("toxic by inhalation: mixture LC50 {l:.0} ppm{corr}")),
-        Some(l) if l > 1e6 && !corrosive.is_empty() => {
-            (Severity::Caution, format!("not toxic by the additivity rule (mixture LC50 above 10⁶ ppm){corr}"))
-        }
-        Some(l) if l > 1e6 => (
-            Severity::Ok,
-            "not toxic by inhalation (mixture LC50 above 10⁶ ppm: the rule finds no lethal level)".into(),
-        ),
-        Some(l) if !corrosive.is_empty() => (Severity::Caution, format!("not toxic (mixture LC50 {l:.0} ppm){corr}")),
-        Some(l) => (Severity::Ok, format!("not toxic by inhalation (mixture LC50 {l:.0} ppm)")),
-    };
-    let message = if above.is_empty() {
-        message
-    } else {
-        format!("{message}; above the exposure limit as it is: {}", above.join(", "))
-    };
-    Check { id: "toxicity", severity, message, details, data }
+    (exposure, above)
 }
 
 /// Gases that react with cylinder walls and valves at ppm levels, so that their content

@@ -402,38 +402,8 @@ pub fn plan_json(plan: &Plan, order: &Order, catalogue: &Catalogue) -> Value {
             }),
             Err(e) => json!({"model": m.model.key(), "error": e}),
         }).collect::<Vec<_>>(),
-        "following": plan.following.iter().map(|f| json!({
-            "truth": f.truth.key(),
-            "rows": f.rows.iter().map(|r| json!({
-                "targets_of": r.targets_of.key(),
-                "composition": plan.gases.iter().enumerate().map(|(i, &g)| json!({
-                    "id": id(catalogue, g),
-                    "mole_fraction": r.fractions[i],
-                    "relative_error_percent": r.relative_error_percent[i],
-                    "out_of_tolerance": r.out_of_tolerance[i],
-                })).collect::<Vec<_>>(),
-            })).collect::<Vec<_>>(),
-        })).collect::<Vec<_>>(),
-        "premixes": plan.premixes.iter().map(|p| json!({
-            "step": p.step + 1,
-            "gas": id(catalogue, p.gas),
-            "mix": p.last().spec,
-            "name": p.last().name,
-            "complete": p.complete(),
-            "stages": p.stages.iter().map(|st| json!({
-                "name": st.name,
-                "recipe_name": st.recipe_name,
-                "mix": st.spec,
-                "mole_fraction": st.fraction,
-                "needed_mol": st.needed_mol,
-                "needed_g": st.needed_g,
-                "fill_pressure_bar": bar(st.fill_pressure_pa),
-                "plan": match &st.plan {
-                    Ok(inner) => plan_json(inner, &st.order, catalogue),
-                    Err(e) => json!({"error": e}),
-                },
-            })).collect::<Vec<_>>(),
-        })).collect::<Vec<_>>(),
+        "following": following_json(plan, catalogue),
+        "premixes": premixes_json(plan, catalogue),
         "heel": plan.heel.as_ref().map(|h| json!({
             "amount_mol": h.amounts_mol.iter().sum::<f64>(),
             "mass_g": h.mass_g,
@@ -445,6 +415,56 @@ pub fn plan_json(plan: &Plan, order: &Order, catalogue: &Catalogue) -> Value {
         })),
         "notes": plan.notes,
     })
+}
+
+/// The composition error of stopping at each model's readings, as JSON.
+fn following_json(plan: &Plan, catalogue: &Catalogue) -> Vec<Value> {
+    plan.following
+        .iter()
+        .map(|f| {
+            json!({
+                "truth": f.truth.key(),
+                "rows": f.rows.iter().map(|r| json!({
+                    "targets_of": r.targets_of.key(),
+                    "composition": plan.gases.iter().enumerate().map(|(i, &g)| json!({
+                        "id": id(catalogue, g),
+                        "mole_fraction": r.fractions[i],
+                        "relative_error_percent": r.relative_error_percent[i],
+                        "out_of_tolerance": r.out_of_tolerance[i],
+                    })).collect::<Vec<_>>(),
+                })).collect::<Vec<_>>(),
+            })
+        })
+        .collect()
+}
+
+/// The premix cascades proposed, each stage with its own plan, as JSON.
+fn premixes_json(plan: &Plan, catalogue: &Catalogue) -> Vec<Value> {
+    plan.premixes
+        .iter()
+        .map(|p| {
+            json!({
+                "step": p.step + 1,
+                "gas": id(catalogue, p.gas),
+                "mix": p.last().spec,
+                "name": p.last().name,
+                "complete": p.complete(),
+                "stages": p.stages.iter().map(|st| json!({
+                    "name": st.name,
+                    "recipe_name": st.recipe_name,
+                    "mix": st.spec,
+                    "mole_fraction": st.fraction,
+                    "needed_mol": st.needed_mol,
+                    "needed_g": st.needed_g,
+                    "fill_pressure_bar": bar(st.fill_pressure_pa),
+                    "plan": match &st.plan {
+                        Ok(inner) => plan_json(inner, &st.order, catalogue),
+                        Err(e) => json!({"error": e}),
+                    },
+                })).collect::<Vec<_>>(),
+            })
+        })
+        .collect::<Vec<_>>()
 }
 
 /// The steps as CSV.

@@ -496,6 +496,18 @@ fn dosing(
         return Err(PlanError::Unreachable(unreachable));
     }
     let source_mol: Vec<f64> = s.iter().copied().collect();
+    let sequence = fill_sequence(order, sequence_names, &source_mol)?;
+    let sequence = sequence.into_iter().filter(|&k| source_mol[k] > 1e-12 * total_mol).collect();
+    Ok(Dosing { total_mol, heel_mol, source_mol, sequence })
+}
+
+/// The order of the additions: as the user listed the sources (each exactly once), else
+/// ascending amount with the balance gas last (minor components first).
+fn fill_sequence(
+    order: &Order,
+    sequence_names: &Option<Vec<String>>,
+    source_mol: &[f64],
+) -> Result<Vec<usize>, PlanError> {
     let names: Vec<&str> = order.sources.iter().map(|s| s.name.as_str()).collect();
     let sequence: Vec<usize> = match sequence_names {
         Some(list) => {
@@ -531,8 +543,7 @@ fn dosing(
             seq
         }
     };
-    let sequence = sequence.into_iter().filter(|&k| source_mol[k] > 1e-12 * total_mol).collect();
-    Ok(Dosing { total_mol, heel_mol, source_mol, sequence })
+    Ok(sequence)
 }
 
 /// Source composition as a vector over the plan gases.

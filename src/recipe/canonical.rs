@@ -52,21 +52,7 @@ pub fn to_text(r: &Recipe) -> String {
         })
         .collect();
     field("components", format!("[\n{components}    ]"));
-    let c = &r.cylinder;
-    let mut cyl = format!(
-        "(\n        water_capacity: {},\n        working_pressure: {},\n        test_pressure: {},\n",
-        q(&c.water_capacity),
-        q(&c.working_pressure),
-        q(&c.test_pressure)
-    );
-    if let Some(t) = &c.tare {
-        cyl.push_str(&format!("        tare: {},\n", q(t)));
-    }
-    if let Some(s) = &c.serial {
-        cyl.push_str(&format!("        serial: {},\n", q(s)));
-    }
-    cyl.push_str("    )");
-    field("cylinder", cyl);
+    field("cylinder", cylinder_text(&r.cylinder));
     field(
         "fill",
         match &r.fill {
@@ -92,18 +78,7 @@ pub fn to_text(r: &Recipe) -> String {
         field("model", m.key().to_string());
     }
     if !r.sources.is_empty() {
-        let list: String = r
-            .sources
-            .iter()
-            .map(|s| match s {
-                SourceLine::Pure(id) => format!("        Pure({}),\n", q(id)),
-                SourceLine::Premix { name, mix, recipe } => {
-                    let link = recipe.as_ref().map(|r| format!(", recipe: {}", q(r))).unwrap_or_default();
-                    format!("        Premix(name: {}, mix: {}{link}),\n", q(name), q(mix))
-                }
-            })
-            .collect();
-        field("sources", format!("[\n{list}    ]"));
+        field("sources", sources_text(&r.sources));
     }
     if !r.fill_order.is_empty() {
         field("fill_order", format!("[{}]", r.fill_order.iter().map(|s| q(s)).collect::<Vec<_>>().join(", ")));
@@ -111,6 +86,39 @@ pub fn to_text(r: &Recipe) -> String {
     field("notes", q(&r.notes));
     o.push_str(")\n");
     o
+}
+
+/// The cylinder's block.
+fn cylinder_text(c: &super::CylinderLine) -> String {
+    let mut cyl = format!(
+        "(\n        water_capacity: {},\n        working_pressure: {},\n        test_pressure: {},\n",
+        q(&c.water_capacity),
+        q(&c.working_pressure),
+        q(&c.test_pressure)
+    );
+    if let Some(t) = &c.tare {
+        cyl.push_str(&format!("        tare: {},\n", q(t)));
+    }
+    if let Some(s) = &c.serial {
+        cyl.push_str(&format!("        serial: {},\n", q(s)));
+    }
+    cyl.push_str("    )");
+    cyl
+}
+
+/// The sources' list.
+fn sources_text(sources: &[SourceLine]) -> String {
+    let list: String = sources
+        .iter()
+        .map(|s| match s {
+            SourceLine::Pure(id) => format!("        Pure({}),\n", q(id)),
+            SourceLine::Premix { name, mix, recipe } => {
+                let link = recipe.as_ref().map(|r| format!(", recipe: {}", q(r))).unwrap_or_default();
+                format!("        Premix(name: {}, mix: {}{link}),\n", q(name), q(mix))
+            }
+        })
+        .collect();
+    format!("[\n{list}    ]")
 }
 
 #[cfg(test)]

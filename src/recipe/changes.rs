@@ -80,30 +80,7 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
     out.extend(text_change("description", &old.description, &new.description));
     out.extend(text_change("order", &old.order, &new.order));
 
-    let key = |g: &str| g.to_ascii_lowercase();
-    for c in &new.components {
-        match old.components.iter().find(|o| key(&o.gas) == key(&c.gas)) {
-            None => out.push(format!("{} added at {}", c.gas, spaced(&c.amount))),
-            Some(o) => {
-                if o.amount != c.amount {
-                    out.push(format!("{} {}", c.gas, arrow(&o.amount, &c.amount)));
-                }
-                if o.tolerance != c.tolerance {
-                    out.push(match (&o.tolerance, &c.tolerance) {
-                        (None, Some(t)) => format!("{} tolerance set to {}", c.gas, spaced(t)),
-                        (Some(_), None) => format!("{} tolerance removed", c.gas),
-                        (Some(a), Some(b)) => format!("{} tolerance {}", c.gas, arrow(a, b)),
-                        (None, None) => unreachable!("tolerances differ"),
-                    });
-                }
-            }
-        }
-    }
-    for o in &old.components {
-        if !new.components.iter().any(|c| key(&c.gas) == key(&o.gas)) {
-            out.push(format!("{} removed", o.gas));
-        }
-    }
+    out.extend(component_changes(old, new));
 
     let (a, b) = (&old.cylinder, &new.cylinder);
     let fill_parts = |f: &FillTarget| match f {
@@ -145,6 +122,56 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
         let name = |m: Option<crate::thermo::Model>| m.map_or("default".to_string(), |m| m.key().to_string());
         out.push(format!("model {} → {}", name(old.model), name(new.model)));
     }
+    out.extend(source_changes(old, new));
+    if old.fill_order != new.fill_order {
+        let show = |v: &Vec<String>| {
+            if v.is_empty() {
+                "default".to_string()
+            } else {
+                v.join(", ")
+            }
+        };
+        out.push(format!("fill order {} → {}", show(&old.fill_order), show(&new.fill_order)));
+    }
+    if old.notes != new.notes {
+        out.push("notes changed".into());
+    }
+    out
+}
+
+/// Components added, removed, or with a new amount or tolerance.
+fn component_changes(old: &Recipe, new: &Recipe) -> Vec<String> {
+    let mut out = Vec::new();
+    let key = |g: &str| g.to_ascii_lowercase();
+    for c in &new.components {
+        match old.components.iter().find(|o| key(&o.gas) == key(&c.gas)) {
+            None => out.push(format!("{} added at {}", c.gas, spaced(&c.amount))),
+            Some(o) => {
+                if o.amount != c.amount {
+                    out.push(format!("{} {}", c.gas, arrow(&o.amount, &c.amount)));
+                }
+                if o.tolerance != c.tolerance {
+                    out.push(match (&o.tolerance, &c.tolerance) {
+                        (None, Some(t)) => format!("{} tolerance set to {}", c.gas, spaced(t)),
+                        (Some(_), None) => format!("{} tolerance removed", c.gas),
+                        (Some(a), Some(b)) => format!("{} tolerance {}", c.gas, arrow(a, b)),
+                        (None, None) => unreachable!("tolerances differ"),
+                    });
+                }
+            }
+        }
+    }
+    for o in &old.components {
+        if !new.components.iter().any(|c| key(&c.gas) == key(&o.gas)) {
+            out.push(format!("{} removed", o.gas));
+        }
+    }
+    out
+}
+
+/// Sources added or removed.
+fn source_changes(old: &Recipe, new: &Recipe) -> Vec<String> {
+    let mut out = Vec::new();
     let source_name = |s: &SourceLine| match s {
         SourceLine::Pure(id) => id.clone(),
         SourceLine::Premix { name, mix, .. } => format!("{name} ({mix})"),
@@ -158,19 +185,6 @@ pub fn describe(old: &Recipe, new: &Recipe) -> Vec<String> {
         if !new.sources.contains(s) {
             out.push(format!("source {} removed", source_name(s)));
         }
-    }
-    if old.fill_order != new.fill_order {
-        let show = |v: &Vec<String>| {
-            if v.is_empty() {
-                "default".to_string()
-            } else {
-                v.join(", ")
-            }
-        };
-        out.push(format!("fill order {} → {}", show(&old.fill_order), show(&new.fill_order)));
-    }
-    if old.notes != new.notes {
-        out.push("notes changed".into());
     }
     out
 }
