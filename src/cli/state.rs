@@ -159,27 +159,7 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
     let settings = config::load_settings().map_err(Refused)?;
     let ambient = args.common.ambient_pa(&settings)?;
     let composition = Composition::from_spec(&args.mix, &catalogue).map_err(|e| Refused(format!("--mix: {e}")))?;
-    let given = Given {
-        t_k: units::parse_temperature(&args.temp).map_err(|e| Refused(format!("--temp: {e}")))?,
-        p_pa: args
-            .pressure
-            .as_deref()
-            .map(|p| units::parse_pressure(p, ambient))
-            .transpose()
-            .map_err(|e| Refused(format!("--pressure: {e}")))?,
-        volume_m3: args
-            .volume
-            .as_deref()
-            .map(units::parse_volume)
-            .transpose()
-            .map_err(|e| Refused(format!("--volume: {e}")))?,
-        amount: args
-            .amount
-            .as_deref()
-            .map(units::parse_amount)
-            .transpose()
-            .map_err(|e| Refused(format!("--amount: {e}")))?,
-    };
+    let given = read_given(args, ambient)?;
     let model = choose_model(args.common.model, &composition, &catalogue, &settings);
     let x = &composition.fractions;
     let fluid_of = |m: Model| Fluid::new(&catalogue, &composition.gases, m);
@@ -202,44 +182,79 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
 
     let ids: Vec<&str> = composition.gases.iter().map(|&g| catalogue.gas(g).id()).collect();
     match args.common.format {
-        Format::Json => {
-            let comparison: Vec<serde_json::Value> = others
-                .iter()
-                .map(|(m, r)| match r {
-                    Ok(s) => json!({
-                        "model": m.key(),
-                        "value": si_to_output(unknown, s.value(unknown)),
-                        "z": s.z,
-                        "difference_percent": percent(s.value(unknown), chosen.value(unknown)),
-                    }),
-                    Err(e) => json!({"model": m.key(), "error": e.to_string()}),
-                })
-                .collect();
-            print_json(&json!({
-                "model": chosen.model.key(),
-                "temperature_k": given.t_k,
-                "pressure_bar": bar(chosen.p_pa),
-                "volume_l": litres(chosen.volume_m3),
-                "amount_mol": chosen.amount_mol,
-                "z": chosen.z,
-                "mass_g": chosen.mass_g,
-                "solved": unknown.name(),
-                "phase": chosen.phase.key(),
-                "liquid_fraction": chosen.liquid_fraction,
-                "liquid_amount_mol": chosen.liquid_fraction * chosen.amount_mol,
-                "vapour_amount_mol": (1.0 - chosen.liquid_fraction) * chosen.amount_mol,
-                "phase_judged_by": chosen.judged_by.key(),
-                "near_condensation": chosen.phase != Phase::Supercritical && chosen.phase != Phase::Gas,
-                "liquid_like": chosen.phase == Phase::Liquid,
-                "components": ids.iter().zip(x).map(|(id, xi)| json!({"id": id, "mole_fraction": xi})).collect::<Vec<_>>(),
-                "comparison": comparison,
-            }));
-        }
+        Format::Json => print_json(&state_json(&given, unknown, &chosen, &others, &ids, x)),
         Format::Text | Format::Csv => {
             print_text(&composition.describe(&catalogue), &given, ambient, unknown, &chosen, &others, &settings.shown)
         }
     }
     Ok(())
+}
+
+/// The state's options read into numbers.
+fn read_given(args: &StateArgs, ambient: f64) -> Result<Given, Refused> {
+    Ok(Given {
+        t_k: units::parse_temperature(&args.temp).map_err(|e| Refused(format!("--temp: {e}")))?,
+        p_pa: args
+            .pressure
+            .as_deref()
+            .map(|p| units::parse_pressure(p, ambient))
+            .transpose()
+            .map_err(|e| Refused(format!("--pressure: {e}")))?,
+        volume_m3: args
+            .volume
+            .as_deref()
+            .map(units::parse_volume)
+            .transpose()
+            .map_err(|e| Refused(format!("--volume: {e}")))?,
+        amount: args
+            .amount
+            .as_deref()
+            .map(units::parse_amount)
+            .transpose()
+            .map_err(|e| Refused(format!("--amount: {e}")))?,
+    })
+}
+
+/// The state as JSON, with every other model's answer for comparison.
+fn state_json(
+    given: &Given,
+    unknown: Unknown,
+    chosen: &Solved,
+    others: &[(Model, Result<Solved, ThermoError>)],
+    ids: &[&str],
+    x: &[f64],
+) -> serde_json::Value {
+    let comparison: Vec<serde_json::Value> = others
+        .iter()
+        .map(|(m, r)| match r {
+            Ok(s) => json!({
+                "model": m.key(),
+                "value": si_to_output(unknown, s.value(unknown)),
+                "z": s.z,
+                "difference_percent": percent(s.value(unknown), chosen.value(unknown)),
+            }),
+            Err(e) => json!({"model": m.key(), "error": e.to_string()}),
+        })
+        .collect();
+    json!({
+        "model": chosen.model.key(),
+        "temperature_k": given.t_k,
+        "pressure_bar": bar(chosen.p_pa),
+        "volume_l": litres(chosen.volume_m3),
+        "amount_mol": chosen.amount_mol,
+        "z": chosen.z,
+        "mass_g": chosen.mass_g,
+        "solved": unknown.name(),
+        "phase": chosen.phase.key(),
+        "liquid_fraction": chosen.liquid_fraction,
+        "liquid_amount_mol": chosen.liquid_fraction * chosen.amount_mol,
+        "vapour_amount_mol": (1.0 - chosen.liquid_fraction) * chosen.amount_mol,
+        "phase_judged_by": chosen.judged_by.key(),
+        "near_condensation": chosen.phase != Phase::Supercritical && chosen.phase != Phase::Gas,
+        "liquid_like": chosen.phase == Phase::Liquid,
+        "components": ids.iter().zip(x).map(|(id, xi)| json!({"id": id, "mole_fraction": xi})).collect::<Vec<_>>(),
+        "comparison": comparison,
+    })
 }
 
 /// The solved quantity in the output units: bar, L or mol.

@@ -338,30 +338,7 @@ impl Record {
         };
         let scale_u_g = parse_mass_u(&self.scale_uncertainty)
             .map_err(|e| err(&quoted(&self.scale_uncertainty), format!("scale_uncertainty: {e}")))?;
-        let mut weighings_g = Vec::with_capacity(self.weighings.len());
-        for (k, w) in self.weighings.iter().enumerate() {
-            let g = match units::parse_amount(w) {
-                Ok(AmountInput::Grams(g)) => g,
-                Ok(AmountInput::Moles(_)) => {
-                    return Err(err(&quoted(w), format!("weighing {} {w:?} must be a mass (g or kg)", k + 1)))
-                }
-                Err(e) => return Err(err(&quoted(w), format!("weighing {}: {e}", k + 1))),
-            };
-            if let Some(&before) = weighings_g.last() {
-                if g <= before {
-                    return Err(err(
-                        &quoted(w),
-                        format!(
-                            "weighing {} ({w}) is not above the one before ({}); every addition adds mass. \
-                             Correct the reading (a new revision keeps the old one)",
-                            k + 1,
-                            self.weighings[k - 1]
-                        ),
-                    ));
-                }
-            }
-            weighings_g.push(g);
-        }
+        let weighings_g = self.weighings_g(&err)?;
         if self.additions.is_empty() {
             return Err(err("additions", "the record has no additions yet".into()));
         }
@@ -377,41 +354,7 @@ impl Record {
                 ),
             ));
         }
-        let mut additions = Vec::with_capacity(self.additions.len());
-        for (k, a) in self.additions.iter().enumerate() {
-            let source = resolve_source(&a.source, catalogue, lookup)
-                .map_err(|e| err(&quoted(&a.source), format!("addition {}: source {:?}: {e}", k + 1, a.source)))?;
-            let pressure = match &a.pressure {
-                None => None,
-                Some(p) => Some(
-                    units::parse_pressure(p, ambient_pa)
-                        .map_err(|e| err(&quoted(p), format!("addition {} pressure: {e}", k + 1)))?,
-                ),
-            };
-            let temperature = match &a.temperature {
-                None => None,
-                Some(t) => Some(
-                    units::parse_temperature(t)
-                        .map_err(|e| err(&quoted(t), format!("addition {} temperature: {e}", k + 1)))?,
-                ),
-            };
-            if !gravimetric && k + 1 < self.additions.len() && (pressure.is_none() || temperature.is_none()) {
-                return Err(err(
-                    &quoted(&a.source),
-                    format!(
-                        "addition {}: a record without weighings needs the pressure reading and the cylinder \
-                         temperature of every addition (pressure: \"…bar\", temperature: \"…C\")",
-                        k + 1
-                    ),
-                ));
-            }
-            additions.push(CheckedAddition {
-                written: a.source.clone(),
-                source_name: a.source_name.clone(),
-                source,
-                reading: pressure.zip(temperature),
-            });
-        }
+        let additions = self.checked_additions(catalogue, lookup, ambient_pa, gravimetric, &err)?;
         let complete = if gravimetric {
             weighings_g.len() - 1
         } else {
@@ -453,6 +396,84 @@ impl Record {
             volume_m3,
             buoyancy,
         })
+    }
+
+    /// The scale readings in grams, each above the one before.
+    fn weighings_g(&self, err: &dyn Fn(&str, String) -> RecordError) -> Result<Vec<f64>, RecordError> {
+        let quoted = |s: &str| format!("\"{s}\"");
+        let mut weighings_g = Vec::with_capacity(self.weighings.len());
+        for (k, w) in self.weighings.iter().enumerate() {
+            let g = match units::parse_amount(w) {
+                Ok(AmountInput::Grams(g)) => g,
+                Ok(AmountInput::Moles(_)) => {
+                    return Err(err(&quoted(w), format!("weighing {} {w:?} must be a mass (g or kg)", k + 1)))
+                }
+                Err(e) => return Err(err(&quoted(w), format!("weighing {}: {e}", k + 1))),
+            };
+            if let Some(&before) = weighings_g.last() {
+                if g <= before {
+                    return Err(err(
+                        &quoted(w),
+                        format!(
+                            "weighing {} ({w}) is not above the one before ({}); every addition adds mass. \
+                             Correct the reading (a new revision keeps the old one)",
+                            k + 1,
+                            self.weighings[k - 1]
+                        ),
+                    ));
+                }
+            }
+            weighings_g.push(g);
+        }
+        Ok(weighings_g)
+    }
+
+    /// Each addition's source resolved, with its pressure reading and temperature.
+    fn checked_additions(
+        &self,
+        catalogue: &Catalogue,
+        lookup: &dyn Fn(&str) -> Result<SourceInput, String>,
+        ambient_pa: f64,
+        gravimetric: bool,
+        err: &dyn Fn(&str, String) -> RecordError,
+    ) -> Result<Vec<CheckedAddition>, RecordError> {
+        let quoted = |s: &str| format!("\"{s}\"");
+        let mut additions = Vec::with_capacity(self.additions.len());
+        for (k, a) in self.additions.iter().enumerate() {
+            let source = resolve_source(&a.source, catalogue, lookup)
+                .map_err(|e| err(&quoted(&a.source), format!("addition {}: source {:?}: {e}", k + 1, a.source)))?;
+            let pressure = match &a.pressure {
+                None => None,
+                Some(p) => Some(
+                    units::parse_pressure(p, ambient_pa)
+                        .map_err(|e| err(&quoted(p), format!("addition {} pressure: {e}", k + 1)))?,
+                ),
+            };
+            let temperature = match &a.temperature {
+                None => None,
+                Some(t) => Some(
+                    units::parse_temperature(t)
+                        .map_err(|e| err(&quoted(t), format!("addition {} temperature: {e}", k + 1)))?,
+                ),
+            };
+            if !gravimetric && k + 1 < self.additions.len() && (pressure.is_none() || temperature.is_none()) {
+                return Err(err(
+                    &quoted(&a.source),
+                    format!(
+                        "addition {}: a record without weighings needs the pressure reading and the cylinder \
+                         temperature of every addition (pressure: \"…bar\", temperature: \"…C\")",
+                        k + 1
+                    ),
+                ));
+            }
+            additions.push(CheckedAddition {
+                written: a.source.clone(),
+                source_name: a.source_name.clone(),
+                source,
+                reading: pressure.zip(temperature),
+            });
+        }
+        Ok(additions)
     }
 
     /// The reference cylinder's readings of a substitution weighing, one beside each
