@@ -440,7 +440,7 @@ fn a_fill_at_the_bench_is_recorded_entry_by_entry_and_continues_after_a_restart(
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert!(model.status.contains("0.000 bar off") || model.status.contains("reached"), "{}", model.status);
     let doc = model.doc.as_ref().unwrap();
-    let notes = fillwright::tui::sheet::reading_notes(doc, &model.limits, &model.shown, 2);
+    let notes = fillwright::tui::views::sheet::reading_notes(doc, &model.limits, &model.shown, 2);
     assert!(
         notes.iter().all(|(s, n)| *s == fillwright::checks::Severity::Ok && n.contains("0.000 bar off")),
         "{notes:?}"
@@ -504,7 +504,9 @@ fn sheet_of_copy(model: &mut Model, ctx: &mut Context, name: &str, fill: &str) {
 fn a_plan_at_stop_locks_its_steps_until_the_user_confirms() {
     let (mut model, mut ctx, _dir) = setup("stop-lock");
     sheet_of_copy(&mut model, &mut ctx, "over-rated", "230bar");
-    assert!(fillwright::tui::sheet::first_stop(model.doc.as_ref().unwrap()).unwrap().contains("working pressure"));
+    assert!(fillwright::tui::views::sheet::first_stop(model.doc.as_ref().unwrap())
+        .unwrap()
+        .contains("working pressure"));
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
     assert!(screen.contains("STOP - do not fill as planned"), "{screen}");
     keys(&mut model, &mut ctx, &[Key::Char(' ')]);
@@ -553,7 +555,7 @@ fn typed_readings_and_temperatures_are_judged_against_the_rating_and_the_plan() 
     text(&mut model, &mut ctx, &format!("{:.2}bar", target / 1e5));
     keys(&mut model, &mut ctx, &[Key::Enter]);
     let doc = model.doc.as_ref().unwrap();
-    let notes = fillwright::tui::sheet::reading_notes(doc, &model.limits, &model.shown, last);
+    let notes = fillwright::tui::views::sheet::reading_notes(doc, &model.limits, &model.shown, last);
     assert!(notes.iter().any(|(_, n)| n.contains("Normal")), "{notes:?}");
     assert!(notes.iter().all(|(s, _)| *s == fillwright::checks::Severity::Ok), "{notes:?}");
     // 230 bar at 35 °C settles above the working pressure: stop.
@@ -1108,7 +1110,7 @@ fn place_flue_record(ctx: &Context) {
 
 #[test]
 fn a_verification_is_typed_on_the_screen_written_as_typed_and_judged() {
-    use fillwright::tui::verification;
+    use fillwright::tui::overlays::verification;
     let (mut model, mut ctx, _dir) = setup("verify");
     place_flue_record(&ctx);
     keys(&mut model, &mut ctx, &[Key::Char('v')]);
@@ -1355,7 +1357,7 @@ fn a_warm_reading_far_over_the_plan_is_not_called_normal() {
     // settles below it at 15 °C), but some 40 bar over the plan's 160 bar.
     typed(&mut model, &mut ctx, 'r', "206barg");
     let doc = model.doc.as_ref().unwrap();
-    let notes = fillwright::tui::sheet::reading_notes(doc, &model.limits, &model.shown, last);
+    let notes = fillwright::tui::views::sheet::reading_notes(doc, &model.limits, &model.shown, last);
     assert!(notes.iter().all(|(_, n)| !n.contains("Normal")), "{notes:?}");
     assert!(notes.iter().any(|(s, n)| *s == fillwright::checks::Severity::Caution && n.contains("far from the plan")));
 }

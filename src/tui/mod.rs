@@ -5,17 +5,17 @@
 //! SIGHUP, and on a panic or a signal it first writes any unsaved edits as a draft in the
 //! config folder's `drafts/`, which the next start offers to recover.
 
+pub mod context;
+pub mod document;
 pub mod drafts;
 pub mod model;
-pub mod picker;
-pub mod premixes;
+pub mod overlays;
 pub mod scenes;
-pub mod settings_editor;
-pub mod sheet;
 pub mod svg;
+pub mod theme;
 pub mod update;
-pub mod verification;
 pub mod view;
+pub mod views;
 
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;

@@ -206,7 +206,7 @@ pub struct Computed {
 impl Computed {
     /// The plan options the screen uses: the settings' model, resolutions and storage range.
     /// The screen does not show the comparison of following each model's readings; the
-    /// printed sheet makes it ([`super::sheet::export`]).
+    /// printed sheet makes it ([`super::views::sheet::export`]).
     pub fn options(settings: &Resolved) -> PlanOptions {
         PlanOptions {
             default_model: settings.default_model,
@@ -500,7 +500,7 @@ pub struct Model {
     /// settings).
     pub limits: BenchLimits,
     /// The verification pane, while it is open (it takes every key).
-    pub verification: Option<Box<super::verification::Pane>>,
+    pub verification: Option<Box<super::overlays::verification::Pane>>,
     pub quit: bool,
 }
 

@@ -4,10 +4,16 @@
 //! stage as the source of that gas. The blend's change is an edit like any other: undone
 //! with `u`, written with `s`.
 
-use super::model::{Model, Overlay};
-use super::update::{edit, refresh, Context, Key};
+use ratatui::layout::Rect;
+use ratatui::text::Line;
+use ratatui::Frame;
+
 use crate::library::LibraryError;
 use crate::plan::premix;
+use crate::tui::context::{Context, Key};
+use crate::tui::document::{edit, refresh};
+use crate::tui::model::{Model, Overlay};
+use crate::tui::theme::{boxed, centered, Theme};
 
 /// Open the overlay, or say that nothing needs a premix.
 pub fn open(model: &mut Model) {
@@ -97,4 +103,19 @@ fn accept(model: &mut Model, ctx: &Context, selected: usize) {
     }
     model.status = format!("premix {last} accepted ({}); the blend takes it as a source: s saves", what.join("; "));
     refresh(model, ctx);
+}
+
+/// The cascade proposed, keys first.
+pub fn draw(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect, selected: &usize) {
+    // The keys first, so that a long cascade cut at the foot of a small window
+    // still shows how to accept it.
+    let mut lines: Vec<Line> =
+        ["a  accept: each stage becomes a library recipe,", "   the blend takes the last as its source · Esc close"]
+            .into_iter()
+            .map(|hint| Line::styled(hint, theme.dim()))
+            .collect();
+    lines.extend(self::lines(model, *selected).into_iter().map(Line::raw));
+    let h = (lines.len() as u16 + 2).min(area.height);
+    let w = area.width.min(84);
+    boxed(frame, centered(area, w, h), "Premixes", lines);
 }

@@ -4,14 +4,55 @@
 //! lost when the session ends; opening the recipe again continues the fill. After each
 //! weighing the composition so far is compared with the plan and the rest re-planned.
 
-use super::model::{BenchLimits, Document, Model, Overlay, Progress, Prompt};
-use super::update::{input, Context, Key};
+mod draw;
+
+use ratatui::layout::Rect;
+use ratatui::Frame;
+
+use super::Screen;
 use crate::checks::Severity;
 use crate::library::records::Lookup;
 use crate::recipe::canonical;
 use crate::record::Record;
+use crate::tui::context::{input, Context, Key};
+use crate::tui::model::{BenchLimits, Document, Model, Overlay, Progress, Prompt};
+use crate::tui::theme::Theme;
 use crate::units;
 use crate::units::{Shown, REFERENCE_TEMPERATURE_K};
+
+/// The Fill sheet.
+pub struct Sheet;
+
+impl Screen for Sheet {
+    fn draw(&self, model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+        draw::sheet(model, theme, frame, area)
+    }
+    fn on_key(&self, model: &mut Model, key: Key, ctx: &mut Context) {
+        match key {
+            Key::Char('p') => export(model, ctx),
+            Key::Char('m') => crate::tui::overlays::premixes::open(model),
+            _ => on_key(model, key),
+        }
+    }
+    fn hints(&self, _model: &Model) -> &'static str {
+        "? help · Space done · r reading · t temp · w weigh · m premix · l source · p print · ↑↓ step"
+    }
+    fn help(&self) -> &'static [&'static str] {
+        &[
+            "↑↓ j k  choose a step        Space  mark it done",
+            "t  cylinder temperature now  c  back to the planned temperature",
+            "r  reading reached (bar, barg, psig …)",
+            "w  scale reading: the empty cylinder, then after each step",
+            "l  source of the addition: analysis, @NAME or record:ID",
+            "x  correct a recorded entry, with its reason",
+            "o  operator   b  balance   a  air at the scale (buoyancy)",
+            "m  premixes for steps too small to dose (a accepts one)",
+            "p  write the sheet to sheets/ in the library (text, PDF)",
+            "every entry is written to records/ at once; reopening the",
+            "recipe continues the fill; fillwright certify ID certifies",
+        ]
+    }
+}
 
 /// Keys of the Fill sheet.
 pub fn on_key(model: &mut Model, key: Key) {
@@ -107,7 +148,8 @@ pub fn export(model: &mut Model, ctx: &Context) {
     }
     // The printed sheet has the comparison of following each model's readings, which the
     // screen leaves out of its recompute: the plan is made again with it.
-    let options = crate::plan::PlanOptions { skip_following: false, ..super::model::Computed::options(&ctx.settings) };
+    let options =
+        crate::plan::PlanOptions { skip_following: false, ..crate::tui::model::Computed::options(&ctx.settings) };
     let full = crate::plan::plan(order, &ctx.catalogue, &options);
     let plan = full.as_ref().unwrap_or(plan);
     text.push_str(&crate::print::fill_sheet(plan, order, &ctx.catalogue, &res, order.ambient_pa, &model.shown));

@@ -2,10 +2,16 @@
 //! Enter; values are typed in a prompt and checked before anything is written; the file is
 //! written whole and atomically, and the screen takes the new settings at once.
 
-use super::model::{BenchLimits, Model, Overlay, Prompt};
-use super::update::{input, Context};
+use ratatui::layout::Rect;
+use ratatui::style::Style;
+use ratatui::text::Line;
+use ratatui::Frame;
+
 use crate::settings::{AirConditions, Settings};
 use crate::thermo::Model as Eos;
+use crate::tui::context::{input, Context, Key};
+use crate::tui::model::{BenchLimits, Model, Overlay, Prompt};
+use crate::tui::theme::{boxed, centered, Theme};
 use crate::units::{PressureUnit, TemperatureUnit};
 
 /// The editable fields, in the order shown.
@@ -192,7 +198,7 @@ fn apply(model: &mut Model, ctx: &mut Context, s: &Settings, selected: usize) {
             model.limits = BenchLimits::of(&resolved);
             ctx.settings = resolved;
             if let Some(doc) = model.doc.as_mut() {
-                super::update::recompute_doc(doc, ctx);
+                crate::tui::document::recompute_doc(doc, ctx);
             }
             let field = FIELDS[selected.min(FIELDS.len() - 1)];
             model.status = format!("{} is now {}; written to {}", label(field), value(s, field), path.display());
@@ -200,4 +206,36 @@ fn apply(model: &mut Model, ctx: &mut Context, s: &Settings, selected: usize) {
         Err(e) => model.status = format!("the settings were not written: {e}"),
     }
     model.overlay = Overlay::Settings { selected, values: Box::new(current(ctx)) };
+}
+
+/// Keys of the settings list.
+pub fn on_key(model: &mut Model, ctx: &mut Context, key: Key, mut selected: usize, values: Box<Settings>) {
+    match key {
+        Key::Up | Key::Char('k') => {
+            selected = selected.saturating_sub(1);
+            model.overlay = Overlay::Settings { selected, values };
+        }
+        Key::Down | Key::Char('j') => {
+            selected = (selected + 1).min(FIELDS.len() - 1);
+            model.overlay = Overlay::Settings { selected, values };
+        }
+        Key::Enter | Key::Char(' ') => on_enter(model, ctx, selected),
+        _ => model.status = "settings closed".into(),
+    }
+}
+
+/// The settings and their values.
+pub fn draw(theme: &Theme, frame: &mut Frame, area: Rect, selected: &usize, values: &Settings) {
+    let s = values;
+    let mut lines: Vec<Line> = FIELDS
+        .iter()
+        .enumerate()
+        .map(|(k, f)| {
+            let text = format!("{} {:<28} {}", if k == *selected { "▶" } else { " " }, label(f), value(s, f));
+            Line::styled(text, if k == *selected { theme.selected() } else { Style::default() })
+        })
+        .collect();
+    lines.push(Line::styled("↑↓ choose · Enter change · Esc close", theme.dim()));
+    let h = lines.len() as u16 + 2;
+    boxed(frame, centered(area, 60, h), "Settings (settings.ron)", lines);
 }

@@ -15,7 +15,7 @@ use ratatui::widgets::{Axis, Block, Borders, Chart, Clear, Dataset, GraphType, P
 use ratatui::Frame;
 use tui_input::Input;
 
-use super::update::{input, input_request, Context, Key};
+use crate::tui::context::{input, input_request, Context, Key};
 use crate::verification::{self, Function, Report, Standard, Verification};
 
 /// The pane: the list of files, or one file being edited.

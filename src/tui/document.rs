@@ -1,0 +1,221 @@
+//! The open recipe and the library as the screen holds them: reading the library in,
+//! opening, starting, editing (with undo), recomputing and saving a recipe. Views and
+//! overlays call these; they know nothing of the keys.
+
+use tui_input::Input;
+
+use super::context::Context;
+use super::model::{Bench, Computed, Document, Model, Overlay, Prompt, View};
+use crate::library::{LibraryError, OnConflict, Saved};
+use crate::recipe::Recipe;
+
+/// The recipe as the screen holds it, with the line being typed taken as typed (for the
+/// draft: a value not yet kept with Enter is not lost when the session drops).
+pub fn recipe_as_typed(doc: &Document) -> Recipe {
+    let mut r = doc.recipe.clone();
+    if let Some(input) = &doc.editing {
+        super::views::editor::set_field(&mut r, doc.current_field(), input.value());
+    }
+    r
+}
+
+/// Read the library into the model and offer any drafts. An empty library gets the demo
+/// recipes first.
+pub fn start(model: &mut Model, ctx: &mut Context) {
+    start_with(model, ctx, true);
+}
+
+/// As [`start`]; `seed` false leaves an empty folder empty (a recipe file opened in a folder
+/// that is not the library).
+pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
+    model.limits = super::model::BenchLimits::of(&ctx.settings);
+    if seed {
+        match ctx.library.seed_demos_if_empty() {
+            Ok(n) if n > 0 => model.status = format!("new library: copied {n} demo recipes in"),
+            Ok(_) => {}
+            Err(e) => model.status = format!("library: {e}"),
+        }
+    }
+    refresh(model, ctx);
+    let drafts = ctx.drafts();
+    if !drafts.is_empty() {
+        model.overlay = Overlay::Drafts { drafts, selected: 0 };
+    }
+}
+
+pub fn refresh(model: &mut Model, ctx: &Context) {
+    match ctx.library.list() {
+        Ok(entries) => {
+            model.library.screening = screen_entries(&entries, ctx, &mut model.library.screened);
+            model.library.entries = entries;
+        }
+        Err(e) => model.status = format!("cannot list the library: {e}"),
+    }
+    let n = model.library.visible().len();
+    model.library.selected = model.library.selected.min(n.saturating_sub(1));
+}
+
+/// The worst screening result of each library entry, planned and screened in parallel
+/// (the order of the list is kept); a recipe whose file and the settings are as at the
+/// last refresh keeps its result from `cache`.
+fn screen_entries(
+    entries: &[crate::library::Entry],
+    ctx: &Context,
+    cache: &mut super::model::ScreeningCache,
+) -> Vec<Option<crate::checks::Severity>> {
+    use rayon::prelude::*;
+    let settings = format!("{:?}", ctx.settings);
+    type Found = Option<(crate::library::Fingerprint, Option<crate::checks::Severity>)>;
+    let results: Vec<(String, Found)> = entries
+        .par_iter()
+        .map(|e| {
+            // The listing has read every recipe already.
+            let Ok(summary) = &e.summary else { return (e.name.clone(), None) };
+            if let Some((fp, s, worst)) = cache.get(&e.name) {
+                if *fp == summary.fingerprint && *s == settings {
+                    return (e.name.clone(), Some((*fp, *worst)));
+                }
+            }
+            let c = Computed::screening_only(&summary.recipe, &ctx.catalogue, &ctx.settings);
+            (e.name.clone(), Some((summary.fingerprint, c.map(|checks| crate::checks::worst(&checks)))))
+        })
+        .collect();
+    cache.clear();
+    results
+        .into_iter()
+        .map(|(name, r)| {
+            let (fp, worst) = r?;
+            cache.insert(name, (fp, settings.clone(), worst));
+            worst
+        })
+        .collect()
+}
+
+/// Recompute an open recipe after the settings changed.
+pub(crate) fn recompute_doc(doc: &mut Document, ctx: &Context) {
+    recompute(doc, ctx);
+}
+
+pub(crate) fn recompute(doc: &mut Document, ctx: &Context) {
+    doc.computed = Computed::update(&doc.computed, &doc.recipe, &ctx.catalogue, &ctx.settings);
+    fit_bench(doc);
+    super::views::sheet::sync_from_record(doc, ctx);
+}
+
+/// Size the bench's per-step state to the plan and redo the corrected targets.
+fn fit_bench(doc: &mut Document) {
+    let steps = doc.computed.plan.as_ref().map_or(0, |p| p.steps.len());
+    doc.bench.done.resize(steps, false);
+    doc.bench.actual_pa.resize(steps, None);
+    doc.bench.selected = doc.bench.selected.min(steps.saturating_sub(1));
+    doc.bench.correct(doc.computed.plan.as_ref().ok());
+}
+
+pub(crate) fn open_document(
+    name: &str,
+    recipe: Recipe,
+    opened: Option<crate::library::Opened>,
+    ctx: &Context,
+) -> Document {
+    let saved = opened.as_ref().map_or_else(|| recipe.clone(), |o| o.recipe.clone());
+    let computed = Computed::of(&recipe, &ctx.catalogue, &ctx.settings);
+    let mut doc = Document {
+        name: name.to_string(),
+        opened,
+        recipe,
+        saved,
+        undo: Vec::new(),
+        redo: Vec::new(),
+        field: 0,
+        editing: None,
+        computed,
+        bench: Bench::default(),
+        recovered_draft: None,
+    };
+    fit_bench(&mut doc);
+    super::views::sheet::attach_record(&mut doc, ctx);
+    doc
+}
+
+/// Start a new recipe called `name` in the editor (saved on the first `s`).
+pub fn new_recipe(model: &mut Model, ctx: &Context, name: &str) {
+    if let Err(e) = crate::library::check_name(name) {
+        model.status = e.to_string();
+        return;
+    }
+    let mut recipe = Recipe::blank();
+    recipe.name = name.to_string();
+    let mut doc = open_document(name, recipe, None, ctx);
+    doc.saved = Recipe::blank();
+    model.doc = Some(doc);
+    model.view = View::Editor;
+    model.status = format!("new recipe {name}: edit it, s saves");
+}
+
+/// Open a library recipe in the editor.
+pub fn open(model: &mut Model, ctx: &Context, name: &str) {
+    match ctx.library.open(name) {
+        Ok(o) => {
+            let recipe = o.recipe.clone();
+            model.doc = Some(open_document(name, recipe, Some(o), ctx));
+            model.view = View::Editor;
+            model.status = format!("opened {name}");
+        }
+        Err(e) => model.status = e.to_string(),
+    }
+}
+
+/// Change the recipe, keeping the previous state for undo, and recompute.
+pub(crate) fn edit(doc: &mut Document, ctx: &Context, change: impl FnOnce(&mut Recipe)) {
+    let before = doc.recipe.clone();
+    change(&mut doc.recipe);
+    if doc.recipe != before {
+        doc.undo.push(before);
+        doc.redo.clear();
+        recompute(doc, ctx);
+    }
+}
+
+/// Save the open recipe, asking first when it does not validate (it would not plan).
+pub(crate) fn save_checked(model: &mut Model, ctx: &mut Context, note: Option<String>) {
+    let problem = model.doc.as_ref().and_then(|d| d.computed.order.as_ref().err().cloned());
+    match problem {
+        Some(why) => model.overlay = Overlay::ConfirmSaveInvalid { why, note },
+        None => save(model, ctx, note, false),
+    }
+}
+
+/// Save the open recipe to the library.
+pub(crate) fn save(model: &mut Model, ctx: &mut Context, note: Option<String>, overwrite: bool) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let now = (ctx.now)();
+    let on_conflict = if overwrite { OnConflict::Overwrite } else { OnConflict::Refuse };
+    match ctx.library.save(&doc.name, &doc.recipe, doc.opened.as_ref(), note.as_deref(), &now, on_conflict) {
+        Ok(saved) => {
+            ctx.remove_draft(&doc.name, doc.recovered_draft.take().as_deref());
+            doc.opened = ctx.library.open(&doc.name).ok();
+            if let Some(o) = &doc.opened {
+                doc.recipe = o.recipe.clone();
+                doc.saved = o.recipe.clone();
+            }
+            model.status = match saved {
+                Saved::Unchanged { revision } => format!("nothing changed; still rev {revision}"),
+                Saved::Written { revision, git: Some(Err(e)), .. } => {
+                    format!("saved rev {revision}; not committed: {e}")
+                }
+                Saved::Written { revision, .. } => format!("saved rev {revision}"),
+            };
+            refresh(model, ctx);
+        }
+        Err(LibraryError::ChangedOnDisk(_)) => model.overlay = Overlay::Conflict,
+        Err(LibraryError::Exists(name)) => {
+            model.status = format!("a recipe {name} already exists: choose another name");
+            model.overlay = Overlay::Prompt { purpose: Prompt::SaveAs, input: Input::new(String::new()) };
+        }
+        Err(e) => model.status = format!("not saved: {e}"),
+    }
+}
+
+pub(crate) fn first_line(s: &str) -> &str {
+    s.lines().next().unwrap_or(s)
+}

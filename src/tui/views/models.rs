@@ -1,0 +1,182 @@
+//! The Models view: every model's amount, Z and last stop reading side by side, and the
+//! charts of Z and of the fill.
+
+use ratatui::layout::{Constraint, Layout, Rect};
+use ratatui::style::Color;
+use ratatui::symbols::Marker;
+use ratatui::text::Line;
+use ratatui::widgets::{Axis, Block, Borders, Chart, Dataset, GraphType, Paragraph};
+use ratatui::Frame;
+
+use super::Screen;
+use crate::ron_format::clip;
+use crate::tui::context::{Context, Key};
+use crate::tui::model::Model;
+use crate::tui::theme::Theme;
+
+/// The models compared.
+pub struct Models;
+
+impl Screen for Models {
+    fn draw(&self, model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+        models(model, theme, frame, area)
+    }
+    fn on_key(&self, model: &mut Model, key: Key, ctx: &mut Context) {
+        let _ = (model, key, ctx);
+    }
+    fn help(&self) -> &'static [&'static str] {
+        &["every model's amount, Z and last stop reading;", "charts of Z and of the fill"]
+    }
+}
+
+fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let Some(doc) = &model.doc else { return };
+    let Ok(p) = &doc.computed.plan else {
+        frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), area);
+        return;
+    };
+    // One table: a column per model; the stop reading of each step, then the amount, its
+    // difference from the reference, and Z.
+    let ok: Vec<_> = p.models.iter().filter_map(|m| m.result.as_ref().ok().map(|f| (m.model, f))).collect();
+    // The reference: GERG-2008 where it covers the blend, else the multi-fluid model.
+    use crate::thermo::Model as Eos;
+    let reference = [Eos::Gerg, Eos::Multi]
+        .iter()
+        .find_map(|r| ok.iter().find(|(m, _)| m == r).map(|(m, _)| *m))
+        .unwrap_or(p.model);
+    let ref_amount = ok.iter().find(|(m, _)| *m == reference).map(|(_, f)| f.amount_mol);
+    let max_steps = (area.height as usize).saturating_sub(14).clamp(2, 12);
+    let shown = p.steps.len().min(max_steps);
+    let table_h = (shown + 6) as u16;
+    let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
+    let block = Block::default().borders(Borders::ALL).title(format!(
+        " Every model: stop readings at {} in {}; reference {} ",
+        model.shown.tf(p.fill_temperature_k),
+        model.shown.pu(),
+        reference.key()
+    ));
+    let inner = block.inner(top);
+    frame.render_widget(block, top);
+    let mut head = format!("{:<14}", "");
+    for (m, _) in &ok {
+        let mark = if *m == p.model { "*" } else { "" };
+        head.push_str(&format!("{:>9}", format!("{}{mark}", m.key())));
+    }
+    let mut lines = vec![Line::styled(head, theme.bold())];
+    for (i, s) in p.steps.iter().enumerate().take(shown) {
+        let mut row = format!("{:<14}", clip(&format!("{} {}", i + 1, s.source), 13));
+        for (_, f) in &ok {
+            row.push_str(&crate::units::cell(f.step_pressures_pa.get(i).map_or(f64::NAN, |v| model.shown.p(*v)), 5, 9));
+        }
+        lines.push(Line::raw(row));
+    }
+    if p.steps.len() > shown {
+        lines.push(Line::styled(format!("… {} more steps on the fill sheet", p.steps.len() - shown), theme.dim()));
+    }
+    let mut amount = format!("{:<14}", "amount mol");
+    let mut diff = format!("{:<14}", "vs reference");
+    let mut z = format!("{:<14}", "Z");
+    for (_, f) in &ok {
+        amount.push_str(&crate::units::cell(f.amount_mol, 5, 9));
+        diff.push_str(&format!(
+            "{:>9}",
+            format!("{}%", crate::units::signed(ref_amount.map_or(0.0, |r| (f.amount_mol / r - 1.0) * 100.0), 2))
+        ));
+        z.push_str(&format!("{:>9.4}", f.z));
+    }
+    lines.extend([Line::styled(amount, theme.bold()), Line::raw(diff), Line::raw(z)]);
+    for m in p.models.iter().filter(|m| m.result.is_err()) {
+        let e = m.result.as_ref().err().map_or("", |e| e.split(';').next().unwrap_or(e));
+        lines.push(Line::styled(clip(&format!("{}: {e}", m.model.key()), inner.width as usize), theme.dim()));
+    }
+    frame.render_widget(Paragraph::new(lines), inner);
+
+    let [zc, fc] = Layout::horizontal([Constraint::Percentage(50), Constraint::Percentage(50)]).areas(bottom);
+    // One marker per model, so that the curves are told apart without colour.
+    let markers = [
+        Marker::Dot,
+        Marker::Braille,
+        Marker::Block,
+        Marker::Bar,
+        Marker::HalfBlock,
+        Marker::Quadrant,
+        Marker::Custom('+'),
+    ];
+    let marks = ["•", "⣿", "█", "▄", "▀", "▖", "+"];
+    let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red, Color::Blue];
+    let (mut zmin, mut zmax, mut pmax) = (f64::INFINITY, f64::NEG_INFINITY, 1.0f64);
+    // The curves are computed in bar; shown in the settings' unit.
+    let curves: Vec<Vec<(f64, f64)>> = doc
+        .computed
+        .z_curves
+        .iter()
+        .map(|(_, pts)| pts.iter().map(|(p_bar, z)| (model.shown.p(p_bar * 1e5), *z)).collect())
+        .collect();
+    for pts in &curves {
+        for (pp, z) in pts {
+            zmin = zmin.min(*z);
+            zmax = zmax.max(*z);
+            pmax = pmax.max(*pp);
+        }
+    }
+    let datasets: Vec<Dataset> = doc
+        .computed
+        .z_curves
+        .iter()
+        .zip(&curves)
+        .enumerate()
+        .map(|(i, ((m, _), pts))| {
+            Dataset::default()
+                .name(m.key())
+                .marker(markers[i % markers.len()])
+                .graph_type(GraphType::Line)
+                .style(theme.fg(colors[i % colors.len()]))
+                .data(pts)
+        })
+        .collect();
+    let pad = ((zmax - zmin) * 0.05).max(0.005);
+    let legend: String = doc
+        .computed
+        .z_curves
+        .iter()
+        .enumerate()
+        .map(|(i, (m, _))| format!("{}{}", marks[i % marks.len()], m.key()))
+        .collect::<Vec<_>>()
+        .join(" ");
+    let chart = Chart::new(datasets)
+        .legend_position(None)
+        .block(Block::default().borders(Borders::ALL).title(" Z against pressure ").title_bottom(format!(" {legend} ")))
+        .x_axis(
+            Axis::default().title(model.shown.pu()).bounds([0.0, pmax]).labels(["0".to_string(), format!("{pmax:.0}")]),
+        )
+        .y_axis(
+            Axis::default()
+                .title("Z")
+                .bounds([zmin - pad, zmax + pad])
+                .labels([format!("{:.2}", zmin - pad), format!("{:.2}", zmax + pad)]),
+        );
+    frame.render_widget(chart, zc);
+    // The fill: pressure reading against the amount added so far.
+    let mut pts = vec![(0.0, 0.0)];
+    let mut n = 0.0;
+    for s in &p.steps {
+        n += s.add_amount_mol;
+        pts.push((n, model.shown.p(s.pressure_after_pa)));
+    }
+    let (nmax, ptop) = pts.iter().fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
+    let chart = Chart::new(vec![Dataset::default()
+        .name(p.model.key())
+        .marker(Marker::Braille)
+        .graph_type(GraphType::Line)
+        .style(theme.fg(Color::Cyan))
+        .data(&pts)])
+    .block(Block::default().borders(Borders::ALL).title(" The fill: reading against amount "))
+    .x_axis(Axis::default().title("mol").bounds([0.0, nmax.max(1e-9)]).labels(["0".to_string(), format!("{nmax:.1}")]))
+    .y_axis(
+        Axis::default()
+            .title(model.shown.pu())
+            .bounds([0.0, ptop.max(1e-9)])
+            .labels(["0".to_string(), format!("{ptop:.0}")]),
+    );
+    frame.render_widget(chart, fc);
+}

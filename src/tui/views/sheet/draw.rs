@@ -1,0 +1,276 @@
+//! Drawing the Fill sheet: the steps as planned and as done, the readings to stop at for the
+//! cylinder now, and the fill record so far.
+
+use ratatui::layout::Rect;
+use ratatui::style::{Color, Modifier, Style};
+use ratatui::text::Line;
+use ratatui::widgets::{Block, Borders, Paragraph};
+use ratatui::Frame;
+
+use crate::checks::Severity;
+use crate::ron_format::{clip, wrap_words};
+use crate::tui::model::{Document, Model};
+use crate::tui::theme::Theme;
+use crate::tui::views::step_mark;
+use crate::units::Shown;
+
+pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
+    let Some(doc) = &model.doc else { return };
+    let block = Block::default().borders(Borders::ALL).title(" Fill sheet ");
+    let inner = block.inner(area);
+    frame.render_widget(block, area);
+    let Ok(p) = &doc.computed.plan else {
+        frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), inner);
+        return;
+    };
+    let b = &doc.bench;
+    let d = &model.shown;
+    let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
+    let mut lines = Vec::new();
+    if let Some(stop) = super::first_stop(doc) {
+        let style = theme.severity(Severity::Stop).add_modifier(Modifier::BOLD);
+        for l in wrap_words(&format!("STOP - do not fill as planned: {stop}"), usize::from(inner.width.max(20))) {
+            lines.push(Line::styled(l, style));
+        }
+        lines.push(Line::styled(
+            if b.stop_accepted.as_deref() == Some(stop.as_str()) {
+                "steps unlocked on your own judgement".to_string()
+            } else {
+                "steps are locked; Space asks to unlock them".to_string()
+            },
+            theme.severity(Severity::Stop),
+        ));
+    }
+    lines.push(Line::raw(match b.measured_k {
+        Some(t) => format!("planned for {}; cylinder now {}: stop at 'now'", d.tf(p.fill_temperature_k), d.tf(t)),
+        None => format!("readings for {}; t: type the cylinder temperature now", d.tf(p.fill_temperature_k)),
+    }));
+    let width = usize::from(inner.width.max(20));
+    if let Some((severity, note)) = b.measured_k.and_then(|t| super::temperature_note(t, &model.limits, d)) {
+        lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, theme.severity(severity))));
+    }
+    lines.push(Line::styled(
+        format!(
+            " {:<4}{:<3}{:<11}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
+            "",
+            "#",
+            "source",
+            "add g",
+            "scale g",
+            format!("stop {}", d.pu()),
+            "gauge",
+            "now",
+            "reached"
+        ),
+        theme.bold(),
+    ));
+    if let Some(h) = &p.heel {
+        // What the cylinder holds before the first addition: the readings to see first.
+        lines.push(Line::styled(
+            format!(
+                " {:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}",
+                "",
+                0,
+                "heel",
+                h.mass_g,
+                h.scale_reading_g,
+                d.pf(h.pressure_at_fill_pa),
+                d.pf(h.pressure_at_fill_pa - ambient),
+            ),
+            theme.dim(),
+        ));
+    }
+    for (i, s) in p.steps.iter().enumerate() {
+        let selected = i == b.selected;
+        let text = sheet_row(b, d, i, s, ambient);
+        let style = match (selected, b.live.get(i).is_some_and(|l| l.finished)) {
+            (true, _) => theme.selected(),
+            (false, true) => theme.dim(),
+            (false, false) => Style::default(),
+        };
+        lines.push(Line::styled(text, style));
+    }
+    lines.extend(first_plan_note(b, d, width).into_iter().map(|l| Line::styled(l, theme.dim())));
+    // A source name cut in the table (a premix) is given whole for the chosen step, and
+    // the source recorded for the addition in progress (an analysis, @NAME, record:ID).
+    let in_progress = b.record.as_ref().map(|r| r.record.weighings.len().saturating_sub(1));
+    match (&b.chosen_source, p.steps.get(b.selected)) {
+        (Some(c), Some(s)) if in_progress == Some(b.selected) => {
+            let text = format!("step {} source {}: {c} (recorded)", b.selected + 1, s.source);
+            lines.extend(wrap_words(&text, width).into_iter().map(Line::raw));
+        }
+        (_, Some(s)) if s.source.chars().count() > 10 => {
+            lines.push(Line::raw(format!("step {} source: {}", b.selected + 1, s.source)));
+        }
+        _ => {}
+    }
+    for (severity, note) in super::reading_notes(doc, &model.limits, d, b.selected) {
+        let style = match severity {
+            Severity::Ok => Style::default(),
+            s => theme.severity(s),
+        };
+        lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, style)));
+    }
+    if p.by_mass {
+        lines.extend(
+            wrap_words(
+                "LIQUEFIED-GAS FILL: the blend is liquid or two-phase at the reference temperature. Stop each \
+                 addition at its scale reading; the gauge shows the vapour pressure. Leave vapour space (the fill \
+                 ratio on the cylinder's markings).",
+                usize::from(inner.width.max(20)),
+            )
+            .into_iter()
+            .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
+        );
+    }
+    let legends = [
+        (
+            "L",
+            "L liquid forms after this step at the fill temperature: the gauge shows the vapour pressure, not a \
+             stop. Use a smaller share, a warmer fill, another fill order, or fill by mass.",
+        ),
+        (
+            "c",
+            "c liquid forms if the cylinder cools to the lowest storage temperature (less the margin): after the \
+             last step lower the fill; after an earlier one fill in one session, warm.",
+        ),
+    ];
+    for (mark, text) in legends {
+        if p.steps.iter().any(|s| step_mark(s) == Some(mark)) {
+            lines.extend(
+                wrap_words(text, usize::from(inner.width.max(20)))
+                    .into_iter()
+                    .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
+            );
+        }
+    }
+    if p.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())) {
+        lines.push(Line::styled(
+            "! below the gauge or scale resolution: m shows the premix proposed",
+            theme.fg(Color::Yellow),
+        ));
+    }
+    let done = b.done.iter().filter(|d| **d).count();
+    lines.push(Line::raw(format!("{done} of {} steps done", p.steps.len())));
+    lines.extend(record_lines(doc, model, theme));
+    frame.render_widget(Paragraph::new(lines), inner);
+}
+
+/// One step of the Fill sheet: a finished step as recorded (what was added, the scale
+/// and pressure readings taken), a step to do as the live plan has it.
+fn sheet_row(b: &crate::tui::model::Bench, d: &Shown, i: usize, s: &crate::plan::Step, ambient: f64) -> String {
+    let cursor = if i == b.selected { "▶" } else { " " };
+    let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
+    let flag = step_mark(s).map_or(String::new(), |m| format!(" {m}"));
+    let Some(live) = b.live.get(i) else {
+        return format!("{cursor}{done:<4}{:<3}{:<11}", i + 1, clip(&s.source, 10));
+    };
+    if live.finished {
+        let reached = live.recorded_reading.map_or("–".to_string(), |(p, _)| d.pf(p));
+        return format!(
+            "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}",
+            i + 1,
+            clip(&live.source, 10),
+            live.add_mass_g,
+            live.scale_reading_g,
+            "recorded",
+            "",
+            "",
+            reached
+        );
+    }
+    let stop = live.pressure_after_pa.unwrap_or(s.pressure_after_pa);
+    let now = live.pressure_now_pa.map_or("–".to_string(), |v| d.pf(v));
+    let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
+    let moved = if live.moved() { "*" } else { "" };
+    format!(
+        "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}{moved}{flag}",
+        i + 1,
+        clip(&s.source, 10),
+        live.add_mass_g,
+        live.scale_reading_g,
+        d.pf(stop),
+        d.pf(stop - ambient),
+        now,
+        reached
+    )
+}
+
+/// Under the table: that starred steps are re-planned, and the first plan of the chosen
+/// step for comparison.
+fn first_plan_note(b: &crate::tui::model::Bench, d: &Shown, width: usize) -> Vec<String> {
+    if !b.live.iter().any(|l| !l.finished && l.moved()) {
+        return Vec::new();
+    }
+    let mut note = "* re-planned from the fill record: stop at these readings".to_string();
+    if let Some(l) = b.live.get(b.selected).filter(|l| l.moved()) {
+        let (add, scale, stop) = l.planned;
+        note.push_str(&format!(
+            "; step {} as first planned: add {add:.2} g, scale {scale:.2} g, stop {} {}",
+            b.selected + 1,
+            d.pf(stop),
+            d.pu()
+        ));
+    }
+    wrap_words(&note, width)
+}
+
+/// The fill record under the steps: where it is, the composition so far against the plan,
+/// and the rest of the fill re-planned from the weighings.
+fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'static>> {
+    let d = &model.shown;
+    let Some(rec) = &doc.bench.record else {
+        return vec![Line::styled("no fill record yet: w types the empty cylinder's scale reading", theme.dim())];
+    };
+    let r = &rec.record;
+    let mut lines = vec![Line::raw(format!(
+        "record {} rev {}: {} weighings{}",
+        rec.id,
+        r.revision,
+        r.weighings.len(),
+        if r.finished.is_some() { ", finished" } else { "" }
+    ))];
+    let Some(prog) = &doc.bench.progress else { return lines };
+    let Ok(plan) = &doc.computed.plan else { return lines };
+    for c in prog.standing.cross_checks.iter().filter(|c| c.disagrees()) {
+        let text = format!(
+            "step {}: reading {} {u} but the weighing gives {} {u} (±{}): check gauge, scale, source; x corrects",
+            c.step + 1,
+            d.pf(c.reading_pa),
+            d.pf(c.from_masses_pa),
+            d.pf(c.allowed_pa),
+            u = d.pu()
+        );
+        lines.extend(wrap_words(&text, 78).into_iter().map(|l| Line::styled(l, theme.fg(Color::Red))));
+    }
+    if let Some(c) = r.corrections.last() {
+        let text = format!("{} correction(s); last: {} ({})", r.corrections.len(), c.entry, c.reason);
+        lines.push(Line::styled(clip(&text, 78), theme.dim()));
+    }
+    let mut so_far = String::from("so far vs plan:");
+    for (id, now, planned) in &prog.rows {
+        if *planned > 0.0 {
+            so_far.push_str(&format!(" {id} {}%", crate::units::signed((now / planned - 1.0) * 100.0, 2)));
+        }
+    }
+    lines.push(Line::raw(clip(&so_far, 78)));
+    match &prog.replan {
+        Ok(rp) if prog.weighed < plan.steps.len() => {
+            let verdict = if rp.on_target {
+                format!("on target; final {} {} settled", d.pf(rp.final_pressure_pa), d.pu())
+            } else {
+                let worst = rp
+                    .deviations
+                    .iter()
+                    .filter(|x| !x.2)
+                    .map(|x| format!("{} {}%", prog.rows[x.0].0, crate::units::signed(x.1 * 100.0, 2)));
+                format!("target can no longer be met: {}", worst.collect::<Vec<_>>().join(", "))
+            };
+            let style = if rp.on_target { Style::default() } else { theme.fg(Color::Red) };
+            lines.push(Line::styled(clip(&verdict, 78), style));
+        }
+        Ok(_) => lines.push(Line::raw(format!("fill complete: fillwright certify {}", rec.id))),
+        Err(e) => lines.push(Line::styled(clip(&format!("cannot re-plan: {e}"), 78), theme.fg(Color::Red))),
+    }
+    lines
+}
