@@ -72,9 +72,14 @@ pub fn library_to_open(flag: Option<&Path>, create: bool) -> Result<PathBuf, Str
         .ok_or_else(|| "no config folder could be found; give --library DIR".to_string())
 }
 
-/// The text of a recipe given as a file path, a library name or a demo recipe name,
+/// The text of a recipe given as a file path, a library name, a demo recipe name or `-`
+/// (standard input),
 /// with the name to use for it in messages.
 pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String), String> {
+    if name == "-" {
+        let text = crate::library::read_standard_input()?;
+        return Ok((text, crate::library::STANDARD_INPUT.to_string()));
+    }
     let as_path = Path::new(name);
     let looks_like_path = name.ends_with(".ron") || name.contains(std::path::MAIN_SEPARATOR) || name.contains('/');
     if looks_like_path || as_path.is_file() {

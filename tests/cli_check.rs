@@ -184,7 +184,7 @@ fn text_outputs_fit_80_columns() {
 #[test]
 fn a_folder_checked_on_every_core_gives_what_one_core_gives_in_the_same_order() {
     // Many distinct recipes: the demo blends at several fill pressures.
-    let dir = std::env::temp_dir().join(format!("fillwright-check-parallel-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-check-parallel-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     let mut count = 0;

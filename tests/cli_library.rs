@@ -1,10 +1,12 @@
 //! The library commands as a user runs them.
 
+mod common;
+
 use std::path::PathBuf;
 use std::process::{Command, Output};
 
 fn fresh(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-cli-lib-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-cli-lib-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     dir
 }

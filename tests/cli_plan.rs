@@ -160,7 +160,7 @@ fn gerg_on_uncovered_gases_is_refused_by_name() {
 
 #[test]
 fn the_fill_sheet_uses_the_units_of_the_settings() {
-    let config = std::env::temp_dir().join(format!("fillwright-plan-units-{}", std::process::id()));
+    let config = common::temp_dir().join(format!("fillwright-plan-units-{}", std::process::id()));
     std::fs::create_dir_all(&config).unwrap();
     std::fs::write(config.join("settings.ron"), "(pressure_unit: MPa, temperature_unit: K)\n").unwrap();
     let o = Command::new(env!("CARGO_BIN_EXE_fillwright"))
@@ -218,7 +218,7 @@ fn ppm_levels_keep_their_columns_apart_and_read_as_typed() {
 
 #[test]
 fn file_errors_speak_of_fields_not_of_program_types() {
-    let dir = std::env::temp_dir().join(format!("fillwright-types-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-types-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let file = dir.join("missing.ron");
     std::fs::write(
@@ -236,7 +236,7 @@ fn file_errors_speak_of_fields_not_of_program_types() {
 
 #[test]
 fn two_balance_gases_are_named_before_a_tolerance_on_one_of_them() {
-    let dir = std::env::temp_dir().join(format!("fillwright-twobal-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-twobal-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let file = dir.join("twobal.ron");
     std::fs::write(
@@ -253,7 +253,7 @@ fn two_balance_gases_are_named_before_a_tolerance_on_one_of_them() {
 
 #[test]
 fn plan_with_a_record_replans_the_rest_of_a_fill_that_went_over() {
-    let config = std::env::temp_dir().join(format!("fillwright-rest-{}", std::process::id()));
+    let config = common::temp_dir().join(format!("fillwright-rest-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&config);
     assert!(common::run_in(&config, &["list"]).status.success());
     let records = config.join("library/records");
@@ -327,7 +327,7 @@ fn plan_with_a_record_replans_the_rest_of_a_fill_that_went_over() {
 
 #[test]
 fn plan_with_a_record_of_pressure_readings_shows_its_finished_steps_without_masses() {
-    let config = std::env::temp_dir().join(format!("fillwright-rest-manometric-{}", std::process::id()));
+    let config = common::temp_dir().join(format!("fillwright-rest-manometric-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&config);
     assert!(common::run_in(&config, &["list"]).status.success());
     let records = config.join("library/records");

@@ -165,7 +165,7 @@ fn help_documents_every_option() {
 
 #[test]
 fn broken_user_catalogue_is_reported_with_file_line_and_column() {
-    let dir = std::env::temp_dir().join(format!("fillwright-test-cat-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-test-cat-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     std::fs::write(dir.join("gases.ron"), "Catalogue(\n  gases: [\n    Gas(id: \"X\", name: 5),\n  ],\n)\n").unwrap();
     let o = Command::new(env!("CARGO_BIN_EXE_fillwright"))
@@ -181,7 +181,7 @@ fn broken_user_catalogue_is_reported_with_file_line_and_column() {
 
 #[test]
 fn settings_choose_the_default_model_and_are_checked() {
-    let dir = std::env::temp_dir().join(format!("fillwright-test-settings-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-test-settings-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let state = |dir: &std::path::Path, extra: &[&str]| {
         Command::new(env!("CARGO_BIN_EXE_fillwright"))
@@ -206,7 +206,7 @@ fn settings_choose_the_default_model_and_are_checked() {
 
 #[test]
 fn settings_written_by_the_program_read_back() {
-    let dir = std::env::temp_dir().join(format!("fillwright-test-settings-save-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-test-settings-save-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     // This process-wide variable is read only by config::config_dir, and no other test in
     // this binary reads it in-process (the others pass it to child processes).

@@ -13,7 +13,7 @@ use fillwright::library::{check_name, Library, LibraryError, OnConflict};
 
 /// A config folder of the test's own with the demo library copied in.
 fn config(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-hard-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-hard-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     let o = run_in(&dir, &["list"]);

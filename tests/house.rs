@@ -55,6 +55,67 @@ fn views_and_overlays_do_not_import_the_dispatcher() {
     assert!(!update.contains("ratatui"), "tui/update.rs draws");
 }
 
+#[test]
+fn tests_make_their_temporary_files_in_the_scratch_folder_removed_at_exit() {
+    // `common::temp_dir()` is one folder per test process, removed when it ends; a test
+    // that used the system's temporary folder directly would leave its files behind.
+    let tests = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests");
+    let mut files = Vec::new();
+    sources(&tests, &mut files);
+    assert!(files.len() > 20);
+    for p in files.iter().filter(|p| !p.ends_with("common/mod.rs") && !p.ends_with("house.rs")) {
+        let text = std::fs::read_to_string(p).unwrap();
+        assert!(!text.contains("std::env::temp_dir()"), "{}: use common::temp_dir()", p.display());
+    }
+}
+
+/// A `major.minor[.patch]` version as numbers, for comparing.
+fn version(v: &str) -> (u64, u64) {
+    let mut parts = v.split('.').map(|p| p.parse::<u64>().unwrap_or(0));
+    (parts.next().unwrap_or(0), parts.next().unwrap_or(0))
+}
+
+#[test]
+fn the_declared_minimum_rust_version_is_what_the_locked_dependencies_need() {
+    // No other toolchain can be fetched on the build machines, so the declared minimum is
+    // checked against what every locked dependency built for this platform declares: it
+    // must be the highest of them (lower would not build; higher would turn users away).
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let cargo = std::env::var("CARGO").unwrap_or_else(|_| "cargo".into());
+    let target = if cfg!(target_arch = "aarch64") { "aarch64-unknown-linux-gnu" } else { "x86_64-unknown-linux-gnu" };
+    let out = std::process::Command::new(cargo)
+        .args(["metadata", "--format-version", "1", "--locked", "--offline", "--filter-platform", target])
+        .current_dir(root)
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "cargo metadata: {}", String::from_utf8_lossy(&out.stderr));
+    let m: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let built: std::collections::HashSet<&str> =
+        m["resolve"]["nodes"].as_array().unwrap().iter().filter_map(|n| n["id"].as_str()).collect();
+    let mut declared = None;
+    let mut needed = ((0, 0), String::new());
+    for p in m["packages"].as_array().unwrap() {
+        let (Some(id), Some(rv)) = (p["id"].as_str(), p["rust_version"].as_str()) else { continue };
+        if p["name"] == "fillwright" {
+            declared = Some(version(rv));
+        } else if built.contains(id) && version(rv) > needed.0 {
+            needed = (version(rv), format!("{} {}", p["name"].as_str().unwrap(), p["version"].as_str().unwrap()));
+        }
+    }
+    let declared = declared.expect("Cargo.toml declares rust-version");
+    assert_eq!(
+        declared, needed.0,
+        "Cargo.toml's rust-version is {declared:?}, but the locked dependencies need {:?} ({}): make them agree",
+        needed.0, needed.1
+    );
+    // The README and the contributor guide say the same.
+    let minimum = format!("{}.{}", declared.0, declared.1);
+    for doc in ["README.md", "DEVELOPERS.md"] {
+        let text = std::fs::read_to_string(root.join(doc)).unwrap();
+        assert!(text.contains(&format!("Rust {minimum}")), "{doc} does not give Rust {minimum} as the minimum");
+    }
+}
+
 /// Each function's name and length in lines, by counting braces from its signature (the
 /// code's strings and comments hold no unbalanced braces: rustfmt and the reviewers keep
 /// it so; a miscount shows here as a function that cannot be found or is absurdly long).

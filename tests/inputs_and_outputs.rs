@@ -11,7 +11,7 @@ use std::process::{Command, Output, Stdio};
 use fillwright::library::{Library, LibraryError, OnConflict};
 
 fn fresh(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-io-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-io-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir

@@ -1,5 +1,7 @@
 //! The recipe library: canonical form, revisions, durability, names, sharing.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -8,7 +10,7 @@ use fillwright::recipe::{canonical, demo, BeforeFill, ComponentLine, CylinderLin
 use proptest::prelude::*;
 
 fn temp_dir(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-lib-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-lib-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir

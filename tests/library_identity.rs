@@ -14,7 +14,7 @@ use fillwright::library::{Library, LibraryError, OnConflict};
 const T1: &str = "2026-12-01T10:00:00Z";
 
 fn config(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-identity-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-identity-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     assert!(common::run_in(&dir, &["list"]).status.success());

@@ -2,6 +2,8 @@
 //! an independent implementation): fixture tests/fixtures/coolprop_multifluid.json, made
 //! by tests/reference/make_multifluid_fixture.py.
 
+mod common;
+
 use fillwright::gas::Catalogue;
 use fillwright::thermo::multifluid::Mixture;
 use serde_json::Value;
@@ -123,7 +125,7 @@ fn the_fill_sheet_says_where_the_model_estimates() {
     let run = |mix: &str| {
         let o = std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))
             .args(["plan", "--mix", mix, "--volume", "10L", "--pressure", "150bar"])
-            .env("FILLWRIGHT_CONFIG", std::env::temp_dir().join(format!("fillwright-mf-{}", std::process::id())))
+            .env("FILLWRIGHT_CONFIG", common::temp_dir().join(format!("fillwright-mf-{}", std::process::id())))
             .env_remove("FILLWRIGHT_LIBRARY")
             .output()
             .unwrap();

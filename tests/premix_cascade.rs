@@ -157,7 +157,7 @@ fn the_plan_json_carries_every_stage() {
 
 #[test]
 fn the_fill_sheet_is_written_as_a_pdf_with_its_premix_stages() {
-    let dir = std::env::temp_dir().join(format!("fillwright-sheet-pdf-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-sheet-pdf-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let pdf = dir.join("sheet.pdf");
     let out = common::run_fillwright(

@@ -2,6 +2,8 @@
 //! (regenerate with `python3 tools/update_readme.py`), the README stays short, and every
 //! link resolves.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 
 use fillwright::gas::Catalogue;
@@ -91,7 +93,7 @@ fn accuracy_rows_judge_by_gerg_where_it_covers() {
 
 #[test]
 fn fill_sheet_and_screening_examples_are_current() {
-    let config = std::env::temp_dir().join(format!("fillwright-readme-{}", std::process::id()));
+    let config = common::temp_dir().join(format!("fillwright-readme-{}", std::process::id()));
     let runs: [&[&str]; 6] = [
         &["plan", "flue-gas-span"],
         &["check", "lpg-in-methane"],

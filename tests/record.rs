@@ -120,7 +120,7 @@ fn adjacent_masses_share_a_reading() {
 // --- the command line ---
 
 fn fresh(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-record-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-record-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir

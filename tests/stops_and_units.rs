@@ -65,7 +65,7 @@ fn si_prefixes_are_case_sensitive_and_the_unclear_ones_refused() {
     assert_eq!(o.status.code(), Some(1));
     assert!(err(&o).contains("accepted"), "{}", err(&o));
     // In a recipe file too.
-    let dir = std::env::temp_dir().join(format!("fillwright-prefix-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-prefix-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let recipe = dir.join("r.ron");
     let text = common::recipe_text("r", &["CO2".into(), "N2".into()], &[0.1, 0.9], 10.0, 150.0, 288.15, 293.15)
@@ -80,7 +80,7 @@ fn si_prefixes_are_case_sensitive_and_the_unclear_ones_refused() {
 /// Run with standard output on /dev/full.
 fn to_dev_full(args: &[&str]) -> Output {
     let full = std::fs::OpenOptions::new().write(true).open("/dev/full").unwrap();
-    let dir = std::env::temp_dir().join(format!("fillwright-full-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-full-{}", std::process::id()));
     Command::new(env!("CARGO_BIN_EXE_fillwright"))
         .args(args)
         .env("FILLWRIGHT_CONFIG", &dir)

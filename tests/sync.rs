@@ -31,7 +31,7 @@ struct Lab {
 impl Lab {
     /// A bare repository and two benches cloned from it, the first seeded with the demos.
     fn new(tag: &str) -> Lab {
-        let root = std::env::temp_dir().join(format!("fillwright-sync-{tag}-{}", std::process::id()));
+        let root = common::temp_dir().join(format!("fillwright-sync-{tag}-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&root);
         std::fs::create_dir_all(&root).unwrap();
         assert!(git(&root, &["init", "--quiet", "--bare", "-b", "main", "lab.git"]).status.success());
@@ -160,7 +160,7 @@ fn several_saves_on_each_bench_make_one_gap_free_history() {
 
 #[test]
 fn a_library_without_a_remote_or_outside_git_is_refused_with_a_message() {
-    let root = std::env::temp_dir().join(format!("fillwright-sync-none-{}", std::process::id()));
+    let root = common::temp_dir().join(format!("fillwright-sync-none-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&root);
     std::fs::create_dir_all(root.join("lib")).unwrap();
     let lib = root.join("lib");

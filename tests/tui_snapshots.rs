@@ -1,11 +1,13 @@
 //! Snapshots of every view at 80×24 and 120×40 on the demo recipes (insta; review changes
 //! with `cargo insta review`, or regenerate with INSTA_UPDATE=always cargo test --test tui_snapshots).
 
+mod common;
+
 use fillwright::tui::scenes;
 
 #[test]
 fn every_view_at_80_by_24_and_120_by_40() {
-    let dir = std::env::temp_dir().join(format!("fillwright-snap-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-snap-{}", std::process::id()));
     for (name, scene) in scenes::scenes() {
         for (w, h) in [(80u16, 24u16), (120, 40)] {
             let buffer = scenes::render(&dir, scene.as_ref(), w, h, false);
@@ -17,7 +19,7 @@ fn every_view_at_80_by_24_and_120_by_40() {
 
 #[test]
 fn a_terminal_below_the_minimum_says_so() {
-    let dir = std::env::temp_dir().join(format!("fillwright-snap-small-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-snap-small-{}", std::process::id()));
     let scenes = scenes::scenes();
     let buffer = scenes::render(&dir, scenes[1].1.as_ref(), 50, 12, false);
     let text = scenes::text(&buffer);
@@ -27,7 +29,7 @@ fn a_terminal_below_the_minimum_says_so() {
 
 #[test]
 fn no_colour_means_no_colour() {
-    let dir = std::env::temp_dir().join(format!("fillwright-snap-nocolor-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-snap-nocolor-{}", std::process::id()));
     for (_, scene) in scenes::scenes() {
         let buffer = scenes::render(&dir, scene.as_ref(), 80, 24, false);
         for cell in buffer.content() {
@@ -40,7 +42,7 @@ fn no_colour_means_no_colour() {
 #[test]
 fn the_screen_shows_the_units_of_the_settings() {
     use fillwright::units::{PressureUnit, Shown, TemperatureUnit};
-    let dir = std::env::temp_dir().join(format!("fillwright-snap-units-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-snap-units-{}", std::process::id()));
     let scenes = scenes::scenes();
     let sheet = scenes.iter().find(|s| s.0 == "fill-sheet").unwrap();
     let shown = Shown { pressure: PressureUnit::Psi, temperature: TemperatureUnit::F };

@@ -1,6 +1,8 @@
 //! End to end: the real binary in a real terminal (tmux), as a blender would use it.
 //! Needs tmux (`.ci/run` installs it).
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::time::{Duration, Instant};
@@ -98,7 +100,7 @@ impl Drop for Tmux {
 }
 
 fn fresh_config(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-e2e-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-e2e-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     dir
 }
@@ -373,6 +375,27 @@ fn a_fill_survives_a_dropped_session_and_a_slip_is_corrected_on_the_sheet() {
     let file = std::fs::read_dir(&records).unwrap().flatten().find(|e| e.path().is_file()).unwrap().path();
     let saved = std::fs::read_to_string(file).unwrap();
     assert!(saved.contains("reason: \"typed kg for g\"") && saved.contains("\"13440.31g\""), "{saved}");
+    t.keys(&["q"]);
+    t.wait_exit();
+}
+
+#[test]
+fn a_dumb_terminal_is_refused_with_the_command_line_offered_and_nothing_written() {
+    let config = fresh_config("dumb");
+    let t = Tmux::new("dumb");
+    // A real terminal, but one that cannot move the cursor.
+    let bin = env!("CARGO_BIN_EXE_fillwright");
+    let cmd = format!("env TERM=dumb FILLWRIGHT_CONFIG={} {bin}; echo exit=$?; sleep 30", config.display());
+    t.new_session("bench", ("80", "24"), &cmd);
+    let s = t.wait_for("exit=").replace('\n', "");
+    assert!(s.contains("exit=1"), "{s}");
+    assert!(s.contains("fillwright: the screen needs an interactive terminal, and TERM is dumb"), "{s}");
+    assert!(s.contains("fillwright plan NAME"), "{s}");
+    assert!(!config.exists(), "a refused start wrote {}", config.display());
+    // The same terminal with a usable TERM opens the screen.
+    t.kill_session();
+    t.start(&config, "");
+    t.wait_for("Recipes in");
     t.keys(&["q"]);
     t.wait_exit();
 }

@@ -15,7 +15,7 @@ fn stamp() -> String {
 }
 
 fn setup(tag: &str) -> (Model, Context, PathBuf) {
-    let dir = std::env::temp_dir().join(format!("fillwright-tui-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-tui-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     let library = Library::at(&dir.join("library")).unwrap();
     let mut ctx = Context {
@@ -594,7 +594,7 @@ fn session_at(dir: &std::path::Path, drafts: &std::path::Path, session: &str) ->
 
 #[test]
 fn drafts_belong_to_a_file_and_a_session() {
-    let root = std::env::temp_dir().join(format!("fillwright-tui-draft-id-{}", std::process::id()));
+    let root = common::temp_dir().join(format!("fillwright-tui-draft-id-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&root);
     let drafts = root.join("drafts");
     let (d1, d2) = (root.join("d1"), root.join("d2"));
@@ -887,7 +887,7 @@ fn a_deleted_recipe_comes_back_from_the_trash_on_the_screen() {
 
 #[test]
 fn the_result_pane_at_60_by_20_keeps_its_columns_whole() {
-    let dir = std::env::temp_dir().join(format!("fillwright-tui-r60-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-tui-r60-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     let scenes = fillwright::tui::scenes::scenes();
     let (_, editor) = scenes.iter().find(|(n, _)| *n == "editor").unwrap();

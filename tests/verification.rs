@@ -98,7 +98,7 @@ fn consistency_is_judged_at_twice_the_combined_uncertainty() {
 // --- the command line ---
 
 fn fresh(tag: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fillwright-verification-{tag}-{}", std::process::id()));
+    let dir = common::temp_dir().join(format!("fillwright-verification-{tag}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir

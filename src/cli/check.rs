@@ -19,9 +19,15 @@ use crate::units::{self, Shown};
 #[derive(Debug, Args)]
 #[command(after_help = "Give recipes (library names, demo names, .ron files or folders of them), or the order \
                         with --mix, --volume, --pressure and --temp.\n\n\
-                        Exit status: 0 when nothing is at stop, 3 when something is, 1 for refused input.")]
+                        Exit status: 0 when nothing is at stop, 3 when something is, 1 for refused input.\n\n\
+                        Examples:\n  \
+                        fillwright check flue-gas-span lpg-in-methane\n  \
+                        fillwright check ~/.config/fillwright/library --format csv\n  \
+                        fillwright check --mix \"CH4=2.2%,O2=20.9%,N2=balance\" --volume 10L \\\n      \
+                        --pressure 150bar --temp 15C")]
 pub struct CheckArgs {
-    /// Recipes: library names, demo recipe names, .ron files, or folders of .ron files.
+    /// Recipes: library names, demo recipe names, .ron files, folders of .ron files, or `-`
+    /// (standard input).
     #[arg(value_name = "RECIPE", conflicts_with = "mix")]
     pub recipes: Vec<String>,
     #[command(flatten)]

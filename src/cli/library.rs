@@ -240,8 +240,12 @@ pub fn tidy(args: &TidyArgs) -> Result<(), Failure> {
 }
 
 #[derive(Debug, Args)]
+#[command(after_help = "Examples:\n  \
+                        fillwright import kiln-span.ron\n  \
+                        fillwright import - --name kiln-span < kiln-span.ron")]
 pub struct ImportArgs {
-    /// Recipe file to bring into the library.
+    /// Recipe file to bring into the library; `-` reads it from standard input (then
+    /// --name is needed).
     pub file: PathBuf,
     /// Library name (default: the file name without .ron).
     #[arg(long)]
@@ -252,6 +256,13 @@ pub struct ImportArgs {
 
 pub fn import(args: &ImportArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
+    if args.file.as_os_str() == "-" {
+        let Some(name) = &args.name else {
+            return Err(Failure::Usage("a recipe read from standard input (`-`) needs --name NAME".into()));
+        };
+        let text = crate::library::read_standard_input().map_err(Refused)?;
+        return report_save(name, lib.import_text(&text, crate::library::STANDARD_INPUT, name, &clock::now_utc())?);
+    }
     let name = match &args.name {
         Some(n) => n.clone(),
         None => args.file.file_stem().and_then(|s| s.to_str()).unwrap_or_default().to_string(),
@@ -281,18 +292,30 @@ pub fn export(args: &ExportArgs) -> Result<(), Failure> {
 }
 
 #[derive(Debug, Args)]
-pub struct TwoNames {
+pub struct CopyArgs {
+    /// The library recipe to copy (its current revision).
     pub from: String,
+    /// The name of the copy: a new recipe, with its own history from revision 1.
     pub to: String,
     #[command(flatten)]
     pub place: Place,
 }
 
-pub fn copy(args: &TwoNames) -> Result<(), Failure> {
+#[derive(Debug, Args)]
+pub struct RenameArgs {
+    /// The library recipe to rename.
+    pub from: String,
+    /// Its new name (not taken by another recipe); its history follows it.
+    pub to: String,
+    #[command(flatten)]
+    pub place: Place,
+}
+
+pub fn copy(args: &CopyArgs) -> Result<(), Failure> {
     report_save(&args.to, args.place.open()?.duplicate(&args.from, &args.to, &clock::now_utc())?)
 }
 
-pub fn rename(args: &TwoNames) -> Result<(), Failure> {
+pub fn rename(args: &RenameArgs) -> Result<(), Failure> {
     args.place.open()?.rename(&args.from, &args.to)?;
     outln!("renamed {} to {}", args.from, args.to);
     Ok(())
@@ -300,6 +323,7 @@ pub fn rename(args: &TwoNames) -> Result<(), Failure> {
 
 #[derive(Debug, Args)]
 pub struct DeleteArgs {
+    /// The library recipe to move to the trash (`undelete` brings it back).
     pub name: String,
     #[command(flatten)]
     pub place: Place,

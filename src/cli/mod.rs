@@ -19,6 +19,7 @@ macro_rules! outln {
 mod check;
 mod gases;
 mod library;
+mod manual;
 pub mod plan;
 pub mod record;
 mod state;
@@ -81,9 +82,9 @@ enum Command {
     /// Write a library recipe to a file.
     Export(library::ExportArgs),
     /// Copy a library recipe under a new name.
-    Copy(library::TwoNames),
+    Copy(library::CopyArgs),
     /// Rename a library recipe (with its history).
-    Rename(library::TwoNames),
+    Rename(library::RenameArgs),
     /// Move a library recipe to the trash folder (recoverable).
     Delete(library::DeleteArgs),
     /// Bring a deleted recipe back from the trash (the most recently deleted of that name).
@@ -105,8 +106,9 @@ enum Command {
     Sync(library::SyncArgs),
     /// Print the shell completion script (bash, zsh, fish, elvish or powershell).
     Completions(CompletionsArgs),
-    /// Print the manual page (roff, for man).
-    Manual,
+    /// Print a manual page (roff, for man): the program's, or one command's; --dir writes
+    /// them all.
+    Manual(manual::ManualArgs),
 }
 
 #[derive(Debug, Args)]
@@ -207,11 +209,20 @@ fn parse() -> Result<Cli, ExitCode> {
     match Cli::try_parse() {
         Ok(c) => Ok(c),
         Err(e) if e.use_stderr() => {
-            let _ = e.print();
+            // One prefix for every message of the program: clap's "error: " becomes ours.
+            let text = e.render().to_string();
+            eprint!("{}", text.strip_prefix("error: ").map_or(text.clone(), |rest| format!("fillwright: {rest}")));
             Err(ExitCode::from(2))
         }
         Err(e) => {
-            out!("{}", e.render().ansi());
+            // Styled only for a terminal that accepts colour; piped help is plain text.
+            use std::io::IsTerminal;
+            let styled = std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
+            if styled {
+                out!("{}", e.render().ansi());
+            } else {
+                out!("{}", e.render());
+            }
             Err(match stdout_failure() {
                 Some(why) => {
                     eprintln!("fillwright: standard output could not be written: {why}");
@@ -229,6 +240,13 @@ pub fn main() -> ExitCode {
         Ok(cli) => cli,
         Err(code) => return code,
     };
+    // The screen is refused before anything is read, created or copied.
+    if matches!(cli.command, None | Some(Command::Edit(_))) {
+        if let Some(why) = crate::tui::unusable_terminal() {
+            eprintln!("fillwright: {why}");
+            return ExitCode::from(1);
+        }
+    }
     // A --library before the command holds for the command too (as the environment would).
     if let Some(dir) = cli.library.as_ref().filter(|_| cli.command.is_some()) {
         if cli.create_library {
@@ -267,9 +285,7 @@ pub fn main() -> ExitCode {
             out!("{}", String::from_utf8_lossy(&script));
             Ok(())
         }
-        Some(Command::Manual) => clap_mangen::Man::new(Cli::command())
-            .render(&mut std::io::stdout())
-            .map_err(|e| Refused(format!("the manual page could not be written: {e}")).into()),
+        Some(Command::Manual(args)) => manual::run(&args, Cli::command()),
     };
     // Output that never reached its reader is a failure, whatever the command concluded.
     let result = match (result, stdout_failure()) {

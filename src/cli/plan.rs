@@ -18,10 +18,14 @@ use crate::units::{self, bar};
 #[command(after_help = "Give a recipe (a library name, a demo recipe name or a .ron file), or the order with \
                         --mix, --volume, --pressure and --temp.\n\n\
                         Examples:\n  fillwright plan flue-gas-span\n  \
-                        fillwright plan mixtures/pipeline-ng-9.ron --fill-temp 28C --model pr\n  \
-                        fillwright plan --mix \"CO2=15%,N2=balance\" --volume 10L --pressure 150bar --temp 15C --format csv")]
+                        fillwright plan pipeline-ng-9 --fill-temp 28C --model pr\n  \
+                        fillwright plan --mix \"CO2=15%,N2=balance\" --volume 10L \\\n      \
+                        --pressure 150bar --temp 15C --format csv\n  \
+                        fillwright plan flue-gas-span --record 2026-12-04-flue-gas-span\n  \
+                        fillwright plan - < my-recipe.ron")]
 pub struct PlanArgs {
-    /// Recipe: a name in the library, a demo recipe name, or a path to a .ron file.
+    /// Recipe: a name in the library, a demo recipe name, a path to a .ron file, or `-`
+    /// (standard input).
     #[arg(value_name = "RECIPE", conflicts_with = "mix")]
     pub recipe: Option<String>,
     #[command(flatten)]

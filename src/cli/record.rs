@@ -15,8 +15,13 @@ use crate::record::{self, Record};
 use crate::thermo::Model;
 
 #[derive(Debug, Args)]
+#[command(after_help = "Examples:\n  \
+                        fillwright records flue-gas-span\n  \
+                        fillwright certify 2026-12-04-flue-gas-span --pdf certificate.pdf\n  \
+                        fillwright certify my-fill.ron --format json\n  \
+                        fillwright certify 2026-12-04-flue-gas-span --in-progress")]
 pub struct CertifyArgs {
-    /// A record id in the library's records/ folder, or a record file.
+    /// A record id in the library's records/ folder, a record file, or `-` (standard input).
     pub record: String,
     #[command(flatten)]
     pub place: Place,
@@ -50,6 +55,13 @@ pub struct CertifyArgs {
 }
 
 fn find(args: &CertifyArgs) -> Result<Found, Refused> {
+    if args.record == "-" {
+        // A record piped in belongs to no library: its sources are looked up as written.
+        let text = crate::library::read_standard_input().map_err(Refused)?;
+        let origin = crate::library::STANDARD_INPUT.to_string();
+        let record = Record::parse(&text, &origin)?;
+        return Ok(Found { id: "stdin".into(), origin, text, record, library: None });
+    }
     if looks_like_path(&args.record) || Path::new(&args.record).is_file() {
         let path = Path::new(&args.record);
         let text = crate::library::read_limited(path)?;

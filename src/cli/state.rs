@@ -12,8 +12,11 @@ use crate::units::{self, bar, litres, AmountInput, Shown, Sig, R};
 
 #[derive(Debug, Args)]
 #[command(after_help = "Give two of --volume, --pressure and --amount; the third is solved.\n\n\
-                  Examples:\n  fillwright state --mix \"CO2=15%,N2=balance\" --temp 15C --volume 10L --pressure 150bar\n  \
-                  fillwright state --mix CH4 --temp 288.15K --volume 50L --amount 8kg --model pr --format json")]
+                  Examples:\n  \
+                  fillwright state --mix \"CO2=15%,N2=balance\" --temp 15C \\\n      \
+                  --volume 10L --pressure 150bar\n  \
+                  fillwright state --mix CH4 --temp 288.15K --volume 50L --amount 8kg \\\n      \
+                  --model pr --format json")]
 pub struct StateArgs {
     /// Mixture: GAS=AMOUNT pairs separated by commas, amounts in ppb, ppm, % or a bare mole
     /// fraction, at most one GAS=balance; or a single pure gas. E.g. "CO=500ppm,CO2=15%,N2=balance".

@@ -747,7 +747,13 @@ impl Library {
     /// Bring a recipe file into the library under `name`.
     pub fn import(&self, file: &Path, name: &str, now: &str) -> Result<Saved, LibraryError> {
         let text = read_limited(file)?;
-        let recipe = Recipe::parse(&text, &file.display().to_string())?;
+        self.import_text(&text, &file.display().to_string(), name, now)
+    }
+
+    /// Save recipe text read from elsewhere (standard input) under `name`; `origin` names it
+    /// in messages.
+    pub fn import_text(&self, text: &str, origin: &str, name: &str, now: &str) -> Result<Saved, LibraryError> {
+        let recipe = Recipe::parse(text, origin)?;
         self.save_as(name, &recipe, now)
     }
 
@@ -854,6 +860,34 @@ fn kind_allowed(meta: &std::fs::Metadata) -> Result<(), String> {
 /// non-blocking and looked at before a byte is read).
 pub fn read_limited(path: &Path) -> Result<String, LibraryError> {
     read_regular(path, MAX_RECIPE_BYTES)
+}
+
+/// What `-` stands for in messages: a recipe or record read from standard input.
+pub const STANDARD_INPUT: &str = "standard input";
+
+/// A recipe or record given as `-`: standard input read whole, refused when it is a
+/// terminal (nothing was piped in), larger than a recipe can be, or not UTF-8 text.
+pub fn read_standard_input() -> Result<String, String> {
+    use std::io::{IsTerminal, Read};
+    let stdin = std::io::stdin();
+    if stdin.is_terminal() {
+        return Err("`-` reads the file from standard input, which is a terminal here: pipe or redirect \
+                    the file in, e.g. `fillwright plan - < recipe.ron`"
+            .into());
+    }
+    let mut bytes = Vec::new();
+    stdin
+        .lock()
+        .take(MAX_RECIPE_BYTES as u64 + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| format!("{STANDARD_INPUT} could not be read: {e}"))?;
+    if bytes.len() > MAX_RECIPE_BYTES {
+        return Err(format!(
+            "{STANDARD_INPUT} holds more than {} KiB; a recipe or record is far smaller",
+            MAX_RECIPE_BYTES / 1024
+        ));
+    }
+    String::from_utf8(bytes).map_err(|_| format!("{STANDARD_INPUT} is not UTF-8 text; it must be a RON text file"))
 }
 
 /// As [`read_limited`], for files of at most `limit` bytes (settings, catalogues).

@@ -124,7 +124,34 @@ pub fn place_of(target: &str, library: Option<&Path>) -> Result<(PathBuf, String
 
 /// Run the screen on the library at `dir`, opening `open` when given. `seed` copies the
 /// demo recipes into an empty library (not into the folder of a recipe file).
+/// Why the screen cannot be drawn here, if it cannot: standard input and output must be a
+/// terminal, and `TERM` one that can be addressed (not unset, empty or `dumb`). Checked
+/// before anything is read or written, so a refused start leaves no trace.
+pub fn unusable_terminal() -> Option<String> {
+    use std::io::IsTerminal;
+    let term = std::env::var("TERM").unwrap_or_default();
+    let why = if !std::io::stdin().is_terminal() {
+        "standard input is not a terminal"
+    } else if !std::io::stdout().is_terminal() {
+        "standard output is not a terminal"
+    } else if term.is_empty() {
+        "TERM is not set"
+    } else if term == "dumb" {
+        "TERM is dumb (a terminal that cannot move the cursor)"
+    } else {
+        return None;
+    };
+    Some(format!(
+        "the screen needs an interactive terminal, and {why}. Every job also runs from the command line: \
+         `fillwright plan NAME`, `fillwright check NAME`, `fillwright records`, `fillwright certify ID` \
+         (`fillwright --help` lists them all)"
+    ))
+}
+
 pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
+    if let Some(why) = unusable_terminal() {
+        return Err(why);
+    }
     let catalogue = config::load_catalogue()?;
     // A settings file that cannot be used is said on the status line; the screen opens
     // with the defaults so the library is never out of reach.

@@ -3,12 +3,39 @@
 // Each test crate uses a part of these.
 #![allow(dead_code)]
 
+use std::path::PathBuf;
 use std::process::{Command, Output};
+use std::sync::OnceLock;
+
+/// This test process's scratch folder, removed when the process ends (passed or failed).
+static SCRATCH: OnceLock<PathBuf> = OnceLock::new();
+
+extern "C" fn remove_scratch() {
+    if let Some(root) = SCRATCH.get() {
+        let _ = std::fs::remove_dir_all(root);
+    }
+}
+
+/// The folder the tests make their temporary files in: one per test process under the
+/// system's temporary folder, removed at exit, so that a run leaves nothing behind.
+pub fn temp_dir() -> PathBuf {
+    SCRATCH
+        .get_or_init(|| {
+            let root = std::env::temp_dir().join(format!("fillwright-tests-{}", std::process::id()));
+            std::fs::create_dir_all(&root).expect("the scratch folder can be made");
+            // SAFETY: registers a plain function without arguments to run at exit.
+            unsafe {
+                libc::atexit(remove_scratch);
+            }
+            root
+        })
+        .clone()
+}
 
 /// Run the program with `args` and an empty config folder of its own (named by `tag`), so
 /// that no user library, settings or catalogue of the machine takes part.
 pub fn run_fillwright(tag: &str, args: &[&str]) -> Output {
-    run_in(&std::env::temp_dir().join(format!("fillwright-{tag}-empty-{}", std::process::id())), args)
+    run_in(&temp_dir().join(format!("fillwright-{tag}-empty-{}", std::process::id())), args)
 }
 
 /// Run the program with `args` and the config folder `config` (a library, settings and
