@@ -2,13 +2,13 @@
 //! its recipe's revision and hash, its sources looked up (the source library, premix
 //! records), the composition evaluated, and the verifications by analysis attached. Used by
 //! `fillwright certify`, `fillwright verify` and the screen alike; what is printed is the
-//! certificate's ([`crate::certificate`]).
+//! certificate's ([`crate::print::certificate`]).
 
-use crate::certificate::{Certificate, RecipeCheck, Target};
 use crate::config;
 use crate::gas::Catalogue;
 use crate::library::records::Lookup;
 use crate::library::Library;
+use crate::print::certificate::{Certificate, RecipeCheck, Target};
 use crate::recipe::Recipe;
 use crate::record::{self, Checked, Record};
 use crate::thermo::Model;
@@ -102,7 +102,7 @@ fn document(
     catalogue: &Catalogue,
     settings: &crate::settings::Resolved,
     issued: Option<&str>,
-) -> crate::certificate::Document {
+) -> crate::print::certificate::Document {
     let Made { evaluation, volume_m3, model } = made;
     let issued = issued.map(str::to_string).unwrap_or_else(|| crate::library::clock::now_utc()[..10].to_string());
     let year = issued.get(..4).unwrap_or("");
@@ -136,7 +136,7 @@ fn document(
     }
     cautions.push(format!("valid for {months} months from issue if kept between 0 and 40 °C (common practice)"));
     cautions.push(crate::checks::CAUTIONS[1].to_string());
-    crate::certificate::Document {
+    crate::print::certificate::Document {
         number,
         valid_until: add_months(&issued, months).unwrap_or_default(),
         issued,
@@ -193,12 +193,12 @@ pub struct Certified {
     pub recipe_check: RecipeCheck,
     pub targets: Vec<Target>,
     pub remarks: Vec<String>,
-    pub verifications: Vec<crate::certificate::Verified>,
+    pub verifications: Vec<crate::print::certificate::Verified>,
     pub combine_verification: bool,
     /// Why the fill is not finished, if it is not (the certificate is then refused, or
     /// printed as the composition so far with `--in-progress`).
     pub unfinished: Option<String>,
-    pub document: crate::certificate::Document,
+    pub document: crate::print::certificate::Document,
 }
 
 /// Why a record is not a finished fill: an addition recorded but not weighed; or, for a
@@ -396,7 +396,7 @@ impl Certified {
                 Err(why) => {
                     let text = library.verification_path(&name).ok().and_then(|p| std::fs::read_to_string(p).ok());
                     if text.is_some_and(|t| t.contains(id.as_str())) {
-                        self.verifications.push(crate::certificate::Verified { file: name, outcome: Err(why) });
+                        self.verifications.push(crate::print::certificate::Verified { file: name, outcome: Err(why) });
                     }
                     continue;
                 }
@@ -424,7 +424,7 @@ impl Certified {
                 .check(catalogue, &lookup, &text, &origin)
                 .map_err(|e| e.message)
                 .and_then(|c| crate::verification::verify(&c).map_err(|e| e.to_string()));
-            self.verifications.push(crate::certificate::Verified { file: name, outcome });
+            self.verifications.push(crate::print::certificate::Verified { file: name, outcome });
         }
     }
 }

@@ -8,7 +8,6 @@
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
 pub mod bench;
-pub mod certificate;
 pub mod certify;
 pub mod checks;
 pub mod cli;
@@ -23,6 +22,7 @@ pub mod record;
 pub mod ron_format;
 pub mod settings;
 pub mod speed;
+pub mod state;
 pub mod thermo;
 pub mod tui;
 pub mod units;

@@ -106,10 +106,10 @@ fn every_argument_has_help_and_the_examples_can_be_copied_at_80_columns() {
         }
         // Each example line is a whole command or goes on from a line ending in `\`.
         let long = text(&run(&c, &[&cmd, "--help"]).stdout);
-        if let Some(examples) = long.split("Examples:").nth(1) {
+        if let Some(block) = long.split("Examples:").nth(1) {
             examples += 1;
             let mut continued = false;
-            for line in examples.lines().take_while(|l| !l.trim().is_empty()) {
+            for line in block.lines().take_while(|l| !l.trim().is_empty()) {
                 assert!(line.chars().count() <= 80, "{cmd}: {line:?} is wider than 80 columns");
                 assert!(
                     continued || line.starts_with("  fillwright "),

@@ -184,7 +184,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     if !records.is_empty() {
         outln!();
         outln!("fill records of {}:", args.name);
-        super::record::print_records(&records);
+        out!("{}", crate::print::records::text(&records));
     }
     Ok(())
 }

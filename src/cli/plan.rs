@@ -197,7 +197,7 @@ pub fn run(args: &PlanArgs) -> Result<(), Failure> {
             text.push_str(rest_text);
         }
         if let Some(path) = &args.pdf {
-            let bytes = crate::certificate::pdf::render(&text, &format!("Fill sheet {}", order.name));
+            let bytes = crate::print::certificate::pdf::render(&text, &format!("Fill sheet {}", order.name));
             crate::library::atomic::write_output(path, &bytes, args.replace_link)
                 .map_err(|e| Refused(format!("{}: {e}", path.display())))?;
         }

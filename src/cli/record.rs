@@ -3,14 +3,14 @@
 use std::path::{Path, PathBuf};
 
 use clap::Args;
-use serde_json::json;
 
 use super::library::Place;
 use super::{print_json, Failure, Format, Refused};
-use crate::certificate;
 use crate::certify::{certify_record, looks_like_path, Evaluate, Found};
 use crate::config;
 use crate::library::Library;
+use crate::print::certificate;
+use crate::print::records as listing;
 use crate::record::{self, Record};
 use crate::thermo::Model;
 
@@ -152,19 +152,6 @@ pub struct RecordsArgs {
     pub format: Format,
 }
 
-/// One line of the records list: (id, recipe, revision, cylinder, started, state).
-fn summary(id: &str, r: &Record) -> (String, String, u64, String, String, String) {
-    // As certify judges it: a record written by hand (no start time) with every addition
-    // weighed is complete.
-    let weighed_all = r.weighings.len() > r.additions.len() && !r.additions.is_empty();
-    let state = match (&r.finished, &r.started) {
-        (Some(_), _) => format!("finished, {} additions", r.additions.len()),
-        (None, None) if weighed_all => format!("complete (by hand), {} additions", r.additions.len()),
-        (None, _) => format!("in progress, {} weighings", r.weighings.len()),
-    };
-    (id.to_string(), r.recipe.clone(), r.revision, r.cylinder.clone(), r.started.clone().unwrap_or_default(), state)
-}
-
 pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
     let lib = args.place.open()?;
     let all = lib.records()?;
@@ -182,56 +169,10 @@ pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
             );
         }
     }
-    if args.format == Format::Json {
-        print_json(&json!({"records": shown.iter().map(|(id, r)| match r {
-            Ok(r) => {
-                let s = summary(id, r);
-                json!({"id": s.0, "recipe": s.1, "revision": s.2, "cylinder": s.3, "started": s.4, "finished": r.finished, "additions": r.additions.len(), "weighings": r.weighings.len()})
-            }
-            Err(e) => json!({"id": id, "error": e}),
-        }).collect::<Vec<_>>()}));
-        return Ok(());
+    match args.format {
+        Format::Json => print_json(&listing::json(&shown)),
+        Format::Csv => out!("{}", listing::csv(&shown)),
+        Format::Text => out!("{}", listing::text(&shown)),
     }
-    if args.format == Format::Csv {
-        super::print_csv_row(&["id", "recipe", "revision", "cylinder", "started", "finished", "state", "error"]);
-        for (id, r) in &shown {
-            match r {
-                Ok(r) => {
-                    let s = summary(id, r);
-                    let finished = r.finished.clone().unwrap_or_default();
-                    super::print_csv_row(&[&s.0, &s.1, &s.2.to_string(), &s.3, &s.4, &finished, &s.5, ""]);
-                }
-                Err(e) => super::print_csv_row(&[id.as_str(), "", "", "", "", "", "", e]),
-            }
-        }
-        return Ok(());
-    }
-    print_records(&shown);
     Ok(())
-}
-
-/// The records as text lines of at most 80 columns.
-pub fn print_records(shown: &[&(String, Result<Record, String>)]) {
-    use crate::ron_format::clip;
-    if shown.is_empty() {
-        outln!("(no fill records)");
-        return;
-    }
-    outln!("{:<22} {:<18} {:>3} {:<10}  state", "record", "recipe", "rev", "started");
-    for (id, r) in shown {
-        match r {
-            Ok(r) => {
-                let s = summary(id, r);
-                outln!(
-                    "{:<22} {:<18} {:>3} {:<10}  {}",
-                    clip(&s.0, 22),
-                    clip(&s.1, 18),
-                    s.2,
-                    clip(&s.4, 10),
-                    clip(&s.5, 23)
-                );
-            }
-            Err(e) => outln!("{:<22} cannot be read: {}", clip(id, 22), clip(e, 40)),
-        }
-    }
 }

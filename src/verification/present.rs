@@ -10,7 +10,7 @@ use crate::units::fraction_text;
 
 /// A mole fraction and an uncertainty in one unit that suits the value: ("12.0028", "0.0039", "%").
 pub fn pair(x: f64, u: f64) -> (String, String, &'static str) {
-    crate::certificate::with_uncertainty(x, u)
+    crate::print::certificate::with_uncertainty(x, u)
 }
 
 /// The report as lines of at most 80 columns.

@@ -171,7 +171,7 @@ pub fn export(model: &mut Model, ctx: &Context) {
     // The text for the bench folder's screen, the PDF for its printer (the certificate's
     // machinery: Courier on A4, nothing embedded).
     let title = format!("Fill sheet {} rev {}", doc.name, doc.recipe.revision);
-    let pdf = crate::certificate::pdf::render(&text, &title);
+    let pdf = crate::print::certificate::pdf::render(&text, &title);
     let written = ctx.library.own_dir(&["sheets"]).map_err(|e| e.to_string()).and_then(|dir| {
         let path = dir.join(format!("{}-rev{}.txt", doc.name, doc.recipe.revision));
         crate::library::atomic::write(&path, text.as_bytes()).map_err(|e| e.to_string())?;
