@@ -67,24 +67,8 @@ fn on_editor_key(model: &mut Model, key: Key, ctx: &mut Context) {
         Key::PageDown => doc.field = (doc.field + 10).min(count - 1),
         Key::Home => doc.field = 0,
         Key::End => doc.field = count - 1,
-        Key::Char('u') | Key::Ctrl('z') => {
-            if let Some(prev) = doc.undo.pop() {
-                doc.redo.push(std::mem::replace(&mut doc.recipe, prev));
-                recompute(doc, ctx);
-                model.status = "undone".into();
-            } else {
-                model.status = "nothing to undo".into();
-            }
-        }
-        Key::Ctrl('r') | Key::Ctrl('y') => {
-            if let Some(next) = doc.redo.pop() {
-                doc.undo.push(std::mem::replace(&mut doc.recipe, next));
-                recompute(doc, ctx);
-                model.status = "redone".into();
-            } else {
-                model.status = "nothing to redo".into();
-            }
-        }
+        Key::Char('u') | Key::Ctrl('z') => model.status = undo(doc, ctx).into(),
+        Key::Ctrl('r') | Key::Ctrl('y') => model.status = redo(doc, ctx).into(),
         Key::Char('a') => {
             model.overlay = Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::AddComponent };
         }
@@ -96,83 +80,119 @@ fn on_editor_key(model: &mut Model, key: Key, ctx: &mut Context) {
         }
         Key::Char('b') => {
             if let Field::Component(i) = field {
-                let fractions = doc.computed.order.as_ref().ok().map(|o| o.composition.fractions.clone());
-                edit(doc, ctx, |r| {
-                    for (k, c) in r.components.iter_mut().enumerate() {
-                        if k != i && c.amount.trim().eq_ignore_ascii_case("balance") {
-                            let x = fractions.as_ref().and_then(|f| f.get(k)).copied().unwrap_or(0.0);
-                            c.amount = format!("{}%", (x * 1e6).round() / 1e4);
-                        }
-                    }
-                    r.components[i].amount = "balance".into();
-                });
-                model.status = format!("{} is the balance gas", doc.recipe.components[i].gas);
+                model.status = make_balance(doc, ctx, i);
             }
         }
-        Key::Char('x') | Key::Delete => match field {
-            Field::Component(i) | Field::Tolerance(i) => {
-                let gas = doc.recipe.components[i].gas.clone();
-                edit(doc, ctx, |r| {
-                    r.components.remove(i);
-                });
-                doc.field = doc.field.min(fields(&doc.recipe).len() - 1);
-                model.status = format!("{gas} removed (u undoes)");
+        Key::Char('x') | Key::Delete => {
+            if let Some(said) = remove_line(doc, ctx, field) {
+                model.status = said;
             }
-            Field::Source(i) => {
-                edit(doc, ctx, |r| {
-                    r.sources.remove(i);
-                });
-                doc.field = doc.field.min(fields(&doc.recipe).len() - 1);
-            }
-            _ => {}
-        },
-        Key::Enter | Key::Char('e') => match field {
-            Field::AddComponent => {
-                model.overlay = Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::AddComponent }
-            }
-            Field::AddSource => {
-                model.overlay = Overlay::Prompt { purpose: Prompt::AddSource, input: input("") };
-            }
-            Field::FillKind => {
-                // The same fill in the next kind of target, converted with the plan (the
-                // mass, the amount or the pressure it comes to); without a plan the value is
-                // left empty for the user to type.
-                let totals = doc.computed.plan.as_ref().ok().map(|p| p.totals.clone());
-                let trimmed = |v: f64, unit: &str| {
-                    let s = crate::units::Sig(v, 6).to_string();
-                    let s = if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s };
-                    format!("{s}{unit}")
-                };
-                let next = match (&doc.recipe.fill, &totals) {
-                    (FillTarget::Pressure(_), Some(t)) => FillTarget::Mass(trimmed(t.mass_g, "g")),
-                    (FillTarget::Mass(_), Some(t)) => FillTarget::Amount(trimmed(t.amount_mol, "mol")),
-                    (FillTarget::Amount(_), Some(t)) => FillTarget::Pressure(trimmed(t.pressure_pa / 1e5, "bar")),
-                    (FillTarget::Pressure(_), None) => FillTarget::Mass(String::new()),
-                    (FillTarget::Mass(_), None) => FillTarget::Amount(String::new()),
-                    (FillTarget::Amount(_), None) => FillTarget::Pressure(String::new()),
-                };
-                let converted = totals.is_some();
-                edit(doc, ctx, |r| r.fill = next);
-                model.status = if converted {
-                    "fill target converted with the plan: the same fill".into()
-                } else {
-                    "the recipe does not plan yet: type the fill value on the next line".into()
-                };
-            }
-            Field::Model => {
-                edit(doc, ctx, |r| {
-                    r.model = match r.model {
-                        None => Some(Eos::ALL[0]),
-                        Some(m) => {
-                            let i = Eos::ALL.iter().position(|x| *x == m).unwrap_or(0);
-                            Eos::ALL.get(i + 1).copied()
-                        }
-                    }
-                });
-            }
-            f => doc.editing = Some(input(&field_text(&doc.recipe, f))),
-        },
+        }
+        Key::Enter | Key::Char('e') => on_enter(model, ctx, field),
         _ => {}
+    }
+}
+
+/// Take back the last edit.
+fn undo(doc: &mut Document, ctx: &Context) -> &'static str {
+    let Some(prev) = doc.undo.pop() else { return "nothing to undo" };
+    doc.redo.push(std::mem::replace(&mut doc.recipe, prev));
+    recompute(doc, ctx);
+    "undone"
+}
+
+/// Do again the last edit taken back.
+fn redo(doc: &mut Document, ctx: &Context) -> &'static str {
+    let Some(next) = doc.redo.pop() else { return "nothing to redo" };
+    doc.undo.push(std::mem::replace(&mut doc.recipe, next));
+    recompute(doc, ctx);
+    "redone"
+}
+
+/// Make component `i` the balance gas; the one that was the balance keeps the amount it
+/// had, written as a percentage.
+fn make_balance(doc: &mut Document, ctx: &Context, i: usize) -> String {
+    let fractions = doc.computed.order.as_ref().ok().map(|o| o.composition.fractions.clone());
+    edit(doc, ctx, |r| {
+        for (k, c) in r.components.iter_mut().enumerate() {
+            if k != i && c.amount.trim().eq_ignore_ascii_case("balance") {
+                let x = fractions.as_ref().and_then(|f| f.get(k)).copied().unwrap_or(0.0);
+                c.amount = format!("{}%", (x * 1e6).round() / 1e4);
+            }
+        }
+        r.components[i].amount = "balance".into();
+    });
+    format!("{} is the balance gas", doc.recipe.components[i].gas)
+}
+
+/// Remove the component or source on the cursor's line (undone with `u`).
+fn remove_line(doc: &mut Document, ctx: &Context, field: Field) -> Option<String> {
+    let said = match field {
+        Field::Component(i) | Field::Tolerance(i) => {
+            let gas = doc.recipe.components[i].gas.clone();
+            edit(doc, ctx, |r| {
+                r.components.remove(i);
+            });
+            Some(format!("{gas} removed (u undoes)"))
+        }
+        Field::Source(i) => {
+            edit(doc, ctx, |r| {
+                r.sources.remove(i);
+            });
+            None
+        }
+        _ => return None,
+    };
+    doc.field = doc.field.min(fields(&doc.recipe).len() - 1);
+    said
+}
+
+/// Enter on a line: add a gas or a source, switch the fill's kind or the model, or start
+/// typing the line's value.
+fn on_enter(model: &mut Model, ctx: &Context, field: Field) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    match field {
+        Field::AddComponent => {
+            model.overlay = Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::AddComponent }
+        }
+        Field::AddSource => model.overlay = Overlay::Prompt { purpose: Prompt::AddSource, input: input("") },
+        Field::FillKind => model.status = next_fill_kind(doc, ctx),
+        Field::Model => edit(doc, ctx, |r| {
+            r.model = match r.model {
+                None => Some(Eos::ALL[0]),
+                Some(m) => {
+                    let i = Eos::ALL.iter().position(|x| *x == m).unwrap_or(0);
+                    Eos::ALL.get(i + 1).copied()
+                }
+            }
+        }),
+        f => doc.editing = Some(input(&field_text(&doc.recipe, f))),
+    }
+}
+
+/// The same fill in the next kind of target, converted with the plan (the mass, the amount
+/// or the pressure it comes to); without a plan the value is left empty for the user to
+/// type.
+fn next_fill_kind(doc: &mut Document, ctx: &Context) -> String {
+    let totals = doc.computed.plan.as_ref().ok().map(|p| p.totals.clone());
+    let trimmed = |v: f64, unit: &str| {
+        let s = crate::units::Sig(v, 6).to_string();
+        let s = if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s };
+        format!("{s}{unit}")
+    };
+    let next = match (&doc.recipe.fill, &totals) {
+        (FillTarget::Pressure(_), Some(t)) => FillTarget::Mass(trimmed(t.mass_g, "g")),
+        (FillTarget::Mass(_), Some(t)) => FillTarget::Amount(trimmed(t.amount_mol, "mol")),
+        (FillTarget::Amount(_), Some(t)) => FillTarget::Pressure(trimmed(t.pressure_pa / 1e5, "bar")),
+        (FillTarget::Pressure(_), None) => FillTarget::Mass(String::new()),
+        (FillTarget::Mass(_), None) => FillTarget::Amount(String::new()),
+        (FillTarget::Amount(_), None) => FillTarget::Pressure(String::new()),
+    };
+    edit(doc, ctx, |r| r.fill = next);
+    if totals.is_some() {
+        "fill target converted with the plan: the same fill".into()
+    } else {
+        "the recipe does not plan yet: type the fill value on the next line".into()
     }
 }
 

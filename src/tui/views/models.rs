@@ -35,8 +35,19 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         frame.render_widget(Paragraph::new("The recipe does not plan yet; see the Recipe view."), area);
         return;
     };
-    // One table: a column per model; the stop reading of each step, then the amount, its
-    // difference from the reference, and Z.
+    let max_steps = (area.height as usize).saturating_sub(14).clamp(2, 12);
+    let shown = p.steps.len().min(max_steps);
+    let table_h = (shown + 6) as u16;
+    let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
+    table(model, p, shown, theme, frame, top);
+    let [zc, fc] = Layout::horizontal([Constraint::Percentage(50), Constraint::Percentage(50)]).areas(bottom);
+    z_chart(model, &doc.computed.z_curves, theme, frame, zc);
+    fill_chart(model, p, theme, frame, fc);
+}
+
+/// One table: a column per model; the stop reading of each step, then the amount, its
+/// difference from the reference, and Z.
+fn table(model: &Model, p: &crate::plan::Plan, shown: usize, theme: &Theme, frame: &mut Frame, top: Rect) {
     let ok: Vec<_> = p.models.iter().filter_map(|m| m.result.as_ref().ok().map(|f| (m.model, f))).collect();
     // The reference: GERG-2008 where it covers the blend, else the multi-fluid model.
     use crate::thermo::Model as Eos;
@@ -45,10 +56,6 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         .find_map(|r| ok.iter().find(|(m, _)| m == r).map(|(m, _)| *m))
         .unwrap_or(p.model);
     let ref_amount = ok.iter().find(|(m, _)| *m == reference).map(|(_, f)| f.amount_mol);
-    let max_steps = (area.height as usize).saturating_sub(14).clamp(2, 12);
-    let shown = p.steps.len().min(max_steps);
-    let table_h = (shown + 6) as u16;
-    let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
     let block = Block::default().borders(Borders::ALL).title(format!(
         " Every model: stop readings at {} in {}; reference {} ",
         model.shown.tf(p.fill_temperature_k),
@@ -90,9 +97,17 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         lines.push(Line::styled(clip(&format!("{}: {e}", m.model.key()), inner.width as usize), theme.dim()));
     }
     frame.render_widget(Paragraph::new(lines), inner);
+}
 
-    let [zc, fc] = Layout::horizontal([Constraint::Percentage(50), Constraint::Percentage(50)]).areas(bottom);
-    // One marker per model, so that the curves are told apart without colour.
+/// Z against pressure, one curve per model, each with its own marker so that they are told
+/// apart without colour.
+fn z_chart(
+    model: &Model,
+    z_curves: &[(crate::thermo::Model, Vec<(f64, f64)>)],
+    theme: &Theme,
+    frame: &mut Frame,
+    zc: Rect,
+) {
     let markers = [
         Marker::Dot,
         Marker::Braille,
@@ -106,9 +121,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red, Color::Blue];
     let (mut zmin, mut zmax, mut pmax) = (f64::INFINITY, f64::NEG_INFINITY, 1.0f64);
     // The curves are computed in bar; shown in the settings' unit.
-    let curves: Vec<Vec<(f64, f64)>> = doc
-        .computed
-        .z_curves
+    let curves: Vec<Vec<(f64, f64)>> = z_curves
         .iter()
         .map(|(_, pts)| pts.iter().map(|(p_bar, z)| (model.shown.p(p_bar * 1e5), *z)).collect())
         .collect();
@@ -119,9 +132,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
             pmax = pmax.max(*pp);
         }
     }
-    let datasets: Vec<Dataset> = doc
-        .computed
-        .z_curves
+    let datasets: Vec<Dataset> = z_curves
         .iter()
         .zip(&curves)
         .enumerate()
@@ -135,9 +146,7 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         })
         .collect();
     let pad = ((zmax - zmin) * 0.05).max(0.005);
-    let legend: String = doc
-        .computed
-        .z_curves
+    let legend: String = z_curves
         .iter()
         .enumerate()
         .map(|(i, (m, _))| format!("{}{}", marks[i % marks.len()], m.key()))
@@ -156,7 +165,10 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
                 .labels([format!("{:.2}", zmin - pad), format!("{:.2}", zmax + pad)]),
         );
     frame.render_widget(chart, zc);
-    // The fill: pressure reading against the amount added so far.
+}
+
+/// The fill: pressure reading against the amount added so far.
+fn fill_chart(model: &Model, p: &crate::plan::Plan, theme: &Theme, frame: &mut Frame, fc: Rect) {
     let mut pts = vec![(0.0, 0.0)];
     let mut n = 0.0;
     for s in &p.steps {

@@ -25,15 +25,35 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     };
     let b = &doc.bench;
     let d = &model.shown;
-    let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
+    let width = usize::from(inner.width.max(20));
+    let mut lines = stop_lines(doc, theme, width);
+    lines.push(Line::raw(match b.measured_k {
+        Some(t) => format!("planned for {}; cylinder now {}: stop at 'now'", d.tf(p.fill_temperature_k), d.tf(t)),
+        None => format!("readings for {}; t: type the cylinder temperature now", d.tf(p.fill_temperature_k)),
+    }));
+    if let Some((severity, note)) = b.measured_k.and_then(|t| super::temperature_note(t, &model.limits, d)) {
+        lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, theme.severity(severity))));
+    }
+    lines.extend(table(doc, p, d, theme));
+    lines.extend(first_plan_note(b, d, width).into_iter().map(|l| Line::styled(l, theme.dim())));
+    lines.extend(step_notes(doc, model, p, theme, width));
+    lines.extend(plan_warnings(p, theme, width));
+    let done = b.done.iter().filter(|d| **d).count();
+    lines.push(Line::raw(format!("{done} of {} steps done", p.steps.len())));
+    lines.extend(record_lines(doc, model, theme));
+    frame.render_widget(Paragraph::new(lines), inner);
+}
+
+/// A plan at stop: the finding, and whether the steps are locked.
+fn stop_lines(doc: &Document, theme: &Theme, width: usize) -> Vec<Line<'static>> {
     let mut lines = Vec::new();
     if let Some(stop) = super::first_stop(doc) {
         let style = theme.severity(Severity::Stop).add_modifier(Modifier::BOLD);
-        for l in wrap_words(&format!("STOP - do not fill as planned: {stop}"), usize::from(inner.width.max(20))) {
+        for l in wrap_words(&format!("STOP - do not fill as planned: {stop}"), width) {
             lines.push(Line::styled(l, style));
         }
         lines.push(Line::styled(
-            if b.stop_accepted.as_deref() == Some(stop.as_str()) {
+            if doc.bench.stop_accepted.as_deref() == Some(stop.as_str()) {
                 "steps unlocked on your own judgement".to_string()
             } else {
                 "steps are locked; Space asks to unlock them".to_string()
@@ -41,14 +61,14 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
             theme.severity(Severity::Stop),
         ));
     }
-    lines.push(Line::raw(match b.measured_k {
-        Some(t) => format!("planned for {}; cylinder now {}: stop at 'now'", d.tf(p.fill_temperature_k), d.tf(t)),
-        None => format!("readings for {}; t: type the cylinder temperature now", d.tf(p.fill_temperature_k)),
-    }));
-    let width = usize::from(inner.width.max(20));
-    if let Some((severity, note)) = b.measured_k.and_then(|t| super::temperature_note(t, &model.limits, d)) {
-        lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, theme.severity(severity))));
-    }
+    lines
+}
+
+/// The steps: the heading, the heel, and a row per step (finished ones as recorded).
+fn table(doc: &Document, p: &crate::plan::Plan, d: &Shown, theme: &Theme) -> Vec<Line<'static>> {
+    let b = &doc.bench;
+    let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
+    let mut lines = Vec::new();
     lines.push(Line::styled(
         format!(
             " {:<4}{:<3}{:<11}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
@@ -90,9 +110,14 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         };
         lines.push(Line::styled(text, style));
     }
-    lines.extend(first_plan_note(b, d, width).into_iter().map(|l| Line::styled(l, theme.dim())));
-    // A source name cut in the table (a premix) is given whole for the chosen step, and
-    // the source recorded for the addition in progress (an analysis, @NAME, record:ID).
+    lines
+}
+
+/// For the chosen step: its source whole (a premix name cut in the table, or the source
+/// recorded for the addition in progress) and the judgement of the readings typed.
+fn step_notes(doc: &Document, model: &Model, p: &crate::plan::Plan, theme: &Theme, width: usize) -> Vec<Line<'static>> {
+    let (b, d) = (&doc.bench, &model.shown);
+    let mut lines = Vec::new();
     let in_progress = b.record.as_ref().map(|r| r.record.weighings.len().saturating_sub(1));
     match (&b.chosen_source, p.steps.get(b.selected)) {
         (Some(c), Some(s)) if in_progress == Some(b.selected) => {
@@ -111,13 +136,20 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         };
         lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, style)));
     }
+    lines
+}
+
+/// What the plan warns of: a liquefied-gas fill, the step marks' legends, steps too small
+/// to dose.
+fn plan_warnings(p: &crate::plan::Plan, theme: &Theme, width: usize) -> Vec<Line<'static>> {
+    let mut lines = Vec::new();
     if p.by_mass {
         lines.extend(
             wrap_words(
                 "LIQUEFIED-GAS FILL: the blend is liquid or two-phase at the reference temperature. Stop each \
                  addition at its scale reading; the gauge shows the vapour pressure. Leave vapour space (the fill \
                  ratio on the cylinder's markings).",
-                usize::from(inner.width.max(20)),
+                width,
             )
             .into_iter()
             .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
@@ -137,11 +169,7 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     ];
     for (mark, text) in legends {
         if p.steps.iter().any(|s| step_mark(s) == Some(mark)) {
-            lines.extend(
-                wrap_words(text, usize::from(inner.width.max(20)))
-                    .into_iter()
-                    .map(|l| Line::styled(l, theme.severity(Severity::Stop))),
-            );
+            lines.extend(wrap_words(text, width).into_iter().map(|l| Line::styled(l, theme.severity(Severity::Stop))));
         }
     }
     if p.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())) {
@@ -150,10 +178,7 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
             theme.fg(Color::Yellow),
         ));
     }
-    let done = b.done.iter().filter(|d| **d).count();
-    lines.push(Line::raw(format!("{done} of {} steps done", p.steps.len())));
-    lines.extend(record_lines(doc, model, theme));
-    frame.render_widget(Paragraph::new(lines), inner);
+    lines
 }
 
 /// One step of the Fill sheet: a finished step as recorded (what was added, the scale
