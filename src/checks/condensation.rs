@@ -56,7 +56,6 @@ pub fn check(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) 
 
 fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Result<Check, String> {
     let t_min = c.min_temperature_k;
-    let t_ref = order.reference_temperature_k;
     let present: Vec<usize> = (0..plan.gases.len()).filter(|&i| plan.components[i].mole_fraction > 0.0).collect();
     let gases: Vec<usize> = present.iter().map(|&i| plan.gases[i]).collect();
     let z: Vec<f64> = present.iter().map(|&i| plan.components[i].mole_fraction).collect();
@@ -65,47 +64,12 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
     let fluid = Fluid::new(catalogue, &gases, model).map_err(|e| e.to_string())?;
     let p_at_min = fluid.pressure(t_min, order.volume_m3, &amounts).map_err(|e| e.to_string())?;
 
-    // The conservative rule.
-    let mut details = Vec::new();
-    let mut rule = Vec::new();
-    let mut rule_exceeded = false;
-    let mut any_condensable = false;
-    for (k, &g) in gases.iter().enumerate() {
-        let gas = catalogue.gas(g);
-        if gas.tc_k() <= c.judged_down_to_k() {
-            continue;
-        }
-        any_condensable = true;
-        let p_i = z[k] * p_at_min;
-        match vapour_pressure(catalogue, g, t_min) {
-            Some((p_sat, how)) => {
-                let ratio = p_i / p_sat;
-                rule_exceeded |= ratio > 1.0;
-                details.push(format!(
-                    "{}: partial pressure {:.3} bar at {:.1} °C against vapour pressure {:.4} bar ({:.0} % of it; {how})",
-                    gas.id(),
-                    bar(p_i),
-                    celsius(t_min),
-                    bar(p_sat),
-                    ratio * 100.0
-                ));
-                rule.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": bar(p_sat), "ratio": ratio, "vapour_pressure_from": how}));
-            }
-            None => {
-                details.push(format!(
-                    "{}: no vapour pressure at {:.1} °C (neither the correlation nor the equation of state gives \
-                     one); judged by the equation of state alone",
-                    gas.id(),
-                    celsius(t_min)
-                ));
-                rule.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": null}));
-            }
-        }
-    }
+    let rule = conservative_rule(catalogue, &gases, &z, p_at_min, c);
+    let mut details = rule.details;
     let mut data = Map::new();
     data.insert("model".into(), json!(model.key()));
-    data.insert("rule".into(), Value::Array(rule));
-    if !any_condensable {
+    data.insert("rule".into(), Value::Array(rule.rows));
+    if !rule.any_condensable {
         data.insert("cricondentherm_k".into(), Value::Null);
         return Ok(Check {
             id: "condensation",
@@ -116,8 +80,95 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
         });
     }
 
-    // The equation of state.
-    let phase = PhaseFluid::new(&fluid);
+    let found = by_the_equation_of_state(&fluid, order, &z, &amounts, c)?;
+    insert_found(&mut data, &found, c);
+    details.extend(found_details(&found, model, c, order.reference_temperature_k));
+    // Every step of the plan: liquid from what is in the cylinder after it.
+    let (flagged, cooled) = steps_flagged(plan);
+    for f in &flagged {
+        details.push(format!(
+            "{f}: liquid forms from what is in the cylinder after it, at the fill temperature or on cooling: its reading \
+             lies above the dew pressure"
+        ));
+    }
+    data.insert("steps_above_dew_point".into(), json!(flagged));
+    data.insert("steps_condensing_if_cooled".into(), json!(cooled));
+    let (severity, message) = verdict(&found, rule.exceeded, &flagged, &cooled, c);
+    Ok(Check { id: "condensation", severity, message, details, data })
+}
+
+/// The conservative rule: each condensable component's partial pressure at the lowest
+/// storage temperature against its vapour pressure there.
+struct Rule {
+    details: Vec<String>,
+    rows: Vec<Value>,
+    exceeded: bool,
+    /// Some component's critical temperature lies above the judged temperature.
+    any_condensable: bool,
+}
+
+fn conservative_rule(catalogue: &Catalogue, gases: &[usize], z: &[f64], p_at_min: f64, c: &Conditions) -> Rule {
+    let t_min = c.min_temperature_k;
+    let mut rule = Rule { details: Vec::new(), rows: Vec::new(), exceeded: false, any_condensable: false };
+    for (k, &g) in gases.iter().enumerate() {
+        let gas = catalogue.gas(g);
+        if gas.tc_k() <= c.judged_down_to_k() {
+            continue;
+        }
+        rule.any_condensable = true;
+        let p_i = z[k] * p_at_min;
+        match vapour_pressure(catalogue, g, t_min) {
+            Some((p_sat, how)) => {
+                let ratio = p_i / p_sat;
+                rule.exceeded |= ratio > 1.0;
+                rule.details.push(format!(
+                    "{}: partial pressure {:.3} bar at {:.1} °C against vapour pressure {:.4} bar ({:.0} % of it; {how})",
+                    gas.id(),
+                    bar(p_i),
+                    celsius(t_min),
+                    bar(p_sat),
+                    ratio * 100.0
+                ));
+                rule.rows.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": bar(p_sat), "ratio": ratio, "vapour_pressure_from": how}));
+            }
+            None => {
+                rule.details.push(format!(
+                    "{}: no vapour pressure at {:.1} °C (neither the correlation nor the equation of state gives \
+                     one); judged by the equation of state alone",
+                    gas.id(),
+                    celsius(t_min)
+                ));
+                rule.rows.push(json!({"id": gas.id(), "partial_pressure_bar": bar(p_i), "vapour_pressure_bar": null}));
+            }
+        }
+    }
+    rule
+}
+
+/// What the equation of state finds for the blend.
+struct Found {
+    /// The cricondentherm and its pressure.
+    ct: Option<(f64, f64)>,
+    /// The first temperature (and pressure) on the isochore where the contents split.
+    splits_at: Option<(f64, f64)>,
+    /// The pressures at the judged temperature in which liquid forms.
+    range: Option<(f64, f64)>,
+    /// The range reaches the highest pressure searched.
+    capped: bool,
+    /// The fills (settled at the reference temperature) whose isochores cross that range.
+    fill_range: Option<(f64, Option<f64>)>,
+    t_low: f64,
+}
+
+fn by_the_equation_of_state(
+    fluid: &Fluid,
+    order: &Order,
+    z: &[f64],
+    amounts: &[f64],
+    c: &Conditions,
+) -> Result<Found, String> {
+    let t_ref = order.reference_temperature_k;
+    let phase = PhaseFluid::new(fluid);
     // The equation of state is asked down to the lowest storage temperature less the
     // margin: liquid is assumed wherever the model's dew point plus the margin reaches it.
     let t_low = c.judged_down_to_k();
@@ -128,12 +179,12 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
     // The envelope on one core; on the other, along the isochore from the judged
     // temperature up to the reference: the first temperature where the contents split.
     let (ct, splits_at) = rayon::join(
-        || phase.cricondentherm(&z, t_floor, p_search).map_err(|e| e.to_string()),
+        || phase.cricondentherm(z, t_floor, p_search).map_err(|e| e.to_string()),
         || -> Result<Option<(f64, f64)>, String> {
             for k in 0..=6 {
                 let t = t_low + (t_ref.max(t_low) - t_low) * k as f64 / 6.0;
-                if fluid.condensed_tv(t, order.volume_m3, &amounts).map_err(|e| e.to_string())? {
-                    let p = fluid.equilibrium_tv(t, order.volume_m3, &amounts).map_or(f64::NAN, |e| e.pressure_pa);
+                if fluid.condensed_tv(t, order.volume_m3, amounts).map_err(|e| e.to_string())? {
+                    let p = fluid.equilibrium_tv(t, order.volume_m3, amounts).map_or(f64::NAN, |e| e.pressure_pa);
                     return Ok(Some((t, p)));
                 }
             }
@@ -141,36 +192,44 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
         },
     );
     let (ct, splits_at) = (ct?, splits_at?);
-    data.insert("cricondentherm_k".into(), ct.map_or(Value::Null, |(t, _)| json!(t)));
-    data.insert("cricondentherm_pressure_bar".into(), ct.map_or(Value::Null, |(_, p)| json!(bar(p))));
-    data.insert("margin_k".into(), json!(c.margin_k));
-
     let range = if ct.is_some_and(|(t, _)| t > t_low) {
-        phase.unstable_pressures(t_low, &z, ct.map(|(_, p)| p), p_search).map_err(|e| e.to_string())?
+        phase.unstable_pressures(t_low, z, ct.map(|(_, p)| p), p_search).map_err(|e| e.to_string())?
     } else {
         None
     };
     let capped = range.is_some_and(|(_, hi)| hi >= 0.999 * p_search);
-    data.insert("liquid_pressure_range_bar".into(), range.map_or(Value::Null, |(a, b)| json!([bar(a), bar(b)])));
-    // The fills (settled at the reference temperature) whose isochores cross that range:
-    // below the first the blend stays gas; above the second it is dense enough to stay one
-    // phase (retrograde), which is no safe fill to aim for.
+    // Below the first fill the blend stays gas; above the second it is dense enough to stay
+    // one phase (retrograde), which is no safe fill to aim for.
     let fill_of = |p: f64| -> Result<f64, String> {
-        let v = fluid.state_tp(t_low, p, &z).map_err(|e| e.to_string())?.molar_volume_m3;
-        fluid.pressure_tv(t_ref, v, &z).map_err(|e| e.to_string())
+        let v = fluid.state_tp(t_low, p, z).map_err(|e| e.to_string())?.molar_volume_m3;
+        fluid.pressure_tv(t_ref, v, z).map_err(|e| e.to_string())
     };
     let fill_range = match range {
         Some((lo, hi)) => Some((fill_of(lo)?, if capped { None } else { fill_of(hi).ok() })),
         None => None,
     };
-    let max_fill = fill_range.map(|(lo, _)| lo);
-    data.insert("max_single_phase_fill_bar".into(), max_fill.map_or(Value::Null, |p| json!(bar(p))));
+    Ok(Found { ct, splits_at, range, capped, fill_range, t_low })
+}
+
+/// The findings in the check's data (JSON keys).
+fn insert_found(data: &mut Map<String, Value>, f: &Found, c: &Conditions) {
+    data.insert("cricondentherm_k".into(), f.ct.map_or(Value::Null, |(t, _)| json!(t)));
+    data.insert("cricondentherm_pressure_bar".into(), f.ct.map_or(Value::Null, |(_, p)| json!(bar(p))));
+    data.insert("margin_k".into(), json!(c.margin_k));
+    data.insert("liquid_pressure_range_bar".into(), f.range.map_or(Value::Null, |(a, b)| json!([bar(a), bar(b)])));
+    data.insert("max_single_phase_fill_bar".into(), f.fill_range.map_or(Value::Null, |(lo, _)| json!(bar(lo))));
     data.insert(
         "condensing_fill_range_bar".into(),
-        fill_range.map_or(Value::Null, |(lo, hi)| json!([bar(lo), hi.map(bar)])),
+        f.fill_range.map_or(Value::Null, |(lo, hi)| json!([bar(lo), hi.map(bar)])),
     );
+}
 
-    if let Some((t, _)) = ct {
+/// The findings in words: the cricondentherm, the judged temperature and its margin, the
+/// pressures where liquid forms and the fills that condense on cooling.
+fn found_details(f: &Found, model: Model, c: &Conditions, t_ref: f64) -> Vec<String> {
+    let mut details = Vec::new();
+    let t_low = f.t_low;
+    if let Some((t, _)) = f.ct {
         details.push(format!("cricondentherm {:.1} °C ({:.2} K), {model}", celsius(t), t));
     }
     details.push(format!(
@@ -179,8 +238,8 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
         celsius(t_low),
         c.margin_k
     ));
-    if let Some((lo, hi)) = range {
-        details.push(if capped {
+    if let Some((lo, hi)) = f.range {
+        details.push(if f.capped {
             format!(
                 "at {:.1} °C liquid forms from {:.2} bar up to at least {:.0} bar",
                 celsius(t_low),
@@ -191,7 +250,7 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
             format!("at {:.1} °C liquid forms between {:.2} and {:.2} bar", celsius(t_low), bar(lo), bar(hi))
         });
     }
-    if let Some((lo, hi)) = fill_range {
+    if let Some((lo, hi)) = f.fill_range {
         details.push(match hi {
             Some(hi) => format!(
                 "fills from {:.1} to {:.1} bar at {:.1} °C condense on cooling; the highest fill that stays single-phase \
@@ -208,30 +267,40 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
             ),
         });
     }
-    // Every step of the plan: liquid from what is in the cylinder after it.
-    let flagged: Vec<String> = plan
+    details
+}
+
+/// The steps after which liquid forms at the fill temperature (named) and the steps after
+/// which it forms on cooling (numbered).
+fn steps_flagged(plan: &Plan) -> (Vec<String>, Vec<String>) {
+    let flagged = plan
         .steps
         .iter()
         .enumerate()
         .filter(|(_, s)| s.flags.contains(&StepFlag::AboveDewPoint))
         .map(|(i, s)| format!("step {} ({})", i + 1, s.source))
         .collect();
-    for f in &flagged {
-        details.push(format!(
-            "{f}: liquid forms from what is in the cylinder after it, at the fill temperature or on cooling: its reading \
-             lies above the dew pressure"
-        ));
-    }
-    data.insert("steps_above_dew_point".into(), json!(flagged));
-    let cooled: Vec<String> = plan
+    let cooled = plan
         .steps
         .iter()
         .enumerate()
         .filter(|(_, s)| s.flags.contains(&StepFlag::CondensesIfCooled))
         .map(|(i, _)| (i + 1).to_string())
         .collect();
-    data.insert("steps_condensing_if_cooled".into(), json!(cooled));
-    let (severity, message) = match (splits_at, rule_exceeded, ct) {
+    (flagged, cooled)
+}
+
+/// The severity and the message: liquid in the cylinder or during the fill is at stop.
+fn verdict(
+    f: &Found,
+    rule_exceeded: bool,
+    flagged: &[String],
+    cooled: &[String],
+    c: &Conditions,
+) -> (Severity, String) {
+    let (t_min, t_low) = (c.min_temperature_k, f.t_low);
+    let max_fill = f.fill_range.map(|(lo, _)| lo);
+    match (f.splits_at, rule_exceeded, f.ct) {
         (Some((t, p)), _, _) => (
             Severity::Stop,
             format!(
@@ -274,6 +343,5 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
             ),
         ),
         _ => (Severity::Ok, format!("single-phase down to {:.1} °C", celsius(t_min))),
-    };
-    Ok(Check { id: "condensation", severity, message, details, data })
+    }
 }
