@@ -36,22 +36,7 @@ pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
     data.insert("settled_pressure_bar".into(), json!(bar(settled)));
     data.insert("hot_pressure_bar".into(), json!(hot_final.as_ref().ok().map(|p| bar(*p))));
     data.insert("max_temperature_k".into(), json!(c.max_temperature_k));
-    let mut details = vec![format!("settled at 15 °C: {:.2} bar", bar(settled))];
-    match &hot_final {
-        Ok(p) => details.push(format!("at {:.0} °C: {:.2} bar", celsius(c.max_temperature_k), bar(*p))),
-        Err(e) => details.push(format!("at {:.0} °C: no gas state ({e})", celsius(c.max_temperature_k))),
-    }
-    for (i, (s, h)) in plan.steps.iter().zip(&hot).enumerate() {
-        details.push(format!(
-            "step {} {}: {:.2} bar at {:.1} °C, {} at {:.0} °C",
-            i + 1,
-            s.source,
-            bar(s.pressure_after_pa),
-            celsius(s.temperature_k),
-            h.as_ref().map_or("–".to_string(), |p| format!("{:.2} bar", bar(*p))),
-            celsius(c.max_temperature_k)
-        ));
-    }
+    let mut details = step_details(plan, settled, &hot, &hot_final, c);
     let working = (order.working_pressure_pa < MAX_PRESSURE_PA).then_some(order.working_pressure_pa);
     let test = (order.test_pressure_pa < MAX_PRESSURE_PA).then_some(order.test_pressure_pa);
     if working.is_none() && test.is_none() {
@@ -65,27 +50,75 @@ pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
     }
     if let Some(w) = working {
         data.insert("working_pressure_bar".into(), json!(bar(w)));
-        // A warm fill reads above the working pressure and settles within it: normal.
-        for (i, s) in plan.steps.iter().enumerate() {
-            if s.pressure_after_pa > w && settled <= w && s.temperature_k > REFERENCE_TEMPERATURE_K {
-                details.push(format!(
-                    "step {} reads {:.1} bar at {:.1} °C, above the working pressure: normal while the gas is warm from \
-                     filling; the cylinder settles to {:.1} bar at 15 °C",
-                    i + 1,
-                    bar(s.pressure_after_pa),
-                    celsius(s.temperature_k),
-                    bar(settled)
-                ));
-            }
-        }
+        details.extend(warm_readings(plan, w, settled));
     }
     if let Some(t) = test {
         data.insert("test_pressure_bar".into(), json!(bar(t)));
     }
+    let (severity, message) = verdict(plan, settled, &hot_final, working, test, c);
+    Check { id: "pressure-rating", severity, message, details, data }
+}
+
+/// The pressures settled and hot, and each step's reading at the fill and when hot.
+fn step_details(
+    plan: &Plan,
+    settled: f64,
+    hot: &[Result<f64, String>],
+    hot_final: &Result<f64, String>,
+    c: &Conditions,
+) -> Vec<String> {
+    let mut details = vec![format!("settled at 15 °C: {:.2} bar", bar(settled))];
+    match hot_final {
+        Ok(p) => details.push(format!("at {:.0} °C: {:.2} bar", celsius(c.max_temperature_k), bar(*p))),
+        Err(e) => details.push(format!("at {:.0} °C: no gas state ({e})", celsius(c.max_temperature_k))),
+    }
+    for (i, (s, h)) in plan.steps.iter().zip(hot).enumerate() {
+        details.push(format!(
+            "step {} {}: {:.2} bar at {:.1} °C, {} at {:.0} °C",
+            i + 1,
+            s.source,
+            bar(s.pressure_after_pa),
+            celsius(s.temperature_k),
+            h.as_ref().map_or("–".to_string(), |p| format!("{:.2} bar", bar(*p))),
+            celsius(c.max_temperature_k)
+        ));
+    }
+    details
+}
+
+/// A warm fill reads above the working pressure and settles within it: normal, said per
+/// step.
+fn warm_readings(plan: &Plan, w: f64, settled: f64) -> Vec<String> {
+    let mut details = Vec::new();
+    for (i, s) in plan.steps.iter().enumerate() {
+        if s.pressure_after_pa > w && settled <= w && s.temperature_k > REFERENCE_TEMPERATURE_K {
+            details.push(format!(
+                "step {} reads {:.1} bar at {:.1} °C, above the working pressure: normal while the gas is warm from \
+                 filling; the cylinder settles to {:.1} bar at 15 °C",
+                i + 1,
+                bar(s.pressure_after_pa),
+                celsius(s.temperature_k),
+                bar(settled)
+            ));
+        }
+    }
+    details
+}
+
+/// The severity and the message: settled above the working pressure, a reading above the
+/// test pressure, or too near it when hot, is at stop.
+fn verdict(
+    plan: &Plan,
+    settled: f64,
+    hot_final: &Result<f64, String>,
+    working: Option<f64>,
+    test: Option<f64>,
+    c: &Conditions,
+) -> (Severity, String) {
     let step_over_test = test.and_then(|t| plan.steps.iter().position(|s| s.pressure_after_pa > t));
     let hot_text =
         |p: f64| format!("at {:.0} °C the cylinder would reach {:.1} bar", celsius(c.max_temperature_k), bar(p));
-    let (severity, message) = match (&hot_final, working, test) {
+    match (hot_final, working, test) {
         (_, Some(w), _) if settled > w => (
             Severity::Stop,
             format!(
@@ -138,6 +171,5 @@ pub fn check(plan: &Plan, order: &Order, c: &Conditions) -> Check {
             ),
         ),
         (Ok(_), None, None) => (Severity::Caution, "no cylinder rating given".into()),
-    };
-    Check { id: "pressure-rating", severity, message, details, data }
+    }
 }
