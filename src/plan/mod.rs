@@ -616,8 +616,98 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
 
     // Steps.
     let pressures = step_pressures(&fluid, order, &setup, &d, t_fill)?;
-    let mut steps = Vec::with_capacity(d.sequence.len());
-    let heel = if d.heel_mol.iter().any(|n| *n > 0.0) {
+    let heel = heel_of(&fluid, order, &setup, &d, t_fill, catalogue)?;
+    // Liquid from each step's contents, at the fill temperature or on cooling (both cores).
+    let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
+    // Every other model's own plan, beside the judgements (each on a core where one is
+    // free; rayon keeps the order).
+    let reference = reference_model(&setup.gases, catalogue);
+    let other = OtherModels { order, setup: &setup, sequence_names: &sequence_names, catalogue, t_fill, reference };
+    let (judgements, others) = rayon::join(
+        || -> Result<Vec<Judged>, ThermoError> {
+            pressures
+                .par_iter()
+                .map(|(_, n_after)| judge_step(&fluid, t_fill, t_min, order.volume_m3, n_after))
+                .collect()
+        },
+        || -> Vec<ModelPlan> { Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other.plan(m)).collect() },
+    );
+    let steps = build_steps(order, &d, pressures, judgements?, heel.as_ref(), t_fill, options, catalogue);
+
+    // Totals at the reference temperature.
+    let n_final: Vec<f64> = setup.x_target.iter().map(|x| x * d.total_mol).collect();
+    let p_final = match order.fill {
+        Fill::PressurePa(p) => p,
+        _ => fluid.pressure_in_cylinder(t_ref, order.volume_m3, &n_final)?,
+    };
+    if p_final > order.test_pressure_pa {
+        return Err(PlanError::AboveTestPressure { final_bar: bar(p_final), test_bar: bar(order.test_pressure_pa) });
+    }
+    let totals = totals_of(&fluid, order, &setup, &d, p_final)?;
+    let components = component_rows(order, &setup, &n_final, p_final, model, catalogue);
+
+    // Every model's own plan; the selected model's is the one just made.
+    let models = every_model(model, &totals, &steps, others);
+    // Stopping at each model's readings, judged by the selected model and by the reference
+    // (GERG-2008 or the multi-fluid model).
+    let truths = match (options.skip_following, model == reference) {
+        (true, _) => vec![],
+        (false, true) => vec![model],
+        (false, false) => vec![model, reference],
+    };
+    let following = following_of(truths, &models, &components, order, &setup, &d, t_fill, catalogue);
+    let by_mass = fluid.condensed_tv(t_ref, order.volume_m3, &n_final)?;
+    let notes = plan_notes(&fluid, order, &setup, &d, heel.as_ref(), p_final, t_fill, by_mass, catalogue);
+    let mut plan = Plan {
+        by_mass,
+        model,
+        fluid,
+        gases: setup.gases.clone(),
+        volume_m3: order.volume_m3,
+        totals,
+        components,
+        steps,
+        ambient_pa: order.ambient_pa,
+        fill_temperature_k: t_fill,
+        models,
+        following,
+        premixes: Vec::new(),
+        heel,
+        notes,
+    };
+    // A premix stage is planned at a depth above 0 and proposes nothing itself: the cascade
+    // of the blend's own proposal holds every stage.
+    if depth == 0 {
+        plan.premixes = premix::propose(&plan, order, catalogue, options, plan_at_depth);
+    }
+    Ok(plan)
+}
+
+/// Every model's plan in the order of [`Model::ALL`]: `own` for the selected model, the
+/// others as planned beside it.
+fn every_model(model: Model, totals: &Totals, steps: &[Step], others: Vec<ModelPlan>) -> Vec<ModelPlan> {
+    let own = ModelFigures {
+        amount_mol: totals.amount_mol,
+        z: totals.z,
+        step_pressures_pa: steps.iter().map(|s| s.pressure_after_pa).collect(),
+    };
+    let mut others = others.into_iter();
+    Model::ALL
+        .iter()
+        .filter_map(|&m| if m == model { Some(ModelPlan { model: m, result: Ok(own.clone()) }) } else { others.next() })
+        .collect()
+}
+
+/// What the cylinder holds before the first addition, if anything.
+fn heel_of(
+    fluid: &Fluid,
+    order: &Order,
+    setup: &Setup,
+    d: &Dosing,
+    t_fill: f64,
+    catalogue: &Catalogue,
+) -> Result<Option<Heel>, PlanError> {
+    Ok(if d.heel_mol.iter().any(|n| *n > 0.0) {
         let mass_g: f64 =
             d.heel_mol.iter().zip(&setup.gases).map(|(n, &g)| n * catalogue.gas(g).molar_mass_g_per_mol).sum();
         Some(Heel {
@@ -628,16 +718,24 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         })
     } else {
         None
-    };
-    // The scale and the gauge start from the heel.
-    let mut scale = heel.as_ref().map_or(order.tare_g.unwrap_or(0.0), |h| h.scale_reading_g);
-    let mut previous_pa = heel.as_ref().map_or(0.0, |h| h.pressure_at_fill_pa);
-    // Liquid from each step's contents, at the fill temperature or on cooling (both cores).
-    let t_min = options.min_temperature_k.unwrap_or(DEFAULT_MIN_TEMPERATURE_K).min(t_fill);
-    // Every other model's own plan, beside the judgements (each on a core where one is
-    // free; rayon keeps the order).
-    let reference = reference_model(&setup.gases, catalogue);
-    let other_model = |m: Model| -> ModelPlan {
+    })
+}
+
+/// What every other model's own plan needs: the order, its setup and fill order.
+struct OtherModels<'a> {
+    order: &'a Order,
+    setup: &'a Setup,
+    sequence_names: &'a Option<Vec<String>>,
+    catalogue: &'a Catalogue,
+    t_fill: f64,
+    reference: Model,
+}
+
+impl OtherModels<'_> {
+    /// Model `m`'s own plan: its total amount, Z and stop readings.
+    fn plan(&self, m: Model) -> ModelPlan {
+        let OtherModels { order, setup, sequence_names, catalogue, t_fill, reference } = *self;
+        let t_ref = order.reference_temperature_k;
         if m == Model::Multi && reference == Model::Gerg {
             // GERG-2008 is the reference here; the multi-fluid model (asked for with
             // --model multi) would repeat it within a few 0.01 %.
@@ -646,8 +744,8 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         let result = Fluid::new(catalogue, &setup.gases, m)
             .map_err(PlanError::from)
             .and_then(|f| {
-                let dm = dosing(&f, order, &setup, &sequence_names, catalogue)?;
-                let ps = step_pressures(&f, order, &setup, &dm, t_fill)?;
+                let dm = dosing(&f, order, setup, sequence_names, catalogue)?;
+                let ps = step_pressures(&f, order, setup, &dm, t_fill)?;
                 let n_m: Vec<f64> = setup.x_target.iter().map(|x| x * dm.total_mol).collect();
                 let p_ref = f.pressure(t_ref, order.volume_m3, &n_m)?;
                 Ok(ModelFigures {
@@ -658,17 +756,26 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
             })
             .map_err(|e| e.to_string());
         ModelPlan { model: m, result }
-    };
-    let (judgements, others) = rayon::join(
-        || -> Result<Vec<Judged>, ThermoError> {
-            pressures
-                .par_iter()
-                .map(|(_, n_after)| judge_step(&fluid, t_fill, t_min, order.volume_m3, n_after))
-                .collect()
-        },
-        || -> Vec<ModelPlan> { Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other_model(m)).collect() },
-    );
-    let judgements = judgements?;
+    }
+}
+
+/// The steps in fill order: the amount and mass added, the scale and stop readings, and
+/// the flags (too small to dose, liquid at the fill or on cooling).
+#[allow(clippy::too_many_arguments)]
+fn build_steps(
+    order: &Order,
+    d: &Dosing,
+    pressures: Vec<(f64, Vec<f64>)>,
+    judgements: Vec<Judged>,
+    heel: Option<&Heel>,
+    t_fill: f64,
+    options: &PlanOptions,
+    catalogue: &Catalogue,
+) -> Vec<Step> {
+    let mut steps = Vec::with_capacity(d.sequence.len());
+    // The scale and the gauge start from the heel.
+    let mut scale = heel.map_or(order.tare_g.unwrap_or(0.0), |h| h.scale_reading_g);
+    let mut previous_pa = heel.map_or(0.0, |h| h.pressure_at_fill_pa);
     for ((&k, (p_after, n_after)), judged) in d.sequence.iter().zip(pressures).zip(judgements) {
         let source = &order.sources[k];
         let add_mass_g = d.source_mol[k] * source.composition.molar_mass(catalogue);
@@ -703,19 +810,16 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         previous_pa = p_after;
     }
 
-    // Totals at the reference temperature.
-    let n_final: Vec<f64> = setup.x_target.iter().map(|x| x * d.total_mol).collect();
-    let p_final = match order.fill {
-        Fill::PressurePa(p) => p,
-        _ => fluid.pressure_in_cylinder(t_ref, order.volume_m3, &n_final)?,
-    };
-    if p_final > order.test_pressure_pa {
-        return Err(PlanError::AboveTestPressure { final_bar: bar(p_final), test_bar: bar(order.test_pressure_pa) });
-    }
+    steps
+}
+
+/// The totals at the reference temperature.
+fn totals_of(fluid: &Fluid, order: &Order, setup: &Setup, d: &Dosing, p_final: f64) -> Result<Totals, PlanError> {
+    let t_ref = order.reference_temperature_k;
     let mass_g = d.total_mol * fluid.molar_mass(&setup.x_target);
     let reference_volume =
         fluid.volume(crate::units::REFERENCE_TEMPERATURE_K, STANDARD_AMBIENT_PA, d.total_mol, &setup.x_target)?;
-    let totals = Totals {
+    Ok(Totals {
         pressure_pa: p_final,
         temperature_k: t_ref,
         amount_mol: d.total_mol,
@@ -723,10 +827,21 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         z: p_final * order.volume_m3 / (d.total_mol * R * t_ref),
         density_g_per_l: mass_g / (order.volume_m3 * 1e3),
         volume_at_reference_m3: reference_volume,
-    };
+    })
+}
 
-    // Components.
-    let components = setup
+/// Each gas of the blend: its share, amount, mass, partial pressure and the pressure it
+/// would give alone.
+fn component_rows(
+    order: &Order,
+    setup: &Setup,
+    n_final: &[f64],
+    p_final: f64,
+    model: Model,
+    catalogue: &Catalogue,
+) -> Vec<ComponentRow> {
+    let t_ref = order.reference_temperature_k;
+    setup
         .gases
         .iter()
         .enumerate()
@@ -747,29 +862,23 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
                 tolerance: order.targets.iter().find(|t| t.gas == g).and_then(|t| t.tolerance),
             }
         })
-        .collect::<Vec<_>>();
+        .collect()
+}
 
-    // Every model's own plan; the selected model's is the one just made.
-    let own = ModelFigures {
-        amount_mol: totals.amount_mol,
-        z: totals.z,
-        step_pressures_pa: steps.iter().map(|s| s.pressure_after_pa).collect(),
-    };
-    let mut others = others.into_iter();
-    let models: Vec<ModelPlan> = Model::ALL
-        .iter()
-        .filter_map(|&m| if m == model { Some(ModelPlan { model: m, result: Ok(own.clone()) }) } else { others.next() })
-        .collect();
-
-    // Stopping at each model's readings, judged by the selected model and by the reference (GERG-2008 or the multi-fluid model).
-    let mut truths = vec![model];
-    if model != reference {
-        truths.push(reference);
-    }
-    if options.skip_following {
-        truths.clear();
-    }
-    let following = truths
+/// The composition made when the blender stops at each model's readings, judged by each
+/// model in `truths`.
+#[allow(clippy::too_many_arguments)]
+fn following_of(
+    truths: Vec<Model>,
+    models: &[ModelPlan],
+    components: &[ComponentRow],
+    order: &Order,
+    setup: &Setup,
+    d: &Dosing,
+    t_fill: f64,
+    catalogue: &Catalogue,
+) -> Vec<Following> {
+    truths
         .into_iter()
         .filter_map(|truth| {
             let truth_fluid = Fluid::new(catalogue, &setup.gases, truth).ok()?;
@@ -782,7 +891,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
                     let fractions: Vec<f64> = if mp.model == truth {
                         setup.x_target.clone()
                     } else {
-                        let made = follow(&truth_fluid, order, &setup, &d, &figures.step_pressures_pa, t_fill).ok()?;
+                        let made = follow(&truth_fluid, order, setup, d, &figures.step_pressures_pa, t_fill).ok()?;
                         let total: f64 = made.iter().sum();
                         made.iter().map(|n| n / total).collect()
                     };
@@ -793,7 +902,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
                         .collect();
                     let out_of_tolerance = fractions
                         .iter()
-                        .zip(&components)
+                        .zip(components)
                         .map(|(x, c)| c.tolerance.is_some_and(|tol| (x - c.mole_fraction).abs() > tol))
                         .collect();
                     Some(Followed { targets_of: mp.model, fractions, relative_error_percent, out_of_tolerance })
@@ -801,11 +910,26 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
                 .collect();
             Some(Following { truth, rows })
         })
-        .collect();
+        .collect()
+}
 
+/// The plan's notes: doubtful tolerances, estimated pairs, the residual gas, the heel,
+/// sources not needed, a fill above the working pressure, a liquefied-gas fill.
+#[allow(clippy::too_many_arguments)]
+fn plan_notes(
+    fluid: &Fluid,
+    order: &Order,
+    setup: &Setup,
+    d: &Dosing,
+    heel: Option<&Heel>,
+    p_final: f64,
+    t_fill: f64,
+    by_mass: bool,
+    catalogue: &Catalogue,
+) -> Vec<String> {
     let mut notes = crate::recipe::tolerance_doubts(order, catalogue);
     if let Some(mixture) = fluid.multifluid() {
-        notes.extend(multi_estimates(mixture, order, &setup, catalogue, d.total_mol));
+        notes.extend(multi_estimates(mixture, order, setup, catalogue, d.total_mol));
     }
     if let Before::Evacuated { residual_pa } = order.before {
         // The residual gas, taken as air (ideal gas at the fill temperature): reported when
@@ -821,7 +945,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
             ));
         }
     }
-    if let Some(h) = &heel {
+    if let Some(h) = heel {
         notes.push(format!(
             "the fill starts from a heel of {} mol ({} g) that reads {:.2} bar at the fill temperature: check the \
              gauge shows it before the first addition",
@@ -843,7 +967,6 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
         ));
     }
 
-    let by_mass = fluid.condensed_tv(t_ref, order.volume_m3, &n_final)?;
     if by_mass {
         notes.push(
             "liquefied-gas fill: the blend is liquid or two-phase at the reference temperature; fill by mass (the \
@@ -851,29 +974,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
                 .into(),
         );
     }
-    let mut plan = Plan {
-        by_mass,
-        model,
-        fluid,
-        gases: setup.gases.clone(),
-        volume_m3: order.volume_m3,
-        totals,
-        components,
-        steps,
-        ambient_pa: order.ambient_pa,
-        fill_temperature_k: t_fill,
-        models,
-        following,
-        premixes: Vec::new(),
-        heel,
-        notes,
-    };
-    // A premix stage is planned at a depth above 0 and proposes nothing itself: the cascade
-    // of the blend's own proposal holds every stage.
-    if depth == 0 {
-        plan.premixes = premix::propose(&plan, order, catalogue, options, plan_at_depth);
-    }
-    Ok(plan)
+    notes
 }
 
 /// The amounts (mol per plan gas) in the cylinder after stopping each step at the given
