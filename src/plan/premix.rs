@@ -122,15 +122,7 @@ pub fn propose(
     options: &PlanOptions,
     planner: Planner,
 ) -> Vec<Proposal> {
-    let balance_gas = match order.balance {
-        Some(b) => order.targets[b].gas,
-        None => {
-            let i = (0..order.composition.gases.len())
-                .max_by(|&a, &b| order.composition.fractions[a].total_cmp(&order.composition.fractions[b]))
-                .unwrap_or(0);
-            order.composition.gases[i]
-        }
-    };
+    let balance_gas = balance_gas_of(order);
     let mut out = Vec::new();
     for (index, step) in plan.steps.iter().enumerate() {
         if !step.flags.iter().any(|f| f.too_small()) {
@@ -147,38 +139,91 @@ pub fn propose(
         if !(x > 0.0) {
             continue;
         }
-        let fill_pressure_pa = plan.totals.pressure_pa.min(order.working_pressure_pa);
-        let stage_options = PlanOptions { order: None, ..options.clone() };
-        // The premix of strength f: the gas in the balance gas.
-        let premix = |f: f64| Composition { gases: vec![gas, balance_gas], fractions: vec![f, 1.0 - f] };
-        let stage_order = |fraction: f64, from: Option<&Stage>| -> Order {
-            let share = share_of(fraction);
-            let first = match from {
-                None => pure(gas, catalogue),
-                Some(s) => Source { name: s.name.clone(), composition: premix(s.fraction), pure: false },
-            };
-            Order {
-                name: stage_name(gas, fraction, balance_gas, catalogue),
-                description: format!("premix for {}", order.name),
-                order: order.order.clone(),
-                targets: vec![
-                    Target { gas, share, tolerance: None },
-                    Target { gas: balance_gas, share: Share::Balance, tolerance: None },
-                ],
-                balance: Some(1),
-                composition: premix(fraction),
-                fill: Fill::PressurePa(fill_pressure_pa),
-                tare_g: None,
-                serial: None,
-                sources: vec![first, pure(balance_gas, catalogue)],
-                fill_order: Vec::new(),
-                notes: String::new(),
-                before: Before::Evacuated { residual_pa: 0.0 },
-                ..order.clone()
-            }
+        let maker = StageMaker {
+            gas,
+            balance_gas,
+            fill_pressure_pa: plan.totals.pressure_pa.min(order.working_pressure_pa),
+            blend: order,
+            catalogue,
+            options: PlanOptions { order: None, ..options.clone() },
+            planner,
         };
-        // The strengths, weakest first: each next one until the pure gas can be dosed. The
-        // plan from the pure gas of the strongest is the first stage's.
+        let Some((fractions, from_pure)) = maker.strengths(x) else { continue };
+        let mut stages = maker.stages(&fractions, from_pure);
+        maker.count_needed(&mut stages, step.add_amount_mol);
+        out.push(Proposal { step: index, gas, stages });
+    }
+    out
+}
+
+/// The blend's balance gas: the one named, else the largest share.
+fn balance_gas_of(order: &Order) -> usize {
+    match order.balance {
+        Some(b) => order.targets[b].gas,
+        None => {
+            let i = (0..order.composition.gases.len())
+                .max_by(|&a, &b| order.composition.fractions[a].total_cmp(&order.composition.fractions[b]))
+                .unwrap_or(0);
+            order.composition.gases[i]
+        }
+    }
+}
+
+/// Makes the premix stages of one gas in the blend's balance gas.
+struct StageMaker<'a> {
+    gas: usize,
+    balance_gas: usize,
+    fill_pressure_pa: f64,
+    blend: &'a Order,
+    catalogue: &'a Catalogue,
+    options: PlanOptions,
+    planner: Planner,
+}
+
+impl StageMaker<'_> {
+    /// The premix of strength `f`: the gas in the balance gas.
+    fn premix(&self, f: f64) -> Composition {
+        Composition { gases: vec![self.gas, self.balance_gas], fractions: vec![f, 1.0 - f] }
+    }
+
+    /// The order of the stage of strength `fraction`, filled from the pure gas or from the
+    /// stage before.
+    fn order(&self, fraction: f64, from: Option<&Stage>) -> Order {
+        let (gas, balance_gas, catalogue, order) = (self.gas, self.balance_gas, self.catalogue, self.blend);
+        let share = share_of(fraction);
+        let first = match from {
+            None => pure(gas, catalogue),
+            Some(s) => Source { name: s.name.clone(), composition: self.premix(s.fraction), pure: false },
+        };
+        Order {
+            name: stage_name(gas, fraction, balance_gas, catalogue),
+            description: format!("premix for {}", order.name),
+            order: order.order.clone(),
+            targets: vec![
+                Target { gas, share, tolerance: None },
+                Target { gas: balance_gas, share: Share::Balance, tolerance: None },
+            ],
+            balance: Some(1),
+            composition: self.premix(fraction),
+            fill: Fill::PressurePa(self.fill_pressure_pa),
+            tare_g: None,
+            serial: None,
+            sources: vec![first, pure(balance_gas, catalogue)],
+            fill_order: Vec::new(),
+            notes: String::new(),
+            before: Before::Evacuated { residual_pa: 0.0 },
+            ..order.clone()
+        }
+    }
+
+    fn plan(&self, o: &Order) -> Result<Plan, PlanError> {
+        (self.planner)(o, self.catalogue, &self.options, MAX_STAGES)
+    }
+
+    /// The strengths, weakest first: each next one until the pure gas can be dosed; with the
+    /// plan from the pure gas of the strongest (the first stage's). None when no strength
+    /// helps.
+    fn strengths(&self, x: f64) -> Option<(Vec<f64>, Result<Plan, PlanError>)> {
         let mut fractions = Vec::new();
         let mut from_pure = None;
         let mut need = x;
@@ -188,10 +233,11 @@ pub fn propose(
                 break;
             }
             fractions.push(f);
-            let planned = planner(&stage_order(f, None), catalogue, &stage_options, MAX_STAGES);
-            let dosable = planned.as_ref().is_ok_and(|p| {
-                p.steps.iter().all(|s| s.source != catalogue.gas(gas).id() || !s.flags.iter().any(|f| f.too_small()))
-            });
+            let planned = self.plan(&self.order(f, None));
+            let id = self.catalogue.gas(self.gas).id();
+            let dosable = planned
+                .as_ref()
+                .is_ok_and(|p| p.steps.iter().all(|s| s.source != id || !s.flags.iter().any(|f| f.too_small())));
             let done = dosable || planned.is_err();
             from_pure = Some(planned);
             if done {
@@ -199,15 +245,19 @@ pub fn propose(
             }
             need = f;
         }
-        let Some(from_pure) = from_pure else { continue };
-        // The stages strongest first (from the pure gas), each planned from the one before.
+        Some((fractions, from_pure?))
+    }
+
+    /// The stages strongest first (from the pure gas), each planned from the one before.
+    fn stages(&self, fractions: &[f64], from_pure: Result<Plan, PlanError>) -> Vec<Stage> {
+        let (gas, balance_gas, catalogue) = (self.gas, self.balance_gas, self.catalogue);
         let mut stages: Vec<Stage> = Vec::new();
         let mut first_plan = Some(from_pure);
         for &f in fractions.iter().rev() {
-            let o = stage_order(f, stages.last());
+            let o = self.order(f, stages.last());
             let planned = match first_plan.take() {
                 Some(p) => p,
-                None => planner(&o, catalogue, &stage_options, MAX_STAGES),
+                None => self.plan(&o),
             };
             let plan = planned.map(Box::new).map_err(|e| e.to_string());
             stages.push(Stage {
@@ -222,17 +272,22 @@ pub fn propose(
                 recipe_name: recipe_name(gas, f, balance_gas, catalogue),
                 needed_mol: 0.0,
                 needed_g: 0.0,
-                fill_pressure_pa,
+                fill_pressure_pa: self.fill_pressure_pa,
                 order: o,
                 plan,
             });
         }
-        // What each stage gives the next: the blend's step, then each stage's premix step.
+        stages
+    }
+
+    /// What each stage gives the next: the blend's step (`step_mol` of the weakest premix),
+    /// then each stage's premix step.
+    fn count_needed(&self, stages: &mut [Stage], step_mol: f64) {
         let last = stages.len() - 1;
-        let mut needed = step.add_amount_mol / stages[last].fraction;
+        let mut needed = step_mol / stages[last].fraction;
         for k in (0..stages.len()).rev() {
             stages[k].needed_mol = needed;
-            stages[k].needed_g = needed * premix(stages[k].fraction).molar_mass(catalogue);
+            stages[k].needed_g = needed * self.premix(stages[k].fraction).molar_mass(self.catalogue);
             if k > 0 {
                 let from = &stages[k - 1].name;
                 needed = stages[k]
@@ -243,9 +298,7 @@ pub fn propose(
                     .map_or(0.0, |s| s.add_amount_mol);
             }
         }
-        out.push(Proposal { step: index, gas, stages });
     }
-    out
 }
 
 /// What accepting a proposal makes: a recipe per stage (the one from the pure gas first),
