@@ -161,7 +161,7 @@ fn function_lengths(text: &str) -> Vec<(String, usize)> {
 fn no_new_function_grows_past_80_lines() {
     // Longer than 80 lines today; split them (in the order a blender would tell the steps)
     // and take them off this list.
-    let known = [("recipe/mod.rs", "resolve"), ("record/composition.rs", "of"), ("thermo/phases.rs", "equilibrium_tv")];
+    let known = [("record/composition.rs", "of"), ("thermo/phases.rs", "equilibrium_tv")];
     let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
     let mut long = Vec::new();
     let mut still_long = Vec::new();

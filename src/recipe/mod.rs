@@ -337,158 +337,29 @@ impl Recipe {
     /// Read every field into numbers, checking it. `text` is the file the recipe came
     /// from (to place errors); pass "" for a recipe built in memory.
     pub fn resolve(&self, catalogue: &Catalogue, text: &str, origin: &str) -> Result<Order, RecipeError> {
-        let err = |needle: &str, message: String| place(origin, text, needle, message);
-        let quoted = |s: &str| format!("\"{s}\"");
+        let placed = |(needle, message): Placed| place(origin, text, &needle, message);
         let ambient_pa = units::parse_pressure(&self.ambient, STANDARD_AMBIENT_PA)
-            .map_err(|e| err(&quoted(&self.ambient), format!("ambient: {e}")))?;
-
-        if self.components.is_empty() {
-            return Err(err("components", "the recipe has no components".into()));
-        }
-        let mut parts: Vec<Part> = Vec::new();
-        let mut targets: Vec<Target> = Vec::new();
-        for line in &self.components {
-            let gas = catalogue.find(&line.gas).map_err(|e| err(&quoted(&line.gas), e.to_string()))?;
-            let id = catalogue.gas(gas).id().to_string();
-            if parts.iter().any(|p| p.gas == gas) {
-                return Err(err(&quoted(&line.gas), format!("{id} is listed twice")));
-            }
-            let share = mixture::parse_share(&line.amount)
-                .map_err(|problem| err(&quoted(&line.amount), format!("{id:?} amount {:?} {problem}", line.amount)))?;
-            parts.push(Part { gas, share });
-        }
-        // The amounts as a whole first (one balance gas, a sum of 100 %): a tolerance is
-        // only judged against a valid composition, so its error cannot hide theirs.
-        mixture::check_parts(&parts, catalogue).map_err(|e| err("components", e.to_string()))?;
-        for (line, part) in self.components.iter().zip(&parts) {
-            let id = catalogue.gas(part.gas).id();
-            let tolerance = match &line.tolerance {
-                None => None,
-                Some(t) => Some(
-                    parse_tolerance(t, part.share.fraction())
-                        .map_err(|p| err(&quoted(t), format!("{id:?} tolerance {t:?}: {p}")))?,
-                ),
-            };
-            targets.push(Target { gas: part.gas, share: part.share, tolerance });
-        }
-        let composition = Composition::from_parts(&parts);
+            .map_err(|e| (quoted(&self.ambient), format!("ambient: {e}")))
+            .map_err(placed)?;
+        let (targets, composition) = self.targets(catalogue).map_err(placed)?;
         let balance = targets.iter().position(|t| t.share == Share::Balance);
-
-        let c = &self.cylinder;
-        let volume_m3 = units::parse_volume(&c.water_capacity)
-            .map_err(|e| err(&quoted(&c.water_capacity), format!("water_capacity: {e}")))?;
-        let working_pressure_pa = units::parse_pressure(&c.working_pressure, ambient_pa)
-            .map_err(|e| err(&quoted(&c.working_pressure), format!("working_pressure: {e}")))?;
-        let test_pressure_pa = units::parse_pressure(&c.test_pressure, ambient_pa)
-            .map_err(|e| err(&quoted(&c.test_pressure), format!("test_pressure: {e}")))?;
-        if test_pressure_pa < working_pressure_pa {
-            return Err(err(
-                &quoted(&c.test_pressure),
-                format!(
-                    "test_pressure {:?} is below the working pressure {:?}; check the cylinder's markings",
-                    c.test_pressure, c.working_pressure
-                ),
-            ));
-        }
-        let tare_g = match &c.tare {
-            None => None,
-            Some(t) => match units::parse_mass(t) {
-                Ok(g) => Some(g),
-                Err(e) => return Err(err(&quoted(t), format!("tare: {e}"))),
-            },
-        };
-
-        let fill = match &self.fill {
-            FillTarget::Pressure(p) => {
-                let pa = units::parse_pressure(p, ambient_pa).map_err(|e| err(&quoted(p), format!("fill: {e}")))?;
-                if pa > test_pressure_pa {
-                    return Err(err(
-                        &quoted(p),
-                        format!(
-                            "fill pressure {p:?} is above the cylinder's test pressure {:?}; this fill must not be made",
-                            c.test_pressure
-                        ),
-                    ));
-                }
-                Fill::PressurePa(pa)
-            }
-            FillTarget::Mass(m) => match units::parse_amount(m) {
-                Ok(AmountInput::Grams(g)) => Fill::MassG(g),
-                Ok(AmountInput::Moles(_)) => {
-                    return Err(err(&quoted(m), format!("fill Mass({m:?}) must be a mass; use Amount(..) for mol")))
-                }
-                Err(e) => return Err(err(&quoted(m), format!("fill: {e}"))),
-            },
-            FillTarget::Amount(n) => match units::parse_amount(n) {
-                Ok(AmountInput::Moles(mol)) => Fill::AmountMol(mol),
-                Ok(AmountInput::Grams(_)) => {
-                    return Err(err(&quoted(n), format!("fill Amount({n:?}) must be in mol; use Mass(..) for g or kg")))
-                }
-                Err(e) => return Err(err(&quoted(n), format!("fill: {e}"))),
-            },
-        };
-
+        let cylinder = cylinder_of(&self.cylinder, ambient_pa).map_err(placed)?;
+        let fill =
+            fill_of(&self.fill, ambient_pa, cylinder.test_pressure_pa, &self.cylinder.test_pressure).map_err(placed)?;
         let reference_temperature_k = units::parse_temperature(&self.reference_temperature)
-            .map_err(|e| err(&quoted(&self.reference_temperature), format!("reference_temperature: {e}")))?;
+            .map_err(|e| (quoted(&self.reference_temperature), format!("reference_temperature: {e}")))
+            .map_err(placed)?;
         let fill_temperature_k = match &self.fill_temperature {
             None => reference_temperature_k,
-            Some(t) => units::parse_temperature(t).map_err(|e| err(&quoted(t), format!("fill_temperature: {e}")))?,
+            Some(t) => units::parse_temperature(t)
+                .map_err(|e| (quoted(t), format!("fill_temperature: {e}")))
+                .map_err(placed)?,
         };
-
-        let sources = if self.sources.is_empty() {
-            targets
-                .iter()
-                .map(|t| {
-                    let id = catalogue.gas(t.gas).id().to_string();
-                    Source {
-                        name: id,
-                        composition: Composition { gases: vec![t.gas], fractions: vec![1.0] },
-                        pure: true,
-                    }
-                })
-                .collect()
-        } else {
-            let mut out: Vec<Source> = Vec::new();
-            for s in &self.sources {
-                let source = match s {
-                    SourceLine::Pure(id) => {
-                        let gas = catalogue.find(id).map_err(|e| err(&quoted(id), format!("source: {e}")))?;
-                        Source {
-                            name: catalogue.gas(gas).id().to_string(),
-                            composition: Composition { gases: vec![gas], fractions: vec![1.0] },
-                            pure: true,
-                        }
-                    }
-                    SourceLine::Premix { name, mix, .. } => {
-                        if name.trim().is_empty() {
-                            return Err(err(&quoted(mix), "a premix source needs a name".into()));
-                        }
-                        let composition = Composition::from_spec(mix, catalogue)
-                            .map_err(|e| err(&quoted(mix), format!("source {name:?}: {e}")))?;
-                        Source { name: name.clone(), composition, pure: false }
-                    }
-                };
-                if out.iter().any(|o| o.name == source.name) {
-                    return Err(err(&quoted(&source.name), format!("source {:?} is listed twice", source.name)));
-                }
-                out.push(source);
-            }
-            out
-        };
-
-        let before = resolve_before(&self.before_fill, catalogue, ambient_pa, test_pressure_pa, fill_temperature_k)
-            .map_err(|(needle, message)| err(&quoted(&needle), message))?;
-
-        for name in &self.fill_order {
-            if !sources.iter().any(|s| &s.name == name) {
-                let known: Vec<&str> = sources.iter().map(|s| s.name.as_str()).collect();
-                return Err(err(
-                    &quoted(name),
-                    format!("fill_order names {name:?}, which is not a source; the sources are {}", known.join(", ")),
-                ));
-            }
-        }
-
+        let sources = self.sources_of(&targets, catalogue).map_err(placed)?;
+        let before =
+            resolve_before(&self.before_fill, catalogue, ambient_pa, cylinder.test_pressure_pa, fill_temperature_k)
+                .map_err(|(needle, message)| placed((quoted(&needle), message)))?;
+        check_fill_order(&self.fill_order, &sources).map_err(placed)?;
         Ok(Order {
             name: self.name.clone(),
             description: self.description.clone(),
@@ -496,11 +367,11 @@ impl Recipe {
             targets,
             balance,
             composition,
-            volume_m3,
-            working_pressure_pa,
-            test_pressure_pa,
-            tare_g,
-            serial: c.serial.clone(),
+            volume_m3: cylinder.volume_m3,
+            working_pressure_pa: cylinder.working_pressure_pa,
+            test_pressure_pa: cylinder.test_pressure_pa,
+            tare_g: cylinder.tare_g,
+            serial: self.cylinder.serial.clone(),
             fill,
             reference_temperature_k,
             fill_temperature_k,
@@ -512,6 +383,160 @@ impl Recipe {
             notes: self.notes.clone(),
         })
     }
+
+    /// The components read: each gas once, the amounts as a whole first (one balance gas, a
+    /// sum of 100 %), then the tolerances (only judged against a valid composition, so that
+    /// their error cannot hide the amounts').
+    fn targets(&self, catalogue: &Catalogue) -> Result<(Vec<Target>, Composition), Placed> {
+        if self.components.is_empty() {
+            return Err(("components".into(), "the recipe has no components".into()));
+        }
+        let mut parts: Vec<Part> = Vec::new();
+        for line in &self.components {
+            let gas = catalogue.find(&line.gas).map_err(|e| (quoted(&line.gas), e.to_string()))?;
+            let id = catalogue.gas(gas).id().to_string();
+            if parts.iter().any(|p| p.gas == gas) {
+                return Err((quoted(&line.gas), format!("{id} is listed twice")));
+            }
+            let share = mixture::parse_share(&line.amount)
+                .map_err(|problem| (quoted(&line.amount), format!("{id:?} amount {:?} {problem}", line.amount)))?;
+            parts.push(Part { gas, share });
+        }
+        mixture::check_parts(&parts, catalogue).map_err(|e| ("components".to_string(), e.to_string()))?;
+        let mut targets = Vec::new();
+        for (line, part) in self.components.iter().zip(&parts) {
+            let id = catalogue.gas(part.gas).id();
+            let tolerance = match &line.tolerance {
+                None => None,
+                Some(t) => Some(
+                    parse_tolerance(t, part.share.fraction())
+                        .map_err(|p| (quoted(t), format!("{id:?} tolerance {t:?}: {p}")))?,
+                ),
+            };
+            targets.push(Target { gas: part.gas, share: part.share, tolerance });
+        }
+        Ok((targets, Composition::from_parts(&parts)))
+    }
+
+    /// The sources: as listed (pure gases by id, premixes by name and composition), each
+    /// name once; none listed, each target gas pure.
+    fn sources_of(&self, targets: &[Target], catalogue: &Catalogue) -> Result<Vec<Source>, Placed> {
+        let pure = |gas: usize| Source {
+            name: catalogue.gas(gas).id().to_string(),
+            composition: Composition { gases: vec![gas], fractions: vec![1.0] },
+            pure: true,
+        };
+        if self.sources.is_empty() {
+            return Ok(targets.iter().map(|t| pure(t.gas)).collect());
+        }
+        let mut out: Vec<Source> = Vec::new();
+        for s in &self.sources {
+            let source = match s {
+                SourceLine::Pure(id) => pure(catalogue.find(id).map_err(|e| (quoted(id), format!("source: {e}")))?),
+                SourceLine::Premix { name, mix, .. } => {
+                    if name.trim().is_empty() {
+                        return Err((quoted(mix), "a premix source needs a name".into()));
+                    }
+                    let composition = Composition::from_spec(mix, catalogue)
+                        .map_err(|e| (quoted(mix), format!("source {name:?}: {e}")))?;
+                    Source { name: name.clone(), composition, pure: false }
+                }
+            };
+            if out.iter().any(|o| o.name == source.name) {
+                return Err((quoted(&source.name), format!("source {:?} is listed twice", source.name)));
+            }
+            out.push(source);
+        }
+        Ok(out)
+    }
+}
+
+/// A field's problem: the text to place it at in the file, and the message.
+type Placed = (String, String);
+
+/// A value as it is written in the file (quoted), to find it there.
+fn quoted(s: &str) -> String {
+    format!("\"{s}\"")
+}
+
+/// The cylinder's figures read.
+struct CylinderFigures {
+    volume_m3: f64,
+    working_pressure_pa: f64,
+    test_pressure_pa: f64,
+    tare_g: Option<f64>,
+}
+
+/// The cylinder read: water capacity, working and test pressure (the test pressure not
+/// below the working one), tare.
+fn cylinder_of(c: &CylinderLine, ambient_pa: f64) -> Result<CylinderFigures, Placed> {
+    let volume_m3 = units::parse_volume(&c.water_capacity)
+        .map_err(|e| (quoted(&c.water_capacity), format!("water_capacity: {e}")))?;
+    let working_pressure_pa = units::parse_pressure(&c.working_pressure, ambient_pa)
+        .map_err(|e| (quoted(&c.working_pressure), format!("working_pressure: {e}")))?;
+    let test_pressure_pa = units::parse_pressure(&c.test_pressure, ambient_pa)
+        .map_err(|e| (quoted(&c.test_pressure), format!("test_pressure: {e}")))?;
+    if test_pressure_pa < working_pressure_pa {
+        return Err((
+            quoted(&c.test_pressure),
+            format!(
+                "test_pressure {:?} is below the working pressure {:?}; check the cylinder's markings",
+                c.test_pressure, c.working_pressure
+            ),
+        ));
+    }
+    let tare_g = match &c.tare {
+        None => None,
+        Some(t) => Some(units::parse_mass(t).map_err(|e| (quoted(t), format!("tare: {e}")))?),
+    };
+    Ok(CylinderFigures { volume_m3, working_pressure_pa, test_pressure_pa, tare_g })
+}
+
+/// The fill target read: a pressure (not above the test pressure, `test_text` as written),
+/// a mass or an amount, each in its own kind of unit.
+fn fill_of(fill: &FillTarget, ambient_pa: f64, test_pressure_pa: f64, test_text: &str) -> Result<Fill, Placed> {
+    Ok(match fill {
+        FillTarget::Pressure(p) => {
+            let pa = units::parse_pressure(p, ambient_pa).map_err(|e| (quoted(p), format!("fill: {e}")))?;
+            if pa > test_pressure_pa {
+                return Err((
+                    quoted(p),
+                    format!(
+                        "fill pressure {p:?} is above the cylinder's test pressure {test_text:?}; this fill must not be made"
+                    ),
+                ));
+            }
+            Fill::PressurePa(pa)
+        }
+        FillTarget::Mass(m) => match units::parse_amount(m) {
+            Ok(AmountInput::Grams(g)) => Fill::MassG(g),
+            Ok(AmountInput::Moles(_)) => {
+                return Err((quoted(m), format!("fill Mass({m:?}) must be a mass; use Amount(..) for mol")))
+            }
+            Err(e) => return Err((quoted(m), format!("fill: {e}"))),
+        },
+        FillTarget::Amount(n) => match units::parse_amount(n) {
+            Ok(AmountInput::Moles(mol)) => Fill::AmountMol(mol),
+            Ok(AmountInput::Grams(_)) => {
+                return Err((quoted(n), format!("fill Amount({n:?}) must be in mol; use Mass(..) for g or kg")))
+            }
+            Err(e) => return Err((quoted(n), format!("fill: {e}"))),
+        },
+    })
+}
+
+/// Every name in the fill order is a source.
+fn check_fill_order(fill_order: &[String], sources: &[Source]) -> Result<(), Placed> {
+    for name in fill_order {
+        if !sources.iter().any(|s| &s.name == name) {
+            let known: Vec<&str> = sources.iter().map(|s| s.name.as_str()).collect();
+            return Err((
+                quoted(name),
+                format!("fill_order names {name:?}, which is not a source; the sources are {}", known.join(", ")),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// Read what is in the cylinder before the fill; an error gives the text to place it at
