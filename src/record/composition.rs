@@ -145,6 +145,37 @@ fn fraction<T: Real>(term: &Term, x: &[T]) -> T {
     }
 }
 
+/// Each gas's formula as (atomic-weight input, count) pairs; an element's atomic weight is
+/// one input shared by every gas that holds it (CIAAW interval, rectangular).
+fn formula_inputs(
+    gases: &[usize],
+    catalogue: &Catalogue,
+    inputs: &mut Inputs,
+) -> Result<Vec<Vec<(usize, f64)>>, String> {
+    let mut elements: Vec<(String, usize)> = Vec::new();
+    let mut formulas = Vec::new();
+    for &g in gases {
+        let gas = catalogue.gas(g);
+        let counts = formula::element_counts(&gas.record.formula).map_err(|e| format!("{}: {e}", gas.id()))?;
+        let mut f = Vec::new();
+        for (symbol, n) in counts {
+            let j = match elements.iter().find(|(s, _)| *s == symbol) {
+                Some(&(_, j)) => j,
+                None => {
+                    let value = formula::atomic_weight(&symbol).unwrap_or(f64::NAN);
+                    let u = formula::atomic_weight_uncertainty(&symbol).unwrap_or(0.0);
+                    let j = inputs.push(format!("atomic weight of {symbol}"), value, u, Shape::Rectangular);
+                    elements.push((symbol, j));
+                    j
+                }
+            };
+            f.push((j, f64::from(n)));
+        }
+        formulas.push(f);
+    }
+    Ok(formulas)
+}
+
 impl Measurand {
     /// The composition made from the complete additions of a checked record. `model` and
     /// `volume_m3` serve a record of pressure readings; `others` are the models whose
@@ -156,111 +187,100 @@ impl Measurand {
         volume_m3: Option<f64>,
         others: &[Model],
     ) -> Result<Measurand, String> {
-        let mut inputs = Inputs::default();
-        let mut gases = Vec::new();
-        let additions = &checked.additions[..checked.complete];
         match checked.method {
-            super::Method::Gravimetric => {
-                let weighings = weighing_inputs(checked, &mut inputs);
-                let buoyancy = checked.buoyancy.as_ref().map(|b| buoyancy_inputs(b, weighings.len(), &mut inputs));
-                let sources: Vec<SourceTerms> = additions
-                    .iter()
-                    .enumerate()
-                    .map(|(k, a)| source_terms(k, "source", &a.source, &mut gases, &mut inputs, catalogue))
-                    .collect();
-                let mut elements: Vec<(String, usize)> = Vec::new();
-                let mut formulas = Vec::new();
-                for &g in &gases {
-                    let gas = catalogue.gas(g);
-                    let counts =
-                        formula::element_counts(&gas.record.formula).map_err(|e| format!("{}: {e}", gas.id()))?;
-                    let mut f = Vec::new();
-                    for (symbol, n) in counts {
-                        let j = match elements.iter().find(|(s, _)| *s == symbol) {
-                            Some(&(_, j)) => j,
-                            None => {
-                                let value = formula::atomic_weight(&symbol).unwrap_or(f64::NAN);
-                                let u = formula::atomic_weight_uncertainty(&symbol).unwrap_or(0.0);
-                                let j = inputs.push(format!("atomic weight of {symbol}"), value, u, Shape::Rectangular);
-                                elements.push((symbol, j));
-                                j
-                            }
-                        };
-                        f.push((j, f64::from(n)));
-                    }
-                    formulas.push(f);
-                }
-                Ok(Measurand { gases, inputs, method: Kind::Gravimetric { weighings, buoyancy, formulas }, sources })
-            }
+            super::Method::Gravimetric => Self::gravimetric_of(checked, catalogue),
             super::Method::Manometric => {
                 let volume_m3 = volume_m3.ok_or_else(|| {
                     "a record of pressure readings needs the cylinder's water capacity (water_capacity: \"10L\", or \
                      the recipe in the library)"
                         .to_string()
                 })?;
-                let mut pressures = Vec::new();
-                let mut temperatures = Vec::new();
-                for (k, a) in additions.iter().enumerate() {
-                    let (p, t) = a.reading.expect("complete additions have readings");
-                    pressures.push(inputs.push(
-                        format!("pressure reading {}", k + 1),
-                        p,
-                        checked.pressure_u_pa,
-                        Shape::Normal,
-                    ));
-                    temperatures.push(inputs.push(
-                        format!("cylinder temperature {}", k + 1),
-                        t,
-                        checked.temperature_u_k,
-                        Shape::Normal,
-                    ));
-                }
-                let sources: Vec<SourceTerms> = additions
-                    .iter()
-                    .enumerate()
-                    .map(|(k, a)| source_terms(k, "source", &a.source, &mut gases, &mut inputs, catalogue))
-                    .collect();
-                let fluid = Fluid::new(catalogue, &gases, model).map_err(|e| e.to_string())?;
-                let mut m = Manometric {
-                    fluid,
-                    volume_m3,
-                    pressures,
-                    temperatures,
-                    model_input: None,
-                    model_shift: vec![0.0; gases.len()],
-                    furthest: None,
-                };
-                let mut me =
-                    Measurand { gases: gases.clone(), inputs, method: Kind::Manometric(Box::new(m.clone())), sources };
-                let base = me.values()?;
-                // The model spread: the composition under each other model; the one furthest
-                // away (largest relative change of any component) bounds a rectangular input.
-                for &other in others.iter().filter(|&&o| o != model) {
-                    let Ok(fluid) = Fluid::new(catalogue, &gases, other) else { continue };
-                    let probe = Manometric { fluid, ..m.clone() };
-                    let Ok(x) = me.manometric_values(&probe, &me.inputs.values()) else { continue };
-                    let spread = x
-                        .iter()
-                        .zip(&base)
-                        .map(|(a, b)| if *b > 0.0 { ((a - b) / b).abs() } else { 0.0 })
-                        .fold(0.0, f64::max);
-                    if m.furthest.is_none_or(|(_, s)| spread > s) {
-                        m.furthest = Some((other, spread));
-                        m.model_shift = x.iter().zip(&base).map(|(a, b)| a - b).collect();
-                    }
-                }
-                if let Some((other, _)) = m.furthest {
-                    m.model_input = Some(me.inputs.push(
-                        format!("model ({} against {})", model.key(), other.key()),
-                        0.0,
-                        1.0 / 3f64.sqrt(),
-                        Shape::Rectangular,
-                    ));
-                }
-                me.method = Kind::Manometric(Box::new(m));
-                Ok(me)
+                Self::manometric_of(checked, catalogue, model, volume_m3, others)
             }
         }
+    }
+
+    /// By weighing: the weighings (and the air at each), the sources, and the atomic weights
+    /// of every element of the blend's gases.
+    fn gravimetric_of(checked: &Checked, catalogue: &Catalogue) -> Result<Measurand, String> {
+        let mut inputs = Inputs::default();
+        let mut gases = Vec::new();
+        let additions = &checked.additions[..checked.complete];
+        let weighings = weighing_inputs(checked, &mut inputs);
+        let buoyancy = checked.buoyancy.as_ref().map(|b| buoyancy_inputs(b, weighings.len(), &mut inputs));
+        let sources: Vec<SourceTerms> = additions
+            .iter()
+            .enumerate()
+            .map(|(k, a)| source_terms(k, "source", &a.source, &mut gases, &mut inputs, catalogue))
+            .collect();
+        let formulas = formula_inputs(&gases, catalogue, &mut inputs)?;
+        Ok(Measurand { gases, inputs, method: Kind::Gravimetric { weighings, buoyancy, formulas }, sources })
+    }
+
+    /// By pressure readings: each reading and temperature, the sources, and the spread of
+    /// the other models as a rectangular input bounded by the one furthest away.
+    fn manometric_of(
+        checked: &Checked,
+        catalogue: &Catalogue,
+        model: Model,
+        volume_m3: f64,
+        others: &[Model],
+    ) -> Result<Measurand, String> {
+        let mut inputs = Inputs::default();
+        let mut gases = Vec::new();
+        let additions = &checked.additions[..checked.complete];
+        let mut pressures = Vec::new();
+        let mut temperatures = Vec::new();
+        for (k, a) in additions.iter().enumerate() {
+            let (p, t) = a.reading.expect("complete additions have readings");
+            pressures.push(inputs.push(format!("pressure reading {}", k + 1), p, checked.pressure_u_pa, Shape::Normal));
+            temperatures.push(inputs.push(
+                format!("cylinder temperature {}", k + 1),
+                t,
+                checked.temperature_u_k,
+                Shape::Normal,
+            ));
+        }
+        let sources: Vec<SourceTerms> = additions
+            .iter()
+            .enumerate()
+            .map(|(k, a)| source_terms(k, "source", &a.source, &mut gases, &mut inputs, catalogue))
+            .collect();
+        let fluid = Fluid::new(catalogue, &gases, model).map_err(|e| e.to_string())?;
+        let mut m = Manometric {
+            fluid,
+            volume_m3,
+            pressures,
+            temperatures,
+            model_input: None,
+            model_shift: vec![0.0; gases.len()],
+            furthest: None,
+        };
+        let mut me = Measurand { gases: gases.clone(), inputs, method: Kind::Manometric(Box::new(m.clone())), sources };
+        let base = me.values()?;
+        // The model spread: the composition under each other model; the one furthest
+        // away (largest relative change of any component) bounds a rectangular input.
+        for &other in others.iter().filter(|&&o| o != model) {
+            let Ok(fluid) = Fluid::new(catalogue, &gases, other) else { continue };
+            let probe = Manometric { fluid, ..m.clone() };
+            let Ok(x) = me.manometric_values(&probe, &me.inputs.values()) else { continue };
+            let spread =
+                x.iter().zip(&base).map(|(a, b)| if *b > 0.0 { ((a - b) / b).abs() } else { 0.0 }).fold(0.0, f64::max);
+            if m.furthest.is_none_or(|(_, s)| spread > s) {
+                m.furthest = Some((other, spread));
+                m.model_shift = x.iter().zip(&base).map(|(a, b)| a - b).collect();
+            }
+        }
+        if let Some((other, _)) = m.furthest {
+            m.model_input = Some(me.inputs.push(
+                format!("model ({} against {})", model.key(), other.key()),
+                0.0,
+                1.0 / 3f64.sqrt(),
+                Shape::Rectangular,
+            ));
+        }
+        me.method = Kind::Manometric(Box::new(m));
+        Ok(me)
     }
 
     /// The model behind a manometric composition and the one furthest from it.

@@ -391,44 +391,57 @@ impl Fluid {
             return Err(ThermoError::Volume(volume_m3 * 1e3));
         }
         if let Some(i) = single_component(&z) {
-            let c = &self.cubic[i];
-            return match self.saturation(t_k, &z)? {
-                Some(s) if v < s.v_vapour_m3 && v > s.v_liquid_m3 => {
-                    // n_L v_L + n_V v_V = V: the lever rule on the molar volumes.
-                    let liquid_fraction = (s.v_vapour_m3 - v) / (s.v_vapour_m3 - s.v_liquid_m3);
-                    Ok(Equilibrium {
-                        phase: Phase::TwoPhase,
-                        pressure_pa: s.pressure_pa,
-                        molar_volume_m3: v,
-                        liquid_fraction,
-                        liquid: Some(z.clone()),
-                        vapour: Some(z),
-                        phase_volumes_m3: Some((s.v_liquid_m3, s.v_vapour_m3)),
-                        judged_by: s.model,
-                    })
-                }
-                Some(s) => {
-                    let p = self.pressure_tv(t_k, v, &z)?;
-                    let phase = if v <= s.v_liquid_m3 { Phase::Liquid } else { Phase::Gas };
-                    Ok(single(phase, p, v, self.model))
-                }
-                None => {
-                    let p = self.pressure_tv(t_k, v, &z)?;
-                    Ok(single(if p >= c.pc_pa { Phase::Supercritical } else { Phase::Gas }, p, v, self.model))
-                }
-            };
+            return self.pure_equilibrium_tv(i, t_k, v, z);
         }
         let screen = self.phase_screen();
         if let Some(p_screen) = screen.single_phase_at(t_k, v, &z)? {
             let p = if self.model == screen.model { p_screen } else { self.pressure_tv(t_k, v, &z)? };
             return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
         }
+        screen.split_at_volume(t_k, v, &z, volume_m3)
+    }
+
+    /// A pure fluid (component `i`, feed `z`) of molar volume `v` at T: between the
+    /// saturated volumes, liquid and vapour at the saturation pressure by the lever rule.
+    fn pure_equilibrium_tv(&self, i: usize, t_k: f64, v: f64, z: Vec<f64>) -> Result<Equilibrium, ThermoError> {
+        let c = &self.cubic[i];
+        match self.saturation(t_k, &z)? {
+            Some(s) if v < s.v_vapour_m3 && v > s.v_liquid_m3 => {
+                // n_L v_L + n_V v_V = V: the lever rule on the molar volumes.
+                let liquid_fraction = (s.v_vapour_m3 - v) / (s.v_vapour_m3 - s.v_liquid_m3);
+                Ok(Equilibrium {
+                    phase: Phase::TwoPhase,
+                    pressure_pa: s.pressure_pa,
+                    molar_volume_m3: v,
+                    liquid_fraction,
+                    liquid: Some(z.clone()),
+                    vapour: Some(z),
+                    phase_volumes_m3: Some((s.v_liquid_m3, s.v_vapour_m3)),
+                    judged_by: s.model,
+                })
+            }
+            Some(s) => {
+                let p = self.pressure_tv(t_k, v, &z)?;
+                let phase = if v <= s.v_liquid_m3 { Phase::Liquid } else { Phase::Gas };
+                Ok(single(phase, p, v, self.model))
+            }
+            None => {
+                let p = self.pressure_tv(t_k, v, &z)?;
+                Ok(single(if p >= c.pc_pa { Phase::Supercritical } else { Phase::Gas }, p, v, self.model))
+            }
+        }
+    }
+
+    /// Contents that split on this (screen) fluid: the pressure whose equilibrium volume is
+    /// `v`, with the phases' amounts from the lever rule.
+    fn split_at_volume(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
+        let screen = self;
         // Split: find the pressure whose equilibrium volume (on the screen) is V/n. The
         // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
         // on ln v_eq − ln v over ln P, bisecting every third step, to 1e-9 in ln P.
         let target = v.ln();
         let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
-            let e = screen.equilibrium_tp(t_k, lp.exp().min(MAX_PRESSURE_PA), &z)?;
+            let e = screen.equilibrium_tp(t_k, lp.exp().min(MAX_PRESSURE_PA), z)?;
             Ok((e.molar_volume_m3.ln() - target, e))
         };
         let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
