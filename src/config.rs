@@ -88,7 +88,8 @@ pub fn recipe_text(name: &str, library: Option<&Path>) -> Result<(String, String
                 format!("{name}: {e}")
             } else {
                 format!(
-                    "{name}: no such file; a recipe is a file, a library name (`fillwright list`) or a demo recipe name"
+                    "{name}: no such file; a recipe is a file, a library name (`fillwright list`), a demo recipe \
+                     name, or `-` for standard input"
                 )
             }
         });
