@@ -248,6 +248,16 @@ pub enum AmountInput {
     Grams(f64),
 }
 
+/// A count with its noun, singular or plural: `count(1, "weighing")` is "1 weighing",
+/// `count(3, "addition")` "3 additions".
+pub fn count(n: usize, noun: &str) -> String {
+    if n == 1 {
+        format!("1 {noun}")
+    } else {
+        format!("{n} {noun}s")
+    }
+}
+
 /// A mass as written (`13412.00g`, `13.4kg`), in grams; None for anything else.
 pub fn grams(text: &str) -> Option<f64> {
     match parse_amount(text) {

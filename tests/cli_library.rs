@@ -2,7 +2,7 @@
 
 mod common;
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
 fn fresh(tag: &str) -> PathBuf {
@@ -162,6 +162,37 @@ fn list_history_and_records_give_csv_tables() {
     assert!(o.status.success(), "{}", err(&o));
     assert_eq!(out(&o), "id,recipe,revision,cylinder,started,finished,state,error\n");
     let _ = std::fs::remove_dir_all(&config);
+}
+
+#[test]
+fn the_records_list_shows_the_start_date_whole_and_counts_in_words() {
+    let config = fresh("records-words");
+    assert!(run(&config, &["list"]).status.success());
+    let fixture = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/records/flue-gas-made.ron");
+    let text = std::fs::read_to_string(fixture).unwrap();
+    // A fill started and one weighing in: the empty cylinder.
+    let started = text.replacen("    format: 1,", "    format: 1,\n    started: Some(\"2026-12-04T09:12:30Z\"),", 1);
+    let one = started.replace(
+        "weighings: [\"13412.000g\", \"13504.850g\", \"13942.450g\", \"15473.450g\"]",
+        "weighings: [\"13412.000g\"]",
+    );
+    assert_ne!(one, started, "the fixture's weighings were found");
+    let records = config.join("library/records");
+    std::fs::create_dir_all(&records).unwrap();
+    std::fs::write(records.join("2026-12-04-flue-gas-span.ron"), &one).unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(["records"])
+        .env("FILLWRIGHT_CONFIG", &config)
+        .env_remove("FILLWRIGHT_LIBRARY")
+        .env("COLUMNS", "200")
+        .output()
+        .unwrap();
+    let listed = out(&o);
+    assert!(o.status.success(), "{}", err(&o));
+    assert!(listed.contains(" 2026-12-04 "), "the start date whole:\n{listed}");
+    assert!(listed.contains("\n2026-12-04-flue-gas-span "), "the record id whole (certify takes it):\n{listed}");
+    assert!(listed.contains("in progress, 1 weighing\n"), "one weighing, singular:\n{listed}");
+    assert!(listed.lines().all(|l| l.chars().count() <= 80), "{listed}");
 }
 
 #[test]

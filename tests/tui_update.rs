@@ -219,6 +219,8 @@ fn views_need_a_recipe_and_tab_cycles_them() {
     keys(&mut model, &mut ctx, &[Key::Char('3')]);
     assert_eq!(model.view, View::Sheet);
     keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert_eq!(model.view, View::Sheet, "Esc stays on the Fill sheet");
+    keys(&mut model, &mut ctx, &[Key::Char('4'), Key::Esc]);
     assert_eq!(model.view, View::Library);
     keys(&mut model, &mut ctx, &[Key::Char('?')]);
     assert!(matches!(model.overlay, Overlay::Help));
@@ -818,7 +820,7 @@ fn the_screening_cursor_stays_on_its_check_when_the_list_resorts() {
     keys(&mut model, &mut ctx, &[Key::Char('5'), Key::Down, Key::Down, Key::Down]);
     let chosen = |m: &Model| {
         let checks = m.doc.as_ref().unwrap().computed.checks.as_ref().unwrap();
-        checks[m.check_selected].id
+        checks[m.check_selected.unwrap()].id
     };
     let before = chosen(&model);
     // Fill above the working pressure: the rating moves to the top of the list.
@@ -1384,4 +1386,85 @@ fn a_tolerance_as_wide_as_the_amount_is_questioned() {
     text(&mut model, &mut ctx, "2%rel");
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert_eq!(model.status, "recomputed");
+}
+
+fn render_at(model: &Model, ctx: &Context, w: u16, h: u16) -> String {
+    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(w, h)).unwrap();
+    terminal.draw(|f| fillwright::tui::view::view(model, &ctx.catalogue, f)).unwrap();
+    fillwright::tui::scenes::text(terminal.backend().buffer())
+}
+
+#[test]
+fn every_view_s_help_fits_whole_at_80_by_24() {
+    let (mut model, mut ctx, _dir) = setup("help-fits");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    for view in ['1', '2', '3', '4', '5'] {
+        keys(&mut model, &mut ctx, &[Key::Char(view), Key::Char('?')]);
+        let screen = render_at(&model, &ctx, 80, 24);
+        // The shared keys close the help: its last line is on the screen, inside the box.
+        assert!(screen.contains("Esc         back out"), "view {view}:\n{screen}");
+        let last = screen.lines().position(|l| l.contains("Esc         back out")).unwrap();
+        assert!(screen.lines().nth(last + 1).is_some_and(|l| l.contains('└')), "view {view}: the box is cut\n{screen}");
+        // Every help line is whole on one screen line: none wrapped.
+        let v = fillwright::tui::model::View::ALL[(view as u8 - b'1') as usize];
+        for line in fillwright::tui::views::of(v).help() {
+            assert!(screen.lines().any(|l| l.contains(line.trim_end())), "view {view}: {line:?} is cut\n{screen}");
+        }
+        keys(&mut model, &mut ctx, &[Key::Esc]);
+    }
+}
+
+#[test]
+fn the_screening_view_opens_on_the_worst_check_and_the_oxygen_caution_needs_an_oxidiser() {
+    let (mut model, mut ctx, _dir) = setup("screen-worst");
+    // Methane in synthetic air: flammability and oxidising at caution or worse, condensation ok.
+    open(&mut model, &mut ctx, "detector-test-ch4-air");
+    keys(&mut model, &mut ctx, &[Key::Char('5')]);
+    let checks = model.doc.as_ref().unwrap().computed.checks.clone().unwrap();
+    let worst = checks.iter().map(|c| c.severity).max().unwrap();
+    assert_ne!(checks[0].severity, worst, "the first check is not the worst here, so the test means something");
+    let screen = render_at(&model, &ctx, 120, 40);
+    let chosen = screen.lines().find(|l| l.contains('▶')).unwrap();
+    assert!(chosen.contains(worst.key()), "the view opens on a {} check:\n{screen}", worst.key());
+    assert!(screen.contains("oxygen-clean"), "O2 in the blend: the caution is shown\n{screen}");
+    // A blend without any oxidiser does not get the oxygen-clean caution.
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    open(&mut model, &mut ctx, "fuel-cell-h2-he");
+    keys(&mut model, &mut ctx, &[Key::Char('5')]);
+    let screen = render_at(&model, &ctx, 120, 40);
+    assert!(screen.contains("Follow local codes"), "{screen}");
+    assert!(!screen.contains("oxygen-clean"), "no oxidiser, no oxygen-clean caution:\n{screen}");
+    // The oxidising sum reads the same in the heading and the detail.
+    let ox = checks.iter().find(|c| c.id == "oxidising").unwrap();
+    let sum = ox.data["oxygen_equivalent"].as_f64().unwrap();
+    assert!(ox.message.contains(&format!("{sum:.4}")), "{}", ox.message);
+    assert!(ox.details.iter().any(|d| d.contains(&format!("{sum:.4}"))), "{:?}", ox.details);
+}
+
+#[test]
+fn a_new_gas_is_typed_fresh_esc_stays_on_the_fill_sheet_and_search_reads_descriptions() {
+    let (mut model, mut ctx, _dir) = setup("fields-words");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    text(&mut model, &mut ctx, "argon");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    // Typing replaces the provisional amount; nothing to clear first.
+    text(&mut model, &mut ctx, "400ppm");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components.iter().find(|c| c.gas == "Ar").unwrap().amount, "400ppm");
+    // Esc on the Fill sheet does not leave it (a key typed next acts on the sheet).
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Esc]);
+    assert_eq!(model.view, View::Sheet);
+    assert!(model.status.contains("Esc stays"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Char('2'), Key::Esc]);
+    assert_eq!(model.view, View::Library, "elsewhere Esc still goes back to the Library");
+    // The library search reads descriptions and notes too.
+    let description = ctx.library.open("pipeline-ng-9").unwrap().recipe.description;
+    let word = description.split_whitespace().find(|w| w.len() > 5 && w.chars().all(char::is_alphabetic)).unwrap();
+    assert!(!"pipeline-ng-9".contains(&word.to_lowercase()));
+    keys(&mut model, &mut ctx, &[Key::Char('/')]);
+    text(&mut model, &mut ctx, &word.to_lowercase());
+    let names: Vec<&str> = model.library.visible().iter().map(|&i| model.library.entries[i].name.as_str()).collect();
+    assert!(names.contains(&"pipeline-ng-9"), "{word}: {names:?}");
 }

@@ -125,9 +125,9 @@ pub fn oxidising(plan: &Plan, catalogue: &Catalogue) -> Check {
             format!("oxidising, {:.1} % O2: oxygen service, oxygen-clean equipment and slow filling", o2 * 100.0),
         )
     } else if oxidising {
-        (Severity::Caution, format!("more oxidising than air (Σ x·C = {sum:.3} > {OXIDISING_LIMIT})"))
+        (Severity::Caution, format!("more oxidising than air (Σ x·C = {sum:.4} > {OXIDISING_LIMIT})"))
     } else {
-        (Severity::Ok, format!("not more oxidising than air (Σ x·C = {sum:.3})"))
+        (Severity::Ok, format!("not more oxidising than air (Σ x·C = {sum:.4})"))
     };
     Check { id: "oxidising", severity, message, details, data }
 }

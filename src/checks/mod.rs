@@ -76,8 +76,21 @@ pub const CAUTIONS: &[&str] = &[
     "Follow local codes, the cylinder's markings (working and test pressure, test date, valve outlet) and licensed practice.",
     "High-pressure gas can kill: use rated equipment, fill slowly (the cylinder warms as it fills) and never exceed the working pressure.",
     "Flammable, toxic and oxidising gases need their own valves, labels, ventilation and leak checks; keep oxidisers and flammables apart until the procedure says otherwise.",
-    "Mixtures above about 23.5 % O2 need oxygen-clean equipment; rapid filling with oxygen heats the gas adiabatically (common practice).",
+    OXYGEN_CLEAN,
 ];
+
+/// The caution for blends with an oxidiser (the last of [`CAUTIONS`]).
+const OXYGEN_CLEAN: &str = "Mixtures above about 23.5 % O2 need oxygen-clean equipment; rapid filling with oxygen heats the gas adiabatically (common practice).";
+
+/// The cautions that apply to blends with these checks: all of [`CAUTIONS`], the
+/// oxygen-clean one only where some blend holds an oxidiser (Σ x·C above zero, from the
+/// oxidising check).
+pub fn cautions_for<'a>(checks: impl IntoIterator<Item = &'a Check>) -> Vec<&'static str> {
+    let oxidiser = checks.into_iter().any(|c| {
+        c.id == "oxidising" && c.data.get("oxygen_equivalent").and_then(|v| v.as_f64()).is_some_and(|x| x > 0.0)
+    });
+    CAUTIONS.iter().copied().filter(|c| oxidiser || *c != OXYGEN_CLEAN).collect()
+}
 
 /// The model used for the equation-of-state parts of the screening: the plan's cubic
 /// model where it has one, else Peng–Robinson.

@@ -169,7 +169,7 @@ pub struct Summary {
     pub cylinder: String,
     pub revision: u64,
     /// What a search looks in besides the name and title: the order reference, the
-    /// cylinder serial and the gases, lower case.
+    /// cylinder serial, the description, the notes and the gases, lower case.
     pub search_text: String,
     /// The recipe as read, and the fingerprint of its file (for what is computed from it,
     /// such as the screening column, without reading the file again).
@@ -191,12 +191,17 @@ impl Summary {
             },
             cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
             revision: r.revision,
-            search_text: [r.order.as_str(), r.cylinder.serial.as_deref().unwrap_or("")]
-                .into_iter()
-                .chain(r.components.iter().map(|c| c.gas.as_str()))
-                .collect::<Vec<_>>()
-                .join(" ")
-                .to_lowercase(),
+            search_text: [
+                r.order.as_str(),
+                r.cylinder.serial.as_deref().unwrap_or(""),
+                r.description.as_str(),
+                r.notes.as_str(),
+            ]
+            .into_iter()
+            .chain(r.components.iter().map(|c| c.gas.as_str()))
+            .collect::<Vec<_>>()
+            .join(" ")
+            .to_lowercase(),
         }
     }
 }

@@ -3,7 +3,7 @@
 
 use serde_json::{json, Value};
 
-use crate::checks::{self, Check, Conditions, Severity, CAUTIONS};
+use crate::checks::{self, Check, Conditions, Severity};
 use crate::ron_format::{csv_field, wrap_words};
 use crate::thermo::Model;
 use crate::units::Shown;
@@ -24,8 +24,13 @@ pub fn json(results: &[Screened]) -> Value {
             .iter()
             .filter_map(|(origin, r)| r.as_ref().err().map(|e| json!({"recipe": origin, "error": e})))
             .collect::<Vec<_>>(),
-        "cautions": CAUTIONS,
+        "cautions": cautions(results),
     })
+}
+
+/// The cautions for the blends screened (the oxygen-clean one where one holds an oxidiser).
+fn cautions(results: &[Screened]) -> Vec<&'static str> {
+    checks::cautions_for(results.iter().filter_map(|(_, r)| r.as_ref().ok()).flat_map(|(_, list)| list))
 }
 
 /// The report as CSV: one row per check, one per recipe that could not be read.
@@ -122,7 +127,7 @@ pub fn text(results: &[Screened], conditions: &Conditions, d: &Shown) -> String 
         put!(out);
     }
     put!(out, "Cautions:");
-    for c in CAUTIONS {
+    for c in cautions(results) {
         for (k, l) in wrap_words(c, 80 - 4).iter().enumerate() {
             put!(out, "{}{l}", if k == 0 { "  - " } else { "    " });
         }

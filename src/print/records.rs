@@ -5,6 +5,7 @@ use serde_json::{json, Value};
 
 use crate::record::Record;
 use crate::ron_format::{clip, csv_field};
+use crate::units::count;
 
 /// A record as listed: its id, or why its file could not be read.
 pub type Listed = (String, Result<Record, String>);
@@ -27,9 +28,9 @@ pub fn summary(id: &str, r: &Record) -> Summary {
     // weighed is complete.
     let weighed_all = r.weighings.len() > r.additions.len() && !r.additions.is_empty();
     let state = match (&r.finished, &r.started) {
-        (Some(_), _) => format!("finished, {} additions", r.additions.len()),
-        (None, None) if weighed_all => format!("complete (by hand), {} additions", r.additions.len()),
-        (None, _) => format!("in progress, {} weighings", r.weighings.len()),
+        (Some(_), _) => format!("finished, {}", count(r.additions.len(), "addition")),
+        (None, None) if weighed_all => format!("complete (by hand), {}", count(r.additions.len(), "addition")),
+        (None, _) => format!("in progress, {}", count(r.weighings.len(), "weighing")),
     };
     Summary {
         id: id.to_string(),
@@ -85,14 +86,19 @@ pub fn csv(shown: &[&Listed]) -> String {
     out
 }
 
-/// The list as text lines of at most 80 columns; the start shown as its date, whole.
+/// The list as text lines of at most 80 columns: each record id whole (it is what
+/// `certify` is given), the start shown as its date, the recipe and state cut to fit.
 pub fn text(shown: &[&Listed]) -> String {
     let mut out = String::new();
     if shown.is_empty() {
         put!(out, "(no fill records)");
         return out;
     }
-    put!(out, "{:<22} {:<18} {:>3} {:<10}  state", "record", "recipe", "rev", "started");
+    let id_w = shown.iter().map(|(id, _)| id.chars().count()).max().unwrap_or(0).max(6);
+    let recipe_w = 14;
+    // What is left of 80 columns for the state, never less than 20.
+    let state_w = 80usize.saturating_sub(id_w + 1 + recipe_w + 1 + 3 + 1 + 10 + 2).max(20);
+    put!(out, "{:<id_w$} {:<recipe_w$} {:>3} {:<10}  state", "record", "recipe", "rev", "started");
     for (id, r) in shown {
         match r {
             Ok(r) => {
@@ -100,15 +106,15 @@ pub fn text(shown: &[&Listed]) -> String {
                 let date = s.started.get(..10).unwrap_or(&s.started);
                 put!(
                     out,
-                    "{:<22} {:<18} {:>3} {:<10}  {}",
-                    clip(&s.id, 22),
-                    clip(&s.recipe, 18),
+                    "{:<id_w$} {:<recipe_w$} {:>3} {:<10}  {}",
+                    s.id,
+                    clip(&s.recipe, recipe_w),
                     s.revision,
                     clip(date, 10),
-                    clip(&s.state, 23)
+                    clip(&s.state, state_w)
                 );
             }
-            Err(e) => put!(out, "{:<22} cannot be read: {}", clip(id, 22), clip(e, 40)),
+            Err(e) => put!(out, "{:<id_w$} cannot be read: {}", id, clip(e, state_w.max(30))),
         }
     }
     out

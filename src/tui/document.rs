@@ -148,6 +148,7 @@ pub fn new_recipe(model: &mut Model, ctx: &Context, name: &str) {
     let mut doc = open_document(name, recipe, None, ctx);
     doc.saved = Recipe::blank();
     model.doc = Some(doc);
+    model.check_selected = None;
     model.view = View::Editor;
     model.status = format!("new recipe {name}: edit it, s saves");
 }
@@ -158,6 +159,7 @@ pub fn open(model: &mut Model, ctx: &Context, name: &str) {
         Ok(o) => {
             let recipe = o.recipe.clone();
             model.doc = Some(open_document(name, recipe, Some(o), ctx));
+            model.check_selected = None;
             model.view = View::Editor;
             model.status = format!("opened {name}");
         }

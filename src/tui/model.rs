@@ -489,7 +489,8 @@ pub struct Model {
     /// Selected line of the screening view.
     /// The chosen check of the Screening view, as its index in the screening's own order
     /// (so that the cursor stays on the same check when the list re-sorts).
-    pub check_selected: usize,
+    /// The check chosen on the Screening view; None: the worst (first shown).
+    pub check_selected: Option<usize>,
     /// What just happened, for the status line.
     pub status: String,
     /// Colours on (off for NO_COLOR).
@@ -538,7 +539,7 @@ impl Model {
             overlay: Overlay::None,
             library: LibraryState { label, ..LibraryState::default() },
             doc: None,
-            check_selected: 0,
+            check_selected: None,
             status: String::new(),
             color,
             shown: crate::units::Shown::default(),

@@ -332,8 +332,8 @@ impl Certificate<'_> {
         o.push("uncertainty JCGM 100 (GUM), checked by Monte Carlo (JCGM 101)".into());
         if self.in_progress() {
             o.push(format!(
-                "FILL IN PROGRESS: {} additions complete ({} recorded); figures so far, not judged",
-                self.checked.complete,
+                "FILL IN PROGRESS: {} complete ({} recorded); figures so far, not judged",
+                crate::units::count(self.checked.complete, "addition"),
                 self.checked.additions.len()
             ));
         }

@@ -73,6 +73,8 @@ fn draw_help(view: View, frame: &mut Frame, area: Rect) {
     ];
     let lines: Vec<Line> =
         crate::tui::views::of(view).help().iter().chain(shared.iter()).map(|l| Line::raw(*l)).collect();
+    // As wide as its longest line, so that no line wraps.
+    let w = lines.iter().map(Line::width).max().unwrap_or(0) as u16 + 2;
     let h = lines.len() as u16 + 2;
-    boxed(frame, centered(area, 64, h), &format!("Keys: {}", view.title()), lines);
+    boxed(frame, centered(area, w.max(40), h), &format!("Keys: {}", view.title()), lines);
 }

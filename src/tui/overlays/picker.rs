@@ -94,8 +94,9 @@ pub fn on_key(model: &mut Model, ctx: &mut Context, key: Key, mut input: Input, 
                         });
                         let i = doc.recipe.components.iter().position(|c| c.gas == id).unwrap_or(0);
                         doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::Component(i)).unwrap_or(0);
-                        doc.editing = Some(Input::new("1%".into()));
-                        model.status = format!("{id} added: type its amount");
+                        // The line holds 1 % until an amount is kept; what is typed replaces it.
+                        doc.editing = Some(Input::new(String::new()));
+                        model.status = format!("{id} added: type its amount (400ppm, 2.5%, 0.1); Enter keeps it");
                     }
                     (PickFor::ReplaceComponent(i), None) => {
                         edit(doc, ctx, |r| r.components[i].gas = id.clone());

@@ -54,6 +54,7 @@ fn recover_draft(model: &mut Model, ctx: &Context, draft: &drafts::DraftEntry) {
             }
             doc.recovered_draft = Some(draft.path.clone());
             model.doc = Some(doc);
+            model.check_selected = None;
             model.view = View::Editor;
             model.status = format!("recovered the unsaved edits of {}: s saves them", draft.file.display());
         }

@@ -52,6 +52,9 @@ impl Screen for Editor {
             "b           make the component the balance gas",
             "x or Del    remove the component or source",
             "u, Ctrl-z   undo      Ctrl-r, Ctrl-y  redo",
+            "Home End    first, last line   PgUp PgDn  ten lines",
+            "typing:     Ctrl-u clears the line, Ctrl-w a word;",
+            "            Home End (Ctrl-a Ctrl-e) its start, end",
         ]
     }
 }

@@ -44,7 +44,8 @@ impl Screen for Library {
         &[
             "↑↓ or j k   choose a recipe",
             "Enter       open it in the editor",
-            "/           search names, orders, serials, gases (Esc clears)",
+            "/           search names, orders, serials, gases, descriptions",
+            "            and notes (Esc clears)",
             "n           new recipe",
             "c           copy the recipe under a new name",
             "r           rename it",

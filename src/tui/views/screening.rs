@@ -46,14 +46,14 @@ fn on_checks_key(model: &mut Model, key: Key) {
         .and_then(|d| d.computed.checks.as_deref())
         .map(crate::tui::model::checks_worst_first)
         .unwrap_or_default();
-    let at = order.iter().position(|&i| i == model.check_selected).unwrap_or(0);
+    let at = model.check_selected.and_then(|c| order.iter().position(|&i| i == c)).unwrap_or(0);
     let to = match key {
         Key::Up | Key::Char('k') => at.saturating_sub(1),
         Key::Down | Key::Char('j') => (at + 1).min(order.len().saturating_sub(1)),
         _ => at,
     };
     if let Some(&i) = order.get(to) {
-        model.check_selected = i;
+        model.check_selected = Some(i);
     }
 }
 fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
@@ -69,7 +69,8 @@ fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let order = crate::tui::model::checks_worst_first(checks);
     let sorted: Vec<_> = order.iter().map(|&i| &checks[i]).collect();
     let w = inner.width as usize;
-    let chosen = order.iter().position(|&i| i == model.check_selected).unwrap_or(0);
+    // Until one is chosen, the worst check leads and is shown.
+    let chosen = model.check_selected.and_then(|c| order.iter().position(|&i| i == c)).unwrap_or(0);
     for (k, c) in sorted.iter().enumerate() {
         let marker = if k == chosen { "▶" } else { " " };
         lines.push(Line::from(vec![
@@ -90,7 +91,7 @@ fn screening(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         }
     }
     lines.push(Line::raw(String::new()));
-    for c in crate::checks::CAUTIONS {
+    for c in crate::checks::cautions_for(checks) {
         lines.push(Line::styled(format!("- {c}"), theme.dim()));
     }
     frame.render_widget(Paragraph::new(lines).wrap(Wrap { trim: false }), inner);

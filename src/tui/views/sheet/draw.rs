@@ -249,10 +249,10 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
     };
     let r = &rec.record;
     let mut lines = vec![Line::raw(format!(
-        "record {} rev {}: {} weighings{}",
+        "record {} rev {}: {}{}",
         rec.id,
         r.revision,
-        r.weighings.len(),
+        crate::units::count(r.weighings.len(), "weighing"),
         if r.finished.is_some() { ", finished" } else { "" }
     ))];
     let Some(prog) = &doc.bench.progress else { return lines };

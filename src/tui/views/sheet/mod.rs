@@ -40,7 +40,7 @@ impl Screen for Sheet {
     fn help(&self) -> &'static [&'static str] {
         &[
             "↑↓ j k  choose a step        Space  mark it done",
-            "t  cylinder temperature now  c  back to the planned temperature",
+            "t  cylinder temperature now  c  back to the planned one",
             "r  reading reached (bar, barg, psig …)",
             "w  scale reading: the empty cylinder, then after each step",
             "l  source of the addition: analysis, @NAME or record:ID",
@@ -50,6 +50,7 @@ impl Screen for Sheet {
             "p  write the sheet to sheets/ in the library (text, PDF)",
             "every entry is written to records/ at once; reopening the",
             "recipe continues the fill; fillwright certify ID certifies",
+            "Esc stays on the sheet (1-5 or Tab change the view)",
         ]
     }
 }
@@ -97,7 +98,10 @@ pub fn on_key(model: &mut Model, key: Key) {
         Key::Char('l') if steps > 0 => {
             let now = chosen_source_hint(doc);
             model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
-            model.status = format!("source of the next addition: @NAME from the source library{now}, or its analysis");
+            model.status = format!(
+                "source of the next addition{now}: its analysis, e.g. CO=0.5%±0.002%,N2=balance,O2=<2ppm (± or +-, \
+                 %rel for relative), @NAME from the source library, or record:ID of its own fill"
+            );
         }
         Key::Char('x') if doc.bench.record.is_some() => {
             model.overlay = Overlay::Prompt { purpose: Prompt::Correction, input: input("") };
