@@ -23,8 +23,14 @@ fn a_terminal_below_the_minimum_says_so() {
     let scenes = scenes::scenes();
     let buffer = scenes::render(&dir, scenes[1].1.as_ref(), 50, 12, false);
     let text = scenes::text(&buffer);
-    assert!(text.contains("needs at least") && text.contains("60×16"), "{text}");
+    assert!(text.contains("needs at least") && text.contains("80×24"), "{text}");
     insta::assert_snapshot!("too_small_50x12", text);
+    // 60×20 is below it too: the notice says what to do, instead of views with cut columns.
+    let text = scenes::text(&scenes::render(&dir, scenes[1].1.as_ref(), 60, 20, false));
+    assert!(text.contains("is 60×20") && text.contains("Enlarge the window"), "{text}");
+    // At 80×24 the screen draws.
+    let text = scenes::text(&scenes::render(&dir, scenes[1].1.as_ref(), 80, 24, false));
+    assert!(!text.contains("needs at least"), "{text}");
 }
 
 #[test]

@@ -888,12 +888,12 @@ fn a_deleted_recipe_comes_back_from_the_trash_on_the_screen() {
 }
 
 #[test]
-fn the_result_pane_at_60_by_20_keeps_its_columns_whole() {
+fn the_result_pane_at_80_by_24_keeps_its_columns_whole() {
     let dir = common::temp_dir().join(format!("fillwright-tui-r60-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     let scenes = fillwright::tui::scenes::scenes();
     let (_, editor) = scenes.iter().find(|(n, _)| *n == "editor").unwrap();
-    let screen = fillwright::tui::scenes::text(&fillwright::tui::scenes::render(&dir, editor.as_ref(), 60, 20, false));
+    let screen = fillwright::tui::scenes::text(&fillwright::tui::scenes::render(&dir, editor.as_ref(), 80, 24, false));
     // Each step's row holds its source and its stop reading on one line.
     for gas in ["CO ", "CH4", "CO2", "N2 "] {
         let row = screen.lines().find(|l| l.contains(&format!("││{gas}"))).unwrap_or_else(|| panic!("{gas}: {screen}"));
@@ -1467,4 +1467,94 @@ fn a_new_gas_is_typed_fresh_esc_stays_on_the_fill_sheet_and_search_reads_descrip
     text(&mut model, &mut ctx, &word.to_lowercase());
     let names: Vec<&str> = model.library.visible().iter().map(|&i| model.library.entries[i].name.as_str()).collect();
     assert!(names.contains(&"pipeline-ng-9"), "{word}: {names:?}");
+}
+
+#[test]
+fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
+    let (mut model, mut ctx, _dir) = setup("made-so-far");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
+    text(&mut model, &mut ctx, "13412.000g");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('w')]);
+    text(&mut model, &mut ctx, "13412.928g");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('w')]);
+    // CH4 3 % over its 26.585 g: its amount is 3 % over the plan, its share far less.
+    text(&mut model, &mut ctx, &format!("{}g", 13412.928 + 26.585 * 1.03));
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let doc = model.doc.as_ref().unwrap();
+    let prog = doc.bench.progress.as_ref().unwrap();
+    let plan = doc.computed.plan.as_ref().unwrap();
+    let lines: Vec<String> =
+        fillwright::tui::views::sheet::draw::composition_made(prog, plan).into_iter().map(|(l, _)| l).collect();
+    let said = lines.join(" ");
+    assert!(said.starts_with("made so far, against the plan after step 2:"), "{said}");
+    // The deviation of CH4's share, computed here from the amounts in the cylinder.
+    let (now, planned): (f64, f64) = (prog.rows.iter().map(|r| r.1).sum(), prog.rows.iter().map(|r| r.2).sum());
+    let ch4 = prog.rows.iter().find(|r| r.0 == "CH4").unwrap();
+    let amount_dev = (ch4.1 / ch4.2 - 1.0) * 100.0;
+    let share_dev = ((ch4.1 / now) / (ch4.2 / planned) - 1.0) * 100.0;
+    assert!((amount_dev - 3.0).abs() < 0.05, "{amount_dev}");
+    assert!(share_dev.abs() < 0.5 * amount_dev, "{share_dev}");
+    assert!(said.contains(&format!("({}%)", fillwright::units::signed(share_dev, 2))), "{said}");
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains("made so far"), "{screen}");
+    // Filled on at the live readings: once every step is weighed, the shares are judged
+    // against the target and its tolerance, and CH4's overfill is out of its 1 %rel.
+    for k in 2..4 {
+        let reading = live_scale(&model, k);
+        keys(&mut model, &mut ctx, &[Key::Char('w')]);
+        text(&mut model, &mut ctx, &format!("{reading:.3}g"));
+        keys(&mut model, &mut ctx, &[Key::Enter]);
+    }
+    let doc = model.doc.as_ref().unwrap();
+    let made = fillwright::tui::views::sheet::draw::composition_made(
+        doc.bench.progress.as_ref().unwrap(),
+        doc.computed.plan.as_ref().unwrap(),
+    );
+    let said: String = made.iter().map(|(l, _)| l.as_str()).collect::<Vec<_>>().join(" ");
+    assert!(said.starts_with("made, against the target:"), "{said}");
+    assert!(said.contains("OUT of ±") && made.iter().any(|(_, out)| *out), "{said}");
+    assert!(said.contains("within ±"), "CO2 is within its tolerance: {said}");
+    // Reopened, the finished fill is named with how to certify it, not "no fill record".
+    let id = doc.bench.record.as_ref().unwrap().id.clone();
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    open(&mut model, &mut ctx, "flue-gas-span");
+    assert!(model.doc.as_ref().unwrap().bench.record.is_none());
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx)).replace('\n', " ");
+    assert!(screen.contains(&format!("the last fill, record {id}, is finished")), "{screen}");
+    assert!(!screen.contains("no fill record yet"), "{screen}");
+}
+
+#[test]
+fn saving_a_new_revision_during_a_fill_warns_that_the_fill_keeps_its_revision() {
+    let (mut model, mut ctx, _dir) = setup("save-during-fill");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
+    text(&mut model, &mut ctx, "13412.000g");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('2')]);
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "14%");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('s')]);
+    assert!(model.status.starts_with("saved rev 2"), "{}", model.status);
+    assert!(
+        model.status.contains("WARNING: the fill in progress") && model.status.contains("rev 1"),
+        "{}",
+        model.status
+    );
+    // The Library marks the recipe with a fill in progress, and only it.
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    let row = screen.lines().find(|l| l.contains("│  flue-gas-span")).unwrap();
+    assert!(row.contains("FILLING"), "{screen}");
+    assert_eq!(screen.matches("FILLING").count(), 1, "{screen}");
+    // A save with no fill in progress says nothing of the kind.
+    let (mut model, mut ctx, _dir) = setup("save-no-fill");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "14%");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('s')]);
+    assert_eq!(model.status, "saved rev 2");
 }

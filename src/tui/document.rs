@@ -48,11 +48,23 @@ pub fn refresh(model: &mut Model, ctx: &Context) {
         Ok(entries) => {
             model.library.screening = screen_entries(&entries, ctx, &mut model.library.screened);
             model.library.entries = entries;
+            refresh_filling(model, ctx);
         }
         Err(e) => model.status = format!("cannot list the library: {e}"),
     }
     let n = model.library.visible().len();
     model.library.selected = model.library.selected.min(n.saturating_sub(1));
+}
+
+/// Which recipes have a fill in progress (a record not finished), for the Library's list.
+pub fn refresh_filling(model: &mut Model, ctx: &Context) {
+    model.library.filling = ctx
+        .library
+        .records()
+        .unwrap_or_default()
+        .into_iter()
+        .filter_map(|(_, r)| r.ok().filter(|r| r.finished.is_none()).map(|r| r.recipe))
+        .collect();
 }
 
 /// The worst screening result of each library entry, planned and screened in parallel
@@ -200,6 +212,10 @@ pub(crate) fn save(model: &mut Model, ctx: &mut Context, note: Option<String>, o
                 doc.recipe = o.recipe.clone();
                 doc.saved = o.recipe.clone();
             }
+            let written = match &saved {
+                Saved::Written { revision, .. } => Some(*revision),
+                Saved::Unchanged { .. } => None,
+            };
             model.status = match saved {
                 Saved::Unchanged { revision } => format!("nothing changed; still rev {revision}"),
                 Saved::Written { revision, git: Some(Err(e)), .. } => {
@@ -207,6 +223,16 @@ pub(crate) fn save(model: &mut Model, ctx: &mut Context, note: Option<String>, o
                 }
                 Saved::Written { revision, .. } => format!("saved rev {revision}"),
             };
+            // A fill started on an earlier revision goes on against that revision's plan.
+            if let (Some(revision), Some(rec)) = (written, &doc.bench.record) {
+                if rec.record.recipe_revision != revision {
+                    model.status.push_str(&format!(
+                        "; WARNING: the fill in progress (record {}) was started on rev {}: it is certified \
+                         against that revision, not this one",
+                        rec.id, rec.record.recipe_revision
+                    ));
+                }
+            }
             refresh(model, ctx);
         }
         Err(LibraryError::ChangedOnDisk(_)) => model.overlay = Overlay::Conflict,

@@ -361,6 +361,8 @@ pub struct Bench {
     pub stop_accepted: Option<String>,
     /// A weighing far from the plan waiting for the user's confirmation (the text typed).
     pub unconfirmed_weighing: Option<String>,
+    /// With no fill in progress: the recipe's last finished fill (its record id).
+    pub last_finished: Option<String>,
 }
 
 impl Bench {
@@ -456,6 +458,8 @@ pub struct LibraryState {
     pub selected: usize,
     /// The library folder, as shown.
     pub label: String,
+    /// Recipes with a fill in progress (a record not finished), read with the list.
+    pub filling: Vec<String>,
 }
 
 impl LibraryState {

@@ -9,10 +9,11 @@ use ratatui::Frame;
 
 use crate::checks::Severity;
 
-/// Smallest terminal the screen draws in.
-pub const MIN_WIDTH: u16 = 60;
+/// Smallest terminal the screen draws in: 80×24, where every view has its columns whole
+/// (below it the Fill sheet would drop its readings and the Models view its reference).
+pub const MIN_WIDTH: u16 = 80;
 
-pub const MIN_HEIGHT: u16 = 16;
+pub const MIN_HEIGHT: u16 = 24;
 
 pub struct Theme {
     pub color: bool,

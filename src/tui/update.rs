@@ -13,8 +13,13 @@ use super::{overlays, views};
 
 /// The top-level update.
 pub fn update(model: &mut Model, msg: Msg, ctx: &mut Context) {
+    let before = model.view;
     match msg {
         Msg::Key(key) => on_key(model, key, ctx),
+    }
+    // Back on the Library: which recipes have a fill in progress may have changed.
+    if model.view == View::Library && before != View::Library {
+        super::document::refresh_filling(model, ctx);
     }
 }
 

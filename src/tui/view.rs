@@ -22,7 +22,9 @@ pub fn view(model: &Model, catalogue: &Catalogue, frame: &mut Frame) {
     let theme = Theme { color: model.color };
     if area.width < MIN_WIDTH || area.height < MIN_HEIGHT {
         let text = format!(
-            "The terminal is {}×{}; fillwright needs at least {MIN_WIDTH}×{MIN_HEIGHT}. Enlarge the window (q quits).",
+            "The terminal is {}×{}; fillwright needs at least {MIN_WIDTH}×{MIN_HEIGHT} to show every column of the \
+             Fill sheet. Enlarge the window or make the font smaller; nothing is lost meanwhile (q quits). \
+             Without a larger window, the command line does every job: fillwright plan NAME.",
             area.width, area.height
         );
         frame.render_widget(Paragraph::new(text).wrap(Wrap { trim: true }), area);

@@ -189,7 +189,11 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
                     Some(Severity::Ok) => "ok",
                     None => "no plan",
                 },
-                clip(&s.title, title_w)
+                if model.library.filling.contains(&e.name) {
+                    clip(&format!("FILLING · {}", s.title), title_w)
+                } else {
+                    clip(&s.title, title_w)
+                }
             ),
             Err(err) => {
                 format!("{marker}{:<22} cannot be read: {}", clip_middle(&e.name, 21), clip(err, w.saturating_sub(40)))

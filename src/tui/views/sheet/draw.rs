@@ -240,12 +240,62 @@ fn first_plan_note(b: &crate::tui::model::Bench, d: &Shown, width: usize) -> Vec
     wrap_words(&note, width)
 }
 
+/// The composition made so far as mole fractions, against the plan after as many steps
+/// (the composition, not the amounts: a step that overfills one gas moves every fraction
+/// less than its amount); once every step is weighed, against the target and its
+/// tolerance. Each line with whether it is outside the tolerance.
+pub fn composition_made(prog: &crate::tui::model::Progress, plan: &crate::plan::Plan) -> Vec<(String, bool)> {
+    let total_now: f64 = prog.rows.iter().map(|r| r.1).sum();
+    let total_planned: f64 = prog.rows.iter().map(|r| r.2).sum();
+    if !(total_now > 0.0 && total_planned > 0.0) {
+        return Vec::new();
+    }
+    let complete = prog.weighed >= plan.steps.len();
+    let mut parts = Vec::new();
+    let mut out = false;
+    for (i, (id, now, planned)) in prog.rows.iter().enumerate() {
+        if *planned <= 0.0 && *now <= 0.0 {
+            continue;
+        }
+        let x = now / total_now;
+        let c = &plan.components[i];
+        let against = if complete { c.mole_fraction } else { planned / total_planned };
+        let dev = if against > 0.0 {
+            format!("{}%", crate::units::signed((x / against - 1.0) * 100.0, 2))
+        } else {
+            "new".into()
+        };
+        let judged = match (complete, c.tolerance) {
+            (true, Some(tol)) if (x - c.mole_fraction).abs() > tol => {
+                out = true;
+                format!(", OUT of ±{}", crate::units::fraction_text(tol))
+            }
+            (true, Some(tol)) => format!(", within ±{}", crate::units::fraction_text(tol)),
+            _ => String::new(),
+        };
+        parts.push(format!("{id} {} ({dev}{judged})", crate::units::fraction_text(x)));
+    }
+    let head = if complete {
+        "made, against the target:".to_string()
+    } else {
+        format!("made so far, against the plan after step {}:", prog.weighed)
+    };
+    wrap_words(&format!("{head} {}", parts.join("; ")), 78).into_iter().map(|l| (l, out)).collect()
+}
+
 /// The fill record under the steps: where it is, the composition so far against the plan,
 /// and the rest of the fill re-planned from the weighings.
 fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'static>> {
     let d = &model.shown;
     let Some(rec) = &doc.bench.record else {
-        return vec![Line::styled("no fill record yet: w types the empty cylinder's scale reading", theme.dim())];
+        let text = match &doc.bench.last_finished {
+            Some(id) => format!(
+                "no fill in progress; the last fill, record {id}, is finished (fillwright certify {id}); w starts \
+                 a new fill with the empty cylinder's scale reading"
+            ),
+            None => "no fill record yet: w types the empty cylinder's scale reading".into(),
+        };
+        return wrap_words(&text, 78).into_iter().map(|l| Line::styled(l, theme.dim())).collect();
     };
     let r = &rec.record;
     let mut lines = vec![Line::raw(format!(
@@ -272,13 +322,9 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
         let text = format!("{} correction(s); last: {} ({})", r.corrections.len(), c.entry, c.reason);
         lines.push(Line::styled(clip(&text, 78), theme.dim()));
     }
-    let mut so_far = String::from("so far vs plan:");
-    for (id, now, planned) in &prog.rows {
-        if *planned > 0.0 {
-            so_far.push_str(&format!(" {id} {}%", crate::units::signed((now / planned - 1.0) * 100.0, 2)));
-        }
+    for (l, out) in composition_made(prog, plan) {
+        lines.push(if out { Line::styled(l, theme.fg(Color::Red)) } else { Line::raw(l) });
     }
-    lines.push(Line::raw(clip(&so_far, 78)));
     match &prog.replan {
         Ok(rp) if prog.weighed < plan.steps.len() => {
             let verdict = if rp.on_target {

@@ -4,7 +4,7 @@
 //! lost when the session ends; opening the recipe again continues the fill. After each
 //! weighing the composition so far is compared with the plan and the rest re-planned.
 
-mod draw;
+pub mod draw;
 
 use ratatui::layout::Rect;
 use ratatui::Frame;
@@ -348,6 +348,8 @@ fn step_source(doc: &Document, k: usize) -> String {
 /// Pick up the fill in progress of the opened recipe, if there is one.
 pub fn attach_record(doc: &mut Document, ctx: &Context) {
     doc.bench.record = ctx.library.record_in_progress(&doc.name);
+    doc.bench.last_finished =
+        if doc.bench.record.is_none() { ctx.library.finished_records_of(&doc.name).into_iter().next() } else { None };
     sync_from_record(doc, ctx);
 }
 
