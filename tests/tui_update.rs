@@ -241,6 +241,13 @@ fn the_fill_sheet_corrects_targets_for_the_measured_temperature() {
     let corrected = doc.bench.live[last].pressure_now_pa.unwrap();
     assert_eq!(corrected, plan.corrected_target_pa(last, 308.15).unwrap());
     assert!(corrected > plan.steps[last].pressure_after_pa, "a warmer cylinder reads higher");
+    // The chosen step's reading now, absolute and as a gauge shows it.
+    let now0 = doc.bench.live[0].pressure_now_pa.unwrap();
+    let ambient = doc.computed.order.as_ref().unwrap().ambient_pa;
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    let said =
+        format!("step 1 now: stop at {:.3} bar abs, {:.3} bar on a gauge", now0 / 1e5, (now0 - ambient) / 1e5);
+    assert!(screen.contains(&said), "{said}\n{screen}");
     // Mark the first step done and type the reading reached.
     keys(&mut model, &mut ctx, &[Key::Char(' ')]);
     assert!(model.doc.as_ref().unwrap().bench.done[0]);
@@ -694,8 +701,19 @@ fn changing_fill_by_converts_the_value_with_the_plan() {
     let before = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().totals.clone();
     let doc = model.doc.as_mut().unwrap();
     doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::FillKind).unwrap();
+    // Enter asks first, with what the fill becomes; any other key keeps it.
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    match &model.overlay {
+        Overlay::ConfirmFillKind(said) => {
+            assert!(said.starts_with("Fill by mass instead of pressure: 1996.") && said.contains('g'), "{said}")
+        }
+        other => panic!("{other:?}"),
+    }
+    keys(&mut model, &mut ctx, &[Key::Char('n')]);
+    assert!(matches!(model.doc.as_ref().unwrap().recipe.fill, FillTarget::Pressure(_)));
+    assert!(model.status.contains("unchanged"), "{}", model.status);
     for _ in 0..3 {
-        keys(&mut model, &mut ctx, &[Key::Enter]);
+        keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('y')]);
         let doc = model.doc.as_ref().unwrap();
         let t = &doc.computed.plan.as_ref().unwrap_or_else(|e| panic!("{e}: {:?}", doc.recipe.fill)).totals;
         // The same fill, whichever way it is stated (six significant digits).
@@ -1557,4 +1575,39 @@ fn saving_a_new_revision_during_a_fill_warns_that_the_fill_keeps_its_revision() 
     text(&mut model, &mut ctx, "14%");
     keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('s')]);
     assert_eq!(model.status, "saved rev 2");
+}
+
+#[test]
+fn the_scale_uncertainty_follows_the_resolution_and_can_be_typed_for_one_fill() {
+    // GUM 4.3.7: a reading rounded to a resolution d carries u = d/√12.
+    assert_eq!(fillwright::tui::views::sheet::scale_uncertainty_text(0.1), "0.029g");
+    assert_eq!(fillwright::tui::views::sheet::scale_uncertainty_text(0.01), "0.003g");
+    let (mut model, mut ctx, dir) = setup("scale-u");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
+    text(&mut model, &mut ctx, "13412.000g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let record = |dir: &std::path::Path| {
+        let records = dir.join("library/records");
+        let file = std::fs::read_dir(&records).unwrap().flatten().find(|e| e.path().is_file()).unwrap().path();
+        std::fs::read_to_string(file).unwrap()
+    };
+    let expected = fillwright::tui::views::sheet::scale_uncertainty_text(ctx.settings.scale_resolution_g);
+    assert!(record(&dir).contains(&format!("scale_uncertainty: \"{expected}\"")), "{}", record(&dir));
+    // The balance's own figure, typed with it.
+    keys(&mut model, &mut ctx, &[Key::Char('b')]);
+    text(&mut model, &mut ctx, "bench balance B2, u=0.02g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("scale u = 0.02g"), "{}", model.status);
+    let saved = record(&dir);
+    assert!(
+        saved.contains("scale_uncertainty: \"0.02g\"") && saved.contains("balance: \"bench balance B2\""),
+        "{saved}"
+    );
+    // A figure that is not a mass keeps the prompt open with why.
+    keys(&mut model, &mut ctx, &[Key::Char('b')]);
+    text(&mut model, &mut ctx, "B2 u=2mol");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(matches!(model.overlay, Overlay::Prompt { .. }));
+    assert!(model.status.contains("u=2mol"), "{}", model.status);
 }

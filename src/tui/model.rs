@@ -48,6 +48,8 @@ pub enum Overlay {
     Conflict,
     /// The plan is at stop: tick its steps anyway? (the finding)
     ConfirmStop(String),
+    /// Switch the fill target to the next kind? (what it becomes, in words)
+    ConfirmFillKind(String),
     /// The trash: deleted recipes (name, when deleted) and the selected one.
     Trash {
         entries: Vec<(String, String)>,

@@ -136,3 +136,22 @@ pub fn draw_conflict(frame: &mut Frame, area: Rect) {
     ];
     boxed(frame, centered(area, 62, 7), "Changed on disk", lines);
 }
+
+/// Switch the fill target's kind on `y` (the same fill, converted with the plan).
+pub fn on_fill_kind(model: &mut Model, ctx: &mut Context, key: Key) {
+    if key != Key::Char('y') {
+        model.status = "the fill target is unchanged".into();
+        return;
+    }
+    if let Some(doc) = model.doc.as_mut() {
+        model.status = crate::tui::views::editor::next_fill_kind(doc, ctx);
+    }
+}
+
+/// The question before switching the fill target's kind.
+pub fn draw_fill_kind(frame: &mut Frame, area: Rect, said: &str) {
+    let mut lines: Vec<Line> = wrap_words(said, 58).into_iter().map(Line::raw).collect();
+    lines.push(Line::raw("y  switch     any other key: keep it as it is"));
+    let h = lines.len() as u16 + 2;
+    boxed(frame, centered(area, 62, h), "Fill by", lines);
+}

@@ -120,7 +120,7 @@ pub fn draw(theme: &Theme, frame: &mut Frame, area: Rect, purpose: &Prompt, inpu
         Prompt::Correction => "Correct: w|p|t|s STEP VALUE (- withdraws)".into(),
         Prompt::CorrectionReason(c) => format!("Why correct {c}?"),
         Prompt::Operator => "Operator (who fills)".into(),
-        Prompt::Balance => "Balance (identity, calibration)".into(),
+        Prompt::Balance => "Balance: identity, calibration; u=0.02g its uncertainty".into(),
         Prompt::Air(k) => format!("Air at weighing {k}: temperature pressure humidity"),
         Prompt::Setting(k) => {
             let field = super::settings::FIELDS[(*k).min(super::settings::FIELDS.len() - 1)];

@@ -159,7 +159,7 @@ fn on_enter(model: &mut Model, ctx: &Context, field: Field) {
             model.overlay = Overlay::Picker { input: input(""), selected: 0, purpose: PickFor::AddComponent }
         }
         Field::AddSource => model.overlay = Overlay::Prompt { purpose: Prompt::AddSource, input: input("") },
-        Field::FillKind => model.status = next_fill_kind(doc, ctx),
+        Field::FillKind => model.overlay = Overlay::ConfirmFillKind(next_fill_kind_said(doc)),
         Field::Model => edit(doc, ctx, |r| {
             r.model = match r.model {
                 None => Some(Eos::ALL[0]),
@@ -173,10 +173,25 @@ fn on_enter(model: &mut Model, ctx: &Context, field: Field) {
     }
 }
 
-/// The same fill in the next kind of target, converted with the plan (the mass, the amount
-/// or the pressure it comes to); without a plan the value is left empty for the user to
-/// type.
-fn next_fill_kind(doc: &mut Document, ctx: &Context) -> String {
+/// The fill target the next kind would be, in words, for the question before switching.
+fn next_fill_kind_said(doc: &Document) -> String {
+    let (from, next) = next_fill_target(doc);
+    let (kind, value) = match &next {
+        FillTarget::Pressure(v) => ("pressure", v),
+        FillTarget::Mass(v) => ("mass", v),
+        FillTarget::Amount(v) => ("amount", v),
+    };
+    if value.is_empty() {
+        format!("Fill by {kind} instead of {from}? The recipe does not plan yet: the value is typed next.")
+    } else {
+        format!("Fill by {kind} instead of {from}: {value}, the same fill as the plan makes it?")
+    }
+}
+
+/// The kind of fill target now, and the same fill in the next kind, converted with the plan
+/// (the mass, the amount or the pressure it comes to); without a plan the value is empty
+/// for the user to type.
+fn next_fill_target(doc: &Document) -> (&'static str, FillTarget) {
     let totals = doc.computed.plan.as_ref().ok().map(|p| p.totals.clone());
     let trimmed = |v: f64, unit: &str| {
         let s = crate::units::Sig(v, 6).to_string();
@@ -191,8 +206,20 @@ fn next_fill_kind(doc: &mut Document, ctx: &Context) -> String {
         (FillTarget::Mass(_), None) => FillTarget::Amount(String::new()),
         (FillTarget::Amount(_), None) => FillTarget::Pressure(String::new()),
     };
+    let from = match doc.recipe.fill {
+        FillTarget::Pressure(_) => "pressure",
+        FillTarget::Mass(_) => "mass",
+        FillTarget::Amount(_) => "amount",
+    };
+    (from, next)
+}
+
+/// Switch the fill target to the next kind (after the question): the same fill.
+pub(crate) fn next_fill_kind(doc: &mut Document, ctx: &Context) -> String {
+    let converted = doc.computed.plan.is_ok();
+    let (_, next) = next_fill_target(doc);
     edit(doc, ctx, |r| r.fill = next);
-    if totals.is_some() {
+    if converted {
         "fill target converted with the plan: the same fill".into()
     } else {
         "the recipe does not plan yet: type the fill value on the next line".into()

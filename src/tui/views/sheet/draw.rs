@@ -129,6 +129,19 @@ fn step_notes(doc: &Document, model: &Model, p: &crate::plan::Plan, theme: &Them
         }
         _ => {}
     }
+    // The reading to stop at now, also as the gauge shows it (the table's `now` is absolute).
+    if let (Some(now), Some(_)) = (b.live.get(b.selected).and_then(|l| l.pressure_now_pa), b.measured_k) {
+        let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
+        let text = format!(
+            "step {} now: stop at {} {u} abs, {} {u} on a gauge (ambient {} {u})",
+            b.selected + 1,
+            d.pf(now),
+            d.pf(now - ambient),
+            d.pf(ambient),
+            u = d.pu()
+        );
+        lines.extend(wrap_words(&text, width).into_iter().map(Line::raw));
+    }
     for (severity, note) in super::reading_notes(doc, &model.limits, d, b.selected) {
         let style = match severity {
             Severity::Ok => Style::default(),

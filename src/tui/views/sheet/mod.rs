@@ -45,7 +45,7 @@ impl Screen for Sheet {
             "w  scale reading: the empty cylinder, then after each step",
             "l  source of the addition: analysis, @NAME or record:ID",
             "x  correct a recorded entry, with its reason",
-            "o  operator   b  balance   a  air at the scale (buoyancy)",
+            "o  operator   b  balance (u=0.02g: its uncertainty)   a  air",
             "m  premixes for steps too small to dose (a accepts one)",
             "p  write the sheet to sheets/ in the library (text, PDF)",
             "every entry is written to records/ at once; reopening the",
@@ -396,6 +396,15 @@ fn progress(doc: &Document, ctx: &Context) -> Option<Progress> {
     Some(Progress { weighed: s.weighed, rows, replan: s.replan.clone(), standing: s })
 }
 
+/// The standard uncertainty of a scale reading a new record starts with: the reading's
+/// rounding to the settings' resolution d, rectangular over ±d/2, so u = d/√12 (GUM 4.3.7 and
+/// F.2.2.1), rounded up to a thousandth of a gram. A balance calibration's own figure is
+/// typed with the balance (`b`: `u=0.02g`).
+pub fn scale_uncertainty_text(resolution_g: f64) -> String {
+    let u = resolution_g / 12f64.sqrt();
+    format!("{:.3}g", (u * 1000.0).ceil() / 1000.0)
+}
+
 /// Write a change to the fill record as its next revision (creating the record on the
 /// first weighing). Returns the message for the status line.
 fn write_record(doc: &mut Document, ctx: &Context, note: &str, change: impl FnOnce(&mut Record)) -> Result<(), String> {
@@ -412,6 +421,7 @@ fn write_record(doc: &mut Document, ctx: &Context, note: &str, change: impl FnOn
             let serial = saved.cylinder.serial.clone().unwrap_or_else(|| "cylinder".into());
             let mut record = Record::start(&doc.name, saved.revision, &canonical::to_text(saved), &serial, &now);
             record.water_capacity = Some(saved.cylinder.water_capacity.clone());
+            record.scale_uncertainty = scale_uncertainty_text(ctx.settings.scale_resolution_g);
             record.operator = std::env::var("USER").or_else(|_| std::env::var("LOGNAME")).unwrap_or_default();
             change(&mut record);
             let id = ctx.library.create_record(&record, &now).map_err(|e| e.to_string())?;
@@ -813,6 +823,32 @@ pub fn on_correction_reason(model: &mut Model, ctx: &Context, pending: &str, rea
     model.status = format!("{} corrected ({}); the certificate will say so", entry.name(), reason.trim());
 }
 
+/// The balance's line without its `u=MASS` word, and that mass as typed.
+fn split_scale_u(typed: &str) -> (String, Option<String>) {
+    let mut u = None;
+    let rest: Vec<&str> = typed
+        .split_whitespace()
+        .filter(|w| match w.trim_end_matches(',').strip_prefix("u=") {
+            Some(m) => {
+                u = Some(m.to_string());
+                false
+            }
+            None => true,
+        })
+        .collect();
+    (rest.join(" ").trim_end_matches([',', ';']).trim().to_string(), u)
+}
+
+/// A scale uncertainty as typed, checked: a mass of at most 10 g.
+fn checked_scale_u(typed: &str) -> Result<String, String> {
+    match units::parse_amount(typed) {
+        Ok(units::AmountInput::Grams(g)) if (0.0..=10.0).contains(&g) => Ok(typed.trim().to_string()),
+        _ => Err(format!(
+            "u={typed}: the scale's standard uncertainty is a mass of at most 10 g, e.g. u=0.02g (Esc cancels)"
+        )),
+    }
+}
+
 /// The operator or the balance, written to the record (which starts with the empty
 /// cylinder's weighing).
 pub fn on_person(model: &mut Model, ctx: &Context, balance: bool, text: &str) {
@@ -823,16 +859,27 @@ pub fn on_person(model: &mut Model, ctx: &Context, balance: bool, text: &str) {
         let why = format!("weigh the empty cylinder first (w): the fill record starts with it, then the {what}");
         return keep_prompt(model, if balance { Prompt::Balance } else { Prompt::Operator }, text, &why);
     }
+    // `u=0.02g` in the balance's line sets this fill's scale uncertainty (a calibration's
+    // own figure); the rest of the line is the balance's identity.
+    let (typed, scale_u) = if balance { split_scale_u(&typed) } else { (typed, None) };
+    let scale_u = match scale_u.map(|u| checked_scale_u(&u)).transpose() {
+        Ok(u) => u,
+        Err(why) => return keep_prompt(model, Prompt::Balance, text, &why),
+    };
     let note = format!("{what}: {typed}");
     let result = write_record(doc, ctx, &note, |r| {
         if balance {
             r.balance = typed.clone();
+            if let Some(u) = &scale_u {
+                r.scale_uncertainty = u.clone();
+            }
         } else {
             r.operator = typed.clone();
         }
     });
+    let with_u = scale_u.map(|u| format!(", scale u = {u}")).unwrap_or_default();
     match result {
-        Ok(()) => model.status = format!("{what} {typed} (recorded)"),
+        Ok(()) => model.status = format!("{what} {typed}{with_u} (recorded)"),
         Err(e) => {
             let purpose = if balance { Prompt::Balance } else { Prompt::Operator };
             keep_prompt(model, purpose, text, &format!("not recorded: {e}"));
