@@ -367,6 +367,15 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
 }
 
 impl Certified {
+    /// The certificate's typeset PDF, titled with record `id`; an unfinished fill carries
+    /// its banner on every page.
+    pub fn pdf(&self, cert: &Certificate, id: &str) -> Vec<u8> {
+        let banner = self.unfinished.is_some().then_some(crate::print::certificate::IN_PROGRESS_BANNER);
+        let title = format!("Certificate of preparation {id}");
+        let running = format!("certificate {} | record {id} | cylinder {}", cert.document.number, self.record.cylinder);
+        crate::print::certificate::typeset::render(&cert.blocks(), &title, &running, banner)
+    }
+
     pub fn certificate<'a>(&'a self, catalogue: &'a Catalogue) -> Certificate<'a> {
         Certificate {
             id: self.id.clone(),

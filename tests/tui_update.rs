@@ -245,8 +245,7 @@ fn the_fill_sheet_corrects_targets_for_the_measured_temperature() {
     let now0 = doc.bench.live[0].pressure_now_pa.unwrap();
     let ambient = doc.computed.order.as_ref().unwrap().ambient_pa;
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
-    let said =
-        format!("step 1 now: stop at {:.3} bar abs, {:.3} bar on a gauge", now0 / 1e5, (now0 - ambient) / 1e5);
+    let said = format!("step 1 now: stop at {:.3} bar abs, {:.3} bar on a gauge", now0 / 1e5, (now0 - ambient) / 1e5);
     assert!(screen.contains(&said), "{said}\n{screen}");
     // Mark the first step done and type the reading reached.
     keys(&mut model, &mut ctx, &[Key::Char(' ')]);
@@ -1516,6 +1515,9 @@ fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
     assert!(said.contains(&format!("({}%)", fillwright::units::signed(share_dev, 2))), "{said}");
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
     assert!(screen.contains("made so far"), "{screen}");
+    // An unfinished fill is not certified.
+    keys(&mut model, &mut ctx, &[Key::Char('C')]);
+    assert!(model.status.starts_with("not certified: the fill is not finished"), "{}", model.status);
     // Filled on at the live readings: once every step is weighed, the shares are judged
     // against the target and its tolerance, and CH4's overfill is out of its 1 %rel.
     for k in 2..4 {
@@ -1533,8 +1535,19 @@ fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
     assert!(said.starts_with("made, against the target:"), "{said}");
     assert!(said.contains("OUT of ±") && made.iter().any(|(_, out)| *out), "{said}");
     assert!(said.contains("within ±"), "CO2 is within its tolerance: {said}");
+    // Certified from the sheet: the certificate as `certify ID` makes it, text and PDF.
+    let rec_id = doc.bench.record.as_ref().unwrap().id.clone();
+    keys(&mut model, &mut ctx, &[Key::Char('C')]);
+    assert!(model.status.contains("written to") && model.status.contains("certificates"), "{}", model.status);
+    let id = rec_id.clone();
+    let written = std::fs::read_to_string(_dir.join(format!("library/certificates/{id}.txt"))).unwrap();
+    assert!(
+        written.starts_with("CERTIFICATE OF PREPARATION") && written.contains(&format!("record {id}")),
+        "{written}"
+    );
+    assert!(std::fs::read(_dir.join(format!("library/certificates/{id}.pdf"))).unwrap().starts_with(b"%PDF-"));
     // Reopened, the finished fill is named with how to certify it, not "no fill record".
-    let id = doc.bench.record.as_ref().unwrap().id.clone();
+    let id = rec_id;
     keys(&mut model, &mut ctx, &[Key::Char('1')]);
     open(&mut model, &mut ctx, "flue-gas-span");
     assert!(model.doc.as_ref().unwrap().bench.record.is_none());

@@ -9,7 +9,6 @@ use super::{print_json, Failure, Format, Refused};
 use crate::certify::{certify_record, looks_like_path, Evaluate, Found};
 use crate::config;
 use crate::library::Library;
-use crate::print::certificate;
 use crate::print::records as listing;
 use crate::record::{self, Record};
 use crate::thermo::Model;
@@ -117,11 +116,7 @@ pub fn certify(args: &CertifyArgs) -> Result<(), Failure> {
     let cert = c.certificate(&catalogue);
     let text = cert.text();
     if let Some(pdf) = &args.pdf {
-        let banner = c.unfinished.is_some().then_some(certificate::IN_PROGRESS_BANNER);
-        let title = format!("Certificate of preparation {}", found.id);
-        let running =
-            format!("certificate {} | record {} | cylinder {}", cert.document.number, found.id, c.record.cylinder);
-        let bytes = certificate::typeset::render(&cert.blocks(), &title, &running, banner);
+        let bytes = c.pdf(&cert, &found.id);
         crate::library::atomic::write_output(pdf, &bytes, args.replace_link)
             .map_err(|e| Refused(format!("{}: {e}", pdf.display())))?;
     }

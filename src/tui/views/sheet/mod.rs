@@ -4,6 +4,7 @@
 //! lost when the session ends; opening the recipe again continues the fill. After each
 //! weighing the composition so far is compared with the plan and the rest re-planned.
 
+mod certify;
 pub mod draw;
 
 use ratatui::layout::Rect;
@@ -30,12 +31,13 @@ impl Screen for Sheet {
     fn on_key(&self, model: &mut Model, key: Key, ctx: &mut Context) {
         match key {
             Key::Char('p') => export(model, ctx),
+            Key::Char('C') => certify::certify(model, ctx),
             Key::Char('m') => crate::tui::overlays::premixes::open(model),
             _ => on_key(model, key),
         }
     }
     fn hints(&self, _model: &Model) -> &'static str {
-        "? help · Space done · r reading · t temp · w weigh · m premix · l source · p print · ↑↓ step"
+        "? help · Space done · r reading · t temp · w weigh · m premix · l source · p print · C certify · ↑↓ step"
     }
     fn help(&self) -> &'static [&'static str] {
         &[
@@ -48,6 +50,7 @@ impl Screen for Sheet {
             "o  operator   b  balance (u=0.02g: its uncertainty)   a  air",
             "m  premixes for steps too small to dose (a accepts one)",
             "p  write the sheet to sheets/ in the library (text, PDF)",
+            "C  certify the finished fill: certificates/ID (text, PDF)",
             "every entry is written to records/ at once; reopening the",
             "recipe continues the fill; fillwright certify ID certifies",
             "Esc stays on the sheet (1-5 or Tab change the view)",
