@@ -752,6 +752,13 @@ fn the_fill_sheet_is_written_for_the_bench_folder() {
     // The printed sheet has the comparison the screen leaves out of its recompute.
     assert!(text.contains("STOPPING AT EACH MODEL'S READINGS"), "{text}");
     assert!(model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().following.is_empty());
+    // Room to write the readings by hand, a row per step, and the blend's cautions.
+    let form = &text[text.find("READINGS AT THE BENCH").expect("the bench form")..];
+    let steps = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().steps.len();
+    assert_eq!(form.lines().filter(|l| l.contains("__________")).count(), steps + 1, "{form}");
+    assert!(form.contains("CAUTIONS") && form.contains("Follow local codes"), "{form}");
+    assert!(!form.contains("oxygen-clean"), "no oxidiser in this blend: {form}");
+    assert!(text.lines().all(|l| l.chars().count() <= 80), "the sheet stays within 80 columns");
     // And as a PDF for the printer, holding the same stop readings.
     let pdf = path.with_extension("pdf");
     let back = common::pdf_text(&pdf);

@@ -369,3 +369,51 @@ fn closing(o: &mut Lines, plan: &Plan, order: &Order, d: &Shown) {
         line(text.into());
     }
 }
+
+/// The printed sheet's form for the bench: a row per step with room to write by hand what
+/// the scale and the gauge read, the cylinder's temperature, the time and who did it, the
+/// planned figures beside (80 columns).
+pub fn bench_form(plan: &Plan, d: &Shown) -> String {
+    let mut out = String::from("\nREADINGS AT THE BENCH  written by hand as the fill goes\n");
+    out.push_str(&format!(
+        "{:<3}{:<11}{:>11}{:>10}  {:<11}{:<10}{:<8}{:<7}{}\n",
+        "#",
+        "source",
+        "scale g",
+        format!("stop {}", d.pu()),
+        "scale read",
+        "gauge",
+        "temp",
+        "time",
+        "by"
+    ));
+    out.push_str(&format!("{:<3}{:<11}{:>11}{:>10}  {}\n", 0, "empty", "", "", "__________ "));
+    for (i, s) in plan.steps.iter().enumerate() {
+        out.push_str(&format!(
+            "{:<3}{:<11}{:>11.2}{:>10}  {:<11}{:<10}{:<8}{:<7}{}\n",
+            i + 1,
+            crate::ron_format::clip(&s.source, 10),
+            s.scale_reading_g,
+            d.pf(s.pressure_after_pa),
+            "__________",
+            "________",
+            "______",
+            "_____",
+            "___"
+        ));
+    }
+    out
+}
+
+/// The cautions for the blend, for the printed sheet.
+pub fn cautions(list: &[&str]) -> String {
+    let mut out = String::from("\nCAUTIONS\n");
+    for c in list {
+        for (k, l) in crate::ron_format::wrap_words(c, 76).iter().enumerate() {
+            out.push_str(if k == 0 { "- " } else { "  " });
+            out.push_str(l);
+            out.push('\n');
+        }
+    }
+    out
+}

@@ -20,4 +20,4 @@ pub mod fill_sheet;
 pub mod records;
 pub mod state;
 
-pub use fill_sheet::{fill_sheet, stop_banner, stop_banner_for};
+pub use fill_sheet::{bench_form, cautions, fill_sheet, stop_banner, stop_banner_for};

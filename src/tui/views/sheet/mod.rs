@@ -175,6 +175,9 @@ pub fn export(model: &mut Model, ctx: &Context) {
             text.push_str(&rest);
         }
     }
+    text.push_str(&crate::print::bench_form(plan, &model.shown));
+    let checks = doc.computed.checks.as_deref().unwrap_or_default();
+    text.push_str(&crate::print::cautions(&crate::checks::cautions_for(checks)));
     // The text for the bench folder's screen, the PDF for its printer (the certificate's
     // machinery: Courier on A4, nothing embedded).
     let title = format!("Fill sheet {} rev {}", doc.name, doc.recipe.revision);
