@@ -54,6 +54,13 @@ fn open(model: &mut Model, ctx: &mut Context, name: &str) {
     assert_eq!(model.doc.as_ref().unwrap().name, name);
 }
 
+/// Type a scale reading on the Fill sheet (`w`, the reading, Enter).
+fn weigh(model: &mut Model, ctx: &mut Context, reading: &str) {
+    keys(model, ctx, &[Key::Char('3'), Key::Char('w')]);
+    text(model, ctx, reading);
+    keys(model, ctx, &[Key::Enter]);
+}
+
 /// Move the editor to the line whose label starts with `gas` (a component row).
 fn go_to_component(model: &mut Model, ctx: &mut Context, gas: &str) {
     keys(model, ctx, &[Key::Home]);
@@ -1497,14 +1504,10 @@ fn a_new_gas_is_typed_fresh_esc_stays_on_the_fill_sheet_and_search_reads_descrip
 fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
     let (mut model, mut ctx, _dir) = setup("made-so-far");
     open(&mut model, &mut ctx, "flue-gas-span");
-    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
-    text(&mut model, &mut ctx, "13412.000g");
-    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('w')]);
-    text(&mut model, &mut ctx, "13412.928g");
-    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('w')]);
+    weigh(&mut model, &mut ctx, "13412.000g");
+    weigh(&mut model, &mut ctx, "13412.928g");
     // CH4 3 % over its 26.585 g: its amount is 3 % over the plan, its share far less.
-    text(&mut model, &mut ctx, &format!("{}g", 13412.928 + 26.585 * 1.03));
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    weigh(&mut model, &mut ctx, &format!("{}g", 13412.928 + 26.585 * 1.03));
     let doc = model.doc.as_ref().unwrap();
     let prog = doc.bench.progress.as_ref().unwrap();
     let plan = doc.computed.plan.as_ref().unwrap();
@@ -1529,9 +1532,7 @@ fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
     // against the target and its tolerance, and CH4's overfill is out of its 1 %rel.
     for k in 2..4 {
         let reading = live_scale(&model, k);
-        keys(&mut model, &mut ctx, &[Key::Char('w')]);
-        text(&mut model, &mut ctx, &format!("{reading:.3}g"));
-        keys(&mut model, &mut ctx, &[Key::Enter]);
+        weigh(&mut model, &mut ctx, &format!("{reading:.3}g"));
     }
     let doc = model.doc.as_ref().unwrap();
     let made = fillwright::tui::views::sheet::draw::composition_made(
@@ -1568,9 +1569,8 @@ fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
 fn saving_a_new_revision_during_a_fill_warns_that_the_fill_keeps_its_revision() {
     let (mut model, mut ctx, _dir) = setup("save-during-fill");
     open(&mut model, &mut ctx, "flue-gas-span");
-    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
-    text(&mut model, &mut ctx, "13412.000g");
-    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('2')]);
+    weigh(&mut model, &mut ctx, "13412.000g");
+    keys(&mut model, &mut ctx, &[Key::Char('2')]);
     go_to_component(&mut model, &mut ctx, "CO2");
     keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
     text(&mut model, &mut ctx, "14%");
@@ -1604,9 +1604,7 @@ fn the_scale_uncertainty_follows_the_resolution_and_can_be_typed_for_one_fill() 
     assert_eq!(fillwright::tui::views::sheet::scale_uncertainty_text(0.01), "0.003g");
     let (mut model, mut ctx, dir) = setup("scale-u");
     open(&mut model, &mut ctx, "flue-gas-span");
-    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('w')]);
-    text(&mut model, &mut ctx, "13412.000g");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    weigh(&mut model, &mut ctx, "13412.000g");
     let record = |dir: &std::path::Path| {
         let records = dir.join("library/records");
         let file = std::fs::read_dir(&records).unwrap().flatten().find(|e| e.path().is_file()).unwrap().path();
