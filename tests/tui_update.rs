@@ -1629,3 +1629,21 @@ fn the_scale_uncertainty_follows_the_resolution_and_can_be_typed_for_one_fill() 
     assert!(matches!(model.overlay, Overlay::Prompt { .. }));
     assert!(model.status.contains("u=2mol"), "{}", model.status);
 }
+
+#[test]
+fn certifying_a_fill_with_only_the_empty_weighing_says_why_in_the_status_line() {
+    let (mut model, mut ctx, _dir) = setup("certify-early");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('C')]);
+    assert!(model.status.starts_with("not certified: no fill record yet"), "{}", model.status);
+    weigh(&mut model, &mut ctx, "13412.000g");
+    keys(&mut model, &mut ctx, &[Key::Char('C')]);
+    assert!(model.status.starts_with("not certified: the record has no additions yet"), "{}", model.status);
+    // With the first addition begun (its temperature typed): what is wrong first, not the
+    // record file's path, line and column.
+    keys(&mut model, &mut ctx, &[Key::Char('t')]);
+    text(&mut model, &mut ctx, "28C");
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Char('C')]);
+    assert!(model.status.starts_with("not certified: no addition is complete yet"), "{}", model.status);
+    assert!(!model.status.contains(".ron:"), "{}", model.status);
+}

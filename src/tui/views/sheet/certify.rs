@@ -33,7 +33,13 @@ fn certify_to_files(model: &Model, ctx: &Context) -> Result<String, String> {
     };
     let how =
         Evaluate { model: None, draws: crate::record::DEFAULT_DRAWS, seed: crate::record::DEFAULT_SEED, issued: None };
-    let mut c = certify_record(&found, &ctx.catalogue, how)?;
+    // The status line has room for what is wrong, not for where in the file: the record is
+    // the one on the sheet.
+    let at = format!("{}:", found.origin);
+    let mut c = certify_record(&found, &ctx.catalogue, how).map_err(|e| match e.strip_prefix(&at) {
+        Some(rest) => rest.split_once(": ").map_or(rest.to_string(), |(_, why)| why.to_string()),
+        None => e,
+    })?;
     if let Some(why) = &c.unfinished {
         return Err(format!("the fill is not finished ({why}); a certificate is for a finished fill"));
     }
