@@ -1647,3 +1647,39 @@ fn certifying_a_fill_with_only_the_empty_weighing_says_why_in_the_status_line() 
     assert!(model.status.starts_with("not certified: no addition is complete yet"), "{}", model.status);
     assert!(!model.status.contains(".ron:"), "{}", model.status);
 }
+
+#[test]
+fn the_models_view_shows_the_composition_error_of_following_each_models_readings() {
+    let (mut model, mut ctx, _dir) = setup("models-following");
+    open(&mut model, &mut ctx, "pipeline-ng-9");
+    assert!(model.doc.as_ref().unwrap().computed.following.is_none(), "not made until the view is shown");
+    keys(&mut model, &mut ctx, &[Key::Char('4')]);
+    let doc = model.doc.as_ref().unwrap();
+    let (ids, following) = doc.computed.following.clone().expect("made on showing the Models view");
+    // The same comparison as the command line's plan makes (the printed sheet's table).
+    let options = fillwright::plan::PlanOptions {
+        skip_following: false,
+        ..fillwright::tui::model::Computed::options(&ctx.settings)
+    };
+    let full = fillwright::plan::plan(doc.computed.order.as_ref().unwrap(), &ctx.catalogue, &options).unwrap();
+    assert_eq!(following, full.following);
+    let f = following.last().unwrap();
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains(&format!("composition error in %, as {} says", f.truth.key())), "{screen}");
+    // The gas with the largest error leads, with its error for the ideal gas's readings.
+    let plan = doc.computed.plan.as_ref().unwrap();
+    let worst = (0..plan.gases.len())
+        .filter(|&i| plan.components[i].mole_fraction > 0.0)
+        .max_by(|&a, &b| {
+            let w = |i: usize| f.rows.iter().map(|r| r.relative_error_percent[i].abs()).fold(0.0, f64::max);
+            w(a).total_cmp(&w(b))
+        })
+        .unwrap();
+    let ideal = f.rows.iter().find(|r| r.targets_of == fillwright::thermo::Model::Ideal).unwrap();
+    let row =
+        screen.lines().find(|l| l.starts_with(&format!(" {:<13}", ids[worst]))).unwrap_or_else(|| panic!("{screen}"));
+    assert!(row.contains(&fillwright::units::signed(ideal.relative_error_percent[worst], 2)), "{row}");
+    // Leaving the view keeps it for the same plan (made once per plan).
+    keys(&mut model, &mut ctx, &[Key::Char('2')]);
+    assert!(model.doc.as_ref().unwrap().computed.following.is_some());
+}

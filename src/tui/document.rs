@@ -56,6 +56,24 @@ pub fn refresh(model: &mut Model, ctx: &Context) {
     model.library.selected = model.library.selected.min(n.saturating_sub(1));
 }
 
+/// The comparison of following each model's readings for the Models view, made once per
+/// plan (the screen's recompute leaves it out).
+pub fn ensure_following(model: &mut Model, ctx: &Context) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    if doc.computed.following.is_some() {
+        return;
+    }
+    let Ok(order) = &doc.computed.order else { return };
+    let options = crate::plan::PlanOptions { skip_following: false, ..Computed::options(&ctx.settings) };
+    let following = crate::plan::plan(order, &ctx.catalogue, &options).map(|p| p.following).unwrap_or_default();
+    let ids = doc
+        .computed
+        .plan
+        .as_ref()
+        .map_or(Vec::new(), |p| p.gases.iter().map(|&g| ctx.catalogue.gas(g).id().to_string()).collect());
+    doc.computed.following = Some((ids, following));
+}
+
 /// Which recipes have a fill in progress (a record not finished), for the Library's list.
 pub fn refresh_filling(model: &mut Model, ctx: &Context) {
     model.library.filling = ctx

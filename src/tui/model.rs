@@ -203,6 +203,10 @@ pub struct Computed {
     pub key: String,
     /// Whether the last update reused them.
     pub reused: bool,
+    /// Stopping at each model's readings, judged by the plan's model and the reference:
+    /// made when the Models view is shown (the screen's plan leaves it out for speed).
+    /// With the plan gases' ids, in the plan's order.
+    pub following: Option<(Vec<String>, Vec<crate::plan::Following>)>,
 }
 
 impl Computed {
@@ -259,7 +263,7 @@ impl Computed {
             }
             _ => (None, Vec::new()),
         };
-        Computed { order, plan, checks, z_curves, key: heavy_key(recipe, settings), reused: false }
+        Computed { order, plan, checks, z_curves, key: heavy_key(recipe, settings), reused: false, following: None }
     }
 
     /// The results for an edited recipe: reused from `previous` when the edit leaves the

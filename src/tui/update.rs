@@ -21,6 +21,10 @@ pub fn update(model: &mut Model, msg: Msg, ctx: &mut Context) {
     if model.view == View::Library && before != View::Library {
         super::document::refresh_filling(model, ctx);
     }
+    // The Models view shows the comparison of following each model's readings.
+    if model.view == View::Models {
+        super::document::ensure_following(model, ctx);
+    }
 }
 
 fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {

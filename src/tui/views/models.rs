@@ -38,11 +38,64 @@ fn models(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let max_steps = (area.height as usize).saturating_sub(14).clamp(2, 12);
     let shown = p.steps.len().min(max_steps);
     let table_h = (shown + 6) as u16;
-    let [top, bottom] = Layout::vertical([Constraint::Length(table_h), Constraint::Min(4)]).areas(area);
+    let follow = match &doc.computed.following {
+        Some((ids, following)) => following_lines(ids, following, p, theme),
+        None => Vec::new(),
+    };
+    // The comparison gets what the table and the charts (6 rows at least) leave.
+    let room = usize::from(area.height.saturating_sub(table_h + 6));
+    let follow_h = if follow.len() > 3 && room > 3 { follow.len().min(room) as u16 } else { 0 };
+    let [top, middle, bottom] =
+        Layout::vertical([Constraint::Length(table_h), Constraint::Length(follow_h), Constraint::Min(4)]).areas(area);
     table(model, p, shown, theme, frame, top);
+    if follow_h > 0 {
+        let mut lines = follow;
+        if lines.len() > usize::from(follow_h) {
+            lines.truncate(usize::from(follow_h) - 1);
+            lines.push(Line::styled("… the rest on the printed sheet (p on the Fill sheet)", theme.dim()));
+        }
+        frame.render_widget(Paragraph::new(lines), middle);
+    }
     let [zc, fc] = Layout::horizontal([Constraint::Percentage(50), Constraint::Percentage(50)]).areas(bottom);
     z_chart(model, &doc.computed.z_curves, theme, frame, zc);
     fill_chart(model, p, theme, frame, fc);
+}
+
+/// Stopping at each model's readings, as the reference judges it: the composition error in
+/// % per gas (the largest first) and per model whose readings are followed; `!` marks one
+/// outside the recipe's tolerance.
+fn following_lines(
+    ids: &[String],
+    following: &[crate::plan::Following],
+    p: &crate::plan::Plan,
+    theme: &Theme,
+) -> Vec<Line<'static>> {
+    // The last comparison is the reference's (the plan's own model's when it is the reference).
+    let Some(f) = following.last() else { return Vec::new() };
+    let mut lines = vec![Line::styled(
+        format!(" Stopping at each model's readings: composition error in %, as {} says", f.truth.key()),
+        theme.bold(),
+    )];
+    let mut head = format!("{:<14}", "");
+    for r in &f.rows {
+        head.push_str(&format!("{:>9}", r.targets_of.key()));
+    }
+    lines.push(Line::styled(head, theme.bold()));
+    let mut gases: Vec<usize> = (0..p.gases.len()).filter(|&i| p.components[i].mole_fraction > 0.0).collect();
+    let worst = |i: usize| f.rows.iter().map(|r| r.relative_error_percent[i].abs()).fold(0.0, f64::max);
+    gases.sort_by(|&a, &b| worst(b).total_cmp(&worst(a)));
+    for i in gases {
+        let id = ids.get(i).map_or("", String::as_str);
+        let mut row = format!("{:<14}", clip(&format!(" {id}"), 13));
+        for r in &f.rows {
+            let e = r.relative_error_percent[i];
+            let e = if e.abs() < 0.005 { 0.0 } else { e };
+            let mark = if r.out_of_tolerance[i] { "!" } else { " " };
+            row.push_str(&format!("{:>8}{mark}", crate::units::signed(e, 2)));
+        }
+        lines.push(Line::raw(row));
+    }
+    lines
 }
 
 /// One table: a column per model; the stop reading of each step, then the amount, its
