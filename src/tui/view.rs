@@ -14,7 +14,7 @@ use super::theme::Theme;
 pub use super::theme::{MIN_HEIGHT, MIN_WIDTH};
 use super::{overlays, views};
 use crate::gas::Catalogue;
-use crate::ron_format::clip;
+use crate::ron_format::{clip, wrap_words};
 
 /// Draw the whole screen.
 pub fn view(model: &Model, catalogue: &Catalogue, frame: &mut Frame) {
@@ -30,8 +30,9 @@ pub fn view(model: &Model, catalogue: &Catalogue, frame: &mut Frame) {
         frame.render_widget(Paragraph::new(text).wrap(Wrap { trim: true }), area);
         return;
     }
+    let status_h = status_rows(model, usize::from(area.width));
     let [top, body, status] =
-        Layout::vertical([Constraint::Length(1), Constraint::Min(1), Constraint::Length(1)]).areas(area);
+        Layout::vertical([Constraint::Length(1), Constraint::Min(1), Constraint::Length(status_h)]).areas(area);
     header(model, &theme, frame, top);
     views::of(model.view).draw(model, &theme, frame, body);
     status_line(model, &theme, frame, status);
@@ -70,10 +71,32 @@ fn keys_hint(model: &Model) -> &'static str {
 
 /// The status line: what just happened, then as many key hints as fit, most important
 /// first; the first hint (`? help`) is always shown, the message is cut to make room.
+/// Rows of the status line: one, or a message too long for it wrapped whole above the
+/// keys (at most three rows of message).
+fn status_rows(model: &Model, width: usize) -> u16 {
+    let first = keys_hint(model).split(" · ").next().unwrap_or("").chars().count();
+    if model.status.chars().count() + 3 + first <= width {
+        1
+    } else {
+        1 + wrap_words(&model.status, width).len().min(3) as u16
+    }
+}
+
 fn status_line(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let width = usize::from(area.width);
     let hints: Vec<&str> = keys_hint(model).split(" · ").collect();
     let first = hints.first().copied().unwrap_or("");
+    if area.height > 1 {
+        // A long message, whole above the keys.
+        let mut lines: Vec<Line> = wrap_words(&model.status, width)
+            .into_iter()
+            .take(usize::from(area.height) - 1)
+            .map(|l| Line::styled(l, theme.bold()))
+            .collect();
+        lines.push(Line::styled(hints.join(" · "), theme.dim()));
+        frame.render_widget(Paragraph::new(lines), area);
+        return;
+    }
     let status = if model.status.is_empty() {
         String::new()
     } else {
