@@ -172,13 +172,18 @@ pub fn to_text<T: serde::Serialize>(value: &T) -> String {
     text
 }
 
-/// A CSV field, quoted where it holds a comma or a quote (RFC 4180).
+/// A CSV field, quoted where it holds a comma, a quote or a line break (RFC 4180).
 pub fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
+    if s.contains([',', '"', '\n', '\r']) {
         format!("\"{}\"", s.replace('"', "\"\""))
     } else {
         s.to_string()
     }
+}
+
+/// One CSV row (RFC 4180), with its line end.
+pub fn csv_row<S: AsRef<str>>(fields: &[S]) -> String {
+    fields.iter().map(|f| csv_field(f.as_ref())).collect::<Vec<_>>().join(",") + "\n"
 }
 
 #[cfg(test)]

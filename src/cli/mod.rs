@@ -342,16 +342,5 @@ pub fn print_json(value: &serde_json::Value) {
 /// Print one CSV row (RFC 4180: a field with a comma, a quote or a line break is quoted,
 /// its quotes doubled).
 pub fn print_csv_row<S: AsRef<str>>(fields: &[S]) {
-    let cells: Vec<String> = fields
-        .iter()
-        .map(|f| {
-            let f = f.as_ref();
-            if f.contains([',', '"', '\n', '\r']) {
-                format!("\"{}\"", f.replace('"', "\"\""))
-            } else {
-                f.to_string()
-            }
-        })
-        .collect();
-    outln!("{}", cells.join(","));
+    out!("{}", crate::ron_format::csv_row(fields));
 }

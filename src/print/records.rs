@@ -4,7 +4,7 @@
 use serde_json::{json, Value};
 
 use crate::record::Record;
-use crate::ron_format::{clip, csv_field};
+use crate::ron_format::{clip, csv_row};
 use crate::units::count;
 
 /// A record as listed: its id, or why its file could not be read.
@@ -62,7 +62,7 @@ pub fn json(shown: &[&Listed]) -> Value {
 
 /// The list as CSV (RFC 4180), one row per record, a damaged one with its error.
 pub fn csv(shown: &[&Listed]) -> String {
-    let row = |cells: &[&str]| cells.iter().map(|c| csv_field(c)).collect::<Vec<_>>().join(",") + "\n";
+    let row = |cells: &[&str]| csv_row(cells);
     let mut out = row(&["id", "recipe", "revision", "cylinder", "started", "finished", "state", "error"]);
     for (id, r) in shown {
         match r {

@@ -673,7 +673,7 @@ pub fn no_lookup(reference: &str) -> Result<SourceInput, String> {
 }
 
 /// A standard uncertainty of a mass: `0.010g`, `5mg`. Zero is accepted (an exact reading).
-fn parse_mass_u(text: &str) -> Result<f64, String> {
+pub(crate) fn parse_mass_u(text: &str) -> Result<f64, String> {
     parse_non_negative(text, |t| match units::parse_amount(t) {
         Ok(AmountInput::Grams(g)) => Ok(g),
         Ok(AmountInput::Moles(_)) => Err("must be a mass (g, mg or kg), not an amount".to_string()),

@@ -66,11 +66,7 @@ fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
         Key::Char('S') if model.doc.is_some() && model.view != View::Library => {
             model.overlay = Overlay::Prompt { purpose: Prompt::SaveNote, input: input("") }
         }
-        // On the Fill sheet Esc stays: keys typed next would act on the Library's commands.
-        Key::Esc if model.view == View::Sheet => {
-            model.status = "Esc stays on the Fill sheet: 1 or Tab go to another view".into()
-        }
-        Key::Esc if model.view != View::Library => model.view = View::Library,
+        Key::Esc if model.view != View::Library && screen.leaves_on_esc() => model.view = View::Library,
         _ => screen.on_key(model, key, ctx),
     }
 }

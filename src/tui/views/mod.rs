@@ -27,6 +27,10 @@ pub trait Screen: Sync {
     fn typing(&self, _model: &Model) -> bool {
         false
     }
+    /// Whether Esc goes back to the Library (else the view takes Esc itself).
+    fn leaves_on_esc(&self) -> bool {
+        true
+    }
     /// The key hints of the status line, most important first, separated by ` · `.
     fn hints(&self, _model: &Model) -> &'static str {
         "? help · Tab next view · s save · Esc library · q quit"

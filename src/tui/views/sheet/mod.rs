@@ -32,12 +32,17 @@ impl Screen for Sheet {
         match key {
             Key::Char('p') => export(model, ctx),
             Key::Char('C') => certify::certify(model, ctx),
+            // Esc stays: keys typed next would act on the Library's commands.
+            Key::Esc => model.status = "Esc stays on the Fill sheet: 1 or Tab go to another view".into(),
             Key::Char('m') => crate::tui::overlays::premixes::open(model),
             _ => on_key(model, key),
         }
     }
     fn hints(&self, _model: &Model) -> &'static str {
         "? help · Space done · r reading · t temp · w weigh · m premix · l source · p print · C certify · ↑↓ step"
+    }
+    fn leaves_on_esc(&self) -> bool {
+        false
     }
     fn help(&self) -> &'static [&'static str] {
         &[
@@ -845,10 +850,10 @@ fn split_scale_u(typed: &str) -> (String, Option<String>) {
     (rest.join(" ").trim_end_matches([',', ';']).trim().to_string(), u)
 }
 
-/// A scale uncertainty as typed, checked: a mass of at most 10 g.
+/// A scale uncertainty as typed, checked as the record reads it, and at most 10 g.
 fn checked_scale_u(typed: &str) -> Result<String, String> {
-    match units::parse_amount(typed) {
-        Ok(units::AmountInput::Grams(g)) if (0.0..=10.0).contains(&g) => Ok(typed.trim().to_string()),
+    match crate::record::parse_mass_u(typed) {
+        Ok(g) if g <= 10.0 => Ok(typed.trim().to_string()),
         _ => Err(format!(
             "u={typed}: the scale's standard uncertainty is a mass of at most 10 g, e.g. u=0.02g (Esc cancels)"
         )),
