@@ -201,3 +201,71 @@ fn the_fill_sheet_is_written_as_a_pdf_with_its_premix_stages() {
     assert!(out.status.success());
     assert!(std::fs::read(&pdf).unwrap().starts_with(b"%PDF-"));
 }
+
+#[test]
+fn two_traces_share_one_premix_cylinder_in_their_blend_ratio() {
+    let c = Catalogue::built_in();
+    let text = blend(
+        r#"(gas: "CO", amount: "400ppm", tolerance: "10ppm"), (gas: "SO2", amount: "100ppm", tolerance: "2%rel"),
+           (gas: "CO2", amount: "15%"), (gas: "N2", amount: "balance")"#,
+    );
+    let recipe = Recipe::parse(&text, "t").unwrap();
+    let order = recipe.resolve(&c, &text, "t").unwrap();
+    let opts = PlanOptions { model: None, ..options(0.1, 0.1) };
+    let p = plan::plan(&order, &c, &opts).unwrap();
+    // One premix of both first (it saves a cylinder), then each gas's own.
+    assert_eq!(p.premixes.len(), 3, "{:?}", p.premixes.iter().map(|x| &x.last().name).collect::<Vec<_>>());
+    let both = &p.premixes[0];
+    let id = |g: usize| c.gas(g).id().to_string();
+    assert_eq!(both.gases().iter().map(|&g| id(g)).collect::<Vec<_>>(), ["CO", "SO2"]);
+    assert_eq!(both.steps().len(), 2);
+    // CO at 5 % of the fill would be 0.8 %, rounded down to 0.5 % (so the premix is 8 % of
+    // the fill); SO2 keeps the blend's 4:1 ratio.
+    let st = both.last();
+    assert_eq!(st.spec, "CO=0.5%,SO2=0.125%,N2=balance");
+    assert!(both.why.as_deref().unwrap().starts_with("one cylinder instead of 2"), "{:?}", both.why);
+    assert!(both.complete(), "one stage from the pure gases doses both");
+    let said = premix::describe(both, "CO", order.volume_m3, &fillwright::units::Shown::default()).join("\n");
+    assert!(said.contains("PREMIX PROPOSED for steps") && said.contains("one cylinder instead of 2"), "{said}");
+    // Accepted: one premix recipe of three components with the blend's relative tolerances
+    // (10 ppm on 400 ppm is 2.5 %rel), and the blend takes it for both gases.
+    let accepted = premix::accept(both, &recipe, &c);
+    assert_eq!(accepted.stages.len(), 1);
+    let r = &accepted.stages[0];
+    let tol: Vec<(&str, Option<&str>)> =
+        r.components.iter().map(|x| (x.gas.as_str(), x.tolerance.as_deref())).collect();
+    assert_eq!(tol, [("CO", Some("2.5%rel")), ("SO2", Some("2%rel")), ("N2", None)]);
+    assert!(r.notes.contains("serial and tare"), "{}", r.notes);
+    let b = &accepted.blend;
+    for gone in ["CO", "SO2"] {
+        assert!(!b.sources.contains(&SourceLine::Pure(gone.into())), "{:?}", b.sources);
+    }
+    let premixes = b.sources.iter().filter(|s| matches!(s, SourceLine::Premix { .. })).count();
+    assert_eq!(premixes, 1, "{:?}", b.sources);
+    // Planned again, the blend doses the premix once and makes both traces exactly.
+    let replanned = plan::plan(&b.resolve(&c, "", &b.name).unwrap(), &c, &opts).unwrap();
+    assert!(replanned.premixes.is_empty(), "{:?}", replanned.premixes.len());
+    let step = replanned.steps.iter().find(|s| s.source == st.name).expect("the premix step");
+    assert!(!too_small(step));
+    // The premix amount is 8 % of the blend's (the share the strength was chosen for).
+    assert!((step.add_amount_mol / replanned.totals.amount_mol - 0.08).abs() < 1e-9);
+    for (gas, want) in [("CO", 400e-6), ("SO2", 100e-6)] {
+        let x = replanned.components.iter().find(|r| id(r.gas) == gas).unwrap().mole_fraction;
+        assert!((x / want - 1.0).abs() < 1e-9, "{gas} {x}");
+    }
+}
+
+#[test]
+fn gases_that_burn_or_react_together_are_never_put_in_one_premix() {
+    let c = Catalogue::built_in();
+    // In the premix cylinder the pure gases meet before the balance gas is added.
+    for (a, b) in [("CH4", "O2"), ("NO", "O2"), ("H2S", "SO2"), ("CO", "NO")] {
+        let text = blend(&format!(
+            r#"(gas: "{a}", amount: "300ppm"), (gas: "{b}", amount: "300ppm"), (gas: "N2", amount: "balance")"#
+        ));
+        let order = Recipe::load(&text, "t", &c).unwrap();
+        let p = plan::plan(&order, &c, &PlanOptions { model: None, ..options(0.1, 0.1) }).unwrap();
+        assert_eq!(p.premixes.len(), 2, "{a} and {b}: a premix of its own each");
+        assert!(p.premixes.iter().all(|x| x.also.is_empty() && x.why.is_none()), "{a} with {b}");
+    }
+}

@@ -900,8 +900,12 @@ fn a_premix_name_cut_in_the_sheet_is_given_whole_for_the_chosen_step() {
     for _ in 0..k {
         keys(&mut model, &mut ctx, &[Key::Down]);
     }
-    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    // At 80 columns the table cuts it, and the line under the table gives it whole.
+    let screen = screen_80(&model, &ctx);
     assert!(screen.contains(&format!("step {} source: NO 1% in N2", k + 1)), "{screen}");
+    // A wide window has room for it in the table itself.
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains(&format!("{}  NO 1% in N2  ", k + 1)), "{screen}");
 }
 
 #[test]
@@ -990,7 +994,7 @@ fn a_proposed_premix_is_shown_and_accepted_as_library_recipes() {
     let (mut model, mut ctx, _dir) = setup("premix-accept");
     open(&mut model, &mut ctx, "flue-gas-span");
     keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
-    assert!(matches!(model.overlay, Overlay::Premixes { selected: 0 }));
+    assert!(matches!(model.overlay, Overlay::Premixes { selected: 0, .. }));
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
     assert!(screen.contains("dose it from CO 1 % in N2") && screen.contains("a  accept"), "{screen}");
     keys(&mut model, &mut ctx, &[Key::Char('a')]);
@@ -1107,6 +1111,19 @@ fn a_long_cascade_at_80_by_24_still_shows_how_to_accept_it() {
     let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
     assert!(screen.contains("a  accept"), "{screen}");
     assert!(screen.contains("PREMIX PROPOSED"), "{screen}");
+    // It says it scrolls, and does: the foot of the cascade comes into view.
+    assert!(screen.contains("scroll: lines 1-"), "{screen}");
+    let foot = "a finer";
+    assert!(!screen.contains(foot) || stages < 4, "{screen}");
+    for _ in 0..3 {
+        keys(&mut model, &mut ctx, &[Key::PageDown]);
+    }
+    let Overlay::Premixes { scroll, .. } = model.overlay else { panic!() };
+    assert!(scroll >= 20, "{scroll}");
+    let screen = screen_80(&model, &ctx);
+    assert!(!screen.contains("scroll: lines 1-") && screen.contains("go into the blend"), "{screen}");
+    keys(&mut model, &mut ctx, &[Key::Home]);
+    assert!(matches!(model.overlay, Overlay::Premixes { scroll: 0, .. }));
 }
 
 #[test]
@@ -1516,7 +1533,7 @@ fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
     let prog = doc.bench.progress.as_ref().unwrap();
     let plan = doc.computed.plan.as_ref().unwrap();
     let lines: Vec<String> =
-        fillwright::tui::views::sheet::draw::composition_made(prog, plan).into_iter().map(|(l, _)| l).collect();
+        fillwright::tui::views::sheet::draw::composition_made(prog, plan, 78).into_iter().map(|(l, _)| l).collect();
     let said = lines.join(" ");
     assert!(said.starts_with("made so far, against the plan after step 2:"), "{said}");
     // The deviation of CH4's share, computed here from the amounts in the cylinder.
@@ -1542,6 +1559,7 @@ fn the_fill_sheet_shows_the_composition_made_not_the_amounts() {
     let made = fillwright::tui::views::sheet::draw::composition_made(
         doc.bench.progress.as_ref().unwrap(),
         doc.computed.plan.as_ref().unwrap(),
+        78,
     );
     let said: String = made.iter().map(|(l, _)| l.as_str()).collect::<Vec<_>>().join(" ");
     assert!(said.starts_with("made, against the target:"), "{said}");
@@ -1692,4 +1710,150 @@ fn the_models_view_shows_the_composition_error_of_following_each_models_readings
     // Leaving the view keeps it for the same plan (made once per plan).
     keys(&mut model, &mut ctx, &[Key::Char('2')]);
     assert!(model.doc.as_ref().unwrap().computed.following.is_some());
+}
+
+#[test]
+fn the_records_list_opens_continues_corrects_certifies_and_prints_any_fill() {
+    let (mut model, mut ctx, dir) = setup("records-view");
+    // An empty library of records says so and opens nothing.
+    keys(&mut model, &mut ctx, &[Key::Char('f')]);
+    assert!(matches!(model.overlay, Overlay::None));
+    assert!(model.status.contains("no fill records"), "{}", model.status);
+    open(&mut model, &mut ctx, "flue-gas-span");
+    weigh(&mut model, &mut ctx, "13412.000g");
+    weigh(&mut model, &mut ctx, "13412.928g");
+    let id = model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().id.clone();
+    // From the Library with another recipe open: the list shows the fill in progress.
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    open(&mut model, &mut ctx, "pipeline-ng-9");
+    keys(&mut model, &mut ctx, &[Key::Char('1'), Key::Char('f')]);
+    let Overlay::Records(list) = &model.overlay else { panic!("no records list: {}", model.status) };
+    assert_eq!(list.rows.len(), 1);
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains(&id) && screen.contains("in progress, 2 weighings"), "{screen}");
+    // Its report: every reading as recorded, and the revisions.
+    keys(&mut model, &mut ctx, &[Key::Char('p')]);
+    let report = std::fs::read_to_string(dir.join(format!("library/reports/{id}.txt"))).unwrap();
+    assert!(report.starts_with(&format!("FILL RECORD {id}")), "{report}");
+    assert!(report.contains("13412.000g") && report.contains("13412.928g"), "{report}");
+    assert!(report.contains("REVISIONS") && report.contains("(not finished)"), "{report}");
+    assert!(report.lines().all(|l| l.chars().count() <= 80), "{report}");
+    // Certifying an unfinished fill is refused with the reason; the list stays open.
+    keys(&mut model, &mut ctx, &[Key::Char('C')]);
+    assert!(model.status.contains("not certified") && model.status.contains("not finished"), "{}", model.status);
+    assert!(matches!(model.overlay, Overlay::Records(_)));
+    // Enter opens it on the Fill sheet, where the fill continues at step 2.
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(model.view, View::Sheet, "{}", model.status);
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.name, "flue-gas-span");
+    assert_eq!(doc.bench.record.as_ref().unwrap().id, id);
+    assert_eq!(doc.bench.selected, 1);
+    assert!(model.status.contains("continues"), "{}", model.status);
+    for k in 1..4 {
+        let reading = live_scale(&model, k);
+        weigh(&mut model, &mut ctx, &format!("{reading:.3}g"));
+    }
+    assert!(model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().record.finished.is_some());
+    // A finished fill, from another recipe's sheet: opened for review, x corrects it.
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    open(&mut model, &mut ctx, "pipeline-ng-9");
+    keys(&mut model, &mut ctx, &[Key::Char('1'), Key::Char('f'), Key::Char('x')]);
+    assert_eq!(model.view, View::Sheet);
+    assert_eq!(model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().id, id);
+    assert!(
+        matches!(&model.overlay, Overlay::Prompt { purpose: fillwright::tui::model::Prompt::Correction, .. }),
+        "{:?}",
+        model.overlay
+    );
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    // The sheet's own list is this recipe's; C certifies from it.
+    keys(&mut model, &mut ctx, &[Key::Char('f')]);
+    let Overlay::Records(list) = &model.overlay else { panic!("{}", model.status) };
+    assert_eq!(list.of.as_deref(), Some("flue-gas-span"));
+    keys(&mut model, &mut ctx, &[Key::Char('C')]);
+    assert!(model.status.contains("written to"), "{}", model.status);
+    assert!(dir.join(format!("library/certificates/{id}.txt")).exists());
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    // The recipe deleted: its record still lists and certifies, and opening says why not.
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    ctx.library.delete("flue-gas-span", &stamp()).unwrap();
+    model.doc = None;
+    keys(&mut model, &mut ctx, &[Key::Char('f'), Key::Enter]);
+    assert!(model.status.contains("no longer holds"), "{}", model.status);
+    assert!(matches!(model.overlay, Overlay::Records(_)));
+}
+
+/// Render at 80×24 as text.
+fn screen_80(model: &Model, ctx: &Context) -> String {
+    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(80, 24)).unwrap();
+    terminal.draw(|f| fillwright::tui::view::view(model, &ctx.catalogue, f)).unwrap();
+    fillwright::tui::scenes::text(terminal.backend().buffer())
+}
+
+#[test]
+fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen() {
+    let (mut model, mut ctx, dir) = setup("premix-workflow");
+    let text = r#"Recipe(format: 1, name: "stack-span", order: "KX-5102", components: [
+        (gas: "CO", amount: "400ppm", tolerance: "2%rel"), (gas: "SO2", amount: "100ppm", tolerance: "2%rel"),
+        (gas: "CO2", amount: "15%"), (gas: "N2", amount: "balance")], cylinder: (water_capacity: "10L",
+        working_pressure: "200bar", test_pressure: "300bar", serial: "KX-10-77"), fill: Pressure("150bar"))"#;
+    std::fs::write(dir.join("library/stack-span.ron"), text).unwrap();
+    update::refresh(&mut model, &ctx);
+    open(&mut model, &mut ctx, "stack-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
+    // The premix of both gases is proposed first, with why; at 80×24 its text scrolls.
+    let screen = screen_80(&model, &ctx);
+    assert!(
+        screen.contains("PREMIX PROPOSED for steps 1 and 2") && screen.contains("one cylinder instead of 2"),
+        "{screen}"
+    );
+    assert!(screen.contains("go into the blend (steps 1 and 2)"), "{screen}");
+    keys(&mut model, &mut ctx, &[Key::Right]);
+    assert!(matches!(model.overlay, Overlay::Premixes { selected: 1, scroll: 0 }));
+    keys(&mut model, &mut ctx, &[Key::Left, Key::Char('a')]);
+    let premix = "premix-CO-0.5%-SO2-0.125%-in-N2";
+    assert!(model.status.contains(&format!("g on its step opens {premix}")), "{}", model.status);
+    // g before the blend is saved: save first.
+    let step = {
+        let doc = model.doc.as_ref().unwrap();
+        doc.computed.plan.as_ref().unwrap().steps.iter().position(|s| s.source.starts_with("CO 0.5 % + SO2")).unwrap()
+    };
+    model.doc.as_mut().unwrap().bench.selected = step;
+    keys(&mut model, &mut ctx, &[Key::Char('g')]);
+    assert!(model.status.starts_with("save the blend first"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Char('s')]);
+    let doc = model.doc.as_ref().unwrap();
+    assert!(
+        doc.bench.premix_states[step].as_deref().unwrap().contains("not filled yet"),
+        "{:?}",
+        doc.bench.premix_states
+    );
+    assert!(screen_80(&model, &ctx).contains("not filled yet"));
+    // g opens the premix on its own Fill sheet; it is filled and certified there.
+    keys(&mut model, &mut ctx, &[Key::Char('g')]);
+    assert_eq!(model.doc.as_ref().unwrap().name, premix, "{}", model.status);
+    assert_eq!(model.view, View::Sheet);
+    weigh(&mut model, &mut ctx, "12950.000g");
+    let steps = model.doc.as_ref().unwrap().bench.done.len();
+    for k in 0..steps {
+        let reading = live_scale(&model, k);
+        weigh(&mut model, &mut ctx, &format!("{reading:.3}g"));
+    }
+    let premix_record = model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().id.clone();
+    keys(&mut model, &mut ctx, &[Key::Char('C')]);
+    assert!(model.status.contains("premix of stack-span"), "{}", model.status);
+    // Back on the blend: the premix is made, and its record is offered as the step's source.
+    keys(&mut model, &mut ctx, &[Key::Char('1')]);
+    open(&mut model, &mut ctx, "stack-span");
+    let doc = model.doc.as_ref().unwrap();
+    let state = doc.bench.premix_states[step].clone().unwrap();
+    assert!(state.contains(&format!("made, record {premix_record}")), "{state}");
+    assert_eq!(step, 0, "the premix is dosed first");
+    weigh(&mut model, &mut ctx, "13412.000g");
+    let Overlay::Prompt { input, .. } = &model.overlay else { panic!("no source asked: {}", model.status) };
+    assert_eq!(input.value(), format!("record:{premix_record}"));
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let rec = &model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().record;
+    assert_eq!(rec.additions[0].source, format!("record:{premix_record}"), "{}", model.status);
 }

@@ -236,28 +236,7 @@ fn exposure_limits(
 /// drifts (common practice, no source).
 pub const REACTIVE_TRACES: &[&str] = &["H2S", "NO", "NO2", "SO2", "HCl", "NH3", "Cl2", "COS"];
 
-/// Pairs that react in a cylinder, with the reason (common practice, no source).
-pub const INCOMPATIBLE: &[(&str, &str, &str)] = &[
-    ("NH3", "HCl", "form solid ammonium chloride"),
-    ("NH3", "Cl2", "form chloramines and explosive nitrogen trichloride"),
-    ("NH3", "CO2", "form solid ammonium carbamate"),
-    ("NH3", "SO2", "form solid ammonium sulfites"),
-    ("NH3", "NO2", "react to ammonium nitrate and nitrite"),
-    ("NO", "O2", "NO is oxidised to NO2: the NO content drifts"),
-    ("NO", "Cl2", "form nitrosyl chloride"),
-    ("H2S", "SO2", "react to sulfur and water"),
-    ("H2S", "Cl2", "react to sulfur and HCl"),
-    ("H2S", "NO2", "react"),
-    ("H2", "Cl2", "explode when exposed to light"),
-    ("C2H2", "Cl2", "react explosively"),
-    ("CO", "Cl2", "form phosgene"),
-    ("C4H6", "O2", "form peroxides and polymerise"),
-    ("H2O", "HCl", "form corrosive hydrochloric acid; HCl is lost to the walls"),
-    ("H2O", "Cl2", "form corrosive acids"),
-    ("H2O", "SO2", "form corrosive sulfurous acid; SO2 is lost to the walls"),
-    ("H2O", "NO2", "form corrosive nitric acid; NO2 is lost"),
-    ("H2O", "H2S", "wet H2S corrodes steel; H2S is lost"),
-];
+pub use crate::gas::INCOMPATIBLE;
 
 pub fn incompatibility(plan: &Plan, catalogue: &Catalogue) -> Check {
     let parts = parts(plan, catalogue);

@@ -450,6 +450,9 @@ fn premixes_json(plan: &Plan, catalogue: &Catalogue) -> Vec<Value> {
             json!({
                 "step": p.step + 1,
                 "gas": id(catalogue, p.gas),
+                "steps": p.steps().iter().map(|s| s + 1).collect::<Vec<_>>(),
+                "gases": p.gases().iter().map(|&g| id(catalogue, g)).collect::<Vec<_>>(),
+                "why": p.why,
                 "mix": p.last().spec,
                 "name": p.last().name,
                 "complete": p.complete(),

@@ -63,6 +63,11 @@ pub struct Proposal {
     pub gas: usize,
     /// The stages, the one made from the pure gas first; the last is dosed into the blend.
     pub stages: Vec<Stage>,
+    /// Further steps (with their gases) that the same premix doses: a premix of several
+    /// gases replaces their pure sources too.
+    pub also: Vec<(usize, usize)>,
+    /// Why this premix is proposed (a premix of several gases saves cylinders).
+    pub why: Option<String>,
 }
 
 impl Proposal {
@@ -70,6 +75,27 @@ impl Proposal {
     pub fn last(&self) -> &Stage {
         // A proposal is only made with at least one stage.
         &self.stages[self.stages.len() - 1]
+    }
+
+    /// The blend's steps it replaces, in the order of [`Proposal::gases`].
+    pub fn steps(&self) -> Vec<usize> {
+        std::iter::once(self.step).chain(self.also.iter().map(|a| a.0)).collect()
+    }
+
+    /// The steps it replaces as a blender reads them: `2`, or `1 and 2`, in fill order.
+    pub fn steps_text(&self) -> String {
+        let mut steps = self.steps();
+        steps.sort_unstable();
+        let words: Vec<String> = steps.iter().map(|s| (s + 1).to_string()).collect();
+        match words.split_last() {
+            Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
+            _ => words.join(""),
+        }
+    }
+
+    /// The gases it carries, in the order of [`Proposal::steps`].
+    pub fn gases(&self) -> Vec<usize> {
+        std::iter::once(self.gas).chain(self.also.iter().map(|a| a.1)).collect()
     }
 
     /// Every stage plans and can be dosed, and each cylinder holds what the next takes.
@@ -151,9 +177,155 @@ pub fn propose(
         let Some((fractions, from_pure)) = maker.strengths(x) else { continue };
         let mut stages = maker.stages(&fractions, from_pure);
         maker.count_needed(&mut stages, step.add_amount_mol);
-        out.push(Proposal { step: index, gas, stages });
+        out.push(Proposal { step: index, gas, stages, also: Vec::new(), why: None });
+    }
+    let setting = Setting { plan, order, catalogue, options: PlanOptions { order: None, ..options.clone() }, planner };
+    if let Some(one) = setting.combined(&out) {
+        out.insert(0, one);
     }
     out
+}
+
+/// What a premix of several gases is planned in: the blend, its plan, and how to plan.
+struct Setting<'a> {
+    plan: &'a Plan,
+    order: &'a Order,
+    catalogue: &'a Catalogue,
+    options: PlanOptions,
+    planner: Planner,
+}
+
+impl Setting<'_> {
+    /// One premix of several gases in the balance gas where two or more steps each need a
+    /// premix from the pure gas: the gases keep their ratio in the blend, so one addition of
+    /// it brings each, and one cylinder (one fill, one certificate) does the work of several.
+    /// Proposed only where one stage from the pure gases doses every one of them and no two
+    /// of its gases (nor one with the balance gas) react, or burn together: in the premix
+    /// cylinder the pure gases meet before the balance gas dilutes them, so a flammable gas
+    /// never shares one with an oxidiser, whatever the final strengths (common practice).
+    /// Else the weakest gas is left to its own premix and the rest tried again.
+    fn combined(&self, singles: &[Proposal]) -> Option<Proposal> {
+        let (plan, catalogue) = (self.plan, self.catalogue);
+        let mut members: Vec<(usize, usize, f64)> = singles
+            .iter()
+            .filter_map(|p| Some((p.step, p.gas, plan.components.iter().find(|c| c.gas == p.gas)?.mole_fraction)))
+            .collect();
+        members.sort_by(|a, b| b.2.total_cmp(&a.2));
+        let balance_gas = balance_gas_of(self.order);
+        let react = |a: usize, b: usize| {
+            let (ga, gb) = (catalogue.gas(a), catalogue.gas(b));
+            crate::gas::reacts_with((ga.id(), &ga.hazard()), (gb.id(), &gb.hazard())).is_some()
+        };
+        if members.iter().any(|m| react(m.1, balance_gas)) {
+            return None;
+        }
+        while members.len() >= 2 {
+            let gases: Vec<usize> = members.iter().map(|m| m.1).collect();
+            let reacting = gases.iter().enumerate().any(|(i, &a)| gases[i + 1..].iter().any(|&b| react(a, b)));
+            if !reacting {
+                if let Some(p) = self.combined_of(&members, balance_gas, singles.len()) {
+                    return Some(p);
+                }
+            }
+            members.pop();
+        }
+        None
+    }
+
+    /// The premix of `members` (step, gas, fraction in the blend, strongest first), if one
+    /// stage from the pure gases doses it.
+    fn combined_of(&self, members: &[(usize, usize, f64)], balance_gas: usize, singles: usize) -> Option<Proposal> {
+        let (plan, catalogue) = (self.plan, self.catalogue);
+        // The premix addition is at least MIN_PREMIX_SHARE of the blend, the strongest gas
+        // at a 1-2-5 strength; the others follow in the blend's ratio.
+        let strongest = round_down_125(members[0].2 / MIN_PREMIX_SHARE);
+        let share = members[0].2 / strongest;
+        let fractions: Vec<f64> = members.iter().map(|m| m.2 / share).collect();
+        if fractions.iter().sum::<f64>() >= 0.5 {
+            return None;
+        }
+        let mut gases: Vec<usize> = members.iter().map(|m| m.1).collect();
+        gases.push(balance_gas);
+        let mut x = fractions.clone();
+        x.push(1.0 - fractions.iter().sum::<f64>());
+        let id = |g: usize| catalogue.gas(g).id().to_string();
+        let parts: Vec<String> =
+            members.iter().zip(&fractions).map(|(m, f)| format!("{}={}", id(m.1), share_of(*f))).collect();
+        let spec = format!("{},{}=balance", parts.join(","), id(balance_gas));
+        let said: Vec<String> =
+            members.iter().zip(&fractions).map(|(m, f)| format!("{} {}", id(m.1), share_text(&share_of(*f)))).collect();
+        let name = format!("{} in {}", said.join(" + "), id(balance_gas));
+        let recipe_name = format!(
+            "premix-{}-in-{}",
+            members
+                .iter()
+                .zip(&fractions)
+                .map(|(m, f)| format!("{}-{}", id(m.1), share_of(*f)))
+                .collect::<Vec<_>>()
+                .join("-"),
+            id(balance_gas)
+        );
+        let fill_pressure_pa = plan.totals.pressure_pa.min(self.order.working_pressure_pa);
+        let order = self.combined_order(&name, &gases, &x, fill_pressure_pa);
+        let planned = (self.planner)(&order, catalogue, &self.options, MAX_STAGES).ok()?;
+        if planned.steps.iter().any(|s| s.flags.iter().any(|f| f.too_small())) {
+            return None;
+        }
+        let needed_mol = share * plan.totals.amount_mol;
+        let mixture = Composition { gases, fractions: x };
+        let stage = Stage {
+            fraction: fractions[0],
+            spec,
+            name,
+            recipe_name,
+            needed_mol,
+            needed_g: needed_mol * mixture.molar_mass(catalogue),
+            fill_pressure_pa,
+            order,
+            plan: Ok(Box::new(planned)),
+        };
+        let n = members.len();
+        let why = format!(
+            "one cylinder instead of {n}: {} keep their ratio in the blend, so one addition brings each{}",
+            members.iter().map(|m| id(m.1)).collect::<Vec<_>>().join(" and "),
+            if singles > n { " (the others need premixes of their own)" } else { "" }
+        );
+        Some(Proposal {
+            step: members[0].0,
+            gas: members[0].1,
+            stages: vec![stage],
+            also: members[1..].iter().map(|m| (m.0, m.1)).collect(),
+            why: Some(why),
+        })
+    }
+
+    /// The order of a premix of several gases from the pure gases, in the blend's cylinder.
+    fn combined_order(&self, name: &str, gases: &[usize], x: &[f64], fill_pressure_pa: f64) -> Order {
+        let last = gases.len() - 1;
+        Order {
+            name: name.to_string(),
+            description: format!("premix for {}", self.order.name),
+            targets: gases
+                .iter()
+                .enumerate()
+                .map(|(i, &gas)| Target {
+                    gas,
+                    share: if i == last { Share::Balance } else { share_of(x[i]) },
+                    tolerance: None,
+                })
+                .collect(),
+            balance: Some(last),
+            composition: Composition { gases: gases.to_vec(), fractions: x.to_vec() },
+            fill: Fill::PressurePa(fill_pressure_pa),
+            tare_g: None,
+            serial: None,
+            sources: gases.iter().map(|&g| pure(g, self.catalogue)).collect(),
+            fill_order: Vec::new(),
+            notes: String::new(),
+            before: Before::Evacuated { residual_pa: 0.0 },
+            ..self.order.clone()
+        }
+    }
 }
 
 /// The blend's balance gas: the one named, else the largest share.
@@ -312,22 +484,21 @@ pub struct Accepted {
 
 /// Turn a proposal into library recipes. `blend` is the recipe the plan was made from.
 pub fn accept(proposal: &Proposal, blend: &crate::recipe::Recipe, catalogue: &Catalogue) -> Accepted {
-    use crate::recipe::{ComponentLine, FillTarget, Recipe, SourceLine};
-    let gas_id = catalogue.gas(proposal.gas).id().to_string();
+    use crate::recipe::{FillTarget, Recipe, SourceLine};
     let mut stages: Vec<Recipe> = Vec::new();
     for (k, st) in proposal.stages.iter().enumerate() {
-        let balance_id = catalogue.gas(st.order.targets[1].gas).id().to_string();
         let sources = match k {
             0 => Vec::new(),
             _ => {
                 let from = &proposal.stages[k - 1];
+                let balance = st.order.targets.last().map_or(String::new(), |t| catalogue.gas(t.gas).id().to_string());
                 vec![
                     SourceLine::Premix {
                         name: from.name.clone(),
                         mix: from.spec.clone(),
                         recipe: Some(from.recipe_name.clone()),
                     },
-                    SourceLine::Pure(balance_id.clone()),
+                    SourceLine::Pure(balance),
                 ]
             }
         };
@@ -336,16 +507,17 @@ pub fn accept(proposal: &Proposal, blend: &crate::recipe::Recipe, catalogue: &Ca
             name: st.recipe_name.clone(),
             description: format!("{}: premix stage {} of {} for {}", st.name, k + 1, proposal.stages.len(), blend.name),
             order: blend.order.clone(),
-            components: vec![
-                ComponentLine { gas: gas_id.clone(), amount: share_of(st.fraction).to_string(), tolerance: None },
-                ComponentLine { gas: balance_id, amount: "balance".into(), tolerance: None },
-            ],
+            components: stage_components(st, blend, catalogue),
             cylinder: crate::recipe::CylinderLine { tare: None, serial: None, ..blend.cylinder.clone() },
             fill: FillTarget::Pressure(format!("{}bar", (bar * 1e3).round() / 1e3)),
             sources,
             fill_order: Vec::new(),
             before_fill: None,
-            notes: String::new(),
+            notes: format!(
+                "Cylinder of the blend's type; type its serial and tare before the fill. {} mol of it go into {}.",
+                crate::units::Sig(st.needed_mol, 3),
+                if k + 1 == proposal.stages.len() { blend.name.clone() } else { proposal.stages[k + 1].name.clone() }
+            ),
             revision: 0,
             saved: None,
             saved_by: None,
@@ -353,6 +525,51 @@ pub fn accept(proposal: &Proposal, blend: &crate::recipe::Recipe, catalogue: &Ca
             ..blend.clone()
         });
     }
+    Accepted { stages, blend: blend_with(proposal, blend, catalogue) }
+}
+
+/// A stage's components as the recipe lists them: each gas at its strength with the
+/// blend's relative tolerance on it (a premix off by 1 % makes the blend off by 1 %, where
+/// it is not certified and re-planned from), the balance gas last.
+fn stage_components(
+    st: &Stage,
+    blend: &crate::recipe::Recipe,
+    catalogue: &Catalogue,
+) -> Vec<crate::recipe::ComponentLine> {
+    use crate::recipe::ComponentLine;
+    let relative = |gas: usize| {
+        let in_blend = blend.components.iter().find(|c| catalogue.find(&c.gas).is_ok_and(|g| g == gas))?;
+        let x = crate::mixture::parse_share(&in_blend.amount).ok()?.fraction()?;
+        relative_tolerance(in_blend.tolerance.as_deref()?, x)
+    };
+    st.order
+        .targets
+        .iter()
+        .map(|t| {
+            let gas = catalogue.gas(t.gas).id().to_string();
+            match t.share {
+                Share::Balance => ComponentLine { gas, amount: "balance".into(), tolerance: None },
+                share => ComponentLine { gas, amount: share.to_string(), tolerance: relative(t.gas) },
+            }
+        })
+        .collect()
+}
+
+/// A tolerance as written on a blend's component of mole fraction `x`, as a relative one
+/// (`2%rel`): relative ones as they are, absolute ones divided by `x`.
+fn relative_tolerance(written: &str, x: f64) -> Option<String> {
+    let t = written.trim();
+    if t.ends_with("%rel") {
+        return Some(t.to_string());
+    }
+    let rel = crate::recipe::parse_tolerance(t, Some(x)).ok()? / x * 100.0;
+    (rel.is_finite() && rel > 0.0).then(|| format!("{}%rel", crate::units::Sig(rel, 2)))
+}
+
+/// The blend with the proposal's last stage as the source of its gases in place of the
+/// pure ones (the first one's place kept, the others dropped), in the fill order too.
+fn blend_with(proposal: &Proposal, blend: &crate::recipe::Recipe, catalogue: &Catalogue) -> crate::recipe::Recipe {
+    use crate::recipe::SourceLine;
     let last = proposal.last();
     let mut recipe = blend.clone();
     if recipe.sources.is_empty() {
@@ -360,17 +577,23 @@ pub fn accept(proposal: &Proposal, blend: &crate::recipe::Recipe, catalogue: &Ca
     }
     let premix =
         SourceLine::Premix { name: last.name.clone(), mix: last.spec.clone(), recipe: Some(last.recipe_name.clone()) };
-    let is_gas = |id: &str| catalogue.find(id).is_ok_and(|g| g == proposal.gas);
-    match recipe.sources.iter().position(|s| matches!(s, SourceLine::Pure(id) if is_gas(id))) {
+    let gases = proposal.gases();
+    let carried = |id: &str| catalogue.find(id).is_ok_and(|g| gases.contains(&g));
+    let replaced = |s: &SourceLine| matches!(s, SourceLine::Pure(id) if carried(id));
+    match recipe.sources.iter().position(replaced) {
         Some(i) => recipe.sources[i] = premix,
         None => recipe.sources.push(premix),
     }
-    for name in recipe.fill_order.iter_mut() {
-        if is_gas(name) {
-            *name = last.name.clone();
+    recipe.sources.retain(|s| !replaced(s));
+    let mut order = Vec::new();
+    for name in &recipe.fill_order {
+        let name = if carried(name) { last.name.clone() } else { name.clone() };
+        if !order.contains(&name) {
+            order.push(name);
         }
     }
-    Accepted { stages, blend: recipe }
+    recipe.fill_order = order;
+    recipe
 }
 
 /// The proposal as lines of at most 80 columns, for the sheet and the screen: every stage
@@ -380,8 +603,22 @@ pub fn describe(p: &Proposal, step_source: &str, volume_m3: f64, d: &crate::unit
     use crate::units::Sig;
     let mut out = Vec::new();
     let last = p.last();
-    out.push(format!("PREMIX PROPOSED for step {} ({}): dose it from {} instead", p.step + 1, step_source, last.name));
+    if p.also.is_empty() {
+        out.push(format!(
+            "PREMIX PROPOSED for step {} ({}): dose it from {} instead",
+            p.step + 1,
+            step_source,
+            last.name
+        ));
+    } else {
+        out.push(format!("PREMIX PROPOSED for steps {}: dose them from one premix,", p.steps_text()));
+        out.push(format!("  {}", clip(&last.name, 76)));
+    }
+    if let Some(why) = &p.why {
+        out.extend(crate::ron_format::wrap_words(why, 76).into_iter().map(|l| format!("  {l}")));
+    }
     out.push(match p.stages.len() {
+        1 if !p.also.is_empty() => "  made from the pure gases:".into(),
         1 => "  made from the pure gas:".into(),
         n => format!("  made in {n} stages, each from the one before, the first from the pure gas:"),
     });
@@ -413,7 +650,8 @@ pub fn describe(p: &Proposal, step_source: &str, volume_m3: f64, d: &crate::unit
             Err(e) => out.push(format!("     no plan for it: {}", clip(e, 60))),
         }
         let into = if k + 1 == p.stages.len() {
-            format!("the blend (step {})", p.step + 1)
+            let plural = if p.also.is_empty() { "" } else { "s" };
+            format!("the blend (step{plural} {})", p.steps_text())
         } else {
             format!("stage {}", char::from(b'B' + k as u8))
         };

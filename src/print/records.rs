@@ -119,3 +119,87 @@ pub fn text(shown: &[&Listed]) -> String {
     }
     out
 }
+
+/// One record as a report of at most 80 columns, for the bench folder and a review: who,
+/// what, every reading as recorded, every correction with its reason, and the revisions
+/// (`history`: revision and its note, oldest first, the current one last).
+pub fn report(id: &str, r: &Record, history: &[(u64, Option<String>)]) -> String {
+    let mut out = String::new();
+    let state = summary(id, r).state;
+    put!(out, "FILL RECORD {id}  (revision {}, {state})", r.revision);
+    put!(out, "recipe      {} at revision {}", r.recipe, r.recipe_revision);
+    if let Some(sha) = &r.recipe_sha256 {
+        put!(out, "sha256      {}", clip(sha, 68));
+    }
+    let capacity = r.water_capacity.as_deref().map_or(String::new(), |w| format!(", water capacity {w}"));
+    put!(out, "cylinder    {}{capacity}", none_if_empty(&r.cylinder));
+    if !r.customer.is_empty() {
+        put!(out, "customer    {}", clip(&r.customer, 68));
+    }
+    put!(out, "operator    {}", clip(none_if_empty(&r.operator), 68));
+    put!(out, "balance     {}  (u of one reading {})", clip(none_if_empty(&r.balance), 40), r.scale_uncertainty);
+    put!(out, "started     {}", r.started.as_deref().unwrap_or("(not recorded)"));
+    put!(out, "finished    {}", r.finished.as_deref().unwrap_or("(not finished)"));
+    put!(out);
+    readings(&mut out, r);
+    if !r.corrections.is_empty() {
+        put!(out);
+        put!(out, "CORRECTIONS (each also kept as a revision)");
+        for c in &r.corrections {
+            let now = if c.now.is_empty() { "(withdrawn)" } else { &c.now };
+            put!(out, "  {}  {}: {} -> {}", clip(&c.time, 20), c.entry, clip(&c.was, 20), clip(now, 20));
+            for line in crate::ron_format::wrap_words(&format!("because {}", c.reason), 74) {
+                put!(out, "      {line}");
+            }
+        }
+    }
+    if !history.is_empty() {
+        put!(out);
+        put!(out, "REVISIONS");
+        for (rev, note) in history {
+            put!(out, "  {rev:>4}  {}", clip(note.as_deref().unwrap_or(""), 72));
+        }
+    }
+    if !r.notes.trim().is_empty() {
+        put!(out);
+        put!(out, "NOTES");
+        for line in crate::ron_format::wrap_words(&r.notes, 76) {
+            put!(out, "  {line}");
+        }
+    }
+    out
+}
+
+fn none_if_empty(s: &str) -> &str {
+    if s.trim().is_empty() {
+        "(not recorded)"
+    } else {
+        s
+    }
+}
+
+/// The readings table: the empty weighing, then each addition with its source, pressure,
+/// temperature and the scale after it.
+fn readings(out: &mut String, r: &Record) {
+    put!(out, "  #  {:<30} {:>11} {:>8} {:>13}  time", "source", "pressure", "temp", "scale after");
+    let scale = |k: usize| r.weighings.get(k).map_or("-", String::as_str);
+    put!(out, "  0  {:<30} {:>11} {:>8} {:>13}", "(the cylinder before filling)", "", "", scale(0));
+    for (k, a) in r.additions.iter().enumerate() {
+        let time = a.time.as_deref().map_or("", |t| t.get(11..16).unwrap_or(t));
+        put!(
+            out,
+            "{:>3}  {:<30} {:>11} {:>8} {:>13}  {time}",
+            k + 1,
+            clip(&a.source, 30),
+            clip(a.pressure.as_deref().unwrap_or("-"), 11),
+            clip(a.temperature.as_deref().unwrap_or("-"), 8),
+            clip(scale(k + 1), 13),
+        );
+        if let Some(name) = a.source_name.as_deref().filter(|n| !n.is_empty()) {
+            put!(out, "     from {}", clip(name, 70));
+        }
+        if let Some(note) = a.note.as_deref().filter(|n| !n.is_empty()) {
+            put!(out, "     note {}", clip(note, 70));
+        }
+    }
+}

@@ -85,10 +85,14 @@ pub enum Overlay {
         changes: Vec<String>,
         base: Option<u64>,
     },
-    /// The premix cascades the plan proposes, and the one shown.
+    /// The premix cascades the plan proposes, the one shown, and the first line shown of
+    /// its text (a long cascade scrolls).
     Premixes {
         selected: usize,
+        scroll: usize,
     },
+    /// The fill records (all, or one recipe's) and the chosen one.
+    Records(Box<super::overlays::records::Records>),
     /// Drafts left by a session that ended with unsaved edits.
     Drafts {
         drafts: Vec<super::drafts::DraftEntry>,
@@ -369,6 +373,9 @@ pub struct Bench {
     pub unconfirmed_weighing: Option<String>,
     /// With no fill in progress: the recipe's last finished fill (its record id).
     pub last_finished: Option<String>,
+    /// Per step that doses a premix recipe of the library: where that premix stands (read
+    /// with the record).
+    pub premix_states: Vec<Option<String>>,
 }
 
 impl Bench {
@@ -470,9 +477,21 @@ pub struct LibraryState {
 
 impl LibraryState {
     /// Indices into `entries` that match the search: every word typed is found in the
-    /// name, the title, the order reference, the cylinder serial or the gases.
+    /// name, the title, the order reference, the cylinder serial, the gases, the description
+    /// or the notes. Recipes whose name holds every word come first (a name typed whole
+    /// is the first line, not a recipe that mentions it).
     pub fn visible(&self) -> Vec<usize> {
         let text = self.filter.as_ref().map(|i| i.value().to_lowercase()).unwrap_or_default();
+        let mut found = self.matching(&text);
+        let by_name = |i: &usize| {
+            let name = self.entries[*i].name.to_lowercase();
+            !text.split_whitespace().all(|word| name.contains(word))
+        };
+        found.sort_by_key(by_name);
+        found
+    }
+
+    fn matching(&self, text: &str) -> Vec<usize> {
         (0..self.entries.len())
             .filter(|&i| {
                 let e = &self.entries[i];

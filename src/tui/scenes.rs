@@ -110,6 +110,7 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
             }),
         ),
         ("verification", Box::new(verification_scene)),
+        ("records", Box::new(records_scene)),
         (
             "gas-picker",
             Box::new(move |m: &mut Model, c: &mut Context| {
@@ -119,6 +120,15 @@ pub fn scenes() -> Vec<(&'static str, Steps)> {
             }),
         ),
     ]
+}
+
+/// The fill records of the demo library: one finished, one in progress.
+fn records_scene(m: &mut Model, c: &mut Context) {
+    let records = c.library.dir().join("records");
+    let _ = std::fs::create_dir_all(&records);
+    let _ = std::fs::write(records.join("FC-10-2291-20261202.ron"), DEMO_RECORD);
+    let _ = std::fs::write(records.join("FC-10-2304-20261203.ron"), DEMO_RECORD_IN_PROGRESS);
+    press(m, c, &[Key::Char('f'), Key::Down]);
 }
 
 /// The verification pane on a finished fill of the flue-gas demo.
@@ -148,6 +158,23 @@ const DEMO_RECORD: &str = r#"Record(
         (source: "CO=1%±0.002%,N2=balance"),
         (source: "CO2=balance,N2=<10ppm"),
         (source: "N2=balance,O2=<2ppm,Ar=5ppm±1ppm"),
+    ],
+)
+"#;
+
+/// A second cylinder of the flue-gas demo, its fill in progress (invented readings).
+const DEMO_RECORD_IN_PROGRESS: &str = r#"Record(
+    format: 1,
+    recipe: "flue-gas-span",
+    recipe_revision: 1,
+    cylinder: "FC-10-2304",
+    operator: "M. Lindqvist",
+    balance: "BAL-07, calibrated 2026-10-14",
+    started: "2026-12-03T08:40:00Z",
+    scale_uncertainty: "0.029g",
+    weighings: ["13398.120g", "13490.990g"],
+    additions: [
+        (source: "CO=1%±0.002%,N2=balance", time: "2026-12-03T08:52:00Z"),
     ],
 )
 "#;

@@ -1,5 +1,6 @@
 //! What is drawn over a view and takes the keys while it is open: help, questions, the
-//! line being typed, the gas picker, history, trash, settings, drafts, premixes, and the
+//! line being typed, the gas picker, history, trash, settings, drafts, premixes, fill
+//! records, and the
 //! verification pane. Each is one module with its keys and its drawing; this file only
 //! hands them the key or the frame.
 
@@ -8,6 +9,7 @@ pub mod history;
 pub mod picker;
 pub mod premixes;
 pub mod prompt;
+pub mod records;
 pub mod recover;
 pub mod settings;
 pub mod trash;
@@ -32,13 +34,14 @@ pub fn on_key(model: &mut Model, key: Key, ctx: &mut Context) {
         Overlay::ConfirmStop(finding) => confirm::on_stop(model, key, finding),
         Overlay::Conflict => confirm::on_conflict(model, ctx, key),
         Overlay::ConfirmFillKind(_) => confirm::on_fill_kind(model, ctx, key),
-        Overlay::Premixes { selected } => premixes::on_key(model, ctx, key, selected),
+        Overlay::Premixes { selected, scroll } => premixes::on_key(model, ctx, key, selected, scroll),
         Overlay::Trash { entries, selected } => trash::on_key(model, ctx, key, entries, selected),
         Overlay::Settings { selected, values } => settings::on_key(model, ctx, key, selected, values),
         Overlay::Prompt { purpose, input } => prompt::on_key(model, ctx, key, purpose, input),
         Overlay::Picker { input, selected, purpose } => picker::on_key(model, ctx, key, input, selected, purpose),
         history @ Overlay::History { .. } => history::on_key(model, ctx, key, history),
         Overlay::Drafts { drafts, selected } => recover::on_key(model, ctx, key, drafts, selected),
+        Overlay::Records(list) => records::on_key(model, ctx, key, list),
     }
 }
 
@@ -53,7 +56,7 @@ pub fn draw(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fra
         Overlay::ConfirmStop(finding) => confirm::draw_stop(theme, frame, area, finding),
         Overlay::Conflict => confirm::draw_conflict(frame, area),
         Overlay::ConfirmFillKind(said) => confirm::draw_fill_kind(frame, area, said),
-        Overlay::Premixes { selected } => premixes::draw(model, theme, frame, area, selected),
+        Overlay::Premixes { selected, scroll } => premixes::draw(model, theme, frame, area, *selected, *scroll),
         Overlay::Trash { entries, selected } => trash::draw(theme, frame, area, entries, selected),
         Overlay::Settings { selected, values } => settings::draw(theme, frame, area, selected, values),
         Overlay::Prompt { purpose, input } => prompt::draw(theme, frame, area, purpose, input),
@@ -62,6 +65,7 @@ pub fn draw(model: &Model, catalogue: &Catalogue, theme: &Theme, frame: &mut Fra
         }
         history @ Overlay::History { .. } => history::draw(theme, frame, area, history),
         Overlay::Drafts { drafts, selected } => recover::draw(theme, frame, area, drafts, selected),
+        Overlay::Records(list) => records::draw(theme, frame, area, list),
     }
 }
 

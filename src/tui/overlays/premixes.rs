@@ -19,7 +19,7 @@ use crate::tui::theme::{boxed, centered, Theme};
 pub fn open(model: &mut Model) {
     let Some(doc) = model.doc.as_ref() else { return };
     match &doc.computed.plan {
-        Ok(p) if !p.premixes.is_empty() => model.overlay = Overlay::Premixes { selected: 0 },
+        Ok(p) if !p.premixes.is_empty() => model.overlay = Overlay::Premixes { selected: 0, scroll: 0 },
         Ok(_) => model.status = "no step needs a premix: every addition can be dosed at the bench's resolutions".into(),
         Err(_) => model.status = "no plan yet, so no premix to propose".into(),
     }
@@ -32,22 +32,28 @@ pub fn lines(model: &Model, selected: usize) -> Vec<String> {
     let Some(p) = plan.premixes.get(selected) else { return Vec::new() };
     let mut out = premix::describe(p, &plan.steps[p.step].source, plan.volume_m3, &model.shown);
     if plan.premixes.len() > 1 {
-        out.insert(0, format!("proposal {} of {} (↑↓ for the others)", selected + 1, plan.premixes.len()));
+        out.insert(0, format!("proposal {} of {} (← → for the others)", selected + 1, plan.premixes.len()));
     }
     out
 }
 
-pub fn on_key(model: &mut Model, ctx: &Context, key: Key, selected: usize) {
+pub fn on_key(model: &mut Model, ctx: &Context, key: Key, selected: usize, scroll: usize) {
     let count = model.doc.as_ref().and_then(|d| d.computed.plan.as_ref().ok()).map_or(0, |p| p.premixes.len());
-    match key {
-        Key::Up | Key::Char('k') => model.overlay = Overlay::Premixes { selected: selected.saturating_sub(1) },
-        Key::Down | Key::Char('j') => {
-            model.overlay = Overlay::Premixes { selected: (selected + 1).min(count.saturating_sub(1)) }
-        }
-        Key::Char('a') => accept(model, ctx, selected),
-        Key::Esc | Key::Char('q') => {}
-        _ => model.overlay = Overlay::Premixes { selected },
-    }
+    let length = lines(model, selected).len();
+    let down = |by: usize| (scroll + by).min(length.saturating_sub(1));
+    let (selected, scroll) = match key {
+        Key::Left | Key::Char('h') => (selected.saturating_sub(1), 0),
+        Key::Right | Key::Char('l') => ((selected + 1).min(count.saturating_sub(1)), 0),
+        Key::Up | Key::Char('k') => (selected, scroll.saturating_sub(1)),
+        Key::Down | Key::Char('j') => (selected, down(1)),
+        Key::PageUp => (selected, scroll.saturating_sub(10)),
+        Key::PageDown | Key::Char(' ') => (selected, down(10)),
+        Key::Home => (selected, 0),
+        Key::Char('a') => return accept(model, ctx, selected),
+        Key::Esc | Key::Char('q') => return,
+        _ => (selected, scroll),
+    };
+    model.overlay = Overlay::Premixes { selected, scroll };
 }
 
 /// Save every stage as a library recipe (or link the one there, if it makes the same
@@ -59,7 +65,7 @@ fn accept(model: &mut Model, ctx: &Context, selected: usize) {
     };
     if !proposal.complete() {
         model.status = "this premix cascade cannot be dosed as it stands (see the marks); nothing was accepted".into();
-        model.overlay = Overlay::Premixes { selected };
+        model.overlay = Overlay::Premixes { selected, scroll: 0 };
         return;
     }
     let accepted = premix::accept(&proposal, &doc.recipe, &ctx.catalogue);
@@ -101,12 +107,17 @@ fn accept(model: &mut Model, ctx: &Context, selected: usize) {
     if !linked.is_empty() {
         what.push(format!("linked {} already in the library", linked.join(", ")));
     }
-    model.status = format!("premix {last} accepted ({}); the blend takes it as a source: s saves", what.join("; "));
+    let first = accepted.stages.first().map_or(String::new(), |r| r.name.clone());
+    model.status = format!(
+        "premix {last} accepted ({}); the blend takes it as a source: s saves, then fill the premix first \
+         (g on its step opens {first})",
+        what.join("; ")
+    );
     refresh(model, ctx);
 }
 
-/// The cascade proposed, keys first.
-pub fn draw(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect, selected: &usize) {
+/// The cascade proposed, keys first, its text from line `scroll` on.
+pub fn draw(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect, selected: usize, scroll: usize) {
     // The keys first, so that a long cascade cut at the foot of a small window
     // still shows how to accept it.
     let mut lines: Vec<Line> =
@@ -114,7 +125,18 @@ pub fn draw(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect, selecte
             .into_iter()
             .map(|hint| Line::styled(hint, theme.dim()))
             .collect();
-    lines.extend(self::lines(model, *selected).into_iter().map(Line::raw));
+    let text = self::lines(model, selected);
+    // Rows for the text: the box's two borders and the two key lines aside.
+    let rows = usize::from(area.height.saturating_sub(4)).max(1);
+    let scroll = scroll.min(text.len().saturating_sub(rows));
+    if text.len() > rows {
+        let last = (scroll + rows - 1).min(text.len());
+        lines[1] = Line::styled(
+            format!("   ↑↓ PgUp PgDn scroll: lines {}-{last} of {} · Esc close", scroll + 1, text.len()),
+            theme.dim(),
+        );
+    }
+    lines.extend(text.into_iter().skip(scroll).take(rows).map(Line::raw));
     let h = (lines.len() as u16 + 2).min(area.height);
     let w = area.width.min(84);
     boxed(frame, centered(area, w, h), "Premixes", lines);

@@ -389,7 +389,12 @@ fn field_label(doc: &Document, f: Field) -> String {
 
 fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let Some(doc) = &model.doc else { return };
-    let right_w = if area.width >= 110 { 52 } else { 36 };
+    // A wide window gives both panes room: the result's sources and the fields' values.
+    let right_w = match area.width {
+        w if w >= 150 => w * 2 / 5,
+        w if w >= 110 => 52,
+        _ => 36,
+    };
     let [left, right] = Layout::horizontal([Constraint::Min(30), Constraint::Length(right_w)]).areas(area);
     let state = if doc.dirty() { ", unsaved changes" } else { "" };
     let block =
@@ -409,13 +414,13 @@ fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let mut lines = Vec::new();
     for (k, f) in list.iter().enumerate().skip(first).take(rows) {
         let selected = k == doc.field;
-        let value = if selected {
-            match &doc.editing {
-                Some(inp) => inp.value().to_string(),
-                None => field_text(&doc.recipe, *f),
-            }
-        } else {
-            field_text(&doc.recipe, *f)
+        // A line being typed shows the part around the cursor, so a long one is seen as
+        // it is typed, not its start only.
+        let typing = doc.editing.as_ref().filter(|_| selected);
+        let scroll = typing.map_or(0, |inp| inp.visual_scroll(value_w.saturating_sub(1)));
+        let value = match typing {
+            Some(inp) => inp.value().chars().skip(scroll).collect(),
+            None => field_text(&doc.recipe, *f),
         };
         let value = match f {
             Field::FillKind | Field::Model => format!("{value}  (Enter changes)"),
@@ -434,7 +439,7 @@ fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         if selected {
             if let Some(inp) = &doc.editing {
                 let row = (k - first) as u16;
-                let x = inner.x + 1 + label_w as u16 + 1 + inp.visual_cursor().min(value_w) as u16;
+                let x = inner.x + 1 + label_w as u16 + 1 + (inp.visual_cursor() - scroll).min(value_w) as u16;
                 frame.set_cursor_position((x, inner.y + row));
             }
         }
@@ -465,11 +470,14 @@ fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area
             // The scale column only where the pane is wide enough; a narrow pane keeps its
             // columns whole rather than wrapping them (the Fill sheet has everything).
             let with_scale = w >= 34;
-            let head = format!("{:<12}{:>10}", "add", format!("stop {}", d.pu()));
+            // Sources as long as the pane allows (a premix's name whole where it fits).
+            let longest = p.steps.iter().map(|s| s.source.chars().count()).max().unwrap_or(0);
+            let src_w = longest.min(w.saturating_sub(if with_scale { 23 } else { 12 })).clamp(11, 40);
+            let head = format!("{:<src_w$} {:>10}", "add", format!("stop {}", d.pu()));
             lines.push(Line::styled(if with_scale { format!("{head}{:>11}", "scale g") } else { head }, theme.bold()));
             for s in &p.steps {
                 let flag = step_mark(s).unwrap_or(" ");
-                let row = format!("{:<12}{:>10}", clip(&s.source, 11), d.pf(s.pressure_after_pa));
+                let row = format!("{:<src_w$} {:>10}", clip(&s.source, src_w), d.pf(s.pressure_after_pa));
                 lines.push(Line::raw(if with_scale {
                     format!("{row}{:>11.1}{flag}", s.scale_reading_g)
                 } else {

@@ -37,20 +37,18 @@ impl Screen for Library {
         if model.library.filter.is_some() {
             "? help · Enter open · Esc clear · type to search"
         } else {
-            "? help · Enter open · q quit · / search · n new · h history · c copy · r rename · d delete · t trash · o settings · v verify · y sync"
+            "? help · Enter open · q quit · / search · n new · f records · h history · c copy · r rename · d delete · t trash · o settings · v verify · y sync"
         }
     }
     fn help(&self) -> &'static [&'static str] {
         &[
-            "↑↓ or j k   choose a recipe",
-            "Enter       open it in the editor",
+            "↑↓ or j k   choose a recipe     Enter  open it in the editor",
             "/           search names, orders, serials, gases, descriptions",
             "            and notes (Esc clears)",
-            "n           new recipe",
-            "c           copy the recipe under a new name",
-            "r           rename it",
-            "d or Del    delete it (kept in the library's .trash)",
+            "n new · c copy · r rename · d or Del delete (kept in .trash)",
             "h           history: revisions and what changed; r restores",
+            "f           fill records: open one on the Fill sheet (continue,",
+            "            correct), certify it, print its report",
             "g           read the library folder again",
             "t           the trash: bring a deleted recipe back",
             "o           settings: units, default model, resolutions,",
@@ -108,6 +106,7 @@ fn on_library_key(model: &mut Model, key: Key, ctx: &mut Context) {
         Key::End => model.library.selected = n.saturating_sub(1),
         Key::Enter => open_selected(model, ctx),
         Key::Char('/') => model.library.filter = Some(input("")),
+        Key::Char('f') => crate::tui::overlays::records::open(model, ctx, None),
         Key::Char('t') => {
             let entries: Vec<(String, String)> = ctx.library.trash().into_iter().map(|(n, s, _)| (n, s)).collect();
             if entries.is_empty() {

@@ -19,10 +19,27 @@ pub fn certify(model: &mut Model, ctx: &Context) {
         Ok(said) => said,
         Err(why) => format!("not certified: {why}"),
     };
+    // A premix of the library's blends: say where the work goes on.
+    let Some(name) = model.doc.as_ref().map(|d| d.name.clone()) else { return };
+    let blends = super::premixes::blends_taking(ctx, &name);
+    if !blends.is_empty() && !model.status.starts_with("not certified") {
+        model.status = format!(
+            "{}; premix of {}: open it to go on, its step takes this fill's record",
+            model.status,
+            blends.join(", ")
+        );
+    }
 }
 
 fn certify_to_files(model: &Model, ctx: &Context) -> Result<String, String> {
     let id = record_id(model).ok_or("no fill record yet: weigh the empty cylinder first (w)")?;
+    certify_id(ctx, &id)
+}
+
+/// Certify record `id` of the library and write its certificate (text and PDF) to
+/// `certificates/`; what the status line says, or why not.
+pub fn certify_id(ctx: &Context, id: &str) -> Result<String, String> {
+    let id = id.to_string();
     let opened = ctx.library.open_record(&id).map_err(|e| e.to_string())?;
     let found = Found {
         id: opened.id.clone(),

@@ -34,13 +34,13 @@ pub fn sheet(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     if let Some((severity, note)) = b.measured_k.and_then(|t| super::temperature_note(t, &model.limits, d)) {
         lines.extend(wrap_words(&note, width).into_iter().map(|l| Line::styled(l, theme.severity(severity))));
     }
-    lines.extend(table(doc, p, d, theme));
+    lines.extend(table(doc, p, d, theme, width));
     lines.extend(first_plan_note(b, d, width).into_iter().map(|l| Line::styled(l, theme.dim())));
     lines.extend(step_notes(doc, model, p, theme, width));
     lines.extend(plan_warnings(p, theme, width));
     let done = b.done.iter().filter(|d| **d).count();
     lines.push(Line::raw(format!("{done} of {} steps done", p.steps.len())));
-    lines.extend(record_lines(doc, model, theme));
+    lines.extend(record_lines(doc, model, theme, width));
     frame.render_widget(Paragraph::new(lines), inner);
 }
 
@@ -65,13 +65,14 @@ fn stop_lines(doc: &Document, theme: &Theme, width: usize) -> Vec<Line<'static>>
 }
 
 /// The steps: the heading, the heel, and a row per step (finished ones as recorded).
-fn table(doc: &Document, p: &crate::plan::Plan, d: &Shown, theme: &Theme) -> Vec<Line<'static>> {
+fn table(doc: &Document, p: &crate::plan::Plan, d: &Shown, theme: &Theme, width: usize) -> Vec<Line<'static>> {
     let b = &doc.bench;
+    let src_w = source_width(p, width);
     let ambient = doc.computed.order.as_ref().map_or(1.01325e5, |o| o.ambient_pa);
     let mut lines = Vec::new();
     lines.push(Line::styled(
         format!(
-            " {:<4}{:<3}{:<11}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
+            " {:<4}{:<3}{:<src_w$}{:>9}{:>10}{:>10}{:>9}{:>9}{:>9}",
             "",
             "#",
             "source",
@@ -88,7 +89,7 @@ fn table(doc: &Document, p: &crate::plan::Plan, d: &Shown, theme: &Theme) -> Vec
         // What the cylinder holds before the first addition: the readings to see first.
         lines.push(Line::styled(
             format!(
-                " {:<4}{:<3}{:<11}{:>9.2}{:>10.1}{:>10}{:>9}",
+                " {:<4}{:<3}{:<src_w$}{:>9.2}{:>10.1}{:>10}{:>9}",
                 "",
                 0,
                 "heel",
@@ -102,7 +103,7 @@ fn table(doc: &Document, p: &crate::plan::Plan, d: &Shown, theme: &Theme) -> Vec
     }
     for (i, s) in p.steps.iter().enumerate() {
         let selected = i == b.selected;
-        let text = sheet_row(b, d, i, s, ambient);
+        let text = sheet_row(b, d, i, s, ambient, src_w);
         let style = match (selected, b.live.get(i).is_some_and(|l| l.finished)) {
             (true, _) => theme.selected(),
             (false, true) => theme.dim(),
@@ -124,10 +125,13 @@ fn step_notes(doc: &Document, model: &Model, p: &crate::plan::Plan, theme: &Them
             let text = format!("step {} source {}: {c} (recorded)", b.selected + 1, s.source);
             lines.extend(wrap_words(&text, width).into_iter().map(Line::raw));
         }
-        (_, Some(s)) if s.source.chars().count() > 10 => {
+        (_, Some(s)) if s.source.chars().count() > source_width(p, width) - 1 => {
             lines.push(Line::raw(format!("step {} source: {}", b.selected + 1, s.source)));
         }
         _ => {}
+    }
+    if let Some(state) = b.premix_states.get(b.selected).and_then(Option::as_ref) {
+        lines.extend(wrap_words(state, width).into_iter().map(|l| Line::styled(l, theme.dim())));
     }
     // The reading to stop at now, also as the gauge shows it (the table's `now` is absolute).
     if let (Some(now), Some(_)) = (b.live.get(b.selected).and_then(|l| l.pressure_now_pa), b.measured_k) {
@@ -194,21 +198,36 @@ fn plan_warnings(p: &crate::plan::Plan, theme: &Theme, width: usize) -> Vec<Line
     lines
 }
 
+/// The source column: as wide as the longest source, within what the window leaves
+/// beside the other columns (a premix's name whole in a wide window), at least 11.
+fn source_width(p: &crate::plan::Plan, width: usize) -> usize {
+    let longest = p.steps.iter().map(|s| s.source.chars().count()).max().unwrap_or(0) + 1;
+    longest.min(width.saturating_sub(67)).clamp(11, 40)
+}
+
 /// One step of the Fill sheet: a finished step as recorded (what was added, the scale
 /// and pressure readings taken), a step to do as the live plan has it.
-fn sheet_row(b: &crate::tui::model::Bench, d: &Shown, i: usize, s: &crate::plan::Step, ambient: f64) -> String {
+fn sheet_row(
+    b: &crate::tui::model::Bench,
+    d: &Shown,
+    i: usize,
+    s: &crate::plan::Step,
+    ambient: f64,
+    src_w: usize,
+) -> String {
+    let clip_src = |text: &str| clip(text, src_w - 1);
     let cursor = if i == b.selected { "▶" } else { " " };
     let done = if b.done.get(i).copied().unwrap_or(false) { "[x]" } else { "[ ]" };
     let flag = step_mark(s).map_or(String::new(), |m| format!(" {m}"));
     let Some(live) = b.live.get(i) else {
-        return format!("{cursor}{done:<4}{:<3}{:<11}", i + 1, clip(&s.source, 10));
+        return format!("{cursor}{done:<4}{:<3}{:<src_w$}", i + 1, clip_src(&s.source));
     };
     if live.finished {
         let reached = live.recorded_reading.map_or("–".to_string(), |(p, _)| d.pf(p));
         return format!(
-            "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}",
+            "{cursor}{done:<4}{:<3}{:<src_w$}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}",
             i + 1,
-            clip(&live.source, 10),
+            clip_src(&live.source),
             live.add_mass_g,
             live.scale_reading_g,
             "recorded",
@@ -222,9 +241,9 @@ fn sheet_row(b: &crate::tui::model::Bench, d: &Shown, i: usize, s: &crate::plan:
     let reached = b.actual_pa.get(i).copied().flatten().map_or("–".to_string(), |v| d.pf(v));
     let moved = if live.moved() { "*" } else { "" };
     format!(
-        "{cursor}{done:<4}{:<3}{:<11}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}{moved}{flag}",
+        "{cursor}{done:<4}{:<3}{:<src_w$}{:>9.2}{:>10.2}{:>10}{:>9}{:>9}{:>9}{moved}{flag}",
         i + 1,
-        clip(&s.source, 10),
+        clip_src(&s.source),
         live.add_mass_g,
         live.scale_reading_g,
         d.pf(stop),
@@ -257,7 +276,11 @@ fn first_plan_note(b: &crate::tui::model::Bench, d: &Shown, width: usize) -> Vec
 /// (the composition, not the amounts: a step that overfills one gas moves every fraction
 /// less than its amount); once every step is weighed, against the target and its
 /// tolerance. Each line with whether it is outside the tolerance.
-pub fn composition_made(prog: &crate::tui::model::Progress, plan: &crate::plan::Plan) -> Vec<(String, bool)> {
+pub fn composition_made(
+    prog: &crate::tui::model::Progress,
+    plan: &crate::plan::Plan,
+    width: usize,
+) -> Vec<(String, bool)> {
     let total_now: f64 = prog.rows.iter().map(|r| r.1).sum();
     let total_planned: f64 = prog.rows.iter().map(|r| r.2).sum();
     if !(total_now > 0.0 && total_planned > 0.0) {
@@ -293,22 +316,22 @@ pub fn composition_made(prog: &crate::tui::model::Progress, plan: &crate::plan::
     } else {
         format!("made so far, against the plan after step {}:", prog.weighed)
     };
-    wrap_words(&format!("{head} {}", parts.join("; ")), 78).into_iter().map(|l| (l, out)).collect()
+    wrap_words(&format!("{head} {}", parts.join("; ")), width).into_iter().map(|l| (l, out)).collect()
 }
 
 /// The fill record under the steps: where it is, the composition so far against the plan,
 /// and the rest of the fill re-planned from the weighings.
-fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'static>> {
+fn record_lines(doc: &Document, model: &Model, theme: &Theme, width: usize) -> Vec<Line<'static>> {
     let d = &model.shown;
     let Some(rec) = &doc.bench.record else {
         let text = match &doc.bench.last_finished {
             Some(id) => format!(
-                "no fill in progress; the last fill, record {id}, is finished (fillwright certify {id}); w starts \
-                 a new fill with the empty cylinder's scale reading"
+                "no fill in progress; the last fill, record {id}, is finished (C certifies it, f lists the \
+                 records); w starts a new fill with the empty cylinder's scale reading"
             ),
             None => "no fill record yet: w types the empty cylinder's scale reading".into(),
         };
-        return wrap_words(&text, 78).into_iter().map(|l| Line::styled(l, theme.dim())).collect();
+        return wrap_words(&text, width).into_iter().map(|l| Line::styled(l, theme.dim())).collect();
     };
     let r = &rec.record;
     let mut lines = vec![Line::raw(format!(
@@ -329,13 +352,13 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
             d.pf(c.allowed_pa),
             u = d.pu()
         );
-        lines.extend(wrap_words(&text, 78).into_iter().map(|l| Line::styled(l, theme.fg(Color::Red))));
+        lines.extend(wrap_words(&text, width).into_iter().map(|l| Line::styled(l, theme.fg(Color::Red))));
     }
     if let Some(c) = r.corrections.last() {
         let text = format!("{} correction(s); last: {} ({})", r.corrections.len(), c.entry, c.reason);
-        lines.push(Line::styled(clip(&text, 78), theme.dim()));
+        lines.push(Line::styled(clip(&text, width), theme.dim()));
     }
-    for (l, out) in composition_made(prog, plan) {
+    for (l, out) in composition_made(prog, plan, width) {
         lines.push(if out { Line::styled(l, theme.fg(Color::Red)) } else { Line::raw(l) });
     }
     match &prog.replan {
@@ -351,10 +374,14 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme) -> Vec<Line<'stati
                 format!("target can no longer be met: {}", worst.collect::<Vec<_>>().join(", "))
             };
             let style = if rp.on_target { Style::default() } else { theme.fg(Color::Red) };
-            lines.push(Line::styled(clip(&verdict, 78), style));
+            lines.extend(wrap_words(&verdict, width).into_iter().map(|l| Line::styled(l, style)));
         }
-        Ok(_) => lines.push(Line::raw(format!("fill complete: fillwright certify {}", rec.id))),
-        Err(e) => lines.push(Line::styled(clip(&format!("cannot re-plan: {e}"), 78), theme.fg(Color::Red))),
+        Ok(_) => lines.push(Line::raw(format!("fill complete: C certifies it (fillwright certify {})", rec.id))),
+        Err(e) => lines.extend(
+            wrap_words(&format!("cannot re-plan: {e}"), width)
+                .into_iter()
+                .map(|l| Line::styled(l, theme.fg(Color::Red))),
+        ),
     }
     lines
 }

@@ -4,8 +4,9 @@
 //! lost when the session ends; opening the recipe again continues the fill. After each
 //! weighing the composition so far is compared with the plan and the rest re-planned.
 
-mod certify;
+pub mod certify;
 pub mod draw;
+pub mod premixes;
 
 use ratatui::layout::Rect;
 use ratatui::Frame;
@@ -35,6 +36,11 @@ impl Screen for Sheet {
             // Esc stays: keys typed next would act on the Library's commands.
             Key::Esc => model.status = "Esc stays on the Fill sheet: 1 or Tab go to another view".into(),
             Key::Char('m') => crate::tui::overlays::premixes::open(model),
+            Key::Char('g') => premixes::go_to_premix(model, ctx),
+            Key::Char('f') => {
+                let name = model.doc.as_ref().map(|d| d.name.clone());
+                crate::tui::overlays::records::open(model, ctx, name)
+            }
             _ => on_key(model, key),
         }
     }
@@ -54,8 +60,10 @@ impl Screen for Sheet {
             "x  correct a recorded entry, with its reason",
             "o  operator   b  balance (u=0.02g: its uncertainty)   a  air",
             "m  premixes for steps too small to dose (a accepts one)",
+            "g  open the premix recipe of the chosen step, to fill it",
             "p  write the sheet to sheets/ in the library (text, PDF)",
             "C  certify the finished fill: certificates/ID (text, PDF)",
+            "f  this recipe's fill records: open, correct, certify, report",
             "every entry is written to records/ at once; reopening the",
             "recipe continues the fill; fillwright certify ID certifies",
             "Esc stays on the sheet (1-5 or Tab change the view)",
@@ -366,6 +374,8 @@ pub fn attach_record(doc: &mut Document, ctx: &Context) {
 
 /// Make the bench show what the record holds, and recompute the progress.
 pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
+    let steps = doc.computed.plan.as_ref().map_or(0, |p| p.steps.len());
+    doc.bench.premix_states = (0..steps).map(|k| premixes::premix_state(doc, ctx, k)).collect();
     let Some(opened) = &doc.bench.record else {
         doc.bench.progress = None;
         doc.bench.correct(doc.computed.plan.as_ref().ok());
@@ -748,15 +758,26 @@ fn ask_for_analysis(model: &mut Model, ctx: &Context) {
         return;
     }
     let name = plan_step(doc, step).map_or(String::new(), |s| s.source.clone());
-    let own = ctx.library.finished_records_of(&name);
-    let offer = match own.first() {
-        Some(id) => format!(", record:{id} (its own fill)"),
+    // A premix made here by a library recipe: its newest finished fill is offered, typed in
+    // the prompt already (Enter takes it).
+    let made = premixes::premix_recipe_of(doc, step).map(|r| (ctx.library.finished_records_of(&r), r));
+    if let Some((id, recipe)) = made.as_ref().and_then(|(own, r)| own.first().map(|id| (id.clone(), r.clone()))) {
+        model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input(&format!("record:{id}")) };
+        model.status = format!(
+            "step {} takes premix {name}: its own fill record:{id} ({recipe}) gives its certified composition; \
+             Enter takes it, or type its analysis",
+            step + 1
+        );
+        return;
+    }
+    let unmade = match &made {
+        Some((_, recipe)) => format!(" ({recipe} has no finished fill yet: g opens it to fill)"),
         None => String::new(),
     };
     model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input("") };
     model.status = format!(
-        "type the analysis of {name} for step {} ({written} has no uncertainty): e.g. \
-         CO=0.5%±0.002%,N2=balance{offer}, or @NAME from the source library",
+        "type the analysis of {name} for step {} ({written} has no uncertainty){unmade}: e.g. \
+         CO=0.5%±0.002%,N2=balance, or @NAME from the source library",
         step + 1
     );
 }
