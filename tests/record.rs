@@ -574,3 +574,26 @@ fn every_certificate_text_stays_within_80_columns() {
         assert!(!text.contains("99999") && !text.contains("00000000"), "unrounded figures: {text}");
     }
 }
+
+#[test]
+fn a_fill_far_short_of_its_target_shows_the_target_in_its_own_unit() {
+    // A damaged fill: the CO premix addition was 1 mg (the valve shut at once), so CO is a
+    // few ppb where 500 ppm was ordered.
+    let (config, lib) = library_with_record("short");
+    let path = lib.join("records/FC-10-2291-20261202.ron");
+    let text = std::fs::read_to_string(&path).unwrap().replace("\"13504.850g\"", "\"13412.001g\"");
+    std::fs::write(&path, text).unwrap();
+    let o = run(&config, &["certify", "FC-10-2291-20261202", "--draws", "1000"]);
+    let text = out(&o);
+    let co = text.lines().find(|l| l.starts_with("CO ")).unwrap_or_else(|| panic!("{text}"));
+    // Amount and target in ppm, the target as ordered (500 ppm), not 500000 ppb.
+    let cells: Vec<&str> = co.split_whitespace().collect();
+    assert_eq!(cells[3], "ppm", "{co}");
+    assert_eq!(cells[4], "500.00", "{co}");
+    assert!(co.contains("OUTSIDE tolerance"), "{co}");
+    let (x, big_u): (f64, f64) = (cells[1].parse().unwrap(), cells[2].parse().unwrap());
+    // 1 mg of 1 % CO in N2 (28.0 g/mol) in about 66 mol: 1e-3/28.0·0.01/66 ≈ 5.4e-9 (0.005
+    // ppm, rounded to the uncertainty's digits), far inside the uncertainty of the 10 µg
+    // readings.
+    assert!(x <= 0.01 && big_u > 10.0 * x, "{co}");
+}

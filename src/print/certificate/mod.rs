@@ -91,7 +91,14 @@ pub struct Verified {
 /// A mole fraction and its expanded uncertainty in a unit that suits the magnitude,
 /// with two significant digits of the uncertainty: ("500.12", "0.55", "ppm").
 pub fn with_uncertainty(x: f64, expanded: f64) -> (String, String, &'static str) {
-    let (scale, unit) = unit_for(x.abs().max(expanded));
+    with_uncertainty_beside(x, expanded, 0.0)
+}
+
+/// As [`with_uncertainty`], in a unit that also suits `beside` (the target shown on the same
+/// row: a fill far short of its target is shown in the target's unit, not the target in the
+/// short amount's).
+fn with_uncertainty_beside(x: f64, expanded: f64, beside: f64) -> (String, String, &'static str) {
+    let (scale, unit) = unit_for(x.abs().max(expanded).max(beside.abs()));
     let (xs, us) = (x * scale, expanded * scale);
     // No uncertainty (or one below a part in 10⁹ of the value): the value to six
     // significant digits and "none", never a run of zeros.
@@ -362,8 +369,8 @@ impl Certificate<'_> {
         (0..e.gum.values.len())
             .map(|i| {
                 let (x, u) = (e.gum.values[i], self.u_of(i));
-                let (xs, us, unit) = with_uncertainty(x, COVERAGE_FACTOR * u);
                 let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
+                let (xs, us, unit) = with_uncertainty_beside(x, COVERAGE_FACTOR * u, target.map_or(0.0, |t| t.fraction));
                 let (ts, judged) = match target {
                     Some(t) if self.in_progress() => (in_unit(t.fraction, unit), "fill in progress".to_string()),
                     Some(t) => (
