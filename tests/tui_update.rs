@@ -1857,3 +1857,41 @@ fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen(
     let rec = &model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().record;
     assert_eq!(rec.additions[0].source, format!("record:{premix_record}"), "{}", model.status);
 }
+
+#[test]
+fn every_curve_of_the_z_chart_carries_its_own_letter_where_the_curves_meet_too() {
+    let (mut model, mut ctx, _dir) = setup("z-letters");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('4')]);
+    let curves = &model.doc.as_ref().unwrap().computed.z_curves;
+    let letters: Vec<char> = curves.iter().map(|(m, _)| fillwright::tui::views::models::curve_letter(*m)).collect();
+    let mut unique = letters.clone();
+    unique.dedup();
+    assert_eq!(unique.len(), letters.len(), "{letters:?}");
+    for screen in [fillwright::tui::scenes::text(&render(&model, &ctx)), screen_80(&model, &ctx)] {
+        let rows: Vec<&str> = screen.lines().collect();
+        let top = rows.iter().position(|l| l.contains("Z against pressure")).unwrap();
+        let bottom = top + rows[top..].iter().position(|l| l.starts_with('└')).unwrap();
+        // The plot's rows, left box only, without the axis title row.
+        let plot: Vec<String> = rows[top + 1..bottom]
+            .iter()
+            .filter(|l| !l.contains("bar"))
+            .map(|l| l.split("││").next().unwrap().to_string())
+            .collect();
+        for (c, (m, _)) in letters.iter().zip(curves) {
+            let n: usize = plot.iter().map(|l| l.chars().filter(|x| x == c).count()).sum();
+            assert_eq!(n, 1, "{c} for {} once on the chart:\n{}", m.key(), plot.join("\n"));
+            assert!(rows[bottom].contains(&format!("{c}={}", m.key())), "legend: {}", rows[bottom]);
+        }
+    }
+    // Each letter sits on its curve at its own pressure: no two share a column.
+    let pmax = curves.iter().flat_map(|(_, p)| p.iter().map(|q| q.0)).fold(1.0, f64::max);
+    let xs: Vec<f64> = curves
+        .iter()
+        .enumerate()
+        .map(|(i, (_, p))| fillwright::tui::views::models::label_point(p, i, curves.len(), pmax).0)
+        .collect();
+    for w in xs.windows(2) {
+        assert!(w[1] - w[0] > 0.05 * pmax, "{xs:?}");
+    }
+}

@@ -370,7 +370,8 @@ impl Certificate<'_> {
             .map(|i| {
                 let (x, u) = (e.gum.values[i], self.u_of(i));
                 let target = self.targets.iter().find(|t| t.gas == e.measurand.gases[i]);
-                let (xs, us, unit) = with_uncertainty_beside(x, COVERAGE_FACTOR * u, target.map_or(0.0, |t| t.fraction));
+                let (xs, us, unit) =
+                    with_uncertainty_beside(x, COVERAGE_FACTOR * u, target.map_or(0.0, |t| t.fraction));
                 let (ts, judged) = match target {
                     Some(t) if self.in_progress() => (in_unit(t.fraction, unit), "fill in progress".to_string()),
                     Some(t) => (

@@ -152,8 +152,9 @@ fn table(model: &Model, p: &crate::plan::Plan, shown: usize, theme: &Theme, fram
     frame.render_widget(Paragraph::new(lines), inner);
 }
 
-/// Z against pressure, one curve per model, each with its own marker so that they are told
-/// apart without colour.
+/// Z against pressure, one curve per model: each a line, and a letter on it (`p` for pr, `g`
+/// for gerg …) at its own pressure, so that the curves are told apart without colour even
+/// where they meet (markers of their own would pile up there).
 fn z_chart(
     model: &Model,
     z_curves: &[(crate::thermo::Model, Vec<(f64, f64)>)],
@@ -161,16 +162,6 @@ fn z_chart(
     frame: &mut Frame,
     zc: Rect,
 ) {
-    let markers = [
-        Marker::Dot,
-        Marker::Braille,
-        Marker::Block,
-        Marker::Bar,
-        Marker::HalfBlock,
-        Marker::Quadrant,
-        Marker::Custom('+'),
-    ];
-    let marks = ["•", "⣿", "█", "▄", "▀", "▖", "+"];
     let colors = [Color::White, Color::Cyan, Color::Magenta, Color::Yellow, Color::Green, Color::Red, Color::Blue];
     let (mut zmin, mut zmax, mut pmax) = (f64::INFINITY, f64::NEG_INFINITY, 1.0f64);
     // The curves are computed in bar; shown in the settings' unit.
@@ -185,26 +176,27 @@ fn z_chart(
             pmax = pmax.max(*pp);
         }
     }
-    let datasets: Vec<Dataset> = z_curves
+    let labels: Vec<[(f64, f64); 1]> =
+        curves.iter().enumerate().map(|(i, pts)| [label_point(pts, i, curves.len(), pmax)]).collect();
+    let style = |i: usize| theme.fg(colors[i % colors.len()]);
+    // The lines first, the letters over them (a later line would hide an earlier letter).
+    let mut datasets: Vec<Dataset> = curves
         .iter()
-        .zip(&curves)
         .enumerate()
-        .map(|(i, ((m, _), pts))| {
-            Dataset::default()
-                .name(m.key())
-                .marker(markers[i % markers.len()])
-                .graph_type(GraphType::Line)
-                .style(theme.fg(colors[i % colors.len()]))
-                .data(pts)
+        .map(|(i, pts)| {
+            Dataset::default().marker(Marker::Braille).graph_type(GraphType::Line).style(style(i)).data(pts)
         })
         .collect();
+    datasets.extend(z_curves.iter().zip(&labels).enumerate().map(|(i, ((m, _), at))| {
+        Dataset::default()
+            .marker(Marker::Custom(curve_letter(*m)))
+            .graph_type(GraphType::Scatter)
+            .style(style(i).add_modifier(ratatui::style::Modifier::BOLD))
+            .data(at)
+    }));
     let pad = ((zmax - zmin) * 0.05).max(0.005);
-    let legend: String = z_curves
-        .iter()
-        .enumerate()
-        .map(|(i, (m, _))| format!("{}{}", marks[i % marks.len()], m.key()))
-        .collect::<Vec<_>>()
-        .join(" ");
+    let legend: String =
+        z_curves.iter().map(|(m, _)| format!("{}={}", curve_letter(*m), m.key())).collect::<Vec<_>>().join(" ");
     let chart = Chart::new(datasets)
         .legend_position(None)
         .block(Block::default().borders(Borders::ALL).title(" Z against pressure ").title_bottom(format!(" {legend} ")))
@@ -218,6 +210,27 @@ fn z_chart(
                 .labels([format!("{:.2}", zmin - pad), format!("{:.2}", zmax + pad)]),
         );
     frame.render_widget(chart, zc);
+}
+
+/// The letter that marks a model's curve on the Z chart: its key's first letter, unique
+/// among the models.
+pub fn curve_letter(m: crate::thermo::Model) -> char {
+    m.key().chars().next().unwrap_or('?')
+}
+
+/// Where curve `i` of `n` carries its letter: at its own pressure, spread over the middle
+/// 70 % of the axis (so no two letters share a column, whatever the curves do), on the
+/// curve (interpolated between its points).
+pub fn label_point(pts: &[(f64, f64)], i: usize, n: usize, pmax: f64) -> (f64, f64) {
+    let x = pmax * (0.15 + 0.7 * (i as f64 + 0.5) / n.max(1) as f64);
+    let z = pts.windows(2).find(|w| w[0].0 <= x && x <= w[1].0).map_or_else(
+        || pts.last().map_or(1.0, |p| p.1),
+        |w| {
+            let t = if w[1].0 > w[0].0 { (x - w[0].0) / (w[1].0 - w[0].0) } else { 0.0 };
+            w[0].1 + t * (w[1].1 - w[0].1)
+        },
+    );
+    (x, z)
 }
 
 /// The fill: pressure reading against the amount added so far.
