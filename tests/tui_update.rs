@@ -1895,3 +1895,18 @@ fn every_curve_of_the_z_chart_carries_its_own_letter_where_the_curves_meet_too()
         assert!(w[1] - w[0] > 0.05 * pmax, "{xs:?}");
     }
 }
+
+#[test]
+fn a_long_line_being_typed_shows_its_end_where_the_cursor_is() {
+    let (mut model, mut ctx, _dir) = setup("long-field");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Home, Key::Enter, Key::Ctrl('u')]);
+    let long = "Span gas for the stack analyser of boiler 2 at the Brackwater site, second quarter ZZEND";
+    text(&mut model, &mut ctx, long);
+    let screen = screen_80(&model, &ctx);
+    assert!(screen.contains("ZZEND"), "{screen}");
+    // Not typing, the field shows its start again.
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let screen = screen_80(&model, &ctx);
+    assert!(screen.contains("name              Span gas for the") && !screen.contains("ZZEND"), "{screen}");
+}
