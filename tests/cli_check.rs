@@ -189,7 +189,8 @@ fn a_folder_checked_on_every_core_gives_what_one_core_gives_in_the_same_order() 
     std::fs::create_dir_all(&dir).unwrap();
     let mut count = 0;
     for (name, text) in fillwright::recipe::demo::RECIPES {
-        for bar in [60, 90, 120] {
+        // More than one chunk of the streamed report (64 recipes).
+        for bar in [40, 50, 60, 70, 80, 90, 100, 110, 120, 130] {
             let r = fillwright::recipe::Recipe::parse(text, name).unwrap();
             let r = fillwright::recipe::Recipe {
                 name: format!("{name}-{bar}"),
@@ -200,7 +201,9 @@ fn a_folder_checked_on_every_core_gives_what_one_core_gives_in_the_same_order() 
             count += 1;
         }
     }
-    assert!(count >= 20);
+    assert!(count > 64);
+    // One that cannot be read, among them.
+    std::fs::write(dir.join("m-broken.ron"), "Recipe(format: 1, name: ").unwrap();
     let with = |threads: &str| {
         std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))
             .args(["check", dir.to_str().unwrap(), "--format", "json"])
@@ -217,4 +220,22 @@ fn a_folder_checked_on_every_core_gives_what_one_core_gives_in_the_same_order() 
     let mut sorted = recipes.clone();
     sorted.sort();
     assert_eq!(recipes, sorted, "the folder's order, as listed");
+    let mut distinct = recipes.clone();
+    distinct.dedup();
+    assert_eq!(distinct.len(), count, "every readable recipe once");
+    // The broken one is listed with its error, after the checks; the cautions close it.
+    let unreadable = v["unreadable"].as_array().unwrap();
+    assert_eq!(unreadable.len(), 1);
+    assert!(unreadable[0]["recipe"].as_str().unwrap().ends_with("m-broken.ron"), "{unreadable:?}");
+    assert!(!v["cautions"].as_array().unwrap().is_empty());
+    assert_ne!(all.status.code(), Some(0));
+    // The text report: every recipe in order, then the cautions once.
+    let text = std::process::Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(["check", dir.to_str().unwrap()])
+        .env("FILLWRIGHT_CONFIG", dir.join("config"))
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&text.stdout);
+    assert_eq!(text.matches("Cautions:").count(), 1);
+    assert!(text.trim_end().rfind("Cautions:").unwrap() > text.find("NOT SCREENED").unwrap(), "{text}");
 }

@@ -86,9 +86,18 @@ const OXYGEN_CLEAN: &str = "Mixtures above about 23.5 % O2 need oxygen-clean equ
 /// oxygen-clean one only where some blend holds an oxidiser (Σ x·C above zero, from the
 /// oxidising check).
 pub fn cautions_for<'a>(checks: impl IntoIterator<Item = &'a Check>) -> Vec<&'static str> {
-    let oxidiser = checks.into_iter().any(|c| {
+    cautions_with(holds_oxidiser(checks))
+}
+
+/// Whether a blend with these checks holds an oxidiser (Σ x·C above zero).
+pub fn holds_oxidiser<'a>(checks: impl IntoIterator<Item = &'a Check>) -> bool {
+    checks.into_iter().any(|c| {
         c.id == "oxidising" && c.data.get("oxygen_equivalent").and_then(|v| v.as_f64()).is_some_and(|x| x > 0.0)
-    });
+    })
+}
+
+/// The cautions, the oxygen-clean one where some blend holds an oxidiser.
+pub fn cautions_with(oxidiser: bool) -> Vec<&'static str> {
     CAUTIONS.iter().copied().filter(|c| oxidiser || *c != OXYGEN_CLEAN).collect()
 }
 

@@ -6,7 +6,7 @@ use clap::Args;
 use rayon::prelude::*;
 
 use super::plan::OrderArgs;
-use super::{print_json, Common, Failure, Format, Refused};
+use super::{Common, Failure, Format, Refused};
 use crate::checks::{self, Conditions, Severity};
 use crate::config;
 use crate::gas::Catalogue;
@@ -50,21 +50,74 @@ pub struct CheckArgs {
 /// A recipe as named: where it came from, and its order or why it could not be read.
 type Named = (String, Result<Order, String>);
 
-/// Screen every recipe named (or the order given): a finding at stop ends with exit status
-/// 3, a recipe that could not be screened with 1.
+/// Recipes read, planned and screened at once, on every core: enough to keep both busy,
+/// few enough that memory stays flat however many recipes a folder holds.
+const CHUNK: usize = 64;
+
+/// Screen every recipe named (or the order given), writing each result as it is ready, in
+/// the order named: a finding at stop ends with exit status 3, a recipe that could not be
+/// screened with 1.
 pub fn run(args: &CheckArgs) -> Result<(), Failure> {
     let catalogue = config::load_catalogue().map_err(Refused)?;
     let settings = config::load_settings().map_err(Refused)?;
     let conditions = conditions(args, &settings)?;
-    let mut orders = orders_named(args, &catalogue, &settings)?;
-    apply_ratings(args, &mut orders, &catalogue)?;
-    let results = screen_all(&orders, args.common.model, &settings, &conditions, &catalogue);
-    match args.common.format {
-        Format::Json => print_json(&report::json(&results)),
-        Format::Csv => out!("{}", report::csv(&results)),
-        Format::Text => out!("{}", report::text(&results, &conditions, &settings.shown)),
+    let format = match args.common.format {
+        Format::Json => report::Format::Json,
+        Format::Csv => report::Format::Csv,
+        Format::Text => report::Format::Text,
+    };
+    let names = names(args)?;
+    let mut stream = report::Stream::new(format, &conditions, &settings.shown);
+    let mut tally = Tally::default();
+    out!("{}", stream.begin());
+    for chunk in names.chunks(CHUNK) {
+        let screened: Vec<Screened> = chunk
+            .par_iter()
+            .map(|name| {
+                let mut named = read(args, name, &catalogue, &settings)?;
+                apply_ratings(args, &mut named, &catalogue)?;
+                Ok(screen(&named, args.common.model, &settings, &conditions, &catalogue))
+            })
+            .collect::<Result<_, Failure>>()?;
+        for s in &screened {
+            tally.add(s);
+            out!("{}", stream.item(s));
+        }
     }
-    outcome(&results)
+    out!("{}", stream.end());
+    tally.outcome()
+}
+
+/// What is named: the recipes (folders read for their `.ron` files), or the order given
+/// with --mix (as its name, read by [`read`]).
+fn names(args: &CheckArgs) -> Result<Vec<String>, Failure> {
+    if args.given.mix.is_some() {
+        return Ok(vec![String::new()]);
+    }
+    if args.recipes.is_empty() {
+        return Err(Failure::Usage("check needs recipes or --mix with --volume and --pressure".into()));
+    }
+    let mut names = Vec::new();
+    for name in &args.recipes {
+        names.extend(recipe_files(name)?);
+    }
+    Ok(names)
+}
+
+/// One recipe named (or the order given with --mix); one that cannot be read keeps its
+/// error and the others still run.
+fn read(args: &CheckArgs, name: &str, catalogue: &Catalogue, settings: &Resolved) -> Result<Named, Failure> {
+    if args.given.mix.is_some() {
+        let order = args.given.order(args.common.ambient_pa(settings)?, catalogue)?;
+        return Ok((order.name.clone(), Ok(order)));
+    }
+    let loaded = config::recipe_text(name, args.library.as_deref()).and_then(|(text, origin)| {
+        Recipe::load(&text, &origin, catalogue).map(|o| (origin, o)).map_err(|e| e.to_string())
+    });
+    Ok(match loaded {
+        Ok((origin, order)) => (origin, Ok(order)),
+        Err(e) => (name.to_string(), Err(e)),
+    })
 }
 
 /// The storage and service temperatures the blend is judged over.
@@ -88,30 +141,6 @@ fn conditions(args: &CheckArgs, settings: &Resolved) -> Result<Conditions, Refus
     Ok(conditions)
 }
 
-/// Every recipe named (folders read for their `.ron` files), or the order given with --mix;
-/// one that cannot be read keeps its error and the others still run.
-fn orders_named(args: &CheckArgs, catalogue: &Catalogue, settings: &Resolved) -> Result<Vec<Named>, Failure> {
-    let mut orders = Vec::new();
-    if args.given.mix.is_some() {
-        let order = args.given.order(args.common.ambient_pa(settings)?, catalogue)?;
-        orders.push((order.name.clone(), Ok(order)));
-    } else if args.recipes.is_empty() {
-        return Err(Failure::Usage("check needs recipes or --mix with --volume and --pressure".into()));
-    }
-    for name in &args.recipes {
-        for n in recipe_files(name)? {
-            let loaded = config::recipe_text(&n, args.library.as_deref()).and_then(|(text, origin)| {
-                Recipe::load(&text, &origin, catalogue).map(|o| (origin, o)).map_err(|e| e.to_string())
-            });
-            match loaded {
-                Ok((origin, order)) => orders.push((origin, Ok(order))),
-                Err(e) => orders.push((n, Err(e))),
-            }
-        }
-    }
-    Ok(orders)
-}
-
 /// A folder's `.ron` files (hidden ones left out), in name order; anything else as named.
 fn recipe_files(name: &str) -> Result<Vec<String>, Refused> {
     let path = Path::new(name);
@@ -132,35 +161,33 @@ fn recipe_files(name: &str) -> Result<Vec<String>, Refused> {
 
 /// --working-pressure and --test-pressure check a recipe against another cylinder rating;
 /// --before-fill another heel.
-fn apply_ratings(args: &CheckArgs, orders: &mut [Named], catalogue: &Catalogue) -> Result<(), Failure> {
+fn apply_ratings(args: &CheckArgs, (origin, order): &mut Named, catalogue: &Catalogue) -> Result<(), Failure> {
     if args.given.mix.is_some() {
         return Ok(());
     }
-    for (origin, order) in orders {
-        let Ok(o) = order else { continue };
-        let (working, test) = args.given.ratings(o.ambient_pa)?;
-        if let Some(p) = working {
-            o.working_pressure_pa = p;
-        }
-        if let Some(p) = test {
-            o.test_pressure_pa = p;
-        }
-        args.given.apply_before_fill(o, catalogue)?;
-        if o.test_pressure_pa < o.working_pressure_pa {
-            *order = Err(format!("{origin}: the test pressure is below the working pressure"));
-        }
+    let Ok(o) = order else { return Ok(()) };
+    let (working, test) = args.given.ratings(o.ambient_pa)?;
+    if let Some(p) = working {
+        o.working_pressure_pa = p;
+    }
+    if let Some(p) = test {
+        o.test_pressure_pa = p;
+    }
+    args.given.apply_before_fill(o, catalogue)?;
+    if o.test_pressure_pa < o.working_pressure_pa {
+        *order = Err(format!("{origin}: the test pressure is below the working pressure"));
     }
     Ok(())
 }
 
-/// Plan and screen every order on every core; the order of the list is kept.
-fn screen_all(
-    orders: &[Named],
+/// Plan and screen one order.
+fn screen(
+    (origin, order): &Named,
     model: Option<Model>,
     settings: &Resolved,
     conditions: &Conditions,
     catalogue: &Catalogue,
-) -> Vec<Screened> {
+) -> Screened {
     let options = PlanOptions {
         model,
         default_model: settings.default_model,
@@ -170,41 +197,50 @@ fn screen_all(
         skip_following: true,
         ..PlanOptions::default()
     };
-    orders
-        .par_iter()
-        .map(|(origin, order)| {
-            let screened = order.as_ref().map_err(Clone::clone).and_then(|order| {
-                // A fill above the test pressure has no plan: it is refused, in `plan` alike.
-                let p = plan::plan(order, catalogue, &options).map_err(|e| format!("{origin}: {e}"))?;
-                Ok((p.model, checks::screen(&p, order, catalogue, conditions)))
-            });
-            (origin.clone(), screened)
-        })
-        .collect()
+    let screened = order.as_ref().map_err(Clone::clone).and_then(|order| {
+        // A fill above the test pressure has no plan: it is refused, in `plan` alike.
+        let p = plan::plan(order, catalogue, &options).map_err(|e| format!("{origin}: {e}"))?;
+        Ok((p.model, checks::screen(&p, order, catalogue, conditions)))
+    });
+    (origin.clone(), screened)
 }
 
-/// The worst status wins: a finding at stop (3), else a recipe that could not be screened
-/// (1), else 0.
-fn outcome(results: &[Screened]) -> Result<(), Failure> {
-    let worst = results
-        .iter()
-        .filter_map(|(_, r)| r.as_ref().ok())
-        .map(|(_, c)| checks::worst(c))
-        .max()
-        .unwrap_or(Severity::Ok);
-    if worst == Severity::Stop {
-        return Err(Failure::Findings);
+/// What the exit status needs of the results written: the worst severity, how many could
+/// not be screened, and the error of a lone recipe.
+#[derive(Default)]
+struct Tally {
+    worst: Option<Severity>,
+    count: usize,
+    unreadable: usize,
+    first_error: Option<String>,
+}
+
+impl Tally {
+    fn add(&mut self, (_, r): &Screened) {
+        self.count += 1;
+        match r {
+            Ok((_, c)) => self.worst = self.worst.max(Some(checks::worst(c))),
+            Err(e) => {
+                self.unreadable += 1;
+                self.first_error.get_or_insert_with(|| e.clone());
+            }
+        }
     }
-    if let [(_, Err(e))] = results {
-        return Err(Refused(e.clone()).into());
+
+    /// The worst status wins: a finding at stop (3), else a recipe that could not be
+    /// screened (1), else 0.
+    fn outcome(self) -> Result<(), Failure> {
+        if self.worst == Some(Severity::Stop) {
+            return Err(Failure::Findings);
+        }
+        match (self.count, self.first_error) {
+            (1, Some(e)) => Err(Refused(e).into()),
+            (_, Some(_)) => Err(Refused(format!(
+                "{} of {} recipes could not be screened (each is named above with its error)",
+                self.unreadable, self.count
+            ))
+            .into()),
+            _ => Ok(()),
+        }
     }
-    let unreadable = results.iter().filter(|(_, r)| r.is_err()).count();
-    if unreadable > 0 {
-        return Err(Refused(format!(
-            "{unreadable} of {} recipes could not be screened (each is named above with its error)",
-            results.len()
-        ))
-        .into());
-    }
-    Ok(())
 }

@@ -11,49 +11,123 @@ use crate::units::Shown;
 /// One recipe's screening: its origin, and the model and checks, or why it was not screened.
 pub type Screened = (String, Result<(Model, Vec<Check>), String>);
 
-/// The report as JSON: every check of every recipe, the recipes that could not be read,
-/// and the cautions.
-pub fn json(results: &[Screened]) -> Value {
-    json!({
-        "checks": results
-            .iter()
-            .filter_map(|(origin, r)| r.as_ref().ok().map(|(model, checks)| (origin, model, checks)))
-            .flat_map(|(origin, model, checks)| checks.iter().map(move |c| check_json(origin, *model, c)))
-            .collect::<Vec<_>>(),
-        "unreadable": results
-            .iter()
-            .filter_map(|(origin, r)| r.as_ref().err().map(|e| json!({"recipe": origin, "error": e})))
-            .collect::<Vec<_>>(),
-        "cautions": cautions(results),
-    })
+/// The report written as the recipes are screened, so that nothing but the tallies is held:
+/// `begin`, then `item` for each recipe in order, then `end` (each returns the text to
+/// write).
+pub struct Stream<'a> {
+    format: Format,
+    conditions: &'a Conditions,
+    shown: &'a Shown,
+    /// Checks written so far (JSON: a comma before the next).
+    written: usize,
+    /// Recipes that could not be read (JSON lists them after the checks).
+    unreadable: Vec<Value>,
+    /// Whether some blend holds an oxidiser (the oxygen-clean caution).
+    oxidiser: bool,
 }
 
-/// The cautions for the blends screened (the oxygen-clean one where one holds an oxidiser).
-fn cautions(results: &[Screened]) -> Vec<&'static str> {
-    checks::cautions_for(results.iter().filter_map(|(_, r)| r.as_ref().ok()).flat_map(|(_, list)| list))
+/// The report's format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    Text,
+    Json,
+    Csv,
 }
 
-/// The report as CSV: one row per check, one per recipe that could not be read.
-pub fn csv(results: &[Screened]) -> String {
-    let mut out = String::new();
-    put!(out, "recipe,model,id,severity,message");
-    for (origin, r) in results {
-        match r {
+impl<'a> Stream<'a> {
+    pub fn new(format: Format, conditions: &'a Conditions, shown: &'a Shown) -> Stream<'a> {
+        Stream { format, conditions, shown, written: 0, unreadable: Vec::new(), oxidiser: false }
+    }
+
+    /// What comes before the first recipe.
+    pub fn begin(&mut self) -> String {
+        match self.format {
+            Format::Json => "{\n  \"checks\": [".into(),
+            Format::Csv => "recipe,model,id,severity,message\n".into(),
+            Format::Text => String::new(),
+        }
+    }
+
+    /// One recipe's part of the report.
+    pub fn item(&mut self, (origin, result): &Screened) -> String {
+        if let Ok((_, list)) = result {
+            self.oxidiser = self.oxidiser || checks::holds_oxidiser(list);
+        }
+        match self.format {
+            Format::Json => self.json_item(origin, result),
+            Format::Csv => csv_item(origin, result),
+            Format::Text => text_item(origin, result, self.conditions, self.shown),
+        }
+    }
+
+    fn json_item(&mut self, origin: &str, result: &Result<(Model, Vec<Check>), String>) -> String {
+        let mut out = String::new();
+        match result {
             Ok((model, list)) => {
                 for c in list {
-                    put!(
-                        out,
-                        "{},{},{},{},{}",
-                        csv_field(origin),
-                        model.key(),
-                        c.id,
-                        c.severity.key(),
-                        csv_field(&c.message)
-                    );
+                    let element = serde_json::to_string_pretty(&check_json(origin, *model, c)).unwrap_or_default();
+                    out.push_str(if self.written == 0 { "\n" } else { ",\n" });
+                    out.push_str(&indent(&element, 4));
+                    self.written += 1;
                 }
             }
-            Err(e) => put!(out, "{},,,unreadable,{}", csv_field(origin), csv_field(e)),
+            Err(e) => self.unreadable.push(json!({"recipe": origin, "error": e})),
         }
+        out
+    }
+
+    /// What comes after the last recipe: the unreadable ones (JSON) and the cautions.
+    pub fn end(&mut self) -> String {
+        let cautions = checks::cautions_with(self.oxidiser);
+        match self.format {
+            Format::Json => {
+                let close = if self.written == 0 { "]" } else { "\n  ]" };
+                let rest = |v: &Value| indent(&serde_json::to_string_pretty(v).unwrap_or_default(), 2);
+                format!(
+                    "{close},\n  \"unreadable\": {},\n  \"cautions\": {}\n}}\n",
+                    rest(&Value::Array(std::mem::take(&mut self.unreadable))).trim_start(),
+                    rest(&json!(cautions)).trim_start()
+                )
+            }
+            Format::Csv => String::new(),
+            Format::Text => {
+                let mut out = String::new();
+                put!(out, "Cautions:");
+                for c in cautions {
+                    for (k, l) in wrap_words(c, 80 - 4).iter().enumerate() {
+                        put!(out, "{}{l}", if k == 0 { "  - " } else { "    " });
+                    }
+                }
+                out
+            }
+        }
+    }
+}
+
+/// A JSON text indented by `by` spaces on every line.
+fn indent(text: &str, by: usize) -> String {
+    let pad = " ".repeat(by);
+    text.lines().map(|l| format!("{pad}{l}")).collect::<Vec<_>>().join("\n")
+}
+
+/// One recipe's CSV rows.
+fn csv_item(origin: &str, r: &Result<(Model, Vec<Check>), String>) -> String {
+    let mut out = String::new();
+    match r {
+        Ok((model, list)) => {
+            for c in list {
+                put!(
+                    out,
+                    "{},{},{},{},{}",
+                    csv_field(origin),
+                    model.key(),
+                    c.id,
+                    c.severity.key(),
+                    csv_field(&c.message)
+                );
+            }
+        }
+        Err(e) => put!(out, "{},,,unreadable,{}", csv_field(origin), csv_field(e)),
     }
     out
 }
@@ -75,62 +149,55 @@ fn check_json(origin: &str, model: Model, c: &Check) -> Value {
     v
 }
 
-pub fn text(results: &[Screened], conditions: &Conditions, d: &Shown) -> String {
+/// One recipe's part of the text report.
+fn text_item(origin: &str, result: &Result<(Model, Vec<Check>), String>, conditions: &Conditions, d: &Shown) -> String {
     let mut out = String::new();
-    for (origin, result) in results {
-        let (model, list) = match result {
-            Ok((model, list)) => (model, list),
-            Err(e) => {
-                put!(out, "{origin}: NOT SCREENED - refused");
-                put!(out, "  {}", crate::ron_format::shorten(e));
-                put!(out);
-                continue;
-            }
-        };
-        let worst = checks::worst(list);
-        put!(
-            out,
-            "{}: {}",
-            origin,
-            match worst {
-                Severity::Stop => "STOP - do not fill as planned",
-                Severity::Caution => "CAUTION",
-                Severity::Ok => "OK",
-            }
-        );
-        put!(
-            out,
-            "  plan {}; storage down to {}, service up to {}",
-            model.key(),
-            d.tf(conditions.min_temperature_k),
-            d.tf(conditions.max_temperature_k)
-        );
-        // What matters first: stop, then caution, then ok.
-        let mut sorted: Vec<&Check> = list.iter().collect();
-        sorted.sort_by_key(|c| std::cmp::Reverse(c.severity));
-        // 80 columns: messages and details wrapped with a hanging indent (JSON has them whole).
-        for c in sorted {
-            let lines = wrap_words(&c.message, 80 - 29);
-            for (k, l) in lines.iter().enumerate() {
-                if k == 0 {
-                    put!(out, "  [{:<7}] {:<16} {l}", c.severity.key(), c.id);
-                } else {
-                    put!(out, "{:29}{l}", "");
-                }
-            }
-            for d in &c.details {
-                for (k, l) in wrap_words(d, 80 - 16).iter().enumerate() {
-                    put!(out, "{}{l}", if k == 0 { "              " } else { "                " });
-                }
+    let (model, list) = match result {
+        Ok((model, list)) => (model, list),
+        Err(e) => {
+            put!(out, "{origin}: NOT SCREENED - refused");
+            put!(out, "  {}", crate::ron_format::shorten(e));
+            put!(out);
+            return out;
+        }
+    };
+    let worst = checks::worst(list);
+    put!(
+        out,
+        "{}: {}",
+        origin,
+        match worst {
+            Severity::Stop => "STOP - do not fill as planned",
+            Severity::Caution => "CAUTION",
+            Severity::Ok => "OK",
+        }
+    );
+    put!(
+        out,
+        "  plan {}; storage down to {}, service up to {}",
+        model.key(),
+        d.tf(conditions.min_temperature_k),
+        d.tf(conditions.max_temperature_k)
+    );
+    // What matters first: stop, then caution, then ok.
+    let mut sorted: Vec<&Check> = list.iter().collect();
+    sorted.sort_by_key(|c| std::cmp::Reverse(c.severity));
+    // 80 columns: messages and details wrapped with a hanging indent (JSON has them whole).
+    for c in sorted {
+        let lines = wrap_words(&c.message, 80 - 29);
+        for (k, l) in lines.iter().enumerate() {
+            if k == 0 {
+                put!(out, "  [{:<7}] {:<16} {l}", c.severity.key(), c.id);
+            } else {
+                put!(out, "{:29}{l}", "");
             }
         }
-        put!(out);
-    }
-    put!(out, "Cautions:");
-    for c in cautions(results) {
-        for (k, l) in wrap_words(c, 80 - 4).iter().enumerate() {
-            put!(out, "{}{l}", if k == 0 { "  - " } else { "    " });
+        for d in &c.details {
+            for (k, l) in wrap_words(d, 80 - 16).iter().enumerate() {
+                put!(out, "{}{l}", if k == 0 { "              " } else { "                " });
+            }
         }
     }
+    put!(out);
     out
 }
