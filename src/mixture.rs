@@ -151,6 +151,9 @@ pub fn parse_share(text: &str) -> Result<Share, String> {
     if t.eq_ignore_ascii_case("balance") || t.eq_ignore_ascii_case("bal") {
         return Ok(Share::Balance);
     }
+    if t.is_empty() {
+        return Err("is empty: type an amount, e.g. 400ppm, 2.5%, 0.025 or balance".into());
+    }
     let (number, unit) = if let Some(n) = t.strip_suffix('%') {
         (n, FractionUnit::Percent)
     } else if let Some(n) = strip_suffix_ci(t, "ppm") {

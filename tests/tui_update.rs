@@ -156,7 +156,12 @@ fn adding_a_gas_through_the_picker() {
     keys(&mut model, &mut ctx, &[Key::Char('a')]);
     assert!(matches!(model.overlay, Overlay::Picker { .. }));
     text(&mut model, &mut ctx, "argon");
-    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    // No amount is assumed: until one is typed the recipe does not plan, and says why.
+    let doc = model.doc.as_ref().unwrap();
+    assert_eq!(doc.recipe.components.iter().find(|c| c.gas == "Ar").unwrap().amount, "");
+    let why = doc.computed.plan.as_ref().map(|_| ()).unwrap_err();
+    assert!(why.contains("is empty: type an amount"), "{why}");
     text(&mut model, &mut ctx, "0.5%");
     keys(&mut model, &mut ctx, &[Key::Enter]);
     let doc = model.doc.as_ref().unwrap();
@@ -1909,4 +1914,52 @@ fn a_long_line_being_typed_shows_its_end_where_the_cursor_is() {
     keys(&mut model, &mut ctx, &[Key::Enter]);
     let screen = screen_80(&model, &ctx);
     assert!(screen.contains("name              Span gas for the") && !screen.contains("ZZEND"), "{screen}");
+}
+
+#[test]
+fn a_step_weighed_from_a_source_without_uncertainty_stays_marked_until_corrected() {
+    let (mut model, mut ctx, _dir) = on_sheet("unanalysed", "nox-span-premix");
+    typed(&mut model, &mut ctx, 'w', "13390.00g");
+    // The analysis asked for is put off (Esc), and the step weighed all the same.
+    keys(&mut model, &mut ctx, &[Key::Esc]);
+    typed(&mut model, &mut ctx, 'w', "13403.82g");
+    assert_eq!(model.doc.as_ref().unwrap().bench.unanalysed, [0]);
+    let screen = screen_80(&model, &ctx);
+    assert!(screen.contains("step 1's source") && screen.contains("has no uncertainty"), "{screen}");
+    // Corrected with its analysis and a reason: the mark goes.
+    typed(&mut model, &mut ctx, 'x', "s 1 NO=1.0012%±0.0020%,N2=balance");
+    text(&mut model, &mut ctx, "analysis certificate arrived");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.doc.as_ref().unwrap().bench.unanalysed.is_empty(), "{}", model.status);
+    assert!(!screen_80(&model, &ctx).contains("has no uncertainty"));
+}
+
+#[test]
+fn a_tolerance_shows_how_it_is_read_and_takes_a_leading_plus_minus() {
+    let (mut model, mut ctx, _dir) = setup("tolerance-reading");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    // CO2 15 % with 1%rel reads ±0.15 %; typed as `1 %` it is ±1 % mol/mol, 6.7 %rel.
+    let tol_row = |model: &Model, gas: &str| {
+        let r = &model.doc.as_ref().unwrap().recipe;
+        let i = r.components.iter().position(|c| c.gas == gas).unwrap();
+        fillwright::tui::views::editor::tolerance_reading(r, i)
+    };
+    assert_eq!(tol_row(&model, "CO2").as_deref(), Some("= ±0.15%"));
+    go_to_component(&mut model, &mut ctx, "CO2");
+    keys(&mut model, &mut ctx, &[Key::Down, Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "1 %");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert_eq!(tol_row(&model, "CO2").as_deref(), Some("absolute = ±6.7%rel"));
+    assert!(screen_80(&model, &ctx).contains("1 %  (absolute"));
+    assert!(fillwright::tui::scenes::text(&render(&model, &ctx)).contains("1 %  (absolute = ±6.7%rel)"));
+    // ± in front is taken, not refused.
+    keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
+    text(&mut model, &mut ctx, "±2 %rel");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(
+        model.doc.as_ref().unwrap().computed.plan.is_ok(),
+        "{:?}",
+        model.doc.as_ref().unwrap().computed.order.as_ref().err()
+    );
+    assert_eq!(tol_row(&model, "CO2").as_deref(), Some("= ±0.3%"));
 }

@@ -588,10 +588,14 @@ pub fn resolve_before(
 /// Tolerance as written: `2%rel` (relative to the amount) or an absolute share (`10ppm`).
 /// Returns the absolute tolerance of the mole fraction.
 pub fn parse_tolerance(text: &str, fraction: Option<f64>) -> Result<f64, String> {
+    const ACCEPTED: &str = "accepted: 2%rel (relative to the amount) or an absolute amount such as 10ppm or 0.1%, \
+                            with or without a leading ± or +-";
+    // A tolerance is a ± by nature: a leading `±`, `+-` or `+/-` says the same.
     let t = text.trim();
+    let t = ["±", "+/-", "+-"].iter().find_map(|p| t.strip_prefix(p)).unwrap_or(t).trim();
     let lower = t.to_ascii_lowercase();
     if let Some(number) = lower.strip_suffix("%rel").or_else(|| lower.strip_suffix("% rel")) {
-        let rel: f64 = number.trim().parse().map_err(|_| "is not a number".to_string())?;
+        let rel: f64 = number.trim().parse().map_err(|_| format!("is not a number; {ACCEPTED}"))?;
         if !(rel.is_finite() && rel > 0.0 && rel < 100.0) {
             return Err("a relative tolerance must be between 0 and 100 %rel".into());
         }
@@ -600,9 +604,9 @@ pub fn parse_tolerance(text: &str, fraction: Option<f64>) -> Result<f64, String>
         };
         return Ok(x * rel / 100.0);
     }
-    match mixture::parse_share(t)? {
+    match mixture::parse_share(t).map_err(|e| format!("{e}; {ACCEPTED}"))? {
         Share::Of { value, unit } => Ok(value * unit.scale()),
-        Share::Balance => Err("accepted: 2%rel (relative) or an absolute amount such as 10ppm or 0.1%".into()),
+        Share::Balance => Err(ACCEPTED.into()),
     }
 }
 
@@ -655,5 +659,13 @@ mod tests {
         assert!((parse_tolerance("10ppm", Some(5e-4)).unwrap() - 1e-5).abs() < 1e-18);
         assert!(parse_tolerance("2%rel", None).is_err());
         assert!(parse_tolerance("abc", Some(0.1)).is_err());
+        // A leading ± says what a tolerance is anyway.
+        for t in ["±2 %rel", "+-2%rel", "+/- 2%rel", "± 2%rel"] {
+            assert!((parse_tolerance(t, Some(0.15)).unwrap() - 0.003).abs() < 1e-15, "{t}");
+        }
+        assert!((parse_tolerance("±10ppm", Some(5e-4)).unwrap() - 1e-5).abs() < 1e-18);
+        // What is wrong says what is accepted.
+        let e = parse_tolerance("2 percent", Some(0.1)).unwrap_err();
+        assert!(e.contains("accepted: 2%rel"), "{e}");
     }
 }

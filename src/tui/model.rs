@@ -376,6 +376,9 @@ pub struct Bench {
     /// Per step that doses a premix recipe of the library: where that premix stands (read
     /// with the record).
     pub premix_states: Vec<Option<String>>,
+    /// Steps weighed whose recorded source has no uncertainty (a premix at its nominal
+    /// composition): the certificate would refuse them (read with the record).
+    pub unanalysed: Vec<usize>,
 }
 
 impl Bench {

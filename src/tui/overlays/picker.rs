@@ -84,7 +84,9 @@ pub fn on_key(model: &mut Model, ctx: &mut Context, key: Key, mut input: Input, 
                     (PickFor::AddComponent, None) => {
                         edit(doc, ctx, |r| {
                             let at = r.components.len().saturating_sub(1);
-                            let line = ComponentLine { gas: id.clone(), amount: "1%".into(), tolerance: None };
+                            // No amount until one is typed: the recipe does not plan on an
+                            // amount nobody chose.
+                            let line = ComponentLine { gas: id.clone(), amount: String::new(), tolerance: None };
                             // New gases go before the balance gas, which usually closes the list.
                             if r.components.last().is_some_and(|c| c.amount == "balance") {
                                 r.components.insert(at, line);
@@ -94,7 +96,6 @@ pub fn on_key(model: &mut Model, ctx: &mut Context, key: Key, mut input: Input, 
                         });
                         let i = doc.recipe.components.iter().position(|c| c.gas == id).unwrap_or(0);
                         doc.field = fields(&doc.recipe).iter().position(|f| *f == Field::Component(i)).unwrap_or(0);
-                        // The line holds 1 % until an amount is kept; what is typed replaces it.
                         doc.editing = Some(Input::new(String::new()));
                         model.status = format!("{id} added: type its amount (400ppm, 2.5%, 0.1); Enter keeps it");
                     }

@@ -424,6 +424,10 @@ fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         };
         let value = match f {
             Field::FillKind | Field::Model => format!("{value}  (Enter changes)"),
+            Field::Tolerance(i) if typing.is_none() => match tolerance_reading(&doc.recipe, *i) {
+                Some(reading) => format!("{value}  ({reading})"),
+                None => value,
+            },
             _ => value,
         };
         let marker = if selected { "▶" } else { " " };
@@ -446,6 +450,22 @@ fn editor(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     }
     frame.render_widget(Paragraph::new(lines), inner);
     result_pane(doc, &model.shown, theme, frame, right);
+}
+
+/// How a tolerance as written is read, beside it: a relative one as the absolute share it
+/// allows, an absolute one as the relative share of the amount (so `1%` on 15 % shows that
+/// it is ±6.7 %rel, not ±1 %rel).
+pub fn tolerance_reading(r: &crate::recipe::Recipe, i: usize) -> Option<String> {
+    let c = r.components.get(i)?;
+    let written = c.tolerance.as_deref()?;
+    let x = crate::mixture::parse_share(&c.amount).ok()?.fraction();
+    let abs = crate::recipe::parse_tolerance(written, x).ok()?;
+    let relative = written.to_ascii_lowercase().replace(' ', "").ends_with("%rel");
+    Some(match (relative, x) {
+        (true, _) => format!("= ±{}", crate::units::fraction_text(abs)),
+        (false, Some(x)) if x > 0.0 => format!("absolute = ±{}%rel", crate::units::Sig(abs / x * 100.0, 2)),
+        (false, _) => "absolute".to_string(),
+    })
 }
 
 fn result_pane(doc: &Document, d: &Shown, theme: &Theme, frame: &mut Frame, area: Rect) {

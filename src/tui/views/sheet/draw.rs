@@ -354,6 +354,16 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme, width: usize) -> V
         );
         lines.extend(wrap_words(&text, width).into_iter().map(|l| Line::styled(l, theme.fg(Color::Red))));
     }
+    for &k in &doc.bench.unanalysed {
+        let source = r.additions.get(k).map_or("", |a| a.source.as_str());
+        let text = format!(
+            "step {}'s source {source} has no uncertainty: a certificate needs its analysis or its own fill \
+             record. x then s {} record:ID (or its analysis)",
+            k + 1,
+            k + 1
+        );
+        lines.extend(wrap_words(&text, width).into_iter().map(|l| Line::styled(l, theme.fg(Color::Red))));
+    }
     if let Some(c) = r.corrections.last() {
         let text = format!("{} correction(s); last: {} ({})", r.corrections.len(), c.entry, c.reason);
         lines.push(Line::styled(clip(&text, width), theme.dim()));

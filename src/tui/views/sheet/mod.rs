@@ -382,6 +382,14 @@ pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
         return;
     };
     let r = &opened.record;
+    // A `record:` or `@` source is an analysis by its reference; a source written out is
+    // checked for its uncertainties (cheap: no look-up).
+    doc.bench.unanalysed = (0..r.weighings.len().saturating_sub(1).min(r.additions.len()))
+        .filter(|&k| {
+            let s = r.additions[k].source.trim();
+            !s.starts_with("record:") && !s.starts_with('@') && lacks_uncertainty(s, ctx)
+        })
+        .collect();
     let ambient = doc.computed.order.as_ref().map_or(units::STANDARD_AMBIENT_PA, |o| o.ambient_pa);
     let weighed = r.weighings.len().saturating_sub(1);
     for (k, d) in doc.bench.done.iter_mut().enumerate() {
