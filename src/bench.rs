@@ -34,6 +34,10 @@ pub struct Standing {
     pub cross_checks: Vec<CrossCheck>,
     /// The rest re-planned, or why not.
     pub replan: Result<Replan, String>,
+    /// Every addition weighed so far is its planned mass within what two scale readings
+    /// resolve (2·√2·u of one reading, k = 2): the live sheet then keeps the first plan
+    /// rather than chase the readings' own scatter.
+    pub within_noise: bool,
 }
 
 /// Read the record into numbers and re-plan the rest of `plan` from it.
@@ -62,6 +66,12 @@ pub fn standing(
     let replan = replan::replan(plan, order, weighed, &now_mol);
     let recorded = checked.additions.iter().map(|a| (a.written.clone(), a.reading)).collect();
     let cross_checks = cross_check(&checked, plan, catalogue);
+    let noise_g = 2.0 * std::f64::consts::SQRT_2 * checked.scale_u_g;
+    let within_noise = weighed > 0
+        && (0..weighed).all(|k| match (checked.net_g(k), checked.net_g(k + 1)) {
+            (Some(a), Some(b)) => (b - a - plan.steps[k].add_mass_g).abs() <= noise_g,
+            _ => false,
+        });
     Ok(Standing {
         weighed,
         now_mol,
@@ -71,6 +81,7 @@ pub fn standing(
         recorded,
         cross_checks,
         replan,
+        within_noise,
     })
 }
 
@@ -127,11 +138,20 @@ pub fn live_sheet(
     let now_at = |amounts: &[f64]| {
         measured_k.and_then(|t| crate::plan::corrected_target_pa(&plan.fluid, plan.volume_m3, amounts, t).ok())
     };
+    // The first plan's scale readings counted from the empty weight typed, as the live
+    // ones are (the plan's own start from the recipe's tare, or zero without one).
+    let empty = standing.and_then(|s| s.weighings_g.first().copied()).or(empty_g);
+    let shift = match (empty, plan.steps.first()) {
+        (Some(e), Some(s0)) => e - (s0.scale_reading_g - s0.add_mass_g),
+        _ => 0.0,
+    };
     let planned = |k: usize| {
         let s = &plan.steps[k];
-        (s.add_mass_g, s.scale_reading_g, s.pressure_after_pa)
+        (s.add_mass_g, s.scale_reading_g + shift, s.pressure_after_pa)
     };
-    let replanned = standing.and_then(|s| s.replan.as_ref().ok().filter(|_| s.weighed > 0).map(|r| (s, r)));
+    let replanned = standing
+        .filter(|s| !s.within_noise)
+        .and_then(|s| s.replan.as_ref().ok().filter(|_| s.weighed > 0).map(|r| (s, r)));
     let mut lines = Vec::with_capacity(plan.steps.len());
     for (k, step) in plan.steps.iter().enumerate() {
         if let Some(s) = standing.filter(|s| k < s.weighed) {
@@ -162,7 +182,6 @@ pub fn live_sheet(
         };
         // The scale: from the last reading recorded (the empty weight typed, at first),
         // else from the plan's own tare.
-        let empty = standing.and_then(|s| s.weighings_g.first().copied()).or(empty_g);
         let scale_reading_g = match (lines.last().filter(|l| l.scale_reading_g.is_finite()), empty) {
             (Some(prev), _) => prev.scale_reading_g + add_mass_g,
             (None, Some(empty)) => empty + add_mass_g,

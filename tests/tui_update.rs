@@ -1848,6 +1848,7 @@ fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen(
     let premix_record = model.doc.as_ref().unwrap().bench.record.as_ref().unwrap().id.clone();
     keys(&mut model, &mut ctx, &[Key::Char('C')]);
     assert!(model.status.contains("premix of stack-span"), "{}", model.status);
+    assert!(model.status.chars().count() <= 3 * 80, "fits the three status rows: {}", model.status);
     // Back on the blend: the premix is made, and its record is offered as the step's source.
     keys(&mut model, &mut ctx, &[Key::Char('1')]);
     open(&mut model, &mut ctx, "stack-span");
@@ -1913,7 +1914,7 @@ fn a_long_line_being_typed_shows_its_end_where_the_cursor_is() {
     // Not typing, the field shows its start again.
     keys(&mut model, &mut ctx, &[Key::Enter]);
     let screen = screen_80(&model, &ctx);
-    assert!(screen.contains("name              Span gas for the") && !screen.contains("ZZEND"), "{screen}");
+    assert!(screen.contains("title             Span gas for the") && !screen.contains("ZZEND"), "{screen}");
 }
 
 #[test]
@@ -1962,4 +1963,23 @@ fn a_tolerance_shows_how_it_is_read_and_takes_a_leading_plus_minus() {
         model.doc.as_ref().unwrap().computed.order.as_ref().err()
     );
     assert_eq!(tol_row(&model, "CO2").as_deref(), Some("= ±0.3%"));
+}
+
+#[test]
+fn a_reading_typed_as_the_sheet_shows_it_does_not_re_plan_the_rest() {
+    let (mut model, mut ctx, _dir) = setup("within-noise");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    weigh(&mut model, &mut ctx, "13412.000g");
+    // The sheet shows two decimals; the reading typed as shown is within what two readings
+    // of the default 0.1 g scale resolve (2·√2·0.029 g).
+    let shown = format!("{:.2}g", live_scale(&model, 0));
+    weigh(&mut model, &mut ctx, &shown);
+    let live = &model.doc.as_ref().unwrap().bench.live;
+    assert!(live.iter().all(|l| l.finished || !l.moved()), "nothing re-planned");
+    assert!(!screen_80(&model, &ctx).contains("re-planned"));
+    // A gram over on CH4 is a real deviation: the rest follows it.
+    let over = format!("{:.3}g", live_scale(&model, 1) + 1.0);
+    weigh(&mut model, &mut ctx, &over);
+    let live = &model.doc.as_ref().unwrap().bench.live;
+    assert!(live.iter().any(|l| !l.finished && l.moved()), "re-planned after a real deviation");
 }

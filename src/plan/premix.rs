@@ -626,10 +626,11 @@ pub fn describe(p: &Proposal, step_source: &str, volume_m3: f64, d: &crate::unit
         let label = char::from(b'A' + k as u8);
         out.push(format!("  {label}  {} ({})", st.name, st.spec));
         out.push(format!(
-            "     {} L to {} {}; recipe name {}",
+            "     {} L to {} {} at {}; recipe {}",
             Sig(volume_m3 * 1e3, 4),
             Sig(d.p(st.fill_pressure_pa), 4),
             d.pu(),
+            d.tf(st.order.reference_temperature_k),
             clip(&st.recipe_name, 36)
         ));
         match &st.plan {

@@ -75,6 +75,10 @@ fn go_to(model: &mut Model, v: View) {
     if v != View::Library && model.doc.is_none() {
         model.status = "open a recipe first (Enter on a library line)".into();
     } else {
+        // What the status said belongs to the view left.
+        if model.view != v {
+            model.status.clear();
+        }
         model.view = v;
     }
 }

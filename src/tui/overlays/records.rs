@@ -152,7 +152,8 @@ pub fn draw(theme: &Theme, frame: &mut Frame, area: Rect, list: &Records) {
     let id_w = list.rows.iter().map(|(id, _)| id.chars().count()).max().unwrap_or(6).clamp(6, 28);
     // Narrow: the start as its date, the recipe shorter, so the state has room.
     let narrow = inner_w < 100;
-    let (recipe_w, started_w) = if narrow { (13, 10) } else { (24, 16) };
+    let longest = list.rows.iter().filter_map(|(_, r)| r.as_ref().ok()).map(|r| r.recipe.chars().count()).max();
+    let (recipe_w, started_w) = if narrow { (13, 10) } else { (longest.unwrap_or(0).clamp(13, inner_w / 3), 16) };
     let state_w = inner_w.saturating_sub(2 + id_w + 1 + recipe_w + 1 + 3 + 1 + started_w + 1);
     let mut lines = vec![
         Line::styled("↑↓ · Enter open on the Fill sheet · x correct · C certify · p report · Esc", theme.dim()),

@@ -358,7 +358,7 @@ fn on_field_typing(doc: &mut Document, key: Key, ctx: &Context, status: &mut Str
 fn field_label(doc: &Document, f: Field) -> String {
     let r = &doc.recipe;
     match f {
-        Field::Name => "name".into(),
+        Field::Name => "title".into(),
         Field::Description => "description".into(),
         Field::Order => "order ref".into(),
         Field::Component(i) => format!("  {}", r.components[i].gas),

@@ -163,9 +163,12 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
     let inner = block.inner(area);
     frame.render_widget(block, area);
     let w = inner.width as usize;
-    let title_w = w.saturating_sub(22 + 9 + 14 + 4 + 9 + 5);
+    // A wide window gives long names (a premix's) room, up to half of what is left.
+    let longest = model.library.entries.iter().map(|e| e.name.chars().count() + 1).max().unwrap_or(0);
+    let name_w = longest.clamp(22, 22.max(22 + w.saturating_sub(80) / 2));
+    let title_w = w.saturating_sub(name_w + 9 + 14 + 4 + 9 + 5);
     let mut lines = vec![Line::styled(
-        format!("  {:<22}{:>9}{:>14}{:>4} {:<8} {}", "name", "fill", "cylinder", "rev", "checks", "recipe"),
+        format!("  {:<name_w$}{:>9}{:>14}{:>4} {:<8} {}", "name", "fill", "cylinder", "rev", "checks", "title"),
         theme.bold(),
     )];
     let visible = model.library.visible();
@@ -177,9 +180,9 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
         let marker = if selected { "▶ " } else { "  " };
         let text = match &e.summary {
             Ok(s) => format!(
-                "{marker}{:<22}{:>9}{:>14}{:>4} {:<8} {}",
-                clip_middle(&e.name, 21),
-                clip(&s.fill, 8),
+                "{marker}{:<name_w$}{:>9}{:>14}{:>4} {:<8} {}",
+                clip_middle(&e.name, name_w - 1),
+                clip(&s.fill.replace(' ', ""), 8),
                 clip(&s.cylinder, 13),
                 s.revision,
                 match model.library.screening.get(i).copied().flatten() {
@@ -195,7 +198,11 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
                 }
             ),
             Err(err) => {
-                format!("{marker}{:<22} cannot be read: {}", clip_middle(&e.name, 21), clip(err, w.saturating_sub(40)))
+                format!(
+                    "{marker}{:<name_w$} cannot be read: {}",
+                    clip_middle(&e.name, name_w - 1),
+                    clip(err, w.saturating_sub(name_w + 18))
+                )
             }
         };
         let style = if selected {

@@ -24,7 +24,7 @@ pub fn certify(model: &mut Model, ctx: &Context) {
     let blends = super::premixes::blends_taking(ctx, &name);
     if !blends.is_empty() && !model.status.starts_with("not certified") {
         model.status = format!(
-            "{}; premix of {}: open it to go on, its step takes this fill's record",
+            "{}; it is the premix of {}: open that, its step takes this record",
             model.status,
             blends.join(", ")
         );
@@ -70,5 +70,7 @@ pub fn certify_id(ctx: &Context, id: &str) -> Result<String, String> {
     crate::library::atomic::write(&path, cert.text().as_bytes()).map_err(|e| e.to_string())?;
     crate::library::atomic::write(&path.with_extension("pdf"), &pdf).map_err(|e| e.to_string())?;
     let stop = if cert.stopped_by_analysis() { "STOP - the analysis does not confirm the content; " } else { "" };
-    Ok(format!("{stop}certificate of {id} written to {} and .pdf: a draft for review and signature", path.display()))
+    Ok(format!(
+        "{stop}certificate of {id} written to certificates/{id}.txt and .pdf in the library, a draft for review"
+    ))
 }
