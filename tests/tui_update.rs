@@ -1779,7 +1779,12 @@ fn the_records_list_opens_continues_corrects_certifies_and_prints_any_fill() {
     keys(&mut model, &mut ctx, &[Key::Char('C')]);
     assert!(model.status.contains("written to"), "{}", model.status);
     assert!(dir.join(format!("library/certificates/{id}.txt")).exists());
-    keys(&mut model, &mut ctx, &[Key::Esc]);
+    // The list and the sheet say it is certified.
+    assert!(fillwright::tui::scenes::text(&render(&model, &ctx)).contains("certified, finished"));
+    keys(&mut model, &mut ctx, &[Key::Esc, Key::Char('1')]);
+    open(&mut model, &mut ctx, "flue-gas-span");
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    assert!(screen_80(&model, &ctx).contains("and certified"), "{}", screen_80(&model, &ctx));
     // The recipe deleted: its record still lists and certifies, and opening says why not.
     keys(&mut model, &mut ctx, &[Key::Char('1')]);
     ctx.library.delete("flue-gas-span", &stamp()).unwrap();
@@ -1799,11 +1804,11 @@ fn screen_80(model: &Model, ctx: &Context) -> String {
 #[test]
 fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen() {
     let (mut model, mut ctx, dir) = setup("premix-workflow");
-    let text = r#"Recipe(format: 1, name: "stack-span", order: "KX-5102", components: [
+    let recipe_text = r#"Recipe(format: 1, name: "stack-span", order: "KX-5102", components: [
         (gas: "CO", amount: "400ppm", tolerance: "2%rel"), (gas: "SO2", amount: "100ppm", tolerance: "2%rel"),
         (gas: "CO2", amount: "15%"), (gas: "N2", amount: "balance")], cylinder: (water_capacity: "10L",
         working_pressure: "200bar", test_pressure: "300bar", serial: "KX-10-77"), fill: Pressure("150bar"))"#;
-    std::fs::write(dir.join("library/stack-span.ron"), text).unwrap();
+    std::fs::write(dir.join("library/stack-span.ron"), recipe_text).unwrap();
     update::refresh(&mut model, &ctx);
     open(&mut model, &mut ctx, "stack-span");
     keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
@@ -1839,7 +1844,17 @@ fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen(
     keys(&mut model, &mut ctx, &[Key::Char('g')]);
     assert_eq!(model.doc.as_ref().unwrap().name, premix, "{}", model.status);
     assert_eq!(model.view, View::Sheet);
-    weigh(&mut model, &mut ctx, "12950.000g");
+    // The premix recipe names no cylinder: its serial is asked before the record starts.
+    keys(&mut model, &mut ctx, &[Key::Char('w')]);
+    assert!(model.status.contains("names no cylinder serial"), "{}", model.status);
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    assert!(model.status.contains("type the serial"), "an empty serial is refused: {}", model.status);
+    text(&mut model, &mut ctx, "PX-0311");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    text(&mut model, &mut ctx, "12950.000g");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let id = model.doc.as_ref().unwrap().bench.record.as_ref().map(|r| r.id.clone());
+    assert!(id.as_deref().is_some_and(|id| id.starts_with("PX-0311-")), "{id:?}: {}", model.status);
     let steps = model.doc.as_ref().unwrap().bench.done.len();
     for k in 0..steps {
         let reading = live_scale(&model, k);

@@ -113,6 +113,9 @@ pub enum Prompt {
     AddSource,
     /// The scale reading of the next weighing of the fill record.
     Weighing,
+    /// The serial of the cylinder filled, where the recipe names none (asked before the
+    /// record starts).
+    CylinderSerial,
     /// The source (analysis or @name) of the step in progress.
     StepSource,
     /// A correction of a recorded entry (`w 2 13450.12g`), then its reason.
@@ -379,6 +382,10 @@ pub struct Bench {
     /// Steps weighed whose recorded source has no uncertainty (a premix at its nominal
     /// composition): the certificate would refuse them (read with the record).
     pub unanalysed: Vec<usize>,
+    /// The serial typed for this fill where the recipe names none.
+    pub serial: Option<String>,
+    /// The record on the sheet (or the last finished one) has a certificate in the library.
+    pub certified: bool,
 }
 
 impl Bench {

@@ -13,11 +13,14 @@ use crate::ron_format::{clip, clip_middle};
 use crate::tui::context::{input, Context, Key};
 use crate::tui::model::{Model, Overlay, Prompt, View};
 use crate::tui::theme::{boxed, centered, Theme};
+use crate::tui::views::sheet::certify::certificate_path;
 
 /// The list shown: the records (all, or one recipe's), and the chosen one.
 #[derive(Debug, Clone)]
 pub struct Records {
     pub rows: Vec<Listed>,
+    /// Per row: whether its certificate is in the library's `certificates/`.
+    pub certified: Vec<bool>,
     pub selected: usize,
     /// Only the records of this recipe.
     pub of: Option<String>,
@@ -43,7 +46,8 @@ pub fn open(model: &mut Model, ctx: &Context, of: Option<String>) {
     // Newest first: a damaged record (no start known) last.
     let started = |r: &Listed| r.1.as_ref().ok().and_then(|r| r.started.clone()).unwrap_or_default();
     rows.sort_by(|a, b| started(b).cmp(&started(a)).then(b.0.cmp(&a.0)));
-    model.overlay = Overlay::Records(Box::new(Records { rows, selected: 0, of }));
+    let certified = rows.iter().map(|(id, _)| certificate_path(ctx, id).is_file()).collect();
+    model.overlay = Overlay::Records(Box::new(Records { rows, certified, selected: 0, of }));
 }
 
 /// Keys of the list.
@@ -71,7 +75,12 @@ pub fn on_key(model: &mut Model, ctx: &mut Context, key: Key, mut list: Box<Reco
         Key::Char('C') => {
             if let Some(id) = id {
                 model.status = match crate::tui::views::sheet::certify::certify_id(ctx, &id) {
-                    Ok(said) => said,
+                    Ok(said) => {
+                        if let Some(c) = list.certified.get_mut(list.selected) {
+                            *c = true;
+                        }
+                        said
+                    }
                     Err(why) => format!("{id} not certified: {why}"),
                 };
             }
@@ -170,7 +179,10 @@ pub fn draw(theme: &Theme, frame: &mut Frame, area: Rect, list: &Records) {
         let marker = if chosen { "▶ " } else { "  " };
         let text = match r {
             Ok(r) => {
-                let s = summary(id, r);
+                let mut s = summary(id, r);
+                if list.certified.get(k).copied().unwrap_or(false) {
+                    s.state = format!("certified, {}", s.state);
+                }
                 let started = s.started.get(..started_w).unwrap_or(&s.started).replace('T', " ");
                 format!(
                     "{marker}{:<id_w$} {:<recipe_w$} {:>3} {:<started_w$} {}",

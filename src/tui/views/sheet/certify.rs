@@ -19,6 +19,9 @@ pub fn certify(model: &mut Model, ctx: &Context) {
         Ok(said) => said,
         Err(why) => format!("not certified: {why}"),
     };
+    if let Some(doc) = model.doc.as_mut() {
+        super::sync_from_record(doc, ctx);
+    }
     // A premix of the library's blends: say where the work goes on.
     let Some(name) = model.doc.as_ref().map(|d| d.name.clone()) else { return };
     let blends = super::premixes::blends_taking(ctx, &name);
@@ -65,12 +68,18 @@ pub fn certify_id(ctx: &Context, id: &str) -> Result<String, String> {
     }
     let cert = c.certificate(&ctx.catalogue);
     let pdf = c.pdf(&cert, &id);
-    let dir = ctx.library.own_dir(&["certificates"]).map_err(|e| e.to_string())?;
-    let path = dir.join(format!("{id}.txt"));
+    ctx.library.own_dir(&["certificates"]).map_err(|e| e.to_string())?;
+    let path = certificate_path(ctx, &id);
     crate::library::atomic::write(&path, cert.text().as_bytes()).map_err(|e| e.to_string())?;
     crate::library::atomic::write(&path.with_extension("pdf"), &pdf).map_err(|e| e.to_string())?;
     let stop = if cert.stopped_by_analysis() { "STOP - the analysis does not confirm the content; " } else { "" };
     Ok(format!(
         "{stop}certificate of {id} written to certificates/{id}.txt and .pdf in the library, a draft for review"
     ))
+}
+
+/// Where the certificate of record `id` is written: `certificates/ID.txt` in the library
+/// (its PDF beside it).
+pub fn certificate_path(ctx: &Context, id: &str) -> std::path::PathBuf {
+    ctx.library.dir().join("certificates").join(format!("{id}.txt"))
 }

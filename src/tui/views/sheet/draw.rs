@@ -326,8 +326,9 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme, width: usize) -> V
     let Some(rec) = &doc.bench.record else {
         let text = match &doc.bench.last_finished {
             Some(id) => format!(
-                "no fill in progress; the last fill, record {id}, is finished (C certifies it, f lists the \
-                 records); w starts a new fill with the empty cylinder's scale reading"
+                "no fill in progress; the last fill, record {id}, is finished{} (f lists the records); w starts \
+                 a new fill with the empty cylinder's scale reading",
+                if doc.bench.certified { " and certified" } else { ": C certifies it" }
             ),
             None => "no fill record yet: w types the empty cylinder's scale reading".into(),
         };
@@ -386,6 +387,10 @@ fn record_lines(doc: &Document, model: &Model, theme: &Theme, width: usize) -> V
             let style = if rp.on_target { Style::default() } else { theme.fg(Color::Red) };
             lines.extend(wrap_words(&verdict, width).into_iter().map(|l| Line::styled(l, style)));
         }
+        Ok(_) if doc.bench.certified => lines.push(Line::raw(format!(
+            "fill complete and certified: certificates/{}.txt in the library (C writes it again)",
+            rec.id
+        ))),
         Ok(_) => lines.push(Line::raw(format!("fill complete: C certifies it (fillwright certify {})", rec.id))),
         Err(e) => lines.extend(
             wrap_words(&format!("cannot re-plan: {e}"), width)

@@ -101,6 +101,12 @@ pub fn on_key(model: &mut Model, key: Key) {
         Key::Char('r') if steps > 0 => {
             model.overlay = Overlay::Prompt { purpose: Prompt::ActualReading(doc.bench.selected), input: input("") };
         }
+        Key::Char('w') if steps > 0 && doc.bench.record.is_none() && no_serial(doc) => {
+            model.overlay = Overlay::Prompt { purpose: Prompt::CylinderSerial, input: input("") };
+            model.status = "the recipe names no cylinder serial: type this cylinder's (the fill record and the \
+                            certificate name the cylinder by it), then its empty scale reading"
+                .into();
+        }
         Key::Char('w') if steps > 0 => {
             model.overlay = Overlay::Prompt { purpose: Prompt::Weighing, input: input("") };
             model.status = match weighed(doc) {
@@ -145,6 +151,26 @@ pub fn on_key(model: &mut Model, key: Key) {
         }
         _ => {}
     }
+}
+
+/// Whether neither the recipe as saved nor this fill names the cylinder's serial.
+fn no_serial(doc: &Document) -> bool {
+    let saved = doc.opened.as_ref().and_then(|o| o.recipe.cylinder.serial.clone());
+    saved.or_else(|| doc.bench.serial.clone()).is_none_or(|s| s.trim().is_empty())
+}
+
+/// The serial typed for a fill whose recipe names none: kept for the record, then the
+/// empty cylinder's scale reading is asked.
+pub fn on_serial(model: &mut Model, text: &str) {
+    let Some(doc) = model.doc.as_mut() else { return };
+    let serial = text.trim();
+    if serial.is_empty() || serial.chars().any(|c| c.is_control()) {
+        return keep_prompt(model, Prompt::CylinderSerial, text, "type the serial stamped on the cylinder");
+    }
+    doc.bench.serial = Some(serial.to_string());
+    model.overlay = Overlay::Prompt { purpose: Prompt::Weighing, input: input("") };
+    model.status =
+        format!("cylinder {serial}: type the scale reading of the cylinder before the first addition (e.g. 13412.00g)");
 }
 
 /// Write the fill sheet as text (what `fillwright plan` prints, with the stop banner when
@@ -376,6 +402,8 @@ pub fn attach_record(doc: &mut Document, ctx: &Context) {
 pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
     let steps = doc.computed.plan.as_ref().map_or(0, |p| p.steps.len());
     doc.bench.premix_states = (0..steps).map(|k| premixes::premix_state(doc, ctx, k)).collect();
+    let id = doc.bench.record.as_ref().map(|r| r.id.clone()).or_else(|| doc.bench.last_finished.clone());
+    doc.bench.certified = id.is_some_and(|id| certify::certificate_path(ctx, &id).is_file());
     let Some(opened) = &doc.bench.record else {
         doc.bench.progress = None;
         doc.bench.correct(doc.computed.plan.as_ref().ok());
@@ -447,7 +475,13 @@ fn write_record(doc: &mut Document, ctx: &Context, note: &str, change: impl FnOn
                 return Err("save the recipe first (s): the fill record names the revision it fills".into());
             }
             let saved = &opened.recipe;
-            let serial = saved.cylinder.serial.clone().unwrap_or_else(|| "cylinder".into());
+            let serial = saved
+                .cylinder
+                .serial
+                .clone()
+                .filter(|s| !s.trim().is_empty())
+                .or_else(|| doc.bench.serial.clone())
+                .unwrap_or_else(|| "cylinder".into());
             let mut record = Record::start(&doc.name, saved.revision, &canonical::to_text(saved), &serial, &now);
             record.water_capacity = Some(saved.cylinder.water_capacity.clone());
             record.scale_uncertainty = scale_uncertainty_text(ctx.settings.scale_resolution_g);
