@@ -131,6 +131,10 @@ fn number_and_unit<'a>(
     if unit.is_empty() {
         return Err(error(what, text, "has no unit", accepted));
     }
+    // `14681,05g`: a decimal comma, not a unit.
+    if unit.starts_with(',') && unit[1..].starts_with(|c: char| c.is_ascii_digit()) {
+        return Err(error(what, text, "has a decimal comma: write the decimal point (14681.05)", accepted));
+    }
     Ok((value, unit))
 }
 
@@ -463,6 +467,15 @@ impl Shown {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_decimal_comma_is_named_as_such() {
+        for e in
+            [parse_mass("14681,05g").unwrap_err().to_string(), parse_pressure("150,5bar", 1e5).unwrap_err().to_string()]
+        {
+            assert!(e.contains("decimal comma") && e.contains("decimal point"), "{e}");
+        }
+    }
 
     #[test]
     fn pressures_in_every_accepted_unit() {

@@ -1938,6 +1938,7 @@ fn a_step_weighed_from_a_source_without_uncertainty_stays_marked_until_corrected
     typed(&mut model, &mut ctx, 'w', "13390.00g");
     // The analysis asked for is put off (Esc), and the step weighed all the same.
     keys(&mut model, &mut ctx, &[Key::Esc]);
+    assert!(model.status.starts_with("no source typed") && model.status.contains("l types it"), "{}", model.status);
     typed(&mut model, &mut ctx, 'w', "13403.82g");
     assert_eq!(model.doc.as_ref().unwrap().bench.unanalysed, [0]);
     let screen = screen_80(&model, &ctx);

@@ -17,6 +17,11 @@ use crate::tui::views::{editor::parse_source, sheet};
 /// Keys of the line being typed.
 pub fn on_key(model: &mut Model, ctx: &mut Context, key: Key, purpose: Prompt, mut input: Input) {
     match key {
+        Key::Esc if purpose == Prompt::StepSource => {
+            model.status = "no source typed: the step is recorded from its planned composition, which a certificate \
+                            refuses without an uncertainty; l types it before the weighing, x corrects it after"
+                .into()
+        }
         Key::Esc => model.status = "cancelled".into(),
         Key::Enter => on_prompt(model, ctx, purpose, input.value().trim().to_string()),
         k => {

@@ -248,7 +248,9 @@ fn fill_chart(model: &Model, p: &crate::plan::Plan, theme: &Theme, frame: &mut F
         .graph_type(GraphType::Line)
         .style(theme.fg(Color::Cyan))
         .data(&pts)])
-    .block(Block::default().borders(Borders::ALL).title(" The fill: reading against amount "))
+    // One curve, named in the title: no legend box over it.
+    .legend_position(None)
+    .block(Block::default().borders(Borders::ALL).title(format!(" The fill ({}): reading vs amount ", p.model.key())))
     .x_axis(Axis::default().title("mol").bounds([0.0, nmax.max(1e-9)]).labels(["0".to_string(), format!("{nmax:.1}")]))
     .y_axis(
         Axis::default()
