@@ -367,6 +367,43 @@ fn validate(record: GasRecord, _text: &str) -> Result<Gas, (String, String)> {
     Ok(Gas { record, molar_mass_g_per_mol: molar_mass })
 }
 
+/// Pairs that react in a cylinder, with the reason (common practice, no source).
+pub const INCOMPATIBLE: &[(&str, &str, &str)] = &[
+    ("NH3", "HCl", "form solid ammonium chloride"),
+    ("NH3", "Cl2", "form chloramines and explosive nitrogen trichloride"),
+    ("NH3", "CO2", "form solid ammonium carbamate"),
+    ("NH3", "SO2", "form solid ammonium sulfites"),
+    ("NH3", "NO2", "react to ammonium nitrate and nitrite"),
+    ("NO", "O2", "NO is oxidised to NO2: the NO content drifts"),
+    ("NO", "Cl2", "form nitrosyl chloride"),
+    ("H2S", "SO2", "react to sulfur and water"),
+    ("H2S", "Cl2", "react to sulfur and HCl"),
+    ("H2S", "NO2", "react"),
+    ("H2", "Cl2", "explode when exposed to light"),
+    ("C2H2", "Cl2", "react explosively"),
+    ("CO", "Cl2", "form phosgene"),
+    ("C4H6", "O2", "form peroxides and polymerise"),
+    ("H2O", "HCl", "form corrosive hydrochloric acid; HCl is lost to the walls"),
+    ("H2O", "Cl2", "form corrosive acids"),
+    ("H2O", "SO2", "form corrosive sulfurous acid; SO2 is lost to the walls"),
+    ("H2O", "NO2", "form corrosive nitric acid; NO2 is lost"),
+    ("H2O", "H2S", "wet H2S corrodes steel; H2S is lost"),
+];
+
+/// Whether gases `a` and `b` (ids) may share a cylinder: None, or what they do together
+/// (a pair of [`INCOMPATIBLE`], or a flammable gas with an oxidiser).
+pub fn reacts_with(a: (&str, &Hazard), b: (&str, &Hazard)) -> Option<String> {
+    if let Some((_, _, why)) =
+        INCOMPATIBLE.iter().find(|(x, y, _)| (*x == a.0 && *y == b.0) || (*x == b.0 && *y == a.0))
+    {
+        return Some(format!("{} with {}: {why}", a.0, b.0));
+    }
+    let burns = |h: &Hazard| h.lfl_percent.is_some();
+    let feeds = |h: &Hazard| h.oxidising_c.is_some_and(|c| c > 0.0);
+    ((burns(a.1) && feeds(b.1)) || (burns(b.1) && feeds(a.1)))
+        .then(|| format!("{} with {}: a flammable gas with an oxidiser", a.0, b.0))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -482,41 +519,4 @@ mod tests {
         assert_eq!(e.line, 2);
         assert!(e.message.contains("critical_pressure_pa"), "{e}");
     }
-}
-
-/// Pairs that react in a cylinder, with the reason (common practice, no source).
-pub const INCOMPATIBLE: &[(&str, &str, &str)] = &[
-    ("NH3", "HCl", "form solid ammonium chloride"),
-    ("NH3", "Cl2", "form chloramines and explosive nitrogen trichloride"),
-    ("NH3", "CO2", "form solid ammonium carbamate"),
-    ("NH3", "SO2", "form solid ammonium sulfites"),
-    ("NH3", "NO2", "react to ammonium nitrate and nitrite"),
-    ("NO", "O2", "NO is oxidised to NO2: the NO content drifts"),
-    ("NO", "Cl2", "form nitrosyl chloride"),
-    ("H2S", "SO2", "react to sulfur and water"),
-    ("H2S", "Cl2", "react to sulfur and HCl"),
-    ("H2S", "NO2", "react"),
-    ("H2", "Cl2", "explode when exposed to light"),
-    ("C2H2", "Cl2", "react explosively"),
-    ("CO", "Cl2", "form phosgene"),
-    ("C4H6", "O2", "form peroxides and polymerise"),
-    ("H2O", "HCl", "form corrosive hydrochloric acid; HCl is lost to the walls"),
-    ("H2O", "Cl2", "form corrosive acids"),
-    ("H2O", "SO2", "form corrosive sulfurous acid; SO2 is lost to the walls"),
-    ("H2O", "NO2", "form corrosive nitric acid; NO2 is lost"),
-    ("H2O", "H2S", "wet H2S corrodes steel; H2S is lost"),
-];
-
-/// Whether gases `a` and `b` (ids) may share a cylinder: None, or what they do together
-/// (a pair of [`INCOMPATIBLE`], or a flammable gas with an oxidiser).
-pub fn reacts_with(a: (&str, &Hazard), b: (&str, &Hazard)) -> Option<String> {
-    if let Some((_, _, why)) =
-        INCOMPATIBLE.iter().find(|(x, y, _)| (*x == a.0 && *y == b.0) || (*x == b.0 && *y == a.0))
-    {
-        return Some(format!("{} with {}: {why}", a.0, b.0));
-    }
-    let burns = |h: &Hazard| h.lfl_percent.is_some();
-    let feeds = |h: &Hazard| h.oxidising_c.is_some_and(|c| c > 0.0);
-    ((burns(a.1) && feeds(b.1)) || (burns(b.1) && feeds(a.1)))
-        .then(|| format!("{} with {}: a flammable gas with an oxidiser", a.0, b.0))
 }
