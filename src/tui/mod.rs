@@ -190,12 +190,15 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     keep_drafts_on_panic();
     let mut draft_on_disk: Option<(PathBuf, String)> = None;
     let result = (|| -> Result<(), String> {
+        // Drawn when something happened (a key, a resize), not while the screen is idle.
+        let mut changed = true;
         loop {
-            {
+            if std::mem::take(&mut changed) {
                 let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
                 terminal.draw(|f| view::view(&model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
             }
             if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
+                changed = true;
                 let msg = match event::read().map_err(|e| e.to_string())? {
                     Event::Key(k) => key_of(&k).map(Msg::Key),
                     // A resize needs no message: the next draw uses the new size.
