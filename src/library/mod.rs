@@ -359,9 +359,11 @@ impl Library {
     /// Every recipe with its summary; a file that does not parse is listed with its error,
     /// and an entry that is not a recipe file with why it was skipped.
     pub fn list(&self) -> Result<Vec<Entry>, LibraryError> {
+        use rayon::prelude::*;
         let (names, skipped) = self.scan()?;
+        // Read and parsed on every core (the order is kept, and sorted below anyway).
         let mut entries: Vec<Entry> = names
-            .into_iter()
+            .into_par_iter()
             .map(|name| {
                 let path = self.dir.join(format!("{name}.ron"));
                 let summary = self.open(&name).map(|o| Summary::of(&o)).map_err(|e| e.to_string());
