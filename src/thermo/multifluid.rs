@@ -39,10 +39,8 @@ use super::dual::D2;
 use crate::gas::Catalogue;
 use crate::units::R;
 
-const DATA: &str = include_str!("multifluid.ron");
-
 /// One term of a residual Helmholtz energy, in the parameters of the fluid files.
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Deserialize)]
 enum Term {
     /// n δ^d τ^t, times exp(−δ^l) where l > 0.
     Power(f64, f64, f64, f64),
@@ -59,65 +57,71 @@ enum Term {
     GergExp(f64, f64, f64, f64, f64, f64, f64),
 }
 
-#[derive(Debug, Deserialize)]
+// The data as compiled in (`multifluid_data.rs`, made from `multifluid.ron` by the test
+// `the_compiled_data_is_the_data_file`): a process needs no parsing of the 97 KB file.
+#[derive(Debug)]
 struct FluidData {
-    id: String,
-    file: String,
-    source: String,
+    id: &'static str,
+    file: &'static str,
+    source: &'static str,
     t_r: f64,
     rho_r: f64,
-    terms: Vec<Term>,
+    terms: &'static [Term],
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug)]
 struct PairData {
-    a: String,
-    b: String,
+    a: &'static str,
+    b: &'static str,
     beta_t: f64,
     gamma_t: f64,
     beta_v: f64,
     gamma_v: f64,
     f: f64,
-    departure: Option<String>,
+    departure: Option<&'static str>,
     #[allow(dead_code)] // the citation, for the reader of the data file (checked by the tests)
-    source: String,
+    source: &'static str,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug)]
 struct DepartureData {
-    name: String,
+    name: &'static str,
     #[allow(dead_code)] // carried for the reader of the data file
-    source: String,
-    terms: Vec<Term>,
+    source: &'static str,
+    terms: &'static [Term],
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug)]
 struct Data {
-    fluids: Vec<FluidData>,
-    pairs: Vec<PairData>,
-    departures: Vec<DepartureData>,
+    fluids: &'static [FluidData],
+    pairs: &'static [PairData],
+    departures: &'static [DepartureData],
+}
+
+mod compiled {
+    use super::Term::*;
+    use super::{Data, DepartureData, FluidData, PairData};
+    include!("multifluid_data.rs");
 }
 
 fn data() -> &'static Data {
-    static D: OnceLock<Data> = OnceLock::new();
-    // Checked by the test suite; a parse failure is a build defect.
-    D.get_or_init(|| ron::from_str(DATA).expect("multifluid.ron is valid"))
+    &compiled::DATA
 }
 
 fn fluid_index() -> &'static HashMap<&'static str, &'static FluidData> {
     static I: OnceLock<HashMap<&'static str, &'static FluidData>> = OnceLock::new();
-    I.get_or_init(|| data().fluids.iter().map(|f| (f.id.as_str(), f)).collect())
+    I.get_or_init(|| data().fluids.iter().map(|f| (f.id, f)).collect())
 }
 
 /// The published pairs keyed by their ids in the file's order.
 fn pair_index() -> &'static HashMap<(&'static str, &'static str), &'static PairData> {
     static I: OnceLock<HashMap<(&'static str, &'static str), &'static PairData>> = OnceLock::new();
-    I.get_or_init(|| data().pairs.iter().map(|p| ((p.a.as_str(), p.b.as_str()), p)).collect())
+    I.get_or_init(|| data().pairs.iter().map(|p| ((p.a, p.b), p)).collect())
 }
 
 /// The citation of the reference equation of state of a gas id, if the model has one.
 pub fn reference_equation(id: &str) -> Option<(&'static str, &'static str)> {
-    fluid_index().get(id).map(|f| (f.file.as_str(), f.source.as_str()))
+    fluid_index().get(id).map(|f| (f.file, f.source))
 }
 
 /// Peng–Robinson's critical compressibility factor.
@@ -189,7 +193,7 @@ impl Mixture {
         for (&g, id) in gases.iter().zip(&ids) {
             match fluid_index().get(id.as_str()) {
                 Some(f) => {
-                    pure.push(Pure::Reference(&f.terms));
+                    pure.push(Pure::Reference(f.terms));
                     t_c.push(f.t_r);
                     rho_c.push(f.rho_r);
                 }
@@ -221,9 +225,9 @@ impl Mixture {
                         beta_v: if swapped { 1.0 / p.beta_v } else { p.beta_v },
                         gamma_v: p.gamma_v,
                         f: p.f,
-                        departure: p.departure.as_ref().and_then(|name| {
-                            data().departures.iter().find(|d| &d.name == name).map(|d| d.terms.as_slice())
-                        }),
+                        departure: p
+                            .departure
+                            .and_then(|name| data().departures.iter().find(|d| d.name == name).map(|d| d.terms)),
                         t_ij,
                         v_ij,
                     },
@@ -686,24 +690,130 @@ fn pr_alphar(kappa: f64, delta: D2, tau: D2) -> D2 {
 
 #[cfg(test)]
 mod tests {
+
+    /// The data file as read, to make and check the compiled-in data.
+    mod file {
+        use serde::Deserialize;
+
+        #[derive(Deserialize)]
+        pub struct Fluid {
+            pub id: String,
+            pub file: String,
+            pub source: String,
+            pub t_r: f64,
+            pub rho_r: f64,
+            pub terms: Vec<super::super::Term>,
+        }
+        #[derive(Deserialize)]
+        pub struct Pair {
+            pub a: String,
+            pub b: String,
+            pub beta_t: f64,
+            pub gamma_t: f64,
+            pub beta_v: f64,
+            pub gamma_v: f64,
+            pub f: f64,
+            pub departure: Option<String>,
+            pub source: String,
+        }
+        #[derive(Deserialize)]
+        pub struct Departure {
+            pub name: String,
+            pub source: String,
+            pub terms: Vec<super::super::Term>,
+        }
+        #[derive(Deserialize)]
+        pub struct Data {
+            pub fluids: Vec<Fluid>,
+            pub pairs: Vec<Pair>,
+            pub departures: Vec<Departure>,
+        }
+    }
+
+    /// `multifluid_data.rs` as made from `multifluid.ron` (floats in Rust's shortest form
+    /// that reads back to the same number).
+    fn compiled_text() -> String {
+        use std::fmt::Write as _;
+        let d: file::Data = ron::from_str(include_str!("multifluid.ron")).expect("multifluid.ron is valid");
+        let terms = |t: &[Term]| t.iter().map(|t| format!("{t:?}")).collect::<Vec<_>>().join(", ");
+        let mut o = String::new();
+        o.push_str("// Made from multifluid.ron by `FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data`;\n");
+        o.push_str("// do not edit (the test fails when this file and the data file differ).\n");
+        o.push_str("pub(super) static DATA: Data = Data {\n    fluids: &[\n");
+        for f in &d.fluids {
+            let _ = writeln!(
+                o,
+                "        FluidData {{ id: {:?}, file: {:?}, source: {:?}, t_r: {:?}, rho_r: {:?}, terms: &[{}] }},",
+                f.id,
+                f.file,
+                f.source,
+                f.t_r,
+                f.rho_r,
+                terms(&f.terms)
+            );
+        }
+        o.push_str("    ],\n    pairs: &[\n");
+        for p in &d.pairs {
+            let _ = writeln!(
+                o,
+                "        PairData {{ a: {:?}, b: {:?}, beta_t: {:?}, gamma_t: {:?}, beta_v: {:?}, gamma_v: {:?}, f: {:?}, \
+                 departure: {:?}, source: {:?} }},",
+                p.a, p.b, p.beta_t, p.gamma_t, p.beta_v, p.gamma_v, p.f, p.departure.as_deref(), p.source
+            );
+        }
+        o.push_str("    ],\n    departures: &[\n");
+        for x in &d.departures {
+            let _ = writeln!(
+                o,
+                "        DepartureData {{ name: {:?}, source: {:?}, terms: &[{}] }},",
+                x.name,
+                x.source,
+                terms(&x.terms)
+            );
+        }
+        o.push_str("    ],\n};\n");
+        o
+    }
+
+    #[test]
+    fn the_compiled_data_is_the_data_file() {
+        let made = compiled_text();
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/src/thermo/multifluid_data.rs");
+        if std::env::var_os("FILLWRIGHT_REGENERATE").is_some() {
+            std::fs::write(path, &made).unwrap();
+        }
+        let have = std::fs::read_to_string(path).unwrap_or_default();
+        assert!(have == made, "src/thermo/multifluid_data.rs is not multifluid.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data");
+        // And what is compiled in is the file's numbers, exactly.
+        let d: file::Data = ron::from_str(include_str!("multifluid.ron")).unwrap();
+        assert_eq!(d.fluids.len(), data().fluids.len());
+        for (a, b) in d.fluids.iter().zip(data().fluids) {
+            assert!(a.id == b.id && a.t_r == b.t_r && a.rho_r == b.rho_r && a.terms.as_slice() == b.terms, "{}", a.id);
+        }
+        for (a, b) in d.pairs.iter().zip(data().pairs) {
+            assert!(a.a == b.a && a.b == b.b && a.beta_t == b.beta_t && a.gamma_v == b.gamma_v && a.f == b.f);
+            assert_eq!(a.departure.as_deref(), b.departure);
+        }
+    }
+
     use super::*;
 
     #[test]
     fn the_data_file_reads_and_names_a_source_for_everything() {
         let d = data();
         assert!(d.fluids.len() >= 30);
-        for f in &d.fluids {
+        for f in d.fluids {
             assert!(!f.source.is_empty() && f.t_r > 0.0 && f.rho_r > 0.0 && !f.terms.is_empty(), "{}", f.id);
         }
-        for p in &d.pairs {
+        for p in d.pairs {
             assert!(!p.source.is_empty() && p.beta_t > 0.0 && p.beta_v > 0.0, "{}-{}", p.a, p.b);
-            if let Some(name) = &p.departure {
-                assert!(d.departures.iter().any(|x| &x.name == name), "{name}");
+            if let Some(name) = p.departure {
+                assert!(d.departures.iter().any(|x| x.name == name), "{name}");
             }
         }
         let c = Catalogue::built_in();
-        for f in &d.fluids {
-            assert!(c.index_of(&f.id).is_some(), "{} is not a catalogue id", f.id);
+        for f in d.fluids {
+            assert!(c.index_of(f.id).is_some(), "{} is not a catalogue id", f.id);
         }
     }
 

@@ -188,39 +188,7 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
 
     let mut terminal = ratatui::try_init().map_err(|e| format!("cannot open the terminal: {e}"))?;
     keep_drafts_on_panic();
-    let mut draft_on_disk: Option<(PathBuf, String)> = None;
-    let result = (|| -> Result<(), String> {
-        // Drawn when something happened (a key, a resize), not while the screen is idle.
-        let mut changed = true;
-        loop {
-            if std::mem::take(&mut changed) {
-                let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
-                terminal.draw(|f| view::view(&model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
-            }
-            if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
-                changed = true;
-                let msg = match event::read().map_err(|e| e.to_string())? {
-                    Event::Key(k) => key_of(&k).map(Msg::Key),
-                    // A resize needs no message: the next draw uses the new size.
-                    _ => None,
-                };
-                if let Some(msg) = msg {
-                    update::update(&mut model, msg, &mut ctx);
-                    remember_draft(&mut model, &ctx, &mut draft_on_disk);
-                }
-                if model.quit {
-                    // Quitting was asked for (with unsaved edits confirmed away): no draft.
-                    if let Some((path, _)) = draft_on_disk.take() {
-                        let _ = std::fs::remove_file(path);
-                    }
-                    if let Ok(mut guard) = PENDING_DRAFT.lock() {
-                        *guard = None;
-                    }
-                    return Ok(());
-                }
-            }
-        }
-    })();
+    let result = event_loop(&mut terminal, &mut model, &mut ctx);
     // A lost terminal (the SSH session dropped) ends the loop with an error: keep the edits.
     if result.is_err() {
         write_pending_draft();
@@ -228,6 +196,42 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     drop(terminal);
     restore_terminal();
     result
+}
+
+/// Draw, read a key, update, keep the draft: until the user quits (Ok) or the terminal is
+/// lost (Err).
+fn event_loop(terminal: &mut ratatui::DefaultTerminal, model: &mut Model, ctx: &mut Context) -> Result<(), String> {
+    let mut draft_on_disk: Option<(PathBuf, String)> = None;
+    // Drawn when something happened (a key, a resize), not while the screen is idle.
+    let mut changed = true;
+    loop {
+        if std::mem::take(&mut changed) {
+            let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+            terminal.draw(|f| view::view(model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
+        }
+        if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
+            changed = true;
+            let msg = match event::read().map_err(|e| e.to_string())? {
+                Event::Key(k) => key_of(&k).map(Msg::Key),
+                // A resize needs no message: the next draw uses the new size.
+                _ => None,
+            };
+            if let Some(msg) = msg {
+                update::update(model, msg, ctx);
+                remember_draft(model, ctx, &mut draft_on_disk);
+            }
+            if model.quit {
+                // Quitting was asked for (with unsaved edits confirmed away): no draft.
+                if let Some((path, _)) = draft_on_disk.take() {
+                    let _ = std::fs::remove_file(path);
+                }
+                if let Ok(mut guard) = PENDING_DRAFT.lock() {
+                    *guard = None;
+                }
+                return Ok(());
+            }
+        }
+    }
 }
 
 /// Signals are handled on their own thread: when the SSH session drops, the terminal
