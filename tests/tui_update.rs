@@ -1999,3 +1999,23 @@ fn a_reading_typed_as_the_sheet_shows_it_does_not_re_plan_the_rest() {
     let live = &model.doc.as_ref().unwrap().bench.live;
     assert!(live.iter().any(|l| !l.finished && l.moved()), "re-planned after a real deviation");
 }
+
+#[test]
+fn a_gas_that_moves_the_plan_to_another_model_says_so() {
+    let (mut model, mut ctx, _dir) = setup("model-moves");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    assert_eq!(model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().model.key(), "gerg");
+    // SO2 is not a GERG-2008 gas: the default becomes the multi-fluid model, and the status says so.
+    keys(&mut model, &mut ctx, &[Key::Char('a')]);
+    text(&mut model, &mut ctx, "SO2");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    text(&mut model, &mut ctx, "100ppm");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let now = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().model;
+    assert_ne!(now.key(), "gerg");
+    assert!(
+        model.status.starts_with(&format!("recomputed under {} now, not GERG-2008", now.title())),
+        "{}",
+        model.status
+    );
+}

@@ -161,7 +161,9 @@ pub(crate) fn open_document(
         computed,
         bench: Bench::default(),
         recovered_draft: None,
+        last_model: None,
     };
+    doc.last_model = doc.computed.plan.as_ref().ok().map(|p| p.model);
     fit_bench(&mut doc);
     super::views::sheet::attach_record(&mut doc, ctx);
     doc

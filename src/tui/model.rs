@@ -425,6 +425,9 @@ pub struct Document {
     pub bench: Bench,
     /// The draft these edits were recovered from (removed once they are saved or dropped).
     pub recovered_draft: Option<std::path::PathBuf>,
+    /// The model of the last plan made (an edit that moves the plan to another model says
+    /// so, also after edits that left it without a plan for a while).
+    pub last_model: Option<Eos>,
 }
 
 /// A recipe message in the words of the screen: the file's keys become the editor's labels

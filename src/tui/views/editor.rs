@@ -337,13 +337,23 @@ fn on_field_typing(doc: &mut Document, key: Key, ctx: &Context, status: &mut Str
                 }
             }
             doc.editing = None;
+            let model_before = doc.computed.plan.as_ref().ok().map(|p| p.model).or(doc.last_model);
             edit(doc, ctx, |r| set_field(r, field, &text));
+            if let Ok(p) = &doc.computed.plan {
+                doc.last_model = Some(p.model);
+            }
             let doubt = match (&doc.computed.order, field) {
                 (Ok(o), Field::Tolerance(_)) => crate::recipe::tolerance_doubts(o, &ctx.catalogue).into_iter().next(),
                 _ => None,
             };
             *status = match (&doc.computed.plan, doubt) {
                 (Ok(_), Some(doubt)) => doubt,
+                // A gas the model did not cover moves the plan to another model: said.
+                (Ok(p), None) if model_before.is_some_and(|m| m != p.model) => format!(
+                    "recomputed under {} now, not {} (the default for these gases; the model line sets one)",
+                    p.model.title(),
+                    model_before.map_or("", |m| m.title())
+                ),
                 (Ok(_), None) => "recomputed".into(),
                 (Err(e), _) => format!("not plannable yet: {}", first_line(e)),
             };
