@@ -2019,3 +2019,22 @@ fn a_gas_that_moves_the_plan_to_another_model_says_so() {
         model.status
     );
 }
+
+#[test]
+fn a_reading_typed_mid_step_is_not_judged_as_the_steps_end_once_it_is_weighed() {
+    let (mut model, mut ctx, _dir) = setup("mid-step");
+    open(&mut model, &mut ctx, "flue-gas-span");
+    weigh(&mut model, &mut ctx, "13412.000g");
+    // Half-way through step 1 a reading is typed: far from the stop reading, said so.
+    keys(&mut model, &mut ctx, &[Key::Char('r')]);
+    text(&mut model, &mut ctx, "0.03barg");
+    keys(&mut model, &mut ctx, &[Key::Enter]);
+    let notes = |model: &Model| {
+        fillwright::tui::views::sheet::reading_notes(model.doc.as_ref().unwrap(), &model.limits, &model.shown, 0)
+    };
+    assert!(!notes(&model).is_empty());
+    // Once the step is weighed, the weighing judges it.
+    let reading = live_scale(&model, 0);
+    weigh(&mut model, &mut ctx, &format!("{reading:.3}g"));
+    assert!(notes(&model).is_empty(), "{:?}", notes(&model));
+}

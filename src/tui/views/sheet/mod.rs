@@ -282,6 +282,11 @@ pub fn temperature_note(t_k: f64, limits: &BenchLimits, d: &Shown) -> Option<(Se
 pub fn reading_notes(doc: &Document, limits: &BenchLimits, d: &Shown, step: usize) -> Vec<(Severity, String)> {
     let mut notes = Vec::new();
     let b = &doc.bench;
+    // A weighed step is judged by its weighing: a reading that disagrees with it is the
+    // record's cross-check, not a reading to stop at.
+    if b.live.get(step).is_some_and(|l| l.finished) {
+        return notes;
+    }
     let (Ok(plan), Some(Some(actual)), Some(s)) = (&doc.computed.plan, b.actual_pa.get(step), plan_step(doc, step))
     else {
         return notes;
