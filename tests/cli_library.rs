@@ -160,7 +160,7 @@ fn list_history_and_records_give_csv_tables() {
     assert!(err(&o).contains("csv is for the list of revisions"), "{}", err(&o));
     let o = run(&config, &["records", "--format", "csv"]);
     assert!(o.status.success(), "{}", err(&o));
-    assert_eq!(out(&o), "id,recipe,revision,cylinder,started,finished,state,error\n");
+    assert_eq!(out(&o), "id,recipe,revision,cylinder,started,finished,state,error,certified\n");
     let _ = std::fs::remove_dir_all(&config);
 }
 

@@ -176,6 +176,17 @@ fn certify_in_the_library_verifies_the_recipe_and_judges_the_targets() {
     // `records` and `history` list it beside the recipe's revisions.
     let o = run(&config, &["records", "flue-gas-span"]);
     assert!(out(&o).contains("FC-10-2291-20261202") && out(&o).contains("finished"), "{}", out(&o));
+    assert!(!out(&o).contains("certified"), "{}", out(&o));
+    // With its certificate in the library's certificates/ (as C on the screen writes it), it
+    // is listed as certified.
+    let lib = config.join("library");
+    std::fs::create_dir_all(lib.join("certificates")).unwrap();
+    std::fs::write(lib.join("certificates/FC-10-2291-20261202.txt"), text.as_bytes()).unwrap();
+    let o = run(&config, &["records", "flue-gas-span"]);
+    assert!(out(&o).contains("certified, finished"), "{}", out(&o));
+    let o = run(&config, &["records", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["records"][0]["certified"], true);
     let o = run(&config, &["history", "flue-gas-span"]);
     assert!(out(&o).contains("filled: record FC-10-2291-20261202"), "{}", out(&o));
 }

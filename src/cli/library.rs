@@ -184,7 +184,9 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     if !records.is_empty() {
         outln!();
         outln!("fill records of {}:", args.name);
-        out!("{}", crate::print::records::text(&records));
+        let certificates = lib.dir().join("certificates");
+        let certified = |id: &str| certificates.join(format!("{id}.txt")).is_file();
+        out!("{}", crate::print::records::text(&records, &certified));
     }
     Ok(())
 }

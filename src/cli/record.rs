@@ -164,10 +164,12 @@ pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
             );
         }
     }
+    let certificates = lib.dir().join("certificates");
+    let certified = |id: &str| certificates.join(format!("{id}.txt")).is_file();
     match args.format {
-        Format::Json => print_json(&listing::json(&shown)),
-        Format::Csv => out!("{}", listing::csv(&shown)),
-        Format::Text => out!("{}", listing::text(&shown)),
+        Format::Json => print_json(&listing::json(&shown, &certified)),
+        Format::Csv => out!("{}", listing::csv(&shown, &certified)),
+        Format::Text => out!("{}", listing::text(&shown, &certified)),
     }
     Ok(())
 }

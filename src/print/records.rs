@@ -10,6 +10,10 @@ use crate::units::count;
 /// A record as listed: its id, or why its file could not be read.
 pub type Listed = (String, Result<Record, String>);
 
+/// Whether a record id has its certificate in the library's `certificates/` (written by
+/// `C` on the screen).
+pub type Certified<'a> = &'a dyn Fn(&str) -> bool;
+
 /// One line of the records list.
 pub struct Summary {
     pub id: String,
@@ -43,15 +47,16 @@ pub fn summary(id: &str, r: &Record) -> Summary {
 }
 
 /// The list as JSON: `{"records": [{"id", "recipe", "revision", "cylinder", "started",
-/// "finished", "additions", "weighings"} | {"id", "error"}]}`.
-pub fn json(shown: &[&Listed]) -> Value {
+/// "finished", "certified", "additions", "weighings"} | {"id", "error"}]}`.
+pub fn json(shown: &[&Listed], certified: Certified) -> Value {
     let records: Vec<Value> = shown
         .iter()
         .map(|(id, r)| match r {
             Ok(r) => {
                 let s = summary(id, r);
                 json!({"id": s.id, "recipe": s.recipe, "revision": s.revision, "cylinder": s.cylinder,
-                       "started": s.started, "finished": r.finished, "additions": r.additions.len(),
+                       "started": s.started, "finished": r.finished, "certified": certified(id),
+                       "additions": r.additions.len(),
                        "weighings": r.weighings.len()})
             }
             Err(e) => json!({"id": id, "error": e}),
@@ -61,9 +66,9 @@ pub fn json(shown: &[&Listed]) -> Value {
 }
 
 /// The list as CSV (RFC 4180), one row per record, a damaged one with its error.
-pub fn csv(shown: &[&Listed]) -> String {
+pub fn csv(shown: &[&Listed], certified: Certified) -> String {
     let row = |cells: &[&str]| csv_row(cells);
-    let mut out = row(&["id", "recipe", "revision", "cylinder", "started", "finished", "state", "error"]);
+    let mut out = row(&["id", "recipe", "revision", "cylinder", "started", "finished", "state", "error", "certified"]);
     for (id, r) in shown {
         match r {
             Ok(r) => {
@@ -78,9 +83,10 @@ pub fn csv(shown: &[&Listed]) -> String {
                     &finished,
                     &s.state,
                     "",
+                    if certified(id) { "yes" } else { "no" },
                 ]);
             }
-            Err(e) => out += &row(&[id.as_str(), "", "", "", "", "", "", e]),
+            Err(e) => out += &row(&[id.as_str(), "", "", "", "", "", "", e, ""]),
         }
     }
     out
@@ -88,7 +94,7 @@ pub fn csv(shown: &[&Listed]) -> String {
 
 /// The list as text lines of at most 80 columns: each record id whole (it is what
 /// `certify` is given), the start shown as its date, the recipe and state cut to fit.
-pub fn text(shown: &[&Listed]) -> String {
+pub fn text(shown: &[&Listed], certified: Certified) -> String {
     let mut out = String::new();
     if shown.is_empty() {
         put!(out, "(no fill records)");
@@ -102,7 +108,10 @@ pub fn text(shown: &[&Listed]) -> String {
     for (id, r) in shown {
         match r {
             Ok(r) => {
-                let s = summary(id, r);
+                let mut s = summary(id, r);
+                if certified(id) {
+                    s.state = format!("certified, {}", s.state);
+                }
                 let date = s.started.get(..10).unwrap_or(&s.started);
                 put!(
                     out,
