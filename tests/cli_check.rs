@@ -239,3 +239,11 @@ fn a_folder_checked_on_every_core_gives_what_one_core_gives_in_the_same_order() 
     assert_eq!(text.matches("Cautions:").count(), 1);
     assert!(text.trim_end().rfind("Cautions:").unwrap() > text.find("NOT SCREENED").unwrap(), "{text}");
 }
+
+#[test]
+fn refused_arguments_leave_no_half_written_report() {
+    let o = run(&["check", "flue-gas-span", "--working-pressure", "12xyz", "--format", "json"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(o.stdout.is_empty(), "{}", String::from_utf8_lossy(&o.stdout));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("--working-pressure"));
+}

@@ -269,3 +269,26 @@ fn gases_that_burn_or_react_together_are_never_put_in_one_premix() {
         assert!(p.premixes.iter().all(|x| x.also.is_empty() && x.why.is_none()), "{a} with {b}");
     }
 }
+
+#[test]
+fn no_premix_of_several_gases_where_another_source_brings_one_of_them() {
+    // CO also comes in the nitrogen's analysis: the premix's ratio would not be what is added.
+    let c = Catalogue::built_in();
+    let text = r#"Recipe(format: 1, name: "trace-blend", order: "LAB-7781", components: [
+        (gas: "CO", amount: "400ppm"), (gas: "SO2", amount: "100ppm"), (gas: "N2", amount: "balance")],
+        cylinder: (water_capacity: "10L", working_pressure: "200bar", test_pressure: "300bar", serial: "QX-1"),
+        fill: Pressure("150bar"),
+        sources: [Pure("CO"), Pure("SO2"), Premix(name: "N2 with CO", mix: "CO=5ppm,N2=balance")])"#;
+    // Without the CO in the nitrogen, the premix of both is proposed (the guard is what stops it).
+    let plain = Recipe::load(
+        &text.replace(r#"Premix(name: "N2 with CO", mix: "CO=5ppm,N2=balance")"#, r#"Pure("N2")"#),
+        "t",
+        &c,
+    )
+    .unwrap();
+    let p = plan::plan(&plain, &c, &PlanOptions { model: None, ..options(0.1, 0.1) }).unwrap();
+    assert!(p.premixes.iter().any(|x| !x.also.is_empty()));
+    let order = Recipe::load(text, "t", &c).unwrap();
+    let p = plan::plan(&order, &c, &PlanOptions { model: None, ..options(0.1, 0.1) }).unwrap();
+    assert!(p.premixes.iter().all(|x| x.also.is_empty()), "no premix of both");
+}

@@ -69,7 +69,9 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
     let names = names(args)?;
     let mut stream = report::Stream::new(format, &conditions, &settings.shown);
     let mut tally = Tally::default();
-    out!("{}", stream.begin());
+    // The report begins once the first recipes are screened: arguments refused (a bad
+    // --mix, --working-pressure or --before-fill) leave no half-written report.
+    let mut begun = false;
     for chunk in names.chunks(CHUNK) {
         let screened: Vec<Screened> = chunk
             .par_iter()
@@ -79,6 +81,9 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
                 Ok(screen(&named, args.common.model, &settings, &conditions, &catalogue))
             })
             .collect::<Result<_, Failure>>()?;
+        if !std::mem::replace(&mut begun, true) {
+            out!("{}", stream.begin());
+        }
         for s in &screened {
             tally.add(s);
             out!("{}", stream.item(s));

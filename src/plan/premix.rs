@@ -211,6 +211,16 @@ impl Setting<'_> {
             .filter_map(|p| Some((p.step, p.gas, plan.components.iter().find(|c| c.gas == p.gas)?.mole_fraction)))
             .collect();
         members.sort_by(|a, b| b.2.total_cmp(&a.2));
+        // The premix's ratio is the blend's: only where nothing else brings these gases (no
+        // heel, no other source carrying one of them), so that it is also the ratio added.
+        if matches!(self.order.before, Before::Heel { .. }) {
+            return None;
+        }
+        let carried_elsewhere =
+            |gas: usize| self.order.sources.iter().filter(|s| s.composition.gases.contains(&gas)).count() > 1;
+        if members.iter().any(|m| carried_elsewhere(m.1)) {
+            return None;
+        }
         let balance_gas = balance_gas_of(self.order);
         let react = |a: usize, b: usize| {
             let (ga, gb) = (catalogue.gas(a), catalogue.gas(b));
@@ -265,6 +275,8 @@ impl Setting<'_> {
                 .join("-"),
             id(balance_gas)
         );
+        // Many gases make a name the library refuses: then no premix of them all.
+        crate::library::check_name(&recipe_name).ok()?;
         let fill_pressure_pa = plan.totals.pressure_pa.min(self.order.working_pressure_pa);
         let order = self.combined_order(&name, &gases, &x, fill_pressure_pa);
         let planned = (self.planner)(&order, catalogue, &self.options, MAX_STAGES).ok()?;
@@ -563,7 +575,9 @@ fn relative_tolerance(written: &str, x: f64) -> Option<String> {
         return Some(t.to_string());
     }
     let rel = crate::recipe::parse_tolerance(t, Some(x)).ok()? / x * 100.0;
-    (rel.is_finite() && rel > 0.0).then(|| format!("{}%rel", crate::units::Sig(rel, 2)))
+    let text = format!("{}%rel", crate::units::Sig(rel, 2));
+    // A relative tolerance must read back below 100 %rel: a wider one is left out.
+    (rel.is_finite() && rel > 0.0 && crate::recipe::parse_tolerance(&text, Some(x)).is_ok()).then_some(text)
 }
 
 /// The blend with the proposal's last stage as the source of its gases in place of the

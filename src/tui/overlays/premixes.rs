@@ -130,7 +130,7 @@ pub fn draw(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect, selecte
     let rows = usize::from(area.height.saturating_sub(4)).max(1);
     let scroll = scroll.min(text.len().saturating_sub(rows));
     if text.len() > rows {
-        let last = (scroll + rows - 1).min(text.len());
+        let last = (scroll + rows).min(text.len());
         lines[1] = Line::styled(
             format!("   ↑↓ PgUp PgDn scroll: lines {}-{last} of {} · Esc close", scroll + 1, text.len()),
             theme.dim(),

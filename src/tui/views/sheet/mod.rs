@@ -811,8 +811,8 @@ fn ask_for_analysis(model: &mut Model, ctx: &Context) {
     if let Some((id, recipe)) = made.as_ref().and_then(|(own, r)| own.first().map(|id| (id.clone(), r.clone()))) {
         model.overlay = Overlay::Prompt { purpose: Prompt::StepSource, input: input(&format!("record:{id}")) };
         model.status = format!(
-            "step {} takes premix {name}: its own fill record:{id} ({recipe}) gives its certified composition; \
-             Enter takes it, or type its analysis",
+            "step {} takes premix {name}: its own fill record:{id} ({recipe}) gives its composition with its \
+             uncertainty; check that the cylinder connected is that record's, then Enter takes it, or type its analysis",
             step + 1
         );
         return;
