@@ -205,9 +205,7 @@ fn a_file_changed_on_disk_is_not_overwritten() {
     assert!(matches!(model.overlay, Overlay::Conflict));
     assert_eq!(std::fs::read_to_string(&path).unwrap(), other);
     // Save under another name instead.
-    keys(&mut model, &mut ctx, &[Key::Char('a')]);
-    text(&mut model, &mut ctx, "pipeline-mine");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'a', "pipeline-mine");
     assert!(model.status.starts_with("saved as pipeline-mine"), "{}", model.status);
     assert!(dir.join("library/pipeline-mine.ron").is_file());
     assert_eq!(std::fs::read_to_string(&path).unwrap(), other);
@@ -359,9 +357,7 @@ fn history_shows_what_changed_between_two_revisions() {
 #[test]
 fn a_new_recipe_is_saved_as_revision_1_and_bad_names_are_refused() {
     let (mut model, mut ctx, dir) = setup("new");
-    keys(&mut model, &mut ctx, &[Key::Char('n')]);
-    text(&mut model, &mut ctx, "../escape");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'n', "../escape");
     assert!(model.status.contains("path separator"), "{}", model.status);
     assert!(model.doc.is_none());
     // The refused name keeps the dialog open: what is typed next goes to it, not to the
@@ -390,18 +386,12 @@ fn a_fill_at_the_bench_is_recorded_entry_by_entry_and_continues_after_a_restart(
     keys(&mut model, &mut ctx, &[Key::Char('3')]);
     assert_eq!(model.view, View::Sheet);
     // The empty cylinder, then step 1 (CO) with its pressure reading and temperature.
-    keys(&mut model, &mut ctx, &[Key::Char('w')]);
-    text(&mut model, &mut ctx, "13412.000g");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'w', "13412.000g");
     assert!(model.status.contains("record FC-10-2291-"), "{}", model.status);
-    keys(&mut model, &mut ctx, &[Key::Char('t')]);
-    text(&mut model, &mut ctx, "21.5C");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 't', "21.5C");
     assert!(model.status.contains("(recorded)"), "{}", model.status);
     // A reading below the previous one keeps the prompt open with a message.
-    keys(&mut model, &mut ctx, &[Key::Char('w')]);
-    text(&mut model, &mut ctx, "13000g");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'w', "13000g");
     assert!(matches!(model.overlay, Overlay::Prompt { .. }), "the dialog stays open");
     assert!(model.status.contains("not above the previous reading"), "{}", model.status);
     keys(&mut model, &mut ctx, &[Key::Ctrl('u')]);
@@ -455,9 +445,7 @@ fn a_fill_at_the_bench_is_recorded_entry_by_entry_and_continues_after_a_restart(
     let expected =
         fillwright::plan::corrected_target_pa(&plan.fluid, plan.volume_m3, &replan.steps[0].amounts_after_mol, 294.65);
     assert_eq!(now, expected.unwrap());
-    keys(&mut model, &mut ctx, &[Key::Char('r')]);
-    text(&mut model, &mut ctx, &format!("{:.4}bar", now / 1e5));
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'r', &format!("{:.4}bar", now / 1e5));
     assert!(model.status.contains("0.000 bar off") || model.status.contains("reached"), "{}", model.status);
     let doc = model.doc.as_ref().unwrap();
     let notes = fillwright::tui::views::sheet::reading_notes(doc, &model.limits, &model.shown, 2);
@@ -557,31 +545,23 @@ fn typed_readings_and_temperatures_are_judged_against_the_rating_and_the_plan() 
     sheet_of_copy(&mut model, &mut ctx, "near-rated", "195bar");
     let last = model.doc.as_ref().unwrap().bench.done.len() - 1;
     // A cylinder temperature above the service range.
-    keys(&mut model, &mut ctx, &[Key::Char('t')]);
-    text(&mut model, &mut ctx, "90C");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 't', "90C");
     assert!(model.status.contains("above the highest service temperature"), "{}", model.status);
     assert!(fillwright::tui::scenes::text(&render(&model, &ctx)).contains("above the highest service temperature"));
     // Warm at 35 °C: the last step's target reads above 200 bar and settles to 195 bar.
-    keys(&mut model, &mut ctx, &[Key::Char('t')]);
-    text(&mut model, &mut ctx, "35C");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 't', "35C");
     let target = model.doc.as_ref().unwrap().bench.live[last].pressure_now_pa.unwrap();
     assert!(target > 200e5, "{target}");
     for _ in 0..last {
         keys(&mut model, &mut ctx, &[Key::Down]);
     }
-    keys(&mut model, &mut ctx, &[Key::Char('r')]);
-    text(&mut model, &mut ctx, &format!("{:.2}bar", target / 1e5));
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'r', &format!("{:.2}bar", target / 1e5));
     let doc = model.doc.as_ref().unwrap();
     let notes = fillwright::tui::views::sheet::reading_notes(doc, &model.limits, &model.shown, last);
     assert!(notes.iter().any(|(_, n)| n.contains("Normal")), "{notes:?}");
     assert!(notes.iter().all(|(s, _)| *s == fillwright::checks::Severity::Ok), "{notes:?}");
     // 230 bar at 35 °C settles above the working pressure: stop.
-    keys(&mut model, &mut ctx, &[Key::Char('r')]);
-    text(&mut model, &mut ctx, "230bar");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'r', "230bar");
     assert!(model.status.starts_with("STOP") && model.status.contains("settles to"), "{}", model.status);
     // A reading far below the plan on the first step is flagged.
     for _ in 0..last {
@@ -666,9 +646,7 @@ fn a_gas_already_in_the_recipe_is_not_added_twice() {
     let (mut model, mut ctx, _dir) = setup("picker-twice");
     open(&mut model, &mut ctx, "flue-gas-span");
     let before = model.doc.as_ref().unwrap().recipe.components.clone();
-    keys(&mut model, &mut ctx, &[Key::Char('a')]);
-    text(&mut model, &mut ctx, "carbon monoxide");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'a', "carbon monoxide");
     let doc = model.doc.as_ref().unwrap();
     assert_eq!(doc.recipe.components, before, "nothing was added or changed");
     assert!(model.status.contains("already in the recipe"), "{}", model.status);
@@ -687,9 +665,7 @@ fn help_stays_visible_at_80_columns_whatever_the_message() {
     let (mut model, mut ctx, _dir) = setup("hints");
     open(&mut model, &mut ctx, "flue-gas-span");
     model.status = "a very long message about what just happened at the bench, longer than the line itself".into();
-    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(80, 24)).unwrap();
-    terminal.draw(|f| fillwright::tui::view::view(&model, &ctx.catalogue, f)).unwrap();
-    let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
+    let screen = render_at(&model, &ctx, 80, 24);
     let last = screen.lines().last().unwrap().to_string();
     assert!(last.starts_with("? help"), "{last}");
     // The message, longer than the line, is whole on the rows above the keys.
@@ -699,8 +675,7 @@ fn help_stays_visible_at_80_columns_whatever_the_message() {
     assert_eq!(above.join(" "), model.status, "{screen}");
     // Without a message, the most important keys come first and the rest fit the width.
     model.status.clear();
-    terminal.draw(|f| fillwright::tui::view::view(&model, &ctx.catalogue, f)).unwrap();
-    let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
+    let screen = render_at(&model, &ctx, 80, 24);
     let last = screen.lines().last().unwrap().trim_end().to_string();
     assert!(last.starts_with("? help · Enter edit · s save · q quit"), "{last}");
     assert!(last.chars().count() <= 80);
@@ -794,9 +769,7 @@ fn the_fill_sheet_is_written_for_the_bench_folder() {
 fn enter_in_the_gas_picker_with_no_match_says_so_and_stays() {
     let (mut model, mut ctx, _dir) = setup("picker-none");
     open(&mut model, &mut ctx, "flue-gas-span");
-    keys(&mut model, &mut ctx, &[Key::Char('a')]);
-    text(&mut model, &mut ctx, "unobtainium");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'a', "unobtainium");
     assert!(matches!(model.overlay, Overlay::Picker { .. }));
     assert!(model.status.contains("no gas matches"), "{}", model.status);
 }
@@ -906,7 +879,7 @@ fn a_premix_name_cut_in_the_sheet_is_given_whole_for_the_chosen_step() {
         keys(&mut model, &mut ctx, &[Key::Down]);
     }
     // At 80 columns the table cuts it, and the line under the table gives it whole.
-    let screen = screen_80(&model, &ctx);
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(screen.contains(&format!("step {} source: NO 1% in N2", k + 1)), "{screen}");
     // A wide window has room for it in the table itself.
     let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
@@ -1111,9 +1084,7 @@ fn a_long_cascade_at_80_by_24_still_shows_how_to_accept_it() {
         Err(e) => panic!("{e}"),
     };
     assert!(stages >= 3, "{stages}");
-    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(80, 24)).unwrap();
-    terminal.draw(|f| fillwright::tui::view::view(&model, &ctx.catalogue, f)).unwrap();
-    let screen = fillwright::tui::scenes::text(terminal.backend().buffer());
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(screen.contains("a  accept"), "{screen}");
     assert!(screen.contains("PREMIX PROPOSED"), "{screen}");
     // It says it scrolls, and does: the foot of the cascade comes into view.
@@ -1125,7 +1096,7 @@ fn a_long_cascade_at_80_by_24_still_shows_how_to_accept_it() {
     }
     let Overlay::Premixes { scroll, .. } = model.overlay else { panic!() };
     assert!(scroll >= 20, "{scroll}");
-    let screen = screen_80(&model, &ctx);
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(!screen.contains("scroll: lines 1-") && screen.contains("go into the blend"), "{screen}");
     keys(&mut model, &mut ctx, &[Key::Home]);
     assert!(matches!(model.overlay, Overlay::Premixes { scroll: 0, .. }));
@@ -1174,9 +1145,7 @@ fn a_verification_is_typed_on_the_screen_written_as_typed_and_judged() {
     place_flue_record(&ctx);
     keys(&mut model, &mut ctx, &[Key::Char('v')]);
     assert!(model.verification.is_some());
-    keys(&mut model, &mut ctx, &[Key::Char('n')]);
-    text(&mut model, &mut ctx, "FC-10-2291-20261202 carbon dioxide");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'n', "FC-10-2291-20261202 carbon dioxide");
     let file = ctx.library.dir().join("verifications/FC-10-2291-20261202-CO2.ron");
     assert!(file.is_file(), "{}", model.verification.as_ref().unwrap().status);
     // Three reference mixtures: Enter on "add" types the content, → the response.
@@ -1502,9 +1471,7 @@ fn the_screening_view_opens_on_the_worst_check_and_the_oxygen_caution_needs_an_o
 fn a_new_gas_is_typed_fresh_esc_stays_on_the_fill_sheet_and_search_reads_descriptions() {
     let (mut model, mut ctx, _dir) = setup("fields-words");
     open(&mut model, &mut ctx, "flue-gas-span");
-    keys(&mut model, &mut ctx, &[Key::Char('a')]);
-    text(&mut model, &mut ctx, "argon");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'a', "argon");
     // Typing replaces the provisional amount; nothing to clear first.
     text(&mut model, &mut ctx, "400ppm");
     keys(&mut model, &mut ctx, &[Key::Enter]);
@@ -1646,9 +1613,7 @@ fn the_scale_uncertainty_follows_the_resolution_and_can_be_typed_for_one_fill() 
     let expected = fillwright::tui::views::sheet::scale_uncertainty_text(ctx.settings.scale_resolution_g);
     assert!(record(&dir).contains(&format!("scale_uncertainty: \"{expected}\"")), "{}", record(&dir));
     // The balance's own figure, typed with it.
-    keys(&mut model, &mut ctx, &[Key::Char('b')]);
-    text(&mut model, &mut ctx, "bench balance B2, u=0.02g");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'b', "bench balance B2, u=0.02g");
     assert!(model.status.contains("scale u = 0.02g"), "{}", model.status);
     let saved = record(&dir);
     assert!(
@@ -1656,9 +1621,7 @@ fn the_scale_uncertainty_follows_the_resolution_and_can_be_typed_for_one_fill() 
         "{saved}"
     );
     // A figure that is not a mass keeps the prompt open with why.
-    keys(&mut model, &mut ctx, &[Key::Char('b')]);
-    text(&mut model, &mut ctx, "B2 u=2mol");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'b', "B2 u=2mol");
     assert!(matches!(model.overlay, Overlay::Prompt { .. }));
     assert!(model.status.contains("u=2mol"), "{}", model.status);
 }
@@ -1784,7 +1747,7 @@ fn the_records_list_opens_continues_corrects_certifies_and_prints_any_fill() {
     keys(&mut model, &mut ctx, &[Key::Esc, Key::Char('1')]);
     open(&mut model, &mut ctx, "flue-gas-span");
     keys(&mut model, &mut ctx, &[Key::Char('3')]);
-    assert!(screen_80(&model, &ctx).contains("and certified"), "{}", screen_80(&model, &ctx));
+    assert!(render_at(&model, &ctx, 80, 24).contains("and certified"), "{}", render_at(&model, &ctx, 80, 24));
     // The recipe deleted: its record still lists and certifies, and opening says why not.
     keys(&mut model, &mut ctx, &[Key::Char('1')]);
     ctx.library.delete("flue-gas-span", &stamp()).unwrap();
@@ -1792,13 +1755,6 @@ fn the_records_list_opens_continues_corrects_certifies_and_prints_any_fill() {
     keys(&mut model, &mut ctx, &[Key::Char('f'), Key::Enter]);
     assert!(model.status.contains("no longer holds"), "{}", model.status);
     assert!(matches!(model.overlay, Overlay::Records(_)));
-}
-
-/// Render at 80×24 as text.
-fn screen_80(model: &Model, ctx: &Context) -> String {
-    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(80, 24)).unwrap();
-    terminal.draw(|f| fillwright::tui::view::view(model, &ctx.catalogue, f)).unwrap();
-    fillwright::tui::scenes::text(terminal.backend().buffer())
 }
 
 #[test]
@@ -1813,7 +1769,7 @@ fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen(
     open(&mut model, &mut ctx, "stack-span");
     keys(&mut model, &mut ctx, &[Key::Char('3'), Key::Char('m')]);
     // The premix of both gases is proposed first, with why; at 80×24 its text scrolls.
-    let screen = screen_80(&model, &ctx);
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(
         screen.contains("PREMIX PROPOSED for steps 1 and 2") && screen.contains("one cylinder instead of 2"),
         "{screen}"
@@ -1839,7 +1795,7 @@ fn a_premix_of_two_gases_goes_from_proposal_to_a_certified_source_on_the_screen(
         "{:?}",
         doc.bench.premix_states
     );
-    assert!(screen_80(&model, &ctx).contains("not filled yet"));
+    assert!(render_at(&model, &ctx, 80, 24).contains("not filled yet"));
     // g opens the premix on its own Fill sheet; it is filled and certified there.
     keys(&mut model, &mut ctx, &[Key::Char('g')]);
     assert_eq!(model.doc.as_ref().unwrap().name, premix, "{}", model.status);
@@ -1889,7 +1845,7 @@ fn every_curve_of_the_z_chart_carries_its_own_letter_where_the_curves_meet_too()
     let mut unique = letters.clone();
     unique.dedup();
     assert_eq!(unique.len(), letters.len(), "{letters:?}");
-    for screen in [fillwright::tui::scenes::text(&render(&model, &ctx)), screen_80(&model, &ctx)] {
+    for screen in [fillwright::tui::scenes::text(&render(&model, &ctx)), render_at(&model, &ctx, 80, 24)] {
         let rows: Vec<&str> = screen.lines().collect();
         let top = rows.iter().position(|l| l.contains("Z against pressure")).unwrap();
         let bottom = top + rows[top..].iter().position(|l| l.starts_with('└')).unwrap();
@@ -1924,11 +1880,11 @@ fn a_long_line_being_typed_shows_its_end_where_the_cursor_is() {
     keys(&mut model, &mut ctx, &[Key::Home, Key::Enter, Key::Ctrl('u')]);
     let long = "Span gas for the stack analyser of boiler 2 at the Brackwater site, second quarter ZZEND";
     text(&mut model, &mut ctx, long);
-    let screen = screen_80(&model, &ctx);
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(screen.contains("ZZEND"), "{screen}");
     // Not typing, the field shows its start again.
     keys(&mut model, &mut ctx, &[Key::Enter]);
-    let screen = screen_80(&model, &ctx);
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(screen.contains("title             Span gas for the") && !screen.contains("ZZEND"), "{screen}");
 }
 
@@ -1941,14 +1897,14 @@ fn a_step_weighed_from_a_source_without_uncertainty_stays_marked_until_corrected
     assert!(model.status.starts_with("no source typed") && model.status.contains("l types it"), "{}", model.status);
     typed(&mut model, &mut ctx, 'w', "13403.82g");
     assert_eq!(model.doc.as_ref().unwrap().bench.unanalysed, [0]);
-    let screen = screen_80(&model, &ctx);
+    let screen = render_at(&model, &ctx, 80, 24);
     assert!(screen.contains("step 1's source") && screen.contains("has no uncertainty"), "{screen}");
     // Corrected with its analysis and a reason: the mark goes.
     typed(&mut model, &mut ctx, 'x', "s 1 NO=1.0012%±0.0020%,N2=balance");
     text(&mut model, &mut ctx, "analysis certificate arrived");
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert!(model.doc.as_ref().unwrap().bench.unanalysed.is_empty(), "{}", model.status);
-    assert!(!screen_80(&model, &ctx).contains("has no uncertainty"));
+    assert!(!render_at(&model, &ctx, 80, 24).contains("has no uncertainty"));
 }
 
 #[test]
@@ -1967,7 +1923,7 @@ fn a_tolerance_shows_how_it_is_read_and_takes_a_leading_plus_minus() {
     text(&mut model, &mut ctx, "1 %");
     keys(&mut model, &mut ctx, &[Key::Enter]);
     assert_eq!(tol_row(&model, "CO2").as_deref(), Some("absolute = ±6.7%rel"));
-    assert!(screen_80(&model, &ctx).contains("1 %  (absolute"));
+    assert!(render_at(&model, &ctx, 80, 24).contains("1 %  (absolute"));
     assert!(fillwright::tui::scenes::text(&render(&model, &ctx)).contains("1 %  (absolute = ±6.7%rel)"));
     // ± in front is taken, not refused.
     keys(&mut model, &mut ctx, &[Key::Enter, Key::Ctrl('u')]);
@@ -1992,7 +1948,7 @@ fn a_reading_typed_as_the_sheet_shows_it_does_not_re_plan_the_rest() {
     weigh(&mut model, &mut ctx, &shown);
     let live = &model.doc.as_ref().unwrap().bench.live;
     assert!(live.iter().all(|l| l.finished || !l.moved()), "nothing re-planned");
-    assert!(!screen_80(&model, &ctx).contains("re-planned"));
+    assert!(!render_at(&model, &ctx, 80, 24).contains("re-planned"));
     // A gram over on CH4 is a real deviation: the rest follows it.
     let over = format!("{:.3}g", live_scale(&model, 1) + 1.0);
     weigh(&mut model, &mut ctx, &over);
@@ -2006,9 +1962,7 @@ fn a_gas_that_moves_the_plan_to_another_model_says_so() {
     open(&mut model, &mut ctx, "flue-gas-span");
     assert_eq!(model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().model.key(), "gerg");
     // SO2 is not a GERG-2008 gas: the default becomes the multi-fluid model, and the status says so.
-    keys(&mut model, &mut ctx, &[Key::Char('a')]);
-    text(&mut model, &mut ctx, "SO2");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'a', "SO2");
     text(&mut model, &mut ctx, "100ppm");
     keys(&mut model, &mut ctx, &[Key::Enter]);
     let now = model.doc.as_ref().unwrap().computed.plan.as_ref().unwrap().model;
@@ -2026,9 +1980,7 @@ fn a_reading_typed_mid_step_is_not_judged_as_the_steps_end_once_it_is_weighed() 
     open(&mut model, &mut ctx, "flue-gas-span");
     weigh(&mut model, &mut ctx, "13412.000g");
     // Half-way through step 1 a reading is typed: far from the stop reading, said so.
-    keys(&mut model, &mut ctx, &[Key::Char('r')]);
-    text(&mut model, &mut ctx, "0.03barg");
-    keys(&mut model, &mut ctx, &[Key::Enter]);
+    typed(&mut model, &mut ctx, 'r', "0.03barg");
     let notes = |model: &Model| {
         fillwright::tui::views::sheet::reading_notes(model.doc.as_ref().unwrap(), &model.limits, &model.shown, 0)
     };

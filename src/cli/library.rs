@@ -184,8 +184,7 @@ pub fn history(args: &HistoryArgs) -> Result<(), Failure> {
     if !records.is_empty() {
         outln!();
         outln!("fill records of {}:", args.name);
-        let certificates = lib.dir().join("certificates");
-        let certified = |id: &str| certificates.join(format!("{id}.txt")).is_file();
+        let certified = |id: &str| lib.certified(id);
         out!("{}", crate::print::records::text(&records, &certified));
     }
     Ok(())

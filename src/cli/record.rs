@@ -164,8 +164,7 @@ pub fn records(args: &RecordsArgs) -> Result<(), Failure> {
             );
         }
     }
-    let certificates = lib.dir().join("certificates");
-    let certified = |id: &str| certificates.join(format!("{id}.txt")).is_file();
+    let certified = |id: &str| lib.certified(id);
     match args.format {
         Format::Json => print_json(&listing::json(&shown, &certified)),
         Format::Csv => out!("{}", listing::csv(&shown, &certified)),

@@ -214,6 +214,17 @@ impl Library {
         out
     }
 
+    /// Where the certificate of record `id` is kept: `certificates/ID.txt` (its PDF beside it),
+    /// written by `C` on the screen.
+    pub fn certificate_path(&self, id: &str) -> PathBuf {
+        self.dir.join("certificates").join(format!("{id}.txt"))
+    }
+
+    /// Whether record `id` has its certificate in the library.
+    pub fn certified(&self, id: &str) -> bool {
+        self.certificate_path(id).is_file()
+    }
+
     /// The canonical text of a recipe at one revision, for the record's hash.
     pub fn recipe_text_at(&self, name: &str, revision: u64) -> Result<String, LibraryError> {
         let r = self.revision(name, revision)?;

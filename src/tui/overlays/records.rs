@@ -13,7 +13,6 @@ use crate::ron_format::{clip, clip_middle};
 use crate::tui::context::{input, Context, Key};
 use crate::tui::model::{Model, Overlay, Prompt, View};
 use crate::tui::theme::{boxed, centered, Theme};
-use crate::tui::views::sheet::certify::certificate_path;
 
 /// The list shown: the records (all, or one recipe's), and the chosen one.
 #[derive(Debug, Clone)]
@@ -46,7 +45,7 @@ pub fn open(model: &mut Model, ctx: &Context, of: Option<String>) {
     // Newest first: a damaged record (no start known) last.
     let started = |r: &Listed| r.1.as_ref().ok().and_then(|r| r.started.clone()).unwrap_or_default();
     rows.sort_by(|a, b| started(b).cmp(&started(a)).then(b.0.cmp(&a.0)));
-    let certified = rows.iter().map(|(id, _)| certificate_path(ctx, id).is_file()).collect();
+    let certified = rows.iter().map(|(id, _)| ctx.library.certified(id)).collect();
     model.overlay = Overlay::Records(Box::new(Records { rows, certified, selected: 0, of }));
 }
 

@@ -24,8 +24,11 @@ pub fn certify(model: &mut Model, ctx: &Context) {
     }
     // A premix of the library's blends: say where the work goes on.
     let Some(name) = model.doc.as_ref().map(|d| d.name.clone()) else { return };
-    let blends = super::premixes::blends_taking(ctx, &name);
-    if !blends.is_empty() && !model.status.starts_with("not certified") {
+    if model.status.starts_with("not certified") {
+        return;
+    }
+    let blends = super::premixes::blends_taking(&model.library.entries, &name);
+    if !blends.is_empty() {
         model.status = format!(
             "{}; it is the premix of {}: open that, its step takes this record",
             model.status,
@@ -69,17 +72,11 @@ pub fn certify_id(ctx: &Context, id: &str) -> Result<String, String> {
     let cert = c.certificate(&ctx.catalogue);
     let pdf = c.pdf(&cert, &id);
     ctx.library.own_dir(&["certificates"]).map_err(|e| e.to_string())?;
-    let path = certificate_path(ctx, &id);
+    let path = ctx.library.certificate_path(&id);
     crate::library::atomic::write(&path, cert.text().as_bytes()).map_err(|e| e.to_string())?;
     crate::library::atomic::write(&path.with_extension("pdf"), &pdf).map_err(|e| e.to_string())?;
     let stop = if cert.stopped_by_analysis() { "STOP - the analysis does not confirm the content; " } else { "" };
     Ok(format!(
         "{stop}certificate of {id} written to certificates/{id}.txt and .pdf in the library, a draft for review"
     ))
-}
-
-/// Where the certificate of record `id` is written: `certificates/ID.txt` in the library
-/// (its PDF beside it).
-pub fn certificate_path(ctx: &Context, id: &str) -> std::path::PathBuf {
-    ctx.library.dir().join("certificates").join(format!("{id}.txt"))
 }

@@ -408,7 +408,7 @@ pub fn sync_from_record(doc: &mut Document, ctx: &Context) {
     let steps = doc.computed.plan.as_ref().map_or(0, |p| p.steps.len());
     doc.bench.premix_states = (0..steps).map(|k| premixes::premix_state(doc, ctx, k)).collect();
     let id = doc.bench.record.as_ref().map(|r| r.id.clone()).or_else(|| doc.bench.last_finished.clone());
-    doc.bench.certified = id.is_some_and(|id| certify::certificate_path(ctx, &id).is_file());
+    doc.bench.certified = id.is_some_and(|id| ctx.library.certified(&id));
     let Some(opened) = &doc.bench.record else {
         doc.bench.progress = None;
         doc.bench.correct(doc.computed.plan.as_ref().ok());

@@ -61,17 +61,17 @@ pub fn go_to_premix(model: &mut Model, ctx: &Context) {
     }
 }
 
-/// The blends of the library that take `premix` (a recipe name) as a source.
-pub fn blends_taking(ctx: &Context, premix: &str) -> Vec<String> {
-    let entries = ctx.library.list().unwrap_or_default();
+/// The blends of the library (as the Library's list read them) that take `premix` (a
+/// recipe name) as a source.
+pub fn blends_taking(entries: &[crate::library::Entry], premix: &str) -> Vec<String> {
     entries
-        .into_iter()
+        .iter()
         .filter(|e| e.name != premix)
         .filter(|e| {
-            ctx.library.open(&e.name).is_ok_and(|o| {
-                o.recipe.sources.iter().any(|l| matches!(l, SourceLine::Premix { recipe: Some(r), .. } if r == premix))
+            e.summary.as_ref().is_ok_and(|s| {
+                s.recipe.sources.iter().any(|l| matches!(l, SourceLine::Premix { recipe: Some(r), .. } if r == premix))
             })
         })
-        .map(|e| e.name)
+        .map(|e| e.name.clone())
         .collect()
 }
