@@ -104,25 +104,59 @@ mod compiled {
     include!("multifluid_data.rs");
 }
 
+// GERG-2008 in the same form (`gerg2008_data.rs`, made by tools/make_gerg2008.py from the
+// aga8 crate's tables): its own fugacities for its phase equilibria.
+mod gerg2008 {
+    use super::Term::*;
+    use super::{Data, DepartureData, FluidData, PairData};
+    include!("gerg2008_data.rs");
+}
+
+/// Which published equations a mixture is made of.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Set {
+    /// Each gas's reference equation of state (the multi-fluid model).
+    Reference,
+    /// GERG-2008's own 21 equations, pairs and departure functions.
+    Gerg2008,
+}
+
+/// A data set with its fluids and pairs keyed by id.
+struct Indexed {
+    data: &'static Data,
+    fluids: HashMap<&'static str, &'static FluidData>,
+    /// The pairs keyed by their ids in the file's order.
+    pairs: HashMap<(&'static str, &'static str), &'static PairData>,
+}
+
+fn indexed(set: Set) -> &'static Indexed {
+    fn index(data: &'static Data) -> Indexed {
+        Indexed {
+            data,
+            fluids: data.fluids.iter().map(|f| (f.id, f)).collect(),
+            pairs: data.pairs.iter().map(|p| ((p.a, p.b), p)).collect(),
+        }
+    }
+    static REFERENCE: OnceLock<Indexed> = OnceLock::new();
+    static GERG: OnceLock<Indexed> = OnceLock::new();
+    match set {
+        Set::Reference => REFERENCE.get_or_init(|| index(&compiled::DATA)),
+        Set::Gerg2008 => GERG.get_or_init(|| index(&gerg2008::GERG2008)),
+    }
+}
+
+#[cfg(test)]
 fn data() -> &'static Data {
     &compiled::DATA
 }
 
-fn fluid_index() -> &'static HashMap<&'static str, &'static FluidData> {
-    static I: OnceLock<HashMap<&'static str, &'static FluidData>> = OnceLock::new();
-    I.get_or_init(|| data().fluids.iter().map(|f| (f.id, f)).collect())
-}
-
-/// The published pairs keyed by their ids in the file's order.
-fn pair_index() -> &'static HashMap<(&'static str, &'static str), &'static PairData> {
-    static I: OnceLock<HashMap<(&'static str, &'static str), &'static PairData>> = OnceLock::new();
-    I.get_or_init(|| data().pairs.iter().map(|p| ((p.a, p.b), p)).collect())
-}
-
 /// The citation of the reference equation of state of a gas id, if the model has one.
 pub fn reference_equation(id: &str) -> Option<(&'static str, &'static str)> {
-    fluid_index().get(id).map(|f| (f.file, f.source))
+    indexed(Set::Reference).fluids.get(id).map(|f| (f.file, f.source))
 }
+
+/// GERG-2008's gas constant, J/(mol K) (Kunz and Wagner 2012, Table A3.1).
+const GERG_R: f64 = 8.314_472;
 
 /// Peng–Robinson's critical compressibility factor.
 const PR_ZC: f64 = 0.307_401_308_698_7;
@@ -163,6 +197,8 @@ pub struct Mixture {
     /// linear rule.
     estimated_gases: Vec<String>,
     estimated_pairs: Vec<(String, String)>,
+    /// The gas constant the equations were fitted with (GERG-2008 carries 8.314472).
+    r: f64,
     /// Tells this mixture's prepared states apart from another's (see [`PREPARED`]).
     serial: u64,
 }
@@ -185,13 +221,28 @@ impl Mixture {
 
     /// The model with unpublished pairs combined by `estimate`.
     pub fn with_estimate(catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Mixture {
+        Mixture::of_set(Set::Reference, catalogue, gases, estimate)
+    }
+
+    /// GERG-2008 for the catalogue gases at `gases`, in this model's form (its own
+    /// fugacities); None where GERG-2008 does not cover one of them.
+    pub fn gerg2008(catalogue: &Catalogue, gases: &[usize]) -> Option<Mixture> {
+        let set = indexed(Set::Gerg2008);
+        gases
+            .iter()
+            .all(|&g| set.fluids.contains_key(catalogue.gas(g).id()))
+            .then(|| Mixture::of_set(Set::Gerg2008, catalogue, gases, Estimate::Linear))
+    }
+
+    fn of_set(set: Set, catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Mixture {
+        let set = indexed(set);
         let n = gases.len();
         let ids: Vec<String> = gases.iter().map(|&g| catalogue.gas(g).id().to_string()).collect();
         let mut pure = Vec::with_capacity(n);
         let (mut t_c, mut rho_c) = (Vec::with_capacity(n), Vec::with_capacity(n));
         let mut estimated_gases = Vec::new();
         for (&g, id) in gases.iter().zip(&ids) {
-            match fluid_index().get(id.as_str()) {
+            match set.fluids.get(id.as_str()) {
                 Some(f) => {
                     pure.push(Pure::Reference(f.terms));
                     t_c.push(f.t_r);
@@ -213,10 +264,11 @@ impl Mixture {
             for j in 0..n {
                 let t_ij = (t_c[i] * t_c[j]).sqrt();
                 let v_ij = (rho_c[i].powf(-1.0 / 3.0) + rho_c[j].powf(-1.0 / 3.0)).powi(3) / 8.0;
-                let found = pair_index()
+                let found = set
+                    .pairs
                     .get(&(ids[i].as_str(), ids[j].as_str()))
                     .map(|p| (*p, false))
-                    .or_else(|| pair_index().get(&(ids[j].as_str(), ids[i].as_str())).map(|p| (*p, true)));
+                    .or_else(|| set.pairs.get(&(ids[j].as_str(), ids[i].as_str())).map(|p| (*p, true)));
                 let pair = match found {
                     // The parameters are written for the file's order: swapped, β → 1/β.
                     Some((p, swapped)) => Pair {
@@ -227,7 +279,7 @@ impl Mixture {
                         f: p.f,
                         departure: p
                             .departure
-                            .and_then(|name| data().departures.iter().find(|d| d.name == name).map(|d| d.terms)),
+                            .and_then(|name| set.data.departures.iter().find(|d| d.name == name).map(|d| d.terms)),
                         t_ij,
                         v_ij,
                     },
@@ -250,7 +302,11 @@ impl Mixture {
         }
         static SERIAL: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
         let serial = SERIAL.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-        Mixture { pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, serial }
+        let r = match set.data.fluids.first().map(|f| f.file) {
+            Some("GERG-2008") => GERG_R,
+            _ => R,
+        };
+        Mixture { pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, r, serial }
     }
 
     /// The gases on the cubic form and the pairs on the linear rule (estimates, not
@@ -363,13 +419,13 @@ impl Mixture {
                 }
             }
         }
-        Composed { t_k, rho_r: rr.v, tau, flat, other }
+        Composed { t_k, r: self.r, rho_r: rr.v, tau, flat, other }
     }
 
     /// Molar density, mol/m³, at (T, P) by Newton's method from `rho0` (the ideal gas
     /// when None): the branch Newton's method reaches. None where it leaves it.
     pub fn density(&self, t_k: f64, p_pa: f64, x: &[f64], rho0: Option<f64>) -> Option<f64> {
-        self.at_composition(x, t_k).density(p_pa, rho0.unwrap_or(p_pa / (R * t_k)))
+        self.at_composition(x, t_k).density(p_pa, rho0.unwrap_or(p_pa / (self.r * t_k)))
     }
 
     /// Molar density, mol/m³, at (T, P) on the stable branch: Newton's method from the
@@ -378,7 +434,7 @@ impl Mixture {
     /// root exist, the one of lower Gibbs energy. None where no start converges.
     pub fn stable_density(&self, t_k: f64, p_pa: f64, x: &[f64]) -> Option<f64> {
         let composed = self.at_composition(x, t_k);
-        let gas = composed.density(p_pa, p_pa / (R * t_k));
+        let gas = composed.density(p_pa, p_pa / (self.r * t_k));
         // Above every component's critical temperature no liquid branch is looked for.
         let all_supercritical = x.iter().zip(&self.t_c).all(|(xi, tc)| *xi == 0.0 || t_k > *tc);
         if gas.is_some() && all_supercritical {
@@ -398,7 +454,7 @@ impl Mixture {
     pub fn ln_phi(&self, t_k: f64, rho: f64, x: &[f64]) -> Vec<f64> {
         let n = x.len();
         let (p, _) = self.pressure(t_k, rho, x);
-        let z = p / (rho * R * t_k);
+        let z = p / (rho * self.r * t_k);
         let volume = 1.0 / rho; // for one mole in all
         (0..n)
             .map(|i| {
@@ -423,13 +479,13 @@ impl Mixture {
         let mut p = p0;
         let mut rho_l = 1.3 * rho_l0;
         for _ in 0..100 {
-            let rho_v = composed.density(p, 0.5 * p / (R * t_k))?;
+            let rho_v = composed.density(p, 0.5 * p / (self.r * t_k))?;
             rho_l = composed.density(p, 1.3 * rho_l).or_else(|| composed.density(p, rho_l))?;
             if (rho_l - rho_v).abs() <= 1e-6 * rho_l {
                 return None;
             }
             // g_V − g_L from the residual parts (the ideal parts are equal at one T and P).
-            let dg = R * t_k * (composed.residual_gibbs(rho_v, p) - composed.residual_gibbs(rho_l, p));
+            let dg = self.r * t_k * (composed.residual_gibbs(rho_v, p) - composed.residual_gibbs(rho_l, p));
             let next = (p - dg / (1.0 / rho_v - 1.0 / rho_l)).clamp(0.8 * p, 1.25 * p);
             if (next - p).abs() <= 1e-12 * p {
                 return Some((next, rho_l, rho_v));
@@ -515,6 +571,7 @@ fn exp_power(g: f64, l: f64) -> DeltaPart {
 /// A mixture at one composition and temperature: its reducing state and its terms.
 struct Composed {
     t_k: f64,
+    r: f64,
     rho_r: f64,
     tau: f64,
     flat: Vec<Flat>,
@@ -526,13 +583,13 @@ impl Composed {
     /// ∂P/∂ρ = RT(1 + 2δα^r_δ + δ²α^r_δδ).
     fn pressure(&self, rho: f64) -> (f64, f64) {
         let (_, a1, a2) = self.evaluate(rho);
-        let rt = R * self.t_k;
+        let rt = self.r * self.t_k;
         (rho * rt * (1.0 + a1), rt * (1.0 + 2.0 * a1 + a2))
     }
 
     /// The residual Gibbs energy g^r/RT = α^r + Z − 1 − ln Z at (ρ, P).
     fn residual_gibbs(&self, rho: f64, p_pa: f64) -> f64 {
-        let z = p_pa / (rho * R * self.t_k);
+        let z = p_pa / (rho * self.r * self.t_k);
         self.evaluate(rho).0 + z - 1.0 - z.ln()
     }
 
@@ -797,6 +854,47 @@ mod tests {
     }
 
     use super::*;
+
+    #[test]
+    fn gerg2008_as_multifluid_is_the_aga8_crate() {
+        // The same equation two ways: the aga8 crate's (NIST's AGA8 code) pressure, and
+        // this model's from the tables made of the crate's constants. Every gas and every
+        // pair with a departure function, gas and liquid densities, 200 to 450 K.
+        let c = Catalogue::built_in();
+        let all: Vec<&str> = indexed(Set::Gerg2008).data.fluids.iter().map(|f| f.id).collect();
+        assert_eq!(all.len(), 21);
+        let blends: Vec<Vec<(&str, f64)>> = vec![
+            all.iter().map(|id| (*id, 1.0)).collect(),
+            vec![("CH4", 0.9), ("N2", 0.05), ("CO2", 0.03), ("C2H6", 0.02)],
+            vec![("CH4", 0.7), ("C3H8", 0.1), ("n-C4H10", 0.1), ("i-C4H10", 0.1)],
+            vec![("C2H6", 0.5), ("C3H8", 0.3), ("n-C4H10", 0.1), ("i-C4H10", 0.1)],
+            vec![("CH4", 0.6), ("H2", 0.4)],
+            vec![("N2", 0.8), ("CO2", 0.1), ("C2H6", 0.1)],
+            vec![("N2", 0.98), ("n-C6H14", 0.02)],
+            vec![("CO2", 0.5), ("H2O", 0.01), ("H2S", 0.49)],
+        ];
+        let mut checked = 0;
+        for blend in &blends {
+            let total: f64 = blend.iter().map(|(_, w)| w).sum();
+            let gases: Vec<usize> = blend.iter().map(|(id, _)| c.index_of(id).unwrap()).collect();
+            let x: Vec<f64> = blend.iter().map(|(_, w)| w / total).collect();
+            let ids: Vec<&str> = blend.iter().map(|(id, _)| *id).collect();
+            let ours = Mixture::gerg2008(&c, &gases).unwrap();
+            assert!(ours.estimated().0.is_empty() && ours.estimated().1.is_empty());
+            let crate_gerg = crate::thermo::gerg::Gerg::new(&ids).unwrap();
+            for t in [200.0, 273.15, 320.0, 450.0] {
+                for rho in [1.0, 100.0, 2000.0, 8000.0, 15000.0] {
+                    let Some(want) = crate_gerg.pressure(&x, t, rho) else { continue };
+                    let (got, _) = ours.pressure(t, rho, &x);
+                    assert!((got / want - 1.0).abs() < 1e-11 || (got - want).abs() < 1e-6, "{ids:?} {t} K {rho} mol/m3: {got} vs {want}");
+                    checked += 1;
+                }
+            }
+        }
+        assert!(checked >= 150, "{checked}");
+        // Outside GERG-2008's 21 gases there is no such mixture.
+        assert!(Mixture::gerg2008(&c, &[c.index_of("SO2").unwrap()]).is_none());
+    }
 
     #[test]
     fn the_data_file_reads_and_names_a_source_for_everything() {
