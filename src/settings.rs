@@ -74,8 +74,10 @@ impl Default for Settings {
             min_storage_temperature: "0C".into(),
             // The temperature transport rules use for the rating check (from memory).
             max_service_temperature: "65C".into(),
-            // Peng–Robinson's cricondentherm lies up to 5.4 K below CoolProp's multi-fluid one
-            // for the mixtures of tests/fixtures/phase_reference.json; rounded up.
+            // Set when the envelope came from Peng–Robinson, whose cricondentherm lies up to
+            // 5.4 K below CoolProp's multi-fluid one for the mixtures of
+            // tests/fixtures/phase_reference.json; kept as a safety allowance now that the
+            // envelope is the reference equations' own.
             condensation_margin: DEFAULT_CONDENSATION_MARGIN.into(),
             git_commit_on_save: false,
             combine_verification_uncertainty: false,

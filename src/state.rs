@@ -43,8 +43,12 @@ pub struct Solved {
     pub phase: Phase,
     /// Fraction of the amount that is liquid.
     pub liquid_fraction: f64,
-    /// The model that judged the phase (the fluid's own, or the Peng–Robinson screen).
+    /// The model that judged the phase (the model itself).
     pub judged_by: Model,
+    /// Where the model's stable state is two-phase: its equation evaluated as if the
+    /// contents stayed one phase (the textbook number), in SI (Pa, m³ or mol, whichever was
+    /// solved). Not a stable state.
+    pub single_phase: Option<f64>,
 }
 
 impl Solved {
@@ -94,6 +98,7 @@ pub fn solve(fluid: &Fluid, x: &[f64], given: &Given, unknown: Unknown) -> Resul
         }
     };
     let p = e.pressure_pa;
+    let single_phase = if e.phase == Phase::TwoPhase { one_phase_value(fluid, x, t, v, n, p, unknown) } else { None };
     Ok(Solved {
         model: fluid.model(),
         p_pa: p,
@@ -104,5 +109,17 @@ pub fn solve(fluid: &Fluid, x: &[f64], given: &Given, unknown: Unknown) -> Resul
         phase: e.phase,
         liquid_fraction: e.liquid_fraction,
         judged_by: e.judged_by,
+        single_phase,
     })
+}
+
+/// The solved quantity from the model's equation as if the contents stayed one phase:
+/// the pressure of n in V, or the volume (amount) of the one-phase root at P. None where
+/// the equation gives no such state (below a cubic's co-volume, say).
+fn one_phase_value(fluid: &Fluid, x: &[f64], t: f64, v: f64, n: f64, p: f64, unknown: Unknown) -> Option<f64> {
+    match unknown {
+        Unknown::Pressure => fluid.pressure_tv(t, v / n, x).ok(),
+        Unknown::Volume => fluid.state_tp(t, p, x).ok().map(|s| n * s.molar_volume_m3),
+        Unknown::Amount => fluid.state_tp(t, p, x).ok().map(|s| v / s.molar_volume_m3),
+    }
 }

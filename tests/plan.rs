@@ -112,10 +112,11 @@ fn vdw_and_pr_step_targets_agree_with_thermo_to_1e_8() {
             assert!((p.totals.amount_mol / want.amount_mol - 1.0).abs() < 1e-8, "{} {key} amount", fp.label);
             for (s, w) in p.steps.iter().zip(&want.step_pressures_pa) {
                 if s.flags.contains(&plan::StepFlag::AboveDewPoint) {
-                    // Two-phase at the fill temperature (butane then propane in the lpg
-                    // order): the reading is the equilibrium pressure, below thermo's
-                    // single-phase number.
-                    assert!(s.pressure_after_pa < *w, "{} {key} step {}", fp.label, s.source);
+                    // Liquid by the reference equations (butane then propane in the lpg
+                    // order): where the planning model splits too, the reading is its
+                    // equilibrium pressure, below thermo's single-phase number; where it does
+                    // not, it is that number.
+                    assert!(s.pressure_after_pa <= *w * (1.0 + 1e-8), "{} {key} step {}", fp.label, s.source);
                     continue;
                 }
                 assert!(

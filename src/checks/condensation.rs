@@ -60,7 +60,7 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
     let gases: Vec<usize> = present.iter().map(|&i| plan.gases[i]).collect();
     let z: Vec<f64> = present.iter().map(|&i| plan.components[i].mole_fraction).collect();
     let amounts: Vec<f64> = present.iter().map(|&i| plan.components[i].amount_mol).collect();
-    let model = phase_model(plan.model);
+    let model = phase_model(&gases, catalogue);
     let fluid = Fluid::new(catalogue, &gases, model).map_err(|e| e.to_string())?;
     let p_at_min = fluid.pressure(t_min, order.volume_m3, &amounts).map_err(|e| e.to_string())?;
 
@@ -233,8 +233,8 @@ fn found_details(f: &Found, model: Model, c: &Conditions, t_ref: f64) -> Vec<Str
         details.push(format!("cricondentherm {:.1} °C ({:.2} K), {model}", celsius(t), t));
     }
     details.push(format!(
-        "judged down to {:.1} °C: the lowest storage temperature less a margin of {:.1} K (the model's dew points \
-         lie up to 5.4 K below the multi-fluid reference; a setting)",
+        "judged down to {:.1} °C: the lowest storage temperature less a margin of {:.1} K (a setting; the dew \
+         points are the reference equations' own, so the margin is a safety allowance)",
         celsius(t_low),
         c.margin_k
     ));

@@ -101,13 +101,10 @@ pub fn cautions_with(oxidiser: bool) -> Vec<&'static str> {
     CAUTIONS.iter().copied().filter(|c| oxidiser || *c != OXYGEN_CLEAN).collect()
 }
 
-/// The model used for the equation-of-state parts of the screening: the plan's cubic
-/// model where it has one, else Peng–Robinson.
-pub fn phase_model(plan_model: Model) -> Model {
-    match plan_model {
-        Model::Vdw | Model::Rk | Model::Srk | Model::Pr => plan_model,
-        Model::Ideal | Model::Gerg | Model::Multi => Model::Pr,
-    }
+/// The model that judges phases in the screening: the reference equations of the blend
+/// (GERG-2008 where it covers every gas, else the multi-fluid model), whatever model plans.
+pub fn phase_model(gases: &[usize], catalogue: &Catalogue) -> Model {
+    crate::plan::reference_model(gases, catalogue)
 }
 
 /// Run every check on a planned order.

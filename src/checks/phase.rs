@@ -16,7 +16,7 @@
 // Indexed loops over the components read as the formulas do.
 #![allow(clippy::needless_range_loop)]
 
-use crate::thermo::kernel::{CubicAt, RootChoice};
+use crate::thermo::kernel::{Kernel, RootChoice};
 use crate::thermo::phases::{wilson, Stationary, TangentPlane};
 use crate::thermo::{Fluid, ThermoError};
 
@@ -168,7 +168,7 @@ impl Point {
 struct Tracer<'a> {
     phase: &'a PhaseFluid<'a>,
     /// The cubic, moved to each temperature asked.
-    cubic: CubicAt,
+    cubic: Kernel,
     z: &'a [f64],
     ln_z: Vec<f64>,
     ln_phi: Vec<f64>,
@@ -186,7 +186,7 @@ enum Walk {
 impl<'a> Tracer<'a> {
     fn new(phase: &'a PhaseFluid<'a>, z: &'a [f64]) -> Result<Tracer<'a>, ThermoError> {
         let n = z.len();
-        let cubic = CubicAt::new(phase.fluid, 300.0).ok_or(ThermoError::NoFugacity(phase.fluid.model()))?;
+        let cubic = Kernel::new(phase.fluid, 300.0).ok_or(ThermoError::NoFugacity(phase.fluid.model()))?;
         Ok(Tracer {
             phase,
             cubic,

@@ -82,8 +82,9 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
         .collect();
 
     let ids: Vec<&str> = composition.gases.iter().map(|&g| catalogue.gas(g).id()).collect();
+    let reference = crate::plan::reference_model(&composition.gases, &catalogue);
     match args.common.format {
-        Format::Json => print_json(&report::json(&given, unknown, &chosen, &others, &ids, x)),
+        Format::Json => print_json(&report::json(&given, unknown, &chosen, &others, reference, &ids, x)),
         Format::Text | Format::Csv => {
             out!(
                 "{}",
@@ -94,6 +95,7 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
                     unknown,
                     &chosen,
                     &others,
+                    reference,
                     &settings.shown
                 )
             )

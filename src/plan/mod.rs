@@ -599,6 +599,19 @@ fn judge_step(fluid: &Fluid, t_fill: f64, t_min_k: f64, volume_m3: f64, n: &[f64
     Ok(Judged::Gas)
 }
 
+/// Judge every step's contents (both cores) with `judge`: the reference equations of the
+/// blend whatever model plans (the ideal gas has no liquid of its own; a cubic's dew points
+/// can lie several kelvin low).
+fn judge_steps(
+    judge: &Fluid,
+    pressures: &[(f64, Vec<f64>)],
+    t_fill: f64,
+    t_min: f64,
+    volume_m3: f64,
+) -> Result<Vec<Judged>, ThermoError> {
+    pressures.par_iter().map(|(_, n_after)| judge_step(judge, t_fill, t_min, volume_m3, n_after)).collect()
+}
+
 /// Make the plan for an order.
 pub fn plan(order: &Order, catalogue: &Catalogue, options: &PlanOptions) -> Result<Plan, PlanError> {
     plan_at_depth(order, catalogue, options, 0)
@@ -623,13 +636,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     // free; rayon keeps the order).
     let reference = reference_model(&setup.gases, catalogue);
     let other = OtherModels { order, setup: &setup, sequence_names: &sequence_names, catalogue, t_fill, reference };
+    let judge = if model == reference { fluid.clone() } else { Fluid::new(catalogue, &setup.gases, reference)? };
     let (judgements, others) = rayon::join(
-        || -> Result<Vec<Judged>, ThermoError> {
-            pressures
-                .par_iter()
-                .map(|(_, n_after)| judge_step(&fluid, t_fill, t_min, order.volume_m3, n_after))
-                .collect()
-        },
+        || judge_steps(&judge, &pressures, t_fill, t_min, order.volume_m3),
         || -> Vec<ModelPlan> { Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other.plan(m)).collect() },
     );
     let steps = build_steps(order, &d, pressures, judgements?, heel.as_ref(), t_fill, options, catalogue);

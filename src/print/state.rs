@@ -8,12 +8,39 @@ use crate::thermo::phases::Phase;
 use crate::thermo::{Model, ThermoError};
 use crate::units::{bar, litres, Shown, Sig};
 
+/// What the reference equations of the blend find where the chosen model finds no liquid:
+/// the reference model and its phase (liquid or two-phase). None where they agree that
+/// there is no liquid, or where the chosen model is the reference.
+pub fn reference_phase(
+    chosen: &Solved,
+    others: &[(Model, Result<Solved, ThermoError>)],
+    reference: Model,
+) -> Option<(Model, Phase)> {
+    let condensed = |p: Phase| matches!(p, Phase::Liquid | Phase::TwoPhase);
+    if chosen.model == reference || condensed(chosen.phase) {
+        return None;
+    }
+    let (_, r) = others.iter().find(|(m, _)| *m == reference)?;
+    let r = r.as_ref().ok()?;
+    condensed(r.phase).then_some((reference, r.phase))
+}
+
+/// The JSON key of the one-phase value of the solved quantity.
+fn single_phase_key(unknown: Unknown) -> &'static str {
+    match unknown {
+        Unknown::Pressure => "single_phase_pressure_bar",
+        Unknown::Volume => "single_phase_volume_l",
+        Unknown::Amount => "single_phase_amount_mol",
+    }
+}
+
 /// The state as JSON, with every other model's answer for comparison.
 pub fn json(
     given: &Given,
     unknown: Unknown,
     chosen: &Solved,
     others: &[(Model, Result<Solved, ThermoError>)],
+    reference: Model,
     ids: &[&str],
     x: &[f64],
 ) -> serde_json::Value {
@@ -24,12 +51,13 @@ pub fn json(
                 "model": m.key(),
                 "value": si_to_output(unknown, s.value(unknown)),
                 "z": s.z,
+                "phase": s.phase.key(),
                 "difference_percent": percent(s.value(unknown), chosen.value(unknown)),
             }),
             Err(e) => json!({"model": m.key(), "error": e.to_string()}),
         })
         .collect();
-    json!({
+    let mut out = json!({
         "model": chosen.model.key(),
         "temperature_k": given.t_k,
         "pressure_bar": bar(chosen.p_pa),
@@ -47,7 +75,15 @@ pub fn json(
         "liquid_like": chosen.phase == Phase::Liquid,
         "components": ids.iter().zip(x).map(|(id, xi)| json!({"id": id, "mole_fraction": xi})).collect::<Vec<_>>(),
         "comparison": comparison,
-    })
+        "reference_model": reference.key(),
+    });
+    if let Some(v) = chosen.single_phase {
+        out[single_phase_key(unknown)] = json!(si_to_output(unknown, v));
+    }
+    if let Some((_, phase)) = reference_phase(chosen, others, reference) {
+        out["reference_phase"] = json!(phase.key());
+    }
+    out
 }
 
 /// The solved quantity in the output units: bar, L or mol.
@@ -63,6 +99,7 @@ fn percent(value: f64, reference: f64) -> f64 {
     (value / reference - 1.0) * 100.0
 }
 
+#[allow(clippy::too_many_arguments)]
 pub fn text(
     mix: &str,
     given: &Given,
@@ -70,6 +107,7 @@ pub fn text(
     unknown: Unknown,
     s: &Solved,
     others: &[(Model, Result<Solved, ThermoError>)],
+    reference: Model,
     d: &Shown,
 ) -> String {
     let mut out = String::new();
@@ -97,6 +135,7 @@ pub fn text(
         s.phase.key(),
         if s.judged_by != s.model { format!("  (judged by {})", s.judged_by.key()) } else { String::new() }
     );
+    out.push_str(&own_answer_notes(unknown, s, others, reference, d));
     match s.phase {
         Phase::TwoPhase => {
             put!(out);
@@ -117,7 +156,38 @@ pub fn text(
         Phase::Gas | Phase::Supercritical => {}
     }
     put!(out);
-    out.push_str(&comparison(unknown, s, others, d));
+    out.push_str(&comparison(unknown, s, others, reference, d));
+    out
+}
+
+/// Beside the answer: the model's one-phase value where it splits, and the reference's
+/// liquid where the model finds none.
+fn own_answer_notes(
+    unknown: Unknown,
+    s: &Solved,
+    others: &[(Model, Result<Solved, ThermoError>)],
+    reference: Model,
+    d: &Shown,
+) -> String {
+    let mut out = String::new();
+    let shown = |v: f64| match unknown {
+        Unknown::Pressure => format!("{} {}", Sig(d.p(v), 6), d.pu()),
+        Unknown::Volume => format!("{} L", Sig(litres(v), 6)),
+        Unknown::Amount => format!("{} mol", Sig(v, 6)),
+    };
+    if let Some(v) = s.single_phase {
+        put!(out, "  one-phase    {:>12}  ({} as one phase: not stable here)", shown(v), s.model.key());
+    }
+    if let Some((m, phase)) = reference_phase(s, others, reference) {
+        let found = if phase == Phase::Liquid { "liquid" } else { "gas and liquid together" };
+        put!(out);
+        put!(out, "  ! The reference equations ({}) find {found} here;", m.title());
+        if s.model == Model::Ideal {
+            put!(out, "    the ideal gas never condenses: its number is for a gas that is not there.");
+        } else {
+            put!(out, "    {} finds one phase: its number is for contents that are not there.", s.model.title());
+        }
+    }
     out
 }
 
@@ -129,7 +199,13 @@ fn short_reason(e: &ThermoError) -> String {
 }
 
 /// Every other model's answer to the same question, against the chosen one.
-fn comparison(unknown: Unknown, s: &Solved, others: &[(Model, Result<Solved, ThermoError>)], d: &Shown) -> String {
+fn comparison(
+    unknown: Unknown,
+    s: &Solved,
+    others: &[(Model, Result<Solved, ThermoError>)],
+    reference: Model,
+    d: &Shown,
+) -> String {
     let mut out = String::new();
     let unit = match unknown {
         Unknown::Pressure => d.pu(),
@@ -138,17 +214,18 @@ fn comparison(unknown: Unknown, s: &Solved, others: &[(Model, Result<Solved, The
     };
     put!(
         out,
-        "  {:<22} {:>12} {:>9} {:>10}",
+        "  {:<22} {:>12} {:>9} {:>10}  {}",
         "other models",
         format!("{} {unit}", unknown.name()),
         "Z",
-        format!("vs {}", s.model.key())
+        format!("vs {}", s.model.key()),
+        "phase"
     );
     for (m, r) in others {
         match r {
             Ok(o) => put!(
                 out,
-                "  {:<22} {:>12} {:>9} {:>9}%",
+                "  {:<22} {:>12} {:>9} {:>9}%  {}{}",
                 m.title(),
                 Sig(
                     if unknown == Unknown::Pressure { d.p(o.p_pa) } else { si_to_output(unknown, o.value(unknown)) },
@@ -156,7 +233,9 @@ fn comparison(unknown: Unknown, s: &Solved, others: &[(Model, Result<Solved, The
                 )
                 .to_string(),
                 format!("{:.5}", o.z),
-                crate::units::signed(percent(o.value(unknown), s.value(unknown)), 3)
+                crate::units::signed(percent(o.value(unknown), s.value(unknown)), 3),
+                o.phase.key(),
+                if *m == reference { " (reference)" } else { "" }
             ),
             Err(e) => put!(out, "  {:<22} {}", m.title(), short_reason(e)),
         }

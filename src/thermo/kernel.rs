@@ -4,11 +4,18 @@
 //! terms √(a_i a_j)(1 − k_ij) are computed once, so that mixing, the roots and ln φ at any
 //! pressure and composition cost O(n²) multiplications and no heap allocation. The
 //! composition is checked once where it enters (the [`super::Fluid`] methods), not here.
+//!
+//! [`Kernel`] is any model that gives fugacities, prepared at one temperature: a cubic, or
+//! a Helmholtz mixture (GERG-2008 or the multi-fluid model, [`HelmholtzAt`]). The phase
+//! calculations (stability, flash, dew points, the envelope) run on it unchanged.
 
 // Indexed loops over the components read as the formulas do.
 #![allow(clippy::needless_range_loop)]
 
+use std::sync::Arc;
+
 use super::cubic::{self, g_residual, integral_i, CubicKind};
+use super::multifluid::Mixture;
 use super::Fluid;
 use crate::units::R;
 
@@ -131,6 +138,16 @@ impl CubicAt {
         pick(self.kind, RootChoice::Stable, &roots[..count], big_a, big_b)
     }
 
+    /// Z of composition `x` at `p_pa` on the chosen root; None where the cubic has no root
+    /// above B.
+    pub fn z_on(&mut self, p_pa: f64, x: &[f64], root: RootChoice) -> Option<f64> {
+        let (a, b) = self.mix(x);
+        let rt = R * self.t_k;
+        let (big_a, big_b) = (a * p_pa / (rt * rt), b * p_pa / rt);
+        let (roots, count) = z_roots(self.kind, big_a, big_b);
+        pick(self.kind, root, &roots[..count], big_a, big_b)
+    }
+
     /// ln φ_i of composition `x` (mole fractions summing to 1) at `p_pa` on the chosen root,
     /// written into `out`; returns Z, or None where the cubic has no root above B.
     pub fn ln_phi_into(&mut self, p_pa: f64, x: &[f64], root: RootChoice, out: &mut [f64]) -> Option<f64> {
@@ -148,6 +165,128 @@ impl CubicAt {
             out[i] = bi_b * (z - 1.0) - ln_z_b - a_over * (2.0 * self.a_row[i] / a - bi_b);
         }
         Some(z)
+    }
+}
+
+/// A model that gives fugacities, at one temperature.
+#[derive(Debug, Clone)]
+pub enum Kernel {
+    Cubic(CubicAt),
+    Helmholtz(HelmholtzAt),
+}
+
+impl Kernel {
+    /// The fluid's own fugacity model at `t_k`: its cubic, or its GERG-2008 or multi-fluid
+    /// mixture; None for the ideal gas (it has no phases).
+    pub fn new(fluid: &Fluid, t_k: f64) -> Option<Kernel> {
+        match fluid.helmholtz_mixture() {
+            Some(mix) => {
+                let estimate = CubicAt::new(fluid.cubic_estimate(), t_k)?;
+                Some(Kernel::Helmholtz(HelmholtzAt { mix, t_k, estimate }))
+            }
+            None => CubicAt::new(fluid, t_k).map(Kernel::Cubic),
+        }
+    }
+
+    /// Move the model to another temperature, in place.
+    pub fn set_temperature(&mut self, t_k: f64) {
+        match self {
+            Kernel::Cubic(c) => c.set_temperature(t_k),
+            Kernel::Helmholtz(h) => {
+                h.t_k = t_k;
+                h.estimate.set_temperature(t_k);
+            }
+        }
+    }
+
+    pub fn temperature_k(&self) -> f64 {
+        match self {
+            Kernel::Cubic(c) => c.temperature_k(),
+            Kernel::Helmholtz(h) => h.t_k,
+        }
+    }
+
+    /// Pressure, Pa, of composition `x` at molar volume `v_m3`; None where the model gives
+    /// none (at or below a cubic's co-volume, or not finite and positive).
+    pub fn pressure(&mut self, v_m3: f64, x: &[f64]) -> Option<f64> {
+        match self {
+            Kernel::Cubic(c) => c.pressure(v_m3, x),
+            Kernel::Helmholtz(h) => {
+                let (p, _) = h.mix.pressure(h.t_k, 1.0 / v_m3, x);
+                (p.is_finite() && p > 0.0).then_some(p)
+            }
+        }
+    }
+
+    /// Z of composition `x` at `p_pa` on its stable root (lowest Gibbs energy).
+    pub fn stable_z(&mut self, p_pa: f64, x: &[f64]) -> Option<f64> {
+        match self {
+            Kernel::Cubic(c) => c.stable_z(p_pa, x),
+            Kernel::Helmholtz(h) => {
+                let rho = h.density(p_pa, x, RootChoice::Stable)?;
+                h.z_of(p_pa, rho)
+            }
+        }
+    }
+
+    /// ln φ_i of composition `x` at `p_pa` on the chosen root, into `out`; returns Z.
+    pub fn ln_phi_into(&mut self, p_pa: f64, x: &[f64], root: RootChoice, out: &mut [f64]) -> Option<f64> {
+        match self {
+            Kernel::Cubic(c) => c.ln_phi_into(p_pa, x, root, out),
+            Kernel::Helmholtz(h) => {
+                let rho = h.density(p_pa, x, root)?;
+                let ln_phi = h.mix.ln_phi(h.t_k, rho, x);
+                if ln_phi.iter().any(|v| v.is_nan()) {
+                    return None;
+                }
+                out.copy_from_slice(&ln_phi);
+                h.z_of(p_pa, rho)
+            }
+        }
+    }
+}
+
+/// A Helmholtz mixture (GERG-2008 or the multi-fluid model) at one temperature, with
+/// Peng–Robinson on the same gases for the starts of its density searches.
+#[derive(Debug, Clone)]
+pub struct HelmholtzAt {
+    mix: Arc<Mixture>,
+    t_k: f64,
+    estimate: CubicAt,
+}
+
+impl HelmholtzAt {
+    /// The density on the chosen branch. Newton's method on the Helmholtz equation starts
+    /// from the ideal gas for the gas-like root and from Peng–Robinson's liquid root for the
+    /// liquid-like one (a multi-parameter equation has unphysical roots at densities far
+    /// above any liquid's, which a start from a multiple of the reducing density can reach);
+    /// where the asked branch does not exist, the other; for `Stable`, the one of lower
+    /// Gibbs energy.
+    fn density(&mut self, p_pa: f64, x: &[f64], root: RootChoice) -> Option<f64> {
+        let t = self.t_k;
+        let gas_start = p_pa / (R * t);
+        let mut on = |choice| self.estimate.z_on(p_pa, x, choice).map(|z| p_pa / (z * R * t));
+        let (pr_liquid, pr_vapour) = (on(RootChoice::Liquid), on(RootChoice::Vapour));
+        // Peng–Robinson's liquid root where it is one (denser than the gas by half again).
+        let liquid_start = pr_liquid.filter(|rho| *rho > 1.5 * gas_start);
+        let starts: Vec<f64> = match root {
+            RootChoice::Vapour => vec![gas_start],
+            RootChoice::Liquid => liquid_start.into_iter().collect(),
+            RootChoice::Stable => std::iter::once(gas_start).chain(liquid_start).collect(),
+        };
+        self.mix.lowest_gibbs_density(t, p_pa, x, &starts).or_else(|| {
+            // Where that branch does not exist or Newton's method leaves it: every start,
+            // Peng–Robinson's vapour root among them (a dense supercritical state).
+            let all: Vec<f64> = [Some(gas_start), pr_vapour, pr_liquid].into_iter().flatten().collect();
+            self.mix.lowest_gibbs_density(t, p_pa, x, &all).or_else(|| self.mix.stable_density(t, p_pa, x))
+        })
+    }
+
+    /// Z as the callers read it, v = ZRT/P with the crate's R (GERG-2008's own R differs
+    /// by 1.1e-6, which would move every volume by as much).
+    fn z_of(&self, p_pa: f64, rho: f64) -> Option<f64> {
+        let z = p_pa / (rho * R * self.t_k);
+        (z.is_finite() && z > 0.0).then_some(z)
     }
 }
 

@@ -144,8 +144,10 @@ pub struct Fluid {
     kij: Vec<Vec<f64>>,
     gerg: Option<gerg::Gerg>,
     multi: Option<std::sync::Arc<multifluid::Mixture>>,
-    /// The Peng–Robinson fluid that judges phases for a model with no fugacities of its
-    /// own (GERG-2008, ideal gas), made once.
+    /// GERG-2008 in the multi-fluid form, for its own fugacities (phase equilibria).
+    gerg_mix: Option<std::sync::Arc<multifluid::Mixture>>,
+    /// The Peng–Robinson fluid on the same gases that gives first estimates (saturation
+    /// starts) for a model that is not a cubic, made once.
     screen: Option<std::sync::Arc<Fluid>>,
 }
 
@@ -187,10 +189,14 @@ impl Fluid {
             cubic,
             gerg,
             multi: (model == Model::Multi).then(|| std::sync::Arc::new(multifluid::Mixture::new(catalogue, gases))),
+            gerg_mix: match model {
+                Model::Gerg => multifluid::Mixture::gerg2008(catalogue, gases).map(std::sync::Arc::new),
+                _ => None,
+            },
             screen: None,
         };
         if let Some(kij) = screen_kij {
-            let screen = Fluid { model: Model::Pr, kij, gerg: None, multi: None, ..fluid.clone() };
+            let screen = Fluid { model: Model::Pr, kij, gerg: None, multi: None, gerg_mix: None, ..fluid.clone() };
             fluid.screen = Some(std::sync::Arc::new(screen));
         }
         Ok(fluid)
@@ -203,6 +209,12 @@ impl Fluid {
     /// The multi-fluid model behind this fluid, where it is that model.
     pub fn multifluid(&self) -> Option<&multifluid::Mixture> {
         self.multi.as_deref()
+    }
+
+    /// The Helmholtz mixture that gives this fluid's fugacities: the multi-fluid model, or
+    /// GERG-2008 in that form. None for the cubics and the ideal gas.
+    pub fn helmholtz_mixture(&self) -> Option<std::sync::Arc<multifluid::Mixture>> {
+        self.multi.clone().or_else(|| self.gerg_mix.clone())
     }
 
     /// Critical temperatures of the gases, K.
@@ -285,6 +297,12 @@ impl Fluid {
             (None, Some(g), None) => g.density(x, t_k, p_pa),
             (None, None, _) => return Err(ThermoError::NotCovered(self.ids.clone())),
         };
+        // Where the model's own search finds no root (close to the phase boundary), the
+        // stable root from Peng–Robinson's starts (see `kernel::HelmholtzAt`).
+        let rho = rho.or_else(|| {
+            let mut k = kernel::Kernel::new(self, t_k)?;
+            k.stable_z(p_pa, x).map(|z| p_pa / (z * R * t_k))
+        });
         rho.ok_or_else(|| ThermoError::NoState {
             model: self.model,
             why: format!("the {} density iteration found no root; the state may be two-phase", self.model.title()),

@@ -450,6 +450,29 @@ impl Mixture {
         }
     }
 
+    /// Molar density, mol/m³, at (T, P): of the roots Newton's method reaches from the
+    /// `starts`, the one of lowest Gibbs energy. None where none converges.
+    pub fn lowest_gibbs_density(&self, t_k: f64, p_pa: f64, x: &[f64], starts: &[f64]) -> Option<f64> {
+        let composed = self.at_composition(x, t_k);
+        let mut best: Option<(f64, f64)> = None;
+        for &start in starts {
+            let Some(rho) = composed.density(p_pa, start) else { continue };
+            if best.is_some_and(|(b, _)| (b / rho - 1.0).abs() <= 1e-9) {
+                continue;
+            }
+            let g = composed.residual_gibbs(rho, p_pa);
+            if best.is_none_or(|(_, gb)| g < gb) {
+                best = Some((rho, g));
+            }
+        }
+        best.map(|(rho, _)| rho)
+    }
+
+    /// The gas constant of the equations, J/(mol K).
+    pub fn gas_constant(&self) -> f64 {
+        self.r
+    }
+
     /// ln φ_i at (T, ρ in mol/m³, x): ∂(nα^r)/∂n_i at constant T and V, less ln Z.
     pub fn ln_phi(&self, t_k: f64, rho: f64, x: &[f64]) -> Vec<f64> {
         let n = x.len();
@@ -886,7 +909,10 @@ mod tests {
                 for rho in [1.0, 100.0, 2000.0, 8000.0, 15000.0] {
                     let Some(want) = crate_gerg.pressure(&x, t, rho) else { continue };
                     let (got, _) = ours.pressure(t, rho, &x);
-                    assert!((got / want - 1.0).abs() < 1e-11 || (got - want).abs() < 1e-6, "{ids:?} {t} K {rho} mol/m3: {got} vs {want}");
+                    assert!(
+                        (got / want - 1.0).abs() < 1e-11 || (got - want).abs() < 1e-6,
+                        "{ids:?} {t} K {rho} mol/m3: {got} vs {want}"
+                    );
                     checked += 1;
                 }
             }

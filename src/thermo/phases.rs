@@ -6,20 +6,22 @@
 //!   cubic's fugacities; both by Newton's method on the pressure, since
 //!   d(g_V − g_L)/dP = v_V − v_L at fixed temperature.
 //! - A **mixture** is judged by Michelsen's tangent-plane stability test (Fluid Phase
-//!   Equilib. 9 (1982) 1) with the model itself where it gives fugacities (the cubics),
-//!   else with Peng–Robinson on the same gases as the screen. A split feed is flashed:
+//!   Equilib. 9 (1982) 1) with the model's own fugacities: a cubic's, or GERG-2008's and
+//!   the multi-fluid model's from their Helmholtz energy (see [`super::kernel::Kernel`]).
+//!   A split feed is flashed:
 //!   successive substitution on the K-values with the Rachford–Rice equation (J. Pet.
 //!   Technol. 4 (1952) 19). In a cylinder (fixed T, V, n) the pressure is found where the
 //!   equilibrium molar volume equals V/n: that volume falls monotonically with pressure
 //!   at fixed temperature, so a bisection on ln P brackets it.
 //!
-//! The ideal-gas model has no liquid of its own; its phases are judged by the screen.
+//! The ideal-gas model has no liquid: it is always one phase, PV = nRT (what the other
+//! models find there is for the caller to show beside it).
 
 // Indexed loops over the components read as the formulas do.
 #![allow(clippy::needless_range_loop)]
 
 use super::cubic::{self, Root};
-use super::kernel::{CubicAt, RootChoice};
+use super::kernel::{Kernel, RootChoice};
 use super::{Fluid, Model, ThermoError, MAX_PRESSURE_PA, R};
 
 /// Smallest mole fraction treated as present.
@@ -119,7 +121,7 @@ pub(crate) struct TangentPlane<'a> {
 
 impl<'a> TangentPlane<'a> {
     /// None where the cubic has no root for the feed.
-    pub(crate) fn new(cubic: &mut CubicAt, p_pa: f64, z: &'a [f64]) -> Option<TangentPlane<'a>> {
+    pub(crate) fn new(cubic: &mut Kernel, p_pa: f64, z: &'a [f64]) -> Option<TangentPlane<'a>> {
         let n = z.len();
         let mut ln_phi = vec![0.0; n];
         cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi)?;
@@ -131,7 +133,7 @@ impl<'a> TangentPlane<'a> {
     /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
     /// cubic's temperature, which must be the one `new` was made at); `w` ends as the
     /// point reached. None where the cubic has no root on the way.
-    pub(crate) fn stationary(&mut self, cubic: &mut CubicAt, w: &mut [f64]) -> Option<Stationary> {
+    pub(crate) fn stationary(&mut self, cubic: &mut Kernel, w: &mut [f64]) -> Option<Stationary> {
         let n = self.z.len();
         for _ in 0..400 {
             let sum: f64 = w.iter().sum();
@@ -187,13 +189,18 @@ pub fn single_component(x: &[f64]) -> Option<usize> {
 }
 
 impl Fluid {
-    /// The fluid that judges phases: itself for a cubic model, else Peng–Robinson on the
-    /// same gases (with its own k_ij).
-    pub fn phase_screen(&self) -> &Fluid {
+    /// The Peng–Robinson fluid on the same gases (with its own k_ij) for first estimates:
+    /// itself for a cubic model.
+    pub fn cubic_estimate(&self) -> &Fluid {
         match &self.screen {
             Some(screen) => screen,
             None => self,
         }
+    }
+
+    /// Whether the model has phases at all (every model but the ideal gas).
+    pub fn has_phases(&self) -> bool {
+        self.model != Model::Ideal
     }
 
     /// ln φ_i and the molar volume on one root of the cubic: the liquid-like (smallest) or
@@ -213,20 +220,20 @@ impl Fluid {
         Ok((cubic::ln_phi(kind, &m, &s), z * R * t_k / p_pa))
     }
 
-    /// Michelsen's tangent-plane test on the screen fluid: whether the feed `z` splits at
-    /// (T, P); when it does, the trial phase's composition (a K-value start for the
-    /// flash). Cubic models only (call it on [`Fluid::phase_screen`]).
+    /// Michelsen's tangent-plane test with the model's own fugacities: whether the feed `z`
+    /// splits at (T, P); when it does, the trial phase's composition (a K-value start for
+    /// the flash). Not for the ideal gas.
     pub fn stability(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
         Self::check_t(t_k)?;
         Self::check_p(p_pa)?;
         self.check_x(z)?;
-        let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         self.stability_on(&mut cubic, p_pa, z)
     }
 
-    /// [`Fluid::stability`] on this fluid's cubic prepared at the temperature (the
+    /// [`Fluid::stability`] on this fluid's kernel prepared at the temperature (the
     /// arguments already checked).
-    fn stability_on(&self, cubic: &mut CubicAt, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
+    fn stability_on(&self, cubic: &mut Kernel, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
         let t_k = cubic.temperature_k();
         let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
         let mut tpd = TangentPlane::new(cubic, p_pa, z).ok_or_else(no_root)?;
@@ -234,7 +241,9 @@ impl Fluid {
         for vapour_like in [true, false] {
             let mut w: Vec<f64> =
                 z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
-            if let Stationary::Point(ln_sum) = tpd.stationary(cubic, &mut w).ok_or_else(no_root)? {
+            // A trial whose composition the model gives no root for (on the way to its
+            // stationary point) is one direction fewer, not a failure of the test.
+            if let Some(Stationary::Point(ln_sum)) = tpd.stationary(cubic, &mut w) {
                 if ln_sum > (1.0 + 1e-8f64).ln() {
                     let sum: f64 = w.iter().sum();
                     return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
@@ -280,8 +289,7 @@ impl Fluid {
     }
 
     fn saturation_of(&self, t_k: f64, x: &[f64]) -> Result<Option<Saturation>, ThermoError> {
-        let screen = self.phase_screen();
-        let cubic_sat = screen.cubic_saturation(t_k, x)?;
+        let cubic_sat = self.cubic_estimate().cubic_saturation(t_k, x)?;
         // GERG-2008 and the multi-fluid model: their own equation's saturation, started from
         // the cubic's.
         let own = |start: &Saturation| match self.model {
@@ -353,7 +361,9 @@ impl Fluid {
         Self::check_t(t_k)?;
         Self::check_p(p_pa)?;
         self.check_x(z)?;
-        let screen = self.phase_screen();
+        if !self.has_phases() {
+            return Ok(single(Phase::Gas, p_pa, R * t_k / p_pa, self.model));
+        }
         if let Some(i) = single_component(z) {
             let sat = self.saturation(t_k, z)?;
             let c = &self.cubic[i];
@@ -366,12 +376,12 @@ impl Fluid {
             let v = self.branch_volume(t_k, p_pa, z, phase == Phase::Liquid, sat.as_ref())?;
             return Ok(single(phase, p_pa, v, self.model));
         }
-        match screen.stability(t_k, p_pa, z)? {
+        match self.stability(t_k, p_pa, z)? {
             None => {
                 let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
                 Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.model))
             }
-            Some(trial) => match screen.flash(t_k, p_pa, z, &trial)? {
+            Some(trial) => match self.flash(t_k, p_pa, z, &trial)? {
                 Some(e) => Ok(e),
                 None => {
                     let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
@@ -390,15 +400,16 @@ impl Fluid {
         if !(v.is_finite() && v > 0.0) {
             return Err(ThermoError::Volume(volume_m3 * 1e3));
         }
+        if !self.has_phases() {
+            return Ok(single(Phase::Gas, self.pressure_tv(t_k, v, &z)?, v, self.model));
+        }
         if let Some(i) = single_component(&z) {
             return self.pure_equilibrium_tv(i, t_k, v, z);
         }
-        let screen = self.phase_screen();
-        if let Some(p_screen) = screen.single_phase_at(t_k, v, &z)? {
-            let p = if self.model == screen.model { p_screen } else { self.pressure_tv(t_k, v, &z)? };
+        if let Some(p) = self.single_phase_at(t_k, v, &z)? {
             return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
         }
-        screen.split_at_volume(t_k, v, &z, volume_m3)
+        self.split_at_volume(t_k, v, &z, volume_m3)
     }
 
     /// A pure fluid (component `i`, feed `z`) of molar volume `v` at T: between the
@@ -432,16 +443,15 @@ impl Fluid {
         }
     }
 
-    /// Contents that split on this (screen) fluid: the pressure whose equilibrium volume is
+    /// Contents that split: the pressure whose equilibrium volume is
     /// `v`, with the phases' amounts from the lever rule.
     fn split_at_volume(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
-        let screen = self;
-        // Split: find the pressure whose equilibrium volume (on the screen) is V/n. The
+        // Split: find the pressure whose equilibrium volume is V/n. The
         // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
         // on ln v_eq − ln v over ln P, bisecting every third step, to 1e-9 in ln P.
         let target = v.ln();
         let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
-            let e = screen.equilibrium_tp(t_k, lp.exp().min(MAX_PRESSURE_PA), z)?;
+            let e = self.equilibrium_tp(t_k, lp.exp().min(MAX_PRESSURE_PA), z)?;
             Ok((e.molar_volume_m3.ln() - target, e))
         };
         let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
@@ -490,7 +500,7 @@ impl Fluid {
             }
         }
         best.molar_volume_m3 = v;
-        best.judged_by = screen.model;
+        best.judged_by = self.model;
         Ok(best)
     }
 
@@ -504,23 +514,26 @@ impl Fluid {
     /// together (the cheap yes/no of [`Fluid::equilibrium_tv`], without the flash).
     pub fn condensed_tv(&self, t_k: f64, volume_m3: f64, amounts_mol: &[f64]) -> Result<bool, ThermoError> {
         let (z, v) = contents(volume_m3, amounts_mol)?;
+        if !self.has_phases() {
+            return Ok(false);
+        }
         if single_component(&z).is_some() {
             return Ok(self.saturation(t_k, &z)?.is_some_and(|s| v < s.v_vapour_m3));
         }
-        match self.phase_screen().single_phase_at(t_k, v, &z)? {
-            Some(p_screen) => Ok(self.label(t_k, p_screen, &z, v) == Phase::Liquid),
+        match self.single_phase_at(t_k, v, &z)? {
+            Some(p) => Ok(self.label(t_k, p, &z, v) == Phase::Liquid),
             None => Ok(true),
         }
     }
 
-    /// The pressure of a single-phase state of molar volume `v` on this (screen) fluid, or
+    /// The pressure of a single-phase state of molar volume `v` on this fluid, or
     /// None where the contents split: one phase at `v` when the stable root at its pressure
     /// has this volume and the feed does not split there.
     fn single_phase_at(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
         Self::check_t(t_k)?;
         self.check_x(z)?;
-        // One cubic at T for the pressure, the root and the stability test.
-        let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        // One kernel at T for the pressure, the root and the stability test.
+        let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         let Some(p) = cubic.pressure(v, z).filter(|p| Self::check_p(*p).is_ok()) else { return Ok(None) };
         let on_stable_root = cubic.stable_z(p, z).is_some_and(|zz| (zz * R * t_k / p - v).abs() <= 1e-6 * v);
         Ok((on_stable_root && self.stability_on(&mut cubic, p, z)?.is_none()).then_some(p))
@@ -547,11 +560,10 @@ impl Fluid {
                 }
             })
             .collect();
-        let mut cubic = CubicAt::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
+        let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         let n = z.len();
         let (mut x, mut y) = (vec![0.0; n], vec![0.0; n]);
         let (mut ln_l, mut ln_v) = (vec![0.0; n], vec![0.0; n]);
-        let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
         let rt_p = R * t_k / p_pa;
         for _ in 0..1000 {
             // The negative flash while iterating: K-values from the trial phase may put the
@@ -569,8 +581,9 @@ impl Fluid {
                 x[i] /= sx;
                 y[i] /= sy;
             }
-            let z_l = cubic.ln_phi_into(p_pa, &x, RootChoice::Liquid, &mut ln_l).ok_or_else(no_root)?;
-            let z_v = cubic.ln_phi_into(p_pa, &y, RootChoice::Vapour, &mut ln_v).ok_or_else(no_root)?;
+            // A phase composition the model gives no root for: no split found this way.
+            let Some(z_l) = cubic.ln_phi_into(p_pa, &x, RootChoice::Liquid, &mut ln_l) else { return Ok(None) };
+            let Some(z_v) = cubic.ln_phi_into(p_pa, &y, RootChoice::Vapour, &mut ln_v) else { return Ok(None) };
             let mut change: f64 = 0.0;
             for i in 0..n {
                 let ln_new = ln_l[i] - ln_v[i];
