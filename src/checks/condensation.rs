@@ -172,7 +172,11 @@ fn by_the_equation_of_state(
     // The equation of state is asked down to the lowest storage temperature less the
     // margin: liquid is assumed wherever the model's dew point plus the margin reaches it.
     let t_low = c.judged_down_to_k();
-    let t_floor = 0.5 * t_low.min(phase.tc.iter().copied().fold(f64::INFINITY, f64::min));
+    // A gas whose critical temperature is below half the judged one (He, H2, Ne) does not
+    // pull the floor down to half of it: the walk down to a few kelvin under the reference
+    // equations cost a second for a helium blend and finds nothing the verdict uses.
+    let lowest_tc = phase.tc.iter().copied().filter(|tc| *tc > 0.5 * t_low).fold(f64::INFINITY, f64::min);
+    let t_floor = 0.5 * t_low.min(lowest_tc);
     // The whole envelope, up to its cricondenbar or 1000 bar: nothing here depends on the
     // fill pressure.
     let p_search = MAX_PRESSURE_PA;
