@@ -257,27 +257,24 @@ pub struct HelmholtzAt {
 
 impl HelmholtzAt {
     /// The density on the chosen branch. Newton's method on the Helmholtz equation starts
-    /// from the ideal gas for the gas-like root and from Peng–Robinson's liquid root for the
-    /// liquid-like one (a multi-parameter equation has unphysical roots at densities far
-    /// above any liquid's, which a start from a multiple of the reducing density can reach);
-    /// where the asked branch does not exist, the other; for `Stable`, the one of lower
-    /// Gibbs energy.
+    /// from Peng–Robinson's root of that branch (its largest for the gas, its smallest for
+    /// the liquid; where it has one root, that one): a multi-parameter equation has
+    /// unphysical roots between the gas and the liquid (a propane-rich liquid at 250 K and
+    /// 86 bar has one near Z = 1.07 under the reference equations, with ln φ of N2 near 25),
+    /// which a start from the ideal gas can reach. For `Stable`, the root of lower Gibbs
+    /// energy of the two. Where Newton's method finds neither, the ideal-gas start and the
+    /// mixture's own search.
     fn density(&mut self, p_pa: f64, x: &[f64], root: RootChoice) -> Option<f64> {
         let t = self.t_k;
-        let gas_start = p_pa / (R * t);
         let mut on = |choice| self.estimate.z_on(p_pa, x, choice).map(|z| p_pa / (z * R * t));
         let (pr_liquid, pr_vapour) = (on(RootChoice::Liquid), on(RootChoice::Vapour));
-        // Peng–Robinson's liquid root where it is one (denser than the gas by half again).
-        let liquid_start = pr_liquid.filter(|rho| *rho > 1.5 * gas_start);
         let starts: Vec<f64> = match root {
-            RootChoice::Vapour => vec![gas_start],
-            RootChoice::Liquid => liquid_start.into_iter().collect(),
-            RootChoice::Stable => std::iter::once(gas_start).chain(liquid_start).collect(),
+            RootChoice::Vapour => pr_vapour.into_iter().collect(),
+            RootChoice::Liquid => pr_liquid.into_iter().collect(),
+            RootChoice::Stable => pr_vapour.into_iter().chain(pr_liquid).collect(),
         };
         self.mix.lowest_gibbs_density(t, p_pa, x, &starts).or_else(|| {
-            // Where that branch does not exist or Newton's method leaves it: every start,
-            // Peng–Robinson's vapour root among them (a dense supercritical state).
-            let all: Vec<f64> = [Some(gas_start), pr_vapour, pr_liquid].into_iter().flatten().collect();
+            let all: Vec<f64> = [pr_vapour, pr_liquid, Some(p_pa / (R * t))].into_iter().flatten().collect();
             self.mix.lowest_gibbs_density(t, p_pa, x, &all).or_else(|| self.mix.stable_density(t, p_pa, x))
         })
     }
