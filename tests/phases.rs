@@ -472,6 +472,13 @@ fn chlorine_at_200_k_each_model_answers_for_itself() {
 #[derive(Deserialize)]
 struct EnvelopeFixture {
     mixtures: Vec<ReferenceEnvelope>,
+    saturation: Vec<SaturationPoint>,
+}
+
+fn envelope_fixture() -> EnvelopeFixture {
+    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/envelope_reference.json"))
+        .unwrap();
+    serde_json::from_str(&text).unwrap()
 }
 
 #[derive(Deserialize)]
@@ -541,4 +548,61 @@ fn states_just_below_the_cricondentherm_hold_liquid() {
         let ideal = v["comparison"].as_array().unwrap().iter().find(|r| r["model"] == "ideal").unwrap().clone();
         assert_eq!(ideal["phase"], "gas");
     }
+}
+
+/// Chlorine has its reference equation (Thol et al. 2021, from CoolProp's library) in the
+/// multi-fluid model: its saturation within 0.1 % of CoolProp's (same fixture), where the
+/// Peng-Robinson form it had was 14 % high at 200 K.
+#[test]
+fn chlorine_saturation_is_its_reference_equations() {
+    let c = Catalogue::built_in();
+    let f = envelope_fixture();
+    let rows: Vec<&SaturationPoint> = f.saturation.iter().filter(|s| s.id == "Cl2").collect();
+    assert!(rows.len() >= 5);
+    let fl = fluid(&c, &["Cl2".to_string()], Model::Multi);
+    assert!(fl.multifluid().unwrap().estimated().0.is_empty());
+    for s in rows {
+        let got = fl.saturation(s.temperature_k, &[1.0]).unwrap().unwrap();
+        assert_eq!(got.model, Model::Multi, "{} K", s.temperature_k);
+        assert!(
+            (got.pressure_pa / s.pressure_pa - 1.0).abs() < 1e-3,
+            "{} K: {} vs {}",
+            s.temperature_k,
+            got.pressure_pa,
+            s.pressure_pa
+        );
+        assert!((1.0 / got.v_liquid_m3 / s.liquid_density_mol_m3 - 1.0).abs() < 1e-3, "{} K liquid", s.temperature_k);
+    }
+}
+
+/// A pair with no published parameters (SF6–N2) is judged with the more condensing of the
+/// two usual estimates, and the check says so.
+#[test]
+fn unpublished_pairs_are_judged_with_the_more_condensing_estimate() {
+    use fillwright::thermo::multifluid::Estimate;
+    let c = Catalogue::built_in();
+    let o = order("Pressure(\"100bar\")", "(gas: \"SF6\", amount: \"5%\"), (gas: \"N2\", amount: \"balance\")");
+    let p = plan::plan(&o, &c, &PlanOptions::default()).unwrap();
+    assert_eq!(p.model, Model::Multi);
+    let cond = checks::screen(&p, &o, &c, &CONDITIONS).remove(0);
+    let ct = cond.data["cricondentherm_k"].as_f64().unwrap();
+    let gases = [c.index_of("SF6").unwrap(), c.index_of("N2").unwrap()];
+    let linear = Fluid::new(&c, &gases, Model::Multi).unwrap();
+    let lorentz = linear.clone().with_estimate(&c, &gases, Estimate::LorentzBerthelot);
+    let z = [0.05, 0.95];
+    let each: Vec<f64> = [&linear, &lorentz]
+        .iter()
+        .map(|f| PhaseFluid::new(f).cricondentherm(&z, 100.0, 1000e5).unwrap().unwrap().0)
+        .collect();
+    // The two estimates differ here, and the check took the higher.
+    assert!((each[0] - each[1]).abs() > 0.05, "{each:?}");
+    assert!((ct - each[0].max(each[1])).abs() < 1e-6, "{ct} vs {each:?}");
+    let which = if each[1] > each[0] { "lorentz-berthelot" } else { "linear" };
+    assert_eq!(cond.data["estimate"], which);
+    assert!(cond.details.iter().any(|d| d.contains("SF6-N2") && d.contains("more condensing")), "{:?}", cond.details);
+    // A blend whose pairs are all published has no such line.
+    let o = order("Pressure(\"100bar\")", "(gas: \"C3H8\", amount: \"5%\"), (gas: \"N2\", amount: \"balance\")");
+    let p = plan::plan(&o, &c, &PlanOptions::default()).unwrap();
+    let cond = checks::screen(&p, &o, &c, &CONDITIONS).remove(0);
+    assert!(cond.data.get("estimate").is_none());
 }

@@ -80,7 +80,31 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
         });
     }
 
-    let found = by_the_equation_of_state(&fluid, order, &z, &amounts, c)?;
+    // Pairs without published parameters: the envelope under each usual estimate, and the
+    // more condensing one (the higher cricondentherm) judges.
+    let mut judged = Vec::new();
+    for judge in fluid.phase_judges(catalogue, &gases) {
+        judged.push(by_the_equation_of_state(&judge, order, &z, &amounts, c)?);
+    }
+    let ct_of = |f: &Found| f.ct.map_or(f64::NEG_INFINITY, |(t, _)| t);
+    if let [linear, lorentz] = &judged[..] {
+        let pairs: Vec<String> = fluid
+            .multifluid()
+            .map_or(Vec::new(), |m| m.estimated().1.iter().map(|(a, b)| format!("{a}-{b}")).collect());
+        let shown = |f: &Found| f.ct.map_or("none".to_string(), |(t, _)| format!("{t:.2} K"));
+        details.push(format!(
+            "no published parameters for {}: judged with the more condensing of the two usual estimates \
+             (cricondentherm {} linear, {} Lorentz-Berthelot)",
+            pairs.join(", "),
+            shown(linear),
+            shown(lorentz)
+        ));
+        data.insert(
+            "estimate".into(),
+            json!(if ct_of(lorentz) > ct_of(linear) { "lorentz-berthelot" } else { "linear" }),
+        );
+    }
+    let found = judged.into_iter().max_by(|a, b| ct_of(a).total_cmp(&ct_of(b))).ok_or("no envelope")?;
     insert_found(&mut data, &found, c);
     details.extend(found_details(&found, model, c, order.reference_temperature_k));
     // Every step of the plan: liquid from what is in the cylinder after it.

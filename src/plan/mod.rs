@@ -574,7 +574,8 @@ fn step_pressures(
 }
 
 /// What a step's contents do between the fill temperature and the lowest storage
-/// temperature.
+/// temperature, the more condensing later.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
 enum Judged {
     Gas,
     /// Liquid forms on cooling to the lowest storage temperature.
@@ -599,17 +600,27 @@ fn judge_step(fluid: &Fluid, t_fill: f64, t_min_k: f64, volume_m3: f64, n: &[f64
     Ok(Judged::Gas)
 }
 
-/// Judge every step's contents (both cores) with `judge`: the reference equations of the
-/// blend whatever model plans (the ideal gas has no liquid of its own; a cubic's dew points
-/// can lie several kelvin low).
+/// Judge every step's contents (both cores) with the `judges`: the reference equations of
+/// the blend whatever model plans (the ideal gas has no liquid of its own; a cubic's dew
+/// points can lie several kelvin low), with each usual estimate for unpublished pairs; the
+/// most condensing verdict stands.
 fn judge_steps(
-    judge: &Fluid,
+    judges: &[Fluid],
     pressures: &[(f64, Vec<f64>)],
     t_fill: f64,
     t_min: f64,
     volume_m3: f64,
 ) -> Result<Vec<Judged>, ThermoError> {
-    pressures.par_iter().map(|(_, n_after)| judge_step(judge, t_fill, t_min, volume_m3, n_after)).collect()
+    pressures
+        .par_iter()
+        .map(|(_, n_after)| {
+            let mut worst = Judged::Gas;
+            for judge in judges {
+                worst = worst.max(judge_step(judge, t_fill, t_min, volume_m3, n_after)?);
+            }
+            Ok(worst)
+        })
+        .collect()
 }
 
 /// Make the plan for an order.
@@ -637,8 +648,9 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let reference = reference_model(&setup.gases, catalogue);
     let other = OtherModels { order, setup: &setup, sequence_names: &sequence_names, catalogue, t_fill, reference };
     let judge = if model == reference { fluid.clone() } else { Fluid::new(catalogue, &setup.gases, reference)? };
+    let judges = judge.phase_judges(catalogue, &setup.gases);
     let (judgements, others) = rayon::join(
-        || judge_steps(&judge, &pressures, t_fill, t_min, order.volume_m3),
+        || judge_steps(&judges, &pressures, t_fill, t_min, order.volume_m3),
         || -> Vec<ModelPlan> { Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other.plan(m)).collect() },
     );
     let steps = build_steps(order, &d, pressures, judgements?, heel.as_ref(), t_fill, options, catalogue);

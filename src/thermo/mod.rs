@@ -206,6 +206,26 @@ impl Fluid {
         self.model
     }
 
+    /// The multi-fluid fluid with its unpublished pairs combined by `estimate` instead (the
+    /// same fluid for any other model).
+    pub fn with_estimate(mut self, catalogue: &Catalogue, gases: &[usize], estimate: multifluid::Estimate) -> Fluid {
+        if self.multi.is_some() {
+            self.multi = Some(std::sync::Arc::new(multifluid::Mixture::with_estimate(catalogue, gases, estimate)));
+        }
+        self
+    }
+
+    /// The fluids that judge phases for this blend: this one and, for the multi-fluid model
+    /// with pairs that have no published parameters, the same with the other usual estimate
+    /// (Lorentz–Berthelot), so that the more condensing of the two can be taken.
+    pub fn phase_judges(&self, catalogue: &Catalogue, gases: &[usize]) -> Vec<Fluid> {
+        let mut judges = vec![self.clone()];
+        if self.multi.as_ref().is_some_and(|m| !m.estimated().1.is_empty()) {
+            judges.push(self.clone().with_estimate(catalogue, gases, multifluid::Estimate::LorentzBerthelot));
+        }
+        judges
+    }
+
     /// The multi-fluid model behind this fluid, where it is that model.
     pub fn multifluid(&self) -> Option<&multifluid::Mixture> {
         self.multi.as_deref()

@@ -15,7 +15,7 @@
 //!
 //! Two estimates stand in where nothing is published, and the model says so
 //! ([`Mixture::estimated`]):
-//! - a gas with no reference equation in those files (NO, NO2, Cl2, NF3, C2H2, C4H6,
+//! - a gas with no reference equation in those files (NO, NO2, NF3, C2H2, C4H6,
 //!   CH3OH) takes Peng–Robinson's residual Helmholtz energy in reduced form, from its
 //!   catalogue Tc, Pc and ω (reducing state Tc and the Peng–Robinson critical density);
 //! - a pair with no published parameters is combined by the "linear" rule (β_T = β_v = 1,

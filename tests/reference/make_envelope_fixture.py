@@ -19,7 +19,7 @@ import math
 import os
 
 import CoolProp
-from CoolProp.CoolProp import AbstractState, PT_INPUTS, apply_simple_mixing_rule, iphase_gas, iphase_liquid
+from CoolProp.CoolProp import AbstractState, PropsSI, PT_INPUTS, apply_simple_mixing_rule, iphase_gas, iphase_liquid
 from scipy.optimize import brentq, minimize_scalar
 
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -136,8 +136,17 @@ def main():
         print(label, ct, 10 ** lp / 1e5, dews)
         out.append({"label": label, "ids": ids, "x": z, "dew_points": dews, "cricondentherm_k": ct,
                     "cricondentherm_pressure_pa": 10 ** lp})
+    # Saturation of the gases whose reference equation the multi-fluid model took from
+    # CoolProp's own library (tools/make_multifluid.py): chlorine.
+    saturation = []
+    for gid, name in [("Cl2", "Chlorine")]:
+        for t in (180.0, 200.0, 239.0, 253.15, 293.15, 350.0, 400.0):
+            saturation.append({"id": gid, "temperature_k": t, "pressure_pa": PropsSI("P", "T", t, "Q", 0, name),
+                               "liquid_density_mol_m3": PropsSI("Dmolar", "T", t, "Q", 0, name),
+                               "vapour_density_mol_m3": PropsSI("Dmolar", "T", t, "Q", 1, name)})
     doc = {"generator": "tests/reference/make_envelope_fixture.py",
-           "library": "CoolProp %s (HEOS fugacity coefficients)" % CoolProp.__version__, "mixtures": out}
+           "library": "CoolProp %s (HEOS fugacity coefficients)" % CoolProp.__version__, "mixtures": out,
+           "saturation": saturation}
     with open(os.path.join(ROOT, "tests", "fixtures", "envelope_reference.json"), "w") as f:
         json.dump(doc, f, indent=1)
 
