@@ -74,10 +74,9 @@ impl Default for Settings {
             min_storage_temperature: "0C".into(),
             // The temperature transport rules use for the rating check (from memory).
             max_service_temperature: "65C".into(),
-            // Set when the envelope came from Peng–Robinson, whose cricondentherm lies up to
-            // 5.4 K below CoolProp's multi-fluid one for the mixtures of
-            // tests/fixtures/phase_reference.json; kept as a safety allowance now that the
-            // envelope is the reference equations' own.
+            // The reference equations' own uncertainty in dew temperatures (see
+            // DEFAULT_CONDENSATION_MARGIN); blends with a gas on Peng–Robinson's form get
+            // more (checks::CUBIC_FORM_MARGIN_K).
             condensation_margin: DEFAULT_CONDENSATION_MARGIN.into(),
             git_commit_on_save: false,
             combine_verification_uncertainty: false,
@@ -92,7 +91,12 @@ impl Default for Settings {
 }
 
 /// The condensation margin when the settings give none.
-pub const DEFAULT_CONDENSATION_MARGIN: &str = "6K";
+/// The margin on the condensation judgement: GERG-2008's stated uncertainty in the
+/// hydrocarbon dew-point temperatures of natural gases, 1 to 2 K (Kunz and Wagner, J. Chem.
+/// Eng. Data 57 (2012) 3032; from memory), rounded up to the larger. The envelope is the
+/// reference equations' own (GERG-2008, or each gas's reference equation in the multi-fluid
+/// model; they agree with CoolProp's to 1e-6 K on the fixture of tests/phases.rs).
+pub const DEFAULT_CONDENSATION_MARGIN: &str = "2K";
 
 /// A temperature difference in kelvin, "6K" (0 to 30 K).
 pub fn parse_margin(text: &str) -> Result<f64, String> {

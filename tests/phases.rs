@@ -176,10 +176,12 @@ fn dew_and_bubble_points_agree_with_thermos_pr_flash_to_a_tenth_of_a_kelvin() {
 }
 
 #[test]
-fn the_margin_covers_the_gap_to_the_multifluid_cricondentherm() {
+fn the_cubic_form_margin_covers_peng_robinsons_gap_to_the_multifluid_cricondentherm() {
+    // A gas on Peng-Robinson's form (no reference equation) brings PR's error into the
+    // envelope: the margin for such blends is PR's measured gap, rounded up.
     let c = Catalogue::built_in();
     let f = fixture();
-    let margin = parse_margin(DEFAULT_CONDENSATION_MARGIN).unwrap();
+    let margin = checks::CUBIC_FORM_MARGIN_K;
     assert!(f.multifluid_cricondentherms.len() >= 6);
     let mut worst: f64 = 0.0;
     for e in &f.multifluid_cricondentherms {
@@ -194,11 +196,22 @@ fn the_margin_covers_the_gap_to_the_multifluid_cricondentherm() {
             e.label,
             e.cricondentherm_k
         );
-        // And PR is not far off the other way either (it is on the low side here).
         assert!(gap > -1.0 && gap < margin, "{}: gap {gap}", e.label);
     }
-    // The margin is the measured gap rounded up, not a blanket.
     assert!(margin - worst < 1.0, "worst gap {worst} K, margin {margin} K");
+    // The default margin is the reference's own uncertainty, well under PR's.
+    let default = parse_margin(DEFAULT_CONDENSATION_MARGIN).unwrap();
+    assert!(default >= 1.0 && default < margin, "{default}");
+    // A blend with NO2 (no reference equation) is judged with the wider margin, and says so.
+    let o = order("Pressure(\"100bar\")", "(gas: \"NO2\", amount: \"1%\"), (gas: \"N2\", amount: \"balance\")");
+    let p = plan::plan(&o, &c, &PlanOptions::default()).unwrap();
+    let narrow = Conditions { margin_k: default, ..CONDITIONS };
+    let cond = checks::screen(&p, &o, &c, &narrow).remove(0);
+    assert_eq!(cond.data["margin_k"], margin, "{:?}", cond.details);
+    assert!(cond.details.iter().any(|d| d.contains("NO2 has no reference equation")), "{:?}", cond.details);
+    let o = order("Pressure(\"100bar\")", "(gas: \"C3H8\", amount: \"5%\"), (gas: \"N2\", amount: \"balance\")");
+    let p = plan::plan(&o, &c, &PlanOptions::default()).unwrap();
+    assert_eq!(checks::screen(&p, &o, &c, &narrow).remove(0).data["margin_k"], default);
 }
 
 fn order(text_fill: &str, components: &str) -> fillwright::recipe::Order {

@@ -9,7 +9,7 @@
 use serde_json::{json, Map, Value};
 
 use super::phase::PhaseFluid;
-use super::{phase_model, Check, Conditions, Severity};
+use super::{phase_model, Check, Conditions, Severity, CUBIC_FORM_MARGIN_K};
 use crate::gas::vapour_pressure::ice_sublimation_pa;
 use crate::gas::Catalogue;
 use crate::plan::{Plan, StepFlag};
@@ -80,6 +80,17 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
         });
     }
 
+    // A gas on Peng–Robinson's form brings that equation's error: the larger margin.
+    let cubic_form: Vec<String> = fluid.multifluid().map_or(Vec::new(), |m| m.estimated().0.to_vec());
+    let widened = Conditions { margin_k: c.margin_k.max(CUBIC_FORM_MARGIN_K), ..*c };
+    let c = if cubic_form.is_empty() { c } else { &widened };
+    if !cubic_form.is_empty() {
+        details.push(format!(
+            "{} has no reference equation here (its share is Peng-Robinson's): margin {:.1} K",
+            cubic_form.join(", "),
+            c.margin_k
+        ));
+    }
     // Pairs without published parameters: the envelope under each usual estimate, and the
     // more condensing one (the higher cricondentherm) judges.
     let mut judged = Vec::new();
@@ -261,10 +272,11 @@ fn found_details(f: &Found, model: Model, c: &Conditions, t_ref: f64) -> Vec<Str
         details.push(format!("cricondentherm {:.1} °C ({:.2} K), {model}", celsius(t), t));
     }
     details.push(format!(
-        "judged down to {:.1} °C: the lowest storage temperature less a margin of {:.1} K (a setting; the dew \
-         points are the reference equations' own, so the margin is a safety allowance)",
+        "judged down to {:.1} °C: the lowest storage temperature less a margin of {:.1} K (the reference \
+         equations' uncertainty in dew points; {} K where a gas is on Peng-Robinson's form; a setting)",
         celsius(t_low),
-        c.margin_k
+        c.margin_k,
+        CUBIC_FORM_MARGIN_K
     ));
     if let Some((lo, hi)) = f.range {
         details.push(if f.capped {

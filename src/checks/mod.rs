@@ -57,10 +57,16 @@ pub struct Conditions {
     pub min_temperature_k: f64,
     /// Highest service temperature, K.
     pub max_temperature_k: f64,
-    /// Margin on the condensation judgement, K: liquid is assumed where the model's dew
-    /// point comes within this of the temperature (the model's measured error).
+    /// Margin on the condensation judgement, K: liquid is assumed where the reference's dew
+    /// point comes within this of the temperature (the reference's own uncertainty).
     pub margin_k: f64,
 }
+
+/// The least margin for a blend with a gas on Peng–Robinson's form in the multi-fluid model
+/// (no reference equation: NO, NO2, NF3, C2H2, C4H6, CH3OH), K: Peng–Robinson's
+/// cricondentherms lie up to 5.4 K below CoolProp's multi-fluid ones for the mixtures of
+/// tests/fixtures/phase_reference.json, rounded up.
+pub const CUBIC_FORM_MARGIN_K: f64 = 6.0;
 
 impl Conditions {
     /// The temperature down to which the equation of state is asked: the lowest storage
