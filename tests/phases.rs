@@ -485,6 +485,7 @@ fn chlorine_at_200_k_each_model_answers_for_itself() {
 #[derive(Deserialize)]
 struct EnvelopeFixture {
     mixtures: Vec<ReferenceEnvelope>,
+    bubble_points: Vec<ReferenceBubble>,
     saturation: Vec<SaturationPoint>,
 }
 
@@ -492,6 +493,15 @@ fn envelope_fixture() -> EnvelopeFixture {
     let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/envelope_reference.json"))
         .unwrap();
     serde_json::from_str(&text).unwrap()
+}
+
+#[derive(Deserialize)]
+struct ReferenceBubble {
+    label: String,
+    ids: Vec<String>,
+    x: Vec<f64>,
+    pressure_pa: f64,
+    bubble_temperature_k: f64,
 }
 
 #[derive(Deserialize)]
@@ -532,6 +542,19 @@ fn reference_envelopes_agree_with_coolprop_to_a_fifth_of_a_kelvin() {
         }
     }
     assert!(dews >= 16, "{dews}");
+    // Bubble points of liquefied blends, by the same fugacities.
+    assert!(f.bubble_points.len() >= 4);
+    for b in &f.bubble_points {
+        let fl = fluid(&c, &b.ids, Model::Multi);
+        let t = PhaseFluid::new(&fl).bubble_temperature(b.pressure_pa, &b.x, 150.0).unwrap().unwrap();
+        assert!(
+            (t - b.bubble_temperature_k).abs() < 0.2,
+            "{} at {} Pa: {t} vs {}",
+            b.label,
+            b.pressure_pa,
+            b.bubble_temperature_k
+        );
+    }
 }
 
 /// States just inside the reference envelope near its cricondentherm (CoolProp's figures
@@ -597,6 +620,8 @@ fn unpublished_pairs_are_judged_with_the_more_condensing_estimate() {
     let o = order("Pressure(\"100bar\")", "(gas: \"SF6\", amount: \"5%\"), (gas: \"N2\", amount: \"balance\")");
     let p = plan::plan(&o, &c, &PlanOptions::default()).unwrap();
     assert_eq!(p.model, Model::Multi);
+    // The sheet says how its liquid flags were judged.
+    assert!(p.notes.iter().any(|n| n.contains("more condensing") && n.contains("SF6-N2")), "{:?}", p.notes);
     let cond = checks::screen(&p, &o, &c, &CONDITIONS).remove(0);
     let ct = cond.data["cricondentherm_k"].as_f64().unwrap();
     let gases = [c.index_of("SF6").unwrap(), c.index_of("N2").unwrap()];

@@ -27,6 +27,7 @@ fn setup(tag: &str) -> (Model, Context, PathBuf) {
         now: stamp,
         session: "test".into(),
         settings_file: Some(dir.join("settings.ron")),
+        beside: None,
     };
     let mut model = Model::new("test library".into(), false);
     update::start(&mut model, &mut ctx);
@@ -586,6 +587,7 @@ fn session_at(dir: &std::path::Path, drafts: &std::path::Path, session: &str) ->
         now: stamp,
         session: session.into(),
         settings_file: None,
+        beside: None,
     };
     let mut model = Model::new("test library".into(), false);
     update::start(&mut model, &mut ctx);
@@ -1989,4 +1991,56 @@ fn a_reading_typed_mid_step_is_not_judged_as_the_steps_end_once_it_is_weighed() 
     let reading = live_scale(&model, 0);
     weigh(&mut model, &mut ctx, &format!("{reading:.3}g"));
     assert!(notes(&model).is_empty(), "{:?}", notes(&model));
+}
+
+/// Where the screen computes the reference equations' answer beside it, an edit shows
+/// Peng-Robinson's quick estimate of the phases at once, marked, and the reference's answer
+/// replaces it when it comes back; an answer for inputs since changed is not taken.
+#[test]
+fn the_reference_phases_replace_the_quick_estimate_without_blocking() {
+    use fillwright::tui::context::Beside;
+    use fillwright::tui::document;
+    let (mut model, mut ctx, dir) = setup("beside");
+    ctx.beside = Some(Beside::new());
+    open(&mut model, &mut ctx, "lpg-in-methane");
+    let estimate = model.doc.as_ref().unwrap().computed.clone();
+    assert!(estimate.phases_estimated);
+    let condensation = |c: &fillwright::tui::model::Computed| {
+        c.checks.as_ref().unwrap().iter().find(|k| k.id == "condensation").unwrap().clone()
+    };
+    let quick = condensation(&estimate);
+    assert!(quick.message.contains("Peng-Robinson estimate"), "{}", quick.message);
+    assert_eq!(quick.data["model"], "pr");
+    keys(&mut model, &mut ctx, &[Key::Char('3')]);
+    assert_eq!(model.view, View::Sheet);
+    assert!(render_at(&model, &ctx, 120, 40).contains("quick estimate"), "{}", render_at(&model, &ctx, 120, 40));
+    // The answer comes back on its own thread (bounded wait).
+    let mut taken = false;
+    for _ in 0..600 {
+        if document::take_beside(&mut model, &ctx) {
+            taken = true;
+            break;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    assert!(taken, "no answer from the reference equations within 6 s");
+    let full = &model.doc.as_ref().unwrap().computed;
+    assert!(!full.phases_estimated);
+    assert!(!render_at(&model, &ctx, 120, 40).contains("quick estimate"));
+    let reference = condensation(full);
+    assert_eq!(reference.data["model"], "gerg");
+    assert!(!reference.message.contains("estimate"), "{}", reference.message);
+    // The same as computing it at once.
+    let direct =
+        fillwright::tui::model::Computed::of(&model.doc.as_ref().unwrap().recipe, &ctx.catalogue, &ctx.settings);
+    assert_eq!(condensation(&direct).data["cricondentherm_k"], reference.data["cricondentherm_k"]);
+    // An answer for inputs that have changed since is left out.
+    let stale = direct.clone();
+    let doc = model.doc.as_mut().unwrap();
+    doc.computed = fillwright::tui::model::Computed::estimate(&doc.recipe, &ctx.catalogue, &ctx.settings);
+    doc.computed.key.push('x');
+    ctx.beside.as_ref().unwrap().tx.send((stale.key.clone(), stale)).unwrap();
+    assert!(!document::take_beside(&mut model, &ctx));
+    assert!(model.doc.as_ref().unwrap().computed.phases_estimated);
+    let _ = std::fs::remove_dir_all(&dir);
 }

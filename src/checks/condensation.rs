@@ -39,9 +39,20 @@ pub fn vapour_pressure(catalogue: &Catalogue, g: usize, t_k: f64) -> Option<(f64
     Some((s.pressure_pa, "below the correlation's range: Peng–Robinson saturation pressure"))
 }
 
-pub fn check(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Check {
-    match run(plan, order, catalogue, c) {
-        Ok(check) => check,
+/// The condensation check, judged by `judge` (None: the blend's reference equations). A
+/// judge other than the reference gives an estimate: the message says so.
+pub fn check(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions, judge: Option<Model>) -> Check {
+    match run(plan, order, catalogue, c, judge) {
+        Ok(mut check) => {
+            let gases: Vec<usize> = plan.gases.clone();
+            if judge.is_some_and(|j| j != phase_model(&gases, catalogue))
+                && check.data.contains_key("liquid_pressure_range_bar")
+            {
+                check.message.push_str(" (Peng-Robinson estimate: the reference equations' verdict follows)");
+                check.data.insert("phases_estimated".into(), json!(true));
+            }
+            check
+        }
         Err(e) => Check {
             id: "condensation",
             severity: Severity::Caution,
@@ -54,13 +65,19 @@ pub fn check(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) 
     }
 }
 
-fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Result<Check, String> {
+fn run(
+    plan: &Plan,
+    order: &Order,
+    catalogue: &Catalogue,
+    c: &Conditions,
+    judge: Option<Model>,
+) -> Result<Check, String> {
     let t_min = c.min_temperature_k;
     let present: Vec<usize> = (0..plan.gases.len()).filter(|&i| plan.components[i].mole_fraction > 0.0).collect();
     let gases: Vec<usize> = present.iter().map(|&i| plan.gases[i]).collect();
     let z: Vec<f64> = present.iter().map(|&i| plan.components[i].mole_fraction).collect();
     let amounts: Vec<f64> = present.iter().map(|&i| plan.components[i].amount_mol).collect();
-    let model = phase_model(&gases, catalogue);
+    let model = judge.unwrap_or_else(|| phase_model(&gases, catalogue));
     let fluid = Fluid::new(catalogue, &gases, model).map_err(|e| e.to_string())?;
     let p_at_min = fluid.pressure(t_min, order.volume_m3, &amounts).map_err(|e| e.to_string())?;
 
@@ -91,11 +108,38 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
             c.margin_k
         ));
     }
-    // Pairs without published parameters: the envelope under each usual estimate, and the
-    // more condensing one (the higher cricondentherm) judges.
+    let found = envelope(&fluid, catalogue, &gases, order, (&z, &amounts), c, (&mut details, &mut data))?;
+    insert_found(&mut data, &found, c);
+    details.extend(found_details(&found, model, c, order.reference_temperature_k));
+    // Every step of the plan: liquid from what is in the cylinder after it.
+    let (flagged, cooled) = steps_flagged(plan);
+    for f in &flagged {
+        details.push(format!(
+            "{f}: liquid forms from what is in the cylinder after it, at the fill temperature or on cooling: its reading \
+             lies above the dew pressure"
+        ));
+    }
+    data.insert("steps_above_dew_point".into(), json!(flagged));
+    data.insert("steps_condensing_if_cooled".into(), json!(cooled));
+    let (severity, message) = verdict(&found, rule.exceeded, &flagged, &cooled, c);
+    Ok(Check { id: "condensation", severity, message, details, data })
+}
+
+/// What the equation of state finds, under each usual estimate for the pairs without
+/// published parameters; the more condensing (the higher cricondentherm) judges, and the
+/// details say so.
+fn envelope(
+    fluid: &Fluid,
+    catalogue: &Catalogue,
+    gases: &[usize],
+    order: &Order,
+    (z, amounts): (&[f64], &[f64]),
+    c: &Conditions,
+    (details, data): (&mut Vec<String>, &mut Map<String, Value>),
+) -> Result<Found, String> {
     let mut judged = Vec::new();
-    for judge in fluid.phase_judges(catalogue, &gases) {
-        judged.push(by_the_equation_of_state(&judge, order, &z, &amounts, c)?);
+    for judge in fluid.phase_judges(catalogue, gases) {
+        judged.push(by_the_equation_of_state(&judge, order, z, amounts, c)?);
     }
     let ct_of = |f: &Found| f.ct.map_or(f64::NEG_INFINITY, |(t, _)| t);
     if let [linear, lorentz] = &judged[..] {
@@ -115,21 +159,7 @@ fn run(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions) -> Res
             json!(if ct_of(lorentz) > ct_of(linear) { "lorentz-berthelot" } else { "linear" }),
         );
     }
-    let found = judged.into_iter().max_by(|a, b| ct_of(a).total_cmp(&ct_of(b))).ok_or("no envelope")?;
-    insert_found(&mut data, &found, c);
-    details.extend(found_details(&found, model, c, order.reference_temperature_k));
-    // Every step of the plan: liquid from what is in the cylinder after it.
-    let (flagged, cooled) = steps_flagged(plan);
-    for f in &flagged {
-        details.push(format!(
-            "{f}: liquid forms from what is in the cylinder after it, at the fill temperature or on cooling: its reading \
-             lies above the dew pressure"
-        ));
-    }
-    data.insert("steps_above_dew_point".into(), json!(flagged));
-    data.insert("steps_condensing_if_cooled".into(), json!(cooled));
-    let (severity, message) = verdict(&found, rule.exceeded, &flagged, &cooled, c);
-    Ok(Check { id: "condensation", severity, message, details, data })
+    judged.into_iter().max_by(|a, b| ct_of(a).total_cmp(&ct_of(b))).ok_or_else(|| "no envelope".to_string())
 }
 
 /// The conservative rule: each condensable component's partial pressure at the lowest

@@ -115,9 +115,21 @@ pub fn phase_model(gases: &[usize], catalogue: &Catalogue) -> Model {
 
 /// Run every check on a planned order.
 pub fn screen(plan: &Plan, order: &Order, catalogue: &Catalogue, conditions: &Conditions) -> Vec<Check> {
+    screen_judged(plan, order, catalogue, conditions, None)
+}
+
+/// [`screen`] with the condensation check's phases judged by `judge` (None: the blend's
+/// reference equations; a cubic gives a quick estimate, which the check says it is).
+pub fn screen_judged(
+    plan: &Plan,
+    order: &Order,
+    catalogue: &Catalogue,
+    conditions: &Conditions,
+    judge: Option<Model>,
+) -> Vec<Check> {
     // The condensation check (the phase envelope) on one core, the rest on the other.
     let (condensation, mut rest) = rayon::join(
-        || condensation::check(plan, order, catalogue, conditions),
+        || condensation::check(plan, order, catalogue, conditions, judge),
         || {
             vec![
                 rating::check(plan, order, conditions),

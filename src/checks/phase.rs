@@ -48,13 +48,26 @@ impl<'a> PhaseFluid<'a> {
     pub fn bubble_temperature(&self, p_pa: f64, z: &[f64], t_floor_k: f64) -> Result<Option<f64>, ThermoError> {
         let Some(dew) = self.dew_temperature(p_pa, z, t_floor_k)? else { return Ok(None) };
         // ln Σ z K at T after the inner iteration; None when it collapses to K = 1.
+        // The model's own fugacities (a cubic's, or a Helmholtz model's), liquid and vapour
+        // branches.
+        let no_root = || ThermoError::NoState { model: self.fluid.model(), why: "no root".into() };
+        let kernel = std::cell::RefCell::new(
+            Kernel::new(self.fluid, t_floor_k).ok_or(ThermoError::NoFugacity(self.fluid.model()))?,
+        );
+        let ln_phi = |t: f64, x: &[f64], root: RootChoice| -> Result<Vec<f64>, ThermoError> {
+            let mut k = kernel.borrow_mut();
+            k.set_temperature(t);
+            let mut out = vec![0.0; x.len()];
+            k.ln_phi_into(p_pa, x, root, &mut out).ok_or_else(no_root)?;
+            Ok(out)
+        };
         let excess = |t: f64| -> Result<Option<f64>, ThermoError> {
-            let (ln_phi_l, _) = self.fluid.ln_phi_on(t, p_pa, z, true)?;
+            let ln_phi_l = ln_phi(t, z, RootChoice::Liquid)?;
             let mut k: Vec<f64> = crate::thermo::phases::wilson(self.fluid, t, p_pa);
             for _ in 0..500 {
                 let sum: f64 = z.iter().zip(&k).map(|(zi, ki)| zi * ki).sum();
                 let y: Vec<f64> = z.iter().zip(&k).map(|(zi, ki)| zi * ki / sum).collect();
-                let (ln_phi_v, _) = self.fluid.ln_phi_on(t, p_pa, &y, false)?;
+                let ln_phi_v = ln_phi(t, &y, RootChoice::Vapour)?;
                 let mut change: f64 = 0.0;
                 for i in 0..k.len() {
                     let new = (ln_phi_l[i] - ln_phi_v[i]).exp();

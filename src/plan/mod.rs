@@ -39,6 +39,9 @@ impl Default for Resolutions {
 /// Choices that override the recipe.
 #[derive(Debug, Clone, Default)]
 pub struct PlanOptions {
+    /// The model that judges each step's liquid; None: the blend's reference equations (a
+    /// cubic here is a quick estimate, marked as one where shown).
+    pub phase_judge: Option<Model>,
     /// The model asked for; wins over the recipe's.
     pub model: Option<Model>,
     /// The model used when neither the options nor the recipe name one (a setting).
@@ -413,6 +416,10 @@ fn multi_estimates(
                 ));
             }
         }
+        notes.push(format!(
+            "liquid is judged with the more condensing of the two usual estimates for {} (linear, Lorentz-Berthelot)",
+            live.join(", ")
+        ));
     }
     notes
 }
@@ -647,7 +654,8 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     // free; rayon keeps the order).
     let reference = reference_model(&setup.gases, catalogue);
     let other = OtherModels { order, setup: &setup, sequence_names: &sequence_names, catalogue, t_fill, reference };
-    let judge = if model == reference { fluid.clone() } else { Fluid::new(catalogue, &setup.gases, reference)? };
+    let judge_model = options.phase_judge.unwrap_or(reference);
+    let judge = if model == judge_model { fluid.clone() } else { Fluid::new(catalogue, &setup.gases, judge_model)? };
     let judges = judge.phase_judges(catalogue, &setup.gases);
     let (judgements, others) = rayon::join(
         || judge_steps(&judges, &pressures, t_fill, t_min, order.volume_m3),

@@ -54,6 +54,30 @@ pub struct Context {
     pub session: String,
     /// The settings file the settings editor writes (None: no config folder).
     pub settings_file: Option<PathBuf>,
+    /// Where the reference equations' answers come back when they are computed beside the
+    /// screen (the event loop's): the screen shows Peng–Robinson's quick estimate of the
+    /// phases meanwhile. None: computed at once (tests, scripted scenes).
+    pub beside: Option<Beside>,
+}
+
+/// The reference equations' answers computed on another thread: (the results' key, them).
+pub struct Beside {
+    pub tx: std::sync::mpsc::Sender<(String, super::model::Computed)>,
+    /// Behind a lock: the context is shared with the library's screening threads.
+    pub rx: std::sync::Mutex<std::sync::mpsc::Receiver<(String, super::model::Computed)>>,
+}
+
+impl Beside {
+    pub fn new() -> Beside {
+        let (tx, rx) = std::sync::mpsc::channel();
+        Beside { tx, rx: std::sync::Mutex::new(rx) }
+    }
+}
+
+impl Default for Beside {
+    fn default() -> Beside {
+        Beside::new()
+    }
 }
 
 impl Context {

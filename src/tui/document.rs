@@ -127,9 +127,55 @@ pub(crate) fn recompute_doc(doc: &mut Document, ctx: &Context) {
 }
 
 pub(crate) fn recompute(doc: &mut Document, ctx: &Context) {
-    doc.computed = Computed::update(&doc.computed, &doc.recipe, &ctx.catalogue, &ctx.settings);
+    doc.computed = computed_for(Some(&doc.computed), &doc.recipe, ctx);
     fit_bench(doc);
     super::views::sheet::sync_from_record(doc, ctx);
+}
+
+/// The results for the recipe: reused where the edit leaves their inputs alone; else
+/// computed at once or, where the screen computes the reference equations' answer beside
+/// it (`ctx.beside`), Peng–Robinson's quick estimate of the phases now, marked, and the
+/// reference's answer on another thread, taken in by [`take_beside`] without blocking
+/// typing.
+fn computed_for(previous: Option<&Computed>, recipe: &Recipe, ctx: &Context) -> Computed {
+    let fresh = previous.is_none_or(|p| p.key != Computed::key_of(recipe, &ctx.settings));
+    match (&ctx.beside, previous) {
+        (Some(beside), _) if fresh => {
+            let estimate = Computed::estimate(recipe, &ctx.catalogue, &ctx.settings);
+            let tx = beside.tx.clone();
+            let (recipe, catalogue, settings) = (recipe.clone(), ctx.catalogue.clone(), ctx.settings.clone());
+            std::thread::spawn(move || {
+                let full = Computed::of(&recipe, &catalogue, &settings);
+                // The screen may have gone: nothing to tell then.
+                let _ = tx.send((full.key.clone(), full));
+            });
+            estimate
+        }
+        (_, Some(previous)) => Computed::update(previous, recipe, &ctx.catalogue, &ctx.settings),
+        (_, None) => Computed::of(recipe, &ctx.catalogue, &ctx.settings),
+    }
+}
+
+/// Take in the reference equations' answers that came back: one for the open recipe as it
+/// stands (the same inputs) replaces the estimate on the screen, with any light edit made
+/// since (a tare moves the scale readings). True where the screen changed.
+pub fn take_beside(model: &mut super::model::Model, ctx: &Context) -> bool {
+    let Some(beside) = &ctx.beside else { return false };
+    let mut changed = false;
+    let came: Vec<(String, Computed)> = match beside.rx.lock() {
+        Ok(rx) => rx.try_iter().collect(),
+        Err(_) => return false,
+    };
+    for (key, full) in came {
+        let Some(doc) = model.doc.as_mut() else { continue };
+        if doc.computed.phases_estimated && doc.computed.key == key {
+            doc.computed = Computed::update(&full, &doc.recipe, &ctx.catalogue, &ctx.settings);
+            fit_bench(doc);
+            super::views::sheet::sync_from_record(doc, ctx);
+            changed = true;
+        }
+    }
+    changed
 }
 
 /// Size the bench's per-step state to the plan and redo the corrected targets.
@@ -148,7 +194,7 @@ pub(crate) fn open_document(
     ctx: &Context,
 ) -> Document {
     let saved = opened.as_ref().map_or_else(|| recipe.clone(), |o| o.recipe.clone());
-    let computed = Computed::of(&recipe, &ctx.catalogue, &ctx.settings);
+    let computed = computed_for(None, &recipe, ctx);
     let mut doc = Document {
         name: name.to_string(),
         opened,

@@ -166,8 +166,17 @@ pub fn run(dir: &Path, open: Option<&str>, seed: bool) -> Result<(), String> {
     let sources = config::config_dir().map(|d| d.join("sources"));
     let session = std::process::id().to_string();
     let settings_file = config::config_dir().map(|d| d.join("settings.ron"));
-    let mut ctx =
-        Context { library, catalogue, settings, drafts, sources, now: clock::now_utc, session, settings_file };
+    let mut ctx = Context {
+        library,
+        catalogue,
+        settings,
+        drafts,
+        sources,
+        now: clock::now_utc,
+        session,
+        settings_file,
+        beside: Some(context::Beside::new()),
+    };
     let mut model = Model::new(dir.display().to_string(), color);
     model.shown = ctx.settings.shown;
     update::start_with(&mut model, &mut ctx, seed);
@@ -209,7 +218,9 @@ fn event_loop(terminal: &mut ratatui::DefaultTerminal, model: &mut Model, ctx: &
             let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
             terminal.draw(|f| view::view(model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
         }
-        if event::poll(Duration::from_millis(200)).map_err(|e| e.to_string())? {
+        // While the screen shows an estimate, look for the reference's answer often.
+        let estimate = model.doc.as_ref().is_some_and(|d| d.computed.phases_estimated);
+        if event::poll(Duration::from_millis(if estimate { 40 } else { 200 })).map_err(|e| e.to_string())? {
             changed = true;
             let msg = match event::read().map_err(|e| e.to_string())? {
                 Event::Key(k) => key_of(&k).map(Msg::Key),
@@ -231,6 +242,7 @@ fn event_loop(terminal: &mut ratatui::DefaultTerminal, model: &mut Model, ctx: &
                 return Ok(());
             }
         }
+        changed |= document::take_beside(model, ctx);
     }
 }
 

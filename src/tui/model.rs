@@ -214,6 +214,9 @@ pub struct Computed {
     /// made when the Models view is shown (the screen's plan leaves it out for speed).
     /// With the plan gases' ids, in the plan's order.
     pub following: Option<(Vec<String>, Vec<crate::plan::Following>)>,
+    /// The phases (step flags, the condensation check) are Peng–Robinson's quick estimate,
+    /// shown until the reference equations' answer, computed beside, replaces them.
+    pub phases_estimated: bool,
 }
 
 impl Computed {
@@ -241,8 +244,18 @@ impl Computed {
     }
 
     pub fn of(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
+        Computed::judged(recipe, catalogue, settings, None)
+    }
+
+    /// The results with the phases judged by Peng–Robinson: the quick estimate the screen
+    /// shows while the reference equations' answer is computed (marked as an estimate).
+    pub fn estimate(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Computed {
+        Computed::judged(recipe, catalogue, settings, Some(Eos::Pr))
+    }
+
+    fn judged(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved, judge: Option<Eos>) -> Computed {
         let order = recipe.resolve(catalogue, "", &recipe.name).map_err(|e| in_screen_words(&e.message));
-        let options = Self::options(settings);
+        let options = PlanOptions { phase_judge: judge, ..Self::options(settings) };
         let make_plan = |o: &Order| plan::plan(o, catalogue, &options).map_err(|e| e.to_string());
         let conditions = settings.conditions();
         // On both cores: the charts beside the plan where the fill pressure is known
@@ -259,18 +272,33 @@ impl Computed {
             Err(e) => (Err(e.clone()), None),
         };
         let (checks, z_curves) = match (&plan, &order, early_curves) {
-            (Ok(p), Ok(o), Some(z)) => (Some(checks::screen(p, o, catalogue, &conditions)), z),
+            (Ok(p), Ok(o), Some(z)) => (Some(checks::screen_judged(p, o, catalogue, &conditions, judge)), z),
             (Ok(p), Ok(o), None) => {
                 let (gases, x) = (&p.gases, p.components.iter().map(|c| c.mole_fraction).collect::<Vec<_>>());
                 let (c, z) = rayon::join(
-                    || checks::screen(p, o, catalogue, &conditions),
+                    || checks::screen_judged(p, o, catalogue, &conditions, judge),
                     || z_curves(gases, &x, p.totals.pressure_pa, o, catalogue),
                 );
                 (Some(c), z)
             }
             _ => (None, Vec::new()),
         };
-        Computed { order, plan, checks, z_curves, key: heavy_key(recipe, settings), reused: false, following: None }
+        let phases_estimated = judge.is_some();
+        Computed {
+            order,
+            plan,
+            checks,
+            z_curves,
+            key: heavy_key(recipe, settings),
+            reused: false,
+            following: None,
+            phases_estimated,
+        }
+    }
+
+    /// What the heavy results of `recipe` under `settings` depend on (see [`Computed::key`]).
+    pub fn key_of(recipe: &Recipe, settings: &Resolved) -> String {
+        heavy_key(recipe, settings)
     }
 
     /// The results for an edited recipe: reused from `previous` when the edit leaves the

@@ -29,6 +29,7 @@ pub fn demo_context(dir: &Path) -> Context {
         now: stamp,
         session: "demo".into(),
         settings_file: None,
+        beside: None,
     }
 }
 

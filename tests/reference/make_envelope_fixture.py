@@ -92,6 +92,49 @@ class Dew:
                 break
         return math.log(s)
 
+    def bubble_excess(self, t, p):
+        """ln S of the feed as a liquid against an incipient vapour y (S = 1 at the bubble
+        point, above 1 above it); None where it falls onto the feed or has no root."""
+        z = self.z
+        try:
+            pl = self.phi(self.l, z, t, p)
+        except ValueError:
+            return None
+        k = [pc / p * math.exp(5.373 * (1 + w) * (1 - tc / t)) for tc, pc, w in zip(self.tc, self.pc, self.om)]
+        y = [zi * ki for zi, ki in zip(z, k)]
+        s = sum(y)
+        y = [yi / s for yi in y]
+        for _ in range(300):
+            try:
+                pv = self.phi(self.v, y, t, p)
+                w = [zi * a / b for zi, a, b in zip(z, pl, pv)]
+            except (ValueError, ZeroDivisionError):
+                return None
+            s = sum(w)
+            new = [wi / s for wi in w]
+            change = max(abs(math.log(a / b)) for a, b in zip(new, y))
+            y = new
+            if max(abs(a - b) for a, b in zip(y, z)) < 1e-6:
+                return None
+            if change < 1e-12:
+                break
+        return math.log(s)
+
+    def bubble(self, p, bottom, top):
+        """The bubble temperature at p: walk up from `bottom` to the first point above it, then Brent."""
+        t, below = bottom, None
+        while t < top:
+            e = self.bubble_excess(t, p)
+            if e is not None and e > 0:
+                if below is None:
+                    return None
+                f = lambda tt: self.bubble_excess(tt, p) if self.bubble_excess(tt, p) is not None else 1.0
+                return brentq(f, below, t, xtol=1e-9, rtol=1e-14)
+            if e is not None:
+                below = t
+            t += 0.5
+        return None
+
     def temperature(self, p, top):
         """The dew temperature at p: walk down from `top` to the first point inside, then Brent."""
         t = top
@@ -144,7 +187,21 @@ def main():
             saturation.append({"id": gid, "temperature_k": t, "pressure_pa": PropsSI("P", "T", t, "Q", 0, name),
                                "liquid_density_mol_m3": PropsSI("Dmolar", "T", t, "Q", 0, name),
                                "vapour_density_mol_m3": PropsSI("Dmolar", "T", t, "Q", 1, name)})
-    doc = {"generator": "tests/reference/make_envelope_fixture.py",
+    # Bubble points of liquefied blends (the feed as a liquid against an incipient vapour).
+    bubbles = []
+    for label, parts, pressures in [
+        ("propane-80-butane-20", [("C3H8", 0.8), ("n-C4H10", 0.2)], [5, 10]),
+        ("propane-95-ethane-5", [("C3H8", 0.95), ("C2H6", 0.05)], [10, 15]),
+    ]:
+        ids = [q[0] for q in parts]
+        z = [q[1] for q in parts]
+        d = Dew(ids, z)
+        for p_bar in pressures:
+            t = d.bubble(p_bar * 1e5, 180.0, max(d.tc))
+            print(label, p_bar, "bubble", t)
+            if t is not None:
+                bubbles.append({"label": label, "ids": ids, "x": z, "pressure_pa": p_bar * 1e5, "bubble_temperature_k": t})
+    doc = {"generator": "tests/reference/make_envelope_fixture.py", "bubble_points": bubbles,
            "library": "CoolProp %s (HEOS fugacity coefficients)" % CoolProp.__version__, "mixtures": out,
            "saturation": saturation}
     with open(os.path.join(ROOT, "tests", "fixtures", "envelope_reference.json"), "w") as f:

@@ -120,6 +120,10 @@ fn step_notes(doc: &Document, model: &Model, p: &crate::plan::Plan, theme: &Them
     let (b, d) = (&doc.bench, &model.shown);
     let mut lines = Vec::new();
     let in_progress = b.record.as_ref().map(|r| r.record.weighings.len().saturating_sub(1));
+    if doc.computed.phases_estimated {
+        let text = "liquid flags: Peng-Robinson's quick estimate; the reference equations' answer follows";
+        lines.extend(wrap_words(text, width).into_iter().map(|l| Line::styled(l, theme.dim())));
+    }
     match (&b.chosen_source, p.steps.get(b.selected)) {
         (Some(c), Some(s)) if in_progress == Some(b.selected) => {
             let text = format!("step {} source {}: {c} (recorded)", b.selected + 1, s.source);
