@@ -83,22 +83,11 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
 
     let ids: Vec<&str> = composition.gases.iter().map(|&g| catalogue.gas(g).id()).collect();
     let reference = crate::plan::reference_model(&composition.gases, &catalogue);
+    let answers = report::Answers { unknown, chosen: &chosen, others: &others, reference };
     match args.common.format {
-        Format::Json => print_json(&report::json(&given, unknown, &chosen, &others, reference, &ids, x)),
+        Format::Json => print_json(&report::json(&given, &answers, &ids, x)),
         Format::Text | Format::Csv => {
-            out!(
-                "{}",
-                report::text(
-                    &composition.describe(&catalogue),
-                    &given,
-                    ambient,
-                    unknown,
-                    &chosen,
-                    &others,
-                    reference,
-                    &settings.shown
-                )
-            )
+            out!("{}", report::text(&composition.describe(&catalogue), &given, ambient, &answers, &settings.shown))
         }
     }
     Ok(())

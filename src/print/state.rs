@@ -8,6 +8,15 @@ use crate::thermo::phases::Phase;
 use crate::thermo::{Model, ThermoError};
 use crate::units::{bar, litres, Shown, Sig};
 
+/// The solved state and every other model's answer to the same question, with the blend's
+/// reference model.
+pub struct Answers<'a> {
+    pub unknown: Unknown,
+    pub chosen: &'a Solved,
+    pub others: &'a [(Model, Result<Solved, ThermoError>)],
+    pub reference: Model,
+}
+
 /// What the reference equations of the blend find where the chosen model finds no liquid:
 /// the reference model and its phase (liquid or two-phase). None where they agree that
 /// there is no liquid, or where the chosen model is the reference.
@@ -35,15 +44,8 @@ fn single_phase_key(unknown: Unknown) -> &'static str {
 }
 
 /// The state as JSON, with every other model's answer for comparison.
-pub fn json(
-    given: &Given,
-    unknown: Unknown,
-    chosen: &Solved,
-    others: &[(Model, Result<Solved, ThermoError>)],
-    reference: Model,
-    ids: &[&str],
-    x: &[f64],
-) -> serde_json::Value {
+pub fn json(given: &Given, a: &Answers, ids: &[&str], x: &[f64]) -> serde_json::Value {
+    let Answers { unknown, chosen, others, reference } = *a;
     let comparison: Vec<serde_json::Value> = others
         .iter()
         .map(|(m, r)| match r {
@@ -99,17 +101,8 @@ fn percent(value: f64, reference: f64) -> f64 {
     (value / reference - 1.0) * 100.0
 }
 
-#[allow(clippy::too_many_arguments)]
-pub fn text(
-    mix: &str,
-    given: &Given,
-    ambient_pa: f64,
-    unknown: Unknown,
-    s: &Solved,
-    others: &[(Model, Result<Solved, ThermoError>)],
-    reference: Model,
-    d: &Shown,
-) -> String {
+pub fn text(mix: &str, given: &Given, ambient_pa: f64, a: &Answers, d: &Shown) -> String {
+    let (unknown, s) = (a.unknown, a.chosen);
     let mut out = String::new();
     let mark = |u: Unknown| if u == unknown { "  <- solved" } else { "" };
     put!(out, "State of {mix}");
@@ -135,7 +128,7 @@ pub fn text(
         s.phase.key(),
         if s.judged_by != s.model { format!("  (judged by {})", s.judged_by.key()) } else { String::new() }
     );
-    out.push_str(&own_answer_notes(unknown, s, others, reference, d));
+    out.push_str(&own_answer_notes(a, d));
     match s.phase {
         Phase::TwoPhase => {
             put!(out);
@@ -156,19 +149,14 @@ pub fn text(
         Phase::Gas | Phase::Supercritical => {}
     }
     put!(out);
-    out.push_str(&comparison(unknown, s, others, reference, d));
+    out.push_str(&comparison(a, d));
     out
 }
 
 /// Beside the answer: the model's one-phase value where it splits, and the reference's
 /// liquid where the model finds none.
-fn own_answer_notes(
-    unknown: Unknown,
-    s: &Solved,
-    others: &[(Model, Result<Solved, ThermoError>)],
-    reference: Model,
-    d: &Shown,
-) -> String {
+fn own_answer_notes(a: &Answers, d: &Shown) -> String {
+    let Answers { unknown, chosen: s, others, reference } = *a;
     let mut out = String::new();
     let shown = |v: f64| match unknown {
         Unknown::Pressure => format!("{} {}", Sig(d.p(v), 6), d.pu()),
@@ -199,13 +187,8 @@ fn short_reason(e: &ThermoError) -> String {
 }
 
 /// Every other model's answer to the same question, against the chosen one.
-fn comparison(
-    unknown: Unknown,
-    s: &Solved,
-    others: &[(Model, Result<Solved, ThermoError>)],
-    reference: Model,
-    d: &Shown,
-) -> String {
+fn comparison(a: &Answers, d: &Shown) -> String {
+    let Answers { unknown, chosen: s, others, reference } = *a;
     let mut out = String::new();
     let unit = match unknown {
         Unknown::Pressure => d.pu(),
