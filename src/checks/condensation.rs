@@ -6,6 +6,8 @@
 //! stability of the cylinder content along its isochore, the cricondentherm, and the
 //! pressure range at the lowest storage temperature in which liquid forms).
 
+use std::fmt::Write as _;
+
 use serde_json::{json, Map, Value};
 
 use super::phase::PhaseFluid;
@@ -43,16 +45,7 @@ pub fn vapour_pressure(catalogue: &Catalogue, g: usize, t_k: f64) -> Option<(f64
 /// judge other than the reference gives an estimate: the message says so.
 pub fn check(plan: &Plan, order: &Order, catalogue: &Catalogue, c: &Conditions, judge: Option<Model>) -> Check {
     match run(plan, order, catalogue, c, judge) {
-        Ok(mut check) => {
-            let gases: Vec<usize> = plan.gases.clone();
-            if judge.is_some_and(|j| j != phase_model(&gases, catalogue))
-                && check.data.contains_key("liquid_pressure_range_bar")
-            {
-                check.message.push_str(" (Peng-Robinson estimate: the reference equations' verdict follows)");
-                check.data.insert("phases_estimated".into(), json!(true));
-            }
-            check
-        }
+        Ok(check) => check,
         Err(e) => Check {
             id: "condensation",
             severity: Severity::Caution,
@@ -77,7 +70,8 @@ fn run(
     let gases: Vec<usize> = present.iter().map(|&i| plan.gases[i]).collect();
     let z: Vec<f64> = present.iter().map(|&i| plan.components[i].mole_fraction).collect();
     let amounts: Vec<f64> = present.iter().map(|&i| plan.components[i].amount_mol).collect();
-    let model = judge.unwrap_or_else(|| phase_model(&gases, catalogue));
+    let reference = phase_model(&gases, catalogue);
+    let model = judge.unwrap_or(reference);
     let fluid = Fluid::new(catalogue, &gases, model).map_err(|e| e.to_string())?;
     let p_at_min = fluid.pressure(t_min, order.volume_m3, &amounts).map_err(|e| e.to_string())?;
 
@@ -121,7 +115,11 @@ fn run(
     }
     data.insert("steps_above_dew_point".into(), json!(flagged));
     data.insert("steps_condensing_if_cooled".into(), json!(cooled));
-    let (severity, message) = verdict(&found, rule.exceeded, &flagged, &cooled, c);
+    let (severity, mut message) = verdict(&found, rule.exceeded, &flagged, &cooled, c);
+    if model != reference {
+        let _ = write!(message, " ({} estimate: the reference equations' verdict follows)", model.title());
+        data.insert("phases_estimated".into(), json!(true));
+    }
     Ok(Check { id: "condensation", severity, message, details, data })
 }
 

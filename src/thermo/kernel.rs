@@ -131,11 +131,7 @@ impl CubicAt {
     /// Z of composition `x` at `p_pa` on the root of lowest Gibbs energy; None where the
     /// cubic has no root above B.
     pub fn stable_z(&mut self, p_pa: f64, x: &[f64]) -> Option<f64> {
-        let (a, b) = self.mix(x);
-        let rt = R * self.t_k;
-        let (big_a, big_b) = (a * p_pa / (rt * rt), b * p_pa / rt);
-        let (roots, count) = z_roots(self.kind, big_a, big_b);
-        pick(self.kind, RootChoice::Stable, &roots[..count], big_a, big_b)
+        self.z_on(p_pa, x, RootChoice::Stable)
     }
 
     /// Z of composition `x` at `p_pa` on the chosen root; None where the cubic has no root
@@ -271,7 +267,8 @@ impl HelmholtzAt {
         let starts: Vec<f64> = match root {
             RootChoice::Vapour => pr_vapour.into_iter().collect(),
             RootChoice::Liquid => pr_liquid.into_iter().collect(),
-            RootChoice::Stable => pr_vapour.into_iter().chain(pr_liquid).collect(),
+            // One start where Peng–Robinson has one root.
+            RootChoice::Stable => pr_vapour.into_iter().chain(pr_liquid.filter(|l| Some(*l) != pr_vapour)).collect(),
         };
         self.mix.lowest_gibbs_density(t, p_pa, x, &starts).or_else(|| {
             let all: Vec<f64> = [pr_vapour, pr_liquid, Some(p_pa / (R * t))].into_iter().flatten().collect();

@@ -155,7 +155,7 @@ pub fn reference_equation(id: &str) -> Option<(&'static str, &'static str)> {
     indexed(Set::Reference).fluids.get(id).map(|f| (f.file, f.source))
 }
 
-/// GERG-2008's gas constant, J/(mol K) (Kunz and Wagner 2012, Table A3.1).
+/// GERG-2008's gas constant, J/(mol K) (Kunz and Wagner 2012; the aga8 crate's `RGERG`).
 const GERG_R: f64 = 8.314_472;
 
 /// Peng–Robinson's critical compressibility factor.

@@ -64,72 +64,54 @@ class Dew:
         st.update(PT_INPUTS, p, t)
         return [st.fugacity_coefficient(i) for i in range(len(x))]
 
-    def excess(self, t, p):
-        """ln S at (T, P) after the liquid iteration; None where it falls onto the feed or
-        a phase has no root."""
+    def incipient(self, t, p, liquid_feed):
+        """ln S at (T, P): the feed (a vapour for a dew point, a liquid for a bubble point)
+        against an incipient phase of the other kind, w_i = z_i phi_i(feed) / phi_i(w) / S by
+        successive substitution from Wilson's K-values; S = 1 on the boundary, above 1 inside.
+        None where it falls onto the feed or a phase has no root."""
         z = self.z
+        feed, other = (self.l, self.v) if liquid_feed else (self.v, self.l)
         try:
-            pv = self.phi(self.v, z, t, p)
+            pf = self.phi(feed, z, t, p)
         except ValueError:
             return None
         k = [pc / p * math.exp(5.373 * (1 + w) * (1 - tc / t)) for tc, pc, w in zip(self.tc, self.pc, self.om)]
-        x = [zi / ki for zi, ki in zip(z, k)]
-        s = sum(x)
-        x = [xi / s for xi in x]
+        w = [zi * ki if liquid_feed else zi / ki for zi, ki in zip(z, k)]
+        s = sum(w)
+        w = [wi / s for wi in w]
         for _ in range(300):
             try:
-                pl = self.phi(self.l, x, t, p)
-            except ValueError:
+                po = self.phi(other, w, t, p)
+                raw = [zi * a / b for zi, a, b in zip(z, pf, po)]
+            except (ValueError, ZeroDivisionError):
                 return None
-            w = [zi * a / b for zi, a, b in zip(z, pv, pl)]
-            s = sum(w)
-            new = [wi / s for wi in w]
-            change = max(abs(math.log(a / b)) for a, b in zip(new, x))
-            x = new
-            if max(abs(a - b) for a, b in zip(x, z)) < 1e-6:
+            s = sum(raw)
+            new = [ri / s for ri in raw]
+            change = max(abs(math.log(a / b)) for a, b in zip(new, w))
+            w = new
+            if max(abs(a - b) for a, b in zip(w, z)) < 1e-6:
                 return None
             if change < 1e-12:
                 break
         return math.log(s)
 
-    def bubble_excess(self, t, p):
-        """ln S of the feed as a liquid against an incipient vapour y (S = 1 at the bubble
-        point, above 1 above it); None where it falls onto the feed or has no root."""
-        z = self.z
-        try:
-            pl = self.phi(self.l, z, t, p)
-        except ValueError:
-            return None
-        k = [pc / p * math.exp(5.373 * (1 + w) * (1 - tc / t)) for tc, pc, w in zip(self.tc, self.pc, self.om)]
-        y = [zi * ki for zi, ki in zip(z, k)]
-        s = sum(y)
-        y = [yi / s for yi in y]
-        for _ in range(300):
-            try:
-                pv = self.phi(self.v, y, t, p)
-                w = [zi * a / b for zi, a, b in zip(z, pl, pv)]
-            except (ValueError, ZeroDivisionError):
-                return None
-            s = sum(w)
-            new = [wi / s for wi in w]
-            change = max(abs(math.log(a / b)) for a, b in zip(new, y))
-            y = new
-            if max(abs(a - b) for a, b in zip(y, z)) < 1e-6:
-                return None
-            if change < 1e-12:
-                break
-        return math.log(s)
+    def bracketed(self, p, liquid_feed, outside, inside, missing):
+        """Brent's method on ln S between a point outside and one inside; `missing` stands
+        for ln S where the iteration gives none."""
+        def f(t):
+            e = self.incipient(t, p, liquid_feed)
+            return missing if e is None else e
+        return brentq(f, min(outside, inside), max(outside, inside), xtol=1e-9, rtol=1e-14)
 
     def bubble(self, p, bottom, top):
         """The bubble temperature at p: walk up from `bottom` to the first point above it, then Brent."""
         t, below = bottom, None
         while t < top:
-            e = self.bubble_excess(t, p)
+            e = self.incipient(t, p, True)
             if e is not None and e > 0:
                 if below is None:
                     return None
-                f = lambda tt: self.bubble_excess(tt, p) if self.bubble_excess(tt, p) is not None else 1.0
-                return brentq(f, below, t, xtol=1e-9, rtol=1e-14)
+                return self.bracketed(p, True, below, t, 1.0)
             if e is not None:
                 below = t
             t += 0.5
@@ -140,12 +122,11 @@ class Dew:
         t = top
         outside = None
         while t > 60:
-            e = self.excess(t, p)
+            e = self.incipient(t, p, False)
             if e is not None and e > 0:
                 if outside is None:
                     return None
-                return brentq(lambda tt: self.excess(tt, p) if self.excess(tt, p) is not None else -1.0,
-                              t, outside, xtol=1e-9, rtol=1e-14)
+                return self.bracketed(p, False, outside, t, -1.0)
             if e is not None:
                 outside = t
             t -= 0.5
