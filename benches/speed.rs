@@ -53,6 +53,11 @@ fn recompute(cr: &mut Criterion) {
     for (name, text) in fillwright::recipe::demo::RECIPES {
         let recipe = fillwright::recipe::Recipe::parse(text, name).expect("demo recipe");
         g.bench_function(*name, |b| b.iter(|| fillwright::tui::model::Computed::of(black_box(&recipe), &c, &settings)));
+        // What the screen waits for on an edit: the phases by Peng–Robinson's estimate (the
+        // reference's answer comes on another thread).
+        g.bench_function(format!("{name}, screen's estimate"), |b| {
+            b.iter(|| fillwright::tui::model::Computed::estimate(black_box(&recipe), &c, &settings))
+        });
     }
     g.finish();
 }
