@@ -40,3 +40,111 @@ pub fn write_library(dir: &Path, n: usize) -> std::io::Result<()> {
     }
     Ok(())
 }
+
+/// The kinds of blend in the benchmark panel (see [`panel`]), in the order they cycle.
+pub const PANEL_KINDS: [&str; 4] = ["calibration", "methane-rich", "natural gas", "wide"];
+
+/// A seeded panel of `count` recipes for the benchmarks (`benches/panel.rs`), each kind of
+/// [`PANEL_KINDS`] in turn: `calibration` (1–4 gases from 10 ppm to 5 % in nitrogen, 50–200
+/// bar), `methane-rich` (1–3 of CO2, ethane, nitrogen, propane at percent levels in methane,
+/// 80–180 bar: the cricondentherm search near methane's critical region), `natural gas`
+/// (9–12 components, 60–150 bar) and `wide` (12–21 components with heavy traces at ppm
+/// levels, 30–100 bar). The same seed gives the same recipes. Invented blends for timing,
+/// not orders.
+pub fn panel(seed: u64, count: usize) -> Vec<(&'static str, crate::recipe::Recipe)> {
+    use rand::{Rng, SeedableRng};
+    let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(seed);
+    (0..count)
+        .filter_map(|k| {
+            let kind = PANEL_KINDS[k % PANEL_KINDS.len()];
+            let (balance, lines, bar) = match k % PANEL_KINDS.len() {
+                0 => ("N2", calibration(&mut rng), rng.random_range(50..=200)),
+                1 => ("CH4", methane_rich(&mut rng), rng.random_range(80..=180)),
+                2 => ("CH4", natural_gas(&mut rng, 0), rng.random_range(60..=150)),
+                _ => {
+                    let extra = rng.random_range(3..=12);
+                    ("CH4", natural_gas(&mut rng, extra), rng.random_range(30..=100))
+                }
+            };
+            let fill_c = rng.random_range(5..=30);
+            let text = panel_recipe(&format!("panel-{k:04}"), &lines, balance, bar, fill_c);
+            crate::recipe::Recipe::parse(&text, "panel").ok().map(|r| (kind, r))
+        })
+        .collect()
+}
+
+/// A share between `lo` and `hi` (mole fractions), uniform in its logarithm.
+fn log_uniform(rng: &mut impl rand::Rng, lo: f64, hi: f64) -> f64 {
+    (lo.ln() + rng.random_range(0.0..1.0) * (hi / lo).ln()).exp()
+}
+
+/// `k` distinct picks from `from`, in its order.
+fn pick<T: Copy>(rng: &mut impl rand::Rng, from: &[T], k: usize) -> Vec<T> {
+    let mut chosen: Vec<usize> = Vec::new();
+    while chosen.len() < k.min(from.len()) {
+        let i = rng.random_range(0..from.len());
+        if !chosen.contains(&i) {
+            chosen.push(i);
+        }
+    }
+    chosen.sort_unstable();
+    chosen.into_iter().map(|i| from[i]).collect()
+}
+
+fn calibration(rng: &mut impl rand::Rng) -> Vec<(&'static str, f64)> {
+    let gases = ["CO", "CO2", "CH4", "C3H8", "NO", "SO2", "H2", "Ar", "He"];
+    let k = rng.random_range(1..=4);
+    pick(rng, &gases, k).into_iter().map(|g| (g, log_uniform(rng, 1e-5, 0.05))).collect()
+}
+
+fn methane_rich(rng: &mut impl rand::Rng) -> Vec<(&'static str, f64)> {
+    let gases = [("CO2", 0.02, 0.15), ("C2H6", 0.02, 0.15), ("N2", 0.01, 0.10), ("C3H8", 0.005, 0.03)];
+    let k = rng.random_range(1..=3);
+    pick(rng, &gases, k).into_iter().map(|(g, lo, hi)| (g, rng.random_range(lo..hi))).collect()
+}
+
+/// A nine-component natural gas and `extra` more: light gases at 0.01–1 %, heavy ones
+/// (C6 and above, aromatics, H2S) at 5–200 ppm.
+fn natural_gas(rng: &mut impl rand::Rng, extra: usize) -> Vec<(&'static str, f64)> {
+    let base = [
+        ("C2H6", 0.02, 0.10),
+        ("C3H8", 0.005, 0.04),
+        ("i-C4H10", 5e-4, 8e-3),
+        ("n-C4H10", 5e-4, 8e-3),
+        ("i-C5H12", 1e-4, 3e-3),
+        ("n-C5H12", 1e-4, 3e-3),
+        ("N2", 0.005, 0.05),
+        ("CO2", 0.005, 0.03),
+    ];
+    let mut lines: Vec<(&str, f64)> = base.iter().map(|&(g, lo, hi)| (g, log_uniform(rng, lo, hi))).collect();
+    let more = [
+        ("n-C6H14", 5e-6, 2e-4),
+        ("n-C7H16", 5e-6, 1e-4),
+        ("n-C8H18", 5e-6, 5e-5),
+        ("C6H6", 5e-6, 1e-4),
+        ("C7H8", 5e-6, 5e-5),
+        ("H2S", 5e-6, 2e-4),
+        ("He", 1e-4, 1e-2),
+        ("H2", 1e-4, 1e-2),
+        ("Ar", 1e-4, 1e-2),
+        ("CO", 1e-4, 1e-2),
+        ("C2H4", 1e-4, 1e-2),
+        ("C3H6", 1e-4, 5e-3),
+    ];
+    lines.extend(pick(rng, &more, extra).into_iter().map(|(g, lo, hi)| (g, log_uniform(rng, lo, hi))));
+    lines
+}
+
+/// The text of a panel recipe.
+fn panel_recipe(name: &str, lines: &[(&str, f64)], balance: &str, bar: u32, fill_c: u32) -> String {
+    let components: String = lines
+        .iter()
+        .map(|(g, x)| format!("        (gas: \"{g}\", amount: \"{:.6}%\", tolerance: \"2%rel\"),\n", x * 100.0))
+        .collect();
+    format!(
+        "Recipe(\n    format: 1,\n    name: \"{name}\",\n    components: [\n{components}        (gas: \"{balance}\", \
+         amount: \"balance\"),\n    ],\n    cylinder: (water_capacity: \"10L\", working_pressure: \"200bar\", \
+         test_pressure: \"300bar\", tare: \"13.5kg\"),\n    fill: Pressure(\"{bar}bar\"),\n    \
+         reference_temperature: \"15C\",\n    fill_temperature: \"{fill_c}C\",\n)\n"
+    )
+}

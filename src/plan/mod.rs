@@ -638,7 +638,10 @@ pub fn plan(order: &Order, catalogue: &Catalogue, options: &PlanOptions) -> Resu
 fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, depth: usize) -> Result<Plan, PlanError> {
     let setup = setup(order);
     let model = options.model.or(order.model).unwrap_or_else(|| default_model(&setup.gases, catalogue));
-    let fluid = Fluid::new(catalogue, &setup.gases, model)?;
+    // A cubic asked to judge the phases is the quick estimate: it judges every model's own
+    // states too (their pressures and densities stay their own).
+    let estimating = options.phase_judge.is_some_and(Model::is_cubic);
+    let fluid = estimated(Fluid::new(catalogue, &setup.gases, model)?, estimating);
     let t_fill = options.fill_temperature_k.unwrap_or(order.fill_temperature_k);
     let t_ref = order.reference_temperature_k;
     let sequence_names =
@@ -653,7 +656,8 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     // Every other model's own plan, beside the judgements (each on a core where one is
     // free; rayon keeps the order).
     let reference = reference_model(&setup.gases, catalogue);
-    let other = OtherModels { order, setup: &setup, sequence_names: &sequence_names, catalogue, t_fill, reference };
+    let other =
+        OtherModels { order, setup: &setup, sequence_names: &sequence_names, catalogue, t_fill, reference, estimating };
     let judge_model = options.phase_judge.unwrap_or(reference);
     let judge = if model == judge_model { fluid.clone() } else { Fluid::new(catalogue, &setup.gases, judge_model)? };
     let judges = judge.phase_judges(catalogue, &setup.gases);
@@ -758,12 +762,23 @@ struct OtherModels<'a> {
     catalogue: &'a Catalogue,
     t_fill: f64,
     reference: Model,
+    /// Whether the phases are the quick estimate (see [`PlanOptions::phase_judge`]).
+    estimating: bool,
+}
+
+/// `fluid`, with its phases judged by the Peng–Robinson screen when `estimating`.
+fn estimated(fluid: Fluid, estimating: bool) -> Fluid {
+    if estimating {
+        fluid.with_phases_estimated()
+    } else {
+        fluid
+    }
 }
 
 impl OtherModels<'_> {
     /// Model `m`'s own plan: its total amount, Z and stop readings.
     fn plan(&self, m: Model) -> ModelPlan {
-        let OtherModels { order, setup, sequence_names, catalogue, t_fill, reference } = *self;
+        let OtherModels { order, setup, sequence_names, catalogue, t_fill, reference, estimating } = *self;
         let t_ref = order.reference_temperature_k;
         if m == Model::Multi && reference == Model::Gerg {
             // GERG-2008 is the reference here; the multi-fluid model (asked for with
@@ -772,6 +787,7 @@ impl OtherModels<'_> {
         }
         let result = Fluid::new(catalogue, &setup.gases, m)
             .map_err(PlanError::from)
+            .map(|f| estimated(f, estimating))
             .and_then(|f| {
                 let dm = dosing(&f, order, setup, sequence_names, catalogue)?;
                 let ps = step_pressures(&f, order, setup, &dm, t_fill)?;

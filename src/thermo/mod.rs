@@ -75,6 +75,11 @@ impl Model {
         }
     }
 
+    /// Whether the model is one of the cubic equations of state.
+    pub fn is_cubic(self) -> bool {
+        self.cubic_kind().is_some()
+    }
+
     fn cubic_kind(self) -> Option<CubicKind> {
         match self {
             Model::Vdw => Some(CubicKind::VanDerWaals),
@@ -149,6 +154,10 @@ pub struct Fluid {
     /// The Peng–Robinson fluid on the same gases that gives first estimates (saturation
     /// starts) for a model that is not a cubic, made once.
     screen: Option<std::sync::Arc<Fluid>>,
+    /// Whether the phases of a Helmholtz model are judged by the Peng–Robinson screen
+    /// instead of its own fugacities: the quick estimate the screen shows at once (see
+    /// [`Fluid::with_phases_estimated`]).
+    phases_estimated: bool,
 }
 
 impl Fluid {
@@ -194,6 +203,7 @@ impl Fluid {
                 _ => None,
             },
             screen: None,
+            phases_estimated: false,
         };
         if let Some(kij) = screen_kij {
             let screen = Fluid { model: Model::Pr, kij, gerg: None, multi: None, gerg_mix: None, ..fluid.clone() };
@@ -213,6 +223,24 @@ impl Fluid {
             self.multi = Some(std::sync::Arc::new(multifluid::Mixture::with_estimate(catalogue, gases, estimate)));
         }
         self
+    }
+
+    /// The same fluid with its phases judged by the Peng–Robinson screen (a quick estimate,
+    /// for the screen while the model's own judgement is made elsewhere): its pressures,
+    /// densities and flashes stay its own, only the stability test is the cubic's. No change
+    /// for a cubic or the ideal gas.
+    pub fn with_phases_estimated(mut self) -> Fluid {
+        self.phases_estimated = self.screen.is_some() && self.model.cubic_kind().is_none();
+        self
+    }
+
+    /// The model whose fugacities judge this fluid's phases.
+    pub fn phase_model(&self) -> Model {
+        if self.phases_estimated {
+            Model::Pr
+        } else {
+            self.model
+        }
     }
 
     /// The fluids that judge phases for this blend: this one and, for the multi-fluid model

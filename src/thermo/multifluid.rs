@@ -338,6 +338,43 @@ impl Mixture {
         (t, v.recip())
     }
 
+    /// T_r and ρ_r of `x` with their derivatives in each x_k (the x_k taken as
+    /// independent), in one pass over the pairs: for the pair term
+    /// f(a, b) = 2ab(a + b)/(β²a + b) (a = x_i, b = x_j, h = β²a + b),
+    /// ∂f/∂a = 2b(a + b + a)/h − 2ab(a + b)β²/h² and ∂f/∂b = 2a(a + b + b)/h − 2ab(a + b)/h²
+    /// (Kunz and Wagner 2012, eqs. 7.9–7.10 and Table B4's derivatives of them).
+    fn reducing_gradient(&self, x: &[f64]) -> (f64, f64, Vec<f64>, Vec<f64>) {
+        let n = x.len();
+        let (mut t, mut v) = (0.0, 0.0);
+        let (mut d_t, mut d_v) = (vec![0.0; n], vec![0.0; n]);
+        for i in 0..n {
+            let a = x[i];
+            t += a * a * self.t_c[i];
+            v += a * a / self.rho_c[i];
+            d_t[i] += 2.0 * a * self.t_c[i];
+            d_v[i] += 2.0 * a / self.rho_c[i];
+            for j in i + 1..n {
+                let b = x[j];
+                if a == 0.0 && b == 0.0 {
+                    continue;
+                }
+                let p = &self.pairs[i * n + j];
+                let add = |beta: f64, c: f64, y: &mut f64, d: &mut [f64]| {
+                    let (g, h) = (a + b, beta * beta * a + b);
+                    let f = 2.0 * a * b * g / h;
+                    *y += c * f;
+                    d[i] += c * (2.0 * b * (g + a) / h - f * beta * beta / h);
+                    d[j] += c * (2.0 * a * (g + b) / h - f / h);
+                };
+                add(p.beta_t, p.beta_t * p.gamma_t * p.t_ij, &mut t, &mut d_t);
+                add(p.beta_v, p.beta_v * p.gamma_v * p.v_ij, &mut v, &mut d_v);
+            }
+        }
+        // ρ_r = 1/v_r: ∂ρ_r/∂x_k = −(∂v_r/∂x_k)/v_r².
+        let d_rho = d_v.iter().map(|d| -d / (v * v)).collect();
+        (t, 1.0 / v, d_t, d_rho)
+    }
+
     /// α^r at (δ, τ, x) with dual numbers in any of them (the definition the tests check
     /// [`Mixture::ln_phi`] against).
     #[cfg(test)]
@@ -484,20 +521,7 @@ impl Mixture {
     /// α^r_τ, whatever the number of gases (where a pass per gas would be n).
     pub fn ln_phi(&self, t_k: f64, rho: f64, x: &[f64]) -> Vec<f64> {
         let n = x.len();
-        let xd: Vec<D2> = x.iter().map(|&v| D2::c(v)).collect();
-        let (tr, rr) = self.reducing(&xd);
-        let (tr, rr) = (tr.v, rr.v);
-        // ∂T_r/∂x_k and ∂ρ_r/∂x_k, each x_k in turn the variable.
-        let mut d_tr = vec![0.0; n];
-        let mut d_rr = vec![0.0; n];
-        let mut xk = xd.clone();
-        for k in 0..n {
-            xk[k] = D2::var(x[k]);
-            let (t, r) = self.reducing(&xk);
-            d_tr[k] = t.d;
-            d_rr[k] = r.d;
-            xk[k] = D2::c(x[k]);
-        }
+        let (tr, rr, d_tr, d_rr) = self.reducing_gradient(x);
         let (delta, tau) = (rho / rr, tr / t_k);
         // Each pure gas's α^r_oi and each pair's departure α^r_ij at (δ, τ), with their δ
         // and τ derivatives.
@@ -987,6 +1011,29 @@ mod tests {
             }
         }
         assert!(checked >= 30, "{checked}");
+    }
+
+    #[test]
+    fn the_reducing_gradient_is_the_dual_numbers_derivative() {
+        // The analytic pass against dual numbers through the reducing functions, one x_k
+        // at a time; with an absent gas (its pair terms' derivatives are not zero).
+        let c = Catalogue::built_in();
+        let ids = ["CH4", "N2", "CO2", "C2H6", "C3H8", "H2S"];
+        let gases: Vec<usize> = ids.iter().map(|id| c.index_of(id).unwrap()).collect();
+        let x = [0.8, 0.05, 0.05, 0.07, 0.03, 0.0];
+        for m in [Mixture::new(&c, &gases), Mixture::gerg2008(&c, &gases).unwrap()] {
+            let (t, rho, d_t, d_rho) = m.reducing_gradient(&x);
+            let xd: Vec<D2> = x.iter().map(|&v| D2::c(v)).collect();
+            let (t0, rho0) = m.reducing(&xd);
+            assert!((t - t0.v).abs() < 1e-12 * t && (rho - rho0.v).abs() < 1e-12 * rho);
+            for k in 0..x.len() {
+                let mut xk = xd.clone();
+                xk[k] = D2::var(x[k]);
+                let (tk, rk) = m.reducing(&xk);
+                assert!((d_t[k] - tk.d).abs() < 1e-10 * tk.d.abs().max(1.0), "{k}: {} vs {}", d_t[k], tk.d);
+                assert!((d_rho[k] - rk.d).abs() < 1e-10 * rk.d.abs().max(1.0), "{k}: {} vs {}", d_rho[k], rk.d);
+            }
+        }
     }
 
     #[test]

@@ -144,6 +144,9 @@ impl<'a> TangentPlane<'a> {
                 self.x[i] = w[i] / sum;
             }
             cubic.ln_phi_into(self.p_pa, &self.x, RootChoice::Stable, &mut self.ln_phi)?;
+            if self.heading_to_feed(w) {
+                return Some(Stationary::Feed);
+            }
             let mut change: f64 = 0.0;
             let mut distance: f64 = 0.0;
             for i in 0..n {
@@ -164,6 +167,28 @@ impl<'a> TangentPlane<'a> {
             }
         }
         Some(Stationary::Unsettled)
+    }
+
+    /// Whether the iteration at `w` (with `ln_phi` at its composition) is on its way to
+    /// the feed: Michelsen's test on tm* = 1 + Σ W_i (ln W_i + ln φ_i − d_i − 1) and
+    /// β = Σ (W_i − z_i)(ln W_i − ln z_i), which near the feed are in the ratio 2 tm*/β → 1
+    /// (Michelsen and Mollerup, Thermodynamic Models, ch. 10: β < 1e-4 with the ratio
+    /// within 0.2 — from memory). Stops the slow last approach to the trivial solution,
+    /// which needed every trace's ln W converged to 1e-4.
+    fn heading_to_feed(&self, w: &[f64]) -> bool {
+        let (mut tm, mut beta) = (1.0, 0.0);
+        for i in 0..w.len() {
+            if self.z[i] <= TRACE {
+                continue;
+            }
+            if w[i] <= 0.0 {
+                return false;
+            }
+            let ln_w = w[i].ln();
+            tm += w[i] * (ln_w + self.ln_phi[i] - self.d[i] - 1.0);
+            beta += (w[i] - self.z[i]) * (ln_w - self.ln_z[i]);
+        }
+        beta > 0.0 && beta < 1e-4 && (2.0 * tm / beta - 1.0).abs() < 0.2
     }
 }
 
@@ -235,6 +260,11 @@ impl Fluid {
     /// arguments already checked).
     fn stability_on(&self, cubic: &mut Kernel, p_pa: f64, z: &[f64]) -> Result<Option<Vec<f64>>, ThermoError> {
         let t_k = cubic.temperature_k();
+        if self.phases_estimated {
+            let screen = self.cubic_estimate();
+            let mut estimate = Kernel::new(screen, t_k).ok_or(ThermoError::NoFugacity(screen.model))?;
+            return screen.stability_on(&mut estimate, p_pa, z);
+        }
         let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
         let mut tpd = TangentPlane::new(cubic, p_pa, z).ok_or_else(no_root)?;
         let k = wilson(self, t_k, p_pa);
@@ -379,13 +409,15 @@ impl Fluid {
         match self.stability(t_k, p_pa, z)? {
             None => {
                 let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
-                Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.model))
+                Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.phase_model()))
             }
+            // The quick estimate splits the feed with the screen's own flash too.
+            Some(_) if self.phases_estimated => self.cubic_estimate().equilibrium_tp(t_k, p_pa, z),
             Some(trial) => match self.flash(t_k, p_pa, z, &trial)? {
                 Some(e) => Ok(e),
                 None => {
                     let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
-                    Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.model))
+                    Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.phase_model()))
                 }
             },
         }
@@ -407,7 +439,7 @@ impl Fluid {
             return self.pure_equilibrium_tv(i, t_k, v, z);
         }
         if let Some(p) = self.single_phase_at(t_k, v, &z)? {
-            return Ok(single(self.label(t_k, p, &z, v), p, v, self.model));
+            return Ok(single(self.label(t_k, p, &z, v), p, v, self.phase_model()));
         }
         self.split_at_volume(t_k, v, &z, volume_m3)
     }
@@ -446,12 +478,29 @@ impl Fluid {
     /// Contents that split: the pressure whose equilibrium volume is
     /// `v`, with the phases' amounts from the lever rule.
     fn split_at_volume(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
+        if self.phases_estimated {
+            // The quick estimate: the screen's equilibrium where the screen finds a split.
+            return self.cubic_estimate().split_at_volume(t_k, v, z, volume_m3);
+        }
         // Split: find the pressure whose equilibrium volume is V/n. The
         // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
         // on ln v_eq − ln v over ln P, bisecting every third step, to 1e-9 in ln P.
         let target = v.ln();
+        // Each split found starts the next pressure's flash (its K-values): the stability
+        // test and the flash from its trial phase run only where that start falls back to
+        // one phase (Michelsen's practice along a sequence of states).
+        let last_k: std::cell::RefCell<Option<Vec<f64>>> = std::cell::RefCell::new(None);
         let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
-            let e = self.equilibrium_tp(t_k, lp.exp().min(MAX_PRESSURE_PA), z)?;
+            let p = lp.exp().min(MAX_PRESSURE_PA);
+            let warm = last_k.borrow().clone();
+            let e = match warm.map(|k| self.flash_from(t_k, p, z, k)).transpose()?.flatten() {
+                Some(e) => e,
+                None => self.equilibrium_tp(t_k, p, z)?,
+            };
+            *last_k.borrow_mut() = match (&e.liquid, &e.vapour) {
+                (Some(x), Some(y)) => Some(x.iter().zip(y).map(|(xi, yi)| yi / xi.max(1e-300)).collect()),
+                _ => None,
+            };
             Ok((e.molar_volume_m3.ln() - target, e))
         };
         let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
@@ -500,7 +549,7 @@ impl Fluid {
             }
         }
         best.molar_volume_m3 = v;
-        best.judged_by = self.model;
+        best.judged_by = self.phase_model();
         Ok(best)
     }
 
@@ -546,7 +595,7 @@ impl Fluid {
         let wilson_k = wilson(self, t_k, p_pa);
         let trial_is_vapour =
             trial.iter().zip(&wilson_k).zip(z).map(|((w, k), zi)| w * k.ln() - zi * k.ln()).sum::<f64>() > 0.0;
-        let mut k: Vec<f64> = z
+        let k: Vec<f64> = z
             .iter()
             .zip(trial)
             .zip(&wilson_k)
@@ -560,6 +609,12 @@ impl Fluid {
                 }
             })
             .collect();
+        self.flash_from(t_k, p_pa, z, k)
+    }
+
+    /// Flash from the K-values `k` (successive substitution with Rachford–Rice). None when
+    /// the iteration falls back to one phase.
+    fn flash_from(&self, t_k: f64, p_pa: f64, z: &[f64], mut k: Vec<f64>) -> Result<Option<Equilibrium>, ThermoError> {
         let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         let n = z.len();
         let (mut x, mut y) = (vec![0.0; n], vec![0.0; n]);

@@ -1,0 +1,198 @@
+//! `cargo bench --bench panel`: the whole recompute over a seeded generated panel of
+//! recipes (`fillwright::speed::panel`: calibration blends, methane-rich blends near
+//! methane's critical region, natural gases of 9–12 and wide blends of 12–21 components
+//! with heavy traces), the 21-component plans, and whole processes: `check` and `list` of
+//! generated libraries with their peak memory, and a `plan` beside `--version`.
+//!
+//! Each recipe is recomputed once as an edit would (its compositions new to the caches) —
+//! the screen's synchronous estimate (phases by Peng–Robinson) and the whole recompute with
+//! the reference equations' phases (what the screen receives from its second thread, and
+//! what `plan` and `check` compute) — timed in wall time and in the process's CPU time
+//! (both cores counted). Printed as Markdown tables: median, 99th percentile and maximum.
+//!
+//! Options (after `--`): `--count N` recipes (default 300), `--seed S` (default 2026),
+//! `--check N,N,…` library sizes for `check` and `list` (default 1000,10000; `0` for none),
+//! `--only KIND` one kind of the panel, `--profile estimate|reference` only that recompute
+//! of each recipe, ten times, and nothing else (for a profiler).
+
+use std::process::{Command, Stdio};
+use std::time::Instant;
+
+use fillwright::speed::{panel, PANEL_KINDS};
+use fillwright::tui::model::Computed;
+
+/// This process's CPU time so far, all threads, seconds.
+fn cpu_seconds() -> f64 {
+    let mut ts = libc::timespec { tv_sec: 0, tv_nsec: 0 };
+    // SAFETY: clock_gettime writes the timespec it is given; the clock id is a constant.
+    unsafe { libc::clock_gettime(libc::CLOCK_PROCESS_CPUTIME_ID, &mut ts) };
+    ts.tv_sec as f64 + ts.tv_nsec as f64 * 1e-9
+}
+
+/// (wall, CPU) seconds of one call.
+fn timed<T>(f: impl FnOnce() -> T) -> (f64, f64, T) {
+    let (w, c) = (Instant::now(), cpu_seconds());
+    let out = f();
+    (w.elapsed().as_secs_f64(), cpu_seconds() - c, out)
+}
+
+fn percentile(values: &[f64], q: f64) -> f64 {
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    if v.is_empty() {
+        return f64::NAN;
+    }
+    v[((q * (v.len() - 1) as f64).round() as usize).min(v.len() - 1)]
+}
+
+fn ms(s: f64) -> String {
+    format!("{:.2} ms", s * 1e3)
+}
+
+fn stats(values: &[f64]) -> String {
+    format!("{} / {} / {}", ms(percentile(values, 0.5)), ms(percentile(values, 0.99)), ms(percentile(values, 1.0)))
+}
+
+struct Row {
+    kind: &'static str,
+    planned: bool,
+    estimate: (f64, f64),
+    reference: (f64, f64),
+}
+
+fn option(args: &[String], name: &str) -> Option<String> {
+    args.iter().position(|a| a == name).and_then(|i| args.get(i + 1).cloned())
+}
+
+fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    let count: usize = option(&args, "--count").and_then(|v| v.parse().ok()).unwrap_or(300);
+    let seed: u64 = option(&args, "--seed").and_then(|v| v.parse().ok()).unwrap_or(2026);
+    let sizes: Vec<usize> = option(&args, "--check")
+        .unwrap_or_else(|| "1000,10000".into())
+        .split(',')
+        .filter_map(|v| v.parse().ok())
+        .filter(|n| *n > 0)
+        .collect();
+    let catalogue = fillwright::gas::Catalogue::built_in();
+    let settings = fillwright::settings::Settings::default().resolve("", "defaults").expect("defaults");
+    let only = option(&args, "--only");
+    let recipes: Vec<_> = panel(seed, count).into_iter().filter(|(k, _)| only.as_deref().is_none_or(|o| o == *k)).collect();
+    if let Some(which) = option(&args, "--profile") {
+        for _ in 0..10 {
+            for (_, r) in &recipes {
+                match which.as_str() {
+                    "estimate" => drop(Computed::estimate(r, &catalogue, &settings)),
+                    _ => drop(Computed::of(r, &catalogue, &settings)),
+                }
+            }
+        }
+        return;
+    }
+    // One recompute first, so that start-up (the catalogue, the thread pool) is not a recipe's.
+    let _ = Computed::of(&recipes[0].1, &catalogue, &settings);
+    let rows: Vec<Row> = recipes
+        .iter()
+        .map(|(kind, r)| {
+            let (ew, ec, _) = timed(|| Computed::estimate(r, &catalogue, &settings));
+            let (rw, rc, full) = timed(|| Computed::of(r, &catalogue, &settings));
+            Row {
+                kind,
+                planned: full.plan.is_ok(),
+                estimate: (ew, ec),
+                reference: (rw, rc),
+            }
+        })
+        .collect();
+    println!("Panel: {} recipes, seed {seed}; median / 99th percentile / maximum per recompute.\n", rows.len());
+    println!("| kind | recipes (planned) | estimate, wall | estimate, CPU | reference, wall | reference, CPU |");
+    println!("|---|---|---|---|---|---|");
+    let kinds: Vec<&str> = PANEL_KINDS.iter().copied().chain(["all"]).collect();
+    for kind in kinds {
+        let of: Vec<&Row> = rows.iter().filter(|r| kind == "all" || r.kind == kind).collect();
+        let pick = |f: &dyn Fn(&Row) -> f64| of.iter().map(|r| f(r)).collect::<Vec<f64>>();
+        println!(
+            "| {kind} | {} ({}) | {} | {} | {} | {} |",
+            of.len(),
+            of.iter().filter(|r| r.planned).count(),
+            stats(&pick(&|r| r.estimate.0)),
+            stats(&pick(&|r| r.estimate.1)),
+            stats(&pick(&|r| r.reference.0)),
+            stats(&pick(&|r| r.reference.1)),
+        );
+    }
+    plans_by_size(&recipes, &catalogue, &settings);
+    processes(&sizes);
+}
+
+/// The plan alone (no screening), in-process, by number of components: median wall time
+/// of each panel recipe's plan under the reference equations' phases.
+fn plans_by_size(
+    recipes: &[(&str, fillwright::recipe::Recipe)],
+    catalogue: &fillwright::gas::Catalogue,
+    settings: &fillwright::settings::Resolved,
+) {
+    let options = Computed::options(settings);
+    let mut by_size: std::collections::BTreeMap<usize, Vec<f64>> = Default::default();
+    for (_, r) in recipes {
+        let Ok(order) = r.resolve(catalogue, "", &r.name) else { continue };
+        let (w, _, plan) = timed(|| fillwright::plan::plan(&order, catalogue, &options));
+        if plan.is_ok() {
+            by_size.entry(r.components.len()).or_default().push(w);
+        }
+    }
+    println!("\nPlan alone (reference phases), median wall time by number of components:\n");
+    println!("| components | plans | median | maximum |");
+    println!("|---|---|---|---|");
+    for (n, times) in by_size {
+        println!("| {n} | {} | {} | {} |", times.len(), ms(percentile(&times, 0.5)), ms(percentile(&times, 1.0)));
+    }
+}
+
+/// (wall seconds, CPU seconds, peak resident KiB) of one whole process.
+fn process(args: &[&str], config: &std::path::Path) -> (f64, f64, i64) {
+    let start = Instant::now();
+    let child = Command::new(env!("CARGO_BIN_EXE_fillwright"))
+        .args(args)
+        .env("FILLWRIGHT_CONFIG", config)
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("fillwright starts");
+    let mut status = 0;
+    // SAFETY: an all-zero rusage is a valid value for wait4 to fill; the pid is our child's,
+    // reaped here (the Child is then dropped without waiting again).
+    let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
+    unsafe { libc::wait4(child.id() as i32, &mut status, 0, &mut usage) };
+    let cpu = |t: libc::timeval| t.tv_sec as f64 + t.tv_usec as f64 * 1e-6;
+    (start.elapsed().as_secs_f64(), cpu(usage.ru_utime) + cpu(usage.ru_stime), usage.ru_maxrss)
+}
+
+fn processes(sizes: &[usize]) {
+    let root = std::env::temp_dir().join(format!("fillwright-panel-{}", std::process::id()));
+    let config = root.join("config");
+    println!("\nWhole processes (release build, 2 cores):\n");
+    println!("| command | wall | CPU | peak memory |");
+    println!("|---|---|---|---|");
+    let row = |label: String, (w, c, kib): (f64, f64, i64)| {
+        println!("| {label} | {} | {} | {:.1} MiB |", ms(w), ms(c), kib as f64 / 1024.0)
+    };
+    let median_of = |args: &[&str]| {
+        let mut runs: Vec<(f64, f64, i64)> = (0..11).map(|_| process(args, &config)).collect();
+        runs.sort_by(|a, b| a.0.total_cmp(&b.0));
+        runs[5]
+    };
+    let demo = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("mixtures/pipeline-ng-9.ron");
+    let demo = demo.to_str().expect("utf-8 path");
+    row("`--version` (median of 11)".into(), median_of(&["--version"]));
+    row("`plan mixtures/pipeline-ng-9.ron` (median of 11)".into(), median_of(&["plan", demo]));
+    for &n in sizes {
+        let dir = root.join(format!("library-{n}"));
+        fillwright::speed::write_library(&dir, n).expect("library written");
+        let d = dir.to_str().expect("utf-8 path");
+        row(format!("`check DIR --format json`, {n} recipes"), process(&["check", d, "--format", "json"], &config));
+        row(format!("`check DIR`, {n} recipes"), process(&["check", d], &config));
+        row(format!("`list --library DIR`, {n} recipes"), process(&["list", "--library", d], &config));
+    }
+    let _ = std::fs::remove_dir_all(&root);
+}
