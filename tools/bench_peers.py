@@ -6,9 +6,12 @@ CoolProp, thermo and teqp from PyPI on the same machine right after, so that the
 machine's swings hit both alike. Prints a Markdown table (times per call; "n/a" where a
 library has no direct way to do the case). Cases are defined in `src/speed.rs`:
 
-- density at 15 °C and 150 bar of a 4- and a 9-component gas, Peng-Robinson and GERG-2008
-  (CoolProp: AbstractState with the phase imposed as gas, so that no phase search runs;
-  teqp: Newton on p(rho) from its residual Helmholtz derivatives; thermo: PRMIX);
+- density at 15 °C and 150 bar of a 4- and a 9-component gas: Peng-Robinson (CoolProp's PR
+  backend, thermo's PRMIX); GERG-2008 (teqp's GERG2008resid by Newton on p(rho) from its
+  residual Helmholtz derivatives, and the aga8 crate in Rust, timed by bench_table); the
+  multi-fluid model (CoolProp's HEOS backend: reference pure-fluid equations with GERG-2008's
+  mixing, like fillwright's `multi`; not GERG-2008 itself). CoolProp with the phase imposed as
+  gas, so that no phase search runs;
 - the dew temperature of the 9-component gas at 30 bar, Peng-Robinson (CoolProp's PQ flash,
   thermo's FlashVL);
 - its cricondentherm (CoolProp: the whole phase envelope, whose highest temperature it is);
@@ -61,7 +64,7 @@ def coolprop():
     import CoolProp.CoolProp as CP
     res = {"version": "CoolProp " + CoolProp.__version__}
     for label, (ids, x) in (("4", GAS4), ("9", GAS9)):
-        for backend, key in (("PR", "pr"), ("HEOS", "gerg")):
+        for backend, key in (("PR", "pr"), ("HEOS", "multi")):
             s = CP.AbstractState(backend, "&".join(COOLPROP[i] for i in ids))
             s.set_mole_fractions(x)
             s.specify_phase(CP.iphase_gas)
@@ -129,10 +132,14 @@ def teqp_lib():
 def main():
     rows = [("pr density 4", "PR density, 4 components"), ("pr density 9", "PR density, 9 components"),
             ("gerg density 4", "GERG-2008 density, 4 components"), ("gerg density 9", "GERG-2008 density, 9 components"),
+            ("multi density 4", "multi-fluid density, 4 components"),
+            ("multi density 9", "multi-fluid density, 9 components"),
             ("dew point 9", "dew point at 30 bar, 9 components, PR"),
             ("cricondentherm 9", "cricondentherm, 9 components, PR")]
     ours_ = ours()
-    peers = []
+    # The aga8 crate is timed by bench_table beside fillwright (a peer in Rust).
+    peers = [{"version": "aga8 crate 0.6.1", **{k.replace("aga8", "gerg"): v for k, v in ours_.items()
+                                                 if k.startswith("aga8 ")}}]
     for f in (coolprop, thermo_lib, teqp_lib):
         try:
             peers.append(f())
@@ -152,6 +159,8 @@ def main():
     print("|---|---" + "|---" * len(peers) + "|")
     for key, title in rows:
         print(f"| {title} | {fmt(ours_.get(key))} | " + " | ".join(fmt(p.get(key)) for p in peers) + " |")
+    for key in sorted(k for k in ours_ if k.startswith("estimate ")):
+        print(f"| {key.replace('estimate ', 'screen estimate, ')} | {fmt(ours_[key])} |" + " |" * len(peers))
     for key in sorted(k for k in ours_ if k.startswith("recompute ")):
         print(f"| {key.replace('recompute ', 'whole recompute, ')} | {fmt(ours_[key])} |" + " |" * len(peers))
     if "check 1000 recipes" in ours_:

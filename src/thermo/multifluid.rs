@@ -524,23 +524,23 @@ impl Mixture {
         let (tr, rr, d_tr, d_rr) = self.reducing_gradient(x);
         let (delta, tau) = (rho / rr, tr / t_k);
         // Each pure gas's α^r_oi and each pair's departure α^r_ij at (δ, τ), with their δ
-        // and τ derivatives.
-        let pure_at = |i: usize, d: D2, t: D2| match &self.pure[i] {
-            Pure::Reference(terms) => sum_terms(terms, d, t, d.ln(), t.ln()),
-            Pure::Cubic { kappa } => pr_alphar(*kappa, d, t),
+        // and τ derivatives: (α, ∂α/∂δ, ∂α/∂τ).
+        let pure_at = |i: usize| match &self.pure[i] {
+            Pure::Reference(terms) => sum_terms_grad(terms, delta, tau),
+            Pure::Cubic { kappa } => {
+                let by_delta = pr_alphar(*kappa, D2::var(delta), D2::c(tau));
+                (by_delta.v, by_delta.d, pr_alphar(*kappa, D2::c(delta), D2::var(tau)).d)
+            }
         };
-        let (dv, tv) = (D2::var(delta), D2::var(tau));
-        let (dc, tc) = (D2::c(delta), D2::c(tau));
         let mut a_x = vec![0.0; n];
         let (mut a, mut a_d, mut a_t) = (0.0, 0.0, 0.0);
         for i in 0..n {
-            let by_delta = pure_at(i, dv, tc);
-            a_x[i] += by_delta.v;
+            let (v, v_d, v_t) = pure_at(i);
+            a_x[i] += v;
             if x[i] != 0.0 {
-                let by_tau = pure_at(i, dc, tv);
-                a += x[i] * by_delta.v;
-                a_d += x[i] * by_delta.d;
-                a_t += x[i] * by_tau.d;
+                a += x[i] * v;
+                a_d += x[i] * v_d;
+                a_t += x[i] * v_t;
             }
         }
         for i in 0..n {
@@ -550,14 +550,13 @@ impl Mixture {
                 if x[i] == 0.0 && x[j] == 0.0 {
                     continue;
                 }
-                let by_delta = sum_terms(terms, dv, tc, dv.ln(), tc.ln());
-                let by_tau = sum_terms(terms, dc, tv, dc.ln(), tv.ln());
+                let (v, v_d, v_t) = sum_terms_grad(terms, delta, tau);
                 let w = x[i] * x[j] * p.f;
-                a += w * by_delta.v;
-                a_d += w * by_delta.d;
-                a_t += w * by_tau.d;
-                a_x[i] += x[j] * p.f * by_delta.v;
-                a_x[j] += x[i] * p.f * by_delta.v;
+                a += w * v;
+                a_d += w * v_d;
+                a_t += w * v_t;
+                a_x[i] += x[j] * p.f * v;
+                a_x[j] += x[i] * p.f * v;
             }
         }
         let (delta_a_d, tau_a_t) = (delta * a_d, tau * a_t);
@@ -664,22 +663,25 @@ enum Other {
 
 /// Split `terms` at τ into flat terms weighted by `w` (the non-analytic ones kept whole).
 fn flatten(terms: &[Term], w: f64, tau: f64, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
+    // τ^t as exp(t ln τ): one exponential per term where powf costs about two.
+    let ln_tau = tau.ln();
+    let tau_pow = |t: f64| (t * ln_tau).exp();
     for term in terms {
         let (c, d, part) = match *term {
-            Term::Power(n, d, t, l) => (n * tau.powf(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
-            Term::Exponential(n, d, t, g, l) => (n * tau.powf(t), d, exp_power(g, l)),
+            Term::Power(n, d, t, l) => (n * tau_pow(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
+            Term::Exponential(n, d, t, g, l) => (n * tau_pow(t), d, exp_power(g, l)),
             Term::Gaussian(n, d, t, eta, eps, beta, gamma) => (
-                n * tau.powf(t) * (-beta * (tau - gamma) * (tau - gamma)).exp(),
+                n * tau_pow(t) * (-beta * (tau - gamma) * (tau - gamma)).exp(),
                 d,
                 DeltaPart::Bell { eta, eps, beta: 0.0, gamma: 0.0 },
             ),
             Term::GaoB(n, d, t, eta, beta, gamma, eps, b) => (
-                n * tau.powf(t) * (1.0 / (beta * (tau - gamma) * (tau - gamma) + b)).exp(),
+                n * tau_pow(t) * (1.0 / (beta * (tau - gamma) * (tau - gamma) + b)).exp(),
                 d,
                 DeltaPart::Bell { eta: -eta, eps, beta: 0.0, gamma: 0.0 },
             ),
             Term::GergExp(n, d, t, eta, eps, beta, gamma) => {
-                (n * tau.powf(t), d, DeltaPart::Bell { eta, eps, beta, gamma })
+                (n * tau_pow(t), d, DeltaPart::Bell { eta, eps, beta, gamma })
             }
             Term::NonAnalytic(..) => {
                 other.push((w, Other::NonAnalytic(*term)));
@@ -859,6 +861,56 @@ fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
     s
 }
 
+/// α^r of a list of terms at (δ, τ) with its first derivatives in δ and in τ, one
+/// exponential per term: each term is n·exp(E(δ, τ)), whose derivatives are the term
+/// times ∂E/∂δ and ∂E/∂τ (the non-analytic terms by dual numbers, twice).
+fn sum_terms_grad(terms: &[Term], delta: f64, tau: f64) -> (f64, f64, f64) {
+    let (ln_d, ln_t) = (delta.ln(), tau.ln());
+    let (mut a, mut a_d, mut a_t) = (0.0, 0.0, 0.0);
+    for term in terms {
+        let (n, d, t, extra, e_d, e_t) = match *term {
+            Term::Power(n, d, t, l) if l > 0.0 => {
+                let u = delta.powf(l);
+                (n, d, t, -u, -l * u / delta, 0.0)
+            }
+            Term::Power(n, d, t, _) => (n, d, t, 0.0, 0.0, 0.0),
+            Term::Exponential(n, d, t, g, l) => {
+                let u = delta.powf(l);
+                (n, d, t, -g * u, -g * l * u / delta, 0.0)
+            }
+            Term::Gaussian(n, d, t, eta, eps, beta, gamma) => {
+                let (dd, dt) = (delta - eps, tau - gamma);
+                (n, d, t, -eta * dd * dd - beta * dt * dt, -2.0 * eta * dd, -2.0 * beta * dt)
+            }
+            Term::GaoB(n, d, t, eta, beta, gamma, eps, b) => {
+                let (dd, dt) = (delta - eps, tau - gamma);
+                let q = beta * dt * dt + b;
+                (n, d, t, eta * dd * dd + 1.0 / q, 2.0 * eta * dd, -2.0 * beta * dt / (q * q))
+            }
+            Term::GergExp(n, d, t, eta, eps, beta, gamma) => {
+                let dd = delta - eps;
+                (n, d, t, -eta * dd * dd - beta * (delta - gamma), -2.0 * eta * dd - beta, 0.0)
+            }
+            Term::NonAnalytic(..) => {
+                let one = std::slice::from_ref(term);
+                let (dv, tv) = (D2::var(delta), D2::var(tau));
+                let (dc, tc) = (D2::c(delta), D2::c(tau));
+                let by_delta = sum_terms(one, dv, tc, dv.ln(), tc.ln());
+                let by_tau = sum_terms(one, dc, tv, dc.ln(), tv.ln());
+                a += by_delta.v;
+                a_d += by_delta.d;
+                a_t += by_tau.d;
+                continue;
+            }
+        };
+        let v = n * (d * ln_d + t * ln_t + extra).exp();
+        a += v;
+        a_d += v * (d / delta + e_d);
+        a_t += v * (t / tau + e_t);
+    }
+    (a, a_d, a_t)
+}
+
 /// Peng–Robinson's α^r of a pure gas in reduced form: with bρ = δ Ω_b/Z_c and
 /// a/(bRT) = (Ω_a/Ω_b) α(T) τ, α = (1 + κ(1 − τ^(−1/2)))²,
 /// α^r = −ln(1 − bρ) − a/(bRT) ln((1 + σbρ)/(1 + εbρ))/(σ − ε).
@@ -993,6 +1045,8 @@ mod tests {
             (vec!["CO2", "H2O", "CH4"], vec![0.5, 0.0, 0.5]),
             (vec!["C3H8", "n-C4H10", "CH4"], vec![0.08, 0.03, 0.89]),
             (vec!["SF6", "N2"], vec![0.3, 0.7]),
+            // Ammonia's equation has the terms of Gao et al. (2020).
+            (vec!["NH3", "N2", "H2O"], vec![0.1, 0.85, 0.05]),
         ];
         let mut checked = 0;
         for (ids, x) in &cases {
