@@ -1,6 +1,6 @@
 //! `cargo bench --bench panel`: the whole recompute over a seeded generated panel of
 //! recipes (`fillwright::speed::panel`: calibration blends, methane-rich blends near
-//! methane's critical region, natural gases of 9–12 and wide blends of 12–21 components
+//! methane's critical region, natural gases of 9 and wide blends of 12–21 components
 //! with heavy traces), the 21-component plans, and whole processes: `check` and `list` of
 //! generated libraries with their peak memory, and a `plan` beside `--version`.
 //!
@@ -77,7 +77,8 @@ fn main() {
     let catalogue = fillwright::gas::Catalogue::built_in();
     let settings = fillwright::settings::Settings::default().resolve("", "defaults").expect("defaults");
     let only = option(&args, "--only");
-    let recipes: Vec<_> = panel(seed, count).into_iter().filter(|(k, _)| only.as_deref().is_none_or(|o| o == *k)).collect();
+    let recipes: Vec<_> =
+        panel(seed, count).into_iter().filter(|(k, _)| only.as_deref().is_none_or(|o| o == *k)).collect();
     if let Some(which) = option(&args, "--profile") {
         for _ in 0..10 {
             for (_, r) in &recipes {
@@ -96,12 +97,7 @@ fn main() {
         .map(|(kind, r)| {
             let (ew, ec, _) = timed(|| Computed::estimate(r, &catalogue, &settings));
             let (rw, rc, full) = timed(|| Computed::of(r, &catalogue, &settings));
-            Row {
-                kind,
-                planned: full.plan.is_ok(),
-                estimate: (ew, ec),
-                reference: (rw, rc),
-            }
+            Row { kind, planned: full.plan.is_ok(), estimate: (ew, ec), reference: (rw, rc) }
         })
         .collect();
     println!("Panel: {} recipes, seed {seed}; median / 99th percentile / maximum per recompute.\n", rows.len());

@@ -48,7 +48,7 @@ pub const PANEL_KINDS: [&str; 4] = ["calibration", "methane-rich", "natural gas"
 /// [`PANEL_KINDS`] in turn: `calibration` (1–4 gases from 10 ppm to 5 % in nitrogen, 50–200
 /// bar), `methane-rich` (1–3 of CO2, ethane, nitrogen, propane at percent levels in methane,
 /// 80–180 bar: the cricondentherm search near methane's critical region), `natural gas`
-/// (9–12 components, 60–150 bar) and `wide` (12–21 components with heavy traces at ppm
+/// (9 components, 60–150 bar) and `wide` (12–21 components with heavy traces at ppm
 /// levels, 30–100 bar). The same seed gives the same recipes. Invented blends for timing,
 /// not orders.
 pub fn panel(seed: u64, count: usize) -> Vec<(&'static str, crate::recipe::Recipe)> {
@@ -147,4 +147,30 @@ fn panel_recipe(name: &str, lines: &[(&str, f64)], balance: &str, bar: u32, fill
          test_pressure: \"300bar\", tare: \"13.5kg\"),\n    fill: Pressure(\"{bar}bar\"),\n    \
          reference_temperature: \"15C\",\n    fill_temperature: \"{fill_c}C\",\n)\n"
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_panel_is_seeded_and_has_each_kind_in_its_range() {
+        let c = crate::gas::Catalogue::built_in();
+        let a = panel(7, 40);
+        assert_eq!(a.len(), 40, "every generated recipe parses");
+        assert_eq!(a, panel(7, 40), "the same seed gives the same recipes");
+        assert_ne!(a, panel(8, 40), "another seed gives others");
+        for (k, (kind, r)) in a.iter().enumerate() {
+            assert_eq!(*kind, PANEL_KINDS[k % 4]);
+            let order = r.resolve(&c, "", &r.name).unwrap_or_else(|e| panic!("{}: {}", r.name, e.message));
+            let n = order.targets.len();
+            let range = match *kind {
+                "calibration" => 2..=5,
+                "methane-rich" => 2..=4,
+                "natural gas" => 9..=9,
+                _ => 12..=21,
+            };
+            assert!(range.contains(&n), "{kind}: {n} components");
+        }
+    }
 }

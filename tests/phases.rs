@@ -644,3 +644,32 @@ fn unpublished_pairs_are_judged_with_the_more_condensing_estimate() {
     let cond = checks::screen(&p, &o, &c, &CONDITIONS).remove(0);
     assert!(cond.data.get("estimate").is_none());
 }
+
+#[test]
+fn the_quick_estimate_judges_and_splits_by_peng_robinson_and_keeps_single_phase_pressures_its_own() {
+    // 5 % n-butane in methane at 250 K: 2 mol in 1 L is two-phase under every real model
+    // here (its cricondentherm lies near 285 K, the envelope fixture). GERG-2008's own
+    // equilibrium and the estimate (Peng-Robinson's stability test and flash) differ; the
+    // estimate is Peng-Robinson's own equilibrium, and says so.
+    let c = Catalogue::built_in();
+    let gases: Vec<usize> = ["CH4", "n-C4H10"].iter().map(|id| c.index_of(id).unwrap()).collect();
+    let gerg = Fluid::new(&c, &gases, Model::Gerg).unwrap();
+    let pr = Fluid::new(&c, &gases, Model::Pr).unwrap();
+    let estimated = gerg.clone().with_phases_estimated();
+    let n = [1.9, 0.1];
+    let own = gerg.equilibrium_tv(250.0, 1e-3, &n).unwrap();
+    let est = estimated.equilibrium_tv(250.0, 1e-3, &n).unwrap();
+    let by_pr = pr.equilibrium_tv(250.0, 1e-3, &n).unwrap();
+    assert_eq!(own.phase, Phase::TwoPhase);
+    assert_eq!(own.judged_by, Model::Gerg);
+    assert_eq!(est.judged_by, Model::Pr);
+    assert_eq!(est.phase, by_pr.phase);
+    assert!((est.pressure_pa / by_pr.pressure_pa - 1.0).abs() < 1e-9, "{} vs {}", est.pressure_pa, by_pr.pressure_pa);
+    assert!((own.pressure_pa / est.pressure_pa - 1.0).abs() > 1e-4, "the two models' equilibria differ");
+    // A single-phase state keeps the model's own pressure under the estimate.
+    let gas = [0.19, 0.01];
+    let p_own = gerg.pressure_in_cylinder(300.0, 1e-3, &gas).unwrap();
+    let p_est = estimated.pressure_in_cylinder(300.0, 1e-3, &gas).unwrap();
+    assert_eq!(p_own, p_est);
+    assert!((p_own / pr.pressure_in_cylinder(300.0, 1e-3, &gas).unwrap() - 1.0).abs() > 1e-4);
+}
