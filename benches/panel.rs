@@ -146,6 +146,7 @@ fn plans_by_size(
 }
 
 /// (wall seconds, CPU seconds, peak resident KiB) of one whole process.
+#[allow(clippy::zombie_processes)] // reaped by wait4, which also gives its resource usage
 fn process(args: &[&str], config: &std::path::Path) -> (f64, f64, i64) {
     let start = Instant::now();
     let child = Command::new(env!("CARGO_BIN_EXE_fillwright"))
