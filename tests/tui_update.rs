@@ -2044,3 +2044,42 @@ fn the_reference_phases_replace_the_quick_estimate_without_blocking() {
     assert!(model.doc.as_ref().unwrap().computed.phases_estimated);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn the_library_list_comes_at_once_and_its_screening_fills_in_from_the_other_thread() {
+    let (_, mut ctx, dir) = setup("library-beside");
+    ctx.beside = Some(fillwright::tui::context::Beside::new());
+    let mut model = Model::new("test library".into(), false);
+    update::start(&mut model, &mut ctx);
+    // Every recipe is on its way (nothing screened yet), shown as pending.
+    let n = model.library.entries.len();
+    assert!(n >= 7, "{n}");
+    assert_eq!(model.library.pending.len(), n);
+    let screen = fillwright::tui::scenes::text(&render(&model, &ctx));
+    assert!(screen.contains('…'), "{screen}");
+    let wait_all = |model: &mut Model, ctx: &Context| {
+        let start = std::time::Instant::now();
+        while !model.library.pending.is_empty() {
+            assert!(start.elapsed() < std::time::Duration::from_secs(60), "screening never came back");
+            fillwright::tui::document::take_beside(model, ctx);
+            std::thread::sleep(std::time::Duration::from_millis(20));
+        }
+    };
+    wait_all(&mut model, &ctx);
+    for (e, s) in model.library.entries.iter().zip(&model.library.screening) {
+        let recipe = ctx.library.open(&e.name).unwrap().recipe;
+        let own = fillwright::tui::model::Computed::of(&recipe, &ctx.catalogue, &ctx.settings);
+        assert_eq!(*s, own.checks.as_ref().map(|c| fillwright::checks::worst(c)), "{}", e.name);
+    }
+    // A refresh screens only the recipe changed on disk; a result for an older file is
+    // not taken.
+    let i = model.library.entries.iter().position(|e| e.name == "flue-gas-span").unwrap();
+    let path = model.library.entries[i].path.clone();
+    let text = std::fs::read_to_string(&path).unwrap().replace("Pressure(\"150bar\")", "Pressure(\"250bar\")");
+    std::fs::write(&path, &text).unwrap();
+    update::refresh(&mut model, &ctx);
+    assert_eq!(model.library.pending.keys().collect::<Vec<_>>(), vec!["flue-gas-span"]);
+    wait_all(&mut model, &ctx);
+    assert_eq!(model.library.screening[i], Some(fillwright::checks::Severity::Stop), "above the working pressure");
+    let _ = std::fs::remove_dir_all(dir);
+}

@@ -60,17 +60,25 @@ pub struct Context {
     pub beside: Option<Beside>,
 }
 
-/// The reference equations' answers computed on another thread: (the results' key, them).
+/// A library recipe's screening made on another thread: its name, the fingerprint of the
+/// file screened, the settings it was screened with (as in the cache) and its worst check.
+pub type Screened = (String, crate::library::Fingerprint, String, Option<crate::checks::Severity>);
+
+/// The results computed on other threads: the reference equations' answers for the open
+/// recipe (the results' key, them), and the library's screening, recipe by recipe.
 pub struct Beside {
     pub tx: std::sync::mpsc::Sender<(String, super::model::Computed)>,
     /// Behind a lock: the context is shared with the library's screening threads.
     pub rx: std::sync::Mutex<std::sync::mpsc::Receiver<(String, super::model::Computed)>>,
+    pub screened_tx: std::sync::mpsc::Sender<Screened>,
+    pub screened_rx: std::sync::Mutex<std::sync::mpsc::Receiver<Screened>>,
 }
 
 impl Beside {
     pub fn new() -> Beside {
         let (tx, rx) = std::sync::mpsc::channel();
-        Beside { tx, rx: std::sync::Mutex::new(rx) }
+        let (screened_tx, screened_rx) = std::sync::mpsc::channel();
+        Beside { tx, rx: std::sync::Mutex::new(rx), screened_tx, screened_rx: std::sync::Mutex::new(screened_rx) }
     }
 }
 

@@ -46,7 +46,8 @@ pub fn start_with(model: &mut Model, ctx: &mut Context, seed: bool) {
 pub fn refresh(model: &mut Model, ctx: &Context) {
     match ctx.library.list() {
         Ok(entries) => {
-            model.library.screening = screen_entries(&entries, ctx, &mut model.library.screened);
+            let library = &mut model.library;
+            library.screening = screen_entries(&entries, ctx, &mut library.screened, &mut library.pending);
             model.library.entries = entries;
             refresh_filling(model, ctx);
         }
@@ -87,38 +88,97 @@ pub fn refresh_filling(model: &mut Model, ctx: &Context) {
 
 /// The worst screening result of each library entry, planned and screened in parallel
 /// (the order of the list is kept); a recipe whose file and the settings are as at the
-/// last refresh keeps its result from `cache`.
+/// last refresh keeps its result from `cache`. Where the screen has another thread
+/// (`ctx.beside`), the recipes not in the cache are screened there and marked `pending`
+/// (the list comes at once; [`take_beside`] fills their results in as they come).
 fn screen_entries(
     entries: &[crate::library::Entry],
     ctx: &Context,
     cache: &mut super::model::ScreeningCache,
+    pending: &mut super::model::Pending,
 ) -> Vec<Option<crate::checks::Severity>> {
     use rayon::prelude::*;
     let settings = format!("{:?}", ctx.settings);
+    let cached = |summary: &crate::library::Summary, name: &str| {
+        cache.get(name).filter(|(fp, s, _)| *fp == summary.fingerprint && *s == settings).map(|(_, _, w)| *w)
+    };
+    let later: Vec<(String, crate::library::Fingerprint, Recipe)> = match &ctx.beside {
+        Some(_) => entries
+            .iter()
+            .filter_map(|e| {
+                let summary = e.summary.as_ref().ok()?;
+                let on_the_way =
+                    pending.get(&e.name).is_some_and(|(fp, s)| *fp == summary.fingerprint && *s == settings);
+                let known = cached(summary, &e.name).is_some() || on_the_way;
+                (!known).then(|| (e.name.clone(), summary.fingerprint, summary.recipe.clone()))
+            })
+            .collect(),
+        None => Vec::new(),
+    };
     type Found = Option<(crate::library::Fingerprint, Option<crate::checks::Severity>)>;
     let results: Vec<(String, Found)> = entries
         .par_iter()
         .map(|e| {
             // The listing has read every recipe already.
             let Ok(summary) = &e.summary else { return (e.name.clone(), None) };
-            if let Some((fp, s, worst)) = cache.get(&e.name) {
-                if *fp == summary.fingerprint && *s == settings {
-                    return (e.name.clone(), Some((*fp, *worst)));
-                }
+            if let Some(worst) = cached(summary, &e.name) {
+                return (e.name.clone(), Some((summary.fingerprint, worst)));
+            }
+            if ctx.beside.is_some() {
+                return (e.name.clone(), None); // screened on the other thread
             }
             let c = Computed::screening_only(&summary.recipe, &ctx.catalogue, &ctx.settings);
             (e.name.clone(), Some((summary.fingerprint, c.map(|checks| crate::checks::worst(&checks)))))
         })
         .collect();
     cache.clear();
-    results
+    let out = results
         .into_iter()
         .map(|(name, r)| {
             let (fp, worst) = r?;
             cache.insert(name, (fp, settings.clone(), worst));
             worst
         })
-        .collect()
+        .collect();
+    if let (Some(beside), false) = (&ctx.beside, later.is_empty()) {
+        pending.extend(later.iter().map(|(name, fp, _)| (name.clone(), (*fp, settings.clone()))));
+        let (tx, catalogue, resolved) = (beside.screened_tx.clone(), ctx.catalogue.clone(), ctx.settings.clone());
+        std::thread::spawn(move || {
+            later.par_iter().for_each_with(tx, |tx, (name, fp, recipe)| {
+                let worst = Computed::screening_only(recipe, &catalogue, &resolved).map(|c| crate::checks::worst(&c));
+                // The screen may have gone: nothing to tell then.
+                let _ = tx.send((name.clone(), *fp, settings.clone(), worst));
+            });
+        });
+    }
+    out
+}
+
+/// Take in the library screenings that came back from the other thread: each one whose
+/// recipe file is still the one screened, under the same settings, goes into the cache
+/// and the list. True where the list changed.
+fn take_screened(model: &mut super::model::Model, ctx: &Context) -> bool {
+    let Some(beside) = &ctx.beside else { return false };
+    let came: Vec<super::context::Screened> = match beside.screened_rx.lock() {
+        Ok(rx) => rx.try_iter().collect(),
+        Err(_) => return false,
+    };
+    let settings = format!("{:?}", ctx.settings);
+    let library = &mut model.library;
+    let mut changed = false;
+    for (name, fp, screened_with, worst) in came {
+        if library.pending.get(&name).is_some_and(|(p, s)| *p == fp && *s == screened_with) {
+            library.pending.remove(&name);
+            changed = true;
+        }
+        let Some(i) = library.entries.iter().position(|e| e.name == name) else { continue };
+        let current = library.entries[i].summary.as_ref().is_ok_and(|s| s.fingerprint == fp);
+        if current && screened_with == settings {
+            library.cache_and_show(i, name, fp, settings.clone(), worst);
+            changed = true;
+        }
+    }
+    changed
 }
 
 /// Recompute an open recipe after the settings changed.
@@ -161,7 +221,7 @@ fn computed_for(previous: Option<&Computed>, recipe: &Recipe, ctx: &Context) -> 
 /// since (a tare moves the scale readings). True where the screen changed.
 pub fn take_beside(model: &mut super::model::Model, ctx: &Context) -> bool {
     let Some(beside) = &ctx.beside else { return false };
-    let mut changed = false;
+    let mut changed = take_screened(model, ctx);
     let came: Vec<(String, Computed)> = match beside.rx.lock() {
         Ok(rx) => rx.try_iter().collect(),
         Err(_) => return false,

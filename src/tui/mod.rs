@@ -218,8 +218,10 @@ fn event_loop(terminal: &mut ratatui::DefaultTerminal, model: &mut Model, ctx: &
             let _screen = SCREEN.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
             terminal.draw(|f| view::view(model, &ctx.catalogue, f)).map_err(|e| e.to_string())?;
         }
-        // While the screen shows an estimate, look for the reference's answer often.
-        let estimate = model.doc.as_ref().is_some_and(|d| d.computed.phases_estimated);
+        // While the screen shows an estimate or the library's screening is on its way, look
+        // for the answers often.
+        let estimate =
+            model.doc.as_ref().is_some_and(|d| d.computed.phases_estimated) || !model.library.pending.is_empty();
         if event::poll(Duration::from_millis(if estimate { 40 } else { 200 })).map_err(|e| e.to_string())? {
             changed = true;
             let msg = match event::read().map_err(|e| e.to_string())? {

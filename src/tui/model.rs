@@ -494,6 +494,9 @@ impl Document {
 }
 
 /// The last screening of each library recipe: name → (file fingerprint, settings, worst).
+/// The recipes being screened on another thread (see [`LibraryState::pending`]).
+pub type Pending = std::collections::HashMap<String, (crate::library::Fingerprint, String)>;
+
 pub type ScreeningCache =
     std::collections::HashMap<String, (crate::library::Fingerprint, String, Option<checks::Severity>)>;
 
@@ -502,8 +505,13 @@ pub type ScreeningCache =
 pub struct LibraryState {
     pub entries: Vec<Entry>,
     /// The worst screening result of each entry (None: it does not plan), computed on
-    /// both cores when the list is read.
+    /// both cores when the list is read (on another thread where the screen has one, see
+    /// [`LibraryState::pending`]).
     pub screening: Vec<Option<checks::Severity>>,
+    /// The recipes being screened on another thread, with the fingerprint of the file
+    /// and the settings being screened with: the list shows them as pending until their
+    /// result comes.
+    pub pending: Pending,
     /// The last screening of each recipe by name, with the fingerprint of the file it was
     /// made from and the settings it was made with: a refresh screens only what changed.
     pub screened: ScreeningCache,
@@ -517,6 +525,23 @@ pub struct LibraryState {
 }
 
 impl LibraryState {
+    /// Keep entry `i`'s screening (made of the file with fingerprint `fp` under `settings`)
+    /// and show it.
+    pub fn cache_and_show(
+        &mut self,
+        i: usize,
+        name: String,
+        fp: crate::library::Fingerprint,
+        settings: String,
+        worst: Option<checks::Severity>,
+    ) {
+        if self.screening.len() < self.entries.len() {
+            self.screening.resize(self.entries.len(), None);
+        }
+        self.screening[i] = worst;
+        self.screened.insert(name, (fp, settings, worst));
+    }
+
     /// Indices into `entries` that match the search: every word typed is found in the
     /// name, the title, the order reference, the cylinder serial, the gases, the description
     /// or the notes. Recipes whose name holds every word come first (a name typed whole

@@ -186,6 +186,7 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
                 clip(&s.cylinder, 13),
                 s.revision,
                 match model.library.screening.get(i).copied().flatten() {
+                    _ if model.library.pending.contains_key(&e.name) => "…",
                     Some(Severity::Stop) => "STOP",
                     Some(Severity::Caution) => "caution",
                     Some(Severity::Ok) => "ok",
