@@ -673,3 +673,25 @@ fn the_quick_estimate_judges_and_splits_by_peng_robinson_and_keeps_single_phase_
     assert_eq!(p_own, p_est);
     assert!((p_own / pr.pressure_in_cylinder(300.0, 1e-3, &gas).unwrap() - 1.0).abs() > 1e-4);
 }
+
+#[test]
+fn kept_cricondentherms_are_told_apart_by_the_fluid_and_the_composition() {
+    // The process keeps each answer by the fluid's identity and the composition: a second
+    // call gives the same, another model or composition its own, and the multi-fluid
+    // model's two estimates for unpublished pairs are two identities.
+    let c = Catalogue::built_in();
+    let gases: Vec<usize> = ["CH4", "C3H8"].iter().map(|id| c.index_of(id).unwrap()).collect();
+    let pr = Fluid::new(&c, &gases, Model::Pr).unwrap();
+    let srk = Fluid::new(&c, &gases, Model::Srk).unwrap();
+    let ct = |f: &Fluid, z: &[f64]| PhaseFluid::new(f).cricondentherm(z, 100.0, 1000e5).unwrap().unwrap().0;
+    let (a, b) = (ct(&pr, &[0.9, 0.1]), ct(&srk, &[0.9, 0.1]));
+    assert_eq!(a, ct(&pr, &[0.9, 0.1]));
+    assert!((a - b).abs() > 0.01, "PR {a} and SRK {b} differ");
+    let richer = ct(&pr, &[0.8, 0.2]);
+    assert!(richer > a + 1.0, "more propane, a higher cricondentherm: {richer} vs {a}");
+    let sf6: Vec<usize> = ["SF6", "N2"].iter().map(|id| c.index_of(id).unwrap()).collect();
+    let multi = Fluid::new(&c, &sf6, Model::Multi).unwrap();
+    let judges = multi.phase_judges(&c, &sf6);
+    assert_eq!(judges.len(), 2);
+    assert_ne!(judges[0].identity(), judges[1].identity());
+}

@@ -138,9 +138,26 @@ impl<'a> PhaseFluid<'a> {
 
     /// The cricondentherm and the pressure at which it lies, searched from 0.5 bar to
     /// `p_max_pa`. None when no dew point exists above `t_floor_k`.
+    /// The last [`CRICONDENTHERMS_KEPT`] answers are kept for the process (by the fluid's
+    /// identity, the composition and the range, bit for bit): an edit that leaves the
+    /// composition alone (a fill pressure, a cylinder, a temperature) and a library of
+    /// recipes sharing compositions do not trace the envelope again.
     pub fn cricondentherm(&self, z: &[f64], t_floor_k: f64, p_max_pa: f64) -> Result<Option<(f64, f64)>, ThermoError> {
+        let key = (self.fluid.identity(), z.iter().chain([&t_floor_k, &p_max_pa]).map(|v| v.to_bits()).collect());
+        let kept =
+            |cache: &std::sync::MutexGuard<'_, Vec<Kept>>| cache.iter().find(|(k, _)| *k == key).map(|(_, v)| *v);
+        if let Some(found) = CRICONDENTHERMS.lock().ok().and_then(|c| kept(&c)) {
+            return Ok(found);
+        }
         let mut tracer = Tracer::new(self, z)?;
-        tracer.cricondentherm(t_floor_k, p_max_pa)
+        let found = tracer.cricondentherm(t_floor_k, p_max_pa)?;
+        if let Ok(mut cache) = CRICONDENTHERMS.lock() {
+            if cache.len() >= CRICONDENTHERMS_KEPT {
+                cache.remove(0);
+            }
+            cache.push((key, found));
+        }
+        Ok(found)
     }
 
     /// The pressure range at `t_k` in which the feed splits: (lower, upper) dew or bubble
@@ -156,6 +173,14 @@ impl<'a> PhaseFluid<'a> {
         tracer.unstable_pressures(t_k, seed_pa, p_max_pa)
     }
 }
+
+/// How many cricondentherms the process keeps (see [`PhaseFluid::cricondentherm`]).
+pub const CRICONDENTHERMS_KEPT: usize = 512;
+
+/// A kept cricondentherm: (the fluid's identity, the composition and range's bits), answer.
+type Kept = ((String, Vec<u64>), Option<(f64, f64)>);
+
+static CRICONDENTHERMS: std::sync::Mutex<Vec<Kept>> = std::sync::Mutex::new(Vec::new());
 
 /// ln Σ W above which the feed counts as splitting (Σ W > 1 + 1e-8, as in the stability test).
 const SPLIT: f64 = 1e-8;

@@ -225,6 +225,15 @@ impl Fluid {
         self
     }
 
+    /// What this fluid's equations are, as a key: two fluids with one identity give the
+    /// same answers (the model, the gases with their constants and k_ij, the Helmholtz
+    /// mixture's set and estimate, whether the phases are the quick estimate).
+    pub fn identity(&self) -> String {
+        let kij: Vec<u64> = self.kij.iter().flatten().map(|v| v.to_bits()).collect();
+        let mix = self.helmholtz_mixture().map(|m| m.identity().to_string()).unwrap_or_default();
+        format!("{:?}|{:?}|{:?}|{kij:?}|{mix}|{}", self.model, self.ids, self.cubic, self.phases_estimated)
+    }
+
     /// The same fluid with its phases judged by the Peng–Robinson screen (a quick estimate,
     /// for the screen while the model's own judgement is made elsewhere): its pressures,
     /// densities and flashes stay its own, only the stability test is the cubic's. No change

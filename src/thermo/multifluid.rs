@@ -201,6 +201,8 @@ pub struct Mixture {
     r: f64,
     /// Tells this mixture's prepared states apart from another's (see [`PREPARED`]).
     serial: u64,
+    /// What its equations are: the set, the estimate for unpublished pairs, the gases.
+    identity: String,
 }
 
 /// How a pair without published parameters is combined.
@@ -235,6 +237,7 @@ impl Mixture {
     }
 
     fn of_set(set: Set, catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Mixture {
+        let set_key = set;
         let set = indexed(set);
         let n = gases.len();
         let ids: Vec<String> = gases.iter().map(|&g| catalogue.gas(g).id().to_string()).collect();
@@ -306,7 +309,13 @@ impl Mixture {
             Some("GERG-2008") => GERG_R,
             _ => R,
         };
-        Mixture { pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, r, serial }
+        let identity = format!("{set_key:?}/{estimate:?}/{}", ids.join(","));
+        Mixture { pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, r, serial, identity }
+    }
+
+    /// What this mixture's equations are (the set, the estimate, the gases), as a key.
+    pub fn identity(&self) -> &str {
+        &self.identity
     }
 
     /// The gases on the cubic form and the pairs on the linear rule (estimates, not
