@@ -97,6 +97,37 @@ thread_local! {
         const { std::cell::RefCell::new(Vec::new()) };
 }
 
+/// A bracket [(ln P, gap), (ln P, gap)] of the cylinder's pressure, the gap (ln v_eq − ln v)
+/// falling with the pressure: from `start` outwards in steps doubling from a factor 1.5,
+/// within 100 Pa to the highest pressure; with the state nearest the answer so far.
+#[allow(clippy::type_complexity)]
+fn bracket(
+    gap: &impl Fn(f64) -> Result<(f64, Equilibrium), ThermoError>,
+    start: Option<f64>,
+) -> Result<((f64, f64), (f64, f64), Equilibrium), ThermoError> {
+    let (floor, top) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
+    let Some(l0) = start else {
+        let ((f_lo, e_lo), (f_hi, e_hi)) = (gap(floor)?, gap(top)?);
+        let best = if f_lo.abs() < f_hi.abs() { e_lo } else { e_hi };
+        return Ok(((floor, f_lo), (top, f_hi), best));
+    };
+    let (f0, _) = gap(l0)?;
+    // Above the answer (f > 0: the pressure is higher) or below it: walk the other way.
+    let up = f0 > 0.0;
+    let (mut near, mut step) = ((l0, f0), 1.5f64.ln());
+    loop {
+        let l = if up { (near.0 + step).min(top) } else { (near.0 - step).max(floor) };
+        let (f, e) = gap(l)?;
+        let crossed = (f > 0.0) != up || f == 0.0;
+        if crossed || l == top || l == floor {
+            let far = (l, f);
+            return Ok(if up { (near, far, e) } else { (far, near, e) });
+        }
+        near = (l, f);
+        step *= 2.0;
+    }
+}
+
 /// Where successive substitution from a trial phase ends.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) enum Stationary {
@@ -503,10 +534,11 @@ impl Fluid {
             };
             Ok((e.molar_volume_m3.ln() - target, e))
         };
-        let (mut lo, mut hi) = (1.0e2f64.ln(), MAX_PRESSURE_PA.ln());
-        let (mut f_lo, e_lo) = gap(lo)?;
-        let (mut f_hi, e_hi) = gap(hi)?;
-        let mut best = Some(if f_lo.abs() < f_hi.abs() { e_lo } else { e_hi });
+        // The bracket grows out from the one-phase pressure at this volume (near the
+        // answer where little liquid forms), else it is the whole range.
+        let start = self.pressure_tv(t_k, v, z).ok().filter(|p| *p > 1.0e2 && *p < MAX_PRESSURE_PA);
+        let ((mut lo, mut f_lo), (mut hi, mut f_hi), first) = bracket(&gap, start.map(f64::ln))?;
+        let mut best = Some(first);
         let mut side = 0i8;
         for k in 0..200 {
             if hi - lo < 1e-9 {
