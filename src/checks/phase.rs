@@ -138,30 +138,20 @@ impl<'a> PhaseFluid<'a> {
 
     /// The cricondentherm and the pressure at which it lies, searched from 0.5 bar to
     /// `p_max_pa`. None when no dew point exists above `t_floor_k`.
-    /// The last [`CRICONDENTHERMS_KEPT`] answers are kept for the process (by the fluid's
-    /// identity, the composition and the range, bit for bit): an edit that leaves the
-    /// composition alone (a fill pressure, a cylinder, a temperature) and a library of
-    /// recipes sharing compositions do not trace the envelope again.
+    ///
+    /// The last [`KEPT_ANSWERS`] answers are kept for the process (by the fluid's identity,
+    /// the composition and the range, bit for bit): an edit that leaves the composition
+    /// alone (a fill pressure, a cylinder, a temperature) and a library of recipes sharing
+    /// compositions do not trace the envelope again.
     pub fn cricondentherm(&self, z: &[f64], t_floor_k: f64, p_max_pa: f64) -> Result<Option<(f64, f64)>, ThermoError> {
-        let key = (self.fluid.identity(), z.iter().chain([&t_floor_k, &p_max_pa]).map(|v| v.to_bits()).collect());
-        let kept =
-            |cache: &std::sync::MutexGuard<'_, Vec<Kept>>| cache.iter().find(|(k, _)| *k == key).map(|(_, v)| *v);
-        if let Some(found) = CRICONDENTHERMS.lock().ok().and_then(|c| kept(&c)) {
-            return Ok(found);
-        }
-        let mut tracer = Tracer::new(self, z)?;
-        let found = tracer.cricondentherm(t_floor_k, p_max_pa)?;
-        if let Ok(mut cache) = CRICONDENTHERMS.lock() {
-            if cache.len() >= CRICONDENTHERMS_KEPT {
-                cache.remove(0);
-            }
-            cache.push((key, found));
-        }
-        Ok(found)
+        kept_or(Kind::Cricondentherm, self.fluid, z, &[t_floor_k, p_max_pa], || {
+            Tracer::new(self, z)?.cricondentherm(t_floor_k, p_max_pa)
+        })
     }
 
     /// The pressure range at `t_k` in which the feed splits: (lower, upper) dew or bubble
-    /// pressures, Pa. `seed_pa` is a pressure likely inside (the cricondentherm's).
+    /// pressures, Pa. `seed_pa` is a pressure likely inside (the cricondentherm's). Kept
+    /// for the process as [`PhaseFluid::cricondentherm`]'s answers are.
     pub fn unstable_pressures(
         &self,
         t_k: f64,
@@ -169,18 +159,49 @@ impl<'a> PhaseFluid<'a> {
         seed_pa: Option<f64>,
         p_max_pa: f64,
     ) -> Result<Option<(f64, f64)>, ThermoError> {
-        let mut tracer = Tracer::new(self, z)?;
-        tracer.unstable_pressures(t_k, seed_pa, p_max_pa)
+        kept_or(Kind::UnstablePressures, self.fluid, z, &[t_k, seed_pa.unwrap_or(f64::NAN), p_max_pa], || {
+            Tracer::new(self, z)?.unstable_pressures(t_k, seed_pa, p_max_pa)
+        })
     }
 }
 
-/// How many cricondentherms the process keeps (see [`PhaseFluid::cricondentherm`]).
-pub const CRICONDENTHERMS_KEPT: usize = 512;
+/// How many envelope answers the process keeps (see [`PhaseFluid::cricondentherm`]).
+pub const KEPT_ANSWERS: usize = 512;
 
-/// A kept cricondentherm: (the fluid's identity, the composition and range's bits), answer.
-type Kept = ((String, Vec<u64>), Option<(f64, f64)>);
+/// Which envelope answer is kept.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Kind {
+    Cricondentherm,
+    UnstablePressures,
+}
 
-static CRICONDENTHERMS: std::sync::Mutex<Vec<Kept>> = std::sync::Mutex::new(Vec::new());
+/// A kept answer: (what, the fluid's identity, the composition and arguments' bits), answer.
+type Kept = ((Kind, String, Vec<u64>), Option<(f64, f64)>);
+
+static KEPT: std::sync::Mutex<Vec<Kept>> = std::sync::Mutex::new(Vec::new());
+
+/// The kept answer for these arguments, else `compute`'s (kept when it is one).
+fn kept_or(
+    kind: Kind,
+    fluid: &Fluid,
+    z: &[f64],
+    args: &[f64],
+    compute: impl FnOnce() -> Result<Option<(f64, f64)>, ThermoError>,
+) -> Result<Option<(f64, f64)>, ThermoError> {
+    let key = (kind, fluid.identity(), z.iter().chain(args).map(|v| v.to_bits()).collect::<Vec<u64>>());
+    let found = KEPT.lock().ok().and_then(|kept| kept.iter().find(|(k, _)| *k == key).map(|(_, v)| *v));
+    if let Some(found) = found {
+        return Ok(found);
+    }
+    let answer = compute()?;
+    if let Ok(mut kept) = KEPT.lock() {
+        if kept.len() >= KEPT_ANSWERS {
+            kept.remove(0);
+        }
+        kept.push((key, answer));
+    }
+    Ok(answer)
+}
 
 /// ln Σ W above which the feed counts as splitting (Σ W > 1 + 1e-8, as in the stability test).
 const SPLIT: f64 = 1e-8;
