@@ -243,22 +243,24 @@ fn by_the_equation_of_state(
     // The whole envelope, up to its cricondenbar or 1000 bar: nothing here depends on the
     // fill pressure.
     let p_search = MAX_PRESSURE_PA;
-    // The envelope on one core; on the other, along the isochore from the judged
-    // temperature up to the reference: the first temperature where the contents split.
-    let (ct, splits_at) = rayon::join(
-        || phase.cricondentherm(z, t_floor, p_search).map_err(|e| e.to_string()),
-        || -> Result<Option<(f64, f64)>, String> {
-            for k in 0..=6 {
-                let t = t_low + (t_ref.max(t_low) - t_low) * k as f64 / 6.0;
-                if fluid.condensed_tv(t, order.volume_m3, amounts).map_err(|e| e.to_string())? {
-                    let p = fluid.equilibrium_tv(t, order.volume_m3, amounts).map_or(f64::NAN, |e| e.pressure_pa);
-                    return Ok(Some((t, p)));
-                }
-            }
-            Ok(None)
-        },
-    );
-    let (ct, splits_at) = (ct?, splits_at?);
+    let ct = phase.cricondentherm(z, t_floor, p_search).map_err(|e| e.to_string())?;
+    // Along the isochore from the judged temperature up to the reference: the first
+    // temperature where the contents split. Above the cricondentherm they are one phase at
+    // any pressure, so only the temperatures up to it (and 1 K more, for the envelope's own
+    // tolerance) are tested; none where the blend has no dew point at all.
+    let top = ct.map_or(f64::NEG_INFINITY, |(t, _)| t + 1.0);
+    let mut splits_at = None;
+    for k in 0..=6 {
+        let t = t_low + (t_ref.max(t_low) - t_low) * k as f64 / 6.0;
+        if t > top {
+            break;
+        }
+        if fluid.condensed_tv(t, order.volume_m3, amounts).map_err(|e| e.to_string())? {
+            let p = fluid.equilibrium_tv(t, order.volume_m3, amounts).map_or(f64::NAN, |e| e.pressure_pa);
+            splits_at = Some((t, p));
+            break;
+        }
+    }
     let range = if ct.is_some_and(|(t, _)| t > t_low) {
         phase.unstable_pressures(t_low, z, ct.map(|(_, p)| p), p_search).map_err(|e| e.to_string())?
     } else {
