@@ -43,6 +43,16 @@ fn write_pending_draft() {
     }
 }
 
+/// [`write_pending_draft`] from the panic hook: a panic on the thread that holds the draft's
+/// lock (while writing it) must not wait for itself.
+fn write_pending_draft_unless_held() {
+    if let Ok(guard) = PENDING_DRAFT.try_lock() {
+        if let Some((path, text)) = guard.as_ref() {
+            let _ = drafts::write(path, text);
+        }
+    }
+}
+
 /// Keep the draft in step with the model after every update: the recipe with unsaved
 /// edits, and the value being typed, is written at once (and again on a signal or a lost
 /// terminal); a draft that cannot be written is said on the status line at once. The
@@ -59,6 +69,11 @@ fn remember_draft(model: &mut Model, ctx: &Context, written: &mut Option<(PathBu
         a.as_ref().map(|(p, t)| (p, t.lines().filter(|l| !l.contains("written")).collect::<String>()))
             == b.as_ref().map(|(p, t)| (p, t.lines().filter(|l| !l.contains("written")).collect::<String>()))
     };
+    // The draft a signal would write is the newest before the file is written, and the
+    // lock is held while writing: a signal between the two wrote the draft of the key
+    // before over the one just written (a kill right after "12.5%" left "12.5").
+    let mut signal_draft = PENDING_DRAFT.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+    *signal_draft = pending.clone();
     if !same(&pending, written) {
         if let Some((old, _)) = written.as_ref().filter(|(old, _)| pending.as_ref().is_none_or(|(p, _)| p != old)) {
             let _ = std::fs::remove_file(old);
@@ -74,9 +89,6 @@ fn remember_draft(model: &mut Model, ctx: &Context, written: &mut Option<(PathBu
             },
             None => *written = None,
         }
-    }
-    if let Ok(mut guard) = PENDING_DRAFT.lock() {
-        *guard = pending;
     }
 }
 
@@ -271,7 +283,7 @@ fn handle_signals() -> Result<(), String> {
 fn keep_drafts_on_panic() {
     let restore_hook = std::panic::take_hook();
     std::panic::set_hook(Box::new(move |info| {
-        write_pending_draft();
+        write_pending_draft_unless_held();
         restore_terminal();
         restore_hook(info);
     }));
