@@ -292,3 +292,24 @@ fn no_premix_of_several_gases_where_another_source_brings_one_of_them() {
     let p = plan::plan(&order, &c, &PlanOptions { model: None, ..options(0.1, 0.1) }).unwrap();
     assert!(p.premixes.iter().all(|x| x.also.is_empty()), "no premix of both");
 }
+
+#[test]
+fn kept_stage_plans_are_the_stages_own_and_follow_what_they_are_made_of() {
+    // The process keeps each stage's plan by what it is made of: planning the blend again
+    // gives the same stages (the kept ones), another amount of another gas leaves them
+    // alone, and another fill pressure or bench resolution makes new ones.
+    let c = Catalogue::built_in();
+    let stages = |text: &str, o: &PlanOptions| {
+        let order = Recipe::load(text, "t", &c).unwrap();
+        let p = plan::plan(&order, &c, o).unwrap();
+        p.premixes[0].stages.iter().map(|s| format!("{:?}", s.plan.as_ref().unwrap().steps)).collect::<Vec<_>>()
+    };
+    let first = blend(r#"(gas: "H2S", amount: "1ppm"), (gas: "CO", amount: "1%"), (gas: "N2", amount: "balance")"#);
+    let a = stages(&first, &options(0.1, 0.1));
+    assert_eq!(a, stages(&first, &options(0.1, 0.1)));
+    let other_co = first.replace("\"1%\"", "\"2%\"");
+    assert_eq!(a, stages(&other_co, &options(0.1, 0.1)), "the H2S stages do not depend on CO");
+    let lower = first.replace("Pressure(\"150bar\")", "Pressure(\"100bar\")");
+    assert_ne!(a, stages(&lower, &options(0.1, 0.1)), "another fill pressure, other stages");
+    assert_ne!(a, stages(&first, &options(0.01, 0.01)), "finer resolutions, other stages");
+}

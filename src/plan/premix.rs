@@ -354,6 +354,14 @@ fn balance_gas_of(order: &Order) -> usize {
 }
 
 /// Makes the premix stages of one gas in the blend's balance gas.
+/// How many premix stages' plans the process keeps (see [`StageMaker::plan`]).
+const STAGE_PLANS_KEPT: usize = 64;
+
+/// The kept stage plans: (what each is made of, its plan).
+type KeptPlan = (String, Result<Plan, PlanError>);
+
+static STAGE_PLANS: std::sync::Mutex<Vec<KeptPlan>> = std::sync::Mutex::new(Vec::new());
+
 struct StageMaker<'a> {
     gas: usize,
     balance_gas: usize,
@@ -400,8 +408,25 @@ impl StageMaker<'_> {
         }
     }
 
+    /// A stage's plan. The last [`STAGE_PLANS_KEPT`] are kept for the process by everything
+    /// they are made of (the stage's order, the options, the two gases' records): an edit of
+    /// the blend that leaves a stage alone (another gas's amount, a tolerance), and recipes
+    /// with the same premix, plan it once.
     fn plan(&self, o: &Order) -> Result<Plan, PlanError> {
-        (self.planner)(o, self.catalogue, &self.options, MAX_STAGES)
+        let (gas, balance) = (self.catalogue.gas(self.gas), self.catalogue.gas(self.balance_gas));
+        let key = format!("{o:?}|{:?}|{gas:?}|{balance:?}", self.options);
+        let kept = STAGE_PLANS.lock().ok().and_then(|k| k.iter().find(|(k, _)| *k == key).map(|(_, p)| p.clone()));
+        if let Some(planned) = kept {
+            return planned;
+        }
+        let planned = (self.planner)(o, self.catalogue, &self.options, MAX_STAGES);
+        if let Ok(mut k) = STAGE_PLANS.lock() {
+            if k.len() >= STAGE_PLANS_KEPT {
+                drop(k.remove(0));
+            }
+            k.push((key, planned.clone()));
+        }
+        planned
     }
 
     /// The strengths, weakest first: each next one until the pure gas can be dosed; with the
