@@ -13,6 +13,7 @@ pub mod checks;
 pub mod cli;
 pub mod config;
 pub mod gas;
+pub mod kept;
 pub mod library;
 pub mod mixture;
 pub mod plan;

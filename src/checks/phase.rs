@@ -175,10 +175,12 @@ enum Kind {
     UnstablePressures,
 }
 
-/// A kept answer: (what, the fluid's identity, the composition and arguments' bits), answer.
-type Kept = ((Kind, String, Vec<u64>), Option<(f64, f64)>);
+/// What a kept envelope answer is of: what, the fluid's identity, the composition and the
+/// arguments' bits.
+type KeptKey = (Kind, String, Vec<u64>);
 
-static KEPT: std::sync::Mutex<Vec<Kept>> = std::sync::Mutex::new(Vec::new());
+/// The kept envelope answers.
+static KEPT: crate::kept::Kept<KeptKey, Option<(f64, f64)>> = crate::kept::Kept::new(KEPT_ANSWERS);
 
 /// The kept answer for these arguments, else `compute`'s (kept when it is one).
 fn kept_or(
@@ -189,18 +191,7 @@ fn kept_or(
     compute: impl FnOnce() -> Result<Option<(f64, f64)>, ThermoError>,
 ) -> Result<Option<(f64, f64)>, ThermoError> {
     let key = (kind, fluid.identity(), z.iter().chain(args).map(|v| v.to_bits()).collect::<Vec<u64>>());
-    let found = KEPT.lock().ok().and_then(|kept| kept.iter().find(|(k, _)| *k == key).map(|(_, v)| *v));
-    if let Some(found) = found {
-        return Ok(found);
-    }
-    let answer = compute()?;
-    if let Ok(mut kept) = KEPT.lock() {
-        if kept.len() >= KEPT_ANSWERS {
-            kept.remove(0);
-        }
-        kept.push((key, answer));
-    }
-    Ok(answer)
+    KEPT.get_or_try(key, compute)
 }
 
 /// ln Σ W above which the feed counts as splitting (Σ W > 1 + 1e-8, as in the stability test).

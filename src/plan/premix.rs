@@ -357,10 +357,8 @@ fn balance_gas_of(order: &Order) -> usize {
 /// How many premix stages' plans the process keeps (see [`StageMaker::plan`]).
 const STAGE_PLANS_KEPT: usize = 64;
 
-/// The kept stage plans: (what each is made of, its plan).
-type KeptPlan = (String, Result<Plan, PlanError>);
-
-static STAGE_PLANS: std::sync::Mutex<Vec<KeptPlan>> = std::sync::Mutex::new(Vec::new());
+/// The kept stage plans, by what each is made of.
+static STAGE_PLANS: crate::kept::Kept<String, Result<Plan, PlanError>> = crate::kept::Kept::new(STAGE_PLANS_KEPT);
 
 struct StageMaker<'a> {
     gas: usize,
@@ -415,18 +413,7 @@ impl StageMaker<'_> {
     fn plan(&self, o: &Order) -> Result<Plan, PlanError> {
         let (gas, balance) = (self.catalogue.gas(self.gas), self.catalogue.gas(self.balance_gas));
         let key = format!("{o:?}|{:?}|{gas:?}|{balance:?}", self.options);
-        let kept = STAGE_PLANS.lock().ok().and_then(|k| k.iter().find(|(k, _)| *k == key).map(|(_, p)| p.clone()));
-        if let Some(planned) = kept {
-            return planned;
-        }
-        let planned = (self.planner)(o, self.catalogue, &self.options, MAX_STAGES);
-        if let Ok(mut k) = STAGE_PLANS.lock() {
-            if k.len() >= STAGE_PLANS_KEPT {
-                drop(k.remove(0));
-            }
-            k.push((key, planned.clone()));
-        }
-        planned
+        STAGE_PLANS.get_or(key, || (self.planner)(o, self.catalogue, &self.options, MAX_STAGES))
     }
 
     /// The strengths, weakest first: each next one until the pure gas can be dosed; with the
