@@ -39,26 +39,6 @@ fn fluid(c: &Catalogue, ids: &[&str], model: Model) -> Fluid {
     Fluid::new(c, &gases, model).expect("fluid")
 }
 
-/// The aga8 crate's composition of the benchmark gases.
-fn aga8_composition(ids: &[&str], x: &[f64]) -> aga8::composition::Composition {
-    let mut comp = aga8::composition::Composition::default();
-    for (id, &v) in ids.iter().zip(x) {
-        let slot = match *id {
-            "CH4" => &mut comp.methane,
-            "N2" => &mut comp.nitrogen,
-            "CO2" => &mut comp.carbon_dioxide,
-            "C2H6" => &mut comp.ethane,
-            "C3H8" => &mut comp.propane,
-            "i-C4H10" => &mut comp.isobutane,
-            "n-C4H10" => &mut comp.n_butane,
-            "i-C5H12" => &mut comp.isopentane,
-            _ => &mut comp.n_pentane,
-        };
-        *slot = v;
-    }
-    comp
-}
-
 fn main() {
     let c = Catalogue::built_in();
     let (t, p) = (fillwright::speed::STATE_T_K, fillwright::speed::STATE_P_PA);
@@ -70,7 +50,8 @@ fn main() {
         // The aga8 crate's GERG-2008 density itself (the peer in Rust; its composition set
         // once, as fillwright keeps it).
         let mut g = aga8::gerg2008::Gerg2008::new();
-        g.set_composition(&aga8_composition(ids, x)).expect("a GERG-2008 composition");
+        let comp = fillwright::thermo::gerg::composition(ids, x).expect("gases GERG-2008 covers");
+        g.set_composition(&comp).expect("a GERG-2008 composition");
         g.t = t;
         g.p = p * 1e-3;
         emit(&format!("aga8 density {label}"), time(|| drop(black_box(g.density(0)))));

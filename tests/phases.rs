@@ -655,7 +655,7 @@ fn the_quick_estimate_judges_and_splits_by_peng_robinson_and_keeps_single_phase_
     let gases: Vec<usize> = ["CH4", "n-C4H10"].iter().map(|id| c.index_of(id).unwrap()).collect();
     let gerg = Fluid::new(&c, &gases, Model::Gerg).unwrap();
     let pr = Fluid::new(&c, &gases, Model::Pr).unwrap();
-    let estimated = gerg.clone().with_phases_estimated();
+    let estimated = gerg.clone().with_phases_estimated(true);
     let n = [1.9, 0.1];
     let own = gerg.equilibrium_tv(250.0, 1e-3, &n).unwrap();
     let est = estimated.equilibrium_tv(250.0, 1e-3, &n).unwrap();

@@ -641,7 +641,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     // A cubic asked to judge the phases is the quick estimate: it judges every model's own
     // states too (their pressures and densities stay their own).
     let estimating = options.phase_judge.is_some_and(Model::is_cubic);
-    let fluid = estimated(Fluid::new(catalogue, &setup.gases, model)?, estimating);
+    let fluid = Fluid::new(catalogue, &setup.gases, model)?.with_phases_estimated(estimating);
     let t_fill = options.fill_temperature_k.unwrap_or(order.fill_temperature_k);
     let t_ref = order.reference_temperature_k;
     let sequence_names =
@@ -766,15 +766,6 @@ struct OtherModels<'a> {
     estimating: bool,
 }
 
-/// `fluid`, with its phases judged by the Peng–Robinson screen when `estimating`.
-fn estimated(fluid: Fluid, estimating: bool) -> Fluid {
-    if estimating {
-        fluid.with_phases_estimated()
-    } else {
-        fluid
-    }
-}
-
 impl OtherModels<'_> {
     /// Model `m`'s own plan: its total amount, Z and stop readings.
     fn plan(&self, m: Model) -> ModelPlan {
@@ -787,7 +778,7 @@ impl OtherModels<'_> {
         }
         let result = Fluid::new(catalogue, &setup.gases, m)
             .map_err(PlanError::from)
-            .map(|f| estimated(f, estimating))
+            .map(|f| f.with_phases_estimated(estimating))
             .and_then(|f| {
                 let dm = dosing(&f, order, setup, sequence_names, catalogue)?;
                 let ps = step_pressures(&f, order, setup, &dm, t_fill)?;

@@ -353,13 +353,13 @@ fn balance_gas_of(order: &Order) -> usize {
     }
 }
 
-/// Makes the premix stages of one gas in the blend's balance gas.
 /// How many premix stages' plans the process keeps (see [`StageMaker::plan`]).
 const STAGE_PLANS_KEPT: usize = 64;
 
 /// The kept stage plans, by what each is made of.
 static STAGE_PLANS: crate::kept::Kept<String, Result<Plan, PlanError>> = crate::kept::Kept::new(STAGE_PLANS_KEPT);
 
+/// Makes the premix stages of one gas in the blend's balance gas.
 struct StageMaker<'a> {
     gas: usize,
     balance_gas: usize,

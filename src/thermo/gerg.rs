@@ -18,6 +18,16 @@ pub fn covers(id: &str) -> bool {
     COVERED.contains(&id)
 }
 
+/// The aga8 crate's composition of the gases `ids` (catalogue ids) in mole fractions `x`;
+/// None where GERG-2008 does not cover one of them.
+pub fn composition(ids: &[impl AsRef<str>], x: &[f64]) -> Option<GergComposition> {
+    let mut comp = GergComposition::default();
+    for (id, &xi) in ids.iter().zip(x) {
+        *slot(&mut comp, id.as_ref())? += xi;
+    }
+    Some(comp)
+}
+
 fn slot<'a>(c: &'a mut GergComposition, id: &str) -> Option<&'a mut f64> {
     Some(match id {
         "CH4" => &mut c.methane,
@@ -104,10 +114,7 @@ impl Gerg {
     /// composition) and temperature terms (per temperature) are then computed once, not
     /// per call, even where a plan's steps take turns.
     fn with_model<R>(&self, x: &[f64], t_k: f64, f: impl FnOnce(&mut Gerg2008) -> R) -> Option<R> {
-        let mut comp = GergComposition::default();
-        for (id, &xi) in self.ids.iter().zip(x) {
-            *slot(&mut comp, id)? += xi;
-        }
+        let comp = composition(&self.ids, x)?;
         let key = key_of(&comp);
         KEPT_STATES.with(|cell| {
             let mut kept = cell.borrow_mut();

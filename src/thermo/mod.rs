@@ -234,12 +234,12 @@ impl Fluid {
         format!("{:?}|{:?}|{:?}|{kij:?}|{mix}|{}", self.model, self.ids, self.cubic, self.phases_estimated)
     }
 
-    /// The same fluid with its phases judged by the Peng–Robinson screen (a quick estimate,
-    /// for the screen while the model's own judgement is made elsewhere): its pressures,
-    /// densities and flashes stay its own, only the stability test is the cubic's. No change
-    /// for a cubic or the ideal gas.
-    pub fn with_phases_estimated(mut self) -> Fluid {
-        self.phases_estimated = self.screen.is_some() && self.model.cubic_kind().is_none();
+    /// The same fluid with its phases judged by the Peng–Robinson screen where `estimated`
+    /// (a quick estimate, for the screen while the model's own judgement is made
+    /// elsewhere): its single-phase pressures and densities stay its own, the stability
+    /// test and any split are the cubic's. No change for a cubic or the ideal gas.
+    pub fn with_phases_estimated(mut self, estimated: bool) -> Fluid {
+        self.phases_estimated = estimated && self.screen.is_some() && !self.model.is_cubic();
         self
     }
 

@@ -324,7 +324,9 @@ impl Mixture {
         (&self.estimated_gases, &self.estimated_pairs)
     }
 
-    /// (T_r, ρ_r) of composition `x`.
+    /// (T_r, ρ_r) of composition `x` with dual numbers (the definition the tests check
+    /// [`Mixture::reducing_gradient`] and [`Mixture::ln_phi`] against).
+    #[cfg(test)]
     fn reducing(&self, x: &[D2]) -> (D2, D2) {
         let n = x.len();
         let mut t = D2::c(0.0);
@@ -444,9 +446,8 @@ impl Mixture {
     /// The composition's reducing state and every term's temperature factor at T, for
     /// several densities in a row.
     fn compose(&self, x: &[f64], t_k: f64) -> Composed {
-        let xd: Vec<D2> = x.iter().map(|&v| D2::c(v)).collect();
-        let (tr, rr) = self.reducing(&xd);
-        let tau = tr.v / t_k;
+        let (tr, rr, _, _) = self.reducing_gradient(x);
+        let tau = tr / t_k;
         let mut flat = Vec::new();
         let mut other: Vec<(f64, Other)> = Vec::new();
         let n = x.len();
@@ -467,7 +468,7 @@ impl Mixture {
                 }
             }
         }
-        Composed { t_k, r: self.r, rho_r: rr.v, tau, flat, other }
+        Composed { t_k, r: self.r, rho_r: rr, tau, flat, other }
     }
 
     /// Molar density, mol/m³, at (T, P) by Newton's method from `rho0` (the ideal gas

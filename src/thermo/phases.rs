@@ -99,7 +99,8 @@ thread_local! {
 
 /// A bracket [(ln P, gap), (ln P, gap)] of the cylinder's pressure, the gap (ln v_eq − ln v)
 /// falling with the pressure: from `start` outwards in steps doubling from a factor 1.5,
-/// within 100 Pa to the highest pressure; with the state nearest the answer so far.
+/// within 100 Pa to the highest pressure (the whole range without a start); with the state
+/// at the last pressure tried.
 #[allow(clippy::type_complexity)]
 fn bracket(
     gap: &impl Fn(f64) -> Result<(f64, Equilibrium), ThermoError>,

@@ -163,6 +163,9 @@ fn take_screened(model: &mut super::model::Model, ctx: &Context) -> bool {
         Ok(rx) => rx.try_iter().collect(),
         Err(_) => return false,
     };
+    if came.is_empty() {
+        return false;
+    }
     let settings = format!("{:?}", ctx.settings);
     let library = &mut model.library;
     let mut changed = false;

@@ -37,9 +37,7 @@ static SCREEN: Mutex<()> = Mutex::new(());
 
 fn write_pending_draft() {
     if let Ok(guard) = PENDING_DRAFT.lock() {
-        if let Some((path, text)) = guard.as_ref() {
-            let _ = drafts::write(path, text);
-        }
+        write_draft(&guard);
     }
 }
 
@@ -47,9 +45,13 @@ fn write_pending_draft() {
 /// lock (while writing it) must not wait for itself.
 fn write_pending_draft_unless_held() {
     if let Ok(guard) = PENDING_DRAFT.try_lock() {
-        if let Some((path, text)) = guard.as_ref() {
-            let _ = drafts::write(path, text);
-        }
+        write_draft(&guard);
+    }
+}
+
+fn write_draft(pending: &Option<(PathBuf, String)>) {
+    if let Some((path, text)) = pending {
+        let _ = drafts::write(path, text);
     }
 }
 

@@ -493,10 +493,10 @@ impl Document {
     }
 }
 
-/// The last screening of each library recipe: name → (file fingerprint, settings, worst).
 /// The recipes being screened on another thread (see [`LibraryState::pending`]).
 pub type Pending = std::collections::HashMap<String, (crate::library::Fingerprint, String)>;
 
+/// The last screening of each library recipe: name → (file fingerprint, settings, worst).
 pub type ScreeningCache =
     std::collections::HashMap<String, (crate::library::Fingerprint, String, Option<checks::Severity>)>;
 
