@@ -219,3 +219,71 @@ fn slips_in_names_are_named_with_the_nearest_and_exit_1() {
     assert!(err(&o).contains("did you mean N2"), "{}", err(&o));
     let _ = std::fs::remove_dir_all(&config);
 }
+
+/// The title `list` shows for `name`.
+fn listed_title(config: &PathBuf, name: &str) -> String {
+    let o = run(config, &["list", "--format", "json"]);
+    assert!(o.status.success(), "{}", err(&o));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let entry = v["recipes"].as_array().unwrap().iter().find(|e| e["name"] == name).cloned().unwrap();
+    entry["title"].as_str().unwrap_or_else(|| panic!("{entry}")).to_string()
+}
+
+#[test]
+fn list_takes_unchanged_recipes_from_its_index_and_reads_every_change() {
+    let config = fresh("index");
+    assert!(run(&config, &["list"]).status.success());
+    let library = config.join("library");
+    let index = library.join(".index/briefs.json");
+    // Just written: not settled, so not indexed yet (a second change in the same tick of
+    // the file system's clock could keep the stamp).
+    assert_eq!(listed_title(&config, "laser-co2-he-n2"), "CO2 laser gas");
+    assert!(!index.exists(), "indexed files changed within the last seconds");
+    std::thread::sleep(std::time::Duration::from_millis(3200));
+    assert_eq!(listed_title(&config, "laser-co2-he-n2"), "CO2 laser gas");
+    let text = std::fs::read_to_string(&index).expect("the index is written once the files have settled");
+    assert!(text.contains("\"flue-gas-span\"") && text.contains("\"10L, 200bar\""), "{text}");
+    // The index is what is shown for an unchanged file: a title changed in the index alone
+    // comes out (proof that the file was not read again).
+    std::fs::write(&index, text.replace("\"title\":\"CO2 laser gas\"", "\"title\":\"as indexed\"")).unwrap();
+    assert_eq!(listed_title(&config, "laser-co2-he-n2"), "as indexed");
+    // A change to the file, in place and of the same length, is read at once.
+    let recipe = library.join("laser-co2-he-n2.ron");
+    let body = std::fs::read_to_string(&recipe).unwrap();
+    std::fs::write(&recipe, body.replacen("name: \"CO2 laser gas\"", "name: \"CO2 laser gaz\"", 1)).unwrap();
+    assert_eq!(listed_title(&config, "laser-co2-he-n2"), "CO2 laser gaz");
+    // A file that no longer parses is listed with its error, not its old brief.
+    std::fs::write(&recipe, "Recipe(").unwrap();
+    let o = run(&config, &["list", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let entry = v["recipes"].as_array().unwrap().iter().find(|e| e["name"] == "laser-co2-he-n2").cloned().unwrap();
+    assert!(entry["error"].is_string() && entry["title"].is_null(), "{entry}");
+    // A damaged index is ignored and made again.
+    std::fs::write(&index, "{ not json").unwrap();
+    assert!(!listed_title(&config, "flue-gas-span").is_empty());
+    let again: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&index).unwrap()).unwrap();
+    assert!(again["briefs"]["flue-gas-span"].is_array(), "{again}");
+}
+
+#[test]
+fn a_link_planted_as_the_index_is_neither_read_nor_written_through() {
+    let config = fresh("index-link");
+    assert!(run(&config, &["list"]).status.success());
+    let library = config.join("library");
+    let elsewhere = config.join("elsewhere");
+    std::fs::create_dir_all(&elsewhere).unwrap();
+    // An index elsewhere that would put a false title on the list.
+    std::fs::write(
+        elsewhere.join("briefs.json"),
+        r#"{"format":1,"briefs":{"flue-gas-span":[{"dev":0,"ino":0,"size":0,"mtime":0,"mtime_ns":0,"ctime":0,"ctime_ns":0},{"title":"planted","fill":"1bar","cylinder":"1L, 1bar","revision":9}]}}"#,
+    )
+    .unwrap();
+    std::os::unix::fs::symlink(&elsewhere, library.join(".index")).unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(3200));
+    let before = std::fs::read_to_string(elsewhere.join("briefs.json")).unwrap();
+    let o = run(&config, &["list"]);
+    assert!(o.status.success(), "{}", err(&o));
+    assert!(out(&o).contains("flue-gas-span") && !out(&o).contains("planted"), "{}", out(&o));
+    assert_eq!(std::fs::read_to_string(elsewhere.join("briefs.json")).unwrap(), before);
+    assert_eq!(std::fs::read_dir(&elsewhere).unwrap().count(), 1, "nothing written through the link");
+}

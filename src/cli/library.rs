@@ -47,11 +47,11 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
     if seeded > 0 {
         eprintln!("fillwright: the library was empty; copied {seeded} demo recipes into {}", lib.dir().display());
     }
-    let entries = lib.list()?;
+    let entries = lib.briefs()?;
     if args.format == Format::Json {
         print_json(&json!({
             "library": lib.dir().display().to_string(),
-            "recipes": entries.iter().map(|e| match &e.summary {
+            "recipes": entries.iter().map(|e| match &e.brief {
                 Ok(s) => json!({"name": e.name, "title": s.title, "fill": s.fill, "cylinder": s.cylinder, "revision": s.revision}),
                 Err(err) => json!({"name": e.name, "error": err}),
             }).collect::<Vec<_>>(),
@@ -61,7 +61,7 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
     if args.format == Format::Csv {
         super::print_csv_row(&["name", "title", "fill", "cylinder", "revision", "error"]);
         for e in &entries {
-            match &e.summary {
+            match &e.brief {
                 Ok(s) => super::print_csv_row(&[&e.name, &s.title, &s.fill, &s.cylinder, &s.revision.to_string(), ""]),
                 Err(err) => super::print_csv_row(&[e.name.as_str(), "", "", "", "", err]),
             }
@@ -72,7 +72,7 @@ pub fn list(args: &ListArgs) -> Result<(), Failure> {
     // 80 columns: long names and titles are cut with an ellipsis.
     outln!("{:<22} {:>8} {:>13} {:>3}  recipe", "name", "fill", "cylinder", "rev");
     for e in &entries {
-        match &e.summary {
+        match &e.brief {
             Ok(s) => outln!(
                 "{:<22} {:>8} {:>13} {:>3}  {}",
                 crate::ron_format::clip_middle(&e.name, 22),

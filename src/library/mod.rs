@@ -9,11 +9,14 @@
 pub mod atomic;
 pub mod clock;
 pub mod git;
+mod index;
 pub mod records;
 pub mod sync;
 pub mod verifications;
 
 use std::path::{Path, PathBuf};
+
+pub use index::Brief;
 
 use crate::recipe::{canonical, changes, demo, FillTarget, Recipe, MAX_RECIPE_BYTES};
 
@@ -180,17 +183,14 @@ pub struct Summary {
 impl Summary {
     fn of(o: &Opened) -> Summary {
         let r = &o.recipe;
+        let Brief { title, fill, cylinder, revision } = brief_of(r);
         Summary {
             recipe: r.clone(),
             fingerprint: o.fingerprint,
-            title: r.name.clone(),
-            fill: match &r.fill {
-                FillTarget::Pressure(p) => p.clone(),
-                FillTarget::Mass(m) => format!("{m} (mass)"),
-                FillTarget::Amount(n) => format!("{n} (amount)"),
-            },
-            cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
-            revision: r.revision,
+            title,
+            fill,
+            cylinder,
+            revision,
             search_text: [
                 r.order.as_str(),
                 r.cylinder.serial.as_deref().unwrap_or(""),
@@ -204,6 +204,27 @@ impl Summary {
             .to_lowercase(),
         }
     }
+}
+
+/// What `list` shows of a recipe.
+fn brief_of(r: &Recipe) -> Brief {
+    Brief {
+        title: r.name.clone(),
+        fill: match &r.fill {
+            FillTarget::Pressure(p) => p.clone(),
+            FillTarget::Mass(m) => format!("{m} (mass)"),
+            FillTarget::Amount(n) => format!("{n} (amount)"),
+        },
+        cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
+        revision: r.revision,
+    }
+}
+
+/// One line of `list`: a recipe's brief, or why the entry could not be read.
+#[derive(Debug, Clone)]
+pub struct Listed {
+    pub name: String,
+    pub brief: Result<Brief, String>,
 }
 
 /// One stored revision.
@@ -237,6 +258,12 @@ pub enum OnConflict {
 
 /// An entry of the library folder that is not read as a recipe: its name and why.
 type Skipped = (String, String);
+
+/// One `.ron` entry of the library folder: a recipe's name, or a name and why it is skipped.
+enum Candidate {
+    Recipe(String),
+    Skipped(String, String),
+}
 
 /// A library folder.
 #[derive(Debug, Clone)]
@@ -290,7 +317,7 @@ impl Library {
 
     /// Copy the demo recipes in when the library has no recipe at all; returns how many.
     pub fn seed_demos_if_empty(&self) -> Result<usize, LibraryError> {
-        if !self.names()?.is_empty() {
+        if self.candidates()?.any(|c| matches!(c, Candidate::Recipe(_))) {
             return Ok(0);
         }
         for (name, text) in demo::RECIPES {
@@ -309,35 +336,50 @@ impl Library {
     fn scan(&self) -> Result<(Vec<String>, Vec<Skipped>), LibraryError> {
         let mut names = Vec::new();
         let mut skipped = Vec::new();
-        for entry in std::fs::read_dir(&self.dir).map_err(io(&self.dir))? {
-            let entry = entry.map_err(io(&self.dir))?;
+        for candidate in self.candidates()? {
+            match candidate {
+                Candidate::Recipe(name) => names.push(name),
+                Candidate::Skipped(name, why) => skipped.push((name, why)),
+            }
+        }
+        names.sort();
+        skipped.sort();
+        Ok((names, skipped))
+    }
+
+    /// The folder's `.ron` entries, one at a time, each a recipe name or skipped with why
+    /// (a folder, a FIFO, a link out of the library, a name not allowed). A regular file is
+    /// known by its directory entry, without another look at the disk.
+    fn candidates(&self) -> Result<impl Iterator<Item = Candidate> + '_, LibraryError> {
+        let entries = std::fs::read_dir(&self.dir).map_err(io(&self.dir))?;
+        Ok(entries.filter_map(move |entry| {
+            let entry = match entry {
+                Ok(e) => e,
+                Err(e) => return Some(Candidate::Skipped(self.dir.display().to_string(), format!("skipped: {e}"))),
+            };
             let path = entry.path();
             if path.extension().and_then(|e| e.to_str()) != Some("ron") {
-                continue;
+                return None;
             }
             let Some(stem) = path.file_stem().and_then(|s| s.to_str()) else {
-                skipped.push((path.display().to_string(), "the name is not valid UTF-8".to_string()));
-                continue;
+                return Some(Candidate::Skipped(path.display().to_string(), "the name is not valid UTF-8".to_string()));
             };
             if stem.starts_with('.') {
-                continue;
+                return None;
             }
             if let Err(e) = check_name(stem) {
                 let why = match e {
                     LibraryError::BadName { why, .. } => why.to_string(),
                     other => other.to_string(),
                 };
-                skipped.push((stem.to_string(), format!("skipped: the name is not allowed ({why})")));
-                continue;
+                return Some(Candidate::Skipped(stem.to_string(), format!("skipped: the name is not allowed ({why})")));
             }
-            match self.readable(&path) {
-                Ok(()) => names.push(stem.to_string()),
-                Err(why) => skipped.push((stem.to_string(), format!("skipped: {why}"))),
-            }
-        }
-        names.sort();
-        skipped.sort();
-        Ok((names, skipped))
+            let regular = entry.file_type().is_ok_and(|t| t.is_file());
+            Some(match if regular { Ok(()) } else { self.readable(&path) } {
+                Ok(()) => Candidate::Recipe(stem.to_string()),
+                Err(why) => Candidate::Skipped(stem.to_string(), format!("skipped: {why}")),
+            })
+        }))
     }
 
     /// Whether `path` (in the library folder) may be read as a recipe: a regular file, or a
@@ -377,6 +419,40 @@ impl Library {
         }));
         entries.sort_by(|a, b| a.name.cmp(&b.name));
         Ok(entries)
+    }
+
+    /// Every recipe's brief, in [`Library::list`]'s order and with its errors, taken from
+    /// the listing's index where a file is unchanged since it was indexed (`index.rs`); the
+    /// others are read and parsed on every core, and the index is brought up to date.
+    pub fn briefs(&self) -> Result<Vec<Listed>, LibraryError> {
+        use rayon::prelude::*;
+        let (names, skipped) = self.scan()?;
+        let before = index::read(&self.dir);
+        let now = std::time::SystemTime::now();
+        let read: Vec<(String, Option<index::Stamp>, Result<Brief, String>)> = names
+            .into_par_iter()
+            .map(|name| {
+                // The stamp is taken before the file is read: a change after it makes the
+                // next listing's stamp differ.
+                let stamp = std::fs::metadata(self.dir.join(format!("{name}.ron"))).ok().map(|m| index::Stamp::of(&m));
+                if let (Some(now), Some((was, brief))) = (stamp, before.get(&name)) {
+                    if now == *was {
+                        return (name, stamp, Ok(brief.clone()));
+                    }
+                }
+                let brief = self.open(&name).map(|o| brief_of(&o.recipe)).map_err(|e| e.to_string());
+                (name, stamp, brief)
+            })
+            .collect();
+        let after: index::Briefs = read
+            .iter()
+            .filter_map(|(name, stamp, brief)| Some((name.clone(), ((*stamp)?, brief.clone().ok()?))))
+            .collect();
+        index::write(self, &before, after, now);
+        let mut listed: Vec<Listed> = read.into_iter().map(|(name, _, brief)| Listed { name, brief }).collect();
+        listed.extend(skipped.into_iter().map(|(name, why)| Listed { name, brief: Err(why) }));
+        listed.sort_by(|a, b| a.name.cmp(&b.name));
+        Ok(listed)
     }
 
     /// A folder of the library's own (`.history/NAME`, `.trash`, `.locks`, `records` …),
@@ -494,11 +570,15 @@ impl Library {
     /// (or a link to one inside it).
     pub fn read_text(&self, name: &str) -> Result<(String, PathBuf), LibraryError> {
         let path = self.path_of(name)?;
-        if std::fs::symlink_metadata(&path).is_err() {
+        let Ok(meta) = std::fs::symlink_metadata(&path) else {
             return Err(LibraryError::NotFound(name.to_string()));
+        };
+        // A regular file is read at once (its kind is checked again on the open file); a
+        // link only where it leads to a file inside the library.
+        if !meta.is_file() {
+            self.readable(&path)
+                .map_err(|why| LibraryError::Unsafe { path: path.clone(), why: format!("{why}; not read") })?;
         }
-        self.readable(&path)
-            .map_err(|why| LibraryError::Unsafe { path: path.clone(), why: format!("{why}; not read") })?;
         let text = read_limited(&path)?;
         Ok((text, path))
     }

@@ -241,10 +241,10 @@ impl Library {
         Err(SyncError::Busy)
     }
 
-    /// Keep the lock files and temporary files out of what is shared.
+    /// Keep the lock files, the listing's index and temporary files out of what is shared.
     fn ignore_local_files(&self) -> Result<(), LibraryError> {
         let path = self.dir.join(".gitignore");
-        let wanted = [".locks/", ".*.tmp"];
+        let wanted = [".locks/", ".index/", ".*.tmp"];
         let current = std::fs::read_to_string(&path).unwrap_or_default();
         let missing: Vec<&str> = wanted.iter().copied().filter(|w| !current.lines().any(|l| l.trim() == *w)).collect();
         if missing.is_empty() {

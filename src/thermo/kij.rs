@@ -15,12 +15,12 @@ use std::sync::OnceLock;
 
 use super::Model;
 
-const PR_TABLE: &str = include_str!("kij_pr.ron");
+// The PR table as compiled in (`kij_data.rs`, made from `kij_pr.ron` by a test that fails
+// when the two differ), so no process parses it at start.
+include!("kij_data.rs");
 
-fn pr_table() -> &'static [(String, String, f64)] {
-    static TABLE: OnceLock<Vec<(String, String, f64)>> = OnceLock::new();
-    // Checked by the test suite; a parse failure is a build defect.
-    TABLE.get_or_init(|| ron::from_str(PR_TABLE).expect("kij_pr.ron is valid"))
+fn pr_table() -> &'static [(&'static str, &'static str, f64)] {
+    PR_TABLE
 }
 
 /// The PR table as a dense matrix over the ids it names: each id's row, and the rows.
@@ -34,14 +34,14 @@ fn pr_dense() -> &'static Dense {
     DENSE.get_or_init(|| {
         let mut row_of: HashMap<&'static str, usize> = HashMap::new();
         for (a, b, _) in pr_table() {
-            for id in [a.as_str(), b.as_str()] {
+            for id in [*a, *b] {
                 let next = row_of.len();
                 row_of.entry(id).or_insert(next);
             }
         }
         let mut k = vec![vec![0.0; row_of.len()]; row_of.len()];
         for (a, b, v) in pr_table() {
-            let (i, j) = (row_of[a.as_str()], row_of[b.as_str()]);
+            let (i, j) = (row_of[a], row_of[b]);
             k[i][j] = *v;
             k[j][i] = *v;
         }
@@ -79,6 +79,30 @@ pub fn matrix(model: Model, ids: &[&str]) -> Vec<Vec<f64>> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_compiled_data_is_the_kij_file() {
+        let file: Vec<(String, String, f64)> = ron::from_str(include_str!("kij_pr.ron")).expect("kij_pr.ron is valid");
+        let mut made = String::from(
+            "// Made from kij_pr.ron by `FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data`;\n\
+             // do not edit (the test fails when this file and the data file differ).\n\
+             static PR_TABLE: &[(&str, &str, f64)] = &[\n",
+        );
+        for (a, b, k) in &file {
+            made.push_str(&format!("    ({a:?}, {b:?}, {k:?}),\n"));
+        }
+        made.push_str("];\n");
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/src/thermo/kij_data.rs");
+        if std::env::var_os("FILLWRIGHT_REGENERATE").is_some() {
+            std::fs::write(path, &made).unwrap();
+        }
+        let have = std::fs::read_to_string(path).unwrap_or_default();
+        assert!(have == made, "src/thermo/kij_data.rs is not kij_pr.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data");
+        assert_eq!(file.len(), PR_TABLE.len());
+        for ((a, b, k), (c, d, l)) in file.iter().zip(PR_TABLE) {
+            assert!(a == c && b == d && k == l, "{a}-{b}");
+        }
+    }
 
     #[test]
     fn pr_table_is_symmetric_in_lookup_and_names_known_gases() {
