@@ -286,11 +286,11 @@ impl<'a> Tracer<'a> {
         let mut measure: Option<f64> = None;
         let mut trials = from.clone();
         for (k, w) in trials.iter_mut().enumerate() {
-            match tpd.stationary(&mut self.cubic, w) {
+            match tpd.stationary(&mut self.cubic, w, None) {
                 Some(Stationary::Point(m)) => measure = Some(measure.map_or(m, |v| v.max(m))),
                 // A trial that fell onto the feed restarts from Wilson's next time.
                 Some(Stationary::Feed) => *w = wilson[k].clone(),
-                Some(Stationary::Unsettled) | None => {}
+                Some(Stationary::Unsettled | Stationary::Below) | None => {}
             }
         }
         Ok(Point { t_k, measure, trials })

@@ -876,16 +876,22 @@ fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
 /// times ∂E/∂δ and ∂E/∂τ (the non-analytic terms by dual numbers, twice).
 fn sum_terms_grad(terms: &[Term], delta: f64, tau: f64) -> (f64, f64, f64) {
     let (ln_d, ln_t) = (delta.ln(), tau.ln());
+    // δ^l of the exponential parts: the whole l (nearly all) from a table, not powf.
+    let mut powers = [1.0; TABLE];
+    for k in 1..TABLE {
+        powers[k] = powers[k - 1] * delta;
+    }
+    let delta_to = |l: f64| table_power(&powers, delta, l, whole(l).unwrap_or(TABLE));
     let (mut a, mut a_d, mut a_t) = (0.0, 0.0, 0.0);
     for term in terms {
         let (n, d, t, extra, e_d, e_t) = match *term {
             Term::Power(n, d, t, l) if l > 0.0 => {
-                let u = delta.powf(l);
+                let u = delta_to(l);
                 (n, d, t, -u, -l * u / delta, 0.0)
             }
             Term::Power(n, d, t, _) => (n, d, t, 0.0, 0.0, 0.0),
             Term::Exponential(n, d, t, g, l) => {
-                let u = delta.powf(l);
+                let u = delta_to(l);
                 (n, d, t, -g * u, -g * l * u / delta, 0.0)
             }
             Term::Gaussian(n, d, t, eta, eps, beta, gamma) => {

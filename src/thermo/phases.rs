@@ -129,6 +129,10 @@ fn bracket(
     }
 }
 
+/// How far above 1 a stationary point's Σ W must be for the feed to split (and how far
+/// below 0 a tangent-plane distance): round-off in the fugacities stays well within it.
+const UNSTABLE_SUM: f64 = 1e-8;
+
 /// Where successive substitution from a trial phase ends.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) enum Stationary {
@@ -138,6 +142,9 @@ pub(crate) enum Stationary {
     Point(f64),
     /// Not settled within the iterations allowed.
     Unsettled,
+    /// At a W whose tangent-plane distance tm* is below the limit asked for: the feed is
+    /// unstable, whatever the stationary point (tm* there is lower still), with W so far.
+    Below,
 }
 
 /// Michelsen's tangent-plane distance of a feed at one (T, P) on a cubic: the feed's
@@ -164,8 +171,11 @@ impl<'a> TangentPlane<'a> {
 
     /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
     /// cubic's temperature, which must be the one `new` was made at); `w` ends as the
-    /// point reached. None where the cubic has no root on the way.
-    pub(crate) fn stationary(&mut self, cubic: &mut Kernel, w: &mut [f64]) -> Option<Stationary> {
+    /// point reached. With `below`, it stops as soon as tm*(W) < `below` < 0: any such W
+    /// proves the feed unstable (Michelsen, Fluid Phase Equilib. 9 (1982) 1: the feed is
+    /// stable only where tm* ≥ 0 for every W), so the test needs no converged point for
+    /// that answer. None where the cubic has no root on the way.
+    pub(crate) fn stationary(&mut self, cubic: &mut Kernel, w: &mut [f64], below: Option<f64>) -> Option<Stationary> {
         let n = self.z.len();
         for _ in 0..400 {
             let sum: f64 = w.iter().sum();
@@ -176,7 +186,11 @@ impl<'a> TangentPlane<'a> {
                 self.x[i] = w[i] / sum;
             }
             cubic.ln_phi_into(self.p_pa, &self.x, RootChoice::Stable, &mut self.ln_phi)?;
-            if self.heading_to_feed(w) {
+            let (tm, beta) = self.distance(w);
+            if below.is_some_and(|limit| tm < limit) {
+                return Some(Stationary::Below);
+            }
+            if heading_to_feed(tm, beta) {
                 return Some(Stationary::Feed);
             }
             let mut change: f64 = 0.0;
@@ -201,27 +215,33 @@ impl<'a> TangentPlane<'a> {
         Some(Stationary::Unsettled)
     }
 
-    /// Whether the iteration at `w` (with `ln_phi` at its composition) is on its way to
-    /// the feed: Michelsen's test on tm* = 1 + Σ W_i (ln W_i + ln φ_i − d_i − 1) and
-    /// β = Σ (W_i − z_i)(ln W_i − ln z_i), which near the feed are in the ratio 2 tm*/β → 1
-    /// (Michelsen and Mollerup, Thermodynamic Models, ch. 10: β < 1e-4 with the ratio
-    /// within 0.2 — from memory). Stops the slow last approach to the trivial solution,
-    /// which needed every trace's ln W converged to 1e-4.
-    fn heading_to_feed(&self, w: &[f64]) -> bool {
+    /// At `w` (with `ln_phi` at its composition): the modified tangent-plane distance
+    /// tm* = 1 + Σ W_i (ln W_i + ln φ_i − d_i − 1), and β = Σ (W_i − z_i)(ln W_i − ln z_i)
+    /// (NaN where a W_i of the feed's components is not positive).
+    fn distance(&self, w: &[f64]) -> (f64, f64) {
         let (mut tm, mut beta) = (1.0, 0.0);
         for i in 0..w.len() {
             if self.z[i] <= TRACE {
                 continue;
             }
             if w[i] <= 0.0 {
-                return false;
+                return (f64::NAN, f64::NAN);
             }
             let ln_w = w[i].ln();
             tm += w[i] * (ln_w + self.ln_phi[i] - self.d[i] - 1.0);
             beta += (w[i] - self.z[i]) * (ln_w - self.ln_z[i]);
         }
-        beta > 0.0 && beta < 1e-4 && (2.0 * tm / beta - 1.0).abs() < 0.2
+        (tm, beta)
     }
+}
+
+/// Whether the iteration is on its way to the feed: near the feed tm* and β (see
+/// [`TangentPlane::distance`]) are in the ratio 2 tm*/β → 1 (Michelsen's test; Michelsen and
+/// Mollerup, Thermodynamic Models, ch. 10: β < 1e-4 with the ratio within 0.2 — from
+/// memory). Stops the slow last approach to the trivial solution, which needed every
+/// trace's ln W converged to 1e-4.
+fn heading_to_feed(tm: f64, beta: f64) -> bool {
+    beta > 0.0 && beta < 1e-4 && (2.0 * tm / beta - 1.0).abs() < 0.2
 }
 
 /// The composition and molar volume of `amounts_mol` in `volume_m3`.
@@ -305,11 +325,16 @@ impl Fluid {
                 z.iter().zip(&k).map(|(zi, ki)| if vapour_like { zi * ki } else { zi / ki }).collect();
             // A trial whose composition the model gives no root for (on the way to its
             // stationary point) is one direction fewer, not a failure of the test.
-            if let Some(Stationary::Point(ln_sum)) = tpd.stationary(cubic, &mut w) {
-                if ln_sum > (1.0 + 1e-8f64).ln() {
-                    let sum: f64 = w.iter().sum();
-                    return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
-                }
+            // Unstable where a stationary point has Σ W > 1 + 1e-8 (tm* = 1 − Σ W there), or
+            // where the iteration passes a W with tm* below −1e-8 on its way down to one.
+            let unstable = match tpd.stationary(cubic, &mut w, Some(-UNSTABLE_SUM)) {
+                Some(Stationary::Point(ln_sum)) => ln_sum > (1.0 + UNSTABLE_SUM).ln(),
+                Some(Stationary::Below) => true,
+                _ => false,
+            };
+            if unstable {
+                let sum: f64 = w.iter().sum();
+                return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
             }
         }
         Ok(None)
