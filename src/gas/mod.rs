@@ -455,7 +455,9 @@ mod tests {
                     "VapourPressure::Dippr101 {{ c1: {c1:?}, c2: {c2:?}, c3: {c3:?}, c4: {c4:?}, c5: {c5:?}, \
                      t_min_k: {t_min_k:?}, t_max_k: {t_max_k:?}, source: s({source:?}) }}"
                 ),
-                VapourPressure::LeeKesler { source } => format!("VapourPressure::LeeKesler {{ source: s({source:?}) }}"),
+                VapourPressure::LeeKesler { source } => {
+                    format!("VapourPressure::LeeKesler {{ source: s({source:?}) }}")
+                }
                 VapourPressure::Wagner { t_r_k, p_r_pa, n, t, tau_factor, t_min_k, t_max_k, source } => format!(
                     "VapourPressure::Wagner {{ t_r_k: {t_r_k:?}, p_r_pa: {p_r_pa:?}, n: vec![{}], t: vec![{}], \
                      tau_factor: {tau_factor}, t_min_k: {t_min_k:?}, t_max_k: {t_max_k:?}, source: s({source:?}) }}",

@@ -97,7 +97,10 @@ mod tests {
             std::fs::write(path, &made).unwrap();
         }
         let have = std::fs::read_to_string(path).unwrap_or_default();
-        assert!(have == made, "src/thermo/kij_data.rs is not kij_pr.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data");
+        assert!(
+            have == made,
+            "src/thermo/kij_data.rs is not kij_pr.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data"
+        );
         assert_eq!(file.len(), PR_TABLE.len());
         for ((a, b, k), (c, d, l)) in file.iter().zip(PR_TABLE) {
             assert!(a == c && b == d && k == l, "{a}-{b}");
