@@ -448,6 +448,7 @@ impl Mixture {
     fn compose(&self, x: &[f64], t_k: f64) -> Composed {
         let (tr, rr, _, _) = self.reducing_gradient(x);
         let tau = tr / t_k;
+        let at = Powers::new(1.0, tau);
         let mut flat = Vec::new();
         let mut other: Vec<(f64, Other)> = Vec::new();
         let n = x.len();
@@ -456,7 +457,7 @@ impl Mixture {
                 continue;
             }
             match &self.pure[i] {
-                Pure::Reference(terms) => flatten(terms, x[i], tau, &mut flat, &mut other),
+                Pure::Reference(terms) => flatten(terms, x[i], &at, &mut flat, &mut other),
                 Pure::Cubic { kappa } => other.push((x[i], Other::Cubic(*kappa))),
             }
         }
@@ -464,11 +465,11 @@ impl Mixture {
             for j in i + 1..n {
                 let p = &self.pairs[i * n + j];
                 if let (Some(terms), true) = (p.departure, p.f != 0.0 && x[i] * x[j] != 0.0) {
-                    flatten(terms, x[i] * x[j] * p.f, tau, &mut flat, &mut other);
+                    flatten(terms, x[i] * x[j] * p.f, &at, &mut flat, &mut other);
                 }
             }
         }
-        Composed { t_k, r: self.r, rho_r: rr, tau, flat, other }
+        Composed { t_k, r: self.r, rho_r: rr, tau, flat: merged(flat), other }
     }
 
     /// Molar density, mol/m³, at (T, P) by Newton's method from `rho0` (the ideal gas
@@ -533,10 +534,11 @@ impl Mixture {
         let n = x.len();
         let (tr, rr, d_tr, d_rr) = self.reducing_gradient(x);
         let (delta, tau) = (rho / rr, tr / t_k);
+        let at = Powers::new(delta, tau);
         // Each pure gas's α^r_oi and each pair's departure α^r_ij at (δ, τ), with their δ
         // and τ derivatives: (α, ∂α/∂δ, ∂α/∂τ).
         let pure_at = |i: usize| match &self.pure[i] {
-            Pure::Reference(terms) => sum_terms_grad(terms, delta, tau),
+            Pure::Reference(terms) => sum_terms_grad(terms, &at),
             Pure::Cubic { kappa } => {
                 let by_delta = pr_alphar(*kappa, D2::var(delta), D2::c(tau));
                 (by_delta.v, by_delta.d, pr_alphar(*kappa, D2::c(delta), D2::var(tau)).d)
@@ -560,7 +562,7 @@ impl Mixture {
                 if x[i] == 0.0 && x[j] == 0.0 {
                     continue;
                 }
-                let (v, v_d, v_t) = sum_terms_grad(terms, delta, tau);
+                let (v, v_d, v_t) = sum_terms_grad(terms, &at);
                 let w = x[i] * x[j] * p.f;
                 a += w * v;
                 a_d += w * v_d;
@@ -671,11 +673,74 @@ enum Other {
     Cubic(f64),
 }
 
+/// The powers of δ and τ at one state, shared by every term of a mixture there: whole
+/// powers of δ (the terms' d and l), τ^t for t in eighths (nearly every published exponent:
+/// τ^(k/8) = τ^⌊k/8⌋ τ^((k mod 8)/8), from two short tables) and exp(−δ^l) for whole l,
+/// where a term would otherwise cost an exponential or a powf of its own. Other exponents
+/// by exp and powf.
+struct Powers {
+    delta: f64,
+    tau: f64,
+    ln_tau: f64,
+    delta_whole: [f64; TABLE],
+    tau_whole: [f64; TAU_WHOLE],
+    tau_eighth: [f64; 8],
+    decay: [f64; DECAYS],
+}
+
+/// The whole powers of τ kept: τ^0 … τ^63 (the largest published t is 50).
+const TAU_WHOLE: usize = 64;
+
+/// The exp(−δ^l) kept: l = 1 … 7.
+const DECAYS: usize = 8;
+
+impl Powers {
+    fn new(delta: f64, tau: f64) -> Powers {
+        let ln_tau = tau.ln();
+        let mut delta_whole = [1.0; TABLE];
+        for k in 1..TABLE {
+            delta_whole[k] = delta_whole[k - 1] * delta;
+        }
+        let mut tau_whole = [1.0; TAU_WHOLE];
+        for k in 1..TAU_WHOLE {
+            tau_whole[k] = tau_whole[k - 1] * tau;
+        }
+        let tau_eighth = std::array::from_fn(|j| (j as f64 / 8.0 * ln_tau).exp());
+        let decay = std::array::from_fn(|l| if l == 0 { f64::NAN } else { (-delta_whole[l]).exp() });
+        Powers { delta, tau, ln_tau, delta_whole, tau_whole, tau_eighth, decay }
+    }
+
+    /// δ^k.
+    fn delta_to(&self, k: f64) -> f64 {
+        table_power(&self.delta_whole, self.delta, k, whole(k).unwrap_or(TABLE))
+    }
+
+    /// τ^t.
+    fn tau_to(&self, t: f64) -> f64 {
+        let eighths = t * 8.0;
+        // (Whole by a round trip through an integer: `fract` is a call to libm's trunc.)
+        let k = eighths as usize;
+        if eighths >= 0.0 && k < 8 * TAU_WHOLE && k as f64 == eighths {
+            self.tau_whole[k >> 3] * self.tau_eighth[k & 7]
+        } else {
+            (t * self.ln_tau).exp()
+        }
+    }
+
+    /// exp(−g δ^l), and δ^l.
+    fn decay(&self, g: f64, l: f64) -> (f64, f64) {
+        let u = self.delta_to(l);
+        match whole(l) {
+            Some(i) if g == 1.0 && i > 0 && i < DECAYS => (self.decay[i], u),
+            _ => ((-g * u).exp(), u),
+        }
+    }
+}
+
 /// Split `terms` at τ into flat terms weighted by `w` (the non-analytic ones kept whole).
-fn flatten(terms: &[Term], w: f64, tau: f64, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
-    // τ^t as exp(t ln τ): one exponential per term where powf costs about two.
-    let ln_tau = tau.ln();
-    let tau_pow = |t: f64| (t * ln_tau).exp();
+fn flatten(terms: &[Term], w: f64, at: &Powers, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
+    let tau = at.tau;
+    let tau_pow = |t: f64| at.tau_to(t);
     for term in terms {
         let (c, d, part) = match *term {
             Term::Power(n, d, t, l) => (n * tau_pow(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
@@ -704,6 +769,43 @@ fn flatten(terms: &[Term], w: f64, tau: f64, flat: &mut Vec<Flat>, other: &mut V
 
 fn exp_power(g: f64, l: f64) -> DeltaPart {
     DeltaPart::ExpPower { g, l, li: whole(l).unwrap_or(TABLE) }
+}
+
+/// `flat` with the terms of one density part summed into one: at one temperature a term is
+/// c δ^d h(δ), so every term with the same whole d and the same δ^d or δ^d exp(−δ^l) (whole
+/// l) is one term with the sum of their c. The pure gases' equations share most of their
+/// exponents (GERG-2008's and Span and Wagner's short forms the same twelve), so a mixture's
+/// hundreds of terms become a few dozen for each density the solver tries.
+fn merged(flat: Vec<Flat>) -> Vec<Flat> {
+    // A slot per (d, none or l): d × (TABLE + 1) + (0 for δ^d alone, 1 + l with the decay).
+    const SLOTS: usize = TABLE * (TABLE + 1);
+    let mut sums = [0.0; SLOTS];
+    let mut used = [false; SLOTS];
+    let mut out = Vec::with_capacity(flat.len());
+    for f in flat {
+        let slot = match f.part {
+            _ if f.di >= TABLE => None,
+            DeltaPart::Plain => Some(f.di * (TABLE + 1)),
+            DeltaPart::ExpPower { g, li, .. } if g == 1.0 && li < TABLE => Some(f.di * (TABLE + 1) + 1 + li),
+            _ => None,
+        };
+        match slot {
+            Some(k) => {
+                sums[k] += f.c;
+                used[k] = true;
+            }
+            None => out.push(f),
+        }
+    }
+    for k in (0..SLOTS).filter(|k| used[*k]) {
+        let (di, part) = (k / (TABLE + 1), k % (TABLE + 1));
+        let part = match part {
+            0 => DeltaPart::Plain,
+            li => DeltaPart::ExpPower { g: 1.0, l: (li - 1) as f64, li: li - 1 },
+        };
+        out.push(Flat { c: sums[k], d: di as f64, di, part });
+    }
+    out
 }
 
 /// A mixture at one composition and temperature: its reducing state and its terms.
@@ -810,7 +912,9 @@ const TABLE: usize = 16;
 
 /// k as an index of the table, where it is a whole number in it.
 fn whole(k: f64) -> Option<usize> {
-    (k >= 0.0 && k < TABLE as f64 && k.fract() == 0.0).then_some(k as usize)
+    // (By a round trip through an integer: `fract` is a call to libm's trunc.)
+    let i = k as usize;
+    (k >= 0.0 && i < TABLE && i as f64 == k).then_some(i)
 }
 
 /// x^k from the table of whole powers where k has a place `i` in it (as in every
@@ -871,41 +975,37 @@ fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
     s
 }
 
-/// α^r of a list of terms at (δ, τ) with its first derivatives in δ and in τ, one
-/// exponential per term: each term is n·exp(E(δ, τ)), whose derivatives are the term
-/// times ∂E/∂δ and ∂E/∂τ (the non-analytic terms by dual numbers, twice).
-fn sum_terms_grad(terms: &[Term], delta: f64, tau: f64) -> (f64, f64, f64) {
-    let (ln_d, ln_t) = (delta.ln(), tau.ln());
-    // δ^l of the exponential parts: the whole l (nearly all) from a table, not powf.
-    let mut powers = [1.0; TABLE];
-    for k in 1..TABLE {
-        powers[k] = powers[k - 1] * delta;
-    }
-    let delta_to = |l: f64| table_power(&powers, delta, l, whole(l).unwrap_or(TABLE));
+/// α^r of a list of terms at (δ, τ) with its first derivatives in δ and in τ: each term is
+/// n δ^d τ^t exp(E(δ, τ)), whose derivatives are the term times d/δ + ∂E/∂δ and
+/// t/τ + ∂E/∂τ; the powers and the common exp(−δ^l) from `at`, an exponential only for
+/// the terms with their own (the non-analytic terms by dual numbers, twice).
+fn sum_terms_grad(terms: &[Term], at: &Powers) -> (f64, f64, f64) {
+    let (delta, tau) = (at.delta, at.tau);
     let (mut a, mut a_d, mut a_t) = (0.0, 0.0, 0.0);
     for term in terms {
-        let (n, d, t, extra, e_d, e_t) = match *term {
+        // Each term n δ^d τ^t exp(e): its value and its e's derivatives in δ and τ.
+        let (n, d, t, factor, e_d, e_t) = match *term {
             Term::Power(n, d, t, l) if l > 0.0 => {
-                let u = delta_to(l);
-                (n, d, t, -u, -l * u / delta, 0.0)
+                let (decay, u) = at.decay(1.0, l);
+                (n, d, t, decay, -l * u / delta, 0.0)
             }
-            Term::Power(n, d, t, _) => (n, d, t, 0.0, 0.0, 0.0),
+            Term::Power(n, d, t, _) => (n, d, t, 1.0, 0.0, 0.0),
             Term::Exponential(n, d, t, g, l) => {
-                let u = delta_to(l);
-                (n, d, t, -g * u, -g * l * u / delta, 0.0)
+                let (decay, u) = at.decay(g, l);
+                (n, d, t, decay, -g * l * u / delta, 0.0)
             }
             Term::Gaussian(n, d, t, eta, eps, beta, gamma) => {
                 let (dd, dt) = (delta - eps, tau - gamma);
-                (n, d, t, -eta * dd * dd - beta * dt * dt, -2.0 * eta * dd, -2.0 * beta * dt)
+                (n, d, t, (-eta * dd * dd - beta * dt * dt).exp(), -2.0 * eta * dd, -2.0 * beta * dt)
             }
             Term::GaoB(n, d, t, eta, beta, gamma, eps, b) => {
                 let (dd, dt) = (delta - eps, tau - gamma);
                 let q = beta * dt * dt + b;
-                (n, d, t, eta * dd * dd + 1.0 / q, 2.0 * eta * dd, -2.0 * beta * dt / (q * q))
+                (n, d, t, (eta * dd * dd + 1.0 / q).exp(), 2.0 * eta * dd, -2.0 * beta * dt / (q * q))
             }
             Term::GergExp(n, d, t, eta, eps, beta, gamma) => {
                 let dd = delta - eps;
-                (n, d, t, -eta * dd * dd - beta * (delta - gamma), -2.0 * eta * dd - beta, 0.0)
+                (n, d, t, (-eta * dd * dd - beta * (delta - gamma)).exp(), -2.0 * eta * dd - beta, 0.0)
             }
             Term::NonAnalytic(..) => {
                 let one = std::slice::from_ref(term);
@@ -919,7 +1019,7 @@ fn sum_terms_grad(terms: &[Term], delta: f64, tau: f64) -> (f64, f64, f64) {
                 continue;
             }
         };
-        let v = n * (d * ln_d + t * ln_t + extra).exp();
+        let v = n * at.delta_to(d) * at.tau_to(t) * factor;
         a += v;
         a_d += v * (d / delta + e_d);
         a_t += v * (t / tau + e_t);
@@ -1048,6 +1148,60 @@ mod tests {
     }
 
     use super::*;
+
+    #[test]
+    fn the_shared_powers_are_the_powers_and_the_merged_terms_the_sum_of_the_terms() {
+        // τ^t from the tables against powf, for eighths and for other exponents; the
+        // common decays against exp(−g δ^l).
+        let at = Powers::new(1.7, 1.3);
+        for t in [0.0, 0.125, 0.375, 1.125, 2.625, 7.5, 26.0, 50.0, 0.1, 1.38, 63.875] {
+            let want = 1.3f64.powf(t);
+            assert!((at.tau_to(t) / want - 1.0).abs() < 1e-13, "τ^{t}: {} vs {want}", at.tau_to(t));
+        }
+        for (g, l) in [(1.0, 1.0), (1.0, 6.0), (0.5, 2.0), (1.0, 2.5), (1.0, 9.0)] {
+            let (decay, u) = at.decay(g, l);
+            assert!((u / 1.7f64.powf(l) - 1.0).abs() < 1e-14 && (decay / (-g * u).exp() - 1.0).abs() < 1e-14);
+        }
+        // A natural gas's terms, merged by density part: a fraction of the terms, the same
+        // α^r and δ-derivatives (GERG-2008 and the reference equations).
+        let c = Catalogue::built_in();
+        let ids = ["CH4", "N2", "CO2", "C2H6", "C3H8", "n-C4H10", "i-C4H10", "n-C5H12", "i-C5H12"];
+        let gases: Vec<usize> = ids.iter().map(|id| c.index_of(id).unwrap()).collect();
+        let x = [0.85, 0.03, 0.02, 0.05, 0.025, 0.008, 0.008, 0.005, 0.004];
+        let mut mixtures = vec![Mixture::new(&c, &gases)];
+        mixtures.extend(Mixture::gerg2008(&c, &gases));
+        for m in &mixtures {
+            let merged = m.compose(&x, 250.0);
+            let whole = Composed { flat: unmerged(m, &x, 250.0), ..m.compose(&x, 250.0) };
+            assert!(merged.flat.len() * 3 < whole.flat.len(), "{} of {}", merged.flat.len(), whole.flat.len());
+            for rho in [10.0, 3000.0, 15000.0] {
+                let (a, b) = (merged.evaluate(rho), whole.evaluate(rho));
+                for (u, v) in [(a.0, b.0), (a.1, b.1), (a.2, b.2)] {
+                    assert!((u - v).abs() <= 1e-12 * v.abs().max(1e-3), "{rho}: {u} vs {v}");
+                }
+            }
+        }
+    }
+
+    /// The terms of `m` at (x, T) as flattened, before [`merged`].
+    fn unmerged(m: &Mixture, x: &[f64], t_k: f64) -> Vec<Flat> {
+        let (tr, _, _, _) = m.reducing_gradient(x);
+        let at = Powers::new(1.0, tr / t_k);
+        let (mut flat, mut other) = (Vec::new(), Vec::new());
+        let n = x.len();
+        for i in 0..n {
+            if let Pure::Reference(terms) = &m.pure[i] {
+                flatten(terms, x[i], &at, &mut flat, &mut other);
+            }
+            for j in i + 1..n {
+                let p = &m.pairs[i * n + j];
+                if let (Some(terms), true) = (p.departure, p.f != 0.0) {
+                    flatten(terms, x[i] * x[j] * p.f, &at, &mut flat, &mut other);
+                }
+            }
+        }
+        flat
+    }
 
     #[test]
     fn ln_phi_by_the_composition_derivatives_is_the_derivative_in_the_amounts() {
