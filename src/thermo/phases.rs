@@ -678,11 +678,14 @@ impl Fluid {
         let (mut x, mut y) = (vec![0.0; n], vec![0.0; n]);
         let (mut ln_l, mut ln_v) = (vec![0.0; n], vec![0.0; n]);
         let rt_p = R * t_k / p_pa;
+        let mut last_beta = 0.5;
         for _ in 0..1000 {
             // The negative flash while iterating: K-values from the trial phase may put the
             // feed just outside the two-phase region (β a little above 1 near the dew
             // point); the iteration goes on from there, and only its converged β decides.
-            let Some(beta) = rachford_rice_negative(z, &k) else { return Ok(None) };
+            // Each root found from the last one (the K-values move little per step).
+            let Some(beta) = rachford_rice_negative(z, &k, last_beta) else { return Ok(None) };
+            last_beta = beta;
             let (mut sx, mut sy) = (0.0, 0.0);
             for i in 0..n {
                 x[i] = z[i] / (1.0 + beta * (k[i] - 1.0));
@@ -784,8 +787,9 @@ fn single(phase: Phase, p_pa: f64, v: f64, model: Model) -> Equilibrium {
 /// bisection safeguarded Newton; None when the root lies outside (one phase).
 /// The Rachford–Rice root on the whole interval where every phase composition is positive,
 /// β ∈ (1/(1 − K_max), 1/(1 − K_min)) (the "negative flash": β may fall outside [0, 1]).
-/// None when the K-values are all on one side of 1.
-fn rachford_rice_negative(z: &[f64], k: &[f64]) -> Option<f64> {
+/// None when the K-values are all on one side of 1. Newton's method starts at `from`
+/// (moved into the interval).
+fn rachford_rice_negative(z: &[f64], k: &[f64], from: f64) -> Option<f64> {
     let present = || z.iter().zip(k).filter(|(zi, _)| **zi > TRACE).map(|(_, ki)| *ki);
     let k_max = present().fold(f64::NEG_INFINITY, f64::max);
     let k_min = present().fold(f64::INFINITY, f64::min);
@@ -799,8 +803,8 @@ fn rachford_rice_negative(z: &[f64], k: &[f64]) -> Option<f64> {
         })
     };
     let (lo, hi) = (1.0 / (1.0 - k_max), 1.0 / (1.0 - k_min));
-    // f falls from +∞ at lo to −∞ at hi; start inside [0, 1] where it lies there.
-    let b = rachford_rice_root(f, lo, hi, 0.5f64.clamp(lo + 1e-12 * (hi - lo), hi - 1e-12 * (hi - lo)));
+    // f falls from +∞ at lo to −∞ at hi.
+    let b = rachford_rice_root(f, lo, hi, from.clamp(lo + 1e-12 * (hi - lo), hi - 1e-12 * (hi - lo)));
     b.is_finite().then_some(b)
 }
 
