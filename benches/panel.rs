@@ -107,7 +107,10 @@ fn main() {
     let rows: Vec<Row> = recipes
         .iter()
         .map(|(kind, r)| {
+            // Each as the first recompute after an edit of the composition: nothing kept.
+            fillwright::speed::forget_kept_answers();
             let (ew, ec, _) = timed(|| Computed::estimate(r, &catalogue, &settings));
+            fillwright::speed::forget_kept_answers();
             let (rw, rc, full) = timed(|| Computed::of(r, &catalogue, &settings));
             Row { kind, planned: full.plan.is_ok(), estimate: (ew, ec), reference: (rw, rc) }
         })

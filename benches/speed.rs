@@ -41,7 +41,7 @@ fn envelope(cr: &mut Criterion) {
         b.iter(|| phase.dew_temperature(black_box(fillwright::speed::DEW_P_PA), x, 80.0))
     });
     g.bench_function("cricondentherm, 9 components, pr", |b| {
-        b.iter(|| phase.cricondentherm(black_box(x), 80.0, 1000e5))
+        b.iter(|| (fillwright::speed::forget_kept_answers(), phase.cricondentherm(black_box(x), 80.0, 1000e5)))
     });
     g.finish();
 }
@@ -52,11 +52,23 @@ fn recompute(cr: &mut Criterion) {
     let mut g = cr.benchmark_group("recompute");
     for (name, text) in fillwright::recipe::demo::RECIPES {
         let recipe = fillwright::recipe::Recipe::parse(text, name).expect("demo recipe");
-        g.bench_function(*name, |b| b.iter(|| fillwright::tui::model::Computed::of(black_box(&recipe), &c, &settings)));
+        g.bench_function(*name, |b| {
+            b.iter(|| {
+                (
+                    fillwright::speed::forget_kept_answers(),
+                    fillwright::tui::model::Computed::of(black_box(&recipe), &c, &settings),
+                )
+            })
+        });
         // What the screen waits for on an edit: the phases by Peng–Robinson's estimate (the
         // reference's answer comes on another thread).
         g.bench_function(format!("{name}, screen's estimate"), |b| {
-            b.iter(|| fillwright::tui::model::Computed::estimate(black_box(&recipe), &c, &settings))
+            b.iter(|| {
+                (
+                    fillwright::speed::forget_kept_answers(),
+                    fillwright::tui::model::Computed::estimate(black_box(&recipe), &c, &settings),
+                )
+            })
         });
     }
     g.finish();

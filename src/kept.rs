@@ -33,6 +33,13 @@ impl<K: PartialEq, V: Clone> Kept<K, V> {
         Ok(v)
     }
 
+    /// Forget every kept answer (for the benchmarks: the next question is computed).
+    pub fn clear(&self) {
+        if let Ok(mut kept) = self.kept.lock() {
+            kept.clear();
+        }
+    }
+
     /// [`Kept::get_or_try`] for a computation that always answers.
     pub fn get_or(&self, key: K, compute: impl FnOnce() -> V) -> V {
         match self.get_or_try(key, || Ok::<V, std::convert::Infallible>(compute())) {
@@ -63,5 +70,8 @@ mod tests {
         let failed: Result<u32, &str> = kept.get_or_try(9, || Err("no"));
         assert!(failed.is_err());
         assert_eq!(kept.get_or_try(9, || Ok::<u32, &str>(90)), Ok(90), "a failure is not kept");
+        // Cleared, every answer is computed again.
+        kept.clear();
+        assert_eq!(kept.get_or(9, || 91), 91);
     }
 }

@@ -28,3 +28,19 @@ pub mod thermo;
 pub mod tui;
 pub mod units;
 pub mod verification;
+
+/// For the tests that keep a data file and its compiled-in Rust (`*_data.rs`) the same.
+#[cfg(test)]
+pub(crate) mod compiled_data {
+    /// Compare `made` (the Rust made from the data files) with the file at `path` (from the
+    /// crate's root), writing it first under `FILLWRIGHT_REGENERATE`; `from` names the data
+    /// files in the failure's message.
+    pub(crate) fn is_current(path: &str, made: &str, from: &str) {
+        let full = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(path);
+        if std::env::var_os("FILLWRIGHT_REGENERATE").is_some() {
+            std::fs::write(&full, made).unwrap();
+        }
+        let have = std::fs::read_to_string(&full).unwrap_or_default();
+        assert!(have == made, "{path} is not {from}: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data");
+    }
+}

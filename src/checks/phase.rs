@@ -182,6 +182,11 @@ type KeptKey = (Kind, String, Vec<u64>);
 /// The kept envelope answers.
 static KEPT: crate::kept::Kept<KeptKey, Option<(f64, f64)>> = crate::kept::Kept::new(KEPT_ANSWERS);
 
+/// Forget the kept envelope answers (see [`crate::speed::forget_kept_answers`]).
+pub fn forget_kept() {
+    KEPT.clear();
+}
+
 /// The kept answer for these arguments, else `compute`'s (kept when it is one).
 fn kept_or(
     kind: Kind,

@@ -499,13 +499,11 @@ mod tests {
 
     #[test]
     fn the_compiled_data_is_the_catalogue_and_hazard_files() {
-        let made = compiled_text();
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/src/gas/catalogue_data.rs");
-        if std::env::var_os("FILLWRIGHT_REGENERATE").is_some() {
-            std::fs::write(path, &made).unwrap();
-        }
-        let have = std::fs::read_to_string(path).unwrap_or_default();
-        assert!(have == made, "src/gas/catalogue_data.rs is not catalogue.ron and hazards.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data");
+        crate::compiled_data::is_current(
+            "src/gas/catalogue_data.rs",
+            &compiled_text(),
+            "catalogue.ron and hazards.ron",
+        );
         // And what is compiled in is the files' records and references, exactly.
         let (files, compiled) = (Catalogue::from_files(), Catalogue::built_in());
         assert_eq!(files.gases, compiled.gases);

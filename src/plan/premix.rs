@@ -359,6 +359,11 @@ const STAGE_PLANS_KEPT: usize = 64;
 /// The kept stage plans, by what each is made of.
 static STAGE_PLANS: crate::kept::Kept<String, Result<Plan, PlanError>> = crate::kept::Kept::new(STAGE_PLANS_KEPT);
 
+/// Forget the kept stage plans (see [`crate::speed::forget_kept_answers`]).
+pub fn forget_kept() {
+    STAGE_PLANS.clear();
+}
+
 /// Makes the premix stages of one gas in the blend's balance gas.
 struct StageMaker<'a> {
     gas: usize,

@@ -92,15 +92,7 @@ mod tests {
             made.push_str(&format!("    ({a:?}, {b:?}, {k:?}),\n"));
         }
         made.push_str("];\n");
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/src/thermo/kij_data.rs");
-        if std::env::var_os("FILLWRIGHT_REGENERATE").is_some() {
-            std::fs::write(path, &made).unwrap();
-        }
-        let have = std::fs::read_to_string(path).unwrap_or_default();
-        assert!(
-            have == made,
-            "src/thermo/kij_data.rs is not kij_pr.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data"
-        );
+        crate::compiled_data::is_current("src/thermo/kij_data.rs", &made, "kij_pr.ron");
         assert_eq!(file.len(), PR_TABLE.len());
         for ((a, b, k), (c, d, l)) in file.iter().zip(PR_TABLE) {
             assert!(a == c && b == d && k == l, "{a}-{b}");

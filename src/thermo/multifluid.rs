@@ -1128,13 +1128,7 @@ mod tests {
 
     #[test]
     fn the_compiled_data_is_the_data_file() {
-        let made = compiled_text();
-        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/src/thermo/multifluid_data.rs");
-        if std::env::var_os("FILLWRIGHT_REGENERATE").is_some() {
-            std::fs::write(path, &made).unwrap();
-        }
-        let have = std::fs::read_to_string(path).unwrap_or_default();
-        assert!(have == made, "src/thermo/multifluid_data.rs is not multifluid.ron: run FILLWRIGHT_REGENERATE=1 cargo test --lib the_compiled_data");
+        crate::compiled_data::is_current("src/thermo/multifluid_data.rs", &compiled_text(), "multifluid.ron");
         // And what is compiled in is the file's numbers, exactly.
         let d: file::Data = ron::from_str(include_str!("multifluid.ron")).unwrap();
         assert_eq!(d.fluids.len(), data().fluids.len());

@@ -172,9 +172,10 @@ impl<'a> TangentPlane<'a> {
     /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
     /// cubic's temperature, which must be the one `new` was made at); `w` ends as the
     /// point reached. With `below`, it stops as soon as tm*(W) < `below` < 0: any such W
-    /// proves the feed unstable (Michelsen, Fluid Phase Equilib. 9 (1982) 1: the feed is
-    /// stable only where tm* ≥ 0 for every W), so the test needs no converged point for
-    /// that answer. None where the cubic has no root on the way.
+    /// proves the feed unstable (with W = s w, tm*(W) = 1 − s + s ln s + s tm(w) ≥
+    /// 1 − exp(−tm(w)), so tm(w) < 0; Michelsen, Fluid Phase Equilib. 9 (1982) 1), and the
+    /// test needs no converged point for that answer. None where the cubic has no root on
+    /// the way.
     pub(crate) fn stationary(&mut self, cubic: &mut Kernel, w: &mut [f64], below: Option<f64>) -> Option<Stationary> {
         let n = self.z.len();
         for _ in 0..400 {
