@@ -174,7 +174,10 @@ fn take_screened(model: &mut super::model::Model, ctx: &Context) -> bool {
             library.pending.remove(&name);
             changed = true;
         }
-        let Some(i) = library.entries.iter().position(|e| e.name == name) else { continue };
+        // The entries are in name order (`Library::list` sorts them): found by bisection,
+        // with a scan where a list in another order misses (each result was a scan).
+        let found = library.entries.binary_search_by(|e| e.name.as_str().cmp(name.as_str())).ok();
+        let Some(i) = found.or_else(|| library.entries.iter().position(|e| e.name == name)) else { continue };
         let current = library.entries[i].summary.as_ref().is_ok_and(|s| s.fingerprint == fp);
         if current && screened_with == settings {
             library.cache_and_show(i, name, fp, settings.clone(), worst);
