@@ -220,12 +220,17 @@ fn slips_in_names_are_named_with_the_nearest_and_exit_1() {
     let _ = std::fs::remove_dir_all(&config);
 }
 
-/// The title `list` shows for `name`.
-fn listed_title(config: &PathBuf, name: &str) -> String {
+/// The entry `list --format json` gives for `name`.
+fn listed(config: &PathBuf, name: &str) -> serde_json::Value {
     let o = run(config, &["list", "--format", "json"]);
     assert!(o.status.success(), "{}", err(&o));
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    let entry = v["recipes"].as_array().unwrap().iter().find(|e| e["name"] == name).cloned().unwrap();
+    v["recipes"].as_array().unwrap().iter().find(|e| e["name"] == name).cloned().unwrap()
+}
+
+/// The title `list` shows for `name`.
+fn listed_title(config: &PathBuf, name: &str) -> String {
+    let entry = listed(config, name);
     entry["title"].as_str().unwrap_or_else(|| panic!("{entry}")).to_string()
 }
 
@@ -254,9 +259,7 @@ fn list_takes_unchanged_recipes_from_its_index_and_reads_every_change() {
     assert_eq!(listed_title(&config, "laser-co2-he-n2"), "CO2 laser gaz");
     // A file that no longer parses is listed with its error, not its old brief.
     std::fs::write(&recipe, "Recipe(").unwrap();
-    let o = run(&config, &["list", "--format", "json"]);
-    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    let entry = v["recipes"].as_array().unwrap().iter().find(|e| e["name"] == "laser-co2-he-n2").cloned().unwrap();
+    let entry = listed(&config, "laser-co2-he-n2");
     assert!(entry["error"].is_string() && entry["title"].is_null(), "{entry}");
     // A damaged index is ignored and made again.
     std::fs::write(&index, "{ not json").unwrap();
@@ -272,18 +275,24 @@ fn a_link_planted_as_the_index_is_neither_read_nor_written_through() {
     let library = config.join("library");
     let elsewhere = config.join("elsewhere");
     std::fs::create_dir_all(&elsewhere).unwrap();
-    // An index elsewhere that would put a false title on the list.
-    std::fs::write(
-        elsewhere.join("briefs.json"),
-        r#"{"format":1,"briefs":{"flue-gas-span":[{"dev":0,"ino":0,"size":0,"mtime":0,"mtime_ns":0,"ctime":0,"ctime_ns":0},{"title":"planted","fill":"1bar","cylinder":"1L, 1bar","revision":9}]}}"#,
-    )
-    .unwrap();
+    // An index elsewhere that would put a false title on the list: it carries the file's
+    // true stamp, so it would be believed if it were read.
+    use std::os::unix::fs::MetadataExt;
+    let m = std::fs::metadata(library.join("flue-gas-span.ron")).unwrap();
+    let planted = serde_json::json!({"format": 1, "briefs": {"flue-gas-span": [
+        {"dev": m.dev(), "ino": m.ino(), "size": m.size(), "mtime": m.mtime(), "mtime_ns": m.mtime_nsec(),
+         "ctime": m.ctime(), "ctime_ns": m.ctime_nsec()},
+        {"title": "planted", "fill": "1bar", "cylinder": "1L, 1bar", "revision": 9}]}});
+    std::fs::write(elsewhere.join("briefs.json"), planted.to_string()).unwrap();
     std::os::unix::fs::symlink(&elsewhere, library.join(".index")).unwrap();
     std::thread::sleep(std::time::Duration::from_millis(3200));
     let before = std::fs::read_to_string(elsewhere.join("briefs.json")).unwrap();
-    let o = run(&config, &["list"]);
-    assert!(o.status.success(), "{}", err(&o));
-    assert!(out(&o).contains("flue-gas-span") && !out(&o).contains("planted"), "{}", out(&o));
+    assert_eq!(listed_title(&config, "flue-gas-span"), "Flue-gas span, four components");
     assert_eq!(std::fs::read_to_string(elsewhere.join("briefs.json")).unwrap(), before);
     assert_eq!(std::fs::read_dir(&elsewhere).unwrap().count(), 1, "nothing written through the link");
+    // The same file as the library's own index is believed: the link alone kept it out.
+    std::fs::remove_file(library.join(".index")).unwrap();
+    std::fs::create_dir(library.join(".index")).unwrap();
+    std::fs::copy(elsewhere.join("briefs.json"), library.join(".index/briefs.json")).unwrap();
+    assert_eq!(listed_title(&config, "flue-gas-span"), "planted");
 }

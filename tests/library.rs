@@ -142,7 +142,10 @@ fn oversized_and_broken_files_do_not_stop_the_library() {
     assert!(broken.summary.as_ref().unwrap_err().contains("broken.ron:1:"), "{:?}", broken.summary);
     assert!(entries.iter().filter(|e| e.summary.is_ok()).count() == demo::RECIPES.len());
     let flue = entries.iter().find(|e| e.name == "flue-gas-span").unwrap().summary.as_ref().unwrap();
-    assert_eq!((flue.fill.as_str(), flue.cylinder.as_str(), flue.revision), ("150bar", "10L, 200bar", 1));
+    assert_eq!(
+        (flue.brief.fill.as_str(), flue.brief.cylinder.as_str(), flue.brief.revision),
+        ("150bar", "10L, 200bar", 1)
+    );
     // The broken file was left untouched.
     assert_eq!(std::fs::read_to_string(dir.join("broken.ron")).unwrap(), "Recipe(format: 1, name: ");
 }

@@ -17,7 +17,7 @@
 #![allow(clippy::needless_range_loop)]
 
 use crate::thermo::kernel::{Kernel, RootChoice};
-use crate::thermo::phases::{wilson, Stationary, TangentPlane};
+use crate::thermo::phases::{wilson, Stationary, TangentPlane, UNSTABLE_SUM};
 use crate::thermo::{Fluid, ThermoError};
 
 /// Smallest mole fraction treated as present.
@@ -199,8 +199,9 @@ fn kept_or(
     KEPT.get_or_try(key, compute)
 }
 
-/// ln Σ W above which the feed counts as splitting (Σ W > 1 + 1e-8, as in the stability test).
-const SPLIT: f64 = 1e-8;
+/// ln Σ W above which the feed counts as splitting: the stability test's margin (its
+/// Σ W > 1 + 1e-8, whose ln is 1e-8 to 5e-17).
+const SPLIT: f64 = UNSTABLE_SUM;
 
 /// Where the search stands at one temperature: the measure and the trial phases found.
 #[derive(Debug, Clone)]

@@ -162,15 +162,10 @@ pub struct Entry {
     pub summary: Result<Summary, String>,
 }
 
-/// What the listing shows of a recipe.
+/// What the screen's library list has of a recipe: `list`'s brief and more.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Summary {
-    pub title: String,
-    /// The fill target as written, e.g. `150bar` or `1.2kg (mass)`.
-    pub fill: String,
-    /// Water capacity and working pressure, e.g. `10L, 200bar`.
-    pub cylinder: String,
-    pub revision: u64,
+    pub brief: Brief,
     /// What a search looks in besides the name and title: the order reference, the
     /// cylinder serial, the description, the notes and the gases, lower case.
     pub search_text: String,
@@ -183,14 +178,10 @@ pub struct Summary {
 impl Summary {
     fn of(o: &Opened) -> Summary {
         let r = &o.recipe;
-        let Brief { title, fill, cylinder, revision } = brief_of(r);
         Summary {
             recipe: r.clone(),
             fingerprint: o.fingerprint,
-            title,
-            fill,
-            cylinder,
-            revision,
+            brief: Brief::of(r),
             search_text: [
                 r.order.as_str(),
                 r.cylinder.serial.as_deref().unwrap_or(""),
@@ -206,17 +197,19 @@ impl Summary {
     }
 }
 
-/// What `list` shows of a recipe.
-fn brief_of(r: &Recipe) -> Brief {
-    Brief {
-        title: r.name.clone(),
-        fill: match &r.fill {
-            FillTarget::Pressure(p) => p.clone(),
-            FillTarget::Mass(m) => format!("{m} (mass)"),
-            FillTarget::Amount(n) => format!("{n} (amount)"),
-        },
-        cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
-        revision: r.revision,
+impl Brief {
+    /// What `list` shows of `r`.
+    fn of(r: &Recipe) -> Brief {
+        Brief {
+            title: r.name.clone(),
+            fill: match &r.fill {
+                FillTarget::Pressure(p) => p.clone(),
+                FillTarget::Mass(m) => format!("{m} (mass)"),
+                FillTarget::Amount(n) => format!("{n} (amount)"),
+            },
+            cylinder: format!("{}, {}", r.cylinder.water_capacity, r.cylinder.working_pressure),
+            revision: r.revision,
+        }
     }
 }
 
@@ -262,7 +255,7 @@ type Skipped = (String, String);
 /// One `.ron` entry of the library folder: a recipe's name, or a name and why it is skipped.
 enum Candidate {
     Recipe(String),
-    Skipped(String, String),
+    Skipped(Skipped),
 }
 
 /// A library folder.
@@ -339,7 +332,7 @@ impl Library {
         for candidate in self.candidates()? {
             match candidate {
                 Candidate::Recipe(name) => names.push(name),
-                Candidate::Skipped(name, why) => skipped.push((name, why)),
+                Candidate::Skipped(entry) => skipped.push(entry),
             }
         }
         names.sort();
@@ -355,14 +348,17 @@ impl Library {
         Ok(entries.filter_map(move |entry| {
             let entry = match entry {
                 Ok(e) => e,
-                Err(e) => return Some(Candidate::Skipped(self.dir.display().to_string(), format!("skipped: {e}"))),
+                Err(e) => return Some(Candidate::Skipped((self.dir.display().to_string(), format!("skipped: {e}")))),
             };
             let path = entry.path();
             if path.extension().and_then(|e| e.to_str()) != Some("ron") {
                 return None;
             }
             let Some(stem) = path.file_stem().and_then(|s| s.to_str()) else {
-                return Some(Candidate::Skipped(path.display().to_string(), "the name is not valid UTF-8".to_string()));
+                return Some(Candidate::Skipped((
+                    path.display().to_string(),
+                    "the name is not valid UTF-8".to_string(),
+                )));
             };
             if stem.starts_with('.') {
                 return None;
@@ -372,12 +368,15 @@ impl Library {
                     LibraryError::BadName { why, .. } => why.to_string(),
                     other => other.to_string(),
                 };
-                return Some(Candidate::Skipped(stem.to_string(), format!("skipped: the name is not allowed ({why})")));
+                return Some(Candidate::Skipped((
+                    stem.to_string(),
+                    format!("skipped: the name is not allowed ({why})"),
+                )));
             }
             let regular = entry.file_type().is_ok_and(|t| t.is_file());
             Some(match if regular { Ok(()) } else { self.readable(&path) } {
                 Ok(()) => Candidate::Recipe(stem.to_string()),
-                Err(why) => Candidate::Skipped(stem.to_string(), format!("skipped: {why}")),
+                Err(why) => Candidate::Skipped((stem.to_string(), format!("skipped: {why}"))),
             })
         }))
     }
@@ -440,7 +439,7 @@ impl Library {
                         return (name, stamp, Ok(brief.clone()));
                     }
                 }
-                let brief = self.open(&name).map(|o| brief_of(&o.recipe)).map_err(|e| e.to_string());
+                let brief = self.open(&name).map(|o| Brief::of(&o.recipe)).map_err(|e| e.to_string());
                 (name, stamp, brief)
             })
             .collect();

@@ -446,9 +446,15 @@ impl Mixture {
     /// The composition's reducing state and every term's temperature factor at T, for
     /// several densities in a row.
     fn compose(&self, x: &[f64], t_k: f64) -> Composed {
+        let each = self.compose_each(x, t_k);
+        Composed { flat: merged(each.flat), ..each }
+    }
+
+    /// [`Mixture::compose`] with every term on its own (before [`merged`]).
+    fn compose_each(&self, x: &[f64], t_k: f64) -> Composed {
         let (tr, rr, _, _) = self.reducing_gradient(x);
         let tau = tr / t_k;
-        let at = Powers::new(1.0, tau);
+        let at = TauPowers::new(tau);
         let mut flat = Vec::new();
         let mut other: Vec<(f64, Other)> = Vec::new();
         let n = x.len();
@@ -469,7 +475,7 @@ impl Mixture {
                 }
             }
         }
-        Composed { t_k, r: self.r, rho_r: rr, tau, flat: merged(flat), other }
+        Composed { t_k, r: self.r, rho_r: rr, tau, flat, other }
     }
 
     /// Molar density, mol/m³, at (T, P) by Newton's method from `rho0` (the ideal gas
@@ -673,58 +679,68 @@ enum Other {
     Cubic(f64),
 }
 
-/// The powers of δ and τ at one state, shared by every term of a mixture there: whole
-/// powers of δ (the terms' d and l), τ^t for t in eighths (nearly every published exponent:
-/// τ^(k/8) = τ^⌊k/8⌋ τ^((k mod 8)/8), from two short tables) and exp(−δ^l) for whole l,
-/// where a term would otherwise cost an exponential or a powf of its own. Other exponents
-/// by exp and powf.
-struct Powers {
-    delta: f64,
+/// τ^t at one temperature for every term of a mixture: for t in eighths (nearly every
+/// published exponent) τ^(k/8) = τ^⌊k/8⌋ τ^((k mod 8)/8) from two short tables, where a
+/// term would otherwise cost an exponential of its own; other exponents by exp(t ln τ).
+struct TauPowers {
     tau: f64,
     ln_tau: f64,
-    delta_whole: [f64; TABLE],
-    tau_whole: [f64; TAU_WHOLE],
-    tau_eighth: [f64; 8],
-    decay: [f64; DECAYS],
+    whole: [f64; TAU_WHOLE],
+    eighth: [f64; 8],
 }
 
 /// The whole powers of τ kept: τ^0 … τ^63 (the largest published t is 50).
 const TAU_WHOLE: usize = 64;
+
+impl TauPowers {
+    fn new(tau: f64) -> TauPowers {
+        let ln_tau = tau.ln();
+        let mut whole = [1.0; TAU_WHOLE];
+        for k in 1..TAU_WHOLE {
+            whole[k] = whole[k - 1] * tau;
+        }
+        let eighth = std::array::from_fn(|j| (j as f64 / 8.0 * ln_tau).exp());
+        TauPowers { tau, ln_tau, whole, eighth }
+    }
+
+    /// τ^t.
+    fn to(&self, t: f64) -> f64 {
+        let eighths = t * 8.0;
+        // (Whole by a round trip through an integer: `fract` is a call to libm's trunc.)
+        let k = eighths as usize;
+        if eighths >= 0.0 && k < 8 * TAU_WHOLE && k as f64 == eighths {
+            self.whole[k >> 3] * self.eighth[k & 7]
+        } else {
+            (t * self.ln_tau).exp()
+        }
+    }
+}
+
+/// The powers at one state (δ, τ), shared by every term of a mixture there: τ^t (see
+/// [`TauPowers`]), whole powers of δ (the terms' d and l) and exp(−δ^l) for whole l.
+struct Powers {
+    delta: f64,
+    tau: TauPowers,
+    delta_whole: [f64; TABLE],
+    decay: [f64; DECAYS],
+}
 
 /// The exp(−δ^l) kept: l = 1 … 7.
 const DECAYS: usize = 8;
 
 impl Powers {
     fn new(delta: f64, tau: f64) -> Powers {
-        let ln_tau = tau.ln();
         let mut delta_whole = [1.0; TABLE];
         for k in 1..TABLE {
             delta_whole[k] = delta_whole[k - 1] * delta;
         }
-        let mut tau_whole = [1.0; TAU_WHOLE];
-        for k in 1..TAU_WHOLE {
-            tau_whole[k] = tau_whole[k - 1] * tau;
-        }
-        let tau_eighth = std::array::from_fn(|j| (j as f64 / 8.0 * ln_tau).exp());
         let decay = std::array::from_fn(|l| if l == 0 { f64::NAN } else { (-delta_whole[l]).exp() });
-        Powers { delta, tau, ln_tau, delta_whole, tau_whole, tau_eighth, decay }
+        Powers { delta, tau: TauPowers::new(tau), delta_whole, decay }
     }
 
     /// δ^k.
     fn delta_to(&self, k: f64) -> f64 {
         table_power(&self.delta_whole, self.delta, k, whole(k).unwrap_or(TABLE))
-    }
-
-    /// τ^t.
-    fn tau_to(&self, t: f64) -> f64 {
-        let eighths = t * 8.0;
-        // (Whole by a round trip through an integer: `fract` is a call to libm's trunc.)
-        let k = eighths as usize;
-        if eighths >= 0.0 && k < 8 * TAU_WHOLE && k as f64 == eighths {
-            self.tau_whole[k >> 3] * self.tau_eighth[k & 7]
-        } else {
-            (t * self.ln_tau).exp()
-        }
     }
 
     /// exp(−g δ^l), and δ^l.
@@ -738,9 +754,9 @@ impl Powers {
 }
 
 /// Split `terms` at τ into flat terms weighted by `w` (the non-analytic ones kept whole).
-fn flatten(terms: &[Term], w: f64, at: &Powers, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
+fn flatten(terms: &[Term], w: f64, at: &TauPowers, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
     let tau = at.tau;
-    let tau_pow = |t: f64| at.tau_to(t);
+    let tau_pow = |t: f64| at.to(t);
     for term in terms {
         let (c, d, part) = match *term {
             Term::Power(n, d, t, l) => (n * tau_pow(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
@@ -980,7 +996,7 @@ fn sum_terms(terms: &[Term], delta: D2, tau: D2, ln_d: D2, ln_t: D2) -> D2 {
 /// t/τ + ∂E/∂τ; the powers and the common exp(−δ^l) from `at`, an exponential only for
 /// the terms with their own (the non-analytic terms by dual numbers, twice).
 fn sum_terms_grad(terms: &[Term], at: &Powers) -> (f64, f64, f64) {
-    let (delta, tau) = (at.delta, at.tau);
+    let (delta, tau) = (at.delta, at.tau.tau);
     let (mut a, mut a_d, mut a_t) = (0.0, 0.0, 0.0);
     for term in terms {
         // Each term n δ^d τ^t exp(e): its value and its e's derivatives in δ and τ.
@@ -1019,7 +1035,7 @@ fn sum_terms_grad(terms: &[Term], at: &Powers) -> (f64, f64, f64) {
                 continue;
             }
         };
-        let v = n * at.delta_to(d) * at.tau_to(t) * factor;
+        let v = n * at.delta_to(d) * at.tau.to(t) * factor;
         a += v;
         a_d += v * (d / delta + e_d);
         a_t += v * (t / tau + e_t);
@@ -1150,7 +1166,7 @@ mod tests {
         let at = Powers::new(1.7, 1.3);
         for t in [0.0, 0.125, 0.375, 1.125, 2.625, 7.5, 26.0, 50.0, 0.1, 1.38, 63.875] {
             let want = 1.3f64.powf(t);
-            assert!((at.tau_to(t) / want - 1.0).abs() < 1e-13, "τ^{t}: {} vs {want}", at.tau_to(t));
+            assert!((at.tau.to(t) / want - 1.0).abs() < 1e-13, "τ^{t}: {} vs {want}", at.tau.to(t));
         }
         for (g, l) in [(1.0, 1.0), (1.0, 6.0), (0.5, 2.0), (1.0, 2.5), (1.0, 9.0)] {
             let (decay, u) = at.decay(g, l);
@@ -1165,8 +1181,7 @@ mod tests {
         let mut mixtures = vec![Mixture::new(&c, &gases)];
         mixtures.extend(Mixture::gerg2008(&c, &gases));
         for m in &mixtures {
-            let merged = m.compose(&x, 250.0);
-            let whole = Composed { flat: unmerged(m, &x, 250.0), ..m.compose(&x, 250.0) };
+            let (merged, whole) = (m.compose(&x, 250.0), m.compose_each(&x, 250.0));
             assert!(merged.flat.len() * 3 < whole.flat.len(), "{} of {}", merged.flat.len(), whole.flat.len());
             for rho in [10.0, 3000.0, 15000.0] {
                 let (a, b) = (merged.evaluate(rho), whole.evaluate(rho));
@@ -1175,26 +1190,6 @@ mod tests {
                 }
             }
         }
-    }
-
-    /// The terms of `m` at (x, T) as flattened, before [`merged`].
-    fn unmerged(m: &Mixture, x: &[f64], t_k: f64) -> Vec<Flat> {
-        let (tr, _, _, _) = m.reducing_gradient(x);
-        let at = Powers::new(1.0, tr / t_k);
-        let (mut flat, mut other) = (Vec::new(), Vec::new());
-        let n = x.len();
-        for i in 0..n {
-            if let Pure::Reference(terms) = &m.pure[i] {
-                flatten(terms, x[i], &at, &mut flat, &mut other);
-            }
-            for j in i + 1..n {
-                let p = &m.pairs[i * n + j];
-                if let (Some(terms), true) = (p.departure, p.f != 0.0) {
-                    flatten(terms, x[i] * x[j] * p.f, &at, &mut flat, &mut other);
-                }
-            }
-        }
-        flat
     }
 
     #[test]

@@ -131,7 +131,7 @@ fn bracket(
 
 /// How far above 1 a stationary point's Σ W must be for the feed to split (and how far
 /// below 0 a tangent-plane distance): round-off in the fugacities stays well within it.
-const UNSTABLE_SUM: f64 = 1e-8;
+pub(crate) const UNSTABLE_SUM: f64 = 1e-8;
 
 /// Where successive substitution from a trial phase ends.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -142,8 +142,8 @@ pub(crate) enum Stationary {
     Point(f64),
     /// Not settled within the iterations allowed.
     Unsettled,
-    /// At a W whose tangent-plane distance tm* is below the limit asked for: the feed is
-    /// unstable, whatever the stationary point (tm* there is lower still), with W so far.
+    /// At a W whose modified tangent-plane distance tm* is below the (negative) limit asked
+    /// for: the feed is unstable (see [`TangentPlane::stationary`]), with W so far.
     Below,
 }
 
@@ -878,7 +878,7 @@ mod tests {
         // and Peng–Robinson.
         let c = Catalogue::built_in();
         let pairs = [(["CH4", "C3H8"], [0.7, 0.3]), (["CO2", "CH4"], [0.11, 0.89])];
-        let (mut unstable, mut stable, mut unsettled_split) = (0, 0, 0);
+        let (mut unstable, mut stable, mut only_early) = (0, 0, 0);
         for (ids, z) in pairs {
             let gases: Vec<usize> = ids.iter().map(|id| c.index_of(id).unwrap()).collect();
             for model in [Model::Multi, Model::Pr] {
@@ -892,7 +892,7 @@ mod tests {
                             // Where a trial did not settle (near a critical point), the early
                             // stop's "unstable" rests on a W with tm* < 0, which proves it; the
                             // converged test had no answer there.
-                            None if early => unsettled_split += 1,
+                            None if early => only_early += 1,
                             None => {}
                         }
                         if early {
@@ -906,6 +906,6 @@ mod tests {
         }
         assert!(unstable > 100 && stable > 100, "{unstable} unstable, {stable} stable");
         // A few near the critical regions, where the converged test ran out of steps.
-        assert!(unsettled_split < unstable / 20, "{unsettled_split} of {unstable}");
+        assert!(only_early < unstable / 20, "{only_early} of {unstable}");
     }
 }

@@ -564,7 +564,7 @@ impl LibraryState {
                 let mut haystack = e.name.to_lowercase();
                 if let Ok(s) = &e.summary {
                     haystack.push(' ');
-                    haystack.push_str(&s.title.to_lowercase());
+                    haystack.push_str(&s.brief.title.to_lowercase());
                     haystack.push(' ');
                     haystack.push_str(&s.search_text);
                 }

@@ -182,9 +182,9 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
             Ok(s) => format!(
                 "{marker}{:<name_w$}{:>9}{:>14}{:>4} {:<8} {}",
                 clip_middle(&e.name, name_w - 1),
-                clip(&s.fill.replace(' ', ""), 8),
-                clip(&s.cylinder, 13),
-                s.revision,
+                clip(&s.brief.fill.replace(' ', ""), 8),
+                clip(&s.brief.cylinder, 13),
+                s.brief.revision,
                 match model.library.screening.get(i).copied().flatten() {
                     _ if model.library.pending.contains_key(&e.name) => "…",
                     Some(Severity::Stop) => "STOP",
@@ -193,9 +193,9 @@ fn library(model: &Model, theme: &Theme, frame: &mut Frame, area: Rect) {
                     None => "no plan",
                 },
                 if model.library.filling.contains(&e.name) {
-                    clip(&format!("FILLING · {}", s.title), title_w)
+                    clip(&format!("FILLING · {}", s.brief.title), title_w)
                 } else {
-                    clip(&s.title, title_w)
+                    clip(&s.brief.title, title_w)
                 }
             ),
             Err(err) => {
