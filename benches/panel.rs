@@ -13,7 +13,8 @@
 //! Options (after `--`): `--count N` recipes (default 300), `--seed S` (default 2026),
 //! `--check N,N,…` library sizes for `check` and `list` (default 1000,10000; `0` for none),
 //! `--only KIND` one kind of the panel, `--profile estimate|reference` only that recompute
-//! of each recipe, ten times, and nothing else (for a profiler).
+//! of each recipe, ten times, and nothing else (for a profiler), `--write-library DIR` the
+//! library of the first `--check` size into DIR and nothing else (to profile a process on).
 
 use std::process::{Command, Stdio};
 use std::time::Instant;
@@ -89,6 +90,11 @@ fn main() {
             };
             println!("{i} {kind} {:.1} {:.1} {json}", w * 1e3, e * 1e3);
         }
+        return;
+    }
+    if let Some(dir) = option(&args, "--write-library") {
+        let n = sizes.first().copied().unwrap_or(1000);
+        fillwright::speed::write_library(std::path::Path::new(&dir), n).expect("library written");
         return;
     }
     if let Some(which) = option(&args, "--profile") {
@@ -195,6 +201,7 @@ fn plan_and_screen(text: &str) -> usize {
         order: None,
         resolutions: Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
         skip_following: false,
+        screening_only: false,
         phase_judge: None,
     };
     let plan = fillwright::plan::plan(&order, &catalogue, &options).expect("demo plans");

@@ -116,7 +116,7 @@ fn document(
     });
     let mut cautions: Vec<String> = Vec::new();
     if let Some(o) = order {
-        let options = crate::plan::PlanOptions { skip_following: true, ..Default::default() };
+        let options = crate::plan::PlanOptions { screening_only: true, ..Default::default() };
         if let Ok(plan) = crate::plan::plan(o, catalogue, &options) {
             let findings = crate::checks::screen(&plan, o, catalogue, &settings.conditions());
             cautions.extend(
@@ -304,7 +304,8 @@ pub fn certify_record(found: &Found, catalogue: &Catalogue, how: Evaluate) -> Re
     let source_remarks = check_sources(&checked, catalogue).map_err(|e| format!("{origin}: {e}"))?;
     let (recipe_check, recipe, current_revision) = check_recipe(record, library);
     let order = recipe.as_ref().and_then(|r| r.resolve(catalogue, "", &r.name).ok());
-    let options = crate::plan::PlanOptions { skip_following: true, ..Default::default() };
+    // Only its steps are read (how many the fill has).
+    let options = crate::plan::PlanOptions { screening_only: true, ..Default::default() };
     let plan = order.as_ref().and_then(|o| crate::plan::plan(o, catalogue, &options).ok());
     let unfinished = unfinished(record, &checked, plan.as_ref().map(|p| p.steps.len()));
     let volume = checked.volume_m3.or(order.as_ref().map(|o| o.volume_m3));

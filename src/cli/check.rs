@@ -198,8 +198,9 @@ fn screen(
         default_model: settings.default_model,
         resolutions: plan::Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
         min_temperature_k: Some(conditions.judged_down_to_k()),
-        // The screening does not use the comparison of following each model's readings.
-        skip_following: true,
+        // The report is the screening's: no other model's plan, no premix proposal, no
+        // comparison of following each model's readings.
+        screening_only: true,
         ..PlanOptions::default()
     };
     let screened = order.as_ref().map_err(Clone::clone).and_then(|order| {

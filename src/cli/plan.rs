@@ -152,6 +152,7 @@ fn plan_options(args: &PlanArgs, settings: &crate::settings::Resolved) -> Result
         order: args.order.clone(),
         resolutions: Resolutions { gauge_pa, scale_g },
         skip_following: false,
+        screening_only: false,
         phase_judge: None,
     };
     Ok(options)

@@ -56,6 +56,12 @@ pub struct PlanOptions {
     /// Leave out the "stopping at each model's readings" comparison (the screen shows it
     /// only on the printed sheet, and makes it then).
     pub skip_following: bool,
+    /// Plan only what the screening reads ([`crate::checks::screen`]: the steps with their
+    /// judgements, the components, the fluid): no other model's plan (`models` holds the
+    /// plan's own model alone), no premix proposal and no comparison of following readings.
+    /// For `check`, the library's screening column and the certificate's cautions, which
+    /// show nothing else of the plan.
+    pub screening_only: bool,
 }
 
 /// The lowest storage temperature when none is given: 0 °C (common practice for cylinders
@@ -663,7 +669,12 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let judges = judge.phase_judges(catalogue, &setup.gases);
     let (judgements, others) = rayon::join(
         || judge_steps(&judges, &pressures, t_fill, t_min, order.volume_m3),
-        || -> Vec<ModelPlan> { Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other.plan(m)).collect() },
+        || -> Vec<ModelPlan> {
+            if options.screening_only {
+                return Vec::new();
+            }
+            Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other.plan(m)).collect()
+        },
     );
     let steps = build_steps(order, &d, pressures, judgements?, heel.as_ref(), t_fill, options, catalogue);
 
@@ -683,7 +694,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let models = every_model(model, &totals, &steps, others);
     // Stopping at each model's readings, judged by the selected model and by the reference
     // (GERG-2008 or the multi-fluid model).
-    let truths = match (options.skip_following, model == reference) {
+    let truths = match (options.skip_following || options.screening_only, model == reference) {
         (true, _) => vec![],
         (false, true) => vec![model],
         (false, false) => vec![model, reference],
@@ -710,14 +721,14 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     };
     // A premix stage is planned at a depth above 0 and proposes nothing itself: the cascade
     // of the blend's own proposal holds every stage.
-    if depth == 0 {
+    if depth == 0 && !options.screening_only {
         plan.premixes = premix::propose(&plan, order, catalogue, options, plan_at_depth);
     }
     Ok(plan)
 }
 
 /// Every model's plan in the order of [`Model::ALL`]: `own` for the selected model, the
-/// others as planned beside it.
+/// others as planned beside it (none for [`PlanOptions::screening_only`]).
 fn every_model(model: Model, totals: &Totals, steps: &[Step], others: Vec<ModelPlan>) -> Vec<ModelPlan> {
     let own = ModelFigures {
         amount_mol: totals.amount_mol,
@@ -1189,6 +1200,40 @@ mod tests {
                 assert!((m - want).abs() <= 1e-10 * d.total_mol, "{name} {model}: {m} vs {want}");
             }
         }
+    }
+
+    #[test]
+    fn a_plan_for_the_screening_alone_screens_as_the_whole_plan() {
+        // `check`, the library's column and the certificate's cautions plan only what the
+        // screening reads: the same steps and findings as the whole plan, without the other
+        // models' plans and the premix proposals.
+        let c = Catalogue::built_in();
+        let settings = crate::settings::Settings::default().resolve("", "defaults").unwrap();
+        let mut orders: Vec<Order> =
+            demo::RECIPES.iter().map(|(name, text)| Recipe::load(text, name, &c).unwrap()).collect();
+        orders.extend(crate::speed::panel(2026, 8).iter().filter_map(|(_, r)| r.resolve(&c, "", &r.name).ok()));
+        let (mut with_premixes, mut with_models) = (0, 0);
+        for order in &orders {
+            let whole = PlanOptions { skip_following: true, ..PlanOptions::default() };
+            let only = PlanOptions { screening_only: true, ..PlanOptions::default() };
+            let (Ok(a), Ok(b)) = (plan(order, &c, &whole), plan(order, &c, &only)) else {
+                assert!(plan(order, &c, &only).is_err(), "{}: plans in whole only", order.name);
+                continue;
+            };
+            assert_eq!(a.steps, b.steps, "{}", order.name);
+            let conditions = settings.conditions();
+            assert_eq!(
+                crate::checks::screen(&a, order, &c, &conditions),
+                crate::checks::screen(&b, order, &c, &conditions),
+                "{}",
+                order.name
+            );
+            assert!(b.premixes.is_empty() && b.following.is_empty(), "{}", order.name);
+            assert_eq!(b.models.iter().map(|m| m.model).collect::<Vec<_>>(), vec![a.model], "{}", order.name);
+            with_premixes += usize::from(!a.premixes.is_empty());
+            with_models += usize::from(a.models.len() > 1);
+        }
+        assert!(with_premixes > 0 && with_models > 0, "the whole plans had premixes and other models to leave out");
     }
 
     #[test]

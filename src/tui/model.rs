@@ -239,7 +239,8 @@ impl Computed {
     /// Only the screening of a recipe (for the library's column); None where it does not plan.
     pub fn screening_only(recipe: &Recipe, catalogue: &Catalogue, settings: &Resolved) -> Option<Vec<Check>> {
         let order = recipe.resolve(catalogue, "", &recipe.name).ok()?;
-        let plan = plan::plan(&order, catalogue, &Self::options(settings)).ok()?;
+        let options = PlanOptions { screening_only: true, ..Self::options(settings) };
+        let plan = plan::plan(&order, catalogue, &options).ok()?;
         Some(checks::screen(&plan, &order, catalogue, &settings.conditions()))
     }
 
