@@ -42,11 +42,12 @@ pub fn write_library(dir: &Path, n: usize) -> std::io::Result<()> {
 }
 
 /// Forget the answers the process keeps between computations (the envelope's answers by
-/// fluid and composition, the premix stages' plans), so that a timed computation that is
+/// fluid and composition, the premix stages' plans, the phase judgements of states), so that a timed computation that is
 /// repeated costs what it costs the first time, as after an edit of the composition.
 pub fn forget_kept_answers() {
     crate::checks::phase::forget_kept();
     crate::plan::premix::forget_kept();
+    crate::thermo::phases::forget_kept();
 }
 
 /// The kinds of blend in the benchmark panel (see [`panel`]), in the order they cycle.

@@ -177,7 +177,7 @@ enum Kind {
 
 /// What a kept envelope answer is of: what, the fluid's identity, the composition and the
 /// arguments' bits.
-type KeptKey = (Kind, String, Vec<u64>);
+type KeptKey = (Kind, std::sync::Arc<str>, Vec<u64>);
 
 /// The kept envelope answers.
 static KEPT: crate::kept::Kept<KeptKey, Option<(f64, f64)>> = crate::kept::Kept::new(KEPT_ANSWERS);

@@ -158,6 +158,9 @@ pub struct Fluid {
     /// instead of its own fugacities: the quick estimate the screen shows at once (see
     /// [`Fluid::with_phases_estimated`]).
     phases_estimated: bool,
+    /// [`Fluid::identity`] and its hash, made on first use (reset by every change of the
+    /// equations).
+    identity: std::sync::OnceLock<(std::sync::Arc<str>, u64)>,
 }
 
 impl Fluid {
@@ -204,9 +207,18 @@ impl Fluid {
             },
             screen: None,
             phases_estimated: false,
+            identity: std::sync::OnceLock::new(),
         };
         if let Some(kij) = screen_kij {
-            let screen = Fluid { model: Model::Pr, kij, gerg: None, multi: None, gerg_mix: None, ..fluid.clone() };
+            let screen = Fluid {
+                model: Model::Pr,
+                kij,
+                gerg: None,
+                multi: None,
+                gerg_mix: None,
+                identity: std::sync::OnceLock::new(),
+                ..fluid.clone()
+            };
             fluid.screen = Some(std::sync::Arc::new(screen));
         }
         Ok(fluid)
@@ -221,17 +233,30 @@ impl Fluid {
     pub fn with_estimate(mut self, catalogue: &Catalogue, gases: &[usize], estimate: multifluid::Estimate) -> Fluid {
         if self.multi.is_some() {
             self.multi = Some(std::sync::Arc::new(multifluid::Mixture::with_estimate(catalogue, gases, estimate)));
+            self.identity = std::sync::OnceLock::new();
         }
         self
     }
 
     /// What this fluid's equations are, as a key: two fluids with one identity give the
     /// same answers (the model, the gases with their constants and k_ij, the Helmholtz
-    /// mixture's set and estimate, whether the phases are the quick estimate).
-    pub fn identity(&self) -> String {
-        let kij: Vec<u64> = self.kij.iter().flatten().map(|v| v.to_bits()).collect();
-        let mix = self.helmholtz_mixture().map(|m| m.identity().to_string()).unwrap_or_default();
-        format!("{:?}|{:?}|{:?}|{kij:?}|{mix}|{}", self.model, self.ids, self.cubic, self.phases_estimated)
+    /// mixture's set and estimate, whether the phases are the quick estimate). Made once.
+    pub fn identity(&self) -> std::sync::Arc<str> {
+        self.identity_and_hash().0.clone()
+    }
+
+    /// [`Fluid::identity`] with its hash (to key many answers by, cheaply).
+    pub(crate) fn identity_and_hash(&self) -> &(std::sync::Arc<str>, u64) {
+        self.identity.get_or_init(|| {
+            use std::hash::{Hash, Hasher};
+            let kij: Vec<u64> = self.kij.iter().flatten().map(|v| v.to_bits()).collect();
+            let mix = self.helmholtz_mixture().map(|m| m.identity().to_string()).unwrap_or_default();
+            let text =
+                format!("{:?}|{:?}|{:?}|{kij:?}|{mix}|{}", self.model, self.ids, self.cubic, self.phases_estimated);
+            let mut hasher = std::collections::hash_map::DefaultHasher::new();
+            text.hash(&mut hasher);
+            (text.into(), hasher.finish())
+        })
     }
 
     /// The same fluid with its phases judged by the Peng–Robinson screen where `estimated`
@@ -240,6 +265,7 @@ impl Fluid {
     /// test and any split are the cubic's. No change for a cubic or the ideal gas.
     pub fn with_phases_estimated(mut self, estimated: bool) -> Fluid {
         self.phases_estimated = estimated && self.screen.is_some() && !self.model.is_cubic();
+        self.identity = std::sync::OnceLock::new();
         self
     }
 

@@ -89,6 +89,49 @@ struct SaturationKey {
     tabulated: Option<[u64; 2]>,
 }
 
+/// A state of given contents on one fluid: the fluid's identity and its hash, and the bits
+/// of T, the molar volume and the composition. Hashed by the identity's hash alone (not its
+/// text, some kilobytes for a wide blend); equal only with the same identity text.
+#[derive(PartialEq, Eq)]
+struct StateKey {
+    hash: u64,
+    fluid: std::sync::Arc<str>,
+    bits: Vec<u64>,
+}
+
+impl std::hash::Hash for StateKey {
+    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
+        self.hash.hash(state);
+        self.bits.hash(state);
+    }
+}
+
+impl StateKey {
+    fn of(fluid: &Fluid, t_k: f64, v: f64, z: &[f64]) -> StateKey {
+        let (text, hash) = fluid.identity_and_hash();
+        let bits = [t_k, v].iter().chain(z).map(|x| x.to_bits()).collect();
+        StateKey { hash: *hash, fluid: text.clone(), bits }
+    }
+}
+
+/// How many states' judgements each generation of the kept ones holds (see
+/// [`crate::kept::KeptMap`]): a plan of 21 gases visits about a thousand.
+const STATES_KEPT: usize = 4096;
+
+/// Whether the contents are one phase at a state, and their pressure (see
+/// [`Fluid::single_phase_at`]), kept for the process: a plan asks the same state more than
+/// once (each step's at the fill temperature for its reading and for its judgement).
+static SINGLE_PHASE: crate::kept::KeptMap<StateKey, Option<f64>> = crate::kept::KeptMap::new(STATES_KEPT);
+
+/// The split of contents at a state (see [`Fluid::split_at_volume`]), kept for the process.
+static SPLITS: crate::kept::KeptMap<StateKey, Equilibrium> = crate::kept::KeptMap::new(STATES_KEPT);
+
+/// Forget the kept judgements of states (see [`crate::speed::forget_kept_answers`]).
+pub fn forget_kept() {
+    SINGLE_PHASE.clear();
+    SPLITS.clear();
+}
+
 /// How many saturation states each thread keeps.
 const SATURATIONS_KEPT: usize = 64;
 
@@ -540,6 +583,11 @@ impl Fluid {
             // The quick estimate: the screen's equilibrium where the screen finds a split.
             return self.cubic_estimate().split_at_volume(t_k, v, z, volume_m3);
         }
+        SPLITS.get_or_try(StateKey::of(self, t_k, v, z), || self.split_at_volume_now(t_k, v, z, volume_m3))
+    }
+
+    /// [`Fluid::split_at_volume`], computed.
+    fn split_at_volume_now(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
         // Split: find the pressure whose equilibrium volume is V/n. The
         // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
         // on ln v_eq − ln v over ln P, bisecting every third step, to 1e-9 in ln P.
@@ -640,6 +688,11 @@ impl Fluid {
     fn single_phase_at(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
         Self::check_t(t_k)?;
         self.check_x(z)?;
+        SINGLE_PHASE.get_or_try(StateKey::of(self, t_k, v, z), || self.single_phase_at_now(t_k, v, z))
+    }
+
+    /// [`Fluid::single_phase_at`], computed.
+    fn single_phase_at_now(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
         // One kernel at T for the pressure, the root and the stability test.
         let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         let Some(p) = cubic.pressure(v, z).filter(|p| Self::check_p(*p).is_ok()) else { return Ok(None) };
@@ -869,6 +922,41 @@ mod tests {
             }
         }
         settled.then_some(false)
+    }
+
+    #[test]
+    fn kept_judgements_of_states_are_each_fluids_own() {
+        // Across methane–propane's dew line at 250 K the reference equations and the quick
+        // estimate (Peng–Robinson's phases) disagree on a sliver of molar volumes: each
+        // fluid's kept judgement must be its own, asked in turn, and the same as computed
+        // afresh.
+        let c = Catalogue::built_in();
+        let gases: Vec<usize> = ["CH4", "C3H8"].iter().map(|id| c.index_of(id).unwrap()).collect();
+        let reference = Fluid::new(&c, &gases, Model::Multi).unwrap();
+        let estimate = reference.clone().with_phases_estimated(true);
+        assert_ne!(reference.identity(), estimate.identity(), "a changed fluid is another key");
+        let (t, volume, total) = (250.0, 5.0e-4, 1.0);
+        let amounts = |x: f64| [total * (1.0 - x), total * x];
+        let ask = |f: &Fluid, x: f64| f.condensed_tv(t, volume, &amounts(x)).unwrap();
+        let fractions: Vec<f64> = (0..200).map(|k| 0.02 + 0.0005 * k as f64).collect();
+        let first: Vec<(bool, bool)> = fractions.iter().map(|&x| (ask(&reference, x), ask(&estimate, x))).collect();
+        let differ = first.iter().filter(|(a, b)| a != b).count();
+        assert!(differ > 0, "the two judgements differ somewhere on the line");
+        assert!(first.iter().any(|(a, _)| *a) && first.iter().any(|(a, _)| !*a), "the line crosses the dew point");
+        // Asked again (kept), in the other order, and afresh.
+        let again: Vec<(bool, bool)> =
+            fractions.iter().map(|&x| (ask(&estimate, x), ask(&reference, x))).map(|(e, r)| (r, e)).collect();
+        assert_eq!(first, again);
+        forget_kept();
+        let fresh: Vec<(bool, bool)> = fractions.iter().map(|&x| (ask(&reference, x), ask(&estimate, x))).collect();
+        assert_eq!(first, fresh);
+        // The split's pressure and phases, kept, are the fluid's own too.
+        let x = fractions[first.iter().position(|(a, b)| *a && *b).expect("both split somewhere")];
+        let kept = reference.equilibrium_tv(t, volume, &amounts(x)).unwrap();
+        let other = estimate.equilibrium_tv(t, volume, &amounts(x)).unwrap();
+        forget_kept();
+        assert_eq!(reference.equilibrium_tv(t, volume, &amounts(x)).unwrap(), kept);
+        assert_ne!(kept.pressure_pa, other.pressure_pa);
     }
 
     #[test]
