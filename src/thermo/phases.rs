@@ -590,7 +590,10 @@ impl Fluid {
     fn split_at_volume_now(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
         // Split: find the pressure whose equilibrium volume is V/n. The
         // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
-        // on ln v_eq − ln v over ln P, bisecting every third step, to 1e-9 in ln P.
+        // on ln v_eq − ln v over ln P, bisecting where the secant leaves the bracket, until
+        // the bracket is within 1e-9 or the secant through the last two points puts the root
+        // within 1e-11 of the last (about five flashes after the bracket, where a bisection
+        // every third step took eight).
         let target = v.ln();
         // Each split found starts the next pressure's flash (its K-values): the stability
         // test and the flash from its trial phase run only where that start falls back to
@@ -615,12 +618,14 @@ impl Fluid {
         let ((mut lo, mut f_lo), (mut hi, mut f_hi), first) = bracket(&gap, start.map(f64::ln))?;
         let mut best = Some(first);
         let mut side = 0i8;
-        for k in 0..200 {
+        // The latest point tried, for the secant through the last two (unhalved) values.
+        let mut last: Option<(f64, f64)> = None;
+        for _ in 0..200 {
             if hi - lo < 1e-9 {
                 break;
             }
             let secant = lo + (hi - lo) * f_lo / (f_lo - f_hi);
-            let mid = if k % 3 == 2 || !(secant > lo && secant < hi) { 0.5 * (lo + hi) } else { secant };
+            let mid = if secant > lo && secant < hi { secant } else { 0.5 * (lo + hi) };
             let (f, e) = gap(mid)?;
             best = Some(e);
             if f == 0.0 {
@@ -642,9 +647,16 @@ impl Fluid {
                 }
                 side = -1;
             }
-            if f.abs() < 1e-13 {
+            // Done where the secant through the last two points puts the root within 1e-11
+            // of this one in ln P (or the volume is met to rounding).
+            let near = last.is_some_and(|(l, fl)| {
+                let slope = (f - fl) / (mid - l);
+                slope.is_finite() && slope != 0.0 && (f / slope).abs() < 1e-11
+            });
+            if near || f.abs() < 1e-13 {
                 break;
             }
+            last = Some((mid, f));
         }
         let Some(mut best) = best else { return Err(ThermoError::Volume(volume_m3 * 1e3)) };
         // At the pressure found, the amounts of the two phases follow from the volume (the
