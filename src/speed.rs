@@ -22,17 +22,22 @@ pub const DEW_P_PA: f64 = 30e5;
 
 /// Write `n` distinct recipes into `dir` (made from the demo recipes, each at its own fill
 /// pressure between 40 and 199 bar and, for every second one, its own fill temperature),
-/// for the `check DIR` case.
+/// for the `check DIR` case. No two have the same contents (up to 112,000): the pressures
+/// repeat every 1,120 recipes, each repetition 0.01 bar higher, so kept answers of one
+/// recipe's states do not answer another's.
 pub fn write_library(dir: &Path, n: usize) -> std::io::Result<()> {
     std::fs::create_dir_all(dir)?;
     let demos = crate::recipe::demo::RECIPES;
+    let cycle = demos.len() * 160;
     for k in 0..n {
         let (name, text) = demos[k % demos.len()];
         let Ok(r) = crate::recipe::Recipe::parse(text, name) else { continue };
         let bar = 40 + (k / demos.len()) % 160;
+        let hundredths = (k / cycle) % 100;
+        let fill = if hundredths == 0 { format!("{bar}bar") } else { format!("{bar}.{hundredths:02}bar") };
         let r = crate::recipe::Recipe {
             name: format!("{name}-{k:04}"),
-            fill: crate::recipe::FillTarget::Pressure(format!("{bar}bar")),
+            fill: crate::recipe::FillTarget::Pressure(fill),
             fill_temperature: (k % 2 == 1).then(|| format!("{}C", 15 + k % 17)),
             ..r
         };
@@ -42,8 +47,9 @@ pub fn write_library(dir: &Path, n: usize) -> std::io::Result<()> {
 }
 
 /// Forget the answers the process keeps between computations (the envelope's answers by
-/// fluid and composition, the premix stages' plans, the phase judgements of states), so that a timed computation that is
-/// repeated costs what it costs the first time, as after an edit of the composition.
+/// fluid and composition, the premix stages' plans, the phase judgements of states), so
+/// that a timed computation that is repeated costs what it costs the first time, as after
+/// an edit of the composition.
 pub fn forget_kept_answers() {
     crate::checks::phase::forget_kept();
     crate::plan::premix::forget_kept();
@@ -161,6 +167,27 @@ fn panel_recipe(name: &str, lines: &[(&str, f64)], balance: &str, bar: u32, fill
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_generated_library_has_no_two_recipes_alike() {
+        // Past one cycle of the pressures (1,120) as well: a repeated recipe would be
+        // answered from the kept judgements and flatter `check DIR`'s timing.
+        let dir = std::env::temp_dir().join(format!("fillwright-library-{}", std::process::id()));
+        write_library(&dir, 2300).unwrap();
+        let mut contents: Vec<String> = std::fs::read_dir(&dir)
+            .unwrap()
+            .map(|e| {
+                let text = std::fs::read_to_string(e.unwrap().path()).unwrap();
+                // The contents without the name (which differs by construction).
+                text.lines().filter(|l| !l.trim_start().starts_with("name:")).collect::<Vec<_>>().join("\n")
+            })
+            .collect();
+        std::fs::remove_dir_all(&dir).unwrap();
+        assert_eq!(contents.len(), 2300);
+        contents.sort();
+        contents.dedup();
+        assert_eq!(contents.len(), 2300, "every recipe's contents differ");
+    }
 
     #[test]
     fn the_panel_is_seeded_and_has_each_kind_in_its_range() {

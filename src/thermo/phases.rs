@@ -194,6 +194,8 @@ pub(crate) enum Stationary {
 /// d_i = ln z_i + ln φ_i(z), and scratch for the iteration.
 pub(crate) struct TangentPlane<'a> {
     p_pa: f64,
+    /// The feed's Z on its stable root.
+    feed_z: f64,
     z: &'a [f64],
     ln_z: Vec<f64>,
     d: Vec<f64>,
@@ -206,10 +208,10 @@ impl<'a> TangentPlane<'a> {
     pub(crate) fn new(cubic: &mut Kernel, p_pa: f64, z: &'a [f64]) -> Option<TangentPlane<'a>> {
         let n = z.len();
         let mut ln_phi = vec![0.0; n];
-        cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi)?;
+        let feed_z = cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi)?;
         let ln_z: Vec<f64> = z.iter().map(|v| if *v > TRACE { v.ln() } else { f64::NEG_INFINITY }).collect();
         let d = (0..n).map(|i| if z[i] > TRACE { ln_z[i] + ln_phi[i] } else { f64::NEG_INFINITY }).collect();
-        Some(TangentPlane { p_pa, z, ln_z, d, x: vec![0.0; n], ln_phi })
+        Some(TangentPlane { p_pa, feed_z, z, ln_z, d, x: vec![0.0; n], ln_phi })
     }
 
     /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
@@ -331,7 +333,7 @@ impl Fluid {
         let m = self.mix(kind, t_k, x);
         let roots = cubic::z_roots(kind, &m, t_k, p_pa);
         let z = if liquid { roots.first() } else { roots.last() };
-        let z = *z.ok_or_else(|| ThermoError::NoState { model: self.model, why: "no root".into() })?;
+        let z = *z.ok_or_else(|| self.no_root())?;
         let s = cubic::ZSolution {
             z,
             root: Root::Single,
@@ -361,8 +363,18 @@ impl Fluid {
             let mut estimate = Kernel::new(screen, t_k).ok_or(ThermoError::NoFugacity(screen.model))?;
             return screen.stability_on(&mut estimate, p_pa, z);
         }
-        let no_root = || ThermoError::NoState { model: self.model, why: "no root".into() };
-        let mut tpd = TangentPlane::new(cubic, p_pa, z).ok_or_else(no_root)?;
+        let mut tpd = TangentPlane::new(cubic, p_pa, z).ok_or_else(|| self.no_root())?;
+        Ok(self.trials(cubic, &mut tpd))
+    }
+
+    fn no_root(&self) -> ThermoError {
+        ThermoError::NoState { model: self.model, why: "no root".into() }
+    }
+
+    /// The stability test's two trials (vapour-like and liquid-like, from Wilson's
+    /// K-values) on the feed's tangent plane: the trial phase where the feed splits.
+    fn trials(&self, cubic: &mut Kernel, tpd: &mut TangentPlane) -> Option<Vec<f64>> {
+        let (t_k, p_pa, z) = (cubic.temperature_k(), tpd.p_pa, tpd.z);
         let k = wilson(self, t_k, p_pa);
         for vapour_like in [true, false] {
             let mut w: Vec<f64> =
@@ -378,10 +390,10 @@ impl Fluid {
             };
             if unstable {
                 let sum: f64 = w.iter().sum();
-                return Ok(Some(w.iter().map(|wi| wi / sum).collect()));
+                return Some(w.iter().map(|wi| wi / sum).collect());
             }
         }
-        Ok(None)
+        None
     }
 
     /// The saturation state of a pure fluid (`x` holds one component) at `t_k`, from the
@@ -708,8 +720,21 @@ impl Fluid {
         // One kernel at T for the pressure, the root and the stability test.
         let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         let Some(p) = cubic.pressure(v, z).filter(|p| Self::check_p(*p).is_ok()) else { return Ok(None) };
-        let on_stable_root = cubic.stable_z(p, z).is_some_and(|zz| (zz * R * t_k / p - v).abs() <= 1e-6 * v);
-        Ok((on_stable_root && self.stability_on(&mut cubic, p, z)?.is_none()).then_some(p))
+        let on_root = |zz: f64| (zz * R * t_k / p - v).abs() <= 1e-6 * v;
+        if self.phases_estimated {
+            let on_stable_root = cubic.stable_z(p, z).is_some_and(on_root);
+            return Ok((on_stable_root && self.stability_on(&mut cubic, p, z)?.is_none()).then_some(p));
+        }
+        // The feed's fugacities on its stable root give the root (is it this volume?) and the
+        // tangent plane at once: one density search where the root and the test made two.
+        let Some(mut tpd) = TangentPlane::new(&mut cubic, p, z) else {
+            // A stable root without finite fugacities: no test can be made on it.
+            return match cubic.stable_z(p, z).is_some_and(on_root) {
+                true => Err(self.no_root()),
+                false => Ok(None),
+            };
+        };
+        Ok((on_root(tpd.feed_z) && self.trials(&mut cubic, &mut tpd).is_none()).then_some(p))
     }
 
     /// Flash a feed known to split, starting from the stability test's trial phase.
