@@ -13,8 +13,15 @@
 //! Options (after `--`): `--count N` recipes (default 300), `--seed S` (default 2026),
 //! `--check N,N,…` library sizes for `check` and `list` (default 1000,10000; `0` for none),
 //! `--only KIND` one kind of the panel, `--profile estimate|reference` only that recompute
-//! of each recipe, ten times, and nothing else (for a profiler), `--write-library DIR` the
-//! library of the first `--check` size into DIR and nothing else (to profile a process on).
+//! of each recipe (nothing kept), ten times, and nothing else (for a profiler),
+//! `--write-library DIR` the library of the first `--check` size into DIR and nothing else
+//! (to profile a process on), `--each 1` each recipe's times and plan as JSON (to compare
+//! two builds' results).
+//!
+//! The peak memory of a process is what `wait4` reports, which on Linux counts the pages
+//! of this bench process the child shared until its `exec`: the `--version` row is the
+//! floor under every other (measure a process alone with `/usr/bin/time -f %M` to see it
+//! without that floor).
 
 use std::process::{Command, Stdio};
 use std::time::Instant;
@@ -100,6 +107,8 @@ fn main() {
     if let Some(which) = option(&args, "--profile") {
         for _ in 0..10 {
             for (_, r) in &recipes {
+                // Each as the first recompute after an edit, as in the tables.
+                fillwright::speed::forget_kept_answers();
                 match which.as_str() {
                     "estimate" => drop(Computed::estimate(r, &catalogue, &settings)),
                     _ => drop(Computed::of(r, &catalogue, &settings)),
