@@ -196,6 +196,8 @@ pub(crate) struct TangentPlane<'a> {
     p_pa: f64,
     /// The feed's Z on its stable root.
     feed_z: f64,
+    /// The largest change of ln W at which a stationary point counts as reached.
+    settled: f64,
     z: &'a [f64],
     ln_z: Vec<f64>,
     d: Vec<f64>,
@@ -211,7 +213,14 @@ impl<'a> TangentPlane<'a> {
         let feed_z = cubic.ln_phi_into(p_pa, z, RootChoice::Stable, &mut ln_phi)?;
         let ln_z: Vec<f64> = z.iter().map(|v| if *v > TRACE { v.ln() } else { f64::NEG_INFINITY }).collect();
         let d = (0..n).map(|i| if z[i] > TRACE { ln_z[i] + ln_phi[i] } else { f64::NEG_INFINITY }).collect();
-        Some(TangentPlane { p_pa, feed_z, z, ln_z, d, x: vec![0.0; n], ln_phi })
+        Some(TangentPlane { p_pa, feed_z, settled: 1e-10, z, ln_z, d, x: vec![0.0; n], ln_phi })
+    }
+
+    /// The same with a stationary point reached where ln W changes by less than `settled`
+    /// (1e-10 unless asked): a measure ln Σ W then within ~(settled r/(1 − r))², at a
+    /// convergence rate r.
+    pub(crate) fn settled_at(self, settled: f64) -> TangentPlane<'a> {
+        TangentPlane { settled, ..self }
     }
 
     /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
@@ -254,7 +263,7 @@ impl<'a> TangentPlane<'a> {
             if distance < 1e-8 {
                 return Some(Stationary::Feed);
             }
-            if change < 1e-10 {
+            if change < self.settled {
                 return Some(Stationary::Point(w.iter().sum::<f64>().ln()));
             }
         }
