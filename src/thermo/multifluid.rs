@@ -203,6 +203,10 @@ pub struct Mixture {
     serial: u64,
     /// What its equations are: the set, the estimate for unpublished pairs, the gases.
     identity: String,
+    /// Each pure gas's terms and each pair's departure terms (row-major, i < j) sorted for
+    /// [`Mixture::compose`] (see [`Sorted`]).
+    sorted_pure: Vec<Sorted>,
+    sorted_pairs: Vec<Sorted>,
 }
 
 /// How a pair without published parameters is combined.
@@ -310,7 +314,27 @@ impl Mixture {
             _ => R,
         };
         let identity = format!("{set_key:?}/{estimate:?}/{}", ids.join(","));
-        Mixture { pure, t_c, rho_c, pairs, estimated_gases, estimated_pairs, r, serial, identity }
+        let sorted_pure = pure
+            .iter()
+            .map(|p| match p {
+                Pure::Reference(terms) => Sorted::of(terms),
+                Pure::Cubic { .. } => Sorted::default(),
+            })
+            .collect();
+        let sorted_pairs = pairs.iter().map(|p| p.departure.map(Sorted::of).unwrap_or_default()).collect();
+        Mixture {
+            pure,
+            t_c,
+            rho_c,
+            pairs,
+            estimated_gases,
+            estimated_pairs,
+            r,
+            serial,
+            identity,
+            sorted_pure,
+            sorted_pairs,
+        }
     }
 
     /// What this mixture's equations are (the set, the estimate, the gases), as a key.
@@ -444,13 +468,51 @@ impl Mixture {
     }
 
     /// The composition's reducing state and every term's temperature factor at T, for
-    /// several densities in a row.
+    /// several densities in a row: the terms of one density part summed into one (see
+    /// [`merged`]), each term's part found once for the mixture (see [`Sorted`]). The same
+    /// terms, in the same order and with the same sums, as [`merged`] of
+    /// [`Mixture::compose_each`].
     fn compose(&self, x: &[f64], t_k: f64) -> Composed {
-        let each = self.compose_each(x, t_k);
-        Composed { flat: merged(each.flat), ..each }
+        let (tr, rr, _, _) = self.reducing_gradient(x);
+        let tau = tr / t_k;
+        let at = TauPowers::new(tau);
+        let mut flat = Vec::new();
+        let mut other: Vec<(f64, Other)> = Vec::new();
+        let mut sums = [0.0; SLOTS];
+        let mut used = [false; SLOTS];
+        let mut add = |sorted: &Sorted, w: f64, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>| {
+            for term in &sorted.slotted {
+                sums[term.slot] += w * (term.n * at.to(term.t));
+                used[term.slot] = true;
+            }
+            flatten(&sorted.rest, w, &at, flat, other);
+        };
+        let n = x.len();
+        for i in 0..n {
+            if x[i] == 0.0 {
+                continue;
+            }
+            match &self.pure[i] {
+                Pure::Reference(_) => add(&self.sorted_pure[i], x[i], &mut flat, &mut other),
+                Pure::Cubic { kappa } => other.push((x[i], Other::Cubic(*kappa))),
+            }
+        }
+        for i in 0..n {
+            for j in i + 1..n {
+                let p = &self.pairs[i * n + j];
+                if p.departure.is_some() && p.f != 0.0 && x[i] * x[j] != 0.0 {
+                    add(&self.sorted_pairs[i * n + j], x[i] * x[j] * p.f, &mut flat, &mut other);
+                }
+            }
+        }
+        for k in (0..SLOTS).filter(|k| used[*k]) {
+            flat.push(slot_term(k, sums[k]));
+        }
+        Composed { t_k, r: self.r, rho_r: rr, tau, flat, other }
     }
 
     /// [`Mixture::compose`] with every term on its own (before [`merged`]).
+    #[cfg(test)]
     fn compose_each(&self, x: &[f64], t_k: f64) -> Composed {
         let (tr, rr, _, _) = self.reducing_gradient(x);
         let tau = tr / t_k;
@@ -792,20 +854,13 @@ fn exp_power(g: f64, l: f64) -> DeltaPart {
 /// l) is one term with the sum of their c. The pure gases' equations share most of their
 /// exponents (GERG-2008's and Span and Wagner's short forms the same twelve), so a mixture's
 /// hundreds of terms become a few dozen for each density the solver tries.
+#[cfg(test)]
 fn merged(flat: Vec<Flat>) -> Vec<Flat> {
-    // A slot per (d, none or l): d × (TABLE + 1) + (0 for δ^d alone, 1 + l with the decay).
-    const SLOTS: usize = TABLE * (TABLE + 1);
     let mut sums = [0.0; SLOTS];
     let mut used = [false; SLOTS];
     let mut out = Vec::with_capacity(flat.len());
     for f in flat {
-        let slot = match f.part {
-            _ if f.di >= TABLE => None,
-            DeltaPart::Plain => Some(f.di * (TABLE + 1)),
-            DeltaPart::ExpPower { g, li, .. } if g == 1.0 && li < TABLE => Some(f.di * (TABLE + 1) + 1 + li),
-            _ => None,
-        };
-        match slot {
+        match slot_of(f.di, &f.part) {
             Some(k) => {
                 sums[k] += f.c;
                 used[k] = true;
@@ -814,14 +869,70 @@ fn merged(flat: Vec<Flat>) -> Vec<Flat> {
         }
     }
     for k in (0..SLOTS).filter(|k| used[*k]) {
-        let (di, part) = (k / (TABLE + 1), k % (TABLE + 1));
-        let part = match part {
-            0 => DeltaPart::Plain,
-            li => DeltaPart::ExpPower { g: 1.0, l: (li - 1) as f64, li: li - 1 },
-        };
-        out.push(Flat { c: sums[k], d: di as f64, di, part });
+        out.push(slot_term(k, sums[k]));
     }
     out
+}
+
+/// A slot per (d, none or l) of the density parts summed together: d × (TABLE + 1) + (0 for
+/// δ^d alone, 1 + l with the decay exp(−δ^l)).
+const SLOTS: usize = TABLE * (TABLE + 1);
+
+/// The slot of a term's density part δ^d h(δ) (`di` d's place in the table), where it has one.
+fn slot_of(di: usize, part: &DeltaPart) -> Option<usize> {
+    match *part {
+        _ if di >= TABLE => None,
+        DeltaPart::Plain => Some(di * (TABLE + 1)),
+        DeltaPart::ExpPower { g, li, .. } if g == 1.0 && li < TABLE => Some(di * (TABLE + 1) + 1 + li),
+        _ => None,
+    }
+}
+
+/// The term of slot `k` with coefficient `c`.
+fn slot_term(k: usize, c: f64) -> Flat {
+    let (di, part) = (k / (TABLE + 1), k % (TABLE + 1));
+    let part = match part {
+        0 => DeltaPart::Plain,
+        li => DeltaPart::ExpPower { g: 1.0, l: (li - 1) as f64, li: li - 1 },
+    };
+    Flat { c, d: di as f64, di, part }
+}
+
+/// A list of terms sorted once for [`Mixture::compose`]: those whose density part has a
+/// slot (a whole d, and no decay or exp(−δ^l) of a whole l: nearly every term of the
+/// published equations) with their slot, n and t; the others as they are.
+#[derive(Debug, Clone, Default)]
+struct Sorted {
+    slotted: Vec<Slotted>,
+    rest: Vec<Term>,
+}
+
+#[derive(Debug, Clone, Copy)]
+struct Slotted {
+    slot: usize,
+    n: f64,
+    t: f64,
+}
+
+impl Sorted {
+    fn of(terms: &[Term]) -> Sorted {
+        let mut sorted = Sorted::default();
+        for term in terms {
+            let (n, d, t, part) = match *term {
+                Term::Power(n, d, t, l) => (n, d, t, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
+                Term::Exponential(n, d, t, g, l) => (n, d, t, exp_power(g, l)),
+                _ => {
+                    sorted.rest.push(*term);
+                    continue;
+                }
+            };
+            match slot_of(whole(d).unwrap_or(TABLE), &part) {
+                Some(slot) => sorted.slotted.push(Slotted { slot, n, t }),
+                None => sorted.rest.push(*term),
+            }
+        }
+        sorted
+    }
 }
 
 /// A mixture at one composition and temperature: its reducing state and its terms.
@@ -1183,6 +1294,16 @@ mod tests {
         for m in &mixtures {
             let (merged, whole) = (m.compose(&x, 250.0), m.compose_each(&x, 250.0));
             assert!(merged.flat.len() * 3 < whole.flat.len(), "{} of {}", merged.flat.len(), whole.flat.len());
+            // The composer's terms, each found its part once per mixture, are the unmerged
+            // terms summed by part: the same terms in the same order, the same sums to the bit.
+            let summed = super::merged(whole.flat.clone());
+            assert_eq!(merged.flat.len(), summed.len());
+            for (a, b) in merged.flat.iter().zip(&summed) {
+                assert_eq!(
+                    (a.c.to_bits(), a.di, format!("{:?}", a.part)),
+                    (b.c.to_bits(), b.di, format!("{:?}", b.part))
+                );
+            }
             for rho in [10.0, 3000.0, 15000.0] {
                 let (a, b) = (merged.evaluate(rho), whole.evaluate(rho));
                 for (u, v) in [(a.0, b.0), (a.1, b.1), (a.2, b.2)] {
