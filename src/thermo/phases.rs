@@ -118,17 +118,26 @@ impl StateKey {
 /// [`crate::kept::KeptMap`]): a plan of 21 gases visits about a thousand.
 const STATES_KEPT: usize = 4096;
 
-/// Whether the contents are one phase at a state, and their pressure (see
-/// [`Fluid::single_phase_at`]), kept for the process: a plan asks the same state more than
-/// once (each step's at the fill temperature for its reading and for its judgement).
-static SINGLE_PHASE: crate::kept::KeptMap<StateKey, Option<f64>> = crate::kept::KeptMap::new(STATES_KEPT);
+/// What contents of one molar volume are at T: one phase at their pressure, or split; for
+/// a split found by the stability test at the one-phase pressure, that pressure and the
+/// test's trial phase (the first flash of [`Fluid::split_at_volume`] starts from it).
+#[derive(Debug, Clone)]
+enum AtVolume {
+    OnePhase(f64),
+    Splits(Option<(f64, Vec<f64>)>),
+}
+
+/// The judgement of each state (see [`Fluid::judged_at`]), kept for the process: a plan
+/// asks the same state more than once (each step's at the fill temperature for its reading
+/// and for its judgement).
+static JUDGED: crate::kept::KeptMap<StateKey, AtVolume> = crate::kept::KeptMap::new(STATES_KEPT);
 
 /// The split of contents at a state (see [`Fluid::split_at_volume`]), kept for the process.
 static SPLITS: crate::kept::KeptMap<StateKey, Equilibrium> = crate::kept::KeptMap::new(STATES_KEPT);
 
 /// Forget the kept judgements of states (see [`crate::speed::forget_kept_answers`]).
 pub fn forget_kept() {
-    SINGLE_PHASE.clear();
+    JUDGED.clear();
     SPLITS.clear();
 }
 
@@ -560,10 +569,10 @@ impl Fluid {
         if let Some(i) = single_component(&z) {
             return self.pure_equilibrium_tv(i, t_k, v, z);
         }
-        if let Some(p) = self.single_phase_at(t_k, v, &z)? {
-            return Ok(single(self.label(t_k, p, &z, v), p, v, self.phase_model()));
+        match self.judged_at(t_k, v, &z)? {
+            AtVolume::OnePhase(p) => Ok(single(self.label(t_k, p, &z, v), p, v, self.phase_model())),
+            AtVolume::Splits(from) => self.split_at_volume(t_k, v, &z, volume_m3, from),
         }
-        self.split_at_volume(t_k, v, &z, volume_m3)
     }
 
     /// A pure fluid (component `i`, feed `z`) of molar volume `v` at T: between the
@@ -599,16 +608,32 @@ impl Fluid {
 
     /// Contents that split: the pressure whose equilibrium volume is
     /// `v`, with the phases' amounts from the lever rule.
-    fn split_at_volume(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
+    /// `from`: the one-phase pressure and the stability test's trial phase there, where the
+    /// test found the split (its first flash starts from them).
+    fn split_at_volume(
+        &self,
+        t_k: f64,
+        v: f64,
+        z: &[f64],
+        volume_m3: f64,
+        from: Option<(f64, Vec<f64>)>,
+    ) -> Result<Equilibrium, ThermoError> {
         if self.phases_estimated {
             // The quick estimate: the screen's equilibrium where the screen finds a split.
-            return self.cubic_estimate().split_at_volume(t_k, v, z, volume_m3);
+            return self.cubic_estimate().split_at_volume(t_k, v, z, volume_m3, None);
         }
-        SPLITS.get_or_try(StateKey::of(self, t_k, v, z), || self.split_at_volume_now(t_k, v, z, volume_m3))
+        SPLITS.get_or_try(StateKey::of(self, t_k, v, z), || self.split_at_volume_now(t_k, v, z, volume_m3, from))
     }
 
     /// [`Fluid::split_at_volume`], computed.
-    fn split_at_volume_now(&self, t_k: f64, v: f64, z: &[f64], volume_m3: f64) -> Result<Equilibrium, ThermoError> {
+    fn split_at_volume_now(
+        &self,
+        t_k: f64,
+        v: f64,
+        z: &[f64],
+        volume_m3: f64,
+        from: Option<(f64, Vec<f64>)>,
+    ) -> Result<Equilibrium, ThermoError> {
         // Split: find the pressure whose equilibrium volume is V/n. The
         // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
         // on ln v_eq − ln v over ln P, bisecting where the secant leaves the bracket, until
@@ -619,11 +644,24 @@ impl Fluid {
         // Each split found starts the next pressure's flash (its K-values): the stability
         // test and the flash from its trial phase run only where that start falls back to
         // one phase (Michelsen's practice along a sequence of states).
+        // The first pressure tried is the one-phase pressure, where the stability test that
+        // found the split has its trial phase already.
+        let start = match &from {
+            Some((p, _)) => Some(*p),
+            None => self.pressure_tv(t_k, v, z).ok(),
+        }
+        .filter(|p| *p > 1.0e2 && *p < MAX_PRESSURE_PA);
+        let tested = std::cell::RefCell::new(from.filter(|(p, _)| Some(*p) == start).map(|(p, w)| (p.ln(), w)));
         let last_k: std::cell::RefCell<Option<Vec<f64>>> = std::cell::RefCell::new(None);
         let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
             let p = lp.exp().min(MAX_PRESSURE_PA);
             let warm = last_k.borrow().clone();
-            let e = match warm.map(|k| self.flash_from(t_k, p, z, k)).transpose()?.flatten() {
+            let trial = tested.borrow_mut().take_if(|(l, _)| *l == lp).map(|(_, w)| w);
+            let e = match trial {
+                Some(w) => self.flash(t_k, p, z, &w)?,
+                None => warm.map(|k| self.flash_from(t_k, p, z, k)).transpose()?.flatten(),
+            };
+            let e = match e {
                 Some(e) => e,
                 None => self.equilibrium_tp(t_k, p, z)?,
             };
@@ -635,7 +673,6 @@ impl Fluid {
         };
         // The bracket grows out from the one-phase pressure at this volume (near the
         // answer where little liquid forms), else it is the whole range.
-        let start = self.pressure_tv(t_k, v, z).ok().filter(|p| *p > 1.0e2 && *p < MAX_PRESSURE_PA);
         let ((mut lo, mut f_lo), (mut hi, mut f_hi), first) = bracket(&gap, start.map(f64::ln))?;
         let mut best = Some(first);
         let mut side = 0i8;
@@ -709,30 +746,32 @@ impl Fluid {
         if single_component(&z).is_some() {
             return Ok(self.saturation(t_k, &z)?.is_some_and(|s| v < s.v_vapour_m3));
         }
-        match self.single_phase_at(t_k, v, &z)? {
-            Some(p) => Ok(self.label(t_k, p, &z, v) == Phase::Liquid),
-            None => Ok(true),
+        match self.judged_at(t_k, v, &z)? {
+            AtVolume::OnePhase(p) => Ok(self.label(t_k, p, &z, v) == Phase::Liquid),
+            AtVolume::Splits(_) => Ok(true),
         }
     }
 
-    /// The pressure of a single-phase state of molar volume `v` on this fluid, or
-    /// None where the contents split: one phase at `v` when the stable root at its pressure
-    /// has this volume and the feed does not split there.
-    fn single_phase_at(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
+    /// Whether contents of molar volume `v` are one phase at T (and their pressure): when the
+    /// stable root at their pressure has this volume and the feed does not split there.
+    fn judged_at(&self, t_k: f64, v: f64, z: &[f64]) -> Result<AtVolume, ThermoError> {
         Self::check_t(t_k)?;
         self.check_x(z)?;
-        SINGLE_PHASE.get_or_try(StateKey::of(self, t_k, v, z), || self.single_phase_at_now(t_k, v, z))
+        JUDGED.get_or_try(StateKey::of(self, t_k, v, z), || self.judged_at_now(t_k, v, z))
     }
 
-    /// [`Fluid::single_phase_at`], computed.
-    fn single_phase_at_now(&self, t_k: f64, v: f64, z: &[f64]) -> Result<Option<f64>, ThermoError> {
+    /// [`Fluid::judged_at`], computed.
+    fn judged_at_now(&self, t_k: f64, v: f64, z: &[f64]) -> Result<AtVolume, ThermoError> {
         // One kernel at T for the pressure, the root and the stability test.
         let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
-        let Some(p) = cubic.pressure(v, z).filter(|p| Self::check_p(*p).is_ok()) else { return Ok(None) };
+        let Some(p) = cubic.pressure(v, z).filter(|p| Self::check_p(*p).is_ok()) else {
+            return Ok(AtVolume::Splits(None));
+        };
         let on_root = |zz: f64| (zz * R * t_k / p - v).abs() <= 1e-6 * v;
         if self.phases_estimated {
             let on_stable_root = cubic.stable_z(p, z).is_some_and(on_root);
-            return Ok((on_stable_root && self.stability_on(&mut cubic, p, z)?.is_none()).then_some(p));
+            let one = on_stable_root && self.stability_on(&mut cubic, p, z)?.is_none();
+            return Ok(if one { AtVolume::OnePhase(p) } else { AtVolume::Splits(None) });
         }
         // The feed's fugacities on its stable root give the root (is it this volume?) and the
         // tangent plane at once: one density search where the root and the test made two.
@@ -740,10 +779,16 @@ impl Fluid {
             // A stable root without finite fugacities: no test can be made on it.
             return match cubic.stable_z(p, z).is_some_and(on_root) {
                 true => Err(self.no_root()),
-                false => Ok(None),
+                false => Ok(AtVolume::Splits(None)),
             };
         };
-        Ok((on_root(tpd.feed_z) && self.trials(&mut cubic, &mut tpd).is_none()).then_some(p))
+        if !on_root(tpd.feed_z) {
+            return Ok(AtVolume::Splits(None));
+        }
+        Ok(match self.trials(&mut cubic, &mut tpd) {
+            None => AtVolume::OnePhase(p),
+            Some(trial) => AtVolume::Splits(Some((p, trial))),
+        })
     }
 
     /// Flash a feed known to split, starting from the stability test's trial phase.
