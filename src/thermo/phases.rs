@@ -665,10 +665,10 @@ impl Fluid {
                 Some(e) => e,
                 None => self.equilibrium_tp(t_k, p, z)?,
             };
-            *last_k.borrow_mut() = match (&e.liquid, &e.vapour) {
-                (Some(x), Some(y)) => Some(x.iter().zip(y).map(|(xi, yi)| yi / xi.max(1e-300)).collect()),
-                _ => None,
-            };
+            // The last split found stays the start where a pressure tried is one phase.
+            if let (Some(x), Some(y)) = (&e.liquid, &e.vapour) {
+                *last_k.borrow_mut() = Some(x.iter().zip(y).map(|(xi, yi)| yi / xi.max(1e-300)).collect());
+            }
             Ok((e.molar_volume_m3.ln() - target, e))
         };
         // The bracket grows out from the one-phase pressure at this volume (near the
