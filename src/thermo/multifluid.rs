@@ -207,6 +207,9 @@ pub struct Mixture {
     /// [`Mixture::compose`] (see [`Sorted`]).
     sorted_pure: Vec<Sorted>,
     sorted_pairs: Vec<Sorted>,
+    /// The distinct bell-shaped density parts of all those terms (see [`Sorted::belled`]),
+    /// each as a term with no coefficient.
+    bells: Vec<Flat>,
 }
 
 /// How a pair without published parameters is combined.
@@ -321,7 +324,13 @@ impl Mixture {
                 Pure::Cubic { .. } => Sorted::default(),
             })
             .collect();
-        let sorted_pairs = pairs.iter().map(|p| p.departure.map(Sorted::of).unwrap_or_default()).collect();
+        let mut sorted_pairs: Vec<Sorted> =
+            pairs.iter().map(|p| p.departure.map(Sorted::of).unwrap_or_default()).collect();
+        let mut sorted_pure: Vec<Sorted> = sorted_pure;
+        let mut bells = Vec::new();
+        for sorted in sorted_pure.iter_mut().chain(sorted_pairs.iter_mut()) {
+            sorted.ring_bells(&mut bells);
+        }
         Mixture {
             pure,
             t_c,
@@ -334,6 +343,7 @@ impl Mixture {
             identity,
             sorted_pure,
             sorted_pairs,
+            bells,
         }
     }
 
@@ -503,10 +513,15 @@ impl Mixture {
         let mut other: Vec<(f64, Other)> = Vec::new();
         let mut sums = [0.0; SLOTS];
         let mut used = [false; SLOTS];
+        let mut bell_sums = vec![None; self.bells.len()];
         let mut add = |sorted: &Sorted, w: f64, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>| {
             for term in &sorted.slotted {
                 sums[term.slot] += w * (term.n * at.to(term.t));
                 used[term.slot] = true;
+            }
+            for (k, term) in &sorted.belled {
+                let sum: &mut Option<f64> = &mut bell_sums[*k];
+                *sum = Some(sum.unwrap_or(0.0) + w * bell_coefficient(term, &at));
             }
             flatten(&sorted.rest, w, &at, flat, other);
         };
@@ -526,6 +541,11 @@ impl Mixture {
                 if p.departure.is_some() && p.f != 0.0 && x[i] * x[j] != 0.0 {
                     add(&self.sorted_pairs[i * n + j], x[i] * x[j] * p.f, &mut flat, &mut other);
                 }
+            }
+        }
+        for (bell, sum) in self.bells.iter().zip(bell_sums) {
+            if let Some(c) = sum {
+                flat.push(Flat { c, ..*bell });
             }
         }
         for k in (0..SLOTS).filter(|k| used[*k]) {
@@ -927,6 +947,10 @@ fn slot_term(k: usize, c: f64) -> Flat {
 #[derive(Debug, Clone, Default)]
 struct Sorted {
     slotted: Vec<Slotted>,
+    /// The terms with a bell-shaped density part, δ^d exp(−η(δ − ε)² − β(δ − γ)), with its
+    /// place in the mixture's [`Mixture::bells`]: the pairs that share a departure function
+    /// (GERG-2008's generalized one) share those parts, so each is evaluated once.
+    belled: Vec<(usize, Term)>,
     rest: Vec<Term>,
 }
 
@@ -955,6 +979,55 @@ impl Sorted {
             }
         }
         sorted
+    }
+
+    /// Move the terms with a bell-shaped density part from `rest` to `belled`, each with
+    /// its place in `bells` (added there where no term before had the same part).
+    fn ring_bells(&mut self, bells: &mut Vec<Flat>) {
+        let mut rest = Vec::new();
+        for term in std::mem::take(&mut self.rest) {
+            let (d, part) = match term {
+                Term::Gaussian(_, d, _, eta, eps, ..) => (d, DeltaPart::Bell { eta, eps, beta: 0.0, gamma: 0.0 }),
+                Term::GaoB(_, d, _, eta, _, _, eps, _) => {
+                    (d, DeltaPart::Bell { eta: -eta, eps, beta: 0.0, gamma: 0.0 })
+                }
+                Term::GergExp(_, d, _, eta, eps, beta, gamma) => (d, DeltaPart::Bell { eta, eps, beta, gamma }),
+                _ => {
+                    rest.push(term);
+                    continue;
+                }
+            };
+            let bell = Flat { c: 0.0, d, di: whole(d).unwrap_or(TABLE), part };
+            let same = |f: &Flat| f.d.to_bits() == d.to_bits() && bell_bits(&f.part) == bell_bits(&part);
+            let k = bells.iter().position(same).unwrap_or_else(|| {
+                bells.push(bell);
+                bells.len() - 1
+            });
+            self.belled.push((k, term));
+        }
+        self.rest = rest;
+    }
+}
+
+/// A bell-shaped density part's parameters, by their bits.
+fn bell_bits(part: &DeltaPart) -> Option<[u64; 4]> {
+    match *part {
+        DeltaPart::Bell { eta, eps, beta, gamma } => Some([eta, eps, beta, gamma].map(f64::to_bits)),
+        _ => None,
+    }
+}
+
+/// A bell-shaped term's coefficient at τ: n τ^t times its temperature factor (as in
+/// [`flatten`]).
+fn bell_coefficient(term: &Term, at: &TauPowers) -> f64 {
+    let tau = at.tau;
+    match *term {
+        Term::Gaussian(n, _, t, _, _, beta, gamma) => n * at.to(t) * (-beta * (tau - gamma) * (tau - gamma)).exp(),
+        Term::GaoB(n, _, t, _, beta, gamma, _, b) => {
+            n * at.to(t) * (1.0 / (beta * (tau - gamma) * (tau - gamma) + b)).exp()
+        }
+        Term::GergExp(n, _, t, ..) => n * at.to(t),
+        _ => 0.0,
     }
 }
 
@@ -1318,15 +1391,30 @@ mod tests {
             let (merged, whole) = (m.compose(&x, 250.0), m.compose_each(&x, 250.0));
             assert!(merged.flat.len() * 3 < whole.flat.len(), "{} of {}", merged.flat.len(), whole.flat.len());
             // The composer's terms, each found its part once per mixture, are the unmerged
-            // terms summed by part: the same terms in the same order, the same sums to the bit.
+            // terms summed by part: the same powers and decays in the same order with the
+            // same sums to the bit, and one term per bell-shaped part, the sum of the
+            // unmerged terms with that part (pairs sharing a departure function share them).
+            let is_bell = |f: &&Flat| matches!(f.part, DeltaPart::Bell { .. });
             let summed = super::merged(whole.flat.clone());
-            assert_eq!(merged.flat.len(), summed.len());
-            for (a, b) in merged.flat.iter().zip(&summed) {
+            let (a, b): (Vec<&Flat>, Vec<&Flat>) =
+                (merged.flat.iter().filter(|f| !is_bell(f)).collect(), summed.iter().filter(|f| !is_bell(f)).collect());
+            assert_eq!(a.len(), b.len());
+            for (a, b) in a.iter().zip(&b) {
                 assert_eq!(
                     (a.c.to_bits(), a.di, format!("{:?}", a.part)),
                     (b.c.to_bits(), b.di, format!("{:?}", b.part))
                 );
             }
+            let bells: Vec<&Flat> = merged.flat.iter().filter(is_bell).collect();
+            let unmerged: Vec<&Flat> = whole.flat.iter().filter(is_bell).collect();
+            assert!(bells.len() < unmerged.len(), "{} bell terms of {}", bells.len(), unmerged.len());
+            let same = |f: &Flat, g: &Flat| f.d == g.d && bell_bits(&f.part) == bell_bits(&g.part);
+            for f in &bells {
+                let sum: f64 = unmerged.iter().filter(|g| same(f, g)).map(|g| g.c).sum();
+                assert!((f.c - sum).abs() <= 1e-14 * sum.abs(), "{f:?}: {sum}");
+                assert_eq!(bells.iter().filter(|g| same(f, g)).count(), 1, "one term per part");
+            }
+            assert!(unmerged.iter().all(|g| bells.iter().any(|f| same(f, g))), "every part is there");
             for rho in [10.0, 3000.0, 15000.0] {
                 let (a, b) = (merged.evaluate(rho), whole.evaluate(rho));
                 for (u, v) in [(a.0, b.0), (a.1, b.1), (a.2, b.2)] {
