@@ -666,6 +666,9 @@ impl Mixture {
                 a_t += x[i] * v_t;
             }
         }
+        // Each departure function once at (δ, τ): the pairs that share one (GERG-2008's
+        // generalized function) share its value.
+        let mut departures: Vec<(*const Term, (f64, f64, f64))> = Vec::new();
         for i in 0..n {
             for j in i + 1..n {
                 let p = &self.pairs[i * n + j];
@@ -673,7 +676,14 @@ impl Mixture {
                 if x[i] == 0.0 && x[j] == 0.0 {
                     continue;
                 }
-                let (v, v_d, v_t) = sum_terms_grad(terms, &at);
+                let (v, v_d, v_t) = match departures.iter().find(|(k, _)| *k == terms.as_ptr()) {
+                    Some((_, sums)) => *sums,
+                    None => {
+                        let sums = sum_terms_grad(terms, &at);
+                        departures.push((terms.as_ptr(), sums));
+                        sums
+                    }
+                };
                 let w = x[i] * x[j] * p.f;
                 a += w * v;
                 a_d += w * v_d;
