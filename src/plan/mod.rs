@@ -669,12 +669,7 @@ fn plan_at_depth(order: &Order, catalogue: &Catalogue, options: &PlanOptions, de
     let judges = judge.phase_judges(catalogue, &setup.gases);
     let (judgements, others) = rayon::join(
         || judge_steps(&judges, &pressures, t_fill, t_min, order.volume_m3),
-        || -> Vec<ModelPlan> {
-            if options.screening_only {
-                return Vec::new();
-            }
-            Model::ALL.par_iter().filter(|m| **m != model).map(|&m| other.plan(m)).collect()
-        },
+        || if options.screening_only { Vec::new() } else { other.every_one_but(model) },
     );
     let steps = build_steps(order, &d, pressures, judgements?, heel.as_ref(), t_fill, options, catalogue);
 
@@ -778,6 +773,11 @@ struct OtherModels<'a> {
 }
 
 impl OtherModels<'_> {
+    /// The plan of every model but `model`, in the order of [`Model::ALL`] (on both cores).
+    fn every_one_but(&self, model: Model) -> Vec<ModelPlan> {
+        Model::ALL.par_iter().filter(|m| **m != model).map(|&m| self.plan(m)).collect()
+    }
+
     /// Model `m`'s own plan: its total amount, Z and stop readings.
     fn plan(&self, m: Model) -> ModelPlan {
         let OtherModels { order, setup, sequence_names, catalogue, t_fill, reference, estimating } = *self;

@@ -272,41 +272,10 @@ impl Mixture {
         let mut estimated_pairs = Vec::new();
         for i in 0..n {
             for j in 0..n {
-                let t_ij = (t_c[i] * t_c[j]).sqrt();
-                let v_ij = (rho_c[i].powf(-1.0 / 3.0) + rho_c[j].powf(-1.0 / 3.0)).powi(3) / 8.0;
-                let found = set
-                    .pairs
-                    .get(&(ids[i].as_str(), ids[j].as_str()))
-                    .map(|p| (*p, false))
-                    .or_else(|| set.pairs.get(&(ids[j].as_str(), ids[i].as_str())).map(|p| (*p, true)));
-                let pair = match found {
-                    // The parameters are written for the file's order: swapped, β → 1/β.
-                    Some((p, swapped)) => Pair {
-                        beta_t: if swapped { 1.0 / p.beta_t } else { p.beta_t },
-                        gamma_t: p.gamma_t,
-                        beta_v: if swapped { 1.0 / p.beta_v } else { p.beta_v },
-                        gamma_v: p.gamma_v,
-                        f: p.f,
-                        departure: p
-                            .departure
-                            .and_then(|name| set.data.departures.iter().find(|d| d.name == name).map(|d| d.terms)),
-                        t_ij,
-                        v_ij,
-                    },
-                    None => {
-                        if i < j {
-                            estimated_pairs.push((ids[i].clone(), ids[j].clone()));
-                        }
-                        let v = |r: f64| 1.0 / r;
-                        let (gamma_t, gamma_v) = match estimate {
-                            Estimate::Linear => {
-                                (0.5 * (t_c[i] + t_c[j]) / t_ij, 0.5 * (v(rho_c[i]) + v(rho_c[j])) / v_ij)
-                            }
-                            Estimate::LorentzBerthelot => (1.0, 1.0),
-                        };
-                        Pair { beta_t: 1.0, gamma_t, beta_v: 1.0, gamma_v, f: 0.0, departure: None, t_ij, v_ij }
-                    }
-                };
+                let (pair, published) = pair_of(set, &ids, (i, j), (&t_c, &rho_c), estimate);
+                if !published && i < j {
+                    estimated_pairs.push((ids[i].clone(), ids[j].clone()));
+                }
                 pairs.push(pair);
             }
         }
@@ -317,20 +286,7 @@ impl Mixture {
             _ => R,
         };
         let identity = format!("{set_key:?}/{estimate:?}/{}", ids.join(","));
-        let sorted_pure = pure
-            .iter()
-            .map(|p| match p {
-                Pure::Reference(terms) => Sorted::of(terms),
-                Pure::Cubic { .. } => Sorted::default(),
-            })
-            .collect();
-        let mut sorted_pairs: Vec<Sorted> =
-            pairs.iter().map(|p| p.departure.map(Sorted::of).unwrap_or_default()).collect();
-        let mut sorted_pure: Vec<Sorted> = sorted_pure;
-        let mut bells = Vec::new();
-        for sorted in sorted_pure.iter_mut().chain(sorted_pairs.iter_mut()) {
-            sorted.ring_bells(&mut bells);
-        }
+        let (sorted_pure, sorted_pairs, bells) = sorted_terms(&pure, &pairs);
         Mixture {
             pure,
             t_c,
@@ -949,6 +905,68 @@ fn slot_term(k: usize, c: f64) -> Flat {
         li => DeltaPart::ExpPower { g: 1.0, l: (li - 1) as f64, li: li - 1 },
     };
     Flat { c, d: di as f64, di, part }
+}
+
+/// The pair (i, j) of the gases `ids` from the set's published parameters (swapped where
+/// the file has them the other way round), else by `estimate`; and whether it is published.
+fn pair_of(
+    set: &Indexed,
+    ids: &[String],
+    (i, j): (usize, usize),
+    (t_c, rho_c): (&[f64], &[f64]),
+    estimate: Estimate,
+) -> (Pair, bool) {
+    let t_ij = (t_c[i] * t_c[j]).sqrt();
+    let v_ij = (rho_c[i].powf(-1.0 / 3.0) + rho_c[j].powf(-1.0 / 3.0)).powi(3) / 8.0;
+    let found = set
+        .pairs
+        .get(&(ids[i].as_str(), ids[j].as_str()))
+        .map(|p| (*p, false))
+        .or_else(|| set.pairs.get(&(ids[j].as_str(), ids[i].as_str())).map(|p| (*p, true)));
+    match found {
+        // The parameters are written for the file's order: swapped, β → 1/β.
+        Some((p, swapped)) => {
+            let pair = Pair {
+                beta_t: if swapped { 1.0 / p.beta_t } else { p.beta_t },
+                gamma_t: p.gamma_t,
+                beta_v: if swapped { 1.0 / p.beta_v } else { p.beta_v },
+                gamma_v: p.gamma_v,
+                f: p.f,
+                departure: p
+                    .departure
+                    .and_then(|name| set.data.departures.iter().find(|d| d.name == name).map(|d| d.terms)),
+                t_ij,
+                v_ij,
+            };
+            (pair, true)
+        }
+        None => {
+            let v = |r: f64| 1.0 / r;
+            let (gamma_t, gamma_v) = match estimate {
+                Estimate::Linear => (0.5 * (t_c[i] + t_c[j]) / t_ij, 0.5 * (v(rho_c[i]) + v(rho_c[j])) / v_ij),
+                Estimate::LorentzBerthelot => (1.0, 1.0),
+            };
+            (Pair { beta_t: 1.0, gamma_t, beta_v: 1.0, gamma_v, f: 0.0, departure: None, t_ij, v_ij }, false)
+        }
+    }
+}
+
+/// Each pure gas's and each pair's terms sorted for [`Mixture::compose`], with the
+/// mixture's distinct bell-shaped density parts (see [`Sorted`]).
+fn sorted_terms(pure: &[Pure], pairs: &[Pair]) -> (Vec<Sorted>, Vec<Sorted>, Vec<Flat>) {
+    let mut sorted_pure: Vec<Sorted> = pure
+        .iter()
+        .map(|p| match p {
+            Pure::Reference(terms) => Sorted::of(terms),
+            Pure::Cubic { .. } => Sorted::default(),
+        })
+        .collect();
+    let mut sorted_pairs: Vec<Sorted> = pairs.iter().map(|p| p.departure.map(Sorted::of).unwrap_or_default()).collect();
+    let mut bells = Vec::new();
+    for sorted in sorted_pure.iter_mut().chain(sorted_pairs.iter_mut()) {
+        sorted.ring_bells(&mut bells);
+    }
+    (sorted_pure, sorted_pairs, bells)
 }
 
 /// A list of terms sorted once for [`Mixture::compose`]: those whose density part has a

@@ -181,6 +181,60 @@ fn bracket(
     }
 }
 
+/// The root of the gap (ln v_eq − ln v, falling with ln P) in the bracket [lo, hi]:
+/// regula falsi (Illinois), bisecting where the secant leaves the bracket, until the
+/// bracket is within 1e-9 or the secant through the last two points puts the root within
+/// 1e-11 of the last (or the gap is met to rounding). The state at the last pressure tried
+/// (`first`, the bracket's, where none is).
+fn root_in_ln_p(
+    gap: &impl Fn(f64) -> Result<(f64, Equilibrium), ThermoError>,
+    (mut lo, mut f_lo): (f64, f64),
+    (mut hi, mut f_hi): (f64, f64),
+    first: Equilibrium,
+) -> Result<Equilibrium, ThermoError> {
+    let mut best = first;
+    let mut side = 0i8;
+    // The latest point tried, for the secant through the last two (unhalved) values.
+    let mut last: Option<(f64, f64)> = None;
+    for _ in 0..200 {
+        if hi - lo < 1e-9 {
+            break;
+        }
+        let secant = lo + (hi - lo) * f_lo / (f_lo - f_hi);
+        let mid = if secant > lo && secant < hi { secant } else { 0.5 * (lo + hi) };
+        let (f, e) = gap(mid)?;
+        best = e;
+        if f == 0.0 {
+            break;
+        }
+        if f > 0.0 {
+            // The equilibrium volume is still above V/n: the pressure is higher.
+            lo = mid;
+            f_lo = f;
+            if side == 1 {
+                f_hi *= 0.5;
+            }
+            side = 1;
+        } else {
+            hi = mid;
+            f_hi = f;
+            if side == -1 {
+                f_lo *= 0.5;
+            }
+            side = -1;
+        }
+        let near = last.is_some_and(|(l, fl)| {
+            let slope = (f - fl) / (mid - l);
+            slope.is_finite() && slope != 0.0 && (f / slope).abs() < 1e-11
+        });
+        if near || f.abs() < 1e-13 {
+            break;
+        }
+        last = Some((mid, f));
+    }
+    Ok(best)
+}
+
 /// How far above 1 a stationary point's Σ W must be for the feed to split (and how far
 /// below 0 a tangent-plane distance): round-off in the fugacities stays well within it.
 pub(crate) const UNSTABLE_SUM: f64 = 1e-8;
@@ -226,8 +280,9 @@ impl<'a> TangentPlane<'a> {
     }
 
     /// The same with a stationary point reached where ln W changes by less than `settled`
-    /// (1e-10 unless asked): a measure ln Σ W then within ~(settled r/(1 − r))², at a
-    /// convergence rate r.
+    /// (1e-10 unless asked) while its measure ln Σ W is more than 1e-5 from the split margin
+    /// (nearer, 1e-10): the measure then within ~(settled r/(1 − r))², at a convergence
+    /// rate r, which does not reach the margin.
     pub(crate) fn settled_at(self, settled: f64) -> TangentPlane<'a> {
         TangentPlane { settled, ..self }
     }
@@ -272,8 +327,11 @@ impl<'a> TangentPlane<'a> {
             if distance < 1e-8 {
                 return Some(Stationary::Feed);
             }
-            if change < self.settled {
-                return Some(Stationary::Point(w.iter().sum::<f64>().ln()));
+            // Settled at 1e-10, or at the looser `settled` asked for where the measure is
+            // clear of the split margin (near it, to 1e-10: the verdict stays the same).
+            let ln_sum = w.iter().sum::<f64>().ln();
+            if change < 1e-10 || (change < self.settled && (ln_sum - UNSTABLE_SUM).abs() > 1e-5) {
+                return Some(Stationary::Point(ln_sum));
             }
         }
         Some(Stationary::Unsettled)
@@ -571,7 +629,7 @@ impl Fluid {
         }
         match self.judged_at(t_k, v, &z)? {
             AtVolume::OnePhase(p) => Ok(single(self.label(t_k, p, &z, v), p, v, self.phase_model())),
-            AtVolume::Splits(from) => self.split_at_volume(t_k, v, &z, volume_m3, from),
+            AtVolume::Splits(from) => self.split_at_volume(t_k, v, &z, from),
         }
     }
 
@@ -615,14 +673,13 @@ impl Fluid {
         t_k: f64,
         v: f64,
         z: &[f64],
-        volume_m3: f64,
         from: Option<(f64, Vec<f64>)>,
     ) -> Result<Equilibrium, ThermoError> {
         if self.phases_estimated {
             // The quick estimate: the screen's equilibrium where the screen finds a split.
-            return self.cubic_estimate().split_at_volume(t_k, v, z, volume_m3, None);
+            return self.cubic_estimate().split_at_volume(t_k, v, z, None);
         }
-        SPLITS.get_or_try(StateKey::of(self, t_k, v, z), || self.split_at_volume_now(t_k, v, z, volume_m3, from))
+        SPLITS.get_or_try(StateKey::of(self, t_k, v, z), || self.split_at_volume_now(t_k, v, z, from))
     }
 
     /// [`Fluid::split_at_volume`], computed.
@@ -631,15 +688,11 @@ impl Fluid {
         t_k: f64,
         v: f64,
         z: &[f64],
-        volume_m3: f64,
         from: Option<(f64, Vec<f64>)>,
     ) -> Result<Equilibrium, ThermoError> {
-        // Split: find the pressure whose equilibrium volume is V/n. The
-        // equilibrium volume falls continuously with the pressure: regula falsi (Illinois)
-        // on ln v_eq − ln v over ln P, bisecting where the secant leaves the bracket, until
-        // the bracket is within 1e-9 or the secant through the last two points puts the root
-        // within 1e-11 of the last (about five flashes after the bracket, where a bisection
-        // every third step took eight).
+        // Split: find the pressure whose equilibrium volume is V/n. The equilibrium volume
+        // falls continuously with the pressure: a bracket, then [`root_in_ln_p`] (about five
+        // flashes after the bracket, where a bisection every third step took eight).
         let target = v.ln();
         // Each split found starts the next pressure's flash (its K-values): the stability
         // test and the flash from its trial phase run only where that start falls back to
@@ -673,50 +726,8 @@ impl Fluid {
         };
         // The bracket grows out from the one-phase pressure at this volume (near the
         // answer where little liquid forms), else it is the whole range.
-        let ((mut lo, mut f_lo), (mut hi, mut f_hi), first) = bracket(&gap, start.map(f64::ln))?;
-        let mut best = Some(first);
-        let mut side = 0i8;
-        // The latest point tried, for the secant through the last two (unhalved) values.
-        let mut last: Option<(f64, f64)> = None;
-        for _ in 0..200 {
-            if hi - lo < 1e-9 {
-                break;
-            }
-            let secant = lo + (hi - lo) * f_lo / (f_lo - f_hi);
-            let mid = if secant > lo && secant < hi { secant } else { 0.5 * (lo + hi) };
-            let (f, e) = gap(mid)?;
-            best = Some(e);
-            if f == 0.0 {
-                break;
-            }
-            if f > 0.0 {
-                // The equilibrium volume is still above V/n: the pressure is higher.
-                lo = mid;
-                f_lo = f;
-                if side == 1 {
-                    f_hi *= 0.5;
-                }
-                side = 1;
-            } else {
-                hi = mid;
-                f_hi = f;
-                if side == -1 {
-                    f_lo *= 0.5;
-                }
-                side = -1;
-            }
-            // Done where the secant through the last two points puts the root within 1e-11
-            // of this one in ln P (or the volume is met to rounding).
-            let near = last.is_some_and(|(l, fl)| {
-                let slope = (f - fl) / (mid - l);
-                slope.is_finite() && slope != 0.0 && (f / slope).abs() < 1e-11
-            });
-            if near || f.abs() < 1e-13 {
-                break;
-            }
-            last = Some((mid, f));
-        }
-        let Some(mut best) = best else { return Err(ThermoError::Volume(volume_m3 * 1e3)) };
+        let ((lo, f_lo), (hi, f_hi), first) = bracket(&gap, start.map(f64::ln))?;
+        let mut best = root_in_ln_p(&gap, (lo, f_lo), (hi, f_hi), first)?;
         // At the pressure found, the amounts of the two phases follow from the volume (the
         // lever rule), which stays exact where the split is steep in pressure (a nearly
         // pure condensing component).
