@@ -124,8 +124,12 @@ const STATES_KEPT: usize = 4096;
 #[derive(Debug, Clone)]
 enum AtVolume {
     OnePhase(f64),
-    Splits(Option<(f64, Vec<f64>)>),
+    Splits(Tested),
 }
+
+/// Where the stability test found a split at the one-phase pressure of a volume: that
+/// pressure and the test's trial phase.
+type Tested = Option<(f64, Vec<f64>)>;
 
 /// The judgement of each state (see [`Fluid::judged_at`]), kept for the process: a plan
 /// asks the same state more than once (each step's at the fill temperature for its reading
@@ -664,17 +668,9 @@ impl Fluid {
         }
     }
 
-    /// Contents that split: the pressure whose equilibrium volume is
-    /// `v`, with the phases' amounts from the lever rule.
-    /// `from`: the one-phase pressure and the stability test's trial phase there, where the
-    /// test found the split (its first flash starts from them).
-    fn split_at_volume(
-        &self,
-        t_k: f64,
-        v: f64,
-        z: &[f64],
-        from: Option<(f64, Vec<f64>)>,
-    ) -> Result<Equilibrium, ThermoError> {
+    /// Contents that split: the pressure whose equilibrium volume is `v`, with the phases'
+    /// amounts from the lever rule; the first flash from `from` where the test had one.
+    fn split_at_volume(&self, t_k: f64, v: f64, z: &[f64], from: Tested) -> Result<Equilibrium, ThermoError> {
         if self.phases_estimated {
             // The quick estimate: the screen's equilibrium where the screen finds a split.
             return self.cubic_estimate().split_at_volume(t_k, v, z, None);
@@ -683,13 +679,7 @@ impl Fluid {
     }
 
     /// [`Fluid::split_at_volume`], computed.
-    fn split_at_volume_now(
-        &self,
-        t_k: f64,
-        v: f64,
-        z: &[f64],
-        from: Option<(f64, Vec<f64>)>,
-    ) -> Result<Equilibrium, ThermoError> {
+    fn split_at_volume_now(&self, t_k: f64, v: f64, z: &[f64], from: Tested) -> Result<Equilibrium, ThermoError> {
         // Split: find the pressure whose equilibrium volume is V/n. The equilibrium volume
         // falls continuously with the pressure: a bracket, then [`root_in_ln_p`] (about five
         // flashes after the bracket, where a bisection every third step took eight).
