@@ -91,8 +91,8 @@ struct SaturationKey {
 
 /// A state of given contents on one fluid: the fluid's identity and its hash, and the bits
 /// of T, the molar volume and the composition. Hashed by the identity's hash alone (not its
-/// text, some kilobytes for a wide blend); equal only with the same identity text.
-#[derive(PartialEq, Eq)]
+/// text, some kilobytes for a wide blend); equal only with the same identity text (compared
+/// only where the two are not one text already).
 struct StateKey {
     hash: u64,
     fluid: std::sync::Arc<str>,
@@ -105,6 +105,16 @@ impl std::hash::Hash for StateKey {
         self.bits.hash(state);
     }
 }
+
+impl PartialEq for StateKey {
+    fn eq(&self, other: &StateKey) -> bool {
+        self.hash == other.hash
+            && self.bits == other.bits
+            && (std::sync::Arc::ptr_eq(&self.fluid, &other.fluid) || self.fluid == other.fluid)
+    }
+}
+
+impl Eq for StateKey {}
 
 impl StateKey {
     fn of(fluid: &Fluid, t_k: f64, v: f64, z: &[f64]) -> StateKey {
