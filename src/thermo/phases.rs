@@ -1037,6 +1037,15 @@ mod tests {
         let reference = Fluid::new(&c, &gases, Model::Multi).unwrap();
         let estimate = reference.clone().with_phases_estimated(true);
         assert_ne!(reference.identity(), estimate.identity(), "a changed fluid is another key");
+        // The identity, once made, is made again after each change of the equations (the
+        // other usual estimate for unpublished pairs; the phases judged by the screen).
+        let mixed = ["CH4", "C3H8", "NO"].iter().map(|id| c.index_of(id).unwrap()).collect::<Vec<usize>>();
+        let multi = Fluid::new(&c, &mixed, Model::Multi).unwrap();
+        let made = multi.identity();
+        let other = multi.clone().with_estimate(&c, &mixed, crate::thermo::multifluid::Estimate::LorentzBerthelot);
+        assert_ne!(other.identity(), made);
+        assert_ne!(multi.clone().with_phases_estimated(true).identity(), made);
+        assert_eq!(multi.clone().identity(), made, "a copy is the same key");
         let (t, volume, total) = (250.0, 5.0e-4, 1.0);
         let amounts = |x: f64| [total * (1.0 - x), total * x];
         let ask = |f: &Fluid, x: f64| f.condensed_tv(t, volume, &amounts(x)).unwrap();
