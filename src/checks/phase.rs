@@ -50,7 +50,7 @@ impl<'a> PhaseFluid<'a> {
         // ln Σ z K at T after the inner iteration; None when it collapses to K = 1.
         // The model's own fugacities (a cubic's, or a Helmholtz model's), liquid and vapour
         // branches.
-        let no_root = || ThermoError::NoState { model: self.fluid.model(), why: "no root".into() };
+        let no_root = || self.fluid.no_root();
         let kernel = std::cell::RefCell::new(
             Kernel::new(self.fluid, t_floor_k).ok_or(ThermoError::NoFugacity(self.fluid.model()))?,
         );
@@ -303,7 +303,7 @@ impl<'a> Tracer<'a> {
     /// Evaluate the measure at (T, P), each trial started from `from`'s.
     fn evaluate(&mut self, t_k: f64, p_pa: f64, from: &[Vec<f64>; 2]) -> Result<Point, ThermoError> {
         self.cubic.set_temperature(t_k);
-        let no_root = || ThermoError::NoState { model: self.phase.fluid.model(), why: "no root".into() };
+        let no_root = || self.phase.fluid.no_root();
         let mut tpd = TangentPlane::new(&mut self.cubic, p_pa, self.z).ok_or_else(no_root)?.settled_at(self.settled);
         let wilson = self.wilson_trials(t_k, p_pa);
         let mut measure: Option<f64> = None;

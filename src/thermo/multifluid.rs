@@ -826,29 +826,19 @@ impl Powers {
 
 /// Split `terms` at τ into flat terms weighted by `w` (the non-analytic ones kept whole).
 fn flatten(terms: &[Term], w: f64, at: &TauPowers, flat: &mut Vec<Flat>, other: &mut Vec<(f64, Other)>) {
-    let tau = at.tau;
-    let tau_pow = |t: f64| at.to(t);
     for term in terms {
         let (c, d, part) = match *term {
-            Term::Power(n, d, t, l) => (n * tau_pow(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
-            Term::Exponential(n, d, t, g, l) => (n * tau_pow(t), d, exp_power(g, l)),
-            Term::Gaussian(n, d, t, eta, eps, beta, gamma) => (
-                n * tau_pow(t) * (-beta * (tau - gamma) * (tau - gamma)).exp(),
-                d,
-                DeltaPart::Bell { eta, eps, beta: 0.0, gamma: 0.0 },
-            ),
-            Term::GaoB(n, d, t, eta, beta, gamma, eps, b) => (
-                n * tau_pow(t) * (1.0 / (beta * (tau - gamma) * (tau - gamma) + b)).exp(),
-                d,
-                DeltaPart::Bell { eta: -eta, eps, beta: 0.0, gamma: 0.0 },
-            ),
-            Term::GergExp(n, d, t, eta, eps, beta, gamma) => {
-                (n * tau_pow(t), d, DeltaPart::Bell { eta, eps, beta, gamma })
-            }
+            Term::Power(n, d, t, l) => (n * at.to(t), d, if l > 0.0 { exp_power(1.0, l) } else { DeltaPart::Plain }),
+            Term::Exponential(n, d, t, g, l) => (n * at.to(t), d, exp_power(g, l)),
             Term::NonAnalytic(..) => {
                 other.push((w, Other::NonAnalytic(*term)));
                 continue;
             }
+            // The bell-shaped ones (every other kind).
+            _ => match bell_part(term) {
+                Some((d, part)) => (bell_coefficient(term, at), d, part),
+                None => continue,
+            },
         };
         flat.push(Flat { c: w * c, d, di: whole(d).unwrap_or(TABLE), part });
     }
@@ -1014,16 +1004,9 @@ impl Sorted {
     fn ring_bells(&mut self, bells: &mut Vec<Flat>) {
         let mut rest = Vec::new();
         for term in std::mem::take(&mut self.rest) {
-            let (d, part) = match term {
-                Term::Gaussian(_, d, _, eta, eps, ..) => (d, DeltaPart::Bell { eta, eps, beta: 0.0, gamma: 0.0 }),
-                Term::GaoB(_, d, _, eta, _, _, eps, _) => {
-                    (d, DeltaPart::Bell { eta: -eta, eps, beta: 0.0, gamma: 0.0 })
-                }
-                Term::GergExp(_, d, _, eta, eps, beta, gamma) => (d, DeltaPart::Bell { eta, eps, beta, gamma }),
-                _ => {
-                    rest.push(term);
-                    continue;
-                }
+            let Some((d, part)) = bell_part(&term) else {
+                rest.push(term);
+                continue;
             };
             let bell = Flat { c: 0.0, d, di: whole(d).unwrap_or(TABLE), part };
             let same = |f: &Flat| f.d.to_bits() == d.to_bits() && bell_bits(&f.part) == bell_bits(&part);
@@ -1037,6 +1020,17 @@ impl Sorted {
     }
 }
 
+/// A term's bell-shaped density part, δ^d exp(−η(δ − ε)² − β(δ − γ)), as (d, part)
+/// (Gaussian terms have β = 0; Gao's have −η); None for the others.
+fn bell_part(term: &Term) -> Option<(f64, DeltaPart)> {
+    match *term {
+        Term::Gaussian(_, d, _, eta, eps, ..) => Some((d, DeltaPart::Bell { eta, eps, beta: 0.0, gamma: 0.0 })),
+        Term::GaoB(_, d, _, eta, _, _, eps, _) => Some((d, DeltaPart::Bell { eta: -eta, eps, beta: 0.0, gamma: 0.0 })),
+        Term::GergExp(_, d, _, eta, eps, beta, gamma) => Some((d, DeltaPart::Bell { eta, eps, beta, gamma })),
+        _ => None,
+    }
+}
+
 /// A bell-shaped density part's parameters, by their bits.
 fn bell_bits(part: &DeltaPart) -> Option<[u64; 4]> {
     match *part {
@@ -1045,8 +1039,7 @@ fn bell_bits(part: &DeltaPart) -> Option<[u64; 4]> {
     }
 }
 
-/// A bell-shaped term's coefficient at τ: n τ^t times its temperature factor (as in
-/// [`flatten`]).
+/// A bell-shaped term's coefficient at τ: n τ^t times its temperature factor.
 fn bell_coefficient(term: &Term, at: &TauPowers) -> f64 {
     let tau = at.tau;
     match *term {

@@ -457,7 +457,8 @@ impl Fluid {
         Ok(self.trials(cubic, &mut tpd))
     }
 
-    fn no_root(&self) -> ThermoError {
+    /// The error where the model gives no root for a state.
+    pub(crate) fn no_root(&self) -> ThermoError {
         ThermoError::NoState { model: self.model, why: "no root".into() }
     }
 
