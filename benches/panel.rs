@@ -120,6 +120,12 @@ fn main() {
                 fillwright::speed::forget_kept_answers();
                 match which.as_str() {
                     "estimate" => drop(Computed::estimate(r, &catalogue, &settings)),
+                    "plan" => {
+                        let options = Computed::options(&settings);
+                        if let Ok(order) = r.resolve(&catalogue, "", &r.name) {
+                            drop(fillwright::plan::plan(&order, &catalogue, &options));
+                        }
+                    }
                     _ => drop(Computed::of(r, &catalogue, &settings)),
                 }
             }

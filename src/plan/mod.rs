@@ -599,12 +599,14 @@ enum Judged {
 }
 
 /// Judge a step's contents at the fill temperature and at three more temperatures down to
-/// `t_min_k` (the isochore of the cylinder).
+/// `t_min_k` (the isochore of the cylinder). The lowest first: contents that condense on
+/// cooling condense there in practice, and the verdict is the same whichever of the three
+/// finds liquid (all three are tested where none does).
 fn judge_step(fluid: &Fluid, t_fill: f64, t_min_k: f64, volume_m3: f64, n: &[f64]) -> Result<Judged, ThermoError> {
     if fluid.condensed_tv(t_fill, volume_m3, n)? {
         return Ok(Judged::AtFill);
     }
-    for k in 1..=3 {
+    for k in [3, 1, 2] {
         let t = t_fill - (t_fill - t_min_k) * k as f64 / 3.0;
         if t < t_fill && fluid.condensed_tv(t, volume_m3, n)? {
             return Ok(Judged::OnCooling);

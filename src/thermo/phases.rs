@@ -164,9 +164,13 @@ thread_local! {
 }
 
 /// A bracket [(ln P, gap), (ln P, gap)] of the cylinder's pressure, the gap (ln v_eq − ln v)
-/// falling with the pressure: from `start` outwards in steps doubling from a factor 1.5,
-/// within 100 Pa to the highest pressure (the whole range without a start); with the state
-/// at the last pressure tried.
+/// falling with the pressure: from `start` outwards, within 100 Pa to the highest pressure
+/// (the whole range without a start); with the state at the last pressure tried. The first
+/// step takes the gas's slope (d ln v / d ln P = −1: the root |gap| away) a fifth beyond,
+/// so that a split, which is more compressible than its gas, is bracketed at once; each
+/// further step the secant through the last two gaps half beyond (at most four times the
+/// last step, twice it where the secant points back). Steps of a factor 1.5 doubling took
+/// three to five more flashes in the search that follows.
 #[allow(clippy::type_complexity)]
 fn bracket(
     gap: &impl Fn(f64) -> Result<(f64, Equilibrium), ThermoError>,
@@ -181,7 +185,7 @@ fn bracket(
     let (f0, _) = gap(l0)?;
     // Above the answer (f > 0: the pressure is higher) or below it: walk the other way.
     let up = f0 > 0.0;
-    let (mut near, mut step) = ((l0, f0), 1.5f64.ln());
+    let (mut near, mut step) = ((l0, f0), (1.2 * f0.abs()).clamp(MIN_STEP_LN_P, 1.5f64.ln()));
     loop {
         let l = if up { (near.0 + step).min(top) } else { (near.0 - step).max(floor) };
         let (f, e) = gap(l)?;
@@ -190,16 +194,26 @@ fn bracket(
             let far = (l, f);
             return Ok(if up { (near, far, e) } else { (far, near, e) });
         }
+        let slope = (f - near.1) / (l - near.0);
+        step = if slope.is_finite() && slope < 0.0 {
+            (1.5 * (f / slope).abs()).clamp(MIN_STEP_LN_P, 4.0 * step)
+        } else {
+            2.0 * step
+        };
         near = (l, f);
-        step *= 2.0;
     }
 }
 
-/// The root of the gap (ln v_eq − ln v, falling with ln P) in the bracket [lo, hi]:
-/// regula falsi (Illinois), bisecting where the secant leaves the bracket, until the
+/// The smallest step of [`bracket`] in ln P.
+const MIN_STEP_LN_P: f64 = 1e-7;
+
+/// The root of the gap (ln v_eq − ln v, falling with ln P) in the bracket [lo, hi]: the
+/// secant through the last two points tried where it falls inside the bracket and the last
+/// point more than halved the gap, else regula falsi (Illinois), else bisection; until the
 /// bracket is within 1e-9 or the secant through the last two points puts the root within
 /// 1e-11 of the last (or the gap is met to rounding). The state at the last pressure tried
-/// (`first`, the bracket's, where none is).
+/// (`first`, the bracket's, where none is). (Illinois alone halves a bracket end's gap on
+/// the second step from one side and overshoots: one flash more per split.)
 fn root_in_ln_p(
     gap: &impl Fn(f64) -> Result<(f64, Equilibrium), ThermoError>,
     (mut lo, mut f_lo): (f64, f64),
@@ -208,14 +222,19 @@ fn root_in_ln_p(
 ) -> Result<Equilibrium, ThermoError> {
     let mut best = first;
     let mut side = 0i8;
-    // The latest point tried, for the secant through the last two (unhalved) values.
-    let mut last: Option<(f64, f64)> = None;
+    // The last two points tried, for the secant through them (unhalved values).
+    let (mut before, mut last): (Option<(f64, f64)>, Option<(f64, f64)>) = (None, None);
     for _ in 0..200 {
         if hi - lo < 1e-9 {
             break;
         }
-        let secant = lo + (hi - lo) * f_lo / (f_lo - f_hi);
-        let mid = if secant > lo && secant < hi { secant } else { 0.5 * (lo + hi) };
+        let through_last_two = match (before, last) {
+            (Some((lb, fb)), Some((l, f))) if f.abs() < 0.5 * fb.abs() => Some(l - f * (l - lb) / (f - fb)),
+            _ => None,
+        };
+        let falsi = lo + (hi - lo) * f_lo / (f_lo - f_hi);
+        let inside = |m: &f64| *m > lo && *m < hi;
+        let mid = through_last_two.filter(inside).or(Some(falsi).filter(inside)).unwrap_or(0.5 * (lo + hi));
         let (f, e) = gap(mid)?;
         best = e;
         if f == 0.0 {
@@ -244,10 +263,13 @@ fn root_in_ln_p(
         if near || f.abs() < 1e-13 {
             break;
         }
-        last = Some((mid, f));
+        (before, last) = (last, Some((mid, f)));
     }
     Ok(best)
 }
+
+/// The change in every ln K below which a flash has settled, for an answer.
+const FLASH_SETTLED: f64 = 1e-10;
 
 /// How far above 1 a stationary point's Σ W must be for the feed to split (and how far
 /// below 0 a tangent-plane distance): round-off in the fugacities stays well within it.
@@ -612,19 +634,34 @@ impl Fluid {
         }
         match self.stability(t_k, p_pa, z)? {
             None => {
-                let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
+                let v = self.stable_volume(t_k, p_pa, z)?;
                 Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.phase_model()))
             }
             // The quick estimate splits the feed with the screen's own flash too.
             Some(_) if self.phases_estimated => self.cubic_estimate().equilibrium_tp(t_k, p_pa, z),
-            Some(trial) => match self.flash(t_k, p_pa, z, &trial)? {
+            Some(trial) => match self.flash(t_k, p_pa, z, &trial, FLASH_SETTLED)? {
                 Some(e) => Ok(e),
                 None => {
-                    let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
+                    let v = self.stable_volume(t_k, p_pa, z)?;
                     Ok(single(self.label(t_k, p_pa, z, v), p_pa, v, self.phase_model()))
                 }
             },
         }
+    }
+
+    /// The molar volume of a feed that stays one phase at (T, P): the model's own state,
+    /// except under GERG-2008, whose density search (the aga8 crate's) keeps to the gas
+    /// root where the liquid is the stable one (a compressed pentane liquid at 1 bar and
+    /// 11 °C read as its metastable gas, 200 times its volume): there the root of lowest
+    /// Gibbs energy, the one the stability test took. Where the two agree to 1e-6 (every
+    /// gas), the crate's.
+    fn stable_volume(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<f64, ThermoError> {
+        let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
+        if self.model != Model::Gerg {
+            return Ok(v);
+        }
+        let stable = Kernel::new(self, t_k).and_then(|mut k| k.stable_z(p_pa, z)).map(|zs| zs * R * t_k / p_pa);
+        Ok(stable.filter(|vs| (vs / v - 1.0).abs() > 1e-6).unwrap_or(v))
     }
 
     /// The equilibrium state of `amounts_mol` in `volume_m3` at T: where gas and liquid
@@ -707,13 +744,18 @@ impl Fluid {
         .filter(|p| *p > 1.0e2 && *p < MAX_PRESSURE_PA);
         let tested = std::cell::RefCell::new(from.filter(|(p, _)| Some(*p) == start).map(|(p, w)| (p.ln(), w)));
         let last_k: std::cell::RefCell<Option<Vec<f64>>> = std::cell::RefCell::new(None);
+        let last_gap = std::cell::Cell::new(f64::INFINITY);
         let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
             let p = lp.exp().min(MAX_PRESSURE_PA);
             let warm = last_k.borrow().clone();
             let trial = tested.borrow_mut().take_if(|(l, _)| *l == lp).map(|(_, w)| w);
+            // Settled as far as the search needs: well within the gap the secant will leave
+            // (about the product of the last two; far from the answer a flash to 1e-10 in
+            // ln K is wasted), to FLASH_SETTLED near the answer.
+            let settled = (1e-2 * last_gap.get().powi(2)).clamp(FLASH_SETTLED, 1e-6);
             let e = match trial {
-                Some(w) => self.flash(t_k, p, z, &w)?,
-                None => warm.map(|k| self.flash_from(t_k, p, z, k)).transpose()?.flatten(),
+                Some(w) => self.flash(t_k, p, z, &w, settled)?,
+                None => warm.map(|k| self.flash_from(t_k, p, z, k, settled)).transpose()?.flatten(),
             };
             let e = match e {
                 Some(e) => e,
@@ -723,6 +765,7 @@ impl Fluid {
             if let (Some(x), Some(y)) = (&e.liquid, &e.vapour) {
                 *last_k.borrow_mut() = Some(x.iter().zip(y).map(|(xi, yi)| yi / xi.max(1e-300)).collect());
             }
+            last_gap.set((e.molar_volume_m3.ln() - target).abs());
             Ok((e.molar_volume_m3.ln() - target, e))
         };
         // The bracket grows out from the one-phase pressure at this volume (near the
@@ -805,7 +848,14 @@ impl Fluid {
 
     /// Flash a feed known to split, starting from the stability test's trial phase.
     /// None when the iteration falls back to one phase.
-    fn flash(&self, t_k: f64, p_pa: f64, z: &[f64], trial: &[f64]) -> Result<Option<Equilibrium>, ThermoError> {
+    fn flash(
+        &self,
+        t_k: f64,
+        p_pa: f64,
+        z: &[f64],
+        trial: &[f64],
+        settled: f64,
+    ) -> Result<Option<Equilibrium>, ThermoError> {
         // The trial phase is the incipient one: lighter (vapour-like) or heavier.
         let wilson_k = wilson(self, t_k, p_pa);
         let trial_is_vapour =
@@ -824,12 +874,20 @@ impl Fluid {
                 }
             })
             .collect();
-        self.flash_from(t_k, p_pa, z, k)
+        self.flash_from(t_k, p_pa, z, k, settled)
     }
 
-    /// Flash from the K-values `k` (successive substitution with Rachford–Rice). None when
-    /// the iteration falls back to one phase.
-    fn flash_from(&self, t_k: f64, p_pa: f64, z: &[f64], mut k: Vec<f64>) -> Result<Option<Equilibrium>, ThermoError> {
+    /// Flash from the K-values `k` (successive substitution with Rachford–Rice), settled
+    /// where a step changes no ln K by `settled` or more ([`FLASH_SETTLED`] for an answer).
+    /// None when the iteration falls back to one phase.
+    fn flash_from(
+        &self,
+        t_k: f64,
+        p_pa: f64,
+        z: &[f64],
+        mut k: Vec<f64>,
+        settled: f64,
+    ) -> Result<Option<Equilibrium>, ThermoError> {
         let mut cubic = Kernel::new(self, t_k).ok_or(ThermoError::NoFugacity(self.model))?;
         let n = z.len();
         let (mut x, mut y) = (vec![0.0; n], vec![0.0; n]);
@@ -866,7 +924,7 @@ impl Fluid {
             if k.iter().all(|ki| (ki - 1.0).abs() < 1e-6) {
                 return Ok(None); // collapsed to the trivial solution
             }
-            if change < 1e-10 {
+            if change < settled {
                 if !(beta > 0.0 && beta < 1.0) {
                     return Ok(None); // converged outside the two-phase region: one phase
                 }
@@ -1025,6 +1083,42 @@ mod tests {
             }
         }
         settled.then_some(false)
+    }
+
+    #[test]
+    fn a_liquid_pentane_mixture_under_gerg_is_liquid_and_its_split_is_below_the_bubble_point() {
+        // 14.8 % isopentane in n-pentane at 284.15 K. CoolProp 8.0.0 (HEOS, the same pure
+        // equations with GERG-2008's mixing): bubble point 0.41736 bar, dew point 0.41181
+        // bar, liquid at 1 bar 8787.6 mol/m³. GERG-2008's own density search keeps to the
+        // gas root: the stable state at 1 bar was read as a gas of 200 times the liquid's
+        // volume, and 0.339 mol in 10 L (half of it liquid) put at 0.766 bar, nearly twice
+        // the bubble point (the metastable gas's pressure at that volume).
+        let c = Catalogue::built_in();
+        let gases: Vec<usize> = ["i-C5H12", "n-C5H12", "i-C4H10"].iter().map(|id| c.index_of(id).unwrap()).collect();
+        let (t, z) = (284.15, [0.148, 0.852, 0.0]);
+        for model in [Model::Gerg, Model::Multi] {
+            let f = Fluid::new(&c, &gases, model).unwrap();
+            let e = f.equilibrium_tp(t, 1.0e5, &z).unwrap();
+            assert_eq!(e.phase, Phase::Liquid, "{model:?}");
+            // GERG-2008's pentanes are not CoolProp's equations: within 0.5 %.
+            assert!((1.0 / e.molar_volume_m3 / 8787.6 - 1.0).abs() < 5e-3, "{model:?}: {}", 1.0 / e.molar_volume_m3);
+            let total = 0.339;
+            let e = f.equilibrium_tv(t, 0.01, &z.map(|x| x * total)).unwrap();
+            assert_eq!(e.phase, Phase::TwoPhase, "{model:?}");
+            let p_bar = e.pressure_pa / 1e5;
+            assert!(p_bar > 0.41181 * 0.995 && p_bar < 0.41736 * 1.005, "{model:?}: {p_bar} bar");
+            // With isobutane, above the pentanes' bubble point and still a split: the answer
+            // lies between the dew and the bubble points and below the ideal gas's.
+            let n = [0.0503155, 0.288940, 0.422637];
+            let e = f.equilibrium_tv(t, 0.01, &n).unwrap();
+            let ideal = n.iter().sum::<f64>() * R * t / 0.01;
+            assert_eq!(e.phase, Phase::TwoPhase, "{model:?}");
+            assert!(
+                e.pressure_pa < ideal && e.pressure_pa > 0.9e5 && e.pressure_pa < 1.2e5,
+                "{model:?}: {}",
+                e.pressure_pa
+            );
+        }
     }
 
     #[test]
