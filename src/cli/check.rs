@@ -47,12 +47,10 @@ pub struct CheckArgs {
     pub common: Common,
 }
 
-/// A recipe as named: where it came from, and its order or why it could not be read.
-type Named = (String, Result<Order, String>);
-
-/// Recipes read, planned and screened at once, on every core: enough to keep both busy,
-/// few enough that memory stays flat however many recipes a folder holds.
-const CHUNK: usize = 64;
+/// How far the recipes being screened may run ahead of the last one written: enough to
+/// keep every core busy past a slow recipe, few enough that memory stays flat however many
+/// recipes a folder holds.
+const AHEAD: usize = 256;
 
 /// Screen every recipe named (or the order given), writing each result as it is ready, in
 /// the order named: a finding at stop ends with exit status 3, a recipe that could not be
@@ -69,29 +67,80 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
     let names = names(args)?;
     let mut stream = report::Stream::new(format, &conditions, &settings.shown);
     let mut tally = Tally::default();
-    // The report begins once the first recipes are screened: arguments refused (a bad
+    // The report begins once the first recipe is screened: arguments refused (a bad
     // --mix, --working-pressure or --before-fill) leave no half-written report.
     let mut begun = false;
-    for chunk in names.chunks(CHUNK) {
-        let screened: Vec<Screened> = chunk
-            .par_iter()
-            .map(|name| {
-                let mut named = read(args, name, &catalogue, &settings)?;
-                apply_ratings(args, &mut named, &catalogue)?;
-                Ok(screen(&named, args.common.model, &settings, &conditions, &catalogue))
-            })
-            .collect::<Result<_, Failure>>()?;
+    let work = |name: &String| {
+        let mut named = read(args, name, &catalogue, &settings)?;
+        apply_ratings(args, &mut named, &catalogue)?;
+        Ok::<_, Failure>(screen(&named, args.common.model, &settings, &conditions, &catalogue))
+    };
+    in_order(&names, AHEAD, work, |s: Screened| {
         if !std::mem::replace(&mut begun, true) {
             out!("{}", stream.begin());
         }
-        for s in &screened {
-            tally.add(s);
-            out!("{}", stream.item(s));
-        }
-    }
+        tally.add(&s);
+        out!("{}", stream.item(&s));
+    })?;
     out!("{}", stream.end());
     tally.outcome()
 }
+
+/// Do `work` on each of `items` on every core and hand each result to `take` in the items'
+/// order, as soon as it and all before it are done. The items are taken in order as cores
+/// come free, and none more than `ahead` past the first not yet taken, so few results wait
+/// and memory stays flat in the number of items (a core is never idle at the end of a
+/// batch, as with batches screened in turn). The first error, in order, ends the run after
+/// the results before it; the work not yet begun is then skipped.
+fn in_order<T: Sync, R: Send, E: Send>(
+    items: &[T],
+    ahead: usize,
+    work: impl Fn(&T) -> Result<R, E> + Sync,
+    mut take: impl FnMut(R),
+) -> Result<(), E> {
+    use std::sync::atomic::{AtomicBool, Ordering::Relaxed};
+    use std::sync::{Condvar, Mutex};
+    let stop = AtomicBool::new(false);
+    let taken = (Mutex::new(0usize), Condvar::new());
+    let (tx, rx) = std::sync::mpsc::channel::<(usize, Result<R, E>)>();
+    std::thread::scope(|scope| {
+        scope.spawn(|| {
+            items.iter().enumerate().par_bridge().for_each_with(tx, |tx, (i, item)| {
+                let (lock, turn) = &taken;
+                let mut first = lock.lock().unwrap_or_else(|e| e.into_inner());
+                while i >= *first + ahead && !stop.load(Relaxed) {
+                    first = turn.wait(first).unwrap_or_else(|e| e.into_inner());
+                }
+                drop(first);
+                if !stop.load(Relaxed) {
+                    let _ = tx.send((i, work(item)));
+                }
+            })
+        });
+        let mut waiting = std::collections::BTreeMap::new();
+        let mut next = 0;
+        let outcome = (|| {
+            for (i, result) in &rx {
+                waiting.insert(i, result);
+                while let Some(result) = waiting.remove(&next) {
+                    take(result?);
+                    next += 1;
+                    *taken.0.lock().unwrap_or_else(|e| e.into_inner()) = next;
+                    taken.1.notify_all();
+                }
+            }
+            Ok(())
+        })();
+        if outcome.is_err() {
+            stop.store(true, Relaxed);
+            taken.1.notify_all();
+        }
+        outcome
+    })
+}
+
+/// A recipe as named: where it came from, and its order or why it could not be read.
+type Named = (String, Result<Order, String>);
 
 /// What is named: the recipes (folders read for their `.ron` files), or the order given
 /// with --mix (as its name, read by [`read`]).
@@ -248,5 +297,71 @@ impl Tally {
             .into()),
             _ => Ok(()),
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::sync::atomic::{AtomicUsize, Ordering::Relaxed};
+
+    /// Work that takes longer for some items (so that later ones finish first).
+    fn uneven(i: usize) -> usize {
+        let spins = if i.is_multiple_of(7) { 20_000 } else { 200 };
+        (0..spins).fold(i, |a, k| std::hint::black_box(a ^ k)) ^ (0..spins).fold(0, |a, k| a ^ k)
+    }
+
+    #[test]
+    fn results_come_in_order_and_none_runs_far_ahead() {
+        let items: Vec<usize> = (0..2_000).collect();
+        let started = AtomicUsize::new(0);
+        let written = AtomicUsize::new(0);
+        let mut seen = Vec::new();
+        let mut furthest_ahead = 0;
+        let outcome: Result<(), String> = in_order(
+            &items,
+            16,
+            |&i| {
+                started.fetch_add(1, Relaxed);
+                // An item starts only within `ahead` of the first not yet written.
+                let ahead = i - written.load(Relaxed).min(i);
+                Ok((i, uneven(i), ahead))
+            },
+            |(i, r, ahead)| {
+                assert_eq!(r, i, "each result is its own item's");
+                seen.push(i);
+                furthest_ahead = furthest_ahead.max(ahead);
+                written.store(i + 1, Relaxed);
+            },
+        );
+        assert!(outcome.is_ok());
+        assert_eq!(seen, items, "every result once, in the items' order");
+        assert_eq!(started.load(Relaxed), items.len());
+        assert!(furthest_ahead < 16, "an item began {furthest_ahead} past the first unwritten");
+    }
+
+    #[test]
+    fn the_first_error_in_order_ends_the_run_after_the_results_before_it() {
+        let items: Vec<usize> = (0..5_000).collect();
+        let started = AtomicUsize::new(0);
+        let mut seen = Vec::new();
+        let outcome = in_order(
+            &items,
+            32,
+            |&i| {
+                started.fetch_add(1, Relaxed);
+                if i == 300 || i == 310 {
+                    Err(format!("item {i}"))
+                } else {
+                    Ok(uneven(i))
+                }
+            },
+            |r| seen.push(r),
+        );
+        assert_eq!(outcome, Err("item 300".to_string()), "the first error in the items' order");
+        assert_eq!(seen, (0..300).collect::<Vec<_>>());
+        // The rest is skipped: at most `ahead` past the failing item (and those already
+        // taken by a core) began.
+        assert!(started.load(Relaxed) <= 300 + 32 + rayon::current_num_threads() + 1, "{}", started.load(Relaxed));
     }
 }

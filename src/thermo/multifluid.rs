@@ -210,6 +210,8 @@ pub struct Mixture {
     /// The distinct bell-shaped density parts of all those terms (see [`Sorted::belled`]),
     /// each as a term with no coefficient.
     bells: Vec<Flat>,
+    /// The most terms [`Mixture::compose`] can make (every gas and pair present).
+    composed_capacity: usize,
 }
 
 /// How a pair without published parameters is combined.
@@ -287,6 +289,8 @@ impl Mixture {
         };
         let identity = format!("{set_key:?}/{estimate:?}/{}", ids.join(","));
         let (sorted_pure, sorted_pairs, bells) = sorted_terms(&pure, &pairs);
+        let composed_capacity =
+            sorted_pure.iter().chain(&sorted_pairs).map(|s| s.rest.len()).sum::<usize>() + bells.len() + SLOTS;
         Mixture {
             pure,
             t_c,
@@ -300,6 +304,7 @@ impl Mixture {
             sorted_pure,
             sorted_pairs,
             bells,
+            composed_capacity,
         }
     }
 
@@ -438,10 +443,16 @@ impl Mixture {
     /// The prepared state of (x, T), from the ones kept on this thread where it is there
     /// (an isotherm, a density search and its neighbours share one).
     fn at_composition(&self, x: &[f64], t_k: f64) -> std::rc::Rc<Composed> {
-        let key = (self.serial, t_k.to_bits(), x.iter().map(|v| v.to_bits()).collect::<Vec<u64>>());
+        // Compared in place: the key is made only for a state prepared anew.
+        let same = |(serial, t, xs): &PreparedKey| {
+            *serial == self.serial
+                && *t == t_k.to_bits()
+                && xs.len() == x.len()
+                && xs.iter().zip(x).all(|(a, b)| *a == b.to_bits())
+        };
         PREPARED.with(|cell| {
             let mut kept = cell.borrow_mut();
-            if let Some(i) = kept.iter().rposition(|(k, _)| *k == key) {
+            if let Some(i) = kept.iter().rposition(|(k, _)| same(k)) {
                 let hit = kept.remove(i);
                 let state = hit.1.clone();
                 kept.push(hit);
@@ -451,7 +462,7 @@ impl Mixture {
             if kept.len() >= PREPARED_KEPT {
                 kept.remove(0);
             }
-            kept.push((key, state.clone()));
+            kept.push(((self.serial, t_k.to_bits(), x.iter().map(|v| v.to_bits()).collect()), state.clone()));
             state
         })
     }
@@ -465,7 +476,7 @@ impl Mixture {
         let (tr, rr) = self.reducing_state(x);
         let tau = tr / t_k;
         let at = TauPowers::new(tau);
-        let mut flat = Vec::new();
+        let mut flat = Vec::with_capacity(self.composed_capacity);
         let mut other: Vec<(f64, Other)> = Vec::new();
         let mut sums = [0.0; SLOTS];
         let mut used = [false; SLOTS];

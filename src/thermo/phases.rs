@@ -204,6 +204,9 @@ fn bracket(
     }
 }
 
+/// A pressure tried and its gap: (ln P, ln v_eq − ln v).
+type Point = (f64, f64);
+
 /// The smallest step of [`bracket`] in ln P.
 const MIN_STEP_LN_P: f64 = 1e-7;
 
@@ -223,7 +226,7 @@ fn root_in_ln_p(
     let mut best = first;
     let mut side = 0i8;
     // The last two points tried, for the secant through them (unhalved values).
-    let (mut before, mut last): (Option<(f64, f64)>, Option<(f64, f64)>) = (None, None);
+    let (mut before, mut last): (Option<Point>, Option<Point>) = (None, None);
     for _ in 0..200 {
         if hi - lo < 1e-9 {
             break;
