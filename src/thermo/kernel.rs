@@ -144,6 +144,17 @@ impl CubicAt {
         pick(self.kind, root, &roots[..count], big_a, big_b)
     }
 
+    /// Z of composition `x` at `p_pa` on the liquid and on the vapour root (the same where
+    /// the cubic has one root), from one mixing and one cubic.
+    pub fn z_liquid_vapour(&mut self, p_pa: f64, x: &[f64]) -> (Option<f64>, Option<f64>) {
+        let (a, b) = self.mix(x);
+        let rt = R * self.t_k;
+        let (big_a, big_b) = (a * p_pa / (rt * rt), b * p_pa / rt);
+        let (roots, count) = z_roots(self.kind, big_a, big_b);
+        let on = |root| pick(self.kind, root, &roots[..count], big_a, big_b);
+        (on(RootChoice::Liquid), on(RootChoice::Vapour))
+    }
+
     /// ln φ_i of composition `x` (mole fractions summing to 1) at `p_pa` on the chosen root,
     /// written into `out`; returns Z, or None where the cubic has no root above B.
     pub fn ln_phi_into(&mut self, p_pa: f64, x: &[f64], root: RootChoice, out: &mut [f64]) -> Option<f64> {
@@ -262,8 +273,9 @@ impl HelmholtzAt {
     /// mixture's own search.
     fn density(&mut self, p_pa: f64, x: &[f64], root: RootChoice) -> Option<f64> {
         let t = self.t_k;
-        let mut on = |choice| self.estimate.z_on(p_pa, x, choice).map(|z| p_pa / (z * R * t));
-        let (pr_liquid, pr_vapour) = (on(RootChoice::Liquid), on(RootChoice::Vapour));
+        let density = |z: Option<f64>| z.map(|z| p_pa / (z * R * t));
+        let (liquid, vapour) = self.estimate.z_liquid_vapour(p_pa, x);
+        let (pr_liquid, pr_vapour) = (density(liquid), density(vapour));
         let starts: Vec<f64> = match root {
             RootChoice::Vapour => pr_vapour.into_iter().collect(),
             RootChoice::Liquid => pr_liquid.into_iter().collect(),
