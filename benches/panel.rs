@@ -226,6 +226,7 @@ fn plan_and_screen(text: &str) -> usize {
         resolutions: Resolutions { gauge_pa: settings.gauge_resolution_pa, scale_g: settings.scale_resolution_g },
         skip_following: false,
         screening_only: false,
+        stage_steps_only: false,
         phase_judge: None,
     };
     let plan = fillwright::plan::plan(&order, &catalogue, &options).expect("demo plans");

@@ -153,6 +153,7 @@ fn plan_options(args: &PlanArgs, settings: &crate::settings::Resolved) -> Result
         resolutions: Resolutions { gauge_pa, scale_g },
         skip_following: false,
         screening_only: false,
+        stage_steps_only: false,
         phase_judge: None,
     };
     Ok(options)

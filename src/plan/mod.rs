@@ -62,6 +62,10 @@ pub struct PlanOptions {
     /// For `check`, the library's screening column and the certificate's cautions, which
     /// show nothing else of the plan.
     pub screening_only: bool,
+    /// Plan each premix stage for its steps and their flags alone, as for the screening (no
+    /// other model's plan): the screen shows no more of a stage, where `plan`'s JSON gives
+    /// a stage's whole plan.
+    pub stage_steps_only: bool,
 }
 
 /// The lowest storage temperature when none is given: 0 °C (common practice for cylinders
@@ -1235,6 +1239,34 @@ mod tests {
             with_models += usize::from(a.models.len() > 1);
         }
         assert!(with_premixes > 0 && with_models > 0, "the whole plans had premixes and other models to leave out");
+    }
+
+    #[test]
+    fn the_screen_plans_a_premix_stage_for_its_steps_alone() {
+        // The screen shows a stage's steps and flags, not its other models: it plans each
+        // stage without them, and its steps are those of the stage planned whole under the
+        // same phases (the quick estimate's and the reference equations').
+        let c = Catalogue::built_in();
+        let mut orders: Vec<Order> =
+            demo::RECIPES.iter().map(|(name, text)| Recipe::load(text, name, &c).unwrap()).collect();
+        orders.extend(crate::speed::panel(2026, 24).iter().filter_map(|(_, r)| r.resolve(&c, "", &r.name).ok()));
+        let mut stages = 0;
+        for judge in [Some(Model::Pr), None] {
+            let screen = PlanOptions { phase_judge: judge, stage_steps_only: true, ..PlanOptions::default() };
+            let whole = PlanOptions { order: None, stage_steps_only: false, ..screen.clone() };
+            for order in &orders {
+                let Ok(p) = plan(order, &c, &screen) else { continue };
+                for st in p.premixes.iter().flat_map(|p| &p.stages) {
+                    let Ok(inner) = &st.plan else { continue };
+                    let full = plan_at_depth(&st.order, &c, &whole, 1).unwrap();
+                    assert_eq!(inner.steps, full.steps, "{}: {}", order.name, st.name);
+                    assert_eq!(inner.models.len(), 1, "{}: {}", order.name, st.name);
+                    assert!(full.models.len() > 1 && inner.following.is_empty());
+                    stages += 1;
+                }
+            }
+        }
+        assert!(stages > 1, "premixes were proposed");
     }
 
     #[test]

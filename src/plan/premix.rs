@@ -149,6 +149,11 @@ pub fn propose(
     planner: Planner,
 ) -> Vec<Proposal> {
     let balance_gas = balance_gas_of(order);
+    let options = &PlanOptions {
+        order: None,
+        screening_only: options.screening_only || options.stage_steps_only,
+        ..options.clone()
+    };
     let mut out = Vec::new();
     for (index, step) in plan.steps.iter().enumerate() {
         if !step.flags.iter().any(|f| f.too_small()) {
@@ -171,7 +176,7 @@ pub fn propose(
             fill_pressure_pa: plan.totals.pressure_pa.min(order.working_pressure_pa),
             blend: order,
             catalogue,
-            options: PlanOptions { order: None, ..options.clone() },
+            options: options.clone(),
             planner,
         };
         let Some((fractions, from_pure)) = maker.strengths(x) else { continue };
@@ -179,7 +184,7 @@ pub fn propose(
         maker.count_needed(&mut stages, step.add_amount_mol);
         out.push(Proposal { step: index, gas, stages, also: Vec::new(), why: None });
     }
-    let setting = Setting { plan, order, catalogue, options: PlanOptions { order: None, ..options.clone() }, planner };
+    let setting = Setting { plan, order, catalogue, options: options.clone(), planner };
     if let Some(one) = setting.combined(&out) {
         out.insert(0, one);
     }

@@ -232,6 +232,7 @@ impl Computed {
             },
             min_temperature_k: Some(settings.conditions().judged_down_to_k()),
             skip_following: true,
+            stage_steps_only: true,
             ..PlanOptions::default()
         }
     }
