@@ -605,10 +605,20 @@ enum Judged {
 /// Judge a step's contents at the fill temperature and at three more temperatures down to
 /// `t_min_k` (the isochore of the cylinder). The lowest first: contents that condense on
 /// cooling condense there in practice, and the verdict is the same whichever of the three
-/// finds liquid (all three are tested where none does).
-fn judge_step(fluid: &Fluid, t_fill: f64, t_min_k: f64, volume_m3: f64, n: &[f64]) -> Result<Judged, ThermoError> {
-    if fluid.condensed_tv(t_fill, volume_m3, n)? {
+/// finds liquid (all three are tested where none does). Only what can raise the verdict
+/// past `so_far` (another judge's) is tested.
+fn judge_step(
+    fluid: &Fluid,
+    so_far: Judged,
+    (t_fill, t_min_k): (f64, f64),
+    volume_m3: f64,
+    n: &[f64],
+) -> Result<Judged, ThermoError> {
+    if so_far == Judged::AtFill || fluid.condensed_tv(t_fill, volume_m3, n)? {
         return Ok(Judged::AtFill);
+    }
+    if so_far == Judged::OnCooling {
+        return Ok(so_far);
     }
     for k in [3, 1, 2] {
         let t = t_fill - (t_fill - t_min_k) * k as f64 / 3.0;
@@ -635,7 +645,7 @@ fn judge_steps(
         .map(|(_, n_after)| {
             let mut worst = Judged::Gas;
             for judge in judges {
-                worst = worst.max(judge_step(judge, t_fill, t_min, volume_m3, n_after)?);
+                worst = judge_step(judge, worst, (t_fill, t_min), volume_m3, n_after)?;
             }
             Ok(worst)
         })
