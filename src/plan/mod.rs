@@ -1280,6 +1280,23 @@ mod tests {
     }
 
     #[test]
+    fn a_second_judge_never_lowers_the_verdict_and_can_raise_it() {
+        // Propane in methane, 10 L at 15 °C, judged down to -20 °C: 0.5 mol of propane with
+        // 40 mol of methane is gas throughout; 40 mol of propane alone with 1 mol of methane
+        // is liquid at the fill temperature.
+        let c = Catalogue::built_in();
+        let gases: Vec<usize> = ["CH4", "C3H8"].iter().map(|id| c.index_of(id).unwrap()).collect();
+        let f = Fluid::new(&c, &gases, Model::Gerg).unwrap();
+        let temps = (288.15, 253.15);
+        let (gas, liquid) = ([40.0, 0.5], [1.0, 40.0]);
+        assert_eq!(judge_step(&f, Judged::Gas, temps, 0.01, &gas).unwrap(), Judged::Gas);
+        assert_eq!(judge_step(&f, Judged::OnCooling, temps, 0.01, &gas).unwrap(), Judged::OnCooling);
+        assert_eq!(judge_step(&f, Judged::AtFill, temps, 0.01, &gas).unwrap(), Judged::AtFill);
+        assert_eq!(judge_step(&f, Judged::Gas, temps, 0.01, &liquid).unwrap(), Judged::AtFill);
+        assert_eq!(judge_step(&f, Judged::OnCooling, temps, 0.01, &liquid).unwrap(), Judged::AtFill);
+    }
+
+    #[test]
     fn the_rising_solve_finds_the_root_from_a_guess_off_either_way() {
         // f(s) = s + s³ (rising); the root of f = 10 is s = 2.
         for guess in [0.5, 1.9, 2.0, 2.1, 50.0] {
