@@ -3,7 +3,6 @@
 use std::path::Path;
 
 use clap::Args;
-use rayon::prelude::*;
 
 use super::plan::OrderArgs;
 use super::{Common, Failure, Format, Refused};
@@ -50,7 +49,7 @@ pub struct CheckArgs {
 /// How far the recipes being screened may run ahead of the last one written: enough to
 /// keep every core busy past a slow recipe, few enough that memory stays flat however many
 /// recipes a folder holds.
-const AHEAD: usize = 256;
+const AHEAD: usize = 64;
 
 /// Screen every recipe named (or the order given), writing each result as it is ready, in
 /// the order named: a finding at stop ends with exit status 3, a recipe that could not be
@@ -87,53 +86,58 @@ pub fn run(args: &CheckArgs) -> Result<(), Failure> {
 }
 
 /// Do `work` on each of `items` on every core and hand each result to `take` in the items'
-/// order, as soon as it and all before it are done. The items are taken in order as cores
-/// come free, and none more than `ahead` past the first not yet taken, so few results wait
-/// and memory stays flat in the number of items (a core is never idle at the end of a
-/// batch, as with batches screened in turn). The first error, in order, ends the run after
-/// the results before it; the work not yet begun is then skipped.
+/// order, as soon as it and all before it are done. This thread hands the items to the
+/// thread pool in order, none more than `ahead` past the first not yet taken, so few
+/// results wait and memory stays flat in the number of items (and no core idles at the end
+/// of a batch, as with batches screened in turn); the pool's threads never wait on this one
+/// (a worker blocked on the window could hold a job that the first item waits for). The
+/// first error, in order, ends the run after the results before it; the work not yet begun
+/// is then skipped. A panic in `work` is raised here.
 fn in_order<T: Sync, R: Send, E: Send>(
     items: &[T],
     ahead: usize,
     work: impl Fn(&T) -> Result<R, E> + Sync,
     mut take: impl FnMut(R),
 ) -> Result<(), E> {
+    use std::panic::{catch_unwind, resume_unwind, AssertUnwindSafe};
     use std::sync::atomic::{AtomicBool, Ordering::Relaxed};
-    use std::sync::{Condvar, Mutex};
+    type Done<R, E> = (usize, std::thread::Result<Result<R, E>>);
     let stop = AtomicBool::new(false);
-    let taken = (Mutex::new(0usize), Condvar::new());
-    let (tx, rx) = std::sync::mpsc::channel::<(usize, Result<R, E>)>();
-    std::thread::scope(|scope| {
-        scope.spawn(|| {
-            items.iter().enumerate().par_bridge().for_each_with(tx, |tx, (i, item)| {
-                let (lock, turn) = &taken;
-                let mut first = lock.lock().unwrap_or_else(|e| e.into_inner());
-                while i >= *first + ahead && !stop.load(Relaxed) {
-                    first = turn.wait(first).unwrap_or_else(|e| e.into_inner());
+    let (tx, rx) = std::sync::mpsc::channel::<Done<R, E>>();
+    let (work, stop_ref) = (&work, &stop);
+    rayon::in_place_scope(|scope| {
+        let mut handed = 0;
+        let hand = |i: usize| {
+            let tx = tx.clone();
+            scope.spawn(move |_| {
+                if !stop_ref.load(Relaxed) {
+                    let _ = tx.send((i, catch_unwind(AssertUnwindSafe(|| work(&items[i])))));
                 }
-                drop(first);
-                if !stop.load(Relaxed) {
-                    let _ = tx.send((i, work(item)));
-                }
-            })
-        });
+            });
+        };
+        while handed < items.len().min(ahead.max(1)) {
+            hand(handed);
+            handed += 1;
+        }
         let mut waiting = std::collections::BTreeMap::new();
         let mut next = 0;
         let outcome = (|| {
-            for (i, result) in &rx {
+            while next < items.len() {
+                let Ok((i, result)) = rx.recv() else { break };
                 waiting.insert(i, result);
                 while let Some(result) = waiting.remove(&next) {
-                    take(result?);
+                    take(result.unwrap_or_else(|panic| resume_unwind(panic))?);
                     next += 1;
-                    *taken.0.lock().unwrap_or_else(|e| e.into_inner()) = next;
-                    taken.1.notify_all();
+                    if handed < items.len() {
+                        hand(handed);
+                        handed += 1;
+                    }
                 }
             }
             Ok(())
         })();
         if outcome.is_err() {
             stop.store(true, Relaxed);
-            taken.1.notify_all();
         }
         outcome
     })
@@ -338,6 +342,25 @@ mod tests {
         assert_eq!(seen, items, "every result once, in the items' order");
         assert_eq!(started.load(Relaxed), items.len());
         assert!(furthest_ahead < 16, "an item began {furthest_ahead} past the first unwritten");
+    }
+
+    #[test]
+    fn a_panic_in_the_work_is_raised_in_the_caller() {
+        let items: Vec<usize> = (0..500).collect();
+        let mut seen = 0;
+        let caught = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            in_order(
+                &items,
+                8,
+                |&i| {
+                    assert!(i != 77, "item 77 fails");
+                    Ok::<_, ()>(uneven(i))
+                },
+                |_| seen += 1,
+            )
+        }));
+        assert!(caught.is_err(), "the panic reaches the caller");
+        assert_eq!(seen, 77, "the results before it were taken");
     }
 
     #[test]
