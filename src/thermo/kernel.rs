@@ -137,22 +137,26 @@ impl CubicAt {
     /// Z of composition `x` at `p_pa` on the chosen root; None where the cubic has no root
     /// above B.
     pub fn z_on(&mut self, p_pa: f64, x: &[f64], root: RootChoice) -> Option<f64> {
-        let (a, b) = self.mix(x);
-        let rt = R * self.t_k;
-        let (big_a, big_b) = (a * p_pa / (rt * rt), b * p_pa / rt);
-        let (roots, count) = z_roots(self.kind, big_a, big_b);
+        let (roots, count, big_a, big_b) = self.roots(p_pa, x);
         pick(self.kind, root, &roots[..count], big_a, big_b)
     }
 
     /// Z of composition `x` at `p_pa` on the liquid and on the vapour root (the same where
     /// the cubic has one root), from one mixing and one cubic.
     pub fn z_liquid_vapour(&mut self, p_pa: f64, x: &[f64]) -> (Option<f64>, Option<f64>) {
+        let (roots, count, big_a, big_b) = self.roots(p_pa, x);
+        let on = |root| pick(self.kind, root, &roots[..count], big_a, big_b);
+        (on(RootChoice::Liquid), on(RootChoice::Vapour))
+    }
+
+    /// The cubic's roots in Z of composition `x` at `p_pa` (ascending, `count` of them), with
+    /// its A and B.
+    fn roots(&mut self, p_pa: f64, x: &[f64]) -> ([f64; 3], usize, f64, f64) {
         let (a, b) = self.mix(x);
         let rt = R * self.t_k;
         let (big_a, big_b) = (a * p_pa / (rt * rt), b * p_pa / rt);
         let (roots, count) = z_roots(self.kind, big_a, big_b);
-        let on = |root| pick(self.kind, root, &roots[..count], big_a, big_b);
-        (on(RootChoice::Liquid), on(RootChoice::Vapour))
+        (roots, count, big_a, big_b)
     }
 
     /// ln φ_i of composition `x` (mole fractions summing to 1) at `p_pa` on the chosen root,
