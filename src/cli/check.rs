@@ -119,6 +119,17 @@ fn in_order<T: Sync, R: Send, E: Send>(
             hand(handed);
             handed += 1;
         }
+        // The work not yet begun is skipped once the run ends early, by an error or a panic
+        // (which then reaches the caller without waiting for all that was handed out).
+        struct SkipRestOnUnwind<'a>(&'a AtomicBool);
+        impl Drop for SkipRestOnUnwind<'_> {
+            fn drop(&mut self) {
+                if std::thread::panicking() {
+                    self.0.store(true, Relaxed);
+                }
+            }
+        }
+        let _skip = SkipRestOnUnwind(&stop);
         let mut waiting = std::collections::BTreeMap::new();
         let mut next = 0;
         let outcome = (|| {
@@ -342,6 +353,25 @@ mod tests {
         assert_eq!(seen, items, "every result once, in the items' order");
         assert_eq!(started.load(Relaxed), items.len());
         assert!(furthest_ahead < 16, "an item began {furthest_ahead} past the first unwritten");
+    }
+
+    #[test]
+    fn work_that_uses_the_pool_itself_finishes_and_nothing_is_owed_for_no_items() {
+        // Each recipe's plan uses the thread pool too (both cores for a step's judgements):
+        // work that joins inside the pool, with a narrow window, still comes out whole.
+        fn nested(i: usize) -> usize {
+            let (a, b) = rayon::join(|| uneven(i), || (0..8).into_par_iter().map(|k| uneven(i + k) - k).sum::<usize>());
+            a * 8 + b
+        }
+        use rayon::prelude::*;
+        let items: Vec<usize> = (0..400).collect();
+        let mut seen = Vec::new();
+        assert!(in_order(&items, 2, |&i| Ok::<_, ()>(nested(i)), |r| seen.push(r)).is_ok());
+        assert_eq!(seen, items.iter().map(|&i| 16 * i).collect::<Vec<_>>(), "i·8 + 8·i for each, in order");
+        let none: Vec<usize> = Vec::new();
+        let mut taken = 0;
+        assert!(in_order(&none, 8, |&i| Ok::<_, ()>(i), |_| taken += 1).is_ok());
+        assert_eq!(taken, 0);
     }
 
     #[test]

@@ -271,6 +271,12 @@ fn root_in_ln_p(
     Ok(best)
 }
 
+/// A split's K-values y_i/x_i (None for one phase).
+fn k_values(e: &Equilibrium) -> Option<Vec<f64>> {
+    let (x, y) = (e.liquid.as_ref()?, e.vapour.as_ref()?);
+    Some(x.iter().zip(y).map(|(xi, yi)| yi / xi.max(1e-300)).collect())
+}
+
 /// The change in every ln K below which a flash has settled, for an answer.
 const FLASH_SETTLED: f64 = 1e-10;
 
@@ -747,7 +753,8 @@ impl Fluid {
         .filter(|p| *p > 1.0e2 && *p < MAX_PRESSURE_PA);
         let tested = std::cell::RefCell::new(from.filter(|(p, _)| Some(*p) == start).map(|(p, w)| (p.ln(), w)));
         let last_k: std::cell::RefCell<Option<Vec<f64>>> = std::cell::RefCell::new(None);
-        let last_gap = std::cell::Cell::new(f64::INFINITY);
+        // The last gap, and how far the flash that gave it was settled.
+        let last = std::cell::Cell::new((f64::INFINITY, FLASH_SETTLED));
         let gap = |lp: f64| -> Result<(f64, Equilibrium), ThermoError> {
             let p = lp.exp().min(MAX_PRESSURE_PA);
             let warm = last_k.borrow().clone();
@@ -755,26 +762,40 @@ impl Fluid {
             // Settled as far as the search needs: well within the gap the secant will leave
             // (about the product of the last two; far from the answer a flash to 1e-10 in
             // ln K is wasted), to FLASH_SETTLED near the answer.
-            let settled = (1e-2 * last_gap.get().powi(2)).clamp(FLASH_SETTLED, 1e-6);
-            let e = match trial {
+            let mut settled = (1e-2 * last.get().0.powi(2)).clamp(FLASH_SETTLED, 1e-6);
+            let mut e = match trial {
                 Some(w) => self.flash(t_k, p, z, &w, settled)?,
                 None => warm.map(|k| self.flash_from(t_k, p, z, k, settled)).transpose()?.flatten(),
             };
+            // A gap within a hundred times its flash's settling is settled to the answer's:
+            // near a phase boundary the substitution converges slowly, and the gap's sign
+            // must hold (it sets the bracket's direction).
+            if let Some(loose) =
+                e.take_if(|e| settled > FLASH_SETTLED && (e.molar_volume_m3.ln() - target).abs() < 100.0 * settled)
+            {
+                settled = FLASH_SETTLED;
+                e = Some(self.settle(t_k, z, loose)?);
+            }
             let e = match e {
                 Some(e) => e,
                 None => self.equilibrium_tp(t_k, p, z)?,
             };
             // The last split found stays the start where a pressure tried is one phase.
-            if let (Some(x), Some(y)) = (&e.liquid, &e.vapour) {
-                *last_k.borrow_mut() = Some(x.iter().zip(y).map(|(xi, yi)| yi / xi.max(1e-300)).collect());
+            if let Some(k) = k_values(&e) {
+                *last_k.borrow_mut() = Some(k);
             }
-            last_gap.set((e.molar_volume_m3.ln() - target).abs());
+            last.set(((e.molar_volume_m3.ln() - target).abs(), settled));
             Ok((e.molar_volume_m3.ln() - target, e))
         };
         // The bracket grows out from the one-phase pressure at this volume (near the
         // answer where little liquid forms), else it is the whole range.
         let ((lo, f_lo), (hi, f_hi), first) = bracket(&gap, start.map(f64::ln))?;
         let mut best = root_in_ln_p(&gap, (lo, f_lo), (hi, f_hi), first)?;
+        // The answer's phases settled to FLASH_SETTLED (a steep split can end the search on
+        // the bracket's width while its last flash was settled looser).
+        if last.get().1 > FLASH_SETTLED {
+            best = self.settle(t_k, z, best)?;
+        }
         // At the pressure found, the amounts of the two phases follow from the volume (the
         // lever rule), which stays exact where the split is steep in pressure (a nearly
         // pure condensing component).
@@ -847,6 +868,13 @@ impl Fluid {
             None => AtVolume::OnePhase(p),
             Some(trial) => AtVolume::Splits(Some((p, trial))),
         })
+    }
+
+    /// `e`, a split at its pressure, flashed again from its own K-values to
+    /// [`FLASH_SETTLED`] (itself where that falls back to one phase).
+    fn settle(&self, t_k: f64, z: &[f64], e: Equilibrium) -> Result<Equilibrium, ThermoError> {
+        let Some(k) = k_values(&e) else { return Ok(e) };
+        Ok(self.flash_from(t_k, e.pressure_pa, z, k, FLASH_SETTLED)?.unwrap_or(e))
     }
 
     /// Flash a feed known to split, starting from the stability test's trial phase.
