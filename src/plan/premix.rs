@@ -149,11 +149,8 @@ pub fn propose(
     planner: Planner,
 ) -> Vec<Proposal> {
     let balance_gas = balance_gas_of(order);
-    let options = &PlanOptions {
-        order: None,
-        screening_only: options.screening_only || options.stage_steps_only,
-        ..options.clone()
-    };
+    // A stage proposes nothing itself; the screen plans it for its steps alone.
+    let options = &PlanOptions { order: None, screening_only: options.stage_steps_only, ..options.clone() };
     let mut out = Vec::new();
     for (index, step) in plan.steps.iter().enumerate() {
         if !step.flags.iter().any(|f| f.too_small()) {

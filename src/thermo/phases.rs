@@ -663,7 +663,8 @@ impl Fluid {
     /// root where the liquid is the stable one (a compressed pentane liquid at 1 bar and
     /// 11 °C read as its metastable gas, 200 times its volume): there the root of lowest
     /// Gibbs energy, the one the stability test took. Where the two agree to 1e-6 (every
-    /// gas), the crate's.
+    /// gas), the crate's. Here rather than in [`Fluid::state_tp`], which the plan asks for
+    /// gas states on its hot path (a second density search each).
     fn stable_volume(&self, t_k: f64, p_pa: f64, z: &[f64]) -> Result<f64, ThermoError> {
         let v = self.state_tp(t_k, p_pa, z)?.molar_volume_m3;
         if self.model != Model::Gerg {
