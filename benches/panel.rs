@@ -167,26 +167,50 @@ fn main() {
 }
 
 /// The plan alone (no screening), in-process, by number of components: median wall time
-/// of each panel recipe's plan under the reference equations' phases.
+/// of each panel recipe's plan under the reference equations' phases (nothing kept from
+/// before); beside it, what one pass of the phase judgements costs at the least: a
+/// stability test of each step's contents at the fill temperature alone, by the reference
+/// equations alone (the plan judges each step at the fill temperature and three cooler
+/// ones, for the multi-fluid model with unpublished pairs by both usual estimates).
 fn plans_by_size(
     recipes: &[(&str, fillwright::recipe::Recipe)],
     catalogue: &fillwright::gas::Catalogue,
     settings: &fillwright::settings::Resolved,
 ) {
     let options = Computed::options(settings);
-    let mut by_size: std::collections::BTreeMap<usize, Vec<f64>> = Default::default();
+    let mut by_size: std::collections::BTreeMap<usize, Vec<(f64, f64, f64)>> = Default::default();
     for (_, r) in recipes {
         let Ok(order) = r.resolve(catalogue, "", &r.name) else { continue };
+        fillwright::speed::forget_kept_answers();
         let (w, _, plan) = timed(|| fillwright::plan::plan(&order, catalogue, &options));
-        if plan.is_ok() {
-            by_size.entry(r.components.len()).or_default().push(w);
-        }
+        let Ok(plan) = plan else { continue };
+        let reference = fillwright::plan::reference_model(&plan.gases, catalogue);
+        let Ok(judge) = fillwright::thermo::Fluid::new(catalogue, &plan.gases, reference) else { continue };
+        let judges = judge.phase_judges(catalogue, &plan.gases).len();
+        fillwright::speed::forget_kept_answers();
+        let (pass, _, _) = timed(|| {
+            for s in &plan.steps {
+                let _ = judge.condensed_tv(plan.fill_temperature_k, order.volume_m3, &s.amounts_after_mol);
+            }
+        });
+        let judgements = (plan.steps.len() * 4 * judges) as f64;
+        by_size.entry(r.components.len()).or_default().push((w, pass, judgements));
     }
-    println!("\nPlan alone (reference phases), median wall time by number of components:\n");
-    println!("| components | plans | median | maximum |");
-    println!("|---|---|---|---|");
-    for (n, times) in by_size {
-        println!("| {n} | {} | {} | {} |", times.len(), ms(percentile(&times, 0.5)), ms(percentile(&times, 1.0)));
+    println!("\nPlan alone (reference phases), median wall time by number of components, and one");
+    println!("pass of stability tests (each step at the fill temperature, one judge):\n");
+    println!("| components | plans | median | maximum | one pass | judgements per plan |");
+    println!("|---|---|---|---|---|---|");
+    for (n, rows) in by_size {
+        let of = |f: &dyn Fn(&(f64, f64, f64)) -> f64| rows.iter().map(f).collect::<Vec<f64>>();
+        let (times, passes, counts) = (of(&|r| r.0), of(&|r| r.1), of(&|r| r.2));
+        println!(
+            "| {n} | {} | {} | {} | {} | {:.0} |",
+            times.len(),
+            ms(percentile(&times, 0.5)),
+            ms(percentile(&times, 1.0)),
+            ms(percentile(&passes, 0.5)),
+            percentile(&counts, 0.5)
+        );
     }
 }
 
