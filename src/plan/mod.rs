@@ -412,7 +412,7 @@ fn multi_estimates(
     let live: Vec<String> =
         pairs.iter().filter(|(a, b)| fraction(a) > 0.0 && fraction(b) > 0.0).map(|(a, b)| format!("{a}-{b}")).collect();
     if !live.is_empty() {
-        let other = Mixture::with_estimate(catalogue, &setup.gases, Estimate::LorentzBerthelot);
+        let other = Mixture::shared_with_estimate(catalogue, &setup.gases, Estimate::LorentzBerthelot);
         let (t, v) = (order.reference_temperature_k, order.volume_m3);
         let p = mixture.pressure(t, total_mol / v, &setup.x_target).0;
         if let Some(rho) = other.density(t, p, &setup.x_target, Some(total_mol / v)) {

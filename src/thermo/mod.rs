@@ -200,9 +200,9 @@ impl Fluid {
             ids,
             cubic,
             gerg,
-            multi: (model == Model::Multi).then(|| std::sync::Arc::new(multifluid::Mixture::new(catalogue, gases))),
+            multi: (model == Model::Multi).then(|| multifluid::Mixture::shared(catalogue, gases)),
             gerg_mix: match model {
-                Model::Gerg => multifluid::Mixture::gerg2008(catalogue, gases).map(std::sync::Arc::new),
+                Model::Gerg => multifluid::Mixture::shared_gerg2008(catalogue, gases),
                 _ => None,
             },
             screen: None,
@@ -232,7 +232,7 @@ impl Fluid {
     /// same fluid for any other model).
     pub fn with_estimate(mut self, catalogue: &Catalogue, gases: &[usize], estimate: multifluid::Estimate) -> Fluid {
         if self.multi.is_some() {
-            self.multi = Some(std::sync::Arc::new(multifluid::Mixture::with_estimate(catalogue, gases, estimate)));
+            self.multi = Some(multifluid::Mixture::shared_with_estimate(catalogue, gases, estimate));
             self.identity = std::sync::OnceLock::new();
         }
         self

@@ -30,7 +30,7 @@
 #![allow(clippy::needless_range_loop)]
 
 use std::collections::HashMap;
-use std::sync::OnceLock;
+use std::sync::{Arc, OnceLock};
 
 use serde::Deserialize;
 
@@ -214,6 +214,15 @@ pub struct Mixture {
     composed_capacity: usize,
 }
 
+/// What a mixture is made of (see [`Mixture::shared_of_set`]).
+type MadeOf = (Set, Estimate, Vec<(String, [u64; 3])>);
+
+/// How many made mixtures are kept for the process.
+const MADE_KEPT: usize = 64;
+
+/// The mixtures made for the process (see [`Mixture::shared_of_set`]).
+static MADE: crate::kept::Kept<MadeOf, Arc<Mixture>> = crate::kept::Kept::new(MADE_KEPT);
+
 /// How a pair without published parameters is combined.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Estimate {
@@ -243,6 +252,41 @@ impl Mixture {
             .iter()
             .all(|&g| set.fluids.contains_key(catalogue.gas(g).id()))
             .then(|| Mixture::of_set(Set::Gerg2008, catalogue, gases, Estimate::Linear))
+    }
+
+    /// [`Mixture::new`] made once for the process and shared (see [`Mixture::shared_of_set`]).
+    pub fn shared(catalogue: &Catalogue, gases: &[usize]) -> Arc<Mixture> {
+        Mixture::shared_of_set(Set::Reference, catalogue, gases, Estimate::Linear)
+    }
+
+    /// [`Mixture::with_estimate`] made once for the process and shared.
+    pub fn shared_with_estimate(catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Arc<Mixture> {
+        Mixture::shared_of_set(Set::Reference, catalogue, gases, estimate)
+    }
+
+    /// [`Mixture::gerg2008`] made once for the process and shared.
+    pub fn shared_gerg2008(catalogue: &Catalogue, gases: &[usize]) -> Option<Arc<Mixture>> {
+        let set = indexed(Set::Gerg2008);
+        gases
+            .iter()
+            .all(|&g| set.fluids.contains_key(catalogue.gas(g).id()))
+            .then(|| Mixture::shared_of_set(Set::Gerg2008, catalogue, gases, Estimate::Linear))
+    }
+
+    /// The mixture of the set for the gases, made where none of the last [`MADE_KEPT`] is
+    /// made of the same: the set, the estimate, and each gas's name and the constants the
+    /// mixture takes from the catalogue (the critical point and acentric factor that stand in
+    /// for a gas with no reference equation). A mixture is equations, not an answer: every
+    /// plan of a blend, each of its premix stages and each model's fluid for it share one.
+    fn shared_of_set(set: Set, catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Arc<Mixture> {
+        let made_of = gases
+            .iter()
+            .map(|&g| {
+                let gas = catalogue.gas(g);
+                (gas.id().to_string(), [gas.tc_k().to_bits(), gas.pc_pa().to_bits(), gas.omega().to_bits()])
+            })
+            .collect();
+        MADE.get_or((set, estimate, made_of), || Arc::new(Mixture::of_set(set, catalogue, gases, estimate)))
     }
 
     fn of_set(set: Set, catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Mixture {
@@ -1592,6 +1636,40 @@ mod tests {
             let (got, _) = m.pressure(t, rho, &[1.0]);
             assert!((got / want - 1.0).abs() < 1e-12, "{got} vs {want}");
         }
+    }
+
+    #[test]
+    fn a_shared_mixture_is_the_one_made_of_the_same_equations_and_constants() {
+        let c = Catalogue::built_in();
+        let of = |c: &Catalogue, ids: &[&str]| -> Vec<usize> { ids.iter().map(|id| c.index_of(id).unwrap()).collect() };
+        let gases = of(&c, &["N2", "SF6", "NO", "CO2"]);
+        let (t, rho, x) = (288.15, 5000.0, [0.9, 0.05, 0.01, 0.04]);
+        let one = Mixture::shared(&c, &gases);
+        assert!(Arc::ptr_eq(&one, &Mixture::shared(&c, &gases)));
+        let fresh = Mixture::new(&c, &gases);
+        assert_eq!(one.identity(), fresh.identity());
+        assert_eq!(one.pressure(t, rho, &x), fresh.pressure(t, rho, &x));
+        // Another estimate for the unpublished pairs, or the gases in another order: another.
+        let lb = Mixture::shared_with_estimate(&c, &gases, Estimate::LorentzBerthelot);
+        assert!(!Arc::ptr_eq(&one, &lb) && lb.pressure(t, rho, &x) != one.pressure(t, rho, &x));
+        assert!(!Arc::ptr_eq(&one, &Mixture::shared(&c, &of(&c, &["SF6", "N2", "NO", "CO2"]))));
+        // A gas that stands in by its constants, with other constants (a user's catalogue):
+        // another mixture, with that catalogue's pressures.
+        let stand_in = one.estimated().0.first().expect("a gas with no reference equation").clone();
+        let mut record = c.gas(c.index_of(&stand_in).unwrap()).record.clone();
+        record.critical_temperature_k += 5.0;
+        let text = format!("Catalogue(gases: [{}])", ron::to_string(&record).unwrap());
+        let changed = c.clone().with_overrides(Catalogue::parse(&text, "user").unwrap());
+        let other = Mixture::shared(&changed, &of(&changed, &["N2", "SF6", "NO", "CO2"]));
+        assert!(!Arc::ptr_eq(&one, &other));
+        assert_ne!(other.pressure(t, rho, &x), one.pressure(t, rho, &x));
+        assert_eq!(other.pressure(t, rho, &x), Mixture::new(&changed, &gases).pressure(t, rho, &x));
+        // GERG-2008's, where it covers the gases.
+        let natural = of(&c, &["CH4", "N2", "CO2"]);
+        let gerg = Mixture::shared_gerg2008(&c, &natural).unwrap();
+        assert!(Arc::ptr_eq(&gerg, &Mixture::shared_gerg2008(&c, &natural).unwrap()));
+        assert!(!Arc::ptr_eq(&gerg, &Mixture::shared(&c, &natural)));
+        assert!(Mixture::shared_gerg2008(&c, &gases).is_none());
     }
 
     #[test]
