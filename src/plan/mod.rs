@@ -632,7 +632,9 @@ fn judge_step(
 /// Judge every step's contents (both cores) with the `judges`: the reference equations of
 /// the blend whatever model plans (the ideal gas has no liquid of its own; a cubic's dew
 /// points can lie several kelvin low), with each usual estimate for unpublished pairs; the
-/// most condensing verdict stands.
+/// most condensing verdict stands. The other estimate's judges judge only contents that
+/// have both gases of a pair without published parameters: elsewhere they answer as the
+/// first (the heavy gases added first stand alone for the first steps).
 fn judge_steps(
     judges: &[Fluid],
     pressures: &[(f64, Vec<f64>)],
@@ -644,8 +646,10 @@ fn judge_steps(
         .par_iter()
         .map(|(_, n_after)| {
             let mut worst = Judged::Gas;
-            for judge in judges {
-                worst = judge_step(judge, worst, (t_fill, t_min), volume_m3, n_after)?;
+            for (k, judge) in judges.iter().enumerate() {
+                if k == 0 || judge.estimate_applies(n_after) {
+                    worst = judge_step(judge, worst, (t_fill, t_min), volume_m3, n_after)?;
+                }
             }
             Ok(worst)
         })

@@ -289,6 +289,13 @@ impl Fluid {
         judges
     }
 
+    /// Whether contents `x` have both gases of a pair whose parameters the multi-fluid model
+    /// estimates: elsewhere its two usual estimates answer alike (see
+    /// [`multifluid::Mixture::estimate_applies`]). False for every other model.
+    pub fn estimate_applies(&self, x: &[f64]) -> bool {
+        self.multi.as_ref().is_some_and(|m| m.estimate_applies(x))
+    }
+
     /// The multi-fluid model behind this fluid, where it is that model.
     pub fn multifluid(&self) -> Option<&multifluid::Mixture> {
         self.multi.as_deref()
@@ -685,6 +692,54 @@ mod tests {
         assert!(matches!(f.pressure(300.0, 1e-3, &[0.0]), Err(ThermoError::Amount(_))));
         assert!(matches!(f.pressure_tv(300.0, 1e-6, &[1.0]), Err(ThermoError::BelowCovolume { .. })));
         assert!(matches!(f.state_tp(300.0, 1e5, &[0.5]), Err(ThermoError::Composition(_))));
+    }
+
+    #[test]
+    fn the_two_estimates_answer_alike_where_no_estimated_pair_is_present() {
+        // Benzene and nitrogen have no published parameters in the multi-fluid model (an
+        // estimated pair); every other pair here has them.
+        let c = Catalogue::built_in();
+        let gases: Vec<usize> = ["n-C4H10", "n-C5H12", "C6H6", "N2"].iter().map(|id| c.index_of(id).unwrap()).collect();
+        let linear = Fluid::new(&c, &gases, Model::Multi).unwrap();
+        let pairs = linear.multifluid().unwrap().estimated().1.to_vec();
+        assert_eq!(pairs, [("C6H6".to_string(), "N2".to_string())]);
+        let lb = linear.clone().with_estimate(&c, &gases, multifluid::Estimate::LorentzBerthelot);
+        let v = 0.01;
+        let present = |x: &[f64]| -> Vec<usize> { (0..x.len()).filter(|&i| x[i] != 0.0).collect() };
+        let ln_phi = |f: &Fluid, t: f64, x: &[f64]| -> Vec<f64> {
+            let mut out = vec![0.0; x.len()];
+            let mut k = kernel::Kernel::new(f, t).unwrap();
+            k.ln_phi_into(5e5, x, kernel::RootChoice::Stable, &mut out).unwrap();
+            out
+        };
+        // Without both gases of an estimated pair: the same verdicts and the same
+        // fugacities of the gases present, to the bit, gas or liquid, split or not (the
+        // first contents stand partly liquid at 280 K).
+        for amounts in [[0.3, 0.3, 0.0, 0.0], [0.2, 0.1, 0.0, 0.5], [0.0, 0.0, 0.2, 0.0], [0.0, 0.05, 0.05, 0.0]] {
+            assert!(!linear.estimate_applies(&amounts) && !lb.estimate_applies(&amounts));
+            for t in [250.0, 280.0, 310.0] {
+                assert_eq!(linear.condensed_tv(t, v, &amounts).unwrap(), lb.condensed_tv(t, v, &amounts).unwrap());
+                // A flash also stops on the K-values of the gases absent (their fugacities at
+                // infinite dilution, which the estimate moves): the same split within that.
+                let (a, b) =
+                    (linear.equilibrium_tv(t, v, &amounts).unwrap(), lb.equilibrium_tv(t, v, &amounts).unwrap());
+                assert_eq!(a.phase, b.phase);
+                assert!((a.pressure_pa / b.pressure_pa - 1.0).abs() < 1e-9, "{amounts:?} at {t} K");
+                let total: f64 = amounts.iter().sum();
+                let x: Vec<f64> = amounts.iter().map(|n| n / total).collect();
+                let (la, lbb) = (ln_phi(&linear, t, &x), ln_phi(&lb, t, &x));
+                for i in present(&x) {
+                    assert_eq!(la[i], lbb[i], "{amounts:?} at {t} K");
+                }
+            }
+        }
+        assert!(linear.condensed_tv(280.0, v, &[0.3, 0.3, 0.0, 0.0]).unwrap());
+        // With both gases of an estimated pair, the estimates give other fugacities.
+        let x = [0.3, 0.0, 0.2, 0.5];
+        assert!(linear.estimate_applies(&x) && lb.estimate_applies(&x));
+        assert_ne!(ln_phi(&linear, 300.0, &x)[2], ln_phi(&lb, 300.0, &x)[2]);
+        // No other model has estimates to tell apart.
+        assert!(!Fluid::new(&c, &gases, Model::Pr).unwrap().estimate_applies(&x));
     }
 
     #[test]

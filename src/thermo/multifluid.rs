@@ -197,6 +197,8 @@ pub struct Mixture {
     /// linear rule.
     estimated_gases: Vec<String>,
     estimated_pairs: Vec<(String, String)>,
+    /// The same pairs by index (i < j).
+    estimated_at: Vec<(usize, usize)>,
     /// The gas constant the equations were fitted with (GERG-2008 carries 8.314472).
     r: f64,
     /// Tells this mixture's prepared states apart from another's (see [`PREPARED`]).
@@ -316,11 +318,13 @@ impl Mixture {
         }
         let mut pairs = Vec::with_capacity(n * n);
         let mut estimated_pairs = Vec::new();
+        let mut estimated_at = Vec::new();
         for i in 0..n {
             for j in 0..n {
                 let (pair, published) = pair_of(set, &ids, (i, j), (&t_c, &rho_c), estimate);
                 if !published && i < j {
                     estimated_pairs.push((ids[i].clone(), ids[j].clone()));
+                    estimated_at.push((i, j));
                 }
                 pairs.push(pair);
             }
@@ -342,6 +346,7 @@ impl Mixture {
             pairs,
             estimated_gases,
             estimated_pairs,
+            estimated_at,
             r,
             serial,
             identity,
@@ -361,6 +366,16 @@ impl Mixture {
     /// published parameters).
     pub fn estimated(&self) -> (&[String], &[(String, String)]) {
         (&self.estimated_gases, &self.estimated_pairs)
+    }
+
+    /// Whether composition `x` has both gases of a pair without published parameters: where
+    /// it has not, every such pair's terms are multiplied by a zero x_i x_j, in `x` and in
+    /// any composition made of `x`'s gases alone (a stability test's trial phases, a
+    /// flash's phases), so the estimate for those pairs changes neither the pressure nor
+    /// the fugacities of the gases present, nor a stability test's verdict (only the
+    /// fugacities at infinite dilution of the gases absent).
+    pub fn estimate_applies(&self, x: &[f64]) -> bool {
+        self.estimated_at.iter().any(|&(i, j)| x[i] != 0.0 && x[j] != 0.0)
     }
 
     /// (T_r, ρ_r) of composition `x` with dual numbers (the definition the tests check
