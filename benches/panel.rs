@@ -15,8 +15,9 @@
 //! `--only KIND` one kind of the panel, `--profile estimate|reference` only that recompute
 //! of each recipe (nothing kept), ten times, and nothing else (for a profiler),
 //! `--write-library DIR` the library of the first `--check` size into DIR and nothing else
-//! (to profile a process on), `--each 1` each recipe's times, plan and screening as JSON (to
-//! compare two builds' results).
+//! (to profile a process on), `--each 1` each recipe's times, and its plan and screening
+//! from the whole recompute and from the screen's estimate as JSON (to compare two builds'
+//! results).
 //!
 //! The peak memory of a process is what `wait4` reports, which on Linux counts the pages
 //! of this bench process the child shared until its `exec`: the `--version` row is the
@@ -90,18 +91,22 @@ fn main() {
     if option(&args, "--each").is_some() {
         for (i, (kind, r)) in recipes.iter().enumerate() {
             let (w, _, full) = timed(|| Computed::of(r, &catalogue, &settings));
-            let (e, _, _) = timed(|| Computed::estimate(r, &catalogue, &settings));
-            let json = match (&full.plan, &full.order) {
+            let (e, _, estimate) = timed(|| Computed::estimate(r, &catalogue, &settings));
+            let results = |c: &Computed| match (&c.plan, &c.order) {
                 (Ok(p), Ok(o)) => {
-                    let checks: Vec<serde_json::Value> = full
+                    let checks: Vec<serde_json::Value> = c
                         .checks
                         .iter()
                         .flatten()
                         .map(|c| serde_json::json!({"id": c.id, "severity": format!("{:?}", c.severity), "data": c.data}))
                         .collect();
                     let plan = fillwright::cli::plan::plan_json(p, o, &catalogue);
-                    serde_json::json!({"plan": plan, "checks": checks}).to_string()
+                    Some(serde_json::json!({"plan": plan, "checks": checks}))
                 }
+                _ => None,
+            };
+            let json = match (results(&full), results(&estimate)) {
+                (Some(full), estimate) => serde_json::json!({"whole": full, "estimate": estimate}).to_string(),
                 _ => "-".into(),
             };
             println!("{i} {kind} {:.1} {:.1} {json}", w * 1e3, e * 1e3);
