@@ -73,6 +73,37 @@ fn option(args: &[String], name: &str) -> Option<String> {
     args.iter().position(|a| a == name).and_then(|i| args.get(i + 1).cloned())
 }
 
+/// `--each`: each recipe's times, and its plan and screening from the whole recompute and
+/// from the screen's estimate, as one line of JSON (to compare two builds' results).
+fn each(
+    recipes: &[(&str, fillwright::recipe::Recipe)],
+    catalogue: &fillwright::gas::Catalogue,
+    settings: &fillwright::settings::Resolved,
+) {
+    let results = |c: &Computed| match (&c.plan, &c.order) {
+        (Ok(p), Ok(o)) => {
+            let checks: Vec<serde_json::Value> = c
+                .checks
+                .iter()
+                .flatten()
+                .map(|c| serde_json::json!({"id": c.id, "severity": format!("{:?}", c.severity), "data": c.data}))
+                .collect();
+            let plan = fillwright::cli::plan::plan_json(p, o, catalogue);
+            Some(serde_json::json!({"plan": plan, "checks": checks}))
+        }
+        _ => None,
+    };
+    for (i, (kind, r)) in recipes.iter().enumerate() {
+        let (w, _, full) = timed(|| Computed::of(r, catalogue, settings));
+        let (e, _, estimate) = timed(|| Computed::estimate(r, catalogue, settings));
+        let json = match (results(&full), results(&estimate)) {
+            (Some(full), estimate) => serde_json::json!({"whole": full, "estimate": estimate}).to_string(),
+            _ => "-".into(),
+        };
+        println!("{i} {kind} {:.1} {:.1} {json}", w * 1e3, e * 1e3);
+    }
+}
+
 fn main() {
     let args: Vec<String> = std::env::args().collect();
     let count: usize = option(&args, "--count").and_then(|v| v.parse().ok()).unwrap_or(300);
@@ -89,28 +120,7 @@ fn main() {
     let recipes: Vec<_> =
         panel(seed, count).into_iter().filter(|(k, _)| only.as_deref().is_none_or(|o| o == *k)).collect();
     if option(&args, "--each").is_some() {
-        for (i, (kind, r)) in recipes.iter().enumerate() {
-            let (w, _, full) = timed(|| Computed::of(r, &catalogue, &settings));
-            let (e, _, estimate) = timed(|| Computed::estimate(r, &catalogue, &settings));
-            let results = |c: &Computed| match (&c.plan, &c.order) {
-                (Ok(p), Ok(o)) => {
-                    let checks: Vec<serde_json::Value> = c
-                        .checks
-                        .iter()
-                        .flatten()
-                        .map(|c| serde_json::json!({"id": c.id, "severity": format!("{:?}", c.severity), "data": c.data}))
-                        .collect();
-                    let plan = fillwright::cli::plan::plan_json(p, o, &catalogue);
-                    Some(serde_json::json!({"plan": plan, "checks": checks}))
-                }
-                _ => None,
-            };
-            let json = match (results(&full), results(&estimate)) {
-                (Some(full), estimate) => serde_json::json!({"whole": full, "estimate": estimate}).to_string(),
-                _ => "-".into(),
-            };
-            println!("{i} {kind} {:.1} {:.1} {json}", w * 1e3, e * 1e3);
-        }
+        each(&recipes, &catalogue, &settings);
         return;
     }
     if let Some(dir) = option(&args, "--write-library") {
@@ -177,7 +187,9 @@ fn main() {
 /// one pass of the reference equations' phase judgements costs at the least: a
 /// stability test of each step's contents at the fill temperature alone, by the reference
 /// equations alone (the plan judges each step at the fill temperature and three cooler
-/// ones, for the multi-fluid model with unpublished pairs by both usual estimates).
+/// ones, for the multi-fluid model with unpublished pairs by both usual estimates: at most
+/// that many judgements, as a step found liquid is not judged further and the second
+/// estimate judges only contents it applies to).
 fn plans_by_size(
     recipes: &[(&str, fillwright::recipe::Recipe)],
     catalogue: &fillwright::gas::Catalogue,
@@ -209,7 +221,7 @@ fn plans_by_size(
     println!("\nPlan alone, median wall time by number of components: with the reference equations'");
     println!("phases, with Peng-Robinson's (as in the screen's estimate), and one pass of the reference");
     println!("equations' stability tests (each step at the fill temperature, one judge):\n");
-    println!("| components | plans | median | maximum | with PR's phases | one pass | judgements per plan |");
+    println!("| components | plans | median | maximum | with PR's phases | one pass | judgements, at most |");
     println!("|---|---|---|---|---|---|---|");
     for (n, rows) in by_size {
         let column = |k: usize| rows.iter().map(|r| r[k]).collect::<Vec<f64>>();

@@ -47,13 +47,14 @@ pub fn write_library(dir: &Path, n: usize) -> std::io::Result<()> {
 }
 
 /// Forget the answers the process keeps between computations (the envelope's answers by
-/// fluid and composition, the premix stages' plans, the phase judgements of states), so
-/// that a timed computation that is repeated costs what it costs the first time, as after
-/// an edit of the composition.
+/// fluid and composition, the premix stages' plans, the phase judgements of states) and
+/// the mixtures it has made, so that a timed computation that is repeated costs what it
+/// costs the first time, as after an edit of the composition that adds a gas.
 pub fn forget_kept_answers() {
     crate::checks::phase::forget_kept();
     crate::plan::premix::forget_kept();
     crate::thermo::phases::forget_kept();
+    crate::thermo::multifluid::forget_made();
 }
 
 /// The kinds of blend in the benchmark panel (see [`panel`]), in the order they cycle.

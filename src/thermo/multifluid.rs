@@ -225,6 +225,12 @@ const MADE_KEPT: usize = 64;
 /// The mixtures made for the process (see [`Mixture::shared_of_set`]).
 static MADE: crate::kept::Kept<MadeOf, Arc<Mixture>> = crate::kept::Kept::new(MADE_KEPT);
 
+/// Forget the made mixtures (for the benchmarks, with the kept answers: a recompute then
+/// makes its mixtures as after an edit that adds a gas).
+pub fn forget_made() {
+    MADE.clear();
+}
+
 /// How a pair without published parameters is combined.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Estimate {
@@ -278,8 +284,10 @@ impl Mixture {
     /// The mixture of the set for the gases, made where none of the last [`MADE_KEPT`] is
     /// made of the same: the set, the estimate, and each gas's name and the constants the
     /// mixture takes from the catalogue (the critical point and acentric factor that stand in
-    /// for a gas with no reference equation). A mixture is equations, not an answer: every
-    /// plan of a blend, each of its premix stages and each model's fluid for it share one.
+    /// for a gas with no reference equation). A mixture is equations, not an answer: the
+    /// fluids of one blend under one model and estimate (its plan, its screening, the
+    /// estimate's and the whole recompute's, the next edit's) share one, as do the premix
+    /// stages of one gas in one balance gas.
     fn shared_of_set(set: Set, catalogue: &Catalogue, gases: &[usize], estimate: Estimate) -> Arc<Mixture> {
         let made_of = gases
             .iter()

@@ -221,10 +221,9 @@ pub struct Computed {
 
 /// The one-thread pool the screen's estimate runs in: on two cores the whole recompute
 /// runs beside it (on the shared pool), and work split across a pool's idle workers costs
-/// their spinning as well (measured over the benchmark panel: the estimate's median CPU
-/// 1.62 → 1.41 ms, 99th percentile 9.7 → 7.3 ms, for 1.07 → 1.41 ms of wall time). The
-/// joins inside run one after the other. None where the system gives no thread (the
-/// estimate then runs where it is asked for).
+/// their spinning as well (docs/speed.md has the figures: less CPU for a little more wall
+/// time). The joins inside run one after the other. None where the system gives no thread
+/// (the estimate then runs where it is asked for).
 fn estimate_pool() -> Option<&'static rayon::ThreadPool> {
     static POOL: std::sync::OnceLock<Option<rayon::ThreadPool>> = std::sync::OnceLock::new();
     POOL.get_or_init(|| {
