@@ -12,8 +12,9 @@
 //!
 //! Options (after `--`): `--count N` recipes (default 300), `--seed S` (default 2026),
 //! `--check N,N,…` library sizes for `check` and `list` (default 1000,10000; `0` for none),
-//! `--only KIND` one kind of the panel, `--profile estimate|reference` only that recompute
-//! of each recipe (nothing kept), ten times, and nothing else (for a profiler),
+//! `--only KIND` one kind of the panel, `--profile estimate|reference|plan|plan-estimate`
+//! only that recompute of each recipe (`plan`: the plan alone; `plan-estimate`: the plan
+//! with Peng–Robinson's phases; nothing kept), ten times, and nothing else (for a profiler),
 //! `--write-library DIR` the library of the first `--check` size into DIR and nothing else
 //! (to profile a process on), `--each 1` each recipe's times, and its plan and screening
 //! from the whole recompute and from the screen's estimate as JSON (to compare two builds'
@@ -135,8 +136,11 @@ fn main() {
                 fillwright::speed::forget_kept_answers();
                 match which.as_str() {
                     "estimate" => drop(Computed::estimate(r, &catalogue, &settings)),
-                    "plan" => {
-                        let options = Computed::options(&settings);
+                    "plan" | "plan-estimate" => {
+                        let mut options = Computed::options(&settings);
+                        if which == "plan-estimate" {
+                            options.phase_judge = Some(fillwright::thermo::Model::Pr);
+                        }
                         if let Ok(order) = r.resolve(&catalogue, "", &r.name) {
                             drop(fillwright::plan::plan(&order, &catalogue, &options));
                         }

@@ -216,6 +216,12 @@ pub struct Mixture {
     composed_capacity: usize,
 }
 
+/// Whether GERG-2008 has an equation for every one of the catalogue gases at `gases`.
+fn gerg2008_covers(catalogue: &Catalogue, gases: &[usize]) -> bool {
+    let set = indexed(Set::Gerg2008);
+    gases.iter().all(|&g| set.fluids.contains_key(catalogue.gas(g).id()))
+}
+
 /// What a mixture is made of (see [`Mixture::shared_of_set`]).
 type MadeOf = (Set, Estimate, Vec<(String, [u64; 3])>);
 
@@ -255,11 +261,7 @@ impl Mixture {
     /// GERG-2008 for the catalogue gases at `gases`, in this model's form (its own
     /// fugacities); None where GERG-2008 does not cover one of them.
     pub fn gerg2008(catalogue: &Catalogue, gases: &[usize]) -> Option<Mixture> {
-        let set = indexed(Set::Gerg2008);
-        gases
-            .iter()
-            .all(|&g| set.fluids.contains_key(catalogue.gas(g).id()))
-            .then(|| Mixture::of_set(Set::Gerg2008, catalogue, gases, Estimate::Linear))
+        gerg2008_covers(catalogue, gases).then(|| Mixture::of_set(Set::Gerg2008, catalogue, gases, Estimate::Linear))
     }
 
     /// [`Mixture::new`] made once for the process and shared (see [`Mixture::shared_of_set`]).
@@ -274,10 +276,7 @@ impl Mixture {
 
     /// [`Mixture::gerg2008`] made once for the process and shared.
     pub fn shared_gerg2008(catalogue: &Catalogue, gases: &[usize]) -> Option<Arc<Mixture>> {
-        let set = indexed(Set::Gerg2008);
-        gases
-            .iter()
-            .all(|&g| set.fluids.contains_key(catalogue.gas(g).id()))
+        gerg2008_covers(catalogue, gases)
             .then(|| Mixture::shared_of_set(Set::Gerg2008, catalogue, gases, Estimate::Linear))
     }
 

@@ -357,12 +357,13 @@ impl<'a> TangentPlane<'a> {
         TangentPlane { settled, ..self }
     }
 
-    /// The same where the measure is clear below the split margin only and the iteration
-    /// contracts steadily (see [`TRIAL_SETTLED`]): a verdict of "stable" at a looser
-    /// `settled`, while a stationary point that splits the feed is reached as without it
-    /// (the same W, which starts the flash: the iteration goes on from where it was).
-    fn settled_if_stable_at(self, settled: f64) -> TangentPlane<'a> {
-        TangentPlane { settled, settled_if_stable: true, ..self }
+    /// The same for a stability test's verdict: settled at [`TRIAL_SETTLED`] where the
+    /// measure is clear below the split margin and the iteration contracts steadily (a
+    /// verdict of "stable"), while a stationary point that splits the feed is reached as
+    /// without it (the same W, which starts the flash: the iteration goes on from where it
+    /// was).
+    fn for_verdict(self) -> TangentPlane<'a> {
+        TangentPlane { settled: TRIAL_SETTLED, settled_if_stable: true, ..self }
     }
 
     /// Successive substitution ln W_i = d_i − ln φ_i(W/ΣW) from the trial `w` (at the
@@ -523,8 +524,7 @@ impl Fluid {
             let mut estimate = Kernel::new(screen, t_k).ok_or(ThermoError::NoFugacity(screen.model))?;
             return screen.stability_on(&mut estimate, p_pa, z);
         }
-        let mut tpd =
-            TangentPlane::new(cubic, p_pa, z).ok_or_else(|| self.no_root())?.settled_if_stable_at(TRIAL_SETTLED);
+        let mut tpd = TangentPlane::new(cubic, p_pa, z).ok_or_else(|| self.no_root())?.for_verdict();
         Ok(self.trials(cubic, &mut tpd))
     }
 
@@ -808,12 +808,11 @@ impl Fluid {
                 Some(w) => self.flash(t_k, p, z, &w, settled)?,
                 None => warm.map(|k| self.flash_from(t_k, p, z, k, settled)).transpose()?.flatten(),
             };
+            let gap_of = |e: &Equilibrium| e.molar_volume_m3.ln() - target;
             // A gap within a hundred times its flash's settling is settled to the answer's:
             // near a phase boundary the substitution converges slowly, and the gap's sign
             // must hold (it sets the bracket's direction).
-            if let Some(loose) =
-                e.take_if(|e| settled > FLASH_SETTLED && (e.molar_volume_m3.ln() - target).abs() < 100.0 * settled)
-            {
+            if let Some(loose) = e.take_if(|e| settled > FLASH_SETTLED && gap_of(e).abs() < 100.0 * settled) {
                 settled = FLASH_SETTLED;
                 e = Some(self.settle(t_k, z, loose)?);
             }
@@ -825,8 +824,9 @@ impl Fluid {
             if let Some(k) = k_values(&e) {
                 *last_k.borrow_mut() = Some(k);
             }
-            last.set(((e.molar_volume_m3.ln() - target).abs(), settled));
-            Ok((e.molar_volume_m3.ln() - target, e))
+            let g = gap_of(&e);
+            last.set((g.abs(), settled));
+            Ok((g, e))
         };
         // The bracket grows out from the one-phase pressure at this volume (near the
         // answer where little liquid forms), else it is the whole range.
@@ -895,7 +895,7 @@ impl Fluid {
         }
         // The feed's fugacities on its stable root give the root (is it this volume?) and the
         // tangent plane at once: one density search where the root and the test made two.
-        let Some(mut tpd) = TangentPlane::new(&mut cubic, p, z).map(|t| t.settled_if_stable_at(TRIAL_SETTLED)) else {
+        let Some(mut tpd) = TangentPlane::new(&mut cubic, p, z).map(TangentPlane::for_verdict) else {
             // A stable root without finite fugacities: no test can be made on it.
             return match cubic.stable_z(p, z).is_some_and(on_root) {
                 true => Err(self.no_root()),
